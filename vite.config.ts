@@ -1,0 +1,26 @@
+/// <reference types="vitest/config" />
+import { defineConfig } from 'vite';
+import react from '@vitejs/plugin-react';
+import tailwindcss from '@tailwindcss/vite';
+
+const apiPort = process.env.PORT ?? '3000';
+
+/** Vite builds the React client rooted in client/; vitest runs every test under tests/. */
+export default defineConfig({
+  root: 'client',
+  plugins: [react(), tailwindcss()],
+  build: { outDir: '../dist/client', emptyOutDir: true },
+  server: {
+    proxy: {
+      '/api': `http://127.0.0.1:${apiPort}`,
+      '/ws': { target: `ws://127.0.0.1:${apiPort}`, ws: true },
+    },
+  },
+  test: {
+    root: '.',
+    include: ['tests/**/*.test.ts', 'tests/**/*.test.tsx'],
+    testTimeout: 30_000,
+    hookTimeout: 120_000,
+    pool: 'forks',
+  },
+});
