@@ -1,0 +1,190 @@
+import { parseIsoTimeUs } from './iso-time';
+import { parseStreamId } from './stream-id';
+import { WaveformParseError, type DecodedStream } from './types';
+
+/** Options for {@link decodeCsv}. */
+export interface CsvOptions {
+  /** Stream id given with the upload; wins over a `# stream=` comment. */
+  streamId?: string;
+}
+
+/** Relative times at or above this many seconds are read as Unix epoch seconds (1e8 s = 1973-03-03). */
+export const CSV_EPOCH_SECONDS_THRESHOLD = 1e8;
+/** Allowed deviation of a row's time from the uniform grid, as a fraction of the sample interval. */
+export const CSV_SPACING_TOLERANCE = 0.01;
+
+const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/u;
+
+/**
+ * Decodes a two-column CSV waveform: `t_seconds,counts` or `time,counts`.
+ *
+ * - Lines starting with `#` are comments; `# start=ISO-8601` and `# stream=NET.STA.LOC.CHA` are read
+ *   from them (several `key=value` pairs may share one comment line, separated by spaces or commas).
+ * - An optional header line (first non-comment line whose first cell is not a number or a time).
+ * - Column 1 either ISO-8601 UTC times (µs exact, see iso-time.ts) or seconds. Seconds are relative
+ *   to the `# start=` time when one is given; without one, seconds ≥ 1e8 are read as Unix epoch
+ *   seconds (what an acquisition script printing `time.time()` writes); smaller seconds without a
+ *   start time are refused, because placing them at 1970 would silently mislabel the data.
+ *   The stream's start time is the first row's time.
+ * - Column 2: counts (or any unit), finite decimal numbers.
+ * - Sample rate = (n − 1) / (t_last − t_first), snapped to the nearest integer Hz when within 1e-6
+ *   relative. Spacing check: every row's time must lie within 1 % of a sample interval of the uniform
+ *   grid t_first + i / rate, widened by half the last printed digit of the time column (so times
+ *   printed with 3 decimals at 400 Hz pass), never beyond 0.49 of an interval; any larger deviation is a gap or jitter and is refused
+ *   naming the row, as CSV carries no record structure to report gaps by.
+ * - Separators: `,` (also `;` or a tab, the same throughout the file); surrounding spaces are
+ *   ignored; CR LF line ends accepted.
+ *
+ * @throws WaveformParseError naming the line (1-based) and column for every malformed cell, a
+ *   missing stream id or start time, fewer than 2 samples, or non-uniform spacing
+ */
+export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
+  const lines = text.replace(/^\uFEFF/u, '').split(/\r?\n/u);
+  let startUs: number | undefined;
+  let commentStream: string | undefined;
+  const rows: { line: number; time: string; value: string }[] = [];
+  let separator: string | undefined;
+  let headerSeen = false;
+
+  for (let i = 0; i < lines.length; i++) {
+    const raw = lines[i] ?? '';
+    const lineNo = i + 1;
+    const line = raw.trim();
+    if (line === '') continue;
+    if (line.startsWith('#')) {
+      for (const m of line.slice(1).matchAll(/([A-Za-z_]+)\s*=\s*([^\s,;]+)/gu)) {
+        const key = (m[1] ?? '').toLowerCase();
+        const value = m[2] ?? '';
+        if (key === 'start') {
+          const t = parseIsoTimeUs(value);
+          if (t === undefined) {
+            throw new WaveformParseError(`CSV line ${lineNo}: start time '${value}' is not an ISO-8601 UTC time`);
+          }
+          startUs = t;
+        } else if (key === 'stream') {
+          commentStream = value;
+        }
+      }
+      continue;
+    }
+    if (separator === undefined) {
+      separator = line.includes(',') ? ',' : line.includes(';') ? ';' : line.includes('\t') ? '\t' : ',';
+    }
+    const cells = line.split(separator).map((c) => c.trim());
+    if (rows.length === 0 && !headerSeen && !isTimeCell(cells[0] ?? '')) {
+      headerSeen = true;
+      if (cells.length !== 2) {
+        throw new WaveformParseError(
+          `CSV line ${lineNo}: header has ${cells.length} columns; expected two (t_seconds,counts or time,counts)`,
+        );
+      }
+      continue;
+    }
+    if (cells.length !== 2) {
+      throw new WaveformParseError(
+        `CSV line ${lineNo}: ${cells.length} columns; expected two (time and counts) separated by '${separator === '\t' ? 'tab' : separator}'`,
+      );
+    }
+    rows.push({ line: lineNo, time: cells[0] ?? '', value: cells[1] ?? '' });
+  }
+
+  const idText = opts.streamId ?? commentStream;
+  if (idText === undefined || idText.trim() === '') {
+    throw new WaveformParseError(
+      'CSV: no stream id; give one with the upload or a comment line "# stream=NET.STA.LOC.CHA"',
+    );
+  }
+  const id = parseStreamId(idText, 'CSV');
+  if (rows.length < 2) {
+    throw new WaveformParseError(`CSV: ${rows.length} data rows; at least 2 are needed to derive a sample rate`);
+  }
+
+  const first = rows[0];
+  if (!first) throw new WaveformParseError('CSV: no data rows');
+  const iso = parseIsoTimeUs(first.time) !== undefined;
+  const n = rows.length;
+  const timesS = new Float64Array(n); // seconds relative to the first row
+  const samples = new Float64Array(n);
+  let decimals = 0;
+  let firstUs = 0;
+  let firstRel = 0;
+  for (let i = 0; i < n; i++) {
+    const row = rows[i];
+    if (!row) continue;
+    if (iso) {
+      const t = parseIsoTimeUs(row.time);
+      if (t === undefined) {
+        throw new WaveformParseError(`CSV line ${row.line}, column 1 (time): '${row.time}' is not an ISO-8601 UTC time`);
+      }
+      if (i === 0) firstUs = t;
+      timesS[i] = (t - firstUs) / 1e6;
+      const frac = /\.(\d+)/u.exec(row.time);
+      decimals = Math.max(decimals, frac?.[1]?.length ?? 0);
+    } else {
+      if (!NUMBER.test(row.time)) {
+        throw new WaveformParseError(`CSV line ${row.line}, column 1 (t_seconds): '${row.time}' is not a finite number`);
+      }
+      const t = Number(row.time);
+      if (!Number.isFinite(t)) {
+        throw new WaveformParseError(`CSV line ${row.line}, column 1 (t_seconds): '${row.time}' is not a finite number`);
+      }
+      if (i === 0) firstRel = t;
+      timesS[i] = t - firstRel;
+      const dot = row.time.replace(/[eE].*$/u, '').split('.')[1];
+      decimals = Math.max(decimals, dot?.length ?? 0);
+    }
+    if (!NUMBER.test(row.value) || !Number.isFinite(Number(row.value))) {
+      throw new WaveformParseError(`CSV line ${row.line}, column 2 (counts): '${row.value}' is not a finite number`);
+    }
+    samples[i] = Number(row.value);
+    if (i > 0 && (timesS[i] ?? 0) <= (timesS[i - 1] ?? 0)) {
+      throw new WaveformParseError(
+        `CSV line ${row.line}, column 1: time ${row.time} does not increase after the previous row`,
+      );
+    }
+  }
+
+  let startTimeUs: number;
+  if (iso) startTimeUs = firstUs;
+  else if (startUs !== undefined) startTimeUs = startUs + Math.round(firstRel * 1e6);
+  else if (firstRel >= CSV_EPOCH_SECONDS_THRESHOLD) startTimeUs = Math.round(firstRel * 1e6);
+  else {
+    throw new WaveformParseError(
+      'CSV: times are relative seconds but no start time is given; add a comment line "# start=2026-03-14T09:26:53.589Z" or use ISO-8601 times',
+    );
+  }
+
+  const spanS = timesS[n - 1] ?? 0;
+  let sampleRateHz = (n - 1) / spanS;
+  if (Math.abs(sampleRateHz - Math.round(sampleRateHz)) <= 1e-6 * sampleRateHz && Math.round(sampleRateHz) > 0) {
+    sampleRateHz = Math.round(sampleRateHz);
+  }
+  const dt = 1 / sampleRateHz;
+  // Never wider than 0.49 of an interval, so a single missing sample is always caught.
+  const tolS = Math.min(0.49 * dt, CSV_SPACING_TOLERANCE * dt + 0.5 * 10 ** -decimals * (1 + 1e-9));
+  for (let i = 1; i < n; i++) {
+    const dev = (timesS[i] ?? 0) - i * dt;
+    if (Math.abs(dev) > tolS) {
+      const row = rows[i];
+      throw new WaveformParseError(
+        `CSV line ${row?.line ?? '?'}, column 1: time ${row?.time ?? ''} is ${(dev * 1e3).toFixed(3)} ms off a uniform ${sampleRateHz.toPrecision(6)} Hz spacing (allowed ±${(tolS * 1e3).toFixed(3)} ms): gap or irregular sampling`,
+      );
+    }
+  }
+
+  return {
+    id: `${id.network}.${id.station}.${id.location}.${id.channel}`,
+    ...id,
+    sampleRateHz,
+    startTimeUs,
+    samples,
+    discontinuities: [],
+    encoding: 'csv',
+    format: 'csv',
+  };
+}
+
+/** True when a cell is a number or an ISO-8601 time (so a data row, not a header). */
+function isTimeCell(cell: string): boolean {
+  return NUMBER.test(cell) || parseIsoTimeUs(cell) !== undefined;
+}
