@@ -1,0 +1,296 @@
+import type { DecodedStream } from '../formats/types';
+import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
+import { validateBand } from './bands';
+import { butterworthSos, type Sos } from './butterworth';
+import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
+import { preprocessTrace } from './preprocess';
+import { qualityChecks, type QcFinding } from './qc';
+import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
+import { scoreWindow, type StationBaseline, type WindowScore } from './score';
+import { spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
+import { classicStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from './sta-lta';
+import { bandEnergy, sosfiltInPlace } from './sosfilt';
+
+/**
+ * The analysis of one window (one station's channels for one time span): the output contract of
+ * issue 4 ("The command line, and the output contract"). Times are s from the channel's first
+ * sample; energies in the input's units (counts²·s, or (m/s)²·s with a sensitivity); every filtered
+ * number comes from causal filtering from zero state (`filtering` says so).
+ */
+
+/** Options of `analyzeWindow`. */
+export interface AnalyzeOptions {
+  /** Per stream id: a flat sensitivity in counts per (m/s), or a full poles-and-zeros response. */
+  sensitivity?: Record<string, number | PolesZerosResponse>;
+  /** The station's noise baseline (null or absent: the network default is used). */
+  baseline?: StationBaseline | null;
+  /** Expected sample rate per stream id from the station registry, Hz (overrides the profile's). */
+  expectedSampleRateHz?: Record<string, number>;
+  /** Add decimated traces, the STA/LTA curve and a spectrogram for display (default false). */
+  display?: boolean;
+  /** Points per decimated display curve (min/max pairs), default 2000. */
+  displayPoints?: number;
+}
+
+/** One band's edges (as used, after any cap) and energy. */
+export interface BandResult {
+  fmin: number;
+  fmax: number;
+  energy: number;
+}
+
+/** Per-channel display data (decimated by min/max buckets so peaks survive). */
+export interface ChannelDisplay {
+  /** Samples per bucket; each bucket gives two points (min then max, in time order). */
+  bucket: number;
+  /** Times of the points, s from the first sample. */
+  times: number[];
+  trace: number[];
+  low: number[];
+  high: number[];
+  staLta: number[];
+  spectrogram: Spectrogram | null;
+}
+
+/** The analysis of one channel. */
+export interface ChannelResult {
+  id: string;
+  sampleRate: number;
+  /** ISO 8601 UTC with milliseconds. */
+  startTime: string;
+  /** Number of samples. */
+  samples: number;
+  durationS: number;
+  units: 'counts' | 'm/s';
+  qc: QcFinding[];
+  /** Warnings about the processing itself (capped bands, skipped band-reject filters, short PSD). */
+  warnings: string[];
+  bands: { low: BandResult; high: BandResult };
+  bandReject: Array<{ fmin: number; fmax: number; applied: boolean }>;
+  ratio: number | null;
+  log10Ratio: number | null;
+  staLta: {
+    method: 'classic' | 'recursive';
+    peak: number;
+    peakTime: number;
+    triggers: Array<{ on: number; off: number | null }>;
+  };
+  snr: number | null;
+  psd: { freqs: number[]; values: number[]; units: string; nperseg: number; segments: number };
+  dominantFrequency: number | null;
+  spectralCentroid: number | null;
+  /** With a sensitivity: acceleration PSD, dB rel 1 (m/s²)²/Hz, and where it sits against Peterson's models. */
+  noiseModels: {
+    accelerationDb: Array<number | null>;
+    nlnmDb: Array<number | null>;
+    nhnmDb: Array<number | null>;
+    medianPosition: number | null;
+    belowLow: number;
+    aboveHigh: number;
+  } | null;
+  display?: ChannelDisplay;
+}
+
+/** The analysis of a window. */
+export interface AnalysisResult extends WindowScore {
+  channels: ChannelResult[];
+  filtering: 'causal, zero initial state';
+}
+
+/** An input the pipeline cannot analyse (names the channel and the problem). */
+export class AnalysisError extends Error {
+  override readonly name = 'AnalysisError';
+}
+
+const MIN_SAMPLES = 16;
+
+/**
+ * Analyse one window: per channel QC → pre-process (demean, linear detrend, Tukey taper) → optional
+ * sensitivity → band-reject → low/high Butterworth band-passes (causal) → band energies and ratio →
+ * STA/LTA on the high band → SNR → Welch PSD, dominant frequency, centroid → noise-model position
+ * (with a sensitivity); then `scoreWindow` over all channels.
+ * Pure: the input samples are not mutated.
+ * @throws AnalysisError for no channels or a channel under 16 samples; BandError for a refused band;
+ *   RangeError for invalid sample rates.
+ */
+export function analyzeWindow(streams: readonly DecodedStream[], profile: ProcessingProfile, opts: AnalyzeOptions = {}): AnalysisResult {
+  if (streams.length === 0) throw new AnalysisError('the window has no channels to analyse');
+  const designs = new Map<string, Sos>();
+  const design = (order: number, edges: [number, number], type: 'bandpass' | 'bandstop', fs: number): Sos => {
+    const key = `${order}|${edges[0]}|${edges[1]}|${type}|${fs}`;
+    let sos = designs.get(key);
+    if (!sos) {
+      sos = butterworthSos(order, edges, type, fs);
+      designs.set(key, sos);
+    }
+    return sos;
+  };
+  const channels = streams.map((s) => analyzeChannel(s, profile, opts, design));
+  const score = scoreWindow(channels, opts.baseline ?? null, profile);
+  return { channels, ...score, filtering: 'causal, zero initial state' };
+}
+
+function analyzeChannel(
+  s: DecodedStream,
+  profile: ProcessingProfile,
+  opts: AnalyzeOptions,
+  design: (order: number, edges: [number, number], type: 'bandpass' | 'bandstop', fs: number) => Sos,
+): ChannelResult {
+  const fs = s.sampleRateHz;
+  if (!(fs > 0) || !Number.isFinite(fs)) throw new AnalysisError(`${s.id}: sample rate ${fs} Hz is not a positive number`);
+  const n = s.samples.length;
+  if (n < MIN_SAMPLES) throw new AnalysisError(`${s.id}: only ${n} samples, at least ${MIN_SAMPLES} are needed`);
+  const ltaSamples = Math.round(profile.staLta.ltaS * fs);
+  const qc = qualityChecks(s.samples, fs, s.discontinuities, {
+    fullScaleCounts: profile.qc.fullScaleCounts,
+    flatTopSamples: profile.qc.flatTopSamples,
+    spikeK: profile.qc.spikeK,
+    expectedSampleRateHz: opts.expectedSampleRateHz?.[s.id] ?? profile.qc.expectedSampleRateHz,
+    minSamples: ltaSamples,
+  });
+  const warnings: string[] = [];
+  const response = opts.sensitivity?.[s.id];
+  const flatSensitivity = response === undefined ? 1 : typeof response === 'number' ? response : response.sensitivity;
+  if (!(flatSensitivity > 0) || !Number.isFinite(flatSensitivity)) {
+    throw new AnalysisError(`${s.id}: sensitivity ${flatSensitivity} counts per m/s must be a positive number`);
+  }
+  const pre = preprocessTrace(s.samples, profile.preprocess.taperAlpha);
+  if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
+
+  const low = validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
+  const high = validateBand('high', profile.bands.high, fs, profile.bands.nyquistPolicy);
+  if (low.warning) warnings.push(low.warning);
+  if (high.warning) warnings.push(high.warning);
+
+  // Band-reject first (one shared trace), then both band-passes on it.
+  const rejected = Float64Array.from(pre);
+  const bandReject: ChannelResult['bandReject'] = [];
+  for (const br of profile.bandReject) {
+    const ok = br.fmax < fs / 2;
+    bandReject.push({ fmin: br.fmin, fmax: br.fmax, applied: ok });
+    if (!ok) {
+      warnings.push(`band-reject ${br.fmin}–${br.fmax} Hz${br.label ? ` (${br.label})` : ''} is not below the Nyquist frequency ${fs / 2} Hz: not applied`);
+      continue;
+    }
+    sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
+  }
+  const lowY = Float64Array.from(rejected);
+  sosfiltInPlace(design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs), lowY);
+  const highY = rejected;
+  sosfiltInPlace(design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs), highY);
+  const eLow = bandEnergy(lowY, fs);
+  const eHigh = bandEnergy(highY, fs);
+  const ratio = eLow > 0 ? eHigh / eLow : null;
+  const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
+
+  const sl = profile.staLta;
+  const cf = n >= ltaSamples
+    ? sl.method === 'classic'
+      ? classicStaLta(highY, fs, sl.staS, sl.ltaS)
+      : recursiveStaLta(highY, fs, sl.staS, sl.ltaS)
+    : new Float64Array(n);
+  const trig = detectTriggers(cf, fs, sl.on, sl.off);
+  const pk = peakOf(cf, fs);
+  const snr = snrAroundTrigger(highY, fs, trig[0]?.onIndex ?? null, profile.snr.signalS, profile.snr.noiseS);
+
+  // PSD: with a full response, compute in counts and correct per frequency; otherwise on the scaled trace.
+  const paz = typeof response === 'object' ? response : null;
+  let psdTrace = pre;
+  if (paz) {
+    psdTrace = Float64Array.from(pre);
+    for (let i = 0; i < n; i++) psdTrace[i] = (psdTrace[i] as number) * flatSensitivity;
+  }
+  const psd = welchPsd(psdTrace, fs, profile.psd.nperseg);
+  if (psd.warning) warnings.push(psd.warning);
+  const psdValues = paz ? countsPsdToVelocity(psd.freqs, psd.values, paz) : psd.values;
+  const excluded = profile.bandReject.filter((b) => b.fmax < fs / 2);
+  const stats = spectralStats(psd.freqs, psdValues, profile.psd.fminStats, excluded);
+  const physical = response !== undefined;
+  let noiseModels: ChannelResult['noiseModels'] = null;
+  if (physical) {
+    const acc = velocityPsdToAccelerationDb(psd.freqs, psdValues);
+    const pos = noiseModelPosition(psd.freqs, acc);
+    const freqs = Array.from(psd.freqs);
+    noiseModels = {
+      accelerationDb: Array.from(acc, (v) => (Number.isFinite(v) ? v : null)),
+      nlnmDb: freqs.map((f) => (f > 0 ? nlnmDb(1 / f) : null)),
+      nhnmDb: freqs.map((f) => (f > 0 ? nhnmDb(1 / f) : null)),
+      medianPosition: pos.median,
+      belowLow: pos.belowLow,
+      aboveHigh: pos.aboveHigh,
+    };
+  }
+  const result: ChannelResult = {
+    id: s.id,
+    sampleRate: fs,
+    startTime: new Date(Math.floor(s.startTimeUs / 1000)).toISOString(),
+    samples: n,
+    durationS: n / fs,
+    units: physical ? 'm/s' : 'counts',
+    qc,
+    warnings,
+    bands: { low: { fmin: low.fmin, fmax: low.fmax, energy: eLow }, high: { fmin: high.fmin, fmax: high.fmax, energy: eHigh } },
+    bandReject,
+    ratio,
+    log10Ratio,
+    staLta: { method: sl.method, peak: pk.peak, peakTime: pk.peakTime, triggers: trig.map((t) => ({ on: t.on, off: t.off })) },
+    snr,
+    psd: {
+      freqs: Array.from(psd.freqs),
+      values: Array.from(psdValues),
+      units: physical ? '(m/s)^2/Hz' : 'counts^2/Hz',
+      nperseg: psd.nperseg,
+      segments: psd.segments,
+    },
+    dominantFrequency: stats.dominantFrequency,
+    spectralCentroid: stats.spectralCentroid,
+    noiseModels,
+  };
+  if (opts.display) {
+    const points = Math.max(10, opts.displayPoints ?? 2000);
+    const bucket = Math.max(1, Math.ceil((2 * n) / points));
+    const idx = minMaxIndices(pre, bucket);
+    const pick = (y: Float64Array): number[] => idx.map((i) => y[i] as number);
+    result.display = {
+      bucket,
+      times: idx.map((i) => i / fs),
+      trace: pick(pre),
+      low: pick(lowY),
+      high: pick(highY),
+      staLta: maxPerBucket(cf, idx, bucket),
+      spectrogram: n >= 16 ? spectrogram(pre, fs) : null,
+    };
+  }
+  return result;
+}
+
+/** Indices of the min and max of each bucket of `bucket` samples, in time order. */
+function minMaxIndices(y: Float64Array, bucket: number): number[] {
+  const out: number[] = [];
+  if (bucket === 1) {
+    for (let i = 0; i < y.length; i++) out.push(i);
+    return out;
+  }
+  for (let b = 0; b < y.length; b += bucket) {
+    const e = Math.min(y.length, b + bucket);
+    let lo = b;
+    let hi = b;
+    for (let i = b + 1; i < e; i++) {
+      if ((y[i] as number) < (y[lo] as number)) lo = i;
+      if ((y[i] as number) > (y[hi] as number)) hi = i;
+    }
+    if (lo === hi) out.push(lo);
+    else out.push(Math.min(lo, hi), Math.max(lo, hi));
+  }
+  return out;
+}
+
+/** For each display point, the curve's maximum over that point's bucket (STA/LTA peaks stay visible). */
+function maxPerBucket(cf: Float64Array, idx: number[], bucket: number): number[] {
+  return idx.map((i) => {
+    const b = Math.floor(i / bucket) * bucket;
+    let m = 0;
+    for (let j = b; j < Math.min(cf.length, b + bucket); j++) if ((cf[j] as number) > m) m = cf[j] as number;
+    return m;
+  });
+}

@@ -1,0 +1,124 @@
+import { z } from 'zod';
+
+/**
+ * The processing profile: every parameter of the triage engine, per station, with the defaults of
+ * the processing table in the product brief. Shared by server (analysis) and client (profile
+ * editor), so both validate the same way.
+ *
+ * Frequencies are in Hz, times in seconds. Parse external input with `processingProfileSchema`
+ * (every field has a default, so `processingProfileSchema.parse({})` gives the default profile).
+ */
+
+/** A frequency band in Hz: `fmin < fmax`, both > 0. */
+export const frequencyBandSchema = z
+  .object({
+    fmin: z.number().positive('fmin must be > 0 Hz'),
+    fmax: z.number().positive('fmax must be > 0 Hz'),
+  })
+  .refine((b) => b.fmin < b.fmax, { message: 'fmin must be lower than fmax' });
+
+/** A frequency band in Hz. */
+export type FrequencyBand = z.infer<typeof frequencyBandSchema>;
+
+/** A per-station band-reject (Butterworth band-stop) filter for a known machinery line. */
+export const bandRejectSchema = z
+  .object({
+    fmin: z.number().positive('fmin must be > 0 Hz'),
+    fmax: z.number().positive('fmax must be > 0 Hz'),
+    /** Butterworth prototype order N (the band-stop has 2N poles). */
+    order: z.number().int().min(1).max(8).default(4),
+    /** Why the filter exists, for the technician (e.g. "pump, 25 Hz"). */
+    label: z.string().max(80).optional(),
+  })
+  .refine((b) => b.fmin < b.fmax, { message: 'fmin must be lower than fmax' });
+
+/** A band-reject filter. */
+export type BandReject = z.infer<typeof bandRejectSchema>;
+
+/** The whole processing profile. */
+export const processingProfileSchema = z.object({
+  preprocess: z
+    .object({
+      /** Tukey taper α (fraction of the window tapered in total; 0.10 = 5 % at each end). */
+      taperAlpha: z.number().min(0).max(1).default(0.1),
+    })
+    .default({ taperAlpha: 0.1 }),
+  bands: z
+    .object({
+      low: frequencyBandSchema.default({ fmin: 0.5, fmax: 2 }),
+      high: frequencyBandSchema.default({ fmin: 2, fmax: 10 }),
+      /** Butterworth prototype order N of both band-passes (2N poles, as scipy butter(N, ...)). */
+      order: z.number().int().min(1).max(8).default(4),
+      /**
+       * What to do when a band's upper edge is at or above 0.45·fs: `refuse` (an error naming the
+       * band and fs) or `cap` (lower the edge to 0.45·fs and add a warning to the channel).
+       */
+      nyquistPolicy: z.enum(['refuse', 'cap']).default('refuse'),
+    })
+    .default({ low: { fmin: 0.5, fmax: 2 }, high: { fmin: 2, fmax: 10 }, order: 4, nyquistPolicy: 'refuse' }),
+  bandReject: z.array(bandRejectSchema).max(8).default([]),
+  psd: z
+    .object({
+      /** Welch segment length in samples (a power of two). */
+      nperseg: z
+        .number()
+        .int()
+        .min(16)
+        .max(65536)
+        .refine((n) => (n & (n - 1)) === 0, { message: 'nperseg must be a power of two' })
+        .default(1024),
+      /** Lowest frequency used for the dominant frequency and the centroid, Hz. */
+      fminStats: z.number().min(0).default(0.1),
+    })
+    .default({ nperseg: 1024, fminStats: 0.1 }),
+  staLta: z
+    .object({
+      method: z.enum(['classic', 'recursive']).default('classic'),
+      staS: z.number().positive().default(1),
+      ltaS: z.number().positive().default(30),
+      on: z.number().positive().default(3.5),
+      off: z.number().positive().default(1.5),
+    })
+    .refine((s) => s.staS < s.ltaS, { message: 'the STA window must be shorter than the LTA window' })
+    .refine((s) => s.off < s.on, { message: 'the trigger-off level must be below the trigger-on level' })
+    .default({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5 }),
+  snr: z
+    .object({
+      /** Length of the signal window after the first trigger-on, s. */
+      signalS: z.number().positive().default(10),
+      /** Length of the noise window ending at the first trigger-on, s. */
+      noiseS: z.number().positive().default(30),
+    })
+    .default({ signalS: 10, noiseS: 30 }),
+  qc: z
+    .object({
+      /** Digitiser full scale in counts (|x| ≥ this is clipped); absent: look for flat tops. */
+      fullScaleCounts: z.number().positive().optional(),
+      /** A flat top is at least this many consecutive equal samples at max|x|. */
+      flatTopSamples: z.number().int().min(2).default(3),
+      /** Spike rule: |x − median5| > k · 1.4826 · MAD of that residual. */
+      spikeK: z.number().positive().default(20),
+      /** Expected sample rate from the station registry, Hz (checked when given). */
+      expectedSampleRateHz: z.number().positive().optional(),
+    })
+    .default({ flatTopSamples: 3, spikeK: 20 }),
+  thresholds: z
+    .object({
+      /** Robust z of log10 ratio and of STA/LTA peak at or above which the evidence counts as high. */
+      eventZ: z.number().default(3),
+      /** Robust z below which the evidence counts as ordinary noise. */
+      noiseZ: z.number().default(2),
+      /** A station needs this many noise windows before its own baseline replaces the network default. */
+      minBaselineWindows: z.number().int().min(1).default(20),
+    })
+    .default({ eventZ: 3, noiseZ: 2, minBaselineWindows: 20 }),
+});
+
+/** A parsed processing profile (all defaults filled in). */
+export type ProcessingProfile = z.infer<typeof processingProfileSchema>;
+
+/** The profile input as a client may send it (every field optional). */
+export type ProcessingProfileInput = z.input<typeof processingProfileSchema>;
+
+/** The default processing profile (the brief's processing table). */
+export const defaultProcessingProfile: ProcessingProfile = processingProfileSchema.parse({});
