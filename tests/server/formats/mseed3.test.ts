@@ -119,7 +119,7 @@ describe('miniSEED 3 decoding of records built from the specification layout', (
     expect(() => decodeMiniSeed3(file)).toThrow(new RegExp(`record 2 at byte ${good.length}: CRC-32C mismatch`, 'u'));
     // a flipped payload bit is caught the same way
     const flipped = good.slice();
-    flipped[flipped.length - 1] ^= 0x10;
+    flipped[flipped.length - 1] = (flipped[flipped.length - 1] ?? 0) ^ 0x10;
     expect(() => decodeMiniSeed3(flipped)).toThrow(/CRC-32C mismatch/u);
   });
 
