@@ -27,11 +27,13 @@ const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/u;
  *   start time are refused, because placing them at 1970 would silently mislabel the data.
  *   The stream's start time is the first row's time.
  * - Column 2: counts (or any unit), finite decimal numbers.
- * - Sample rate = (n − 1) / (t_last − t_first), snapped to the nearest integer Hz when within 1e-6
- *   relative. Spacing check: every row's time must lie within 1 % of a sample interval of the uniform
- *   grid t_first + i / rate, widened by half the last printed digit of the time column (so times
- *   printed with 3 decimals at 400 Hz pass), never beyond 0.49 of an interval; any larger deviation is a gap or jitter and is refused
- *   naming the row, as CSV carries no record structure to report gaps by.
+ * - Sample interval dt = least-squares slope of time against row index (robust to rounded
+ *   printing); an integer rate (or integer period, for slow channels) within 0.1 % is used instead
+ *   when every row still passes the spacing check, which is: every row within 1 % of dt plus half
+ *   the last printed digit of the best-fitting uniform grid a + i·dt (at most 0.49·dt), and every
+ *   interval within 1 % of dt plus one printed digit (at most 0.5·dt). So times printed with
+ *   3 decimals at 400 Hz pass, and a single missing sample always fails. Failures are refused
+ *   naming the row: CSV has no record structure to report gaps by.
  * - Separators: `,` (also `;` or a tab, the same throughout the file); surrounding spaces are
  *   ignored; CR LF line ends accepted.
  *
@@ -154,24 +156,7 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
     );
   }
 
-  const spanS = timesS[n - 1] ?? 0;
-  let sampleRateHz = (n - 1) / spanS;
-  if (Math.abs(sampleRateHz - Math.round(sampleRateHz)) <= 1e-6 * sampleRateHz && Math.round(sampleRateHz) > 0) {
-    sampleRateHz = Math.round(sampleRateHz);
-  }
-  const dt = 1 / sampleRateHz;
-  // Never wider than 0.49 of an interval, so a single missing sample is always caught.
-  const tolS = Math.min(0.49 * dt, CSV_SPACING_TOLERANCE * dt + 0.5 * 10 ** -decimals * (1 + 1e-9));
-  for (let i = 1; i < n; i++) {
-    const dev = (timesS[i] ?? 0) - i * dt;
-    if (Math.abs(dev) > tolS) {
-      const row = rows[i];
-      throw new WaveformParseError(
-        `CSV line ${row?.line ?? '?'}, column 1: time ${row?.time ?? ''} is ${(dev * 1e3).toFixed(3)} ms off a uniform ${sampleRateHz.toPrecision(6)} Hz spacing (allowed ±${(tolS * 1e3).toFixed(3)} ms): gap or irregular sampling`,
-      );
-    }
-  }
-
+  const sampleRateHz = deriveRate(timesS, decimals, rows.map((r) => ({ line: r.line, time: r.time })));
   return {
     id: `${id.network}.${id.station}.${id.location}.${id.channel}`,
     ...id,
@@ -187,4 +172,59 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
 /** True when a cell is a number or an ISO-8601 time (so a data row, not a header). */
 function isTimeCell(cell: string): boolean {
   return NUMBER.test(cell) || parseIsoTimeUs(cell) !== undefined;
+}
+
+/**
+ * Sample rate of uniformly spaced times (seconds from the first row), see decodeCsv: the interval
+ * is the least-squares slope of time against row index (robust to times rounded when printed);
+ * an integer rate, or an integer period, within 0.1 % of it is preferred when every row still fits.
+ */
+function deriveRate(timesS: Float64Array, decimals: number, rows: { line: number; time: string }[]): number {
+  const n = timesS.length;
+  const meanI = (n - 1) / 2;
+  let meanT = 0;
+  for (let i = 0; i < n; i++) meanT += (timesS[i] ?? 0) / n;
+  let sxy = 0;
+  let sxx = 0;
+  for (let i = 0; i < n; i++) {
+    sxy += (i - meanI) * ((timesS[i] ?? 0) - meanT);
+    sxx += (i - meanI) ** 2;
+  }
+  const fitted = sxy / sxx;
+  const halfDigit = 0.5 * 10 ** -decimals * (1 + 1e-9);
+  const worst = (dt: number): { index: number; dev: number; tol: number } => {
+    let a = 0;
+    for (let i = 0; i < n; i++) a += ((timesS[i] ?? 0) - i * dt) / n;
+    // Never wider than 0.49 of an interval, so a single missing sample is always caught.
+    const tol = Math.min(0.49 * dt, CSV_SPACING_TOLERANCE * dt + halfDigit);
+    let index = -1;
+    let dev = 0;
+    // Each interval: within 1 % plus one printed digit (two rounded times), at most half an interval.
+    const tolStep = Math.min(0.5 * dt, CSV_SPACING_TOLERANCE * dt + 2 * halfDigit);
+    for (let i = 1; i < n; i++) {
+      const d = (timesS[i] ?? 0) - (timesS[i - 1] ?? 0) - dt;
+      if (Math.abs(d) > tolStep) return { index: i, dev: d, tol: tolStep };
+    }
+    for (let i = 0; i < n; i++) {
+      const d = (timesS[i] ?? 0) - a - i * dt;
+      if (Math.abs(d) > tol && Math.abs(d) > Math.abs(dev)) {
+        index = i;
+        dev = d;
+      }
+    }
+    return { index, dev, tol };
+  };
+  const candidates: number[] = [];
+  const rate = 1 / fitted;
+  if (Math.round(rate) > 0 && Math.abs(Math.round(rate) - rate) <= 1e-3 * rate) candidates.push(1 / Math.round(rate));
+  if (Math.round(fitted) > 0 && Math.abs(Math.round(fitted) - fitted) <= 1e-3 * fitted) candidates.push(Math.round(fitted));
+  for (const dt of candidates) if (worst(dt).index < 0) return 1 / dt;
+  const w = worst(fitted);
+  if (w.index >= 0) {
+    const row = rows[w.index];
+    throw new WaveformParseError(
+      `CSV line ${row?.line ?? '?'}, column 1: time ${row?.time ?? ''} is ${(w.dev * 1e3).toFixed(3)} ms off a uniform ${rate.toPrecision(6)} Hz spacing (allowed ±${(w.tol * 1e3).toFixed(3)} ms): gap or irregular sampling`,
+    );
+  }
+  return rate;
 }
