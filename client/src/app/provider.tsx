@@ -1,0 +1,35 @@
+import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
+import { useState, type ReactNode } from 'react';
+import { ToastProvider } from '../components/ui/toast';
+import { SessionProvider, type SessionValue } from '../lib/session-context';
+import { ThemeProvider } from '../lib/theme-provider';
+
+/** Builds the app's query client: no refetch on window focus (live updates come over the websocket). */
+export function createQueryClient(): QueryClient {
+  return new QueryClient({
+    defaultOptions: {
+      queries: { refetchOnWindowFocus: false, retry: 1, staleTime: 30_000 },
+    },
+  });
+}
+
+/** Props of <AppProvider>. */
+export type AppProviderProps = {
+  children: ReactNode;
+  /** The signed-in user. Until sign-in exists this is { user: null }; the sign-in feature feeds it. */
+  session: SessionValue;
+};
+
+/** Every app-wide provider, outermost first: theme, data, session, toasts. */
+export function AppProvider({ children, session }: AppProviderProps) {
+  const [queryClient] = useState(createQueryClient);
+  return (
+    <ThemeProvider>
+      <QueryClientProvider client={queryClient}>
+        <SessionProvider value={session}>
+          <ToastProvider>{children}</ToastProvider>
+        </SessionProvider>
+      </QueryClientProvider>
+    </ThemeProvider>
+  );
+}

@@ -1,0 +1,56 @@
+import { createBrowserRouter, matchRoutes, Outlet, type RouteObject } from 'react-router';
+import { AppShell } from '../components/layouts/app-shell';
+import { Loading } from '../components/ui/skeleton';
+import { paths } from '../config/paths';
+import { HomeRoute } from './routes/home';
+import { NotFoundRoute } from './routes/not-found';
+import { RouteError } from './routes/route-error';
+
+/**
+ * Whether the router has a screen of its own at `href` (the catch-all does not count). The shell
+ * and the home page use it to list only sections that exist in this build.
+ * @param href a client path such as "/queue"
+ */
+export function isRouted(href: string): boolean {
+  const matches = matchRoutes(routes, href);
+  const leaf = matches?.[matches.length - 1];
+  return leaf !== undefined && leaf.route.path !== '*';
+}
+
+function RootLayout() {
+  return (
+    <AppShell isRouted={isRouted}>
+      <Outlet />
+    </AppShell>
+  );
+}
+
+/**
+ * The route table. Screens are lazy so their code (and uPlot) loads only when visited. Add a
+ * screen: a file in routes/, a `paths` entry, a route here; the nav picks it up by itself.
+ */
+export const routes: RouteObject[] = [
+  {
+    path: paths.home.path,
+    element: <RootLayout />,
+    errorElement: <RouteError />,
+    // Shown while a lazy screen's code loads on the first visit.
+    hydrateFallbackElement: <Loading label="Loading Seisift…" className="m-6" />,
+    children: [
+      { index: true, element: <HomeRoute isRouted={isRouted} /> },
+      {
+        path: paths.design.path.slice(1),
+        lazy: async () => {
+          const { DesignRoute } = await import('./routes/design');
+          return { Component: DesignRoute };
+        },
+      },
+      { path: '*', element: <NotFoundRoute /> },
+    ],
+  },
+];
+
+/** Builds the browser router (called once, in main.tsx). */
+export function createAppRouter() {
+  return createBrowserRouter(routes);
+}

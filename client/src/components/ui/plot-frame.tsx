@@ -1,0 +1,313 @@
+import { useCallback, useEffect, useId, useMemo, useRef, useState, type RefObject } from 'react';
+import uPlot from 'uplot';
+import UplotReact from 'uplot-react';
+import 'uplot/dist/uPlot.min.css';
+import { cx } from '../../lib/cx';
+
+/** The axes font of every plot (shipped with the app, see main.tsx). */
+export const plotFontFamily = "'IBM Plex Mono', ui-monospace, monospace";
+
+/**
+ * Dash patterns by series index (CSS px: dash, gap, ...). Series 1 is solid; the others differ by
+ * pattern so the legend and the lines can be matched without colour.
+ */
+export const plotDashes: readonly (readonly number[])[] = [[], [7, 4], [2, 3], [10, 3, 2, 3], [14, 5], [6, 2, 2, 2, 2, 2]];
+
+/** One y series. */
+export type PlotSeries = {
+  label: string;
+  /** Same length as the x values; null leaves a gap. */
+  values: Float64Array | Array<number | null>;
+  /** Index into the token colours (--sf-plot-1..6) and plotDashes; defaults to the series' position. */
+  styleIndex?: number;
+};
+
+/** One axis description. */
+export type PlotAxis = {
+  label: string;
+  /** Unit shown after the label, e.g. "s", "Hz", "counts". */
+  unit?: string;
+  /** Number formatter for tick labels and the legend read-out. */
+  format?: (value: number) => string;
+  /** Logarithmic scale (base 10). */
+  log?: boolean;
+};
+
+/** Props of <PlotFrame>. */
+export type PlotFrameProps = {
+  title: string;
+  /** What the plot shows, in words, for screen readers (the canvas itself is not readable). */
+  description: string;
+  x: PlotAxis & { values: Float64Array | number[] };
+  y: PlotAxis;
+  series: PlotSeries[];
+  /** Plot area height in px (the legend is extra). */
+  height?: number;
+  className?: string;
+  /** Last word on the uPlot options (extra scales, hooks, bands); keep the result memoised. */
+  configure?: (options: uPlot.Options) => uPlot.Options;
+  /** The live chart, e.g. to link cursors between plots. */
+  onChart?: (chart: uPlot | null) => void;
+};
+
+/** Token colours a plot reads from the nearest themed ancestor. */
+export type PlotTheme = {
+  background: string;
+  grid: string;
+  axis: string;
+  ink: string;
+  line: string;
+  accent: string;
+  series: string[];
+};
+
+/**
+ * Reads the plot colours from CSS variables as they apply to `el`, so a plot inside a
+ * `data-theme="light"` panel gets the light palette even when the page is dark.
+ * @param el any element inside the plot
+ */
+export function readPlotTheme(el: Element): PlotTheme {
+  const style = getComputedStyle(el);
+  const read = (name: string) => style.getPropertyValue(name).trim();
+  return {
+    background: read('--sf-plot-bg'),
+    grid: read('--sf-plot-grid'),
+    axis: read('--sf-plot-axis'),
+    ink: read('--sf-ink'),
+    line: read('--sf-line-strong'),
+    accent: read('--sf-accent'),
+    series: [1, 2, 3, 4, 5, 6].map((i) => read(`--sf-plot-${i}`)),
+  };
+}
+
+/** Watches the `data-theme` of the nearest themed ancestor and returns it (re-renders on change). */
+function useScopedTheme(ref: RefObject<HTMLElement | null>): string | null {
+  const [theme, setTheme] = useState<string | null>(null);
+  useEffect(() => {
+    const el = ref.current;
+    if (!el) return;
+    const scope = el.closest('[data-theme]') ?? document.documentElement;
+    const update = () => setTheme(scope.getAttribute('data-theme') ?? 'dark');
+    update();
+    const observer = new MutationObserver(update);
+    observer.observe(scope, { attributes: true, attributeFilter: ['data-theme'] });
+    return () => observer.disconnect();
+  }, [ref]);
+  return theme;
+}
+
+/** Tracks an element's content width. */
+function useWidth(ref: RefObject<HTMLElement | null>): number {
+  const [width, setWidth] = useState(0);
+  useEffect(() => {
+    const el = ref.current;
+    if (!el) return;
+    const observer = new ResizeObserver((entries) => {
+      const w = entries[0]?.contentRect.width ?? 0;
+      setWidth(Math.floor(w));
+    });
+    observer.observe(el);
+    return () => observer.disconnect();
+  }, [ref]);
+  return width;
+}
+
+/** Resolves once the plot font can be drawn on a canvas (canvas text does not wait for fonts). */
+function useFontReady(): boolean {
+  const [ready, setReady] = useState(() => typeof document === 'undefined' || !('fonts' in document));
+  useEffect(() => {
+    if (ready) return;
+    let alive = true;
+    Promise.all([document.fonts.load(`11px ${plotFontFamily}`), document.fonts.load(`500 12px ${plotFontFamily}`)])
+      .catch(() => undefined)
+      .then(() => {
+        if (alive) setReady(true);
+      });
+    return () => {
+      alive = false;
+    };
+  }, [ready]);
+  return ready;
+}
+
+const defaultFormat = (v: number) => (Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(2) : String(Number(v.toPrecision(6))));
+
+function axisTitle(axis: PlotAxis): string {
+  return axis.unit ? `${axis.label} (${axis.unit})` : axis.label;
+}
+
+/** A legend sample: a short line in the series' colour and dash. */
+function LineSample({ color, dash }: { color: string; dash: readonly number[] }) {
+  return (
+    <svg width="30" height="10" viewBox="0 0 30 10" aria-hidden="true" focusable="false" className="shrink-0">
+      <line x1="1" y1="5" x2="29" y2="5" stroke={color} strokeWidth="2" strokeDasharray={dash.length ? dash.join(' ') : undefined} />
+    </svg>
+  );
+}
+
+/**
+ * The frame every uPlot chart in Seisift sits in: title, the plot with the token colours of its
+ * theme, IBM Plex Mono axes, a light grid, a dash pattern per series, and a legend of our own that
+ * shows each series' colour and dash, its value under the cursor, and toggles it on click or Enter.
+ * Themes: re-reads the tokens when the nearest `data-theme` changes and rebuilds the chart.
+ */
+export function PlotFrame({ title, description, x, y, series, height = 220, className, configure, onChart }: PlotFrameProps) {
+  const boxRef = useRef<HTMLDivElement>(null);
+  const scopedTheme = useScopedTheme(boxRef);
+  const width = useWidth(boxRef);
+  const fontReady = useFontReady();
+  const titleId = useId();
+  const descId = useId();
+  const [cursorIdx, setCursorIdx] = useState<number | null>(null);
+  const [hidden, setHidden] = useState<ReadonlySet<number>>(new Set());
+  const chartRef = useRef<uPlot | null>(null);
+  const frame = useRef<number | null>(null);
+
+  // Tokens change exactly when the scoped theme does, so it is the memo's key.
+  const plotTheme = useMemo(() => (scopedTheme !== null && boxRef.current ? readPlotTheme(boxRef.current) : null), [scopedTheme]);
+
+  const styleOf = useCallback(
+    (s: PlotSeries, i: number) => {
+      const k = s.styleIndex ?? i;
+      const palette = plotTheme?.series ?? [];
+      return {
+        color: palette[k % Math.max(1, palette.length)] ?? 'currentColor',
+        dash: plotDashes[k % plotDashes.length] ?? [],
+      };
+    },
+    [plotTheme],
+  );
+
+  const xFormat = x.format ?? defaultFormat;
+  const yFormat = y.format ?? defaultFormat;
+  const seriesKey = series.map((s) => `${s.label}:${s.styleIndex ?? ''}`).join('|');
+
+  const options = useMemo<uPlot.Options | null>(() => {
+    if (!plotTheme || width <= 0) return null;
+    const ratio = typeof window !== 'undefined' ? window.devicePixelRatio || 1 : 1;
+    const axis = (a: PlotAxis, format: (v: number) => string): uPlot.Axis => ({
+      stroke: plotTheme.axis,
+      font: `11px ${plotFontFamily}`,
+      labelFont: `500 12px ${plotFontFamily}`,
+      label: axisTitle(a),
+      labelSize: 20,
+      grid: { stroke: plotTheme.grid, width: 1 },
+      ticks: { stroke: plotTheme.grid, width: 1, size: 4 },
+      border: { show: true, stroke: plotTheme.line, width: 1 },
+      values: (_u, splits) => splits.map((v) => (v === null || v === undefined ? '' : format(v))),
+    });
+    const base: uPlot.Options = {
+      width,
+      height,
+      legend: { show: false },
+      cursor: {
+        drag: { x: true, y: false },
+        points: { size: 7, width: 1.5, fill: plotTheme.background },
+      },
+      scales: {
+        x: { time: false, distr: x.log ? 3 : 1 },
+        y: { distr: y.log ? 3 : 1 },
+      },
+      axes: [axis(x, xFormat), { ...axis(y, yFormat), size: 64 }],
+      series: [
+        { label: x.label },
+        ...series.map((s, i) => {
+          const look = styleOf(s, i);
+          return {
+            label: s.label,
+            stroke: look.color,
+            width: 1.5,
+            dash: look.dash.map((d) => d * ratio),
+            show: !hidden.has(i),
+            points: { show: false },
+          } satisfies uPlot.Series;
+        }),
+      ],
+      hooks: {
+        setCursor: [
+          (u) => {
+            if (frame.current !== null) cancelAnimationFrame(frame.current);
+            frame.current = requestAnimationFrame(() => setCursorIdx(u.cursor.idx ?? null));
+          },
+        ],
+      },
+    };
+    return configure ? configure(base) : base;
+    // seriesKey stands for the series' labels and styles; their values go in `data`, not here.
+  }, [plotTheme, width, height, seriesKey, hidden, x.label, x.unit, x.log, y.label, y.unit, y.log, configure, styleOf, xFormat, yFormat]);
+
+  const data = useMemo<uPlot.AlignedData>(() => [x.values, ...series.map((s) => s.values)], [x.values, series]);
+
+  useEffect(
+    () => () => {
+      if (frame.current !== null) cancelAnimationFrame(frame.current);
+    },
+    [],
+  );
+
+  const toggle = (i: number) => {
+    setHidden((prev) => {
+      const next = new Set(prev);
+      if (next.has(i)) next.delete(i);
+      else next.add(i);
+      return next;
+    });
+  };
+
+  const xAtCursor = cursorIdx !== null ? x.values[cursorIdx] : undefined;
+
+  return (
+    <figure className={cx('seisift-plot m-0 rounded-sm border border-line bg-plot-bg', className)} aria-labelledby={titleId}>
+      <figcaption className="flex items-baseline justify-between gap-3 px-3 pt-2">
+        <span id={titleId} className="text-sm font-semibold text-ink">
+          {title}
+        </span>
+        <span className="font-mono text-xs text-ink-muted tabular" aria-live="off">
+          {xAtCursor !== undefined ? `${x.label} ${xFormat(xAtCursor)}${x.unit ? ` ${x.unit}` : ''}` : '\u00a0'}
+        </span>
+      </figcaption>
+      <p id={descId} className="sr-only">
+        {description}
+      </p>
+      <div ref={boxRef} role="img" aria-labelledby={titleId} aria-describedby={descId} className="px-1" style={{ minHeight: height }}>
+        {options && fontReady ? (
+          <UplotReact
+            options={options}
+            data={data}
+            onCreate={(chart) => {
+              chartRef.current = chart;
+              onChart?.(chart);
+            }}
+            onDelete={() => {
+              chartRef.current = null;
+              onChart?.(null);
+            }}
+          />
+        ) : null}
+      </div>
+      <ul aria-label={`${title}: series`} className="flex flex-wrap gap-x-1 gap-y-0.5 border-t border-line px-2 py-1.5">
+        {series.map((s, i) => {
+          const look = styleOf(s, i);
+          const off = hidden.has(i);
+          const v = cursorIdx !== null ? s.values[cursorIdx] : undefined;
+          return (
+            <li key={`${s.label}-${i}`}>
+              <button
+                type="button"
+                aria-pressed={!off}
+                onClick={() => toggle(i)}
+                className={cx('inline-flex h-6 items-center gap-1.5 rounded-xs px-1.5 text-sm hover:bg-raised', off ? 'text-ink-muted line-through' : 'text-ink')}
+              >
+                <LineSample color={look.color} dash={look.dash} />
+                <span>{s.label}</span>
+                <span className="min-w-[6ch] text-right font-mono text-xs text-ink-muted tabular">
+                  {v === null || v === undefined || off ? '' : `${yFormat(v)}${y.unit ? ` ${y.unit}` : ''}`}
+                </span>
+              </button>
+            </li>
+          );
+        })}
+      </ul>
+    </figure>
+  );
+}
