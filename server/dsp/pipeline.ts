@@ -174,6 +174,7 @@ function analyzeChannel(
     }
     sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
   }
+  const rejectedCopy = profile.bandReject.length > 0 ? Float64Array.from(rejected) : rejected;
   const lowY = Float64Array.from(rejected);
   sosfiltInPlace(design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs), lowY);
   const highY = rejected;
@@ -203,8 +204,20 @@ function analyzeChannel(
   const psd = welchPsd(psdTrace, fs, profile.psd.nperseg);
   if (psd.warning) warnings.push(psd.warning);
   const psdValues = paz ? countsPsdToVelocity(psd.freqs, psd.values, paz) : psd.values;
+  // Dominant frequency and centroid: where the spectrum peaks once the station's known machinery
+  // lines are removed — from the PSD of the band-rejected trace (a strong line also leaks into
+  // neighbouring bins through the window's sidelobes, so masking its band alone is not enough),
+  // with the reject bands themselves left out too. The reported `psd` stays the recorded one.
   const excluded = profile.bandReject.filter((b) => b.fmax < fs / 2);
-  const stats = spectralStats(psd.freqs, psdValues, profile.psd.fminStats, excluded);
+  let statsValues = psdValues;
+  if (excluded.length > 0) {
+    const rej = welchPsd(rejectedCopy, fs, profile.psd.nperseg).values;
+    if (paz) {
+      for (let k = 0; k < rej.length; k++) rej[k] = (rej[k] as number) * flatSensitivity * flatSensitivity;
+      statsValues = countsPsdToVelocity(psd.freqs, rej, paz);
+    } else statsValues = rej;
+  }
+  const stats = spectralStats(psd.freqs, statsValues, profile.psd.fminStats, excluded);
   const physical = response !== undefined;
   let noiseModels: ChannelResult['noiseModels'] = null;
   if (physical) {

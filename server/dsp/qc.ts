@@ -60,7 +60,8 @@ const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toS
  * - flat-line: all samples equal, or ≥ 99 % of consecutive differences zero (error: dead channel);
  * - spikes: |x_i − med5_i| > k·1.4826·MAD(x − med5), med5 the 5-sample running median
  *   (robust MAD rule; 1.4826 makes the MAD a consistent estimate of σ for normal noise, common practice;
- *   k = 20 by default so that the peaks of a real, smooth arrival are not called spikes);
+ *   k = 20 by default so that the peaks of a real arrival are not called spikes), and the sample must
+ *   stand alone (4× the residuals 2–10 samples away), so a strong high-frequency signal is not a spike;
  * - dc-offset: |mean| > 5 × the standard deviation (info), or > 10 % of full scale when given (warning);
  * - sample-rate: differs from the registry's by more than 0.1 % (error);
  * - short-window: fewer samples than the LTA window (warning: no STA/LTA ratio).
@@ -210,28 +211,54 @@ function runsWhere(
   return { count, samples: total, first };
 }
 
+const m5 = new Float64Array(5);
+/** Median of five values (insertion sort in a scratch array: no allocation per sample). */
 function median5(a: number, b: number, c: number, d: number, e: number): number {
-  const s = [a, b, c, d, e].sort((p, q) => p - q);
-  return s[2] as number;
+  m5[0] = a;
+  m5[1] = b;
+  m5[2] = c;
+  m5[3] = d;
+  m5[4] = e;
+  for (let i = 1; i < 5; i++) {
+    const v = m5[i] as number;
+    let j = i - 1;
+    while (j >= 0 && (m5[j] as number) > v) {
+      m5[j + 1] = m5[j] as number;
+      j--;
+    }
+    m5[j + 1] = v;
+  }
+  return m5[2] as number;
 }
 
-/** Spike count by the robust MAD rule on the residual from a 5-sample running median. */
+/**
+ * Spike count by the robust MAD rule on the residual r from a 5-sample running median: a sample is a
+ * spike when |r_i| > k·1.4826·MAD(r) AND |r_i| > 4·max|r_j| over 2 ≤ |j − i| ≤ 10 (it stands alone:
+ * a high-frequency signal, e.g. a tone near fs/4, also has large residuals, but its neighbours have
+ * them too). Up to two adjacent outliers count as spikes.
+ */
 function spikes(x: Float64Array, k: number): { count: number; first: number } {
   const n = x.length;
   if (n < 5) return { count: 0, first: -1 };
-  const r = new Float64Array(n - 4);
+  const r = new Float64Array(n);
   for (let i = 2; i < n - 2; i++) {
-    r[i - 2] = (x[i] as number) - median5(x[i - 2] as number, x[i - 1] as number, x[i] as number, x[i + 1] as number, x[i + 2] as number);
+    r[i] = (x[i] as number) - median5(x[i - 2] as number, x[i - 1] as number, x[i] as number, x[i + 1] as number, x[i + 2] as number);
   }
-  const mad = medianAbs(r);
+  const mad = medianAbs(r.subarray(2, n - 2));
   if (!(mad > 0)) return { count: 0, first: -1 };
   const lim = k * 1.4826 * mad;
   let count = 0;
   let first = -1;
-  for (let i = 0; i < r.length; i++) {
-    if (Math.abs(r[i] as number) > lim) {
+  for (let i = 2; i < n - 2; i++) {
+    const a = Math.abs(r[i] as number);
+    if (a <= lim) continue;
+    let around = 0;
+    for (let j = Math.max(2, i - 10); j <= Math.min(n - 3, i + 10); j++) {
+      if (Math.abs(j - i) >= 2) around = Math.max(around, Math.abs(r[j] as number));
+    }
+    if (a > 4 * around) {
       count++;
-      if (first < 0) first = i + 2;
+      if (first < 0) first = i;
     }
   }
   return { count, first };

@@ -103,7 +103,7 @@ function median(values: readonly number[]): number {
 }
 
 const f1 = (v: number): string => (Math.round(v * 10) / 10).toFixed(1);
-const signed = (v: number): string => (v >= 0 ? `+${f1(v)}` : f1(v));
+const signed = (v: number): string => (v >= 0 ? `+${f1(v)}` : `−${f1(-v)}`);
 const clamp = (v: number): number => Math.min(50, Math.max(-10, v));
 
 /** Pick the lead channel: the first whose channel code ends in Z, else the first. */

@@ -1,0 +1,198 @@
+import { describe, expect, it } from 'vitest';
+import { z } from 'zod';
+import type { DecodedStream } from '../../../server/formats/types';
+import { BandError } from '../../../server/dsp/bands';
+import { analyzeWindow, AnalysisError } from '../../../server/dsp/pipeline';
+import { computeBaseline } from '../../../server/dsp/score';
+import { defaultProcessingProfile, processingProfileSchema } from '../../../shared/schemas/processing-profile';
+import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema, type SignalSpec } from './fixture-signal';
+
+const fixture = readFixture(
+  'pipeline.json',
+  z.object({
+    cases: z.array(
+      z.object({
+        signal: signalSpecSchema,
+        first: z.array(z.number()),
+        energyLow: z.number(),
+        energyHigh: z.number(),
+        ratio: z.number(),
+        dominantFrequency: z.number(),
+        spectralCentroid: z.number(),
+        staLtaPeak: z.number(),
+        staLtaPeakTime: z.number(),
+        triggers: z.array(z.tuple([z.number(), z.number().nullable()])),
+        psdStride: z.number(),
+        psd: z.array(z.number()),
+      }),
+    ),
+  }),
+);
+
+/** A stream around given samples (test input; the checks come from scipy or from definitions). */
+export function stream(id: string, samples: Float64Array, fs: number, extra: Partial<DecodedStream> = {}): DecodedStream {
+  const [network = '', station = '', location = '', channel = ''] = id.split('.');
+  return {
+    id,
+    network,
+    station,
+    location,
+    channel,
+    sampleRateHz: fs,
+    startTimeUs: Date.UTC(2026, 2, 14, 9, 26, 53) * 1000 + 589_123,
+    samples,
+    discontinuities: [],
+    encoding: 'float64',
+    format: 'mseed2',
+    ...extra,
+  };
+}
+
+describe('analyzeWindow end to end against the same chain in scipy (fixtures/dsp/pipeline.json)', () => {
+  for (const c of fixture.cases) {
+    it(`${c.signal.n} samples at ${c.signal.fs} Hz: energies, ratio, PSD to 1e-6; dominant frequency, centroid, STA/LTA`, () => {
+      const x = makeSignal(c.signal);
+      expect(maxAbsDiff(x.slice(0, c.first.length), c.first)).toBeLessThan(1e-12);
+      const res = analyzeWindow([stream('XX.KV01.00.HHZ', x, c.signal.fs)], defaultProcessingProfile);
+      const ch = res.channels[0];
+      if (!ch) throw new Error('no channel');
+      // Source: scipy.signal detrend + windows.tukey + butter/sosfilt + welch, scipy 1.10.
+      expect(Math.abs(ch.bands.low.energy / c.energyLow - 1)).toBeLessThan(1e-6);
+      expect(Math.abs(ch.bands.high.energy / c.energyHigh - 1)).toBeLessThan(1e-6);
+      expect(Math.abs((ch.ratio as number) / c.ratio - 1)).toBeLessThan(1e-6);
+      expect(ch.log10Ratio).toBeCloseTo(Math.log10(c.ratio), 6);
+      const peak = Math.max(...c.psd);
+      expect(maxAbsDiff(c.psd.map((_, k) => ch.psd.values[k * c.psdStride] as number), c.psd) / peak).toBeLessThan(1e-6);
+      expect(ch.dominantFrequency).toBeCloseTo(c.dominantFrequency, 9);
+      expect(ch.spectralCentroid as number).toBeCloseTo(c.spectralCentroid, 6);
+      expect(ch.staLta.peak).toBeCloseTo(c.staLtaPeak, 6);
+      expect(ch.staLta.peakTime).toBe(c.staLtaPeakTime);
+      expect(ch.staLta.triggers.map((t) => [t.on, t.off])).toEqual(c.triggers);
+    });
+  }
+});
+
+const noiseSpec = (seed: number, fs = 100, n = 12000): SignalSpec => ({ n, fs, sines: [[0.5, 0.25, 0.3]], noise: 1, seed });
+
+describe('analyzeWindow: output contract, flags and errors', () => {
+  it('gives every field of the contract, times in ISO 8601 ms UTC, the Z component leads', () => {
+    const fs = 100;
+    const res = analyzeWindow(
+      ['XX.KV02.00.HHE', 'XX.KV02.00.HHZ', 'XX.KV02.00.HHN'].map((id, i) => stream(id, makeSignal(noiseSpec(10 + i)), fs)),
+      defaultProcessingProfile,
+    );
+    expect(res.leadChannel).toBe('XX.KV02.00.HHZ');
+    expect(res.filtering).toBe('causal, zero initial state');
+    expect(['likely event', 'likely noise', 'needs eyes']).toContain(res.flag);
+    expect(res.reasons.length).toBeGreaterThan(0);
+    expect(typeof res.score).toBe('number');
+    const ch = res.channels[1];
+    if (!ch) throw new Error('no channel');
+    expect(ch.startTime).toBe('2026-03-14T09:26:53.589Z');
+    expect(ch.samples).toBe(12000);
+    expect(ch.sampleRate).toBe(fs);
+    expect(ch.bands.low).toMatchObject({ fmin: 0.5, fmax: 2 });
+    expect(ch.bands.high).toMatchObject({ fmin: 2, fmax: 10 });
+    expect(ch.psd.freqs).toHaveLength(513);
+    expect(ch.psd.values).toHaveLength(513);
+    expect(ch.units).toBe('counts');
+    expect(ch.noiseModels).toBeNull();
+    expect(JSON.parse(JSON.stringify(res))).toEqual(res); // plain JSON, nothing lost
+  });
+
+  it('an impulsive 5 Hz arrival over quiet noise, against a baseline of noise windows: likely event', () => {
+    const fs = 100;
+    const noise = Array.from({ length: 25 }, (_, i) => analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal(noiseSpec(100 + i)), fs)], defaultProcessingProfile).channels[0]);
+    const baseline = computeBaseline(noise.map((c) => ({ log10Ratio: c?.log10Ratio ?? null, staLtaPeak: c?.staLta.peak ?? null })));
+    expect(baseline?.count).toBe(25);
+    const ev = makeSignal({ ...noiseSpec(7), bursts: [[60, 6, 25, 5]] });
+    const res = analyzeWindow([stream('XX.KV03.00.HHZ', ev, fs)], defaultProcessingProfile, { baseline });
+    expect(res.baseline).toBe('station');
+    expect(res.flag).toBe('likely event');
+    expect(res.reasons.join(' | ')).toMatch(/high\/low ratio \d+\.\d, \+\d+\.\d MAD above this station's noise/);
+    expect(res.reasons.join(' | ')).toMatch(/STA\/LTA peak \d+\.\d at 6\d\.\d s/);
+    // And a fresh noise window scored the same way is ordinary.
+    const quiet = analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal(noiseSpec(999)), fs)], defaultProcessingProfile, { baseline });
+    expect(quiet.flag).toBe('likely noise');
+  });
+
+  it('a loud 15–25 Hz machinery burst that leaks into 2–10 Hz is NOT a likely event: needs eyes, with the reason', () => {
+    const fs = 100;
+    const noise = Array.from({ length: 25 }, (_, i) => analyzeWindow([stream('XX.KV04.00.HHZ', makeSignal(noiseSpec(300 + i)), fs)], defaultProcessingProfile).channels[0]);
+    const baseline = computeBaseline(noise.map((c) => ({ log10Ratio: c?.log10Ratio ?? null, staLtaPeak: c?.staLta.peak ?? null })));
+    // A burst of 15, 20 and 25 Hz tones, 400× the noise: the causal 2–10 Hz filter's skirt lets it in.
+    const x = makeSignal({ ...noiseSpec(8), bursts: [[60, 8, 400, 15], [60, 8, 400, 20], [60, 8, 400, 25]] });
+    const res = analyzeWindow([stream('XX.KV04.00.HHZ', x, fs)], defaultProcessingProfile, { baseline });
+    const ch = res.channels[0];
+    expect(ch?.staLta.triggers.length).toBeGreaterThan(0);
+    expect(res.zLog10Ratio as number).toBeGreaterThan(3);
+    expect(ch?.dominantFrequency as number).toBeGreaterThan(10);
+    expect(res.flag).toBe('needs eyes');
+    expect(res.reasons.join(' | ')).toMatch(/spectrum peaks outside the high band 2–10 Hz/);
+  });
+
+  it('a band at or above 0.45·fs is refused naming the band and fs, or capped with a warning when the profile says so', () => {
+    const x = makeSignal(noiseSpec(5, 20, 2400));
+    expect(() => analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], defaultProcessingProfile)).toThrow(BandError);
+    expect(() => analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], defaultProcessingProfile)).toThrow(/high band 2–10 Hz reaches 0\.45·fs = 9 Hz at a sample rate of 20 Hz/);
+    const capped = processingProfileSchema.parse({ bands: { nyquistPolicy: 'cap' } });
+    const res = analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], capped);
+    expect(res.channels[0]?.bands.high.fmax).toBe(9);
+    expect(res.channels[0]?.warnings.join(' ')).toMatch(/upper edge lowered to 9 Hz/);
+  });
+
+  it('with a sensitivity: energies in (m/s)²·s (÷S²), acceleration PSD in dB against the noise models; a flat PAZ equals the scalar', () => {
+    const fs = 100;
+    const x = makeSignal(noiseSpec(21));
+    const s = stream('XX.KV06.00.HHZ', x, fs);
+    const counts = analyzeWindow([s], defaultProcessingProfile).channels[0];
+    const S = 1.5e9;
+    const phys = analyzeWindow([s], defaultProcessingProfile, { sensitivity: { [s.id]: S } }).channels[0];
+    expect(phys?.units).toBe('m/s');
+    expect(Math.abs((phys?.bands.high.energy as number) * S * S / (counts?.bands.high.energy as number) - 1)).toBeLessThan(1e-9);
+    expect(phys?.noiseModels?.medianPosition).not.toBeNull();
+    const flatPaz = { zeros: [], poles: [], normalizationFactor: 1, sensitivity: S, sensitivityFrequencyHz: 1 };
+    const viaPaz = analyzeWindow([s], defaultProcessingProfile, { sensitivity: { [s.id]: flatPaz } }).channels[0];
+    expect(maxAbsDiff(viaPaz?.psd.values ?? [], phys?.psd.values ?? []) / Math.max(...(phys?.psd.values ?? [1]))).toBeLessThan(1e-9);
+    // Acceleration PSD = velocity PSD × (2πf)² (dB): check one bin by hand.
+    const k = 100;
+    const f = phys?.psd.freqs[k] as number;
+    expect(phys?.noiseModels?.accelerationDb[k]).toBeCloseTo(10 * Math.log10((phys?.psd.values[k] as number) * (2 * Math.PI * f) ** 2), 9);
+  });
+
+  it('band-reject filters are applied before the band-passes, skipped with a warning above Nyquist, and their band is left out of the dominant frequency', () => {
+    const fs = 100;
+    const x = makeSignal({ ...noiseSpec(31), sines: [[200, 25, 0], [5, 5, 0]] });
+    const profile = processingProfileSchema.parse({ bandReject: [{ fmin: 24.5, fmax: 25.5, label: 'pump' }] });
+    const res = analyzeWindow([stream('XX.KV04.00.HHZ', x, fs)], profile).channels[0];
+    const plain = analyzeWindow([stream('XX.KV04.00.HHZ', x, fs)], defaultProcessingProfile).channels[0];
+    expect(res?.bandReject[0]?.applied).toBe(true);
+    expect(Math.abs((res?.dominantFrequency as number) - 5)).toBeLessThan(0.1);
+    expect(plain?.dominantFrequency).toBe(25);
+    expect(res?.bands.high.energy as number).toBeLessThan(plain?.bands.high.energy as number);
+    const slow = analyzeWindow([stream('XX.KV04.00.BHZ', makeSignal(noiseSpec(31, 40, 2400)), 40)], profile).channels[0];
+    expect(slow?.bandReject[0]?.applied).toBe(false);
+    expect(slow?.warnings.join(' ')).toMatch(/not below the Nyquist frequency 20 Hz: not applied/);
+  });
+
+  it('display data: decimated curves of the requested size and a spectrogram', () => {
+    const res = analyzeWindow([stream('XX.KV01.00.HHZ', makeSignal(noiseSpec(3)), 100)], defaultProcessingProfile, { display: true, displayPoints: 1000 });
+    const d = res.channels[0]?.display;
+    expect(d?.trace.length).toBeLessThanOrEqual(1000);
+    expect(d?.trace.length).toBe(d?.times.length);
+    expect(d?.staLta.length).toBe(d?.trace.length);
+    expect(d?.spectrogram?.db.length).toBeGreaterThan(0);
+  });
+
+  it('refuses an empty window and a channel that is too short, naming it', () => {
+    expect(() => analyzeWindow([], defaultProcessingProfile)).toThrow(AnalysisError);
+    expect(() => analyzeWindow([stream('XX.KV01.00.HHZ', new Float64Array(5), 100)], defaultProcessingProfile)).toThrow(/XX\.KV01\.00\.HHZ: only 5 samples/);
+  });
+
+  it('does not mutate the input samples', () => {
+    const x = makeSignal(noiseSpec(4));
+    const copy = Float64Array.from(x);
+    analyzeWindow([stream('XX.KV01.00.HHZ', x, 100)], defaultProcessingProfile);
+    expect(maxAbsDiff(x, copy)).toBe(0);
+  });
+});
