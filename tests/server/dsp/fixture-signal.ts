@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { z } from 'zod';
+import type { DecodedStream } from '../../../server/formats/types';
 
 /**
  * Rebuilds the deterministic test inputs described in the scipy fixtures, exactly as
@@ -71,4 +72,23 @@ export function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let m = 0;
   for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs((a[i] as number) - (b[i] as number)));
   return m;
+}
+
+/** A stream around given samples (test input; the checks come from scipy or from definitions). */
+export function stream(id: string, samples: Float64Array, fs: number, extra: Partial<DecodedStream> = {}): DecodedStream {
+  const [network = '', station = '', location = '', channel = ''] = id.split('.');
+  return {
+    id,
+    network,
+    station,
+    location,
+    channel,
+    sampleRateHz: fs,
+    startTimeUs: Date.UTC(2026, 2, 14, 9, 26, 53) * 1000 + 589_123,
+    samples,
+    discontinuities: [],
+    encoding: 'float64',
+    format: 'mseed2',
+    ...extra,
+  };
 }

@@ -1,11 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import type { DecodedStream } from '../../../server/formats/types';
 import { BandError } from '../../../server/dsp/bands';
 import { analyzeWindow, AnalysisError } from '../../../server/dsp/pipeline';
 import { computeBaseline } from '../../../server/dsp/score';
 import { defaultProcessingProfile, processingProfileSchema } from '../../../shared/schemas/processing-profile';
-import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema, type SignalSpec } from './fixture-signal';
+import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema, stream, type SignalSpec } from './fixture-signal';
 
 const fixture = readFixture(
   'pipeline.json',
@@ -28,25 +27,6 @@ const fixture = readFixture(
     ),
   }),
 );
-
-/** A stream around given samples (test input; the checks come from scipy or from definitions). */
-export function stream(id: string, samples: Float64Array, fs: number, extra: Partial<DecodedStream> = {}): DecodedStream {
-  const [network = '', station = '', location = '', channel = ''] = id.split('.');
-  return {
-    id,
-    network,
-    station,
-    location,
-    channel,
-    sampleRateHz: fs,
-    startTimeUs: Date.UTC(2026, 2, 14, 9, 26, 53) * 1000 + 589_123,
-    samples,
-    discontinuities: [],
-    encoding: 'float64',
-    format: 'mseed2',
-    ...extra,
-  };
-}
 
 describe('analyzeWindow end to end against the same chain in scipy (fixtures/dsp/pipeline.json)', () => {
   for (const c of fixture.cases) {

@@ -1,0 +1,18 @@
+import type { DecodedStream } from '../formats/types';
+import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
+import { analyzeWindow, type AnalysisResult, type AnalyzeOptions } from '../dsp/pipeline';
+
+/** One task for the analysis worker: the arguments of `analyzeWindow`, sent by the pool. */
+export interface AnalysisTask {
+  streams: DecodedStream[];
+  profile: ProcessingProfile;
+  opts: AnalyzeOptions;
+}
+
+/**
+ * Worker-thread entry point (piscina calls the default export): runs `analyzeWindow` on the task.
+ * Errors (BandError, AnalysisError, RangeError) reject the pool's promise with the same message.
+ */
+export default function runAnalysisTask(task: AnalysisTask): AnalysisResult {
+  return analyzeWindow(task.streams, task.profile, task.opts);
+}
