@@ -86,7 +86,9 @@ export function looksLikeMiniSeed2(bytes: Uint8Array): boolean {
  *   ("time correction applied") is set + blockette 1001 µs (as libmseed's `msr_starttime`);
  * - sample rate from factor F and multiplier M (SEED manual 2.4, field 10/11): F>0,M>0: F·M;
  *   F>0,M<0: −F/M; F<0,M>0: −M/F; F<0,M<0: 1/(F·M);
- * - Steim-1/2 records are checked against their reverse integration constant.
+ * - Steim-1/2 records are checked against their reverse integration constant;
+ * - text records (encoding 0, e.g. a LOG channel) and records without samples are skipped; a file
+ *   with no samples at all is refused by decodeWaveform.
  *
  * @param bytes the whole file
  * @returns one stream per NET.STA.LOC.CHA, in order of first appearance
@@ -268,7 +270,8 @@ export function nominalRate(factor: number, multiplier: number): number {
 
 /** Decodes one record's data section to Float64Array samples. */
 function decodeData(record: Uint8Array, h: ParsedHeader, where: string): Float64Array {
-  if (h.sampleCount === 0) return new Float64Array(0);
+  // Text records (encoding 0, e.g. a LOG channel) hold messages, not samples: skipped.
+  if (h.sampleCount === 0 || h.encoding === 0) return new Float64Array(0);
   const name = SEED_ENCODINGS[h.encoding];
   if (name === undefined) {
     const known = UNSUPPORTED_ENCODINGS[h.encoding];

@@ -53,6 +53,8 @@ export function parseSourceId(sid: string, where: string): { network: string; st
  * - Encodings: 1 int16, 3 int32, 4 float32, 5 float64 little-endian; 10 Steim-1 and 11 Steim-2
  *   big-endian (the specification keeps Steim big-endian).
  * - Extra headers must be a JSON text; the first record's parsed value is kept on the stream.
+ * - Records with text (0) or opaque (100) payloads, or no samples, are skipped (after their CRC
+ *   and header checks).
  *
  * @throws WaveformParseError naming the record (1-based) and byte offset for any malformed input
  */
@@ -131,8 +133,9 @@ export function decodeMiniSeed3(bytes: Uint8Array): DecodedStream[] {
     }
     const startTimeUs = seedTimeToUs(year, day, hour, minute, second, Math.round(nanosecond / 1000), where);
     let samples: Float64Array = new Float64Array(0);
-    if (sampleCount > 0) {
-      if (encoding === 0 || SEED_ENCODINGS[encoding] === undefined) {
+    // Text (0) and opaque (100) payloads hold no samples: such records are skipped.
+    if (sampleCount > 0 && encoding !== 0 && encoding !== 100) {
+      if (SEED_ENCODINGS[encoding] === undefined) {
         throw new WaveformParseError(
           `${where}: encoding ${encoding} is not supported (int16, int32, float32, float64, Steim-1, Steim-2 are)`,
           offset,

@@ -54,4 +54,20 @@ describe('decodeWaveform format sniffing and refusals', () => {
     expect(Array.from(s?.samples ?? []).every((v, i) => v === i)).toBe(true);
     expect(s?.startTimeUs).toBe(1.7e15);
   });
+
+  it('skips a text (LOG) record between data records, and refuses a file of text records only', () => {
+    const data = encodeMiniSeed2(
+      { network: 'XX', station: 'KV01', location: '', channel: 'HHZ', sampleRateHz: 100, startTimeUs: 1.7e15, samples: Int32Array.from({ length: 100 }, (_, i) => i) },
+      { encoding: 'int32', recordLength: 512 },
+    );
+    const log = data.slice();
+    log.set(new TextEncoder().encode('LOG'), 15); // channel
+    new DataView(log.buffer).setInt16(32, 0); // rate factor 0: no sampled series
+    log[52] = 0; // blockette 1000 encoding 0: ASCII text
+    const file = new Uint8Array([...log, ...data]);
+    const streams = decodeWaveform(file);
+    expect(streams.map((s) => s.id)).toEqual(['XX.KV01..HHZ']);
+    expect(streams[0]?.samples.length).toBe(100);
+    expectParseError(log, /no samples/u);
+  });
 });
