@@ -11,9 +11,11 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
  *    tiny change into a huge z.
  * 3. Evidence: `ratioHigh` when z(log10 ratio) ≥ eventZ; `staHigh` when the STA/LTA peak passed
  *    the trigger-on level and z(peak) ≥ eventZ; each is "ordinary" below noiseZ.
- * 4. Where the spectrum peaks: the dominant frequency and the centroid must both lie inside the high
- *    band. Causal filtering lets loud energy outside the band (a 15–25 Hz machinery burst) leak into
- *    it, so a high ratio with the spectrum peaking elsewhere is never a likely event on its own.
+ * 4. Where the spectrum peaks: the dominant frequency must lie inside the high band, and the
+ *    centroid must not lie above `centroidMaxFactor` (1.5) × the band's upper edge. Causal filtering
+ *    lets loud energy outside the band (a 15–25 Hz machinery burst) leak into it, so a high ratio with
+ *    the spectrum peaking elsewhere is never a likely event on its own. The centroid gets a margin
+ *    because a white instrument-noise floor up to fs/2 pulls a real arrival's centroid above the band.
  * 5. Flag: `likely event` when ratioHigh and staHigh and the spectrum peaks in the high band;
  *    `likely noise` when both z are below noiseZ and there is no trigger; `needs eyes` otherwise,
  *    and always when the lead channel has a QC error (dead, clipped, wrong rate).
@@ -143,8 +145,9 @@ export function scoreWindow(
   );
 
   const hb = lead.bands.high;
-  const inBand = (f: number | null): boolean => f !== null && f >= hb.fmin && f <= hb.fmax;
-  const spectrumInBand = inBand(lead.dominantFrequency) && inBand(lead.spectralCentroid);
+  const dominantInBand = lead.dominantFrequency !== null && lead.dominantFrequency >= hb.fmin && lead.dominantFrequency <= hb.fmax;
+  const centroidOk = lead.spectralCentroid !== null && lead.spectralCentroid <= th.centroidMaxFactor * hb.fmax;
+  const spectrumInBand = dominantInBand && centroidOk;
   const ratioHigh = zr !== null && zr >= th.eventZ;
   const staHigh = triggered && zp >= th.eventZ;
   const quiet = (zr === null || zr < th.noiseZ) && zp < th.noiseZ && !triggered;
@@ -162,7 +165,9 @@ export function scoreWindow(
     flag = 'needs eyes';
     if ((ratioHigh || staHigh) && !spectrumInBand) {
       reasons.push(
-        `spectrum peaks outside the high band ${hb.fmin}–${hb.fmax} Hz (dominant ${fmtHz(lead.dominantFrequency)}, centroid ${fmtHz(lead.spectralCentroid)}): energy may be leaking in from outside the band, not an event on the ratio alone`,
+        dominantInBand
+          ? `spectral centroid ${fmtHz(lead.spectralCentroid)} lies above ${th.centroidMaxFactor} × the high band's ${hb.fmax} Hz edge (dominant ${fmtHz(lead.dominantFrequency)}): much of the energy is above the band, not an event on the ratio alone`
+          : `spectrum peaks outside the high band ${hb.fmin}–${hb.fmax} Hz (dominant ${fmtHz(lead.dominantFrequency)}, centroid ${fmtHz(lead.spectralCentroid)}): energy may be leaking in from outside the band, not an event on the ratio alone`,
       );
     } else if (ratioHigh !== staHigh) {
       reasons.push(ratioHigh ? 'high ratio without a matching STA/LTA onset' : 'STA/LTA onset without a raised band ratio');
@@ -171,7 +176,7 @@ export function scoreWindow(
     }
   }
   if (spectrumInBand && flag !== 'needs eyes') {
-    reasons.push(`spectrum peaks at ${fmtHz(lead.dominantFrequency)} (centroid ${fmtHz(lead.spectralCentroid)}), inside the high band`);
+    reasons.push(`spectrum peaks at ${fmtHz(lead.dominantFrequency)} (centroid ${fmtHz(lead.spectralCentroid)}), in the high band ${hb.fmin}–${hb.fmax} Hz`);
   }
   for (let i = 0; i < channels.length; i++) {
     if (i === li) continue;

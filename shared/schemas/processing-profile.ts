@@ -110,8 +110,14 @@ export const processingProfileSchema = z.object({
       noiseZ: z.number().default(2),
       /** A station needs this many noise windows before its own baseline replaces the network default. */
       minBaselineWindows: z.number().int().min(1).default(20),
+      /**
+       * "Likely event" needs the dominant frequency inside the high band and the spectral centroid
+       * no higher than this factor × the high band's upper edge (the centroid of a real arrival is
+       * pulled up by a white instrument-noise floor; a machinery burst above the band pulls it far up).
+       */
+      centroidMaxFactor: z.number().min(1).default(1.5),
     })
-    .default({ eventZ: 3, noiseZ: 2, minBaselineWindows: 20 }),
+    .default({ eventZ: 3, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5 }),
 });
 
 /** A parsed processing profile (all defaults filled in). */

@@ -58,8 +58,14 @@ describe('scoreWindow', () => {
     expect(r.flag).toBe('needs eyes');
     expect(r.reasons.join(' ')).toMatch(/spectrum peaks outside the high band 2–10 Hz \(dominant 20\.0 Hz, centroid 19\.0 Hz\)/);
     expect(r.score).toBeLessThan(ok.score);
-    // centroid alone outside the band is enough to refuse "likely event"
-    expect(scoreWindow([eventLike({ spectralCentroid: 14 })], baseline, defaultProcessingProfile).flag).toBe('needs eyes');
+    // the centroid alone far above the band (> 1.5 × 10 Hz) is enough to refuse "likely event" …
+    const high = scoreWindow([eventLike({ spectralCentroid: 16 })], baseline, defaultProcessingProfile);
+    expect(high.flag).toBe('needs eyes');
+    expect(high.reasons.join(' ')).toMatch(/spectral centroid 16\.0 Hz lies above 1\.5 × the high band's 10 Hz edge/);
+    // … but a centroid pulled a little above the band by a white noise floor is not
+    expect(scoreWindow([eventLike({ spectralCentroid: 14 })], baseline, defaultProcessingProfile).flag).toBe('likely event');
+    // and the dominant frequency below the band refuses it too
+    expect(scoreWindow([eventLike({ dominantFrequency: 1.2 })], baseline, defaultProcessingProfile).flag).toBe('needs eyes');
   });
 
   it('ordinary values and no trigger: likely noise; one kind of evidence only: needs eyes', () => {
