@@ -190,7 +190,8 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
       font: `11px ${plotFontFamily}`,
       labelFont: `500 12px ${plotFontFamily}`,
       label: axisTitle(a),
-      labelSize: 20,
+      labelSize: 18,
+      labelGap: 2,
       grid: { stroke: plotTheme.grid, width: 1 },
       ticks: { stroke: plotTheme.grid, width: 1, size: 4 },
       border: { show: true, stroke: plotTheme.line, width: 1 },
@@ -208,7 +209,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
         x: { time: false, distr: x.log ? 3 : 1 },
         y: { distr: y.log ? 3 : 1 },
       },
-      axes: [axis(x, xFormat), { ...axis(y, yFormat), size: 64 }],
+      axes: [{ ...axis(x, xFormat), size: 26 }, { ...axis(y, yFormat), size: 52 }],
       series: [
         { label: x.label },
         ...series.map((s, i) => {

@@ -48,14 +48,13 @@ function ToastCard({ toast, onClose }: { toast: ToastItem; onClose: () => void }
   }, [start]);
   return (
     <li
-      role={toast.tone === 'danger' ? 'alert' : undefined}
       onMouseEnter={stop}
       onMouseLeave={start}
       onFocus={stop}
       onBlur={start}
       className={cx('flex w-80 items-start gap-3 rounded-sm border border-line-strong border-l-4 bg-surface px-3 py-2 shadow-lg', toneClass[toast.tone])}
     >
-      <div className="min-w-0 flex-1">
+      <div className="min-w-0 flex-1" role={toast.tone === 'danger' ? 'alert' : undefined}>
         <p className="text-base">
           <span className={cx('mr-1.5 font-semibold', toneText[toast.tone])}>{toneWord[toast.tone]}:</span>
           <span className="font-medium text-ink">{toast.title}</span>

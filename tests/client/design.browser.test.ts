@@ -1,0 +1,283 @@
+import { createServer as createNetServer } from 'node:net';
+import { resolve } from 'node:path';
+import type { Page } from 'playwright-core';
+import { createServer, type ViteDevServer } from 'vite';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
+
+/*
+ * The /design page in a real browser (Debian chromium via playwright-core), served by the Vite dev
+ * server (a development build, where the page is open without sign-in).
+ * Accessibility bar: axe-core's WCAG 2.x A/AA rules, failing on serious or critical findings.
+ * Screenshots land in .data/screenshots/ for a person to look at.
+ */
+
+let server: ViteDevServer;
+let baseUrl: string;
+let browser: LaunchedBrowser;
+
+async function freePort(): Promise<number> {
+  return new Promise((done, fail) => {
+    const probe = createNetServer();
+    probe.once('error', fail);
+    probe.listen(0, '127.0.0.1', () => {
+      const address = probe.address();
+      const port = typeof address === 'object' && address ? address.port : 0;
+      probe.close(() => done(port));
+    });
+  });
+}
+
+/** Opens a page that records console errors, page errors and any request leaving our origin. */
+async function openPage(width: number, height: number, colorScheme: 'dark' | 'light') {
+  const page = await browser.context.newPage();
+  await page.setViewportSize({ width, height });
+  await page.emulateMedia({ colorScheme });
+  const problems: string[] = [];
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') problems.push(`console: ${msg.text()}`);
+  });
+  page.on('pageerror', (err) => problems.push(`pageerror: ${err.message}`));
+  page.on('request', (req) => {
+    const url = req.url();
+    if (!url.startsWith(baseUrl) && !url.startsWith('data:')) problems.push(`off-origin request: ${url}`);
+  });
+  page.on('requestfailed', (req) => problems.push(`failed: ${req.url()}`));
+  page.on('response', (res) => {
+    if (res.status() >= 400) problems.push(`HTTP ${res.status()}: ${res.url()}`);
+  });
+  return { page, problems };
+}
+
+async function gotoDesign(page: Page) {
+  await page.goto(`${baseUrl}/design`, { waitUntil: 'networkidle' });
+  await page.getByRole('heading', { level: 1, name: 'Design reference' }).waitFor();
+  // Plots draw once the mono font is ready; wait for both canvases.
+  await page.locator('.seisift-plot canvas').nth(1).waitFor();
+}
+
+beforeAll(async () => {
+  const port = await freePort();
+  server = await createServer({
+    configFile: resolve(process.cwd(), 'vite.config.ts'),
+    logLevel: 'error',
+    server: { port, strictPort: true, host: '127.0.0.1' },
+  });
+  await server.listen();
+  baseUrl = `http://127.0.0.1:${port}`;
+  browser = await launchBrowser();
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+describe('/design in a browser', () => {
+  const cases = [
+    { width: 1440, height: 900, theme: 'dark' },
+    { width: 1440, height: 900, theme: 'light' },
+    { width: 1280, height: 720, theme: 'dark' },
+    { width: 1280, height: 720, theme: 'light' },
+  ] as const;
+
+  it.each(cases)('renders at $width×$height in the $theme theme with no serious axe finding', async ({ width, height, theme }) => {
+    const { page, problems } = await openPage(width, height, theme);
+    await gotoDesign(page);
+    // With no stored choice the page follows the system preference.
+    expect(await page.getAttribute('html', 'data-theme')).toBe(theme);
+
+    await screenshot(page, `design-${theme}-${width}x${height}`);
+    // A second view further down: the table, plot and tabs.
+    await page.getByRole('heading', { level: 2, name: 'Dense table' }).scrollIntoViewIfNeeded();
+    await screenshot(page, `design-${theme}-${width}x${height}-table`);
+
+    const violations = await checkA11y(page);
+    expect(violations, JSON.stringify(violations, null, 2)).toEqual([]);
+
+    // Usable at this size: the content area never needs sideways scrolling.
+    const overflow = await page.locator('main').evaluate((el) => el.scrollWidth - el.clientWidth);
+    expect(overflow).toBeLessThanOrEqual(0);
+
+    // Fonts come with the app: both Plex faces are loaded, nothing was fetched from elsewhere.
+    const families = await page.evaluate(async () => {
+      await document.fonts.ready;
+      return [...document.fonts].filter((f) => f.status === 'loaded').map((f) => f.family.replace(/["']/g, ''));
+    });
+    expect(families).toContain('IBM Plex Sans');
+    expect(families).toContain('IBM Plex Mono');
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
+  it('switches the theme from the top bar and remembers it across a reload', async () => {
+    const { page, problems } = await openPage(1440, 900, 'dark');
+    await gotoDesign(page);
+    expect(await page.getAttribute('html', 'data-theme')).toBe('dark');
+    const themeSwitch = page.getByRole('banner').getByRole('radiogroup', { name: 'Theme' });
+    await expect.poll(() => themeSwitch.getByRole('radio', { name: 'Auto' }).getAttribute('aria-checked')).toBe('true');
+
+    await themeSwitch.getByRole('radio', { name: 'Light' }).click();
+    expect(await page.getAttribute('html', 'data-theme')).toBe('light');
+    expect(await page.evaluate(() => localStorage.getItem('seisift.theme'))).toBe('light');
+    const canvas = await page.evaluate(() => getComputedStyle(document.body).backgroundColor);
+    expect(canvas).toBe('rgb(241, 240, 234)'); // --sf-canvas of the light theme, #f1f0ea
+
+    await page.reload({ waitUntil: 'networkidle' });
+    expect(await page.getAttribute('html', 'data-theme')).toBe('light');
+    expect(await themeSwitch.getByRole('radio', { name: 'Light' }).getAttribute('aria-checked')).toBe('true');
+    await screenshot(page, 'design-switched-light-1440x900');
+
+    // Arrow keys move the choice inside the radio group.
+    await themeSwitch.getByRole('radio', { name: 'Light' }).focus();
+    await page.keyboard.press('ArrowLeft');
+    expect(await page.getAttribute('html', 'data-theme')).toBe('dark');
+    expect(await page.evaluate(() => localStorage.getItem('seisift.theme'))).toBe('dark');
+
+    // Auto forgets the stored choice and follows the system again.
+    await themeSwitch.getByRole('radio', { name: 'Auto' }).click();
+    expect(await page.evaluate(() => localStorage.getItem('seisift.theme'))).toBeNull();
+    await page.emulateMedia({ colorScheme: 'light' });
+    await expect.poll(() => page.getAttribute('html', 'data-theme')).toBe('light');
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
+  it('sets the remembered theme before any app code runs (no flash)', async () => {
+    const { page } = await openPage(1280, 720, 'dark');
+    await page.goto(`${baseUrl}/design`, { waitUntil: 'networkidle' });
+    await page.evaluate(() => localStorage.setItem('seisift.theme', 'light'));
+    // Block the app bundle: only the inline script in index.html can set the attribute now.
+    await page.route('**/src/main.tsx', (route) => route.abort());
+    await page.reload({ waitUntil: 'load' });
+    expect(await page.getAttribute('html', 'data-theme')).toBe('light');
+    expect(await page.locator('#root').innerHTML()).toBe('');
+    await page.evaluate(() => localStorage.removeItem('seisift.theme'));
+    await page.close();
+  });
+
+  it('redraws a plot with the new tokens when its theme changes', async () => {
+    const { page } = await openPage(1440, 900, 'dark');
+    await gotoDesign(page);
+    const plotSection = page.getByRole('region', { name: 'Plot frame' });
+    // The first panel of the pair is the dark one; located by position so it still matches after
+    // its data-theme changes.
+    const darkPanel = plotSection.locator('[data-theme]').first();
+    expect(await darkPanel.getAttribute('data-theme')).toBe('dark');
+    const sample = darkPanel.locator('figure ul li svg line').first();
+    const before = await sample.getAttribute('stroke');
+    expect(before).toBe('#56b4e9'); // --sf-plot-1, dark
+    await darkPanel.evaluate((el) => el.setAttribute('data-theme', 'light'));
+    await expect.poll(() => sample.getAttribute('stroke')).toBe('#0072b2'); // --sf-plot-1, light
+    await page.close();
+  });
+
+  it('moves a visible focus ring with Tab, starting at the skip link', async () => {
+    const { page } = await openPage(1280, 720, 'dark');
+    await gotoDesign(page);
+    // --sf-focus per theme (tokens.css): dark #ffc94d, light #9a4f00. The light preview panels of
+    // the page are reached too, so the expected colour follows the element's own theme.
+    const focusColor: Record<string, string> = { dark: 'rgb(255, 201, 77)', light: 'rgb(154, 79, 0)' };
+    const seen: string[] = [];
+    for (let i = 0; i < 16; i += 1) {
+      await page.keyboard.press('Tab');
+      const ring = await page.evaluate(() => {
+        const el = document.activeElement;
+        if (!(el instanceof HTMLElement) || el === document.body) return null;
+        const style = getComputedStyle(el);
+        const box = el.getBoundingClientRect();
+        return {
+          label: `${el.tagName.toLowerCase()}:${(el.getAttribute('aria-label') ?? el.textContent ?? '').trim().slice(0, 30)}`,
+          outlineStyle: style.outlineStyle,
+          outlineWidth: parseFloat(style.outlineWidth),
+          outlineColor: style.outlineColor,
+          theme: el.closest('[data-theme]')?.getAttribute('data-theme') ?? 'none',
+          visible: box.width > 0 && box.height > 0 && box.bottom > 0 && box.top < window.innerHeight,
+        };
+      });
+      expect(ring, `Tab #${i + 1} left focus on the body`).not.toBeNull();
+      if (!ring) continue;
+      seen.push(ring.label);
+      expect(ring.outlineStyle, ring.label).toBe('solid');
+      expect(ring.outlineWidth, ring.label).toBeGreaterThanOrEqual(2);
+      expect(ring.outlineColor, ring.label).toBe(focusColor[ring.theme]);
+      expect(ring.visible, ring.label).toBe(true);
+      if (i === 0) {
+        expect(ring.label).toBe('a:Skip to content');
+        await screenshot(page, 'design-focus-skip-link');
+      }
+    }
+    // The Tab order reaches the theme switch and the navigation.
+    expect(seen.some((s) => s.includes('Auto'))).toBe(true);
+    expect(seen.some((s) => s.includes('Design reference'))).toBe(true);
+    expect(seen.some((s) => s.includes('Dismiss'))).toBe(true);
+    await screenshot(page, 'design-focus-after-tabs');
+    await page.close();
+  });
+
+  it('runs tabs, dialog and form errors from the keyboard', async () => {
+    const { page } = await openPage(1440, 900, 'light');
+    await gotoDesign(page);
+
+    // Tabs: arrow keys move selection and focus (WAI-ARIA tabs pattern).
+    const tablist = page.getByRole('tablist', { name: 'Trace views (dark preview)' });
+    await tablist.getByRole('tab', { name: 'Raw' }).focus();
+    await page.keyboard.press('ArrowRight');
+    const low = tablist.getByRole('tab', { name: 'Low band' });
+    expect(await low.getAttribute('aria-selected')).toBe('true');
+    expect(await low.evaluate((el) => el === document.activeElement)).toBe(true);
+    await page.keyboard.press('End');
+    expect(await tablist.getByRole('tab', { name: 'High band' }).getAttribute('aria-selected')).toBe('true');
+
+    // Dialog: opens modal, Escape closes it, focus returns to the opener.
+    const opener = page.getByRole('region', { name: 'Dialog and toasts' }).getByRole('button', { name: 'Open dialog' }).first();
+    await opener.focus();
+    await page.keyboard.press('Enter');
+    const dialog = page.getByRole('dialog', { name: 'Dismiss as noise?' });
+    await dialog.waitFor();
+    expect(await dialog.evaluate((el) => el.contains(document.activeElement))).toBe(true);
+    const violations = await checkA11y(page);
+    expect(violations, JSON.stringify(violations, null, 2)).toEqual([]);
+    await screenshot(page, 'design-dialog-light');
+    await page.keyboard.press('Escape');
+    await dialog.waitFor({ state: 'hidden' });
+    expect(await opener.evaluate((el) => el === document.activeElement)).toBe(true);
+
+    // Form: submitting shows each error under its field and wires it to the input.
+    const form = page.getByRole('region', { name: 'Form fields' }).locator('[data-theme="light"] form');
+    await form.getByRole('button', { name: 'Check form' }).click();
+    const station = form.getByLabel('Station code');
+    await expect.poll(() => station.getAttribute('aria-invalid')).toBe('true');
+    const described = (await station.getAttribute('aria-describedby')) ?? '';
+    const errorText = await page.evaluate((ids) => ids.split(' ').map((id) => document.getElementById(id)?.textContent ?? '').join(' | '), described);
+    expect(errorText).toContain('Station code: 1 to 5 capital letters or digits');
+    expect(await form.getByLabel('Reply to').getAttribute('aria-invalid')).toBe('true');
+    expect(await form.getByLabel('Event type').getAttribute('aria-invalid')).toBe('true');
+
+    // Toast: announced in the notifications region with its tone as a word.
+    await page.getByRole('region', { name: 'Dialog and toasts' }).locator('[data-theme="light"]').getByRole('button', { name: 'Toast: error' }).click();
+    const alert = page.getByRole('region', { name: 'Notifications' }).getByRole('alert');
+    await alert.waitFor();
+    expect(await alert.textContent()).toContain('Error:');
+    await screenshot(page, 'design-form-errors-toast-light');
+    const after = await checkA11y(page);
+    expect(after, JSON.stringify(after, null, 2)).toEqual([]);
+    await page.close();
+  });
+
+  it('shows only routed sections in the navigation and a 404 page for unknown paths', async () => {
+    const { page } = await openPage(1280, 720, 'dark');
+    await page.goto(`${baseUrl}/`, { waitUntil: 'networkidle' });
+    const nav = page.getByRole('navigation', { name: 'Sections' });
+    // Nobody is signed in (sign-in is not built yet); development shows Home and the reference.
+    expect(await nav.getByRole('link').allTextContents()).toEqual(['Home', 'Design reference']);
+    expect(await page.getByRole('banner').textContent()).toContain('Not signed in');
+    await screenshot(page, 'home-dark-1280x720');
+    expect(await checkA11y(page)).toEqual([]);
+
+    await page.goto(`${baseUrl}/queue`, { waitUntil: 'networkidle' });
+    await page.getByText('No page here').waitFor();
+    expect(await page.locator('main').textContent()).toContain('/queue');
+    await page.close();
+  });
+});
