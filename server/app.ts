@@ -1,0 +1,41 @@
+import express, { type Express } from 'express';
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { pinoHttp } from 'pino-http';
+import type { AppContext } from './context';
+import { apiNotFound, errorHandler } from './middleware/error-handler';
+import { healthRouter } from './routes/health/router';
+
+/** The built client (vite build output). */
+export const clientDistDir = fileURLToPath(new URL('../dist/client', import.meta.url));
+
+/**
+ * Builds the Express app: JSON API under /api, the built client with an SPA fallback for every
+ * other GET. Used by the server and by supertest.
+ */
+export function createApp(ctx: AppContext, opts: { serveClient?: boolean } = {}): Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    pinoHttp({
+      logger: ctx.logger,
+      autoLogging: { ignore: (req) => req.url === '/api/health' },
+      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
+    }),
+  );
+  app.use(express.json({ limit: '1mb' }));
+
+  app.use('/api/health', healthRouter(ctx));
+  app.use('/api', apiNotFound);
+
+  if (opts.serveClient !== false && existsSync(clientDistDir)) {
+    app.use(express.static(clientDistDir, { index: false, maxAge: '1h' }));
+    app.get('/{*splat}', (_req, res) => {
+      res.setHeader('Cache-Control', 'no-cache');
+      res.sendFile('index.html', { root: clientDistDir });
+    });
+  }
+  app.use(errorHandler(ctx.logger));
+  return app;
+}

@@ -1,0 +1,61 @@
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:net';
+import { join, resolve, sep } from 'node:path';
+import { BootstrapError } from './mariadb';
+
+/** Fails with one line when `dir` cannot be created or written. Returns the absolute path. */
+export function ensureWritableDir(dir: string, variable: string): string {
+  const abs = resolve(dir);
+  try {
+    // One level at a time: Node's recursive mkdir can spin on file systems such as /proc.
+    const parts = abs.split(sep).filter(Boolean);
+    let path = sep;
+    for (const part of parts) {
+      path = join(path, part);
+      if (!existsSync(path)) mkdirSync(path);
+    }
+    const probe = join(abs, `.write-probe-${process.pid}`);
+    writeFileSync(probe, 'ok');
+    rmSync(probe);
+  } catch (err) {
+    const reason = err instanceof Error && 'code' in err ? String((err as NodeJS.ErrnoException).code) : 'unknown error';
+    throw new BootstrapError(`${variable}: the data folder ${abs} is not writable (${reason})`);
+  }
+  return abs;
+}
+
+/** Fails with one line when host:port is taken. */
+export async function ensurePortFree(host: string, port: number, variable: string): Promise<void> {
+  await new Promise<void>((ok, fail) => {
+    const probe = createServer();
+    probe.once('error', (err: NodeJS.ErrnoException) =>
+      fail(new BootstrapError(`${variable}: port ${port} on ${host} is ${err.code === 'EADDRINUSE' ? 'already in use' : `not usable (${err.code})`}; stop the other program or choose another port`)),
+    );
+    probe.listen(port, host, () => probe.close(() => ok()));
+  });
+}
+
+/** A free TCP port on 127.0.0.1, chosen by the kernel. */
+export async function freePort(): Promise<number> {
+  return new Promise((ok, fail) => {
+    const probe = createServer();
+    probe.once('error', fail);
+    probe.listen(0, '127.0.0.1', () => {
+      const addr = probe.address();
+      const port = typeof addr === 'object' && addr ? addr.port : 0;
+      probe.close(() => ok(port));
+    });
+  });
+}
+
+/** Builds the client with Vite (its own binary, so it can be stopped by PID). */
+export function buildClient(): void {
+  const r = spawnSync(process.execPath, ['node_modules/.bin/vite', 'build', '--logLevel', 'warn'], { stdio: 'inherit' });
+  if (r.status !== 0) throw new BootstrapError('the client build (vite build) failed; see the messages above');
+}
+
+/** Seconds since `t0` (performance.now()), one decimal. */
+export function secondsSince(t0: number): string {
+  return ((performance.now() - t0) / 1000).toFixed(1);
+}

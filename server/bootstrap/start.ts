@@ -1,0 +1,82 @@
+/**
+ * `npm start`: installs what is missing, starts (or reuses) the private MariaDB, migrates, seeds the
+ * demo, builds the client, serves everything on one port and prints the URL and the demo sign-ins.
+ * Ctrl-C / SIGTERM stops the app and the MariaDB it started.
+ */
+import { join } from 'node:path';
+import { createDatabaseClient } from '../db/client';
+import { migrateDatabase } from '../db/migrate';
+import { demoUsers, seedDemo } from '../db/seed-demo';
+import { ConfigError, loadEnv } from '../env';
+import { createLogger } from '../logger';
+import { ListenError, startServer } from '../index';
+import { appVersion } from '../version';
+import { buildClient, ensurePortFree, ensureWritableDir, secondsSince } from './common';
+import { BootstrapError, ensureMariaDbInstalled, provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from './mariadb';
+
+const t0 = performance.now();
+let mariadb: PrivateMariaDb | undefined;
+let stopping = false;
+const cleanups: (() => Promise<void>)[] = [];
+
+async function shutdown(code: number): Promise<never> {
+  if (!stopping) {
+    stopping = true;
+    for (const fn of cleanups.reverse()) await fn().catch(() => {});
+    if (mariadb?.startedHere) {
+      console.log('seisift: stopping MariaDB…');
+      await mariadb.stop();
+    }
+  }
+  process.exit(code);
+}
+process.on('SIGINT', () => void shutdown(0));
+process.on('SIGTERM', () => void shutdown(0));
+
+try {
+  const env = loadEnv({ NODE_ENV: 'production', ...process.env });
+  const dataDir = ensureWritableDir(env.SEISIFT_DATA_DIR, 'SEISIFT_DATA_DIR');
+  await ensurePortFree(env.HOST, env.PORT, 'PORT');
+
+  let databaseUrl = env.DATABASE_URL;
+  if (!databaseUrl) {
+    ensureMariaDbInstalled();
+    mariadb = await startPrivateMariaDb({ dataDir: join(dataDir, 'mariadb'), port: env.SEISIFT_DB_PORT });
+    databaseUrl = await provisionDatabase(mariadb, { database: 'seisift', user: 'seisift', password: env.SEISIFT_DB_PASSWORD });
+  }
+
+  const database = createDatabaseClient(databaseUrl);
+  cleanups.push(() => database.close());
+  await migrateDatabase(database.db);
+  if (env.SEISIFT_SEED_DEMO === '1') {
+    const { created } = await seedDemo(database.db, { demoPassword: env.SEISIFT_DEMO_PASSWORD });
+    console.log(created.length ? `seisift: demo seeded (${created.length} new rows: ${created.join(', ')})` : 'seisift: demo data already present');
+  }
+
+  console.log('seisift: building the client…');
+  buildClient();
+
+  const ctx = { env, database, logger: createLogger(env.LOG_LEVEL), version: appVersion };
+  const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
+  cleanups.push(() => running.close());
+
+  const lines = [
+    '',
+    `Seisift ${appVersion} is ready in ${secondsSince(t0)} s: ${running.url}`,
+    '',
+    ...(env.SEISIFT_SEED_DEMO === '1'
+      ? [
+          `Demo sign-ins (demo only; password "${env.SEISIFT_DEMO_PASSWORD}"):`,
+          ...demoUsers.map((u) => `  ${u.email.padEnd(28)} ${u.roles.join(', ')}`),
+          '',
+        ]
+      : []),
+    'Press Ctrl-C to stop.',
+  ];
+  console.log(lines.join('\n'));
+} catch (err) {
+  const known = err instanceof ConfigError || err instanceof BootstrapError || err instanceof ListenError;
+  console.error(`seisift: ${known ? err.message : err instanceof Error ? `${err.message}` : String(err)}`);
+  if (!known && process.env.SEISIFT_DEBUG === '1' && err instanceof Error) console.error(err.stack);
+  await shutdown(1);
+}

@@ -1,0 +1,12 @@
+import type { DatabaseClient } from './db/client';
+import type { Env } from './env';
+import type { Logger } from './logger';
+
+/** What every route and service may use; built once at start (or per test). */
+export interface AppContext {
+  env: Env;
+  database: DatabaseClient;
+  logger: Logger;
+  /** The app version (package.json). */
+  version: string;
+}

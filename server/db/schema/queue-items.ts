@@ -1,0 +1,42 @@
+import { double, index, int, mysqlTable, varchar } from 'drizzle-orm/mysql-core';
+import { idColumn, refColumn, timeColumn, jsonColumn } from './columns';
+import { stations } from './stations';
+import { windows } from './uploads';
+import { users } from './users';
+
+/** One review-queue item per analysed window. `version` increases on every change (optimistic locking). */
+export const queueItems = mysqlTable(
+  'queue_items',
+  {
+    id: idColumn(),
+    windowId: refColumn('window_id')
+      .notNull()
+      .unique()
+      .references(() => windows.id, { onDelete: 'cascade' }),
+    stationId: refColumn('station_id')
+      .notNull()
+      .references(() => stations.id),
+    /** Life-cycle state (names of our own; see shared/schemas). */
+    state: varchar('state', { length: 20 }).notNull(),
+    /** Automatic score and flag as shown when the item was created (re-scoring is explicit). */
+    score: double('score').notNull(),
+    flag: varchar('flag', { length: 20 }).notNull(),
+    reasons: jsonColumn<string[]>('reasons').notNull(),
+    /** Window start, copied for sorting and filtering by time. */
+    windowStart: timeColumn('window_start').notNull(),
+    version: int('version', { unsigned: true }).notNull().default(1),
+    claimedByUserId: varchar('claimed_by_user_id', { length: 255 }).references(() => users.id, { onDelete: 'set null' }),
+    claimedAt: timeColumn('claimed_at'),
+    /** The analyst's label (event type, certainty, picks, note) as JSON, once labelled. */
+    label: jsonColumn<unknown>('label'),
+    updatedByUserId: varchar('updated_by_user_id', { length: 255 }).references(() => users.id, { onDelete: 'set null' }),
+    createdAt: timeColumn('created_at').notNull(),
+    updatedAt: timeColumn('updated_at').notNull(),
+  },
+  (t) => [
+    index('queue_items_state_score_idx').on(t.state, t.score),
+    index('queue_items_state_created_idx').on(t.state, t.createdAt),
+    index('queue_items_station_created_idx').on(t.stationId, t.createdAt),
+    index('queue_items_window_start_idx').on(t.windowStart),
+  ],
+);

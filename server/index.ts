@@ -1,0 +1,64 @@
+import { createServer, type Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { createApp } from './app';
+import type { AppContext } from './context';
+import { createDatabaseClient } from './db/client';
+import { ConfigError, loadEnv } from './env';
+import { createLogger } from './logger';
+import { appVersion } from './version';
+
+/** A running Seisift HTTP server. */
+export interface RunningServer {
+  server: Server;
+  url: string;
+  close(): Promise<void>;
+}
+
+/** Thrown when the HTTP port cannot be bound; one line for the terminal. */
+export class ListenError extends Error {
+  override readonly name = 'ListenError';
+}
+
+/** Starts the HTTP server for `ctx` on host:port (port 0 picks a free one). */
+export async function startServer(ctx: AppContext, opts: { host: string; port: number; serveClient?: boolean }): Promise<RunningServer> {
+  const app = createApp(ctx, { serveClient: opts.serveClient });
+  const server = createServer(app);
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', (err: NodeJS.ErrnoException) => {
+      if (err.code === 'EADDRINUSE') reject(new ListenError(`port ${opts.port} on ${opts.host} is already in use: stop the other program or set PORT`));
+      else if (err.code === 'EACCES') reject(new ListenError(`not allowed to listen on port ${opts.port}: choose a PORT above 1023`));
+      else reject(err);
+    });
+    server.listen(opts.port, opts.host, () => resolve());
+  });
+  const { port } = server.address() as AddressInfo;
+  const url = `http://${opts.host}:${port}`;
+  return {
+    server,
+    url,
+    close: () =>
+      new Promise<void>((resolve) => {
+        server.close(() => resolve());
+        server.closeAllConnections();
+      }),
+  };
+}
+
+/** Builds the app context from validated settings and a database URL. */
+export function createContext(env: ReturnType<typeof loadEnv>, databaseUrl: string): AppContext {
+  return { env, database: createDatabaseClient(databaseUrl), logger: createLogger(env.LOG_LEVEL), version: appVersion };
+}
+
+// `tsx watch server/index.ts` (npm run dev): serve the API against DATABASE_URL.
+if (import.meta.url === `file://${process.argv[1]}`) {
+  try {
+    const env = loadEnv();
+    if (!env.DATABASE_URL) throw new ConfigError('DATABASE_URL: required when the server runs on its own (npm run dev sets it)');
+    const ctx = createContext(env, env.DATABASE_URL);
+    const running = await startServer(ctx, { host: env.HOST, port: env.PORT, serveClient: false });
+    console.log(`seisift: API on ${running.url}`);
+  } catch (err) {
+    console.error(`seisift: ${err instanceof Error ? err.message : String(err)}`);
+    process.exit(1);
+  }
+}

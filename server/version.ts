@@ -1,0 +1,4 @@
+import { readFileSync } from 'node:fs';
+
+/** The app version from package.json, read once. */
+export const appVersion: string = (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
