@@ -48,18 +48,12 @@ export function decodeSteim(
       `${where}: declares ${sampleCount} samples but ${frames} ${label} frames can hold at most ${capacity}`,
     );
   }
-  const out = new Int32Array(sampleCount);
+  // Differences first (a word may hold a few beyond the declared count: 7 slots of slack), then
+  // integrate; Int32 arithmetic wraps like the 32-bit integers of the format.
+  const diffs = new Int32Array(sampleCount + 7);
   const x0 = view.getInt32(4, littleEndian);
   const xn = view.getInt32(8, littleEndian);
-  let n = 0; // differences seen (including the unused first one)
-  let last = 0;
-  const push = (d: number): void => {
-    if (n >= sampleCount) return;
-    if (n === 0) last = x0;
-    else last = (last + d) | 0;
-    out[n] = last;
-    n++;
-  };
+  let n = 0;
   for (let f = 0; f < frames && n < sampleCount; f++) {
     const base = f * 64;
     const ctrl = view.getUint32(base, littleEndian);
@@ -68,36 +62,53 @@ export function decodeSteim(
       const off = base + w * 4;
       if (code === 0) continue;
       if (code === 1) {
-        // four 8-bit differences, in byte order of the stream (first byte first)
-        for (let b = 0; b < 4; b++) push(view.getInt8(off + b));
+        // four 8-bit differences, first byte first
+        diffs[n] = view.getInt8(off);
+        diffs[n + 1] = view.getInt8(off + 1);
+        diffs[n + 2] = view.getInt8(off + 2);
+        diffs[n + 3] = view.getInt8(off + 3);
+        n += 4;
         continue;
       }
-      const word = view.getUint32(off, littleEndian);
       if (version === 1) {
         if (code === 2) {
-          push(view.getInt16(off, littleEndian));
-          push(view.getInt16(off + 2, littleEndian));
+          diffs[n] = view.getInt16(off, littleEndian);
+          diffs[n + 1] = view.getInt16(off + 2, littleEndian);
+          n += 2;
         } else {
-          push(view.getInt32(off, littleEndian));
+          diffs[n++] = view.getInt32(off, littleEndian);
         }
         continue;
       }
+      const word = view.getUint32(off, littleEndian);
       const dnib = word >>> 30;
+      let count: number;
+      let bits: number;
       if (code === 2) {
-        if (dnib === 1) unpack(word, 1, 30, push);
-        else if (dnib === 2) unpack(word, 2, 15, push);
-        else if (dnib === 3) unpack(word, 3, 10, push);
+        if (dnib === 1) [count, bits] = [1, 30];
+        else if (dnib === 2) [count, bits] = [2, 15];
+        else if (dnib === 3) [count, bits] = [3, 10];
         else throw new WaveformParseError(`${where}: invalid Steim-2 sub-code 0 under code 2 in frame ${f}, word ${w}`);
-      } else {
-        if (dnib === 0) unpack(word, 5, 6, push);
-        else if (dnib === 1) unpack(word, 6, 5, push);
-        else if (dnib === 2) unpack(word, 7, 4, push);
-        else throw new WaveformParseError(`${where}: invalid Steim-2 sub-code 3 under code 3 in frame ${f}, word ${w}`);
+      } else if (dnib === 0) [count, bits] = [5, 6];
+      else if (dnib === 1) [count, bits] = [6, 5];
+      else if (dnib === 2) [count, bits] = [7, 4];
+      else throw new WaveformParseError(`${where}: invalid Steim-2 sub-code 3 under code 3 in frame ${f}, word ${w}`);
+      const shift = 32 - bits;
+      for (let k = count - 1; k >= 0; k--) {
+        // move the field to the top bits, then an arithmetic shift sign-extends it
+        diffs[n++] = ((word >>> (k * bits)) << shift) >> shift;
       }
     }
   }
   if (n < sampleCount) {
     throw new WaveformParseError(`${where}: declares ${sampleCount} samples but its ${label} frames hold only ${n}`);
+  }
+  const out = new Int32Array(sampleCount);
+  let last = x0;
+  out[0] = x0; // the first difference refers to the previous record and is not used
+  for (let i = 1; i < sampleCount; i++) {
+    last = (last + (diffs[i] ?? 0)) | 0;
+    out[i] = last;
   }
   if (last !== xn) {
     throw new WaveformParseError(
@@ -107,11 +118,3 @@ export function decodeSteim(
   return out;
 }
 
-/** Unpacks `count` signed `bits`-wide fields from the low 30 bits of `word`, most significant first. */
-function unpack(word: number, count: number, bits: number, push: (d: number) => void): void {
-  const shift = 32 - bits;
-  for (let k = count - 1; k >= 0; k--) {
-    const field = (word >>> (k * bits)) << shift; // move the field to the top bits
-    push(field >> shift); // arithmetic shift sign-extends
-  }
-}
