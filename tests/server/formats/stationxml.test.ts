@@ -1,5 +1,6 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { parseStationXml, StationXmlParseError, type PolesZeros } from '../../../server/formats/stationxml';
 
@@ -95,5 +96,29 @@ describe('parseStationXml (FDSN StationXML 1.2 element names)', () => {
     expect(() => parseStationXml(XML.replace('<Real>-220.0</Real>', ''))).toThrow(/Pole 4: <Real> is missing/u);
     expect(() => parseStationXml(XML.replace('<Dip>-90</Dip>', '<Dip>-120</Dip>'))).toThrow(/<Dip> -120 is outside/u);
     expect(() => parseStationXml(XML.replace('schemaVersion="1.2"', 'schemaVersion="2.0"'))).toThrow(StationXmlParseError);
+  });
+});
+
+describe('parseStationXml on mutated documents (fast-check)', () => {
+  it('only ever throws StationXmlParseError', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.tuple(fc.nat(), fc.nat(40), fc.string({ maxLength: 12 })), { minLength: 1, maxLength: 4 }),
+        (edits) => {
+          let text = XML;
+          for (const [at, del, insert] of edits) {
+            const p = at % (text.length + 1);
+            text = text.slice(0, p) + insert + text.slice(p + del);
+          }
+          try {
+            const doc = parseStationXml(text);
+            expect(doc.networks.length).toBeGreaterThan(0);
+          } catch (err) {
+            if (!(err instanceof StationXmlParseError)) throw err;
+          }
+        },
+      ),
+      { numRuns: 300, seed: 7 },
+    );
   });
 });
