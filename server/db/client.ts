@@ -1,6 +1,7 @@
 import { drizzle, type MySql2Database } from 'drizzle-orm/mysql2';
 import mysql from 'mysql2/promise';
 import * as auditLog from './schema/audit-log';
+import * as changeLog from './schema/change-log';
 import * as queueItems from './schema/queue-items';
 import * as sessions from './schema/sessions';
 import * as stations from './schema/stations';
@@ -8,7 +9,7 @@ import * as uploads from './schema/uploads';
 import * as users from './schema/users';
 
 /** Every table, for drizzle's relational queries. */
-export const schema = { ...users, ...sessions, ...stations, ...uploads, ...queueItems, ...auditLog };
+export const schema = { ...changeLog, ...users, ...sessions, ...stations, ...uploads, ...queueItems, ...auditLog };
 
 /** The app's database handle. */
 export type Database = MySql2Database<typeof schema>;
