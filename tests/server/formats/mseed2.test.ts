@@ -168,3 +168,60 @@ describe('MiniSEED 2 header rules (SEED manual 2.4)', () => {
     expect(() => decodeMiniSeed2(c)).toThrow(/record length 2\^30/u);
   });
 });
+
+describe('MiniSEED 2 record built by hand from the SEED manual 2.4 layout', () => {
+  /**
+   * Fixed header little-endian, data big-endian (word order from blockette 1000), a 200-byte
+   * blockette 500 (timing) to be skipped by its next offset, a blockette 100 (actual sample rate)
+   * and int32 data at byte 320 of a 512-byte record.
+   */
+  function handRecord(): Uint8Array {
+    const rec = new Uint8Array(512);
+    const v = new DataView(rec.buffer);
+    const le = true;
+    rec.set(new TextEncoder().encode('000001D KV06 00HHZXX'), 0); // seq, quality, reserved, sta, loc, cha, net
+    v.setUint16(20, 2026, le);
+    v.setUint16(22, 73, le); // 14 March
+    rec[24] = 9;
+    rec[25] = 26;
+    rec[26] = 53;
+    v.setUint16(28, 5891, le); // 0.5891 s
+    v.setUint16(30, 48, le); // samples
+    v.setInt16(32, 100, le); // rate factor
+    v.setInt16(34, 1, le); // rate multiplier
+    rec[36] = 0; // activity flags: time correction not applied
+    rec[39] = 3; // blockettes that follow
+    v.setInt32(40, -25, le); // time correction −0.0025 s
+    v.setUint16(44, 320, le); // beginning of data
+    v.setUint16(46, 48, le); // first blockette
+    // blockette 1000 at 48 → next 56
+    v.setUint16(48, 1000, le);
+    v.setUint16(50, 56, le);
+    rec[52] = 3; // int32
+    rec[53] = 1; // big-endian data
+    rec[54] = 9; // 2^9 = 512
+    // blockette 500 (timing, 200 bytes) at 56 → next 256; its content is irrelevant here
+    v.setUint16(56, 500, le);
+    v.setUint16(58, 256, le);
+    // blockette 100 (sample rate) at 256 → end of chain
+    v.setUint16(256, 100, le);
+    v.setUint16(258, 0, le);
+    v.setFloat32(260, 99.99, le);
+    for (let i = 0; i < 48; i++) v.setInt32(320 + i * 4, (i - 24) * 1000003, false);
+    return rec;
+  }
+
+  it('follows the chain, applies the correction, reads big-endian data behind a little-endian header', () => {
+    const [s] = decodeMiniSeed2(handRecord());
+    expect(s?.id).toBe('XX.KV06.00.HHZ');
+    expect(s?.startTimeUs).toBe(Date.UTC(2026, 2, 14, 9, 26, 53) * 1000 + 589_100 - 2_500);
+    expect(s?.sampleRateHz).toBe(Math.fround(99.99)); // blockette 100 overrides factor/multiplier
+    expect(Array.from(s?.samples ?? [])).toEqual(Array.from({ length: 48 }, (_, i) => (i - 24) * 1000003));
+  });
+
+  it('refuses a chain that runs past the record', () => {
+    const b = handRecord();
+    new DataView(b.buffer).setUint16(58, 510, true); // next blockette at 510: its 8 bytes cross the end
+    expect(() => decodeMiniSeed2(b)).toThrow(WaveformParseError);
+  });
+});
