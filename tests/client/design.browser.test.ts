@@ -235,6 +235,9 @@ describe('/design in a browser', () => {
     await page.keyboard.press('Enter');
     const dialog = page.getByRole('dialog', { name: 'Dismiss as noise?' });
     await dialog.waitFor();
+    // Focus starts on the first field, inside the dialog.
+    expect(await dialog.getByLabel('Noise reason').evaluate((el) => el === document.activeElement)).toBe(true);
+    await page.keyboard.press('Tab');
     expect(await dialog.evaluate((el) => el.contains(document.activeElement))).toBe(true);
     const violations = await checkA11y(page);
     expect(violations, JSON.stringify(violations, null, 2)).toEqual([]);

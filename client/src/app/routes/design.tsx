@@ -16,7 +16,7 @@ import { FormField } from '../../components/ui/form-field';
 import { CheckIcon } from '../../components/ui/icons';
 import { Input } from '../../components/ui/input';
 import { Kbd } from '../../components/ui/kbd';
-import { PlotFrame, type PlotSeries } from '../../components/ui/plot-frame';
+import { formatPlotNumber, PlotFrame, type PlotSeries } from '../../components/ui/plot-frame';
 import { Select } from '../../components/ui/select';
 import { Loading } from '../../components/ui/skeleton';
 import { StateMarker, stateLooks } from '../../components/ui/state-marker';
@@ -320,7 +320,7 @@ function PlotPreview() {
       title="XX.KV03.00 · synthetic sines (display only)"
       description="Three synthetic sine bursts, one per component, peaking near 8 seconds. For showing the plot style only."
       x={{ label: 'time', unit: 's', values: demo.t, format: (v) => v.toFixed(1) }}
-      y={{ label: 'amplitude', unit: 'counts', format: (v) => v.toFixed(0) }}
+      y={{ label: 'amplitude', unit: 'counts', format: (v) => formatPlotNumber(Math.round(v)) }}
       series={demo.series}
       height={200}
     />

@@ -3,6 +3,8 @@ import { cx } from '../../lib/cx';
 import { Button } from './button';
 import { CloseIcon } from './icons';
 
+const focusable = ':is(input:not([disabled]), select:not([disabled]), textarea:not([disabled]), button:not([disabled]), a[href], [tabindex="0"])';
+
 /** Props of <Dialog>. */
 export type DialogProps = {
   open: boolean;
@@ -19,7 +21,8 @@ export type DialogProps = {
 
 /**
  * A modal dialog on the native <dialog> element: `showModal()` makes the rest of the page inert,
- * keeps Tab inside, and Escape closes it. Focus returns to what had it before opening.
+ * keeps Tab inside, and Escape closes it. Focus starts on the first field (else the first action)
+ * and returns to what had it before opening.
  */
 export function Dialog({ open, onClose, title, description, children, actions, className }: DialogProps) {
   const ref = useRef<HTMLDialogElement>(null);
@@ -33,6 +36,9 @@ export function Dialog({ open, onClose, title, description, children, actions, c
     if (open && !dialog.open) {
       returnFocus.current = document.activeElement instanceof HTMLElement ? document.activeElement : null;
       dialog.showModal();
+      // Start in the body (the first field) or on the first action, not on the close button.
+      const first = dialog.querySelector<HTMLElement>(`[data-dialog-part="body"] ${focusable}, [data-dialog-part="actions"] ${focusable}`);
+      first?.focus();
     } else if (!open && dialog.open) {
       dialog.close();
     }
@@ -87,8 +93,16 @@ export function Dialog({ open, onClose, title, description, children, actions, c
           <span className="sr-only">Close</span>
         </Button>
       </div>
-      {children ? <div className="px-4 py-3">{children}</div> : null}
-      {actions ? <div className="flex justify-end gap-2 border-t border-line px-4 py-3">{actions}</div> : null}
+      {children ? (
+        <div data-dialog-part="body" className="px-4 py-3">
+          {children}
+        </div>
+      ) : null}
+      {actions ? (
+        <div data-dialog-part="actions" className="flex justify-end gap-2 border-t border-line px-4 py-3">
+          {actions}
+        </div>
+      ) : null}
     </dialog>
   );
 }

@@ -130,7 +130,11 @@ function useFontReady(): boolean {
   return ready;
 }
 
-const defaultFormat = (v: number) => (Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(2) : String(Number(v.toPrecision(6))));
+/** Default tick / read-out format: 6 significant digits, exponent form outside 1e-3..1e5, true minus sign. */
+export function formatPlotNumber(v: number): string {
+  const text = Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(2) : String(Number(v.toPrecision(6)));
+  return text.replace('-', '\u2212');
+}
 
 function axisTitle(axis: PlotAxis): string {
   return axis.unit ? `${axis.label} (${axis.unit})` : axis.label;
@@ -178,8 +182,8 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
     [plotTheme],
   );
 
-  const xFormat = x.format ?? defaultFormat;
-  const yFormat = y.format ?? defaultFormat;
+  const xFormat = x.format ?? formatPlotNumber;
+  const yFormat = y.format ?? formatPlotNumber;
   const seriesKey = series.map((s) => `${s.label}:${s.styleIndex ?? ''}`).join('|');
 
   const options = useMemo<uPlot.Options | null>(() => {
