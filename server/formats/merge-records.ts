@@ -30,6 +30,8 @@ export interface DecodedRecord {
  * record starts, and reported; nothing is dropped or interpolated.
  *
  * Records carrying no samples are skipped. The data-quality indicator is not part of the stream id.
+ * A stream whose records use several encodings gets them joined with `+` (e.g. `steim2+int32`);
+ * its extra headers are those of its earliest record.
  *
  * @throws WaveformParseError when one stream changes sample rate (relative difference > 1e-4, the
  *   tolerance libmseed uses by default) or has a non-positive rate while carrying samples

@@ -38,7 +38,7 @@ const FIXED_HEADER_LENGTH = 48;
 const MIN_RECORD_EXPONENT = 7;
 const MAX_RECORD_EXPONENT = 16;
 
-/** A blockette type / offset pair found while walking a record's chain. */
+/** The fields of one record's fixed header and blockettes that decoding needs. */
 interface ParsedHeader {
   network: string;
   station: string;
