@@ -1,0 +1,68 @@
+import { asc, eq, gt, lt, min, sql } from 'drizzle-orm';
+import type { ChangeMessage } from '../../shared/realtime';
+import type { Database } from '../db/client';
+import { changeCounter, changeLog } from '../db/schema/change-log';
+
+/** A database handle or an open transaction. */
+export type DbOrTx = Database | Parameters<Parameters<Database['transaction']>[0]>[0];
+
+/** What changed. */
+export interface ChangeInput {
+  resource: string;
+  resourceId: number;
+  kind: 'created' | 'updated' | 'deleted';
+  version: number;
+  summary?: Record<string, unknown>;
+}
+
+/**
+ * Records a change inside the caller's transaction and returns its sequence number. It locks the
+ * single counter row until that transaction ends, so call it as the LAST write of the transaction:
+ * sequence order is then commit order, and a reader of `seq > N` never skips a change that commits later.
+ */
+export async function recordChange(tx: DbOrTx, change: ChangeInput): Promise<number> {
+  await tx.update(changeCounter).set({ seq: sql`${changeCounter.seq} + 1` }).where(eq(changeCounter.id, 1));
+  const [row] = await tx.select({ seq: changeCounter.seq }).from(changeCounter).where(eq(changeCounter.id, 1));
+  if (!row) throw new Error('change_counter row 1 is missing (migration 0001 inserts it)');
+  await tx.insert(changeLog).values({
+    seq: row.seq,
+    resource: change.resource,
+    resourceId: change.resourceId,
+    kind: change.kind,
+    version: change.version,
+    summary: change.summary ?? null,
+    createdAt: new Date(),
+  });
+  return row.seq;
+}
+
+/** The last sequence number handed out (0 when nothing has changed yet). */
+export async function latestSeq(db: Database): Promise<number> {
+  const [row] = await db.select({ seq: changeCounter.seq }).from(changeCounter).where(eq(changeCounter.id, 1));
+  return row?.seq ?? 0;
+}
+
+/** The oldest sequence number still kept, or undefined when the log is empty. */
+export async function oldestKeptSeq(db: Database): Promise<number | undefined> {
+  const [row] = await db.select({ seq: min(changeLog.seq) }).from(changeLog);
+  return row?.seq ?? undefined;
+}
+
+/** Changes with seq > `since`, in order, at most `limit`. */
+export async function changesSince(db: Database, since: number, limit = 1000): Promise<ChangeMessage[]> {
+  const rows = await db.select().from(changeLog).where(gt(changeLog.seq, since)).orderBy(asc(changeLog.seq)).limit(limit);
+  return rows.map((r) => ({
+    seq: r.seq,
+    resource: r.resource,
+    id: r.resourceId,
+    kind: r.kind as ChangeMessage['kind'],
+    version: r.version,
+    summary: r.summary ?? null,
+    at: r.createdAt.toISOString(),
+  }));
+}
+
+/** Deletes changes older than `before` (the counter is kept, so sequence numbers never repeat). */
+export async function pruneChanges(db: Database, before: Date): Promise<void> {
+  await db.delete(changeLog).where(lt(changeLog.createdAt, before));
+}
