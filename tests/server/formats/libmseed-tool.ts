@@ -14,11 +14,19 @@ const SOURCE = join(import.meta.dirname, '../../fixtures/mseed/write-fixtures.c'
 export function buildLibmseedDump(): { dump: (bytes: Uint8Array) => LibmseedDump; dir: string } {
   const dir = mkdtempSync(join(tmpdir(), 'seisift-libmseed-'));
   const exe = join(dir, 'write-fixtures');
-  try {
-    execFileSync('cc', ['-O1', '-o', exe, SOURCE, '-lmseed', '-lm'], { stdio: 'pipe' });
-  } catch (err) {
-    const detail = err instanceof Error ? err.message : String(err);
-    throw new Error(`cannot compile ${SOURCE} against libmseed (install Debian libmseed-dev and a C compiler): ${detail}`);
+  let compiled = false;
+  let detail = '';
+  for (const compiler of ['cc', 'gcc']) {
+    try {
+      execFileSync(compiler, ['-O1', '-o', exe, SOURCE, '-lmseed', '-lm'], { stdio: 'pipe' });
+      compiled = true;
+      break;
+    } catch (err) {
+      detail += `${compiler}: ${err instanceof Error ? err.message : String(err)}\n`;
+    }
+  }
+  if (!compiled) {
+    throw new Error(`cannot compile ${SOURCE} against libmseed (install Debian libmseed-dev and gcc):\n${detail}`);
   }
   let n = 0;
   const dump = (bytes: Uint8Array): LibmseedDump => {
