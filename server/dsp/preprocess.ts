@@ -92,10 +92,17 @@ export function preprocessTrace(x: Float64Array, taperAlpha: number): Float64Arr
   detrendLinearInto(x, y);
   const n = y.length;
   if (n <= 1 || taperAlpha <= 0) return y;
-  const w = tukeyWindow(n, taperAlpha);
-  // Only the tapered ends differ from 1: touch just those samples.
-  const width = taperAlpha >= 1 ? n : Math.floor((taperAlpha * (n - 1)) / 2) + 1;
-  for (let i = 0; i < Math.min(width, n); i++) y[i] = (y[i] as number) * (w[i] as number);
-  for (let i = Math.max(n - width, width); i < n; i++) y[i] = (y[i] as number) * (w[i] as number);
+  if (taperAlpha >= 1) {
+    const w = tukeyWindow(n, taperAlpha);
+    for (let i = 0; i < n; i++) y[i] = (y[i] as number) * (w[i] as number);
+    return y;
+  }
+  // Only the tapered ends differ from 1: the same formulas as tukeyWindow, at those samples only.
+  const m1 = n - 1;
+  const width = Math.floor((taperAlpha * m1) / 2);
+  for (let i = 0; i <= width; i++) y[i] = (y[i] as number) * 0.5 * (1 + Math.cos(Math.PI * (-1 + (2 * i) / taperAlpha / m1)));
+  for (let i = n - width - 1; i < n; i++) {
+    y[i] = (y[i] as number) * 0.5 * (1 + Math.cos(Math.PI * (-2 / taperAlpha + 1 + (2 * i) / taperAlpha / m1)));
+  }
   return y;
 }

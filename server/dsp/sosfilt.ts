@@ -4,8 +4,7 @@ import type { Sos } from './butterworth';
  * Apply second-order sections causally from zero initial state, as `scipy.signal.sosfilt(sos, x)`:
  * each section is run in transposed direct form II,
  *   y[n] = b0·x[n] + s1;  s1 = b1·x[n] − a1·y[n] + s2;  s2 = b2·x[n] − a2·y[n]
- * (coefficients normalised so a0 = 1), sections in order, section by section over the whole trace
- * (one pass per section, in place on the output copy). Units: those of `x`. `x` is not mutated.
+ * (coefficients normalised so a0 = 1), sections in order. Units: those of `x`. `x` is not mutated.
  * Throws when a section has a0 = 0.
  */
 export function sosfilt(sos: Sos, x: Float64Array): Float64Array {
@@ -14,19 +13,42 @@ export function sosfilt(sos: Sos, x: Float64Array): Float64Array {
   return y;
 }
 
-/** `sosfilt` overwriting `y` with the filtered trace (no allocation). Throws when a section has a0 = 0. */
+/**
+ * `sosfilt` overwriting `y` with the filtered trace (no allocation). Sections run two per pass over
+ * the trace (each sample goes through section s, then s+1, with both states in locals: the same
+ * arithmetic in the same order as one section per pass, about twice as fast).
+ * Throws when a section has a0 = 0.
+ */
 export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
   const cf = sos.coefficients;
   const n = y.length;
-  for (let s = 0; s < sos.sections; s++) {
+  const coef = (s: number): [number, number, number, number, number] => {
     const o = s * 6;
     const a0 = cf[o + 3] as number;
     if (a0 === 0) throw new RangeError(`second-order section ${s} has a0 = 0`);
-    const b0 = (cf[o] as number) / a0;
-    const b1 = (cf[o + 1] as number) / a0;
-    const b2 = (cf[o + 2] as number) / a0;
-    const a1 = (cf[o + 4] as number) / a0;
-    const a2 = (cf[o + 5] as number) / a0;
+    return [(cf[o] as number) / a0, (cf[o + 1] as number) / a0, (cf[o + 2] as number) / a0, (cf[o + 4] as number) / a0, (cf[o + 5] as number) / a0];
+  };
+  let s = 0;
+  for (; s + 1 < sos.sections; s += 2) {
+    const [b0, b1, b2, a1, a2] = coef(s);
+    const [c0, c1, c2, d1, d2] = coef(s + 1);
+    let s1 = 0;
+    let s2 = 0;
+    let t1 = 0;
+    let t2 = 0;
+    for (let i = 0; i < n; i++) {
+      const xi = y[i] as number;
+      const yi = b0 * xi + s1;
+      s1 = b1 * xi - a1 * yi + s2;
+      s2 = b2 * xi - a2 * yi;
+      const zi = c0 * yi + t1;
+      t1 = c1 * yi - d1 * zi + t2;
+      t2 = c2 * yi - d2 * zi;
+      y[i] = zi;
+    }
+  }
+  if (s < sos.sections) {
+    const [b0, b1, b2, a1, a2] = coef(s);
     let s1 = 0;
     let s2 = 0;
     for (let i = 0; i < n; i++) {

@@ -1,5 +1,6 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { qualityChecks, type QcOptions } from '../../../server/dsp/qc';
+import { medianAbsoluteDeviation, qualityChecks, type QcOptions } from '../../../server/dsp/qc';
 import { lcgUniform } from './fixture-signal';
 
 const opts: QcOptions = { flatTopSamples: 3, spikeK: 20 };
@@ -64,5 +65,28 @@ describe('quality checks (definitions in server/dsp/qc.ts)', () => {
   it('a window shorter than the LTA is flagged', () => {
     const f = qualityChecks(noise(1000), 100, [], { ...opts, minSamples: 3000 });
     expect(f.find((q) => q.code === 'short-window')?.message).toMatch(/shorter than the 30 s LTA window/);
+  });
+});
+
+describe('median absolute deviation (selection-based)', () => {
+  const sortedMedian = (v: number[]): number => {
+    const s = [...v].sort((a, b) => a - b);
+    const n = s.length;
+    return n % 2 ? (s[(n - 1) / 2] as number) : ((s[n / 2 - 1] as number) + (s[n / 2] as number)) / 2;
+  };
+  it('hand-worked: [1, 2, 3, 4, 100] → 1; [1, 2, 3, 4] → 1', () => {
+    expect(medianAbsoluteDeviation(Float64Array.from([1, 2, 3, 4, 100]))).toBe(1);
+    expect(medianAbsoluteDeviation(Float64Array.from([1, 2, 3, 4]))).toBe(1);
+  });
+  it('equals the sort-based definition for any input, and leaves the input alone', () => {
+    fc.assert(
+      fc.property(fc.array(fc.integer({ min: -50, max: 50 }), { minLength: 1, maxLength: 200 }), (v) => {
+        const x = Float64Array.from(v);
+        const med = sortedMedian(v);
+        expect(medianAbsoluteDeviation(x)).toBe(sortedMedian(v.map((a) => Math.abs(a - med))));
+        expect(Array.from(x)).toEqual(v);
+      }),
+      { numRuns: 300 },
+    );
   });
 });
