@@ -70,4 +70,16 @@ describe('decodeWaveform format sniffing and refusals', () => {
     expect(streams[0]?.samples.length).toBe(100);
     expectParseError(log, /no samples/u);
   });
+
+  it('decodes from a Node Buffer that views the middle of a larger ArrayBuffer', () => {
+    const file = readFileSync(join(FIXTURES, 'int16-le-512.mseed'));
+    const padded = Buffer.alloc(file.length + 13);
+    file.copy(padded, 7);
+    const view = padded.subarray(7, 7 + file.length); // byteOffset 7: unaligned for DataView reads
+    expect(view.byteOffset % 4).not.toBe(0);
+    const a = decodeWaveform(view)[0];
+    const b = decodeWaveform(new Uint8Array(file))[0];
+    expect(Array.from(a?.samples ?? [])).toEqual(Array.from(b?.samples ?? []));
+    expect(a?.samples.length).toBe(700);
+  });
 });
