@@ -268,6 +268,31 @@ describe('/design in a browser', () => {
     await page.close();
   });
 
+  it('previews the shell for a signed-in supervisor with the sections of their roles', async () => {
+    const { page } = await openPage(1440, 900, 'dark');
+    await gotoDesign(page);
+    const preview = page.getByRole('region', { name: 'App shell' }).locator('[data-theme="dark"]');
+    // Sample user with roles supervisor + analyst: the union of both roles' sections (issue 10).
+    expect(await preview.getByRole('link').allTextContents()).toEqual([
+      'Seisift',
+      'Home',
+      'Queue',
+      'Stations',
+      'Upload',
+      'Review & catalogue',
+      'Thresholds',
+      'Dashboard',
+      'Inbox',
+      'Audit log',
+      'Account',
+    ]);
+    expect(await preview.getByRole('list', { name: 'Your roles' }).getByRole('listitem').allTextContents()).toEqual(['supervisor', 'analyst']);
+    expect(await preview.getByRole('status').first().textContent()).toContain('Live');
+    await preview.scrollIntoViewIfNeeded();
+    await screenshot(page, 'design-shell-preview-dark');
+    await page.close();
+  });
+
   it('shows only routed sections in the navigation and a 404 page for unknown paths', async () => {
     const { page } = await openPage(1280, 720, 'dark');
     await page.goto(`${baseUrl}/`, { waitUntil: 'networkidle' });

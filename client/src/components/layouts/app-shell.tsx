@@ -1,5 +1,5 @@
 import type { ReactNode } from 'react';
-import { NavLink } from 'react-router';
+import { Link, NavLink } from 'react-router';
 import { roleLabels } from '../../../../shared/auth/roles';
 import { navFor, navGroups, type NavItem } from '../../config/paths';
 import { cx } from '../../lib/cx';
@@ -20,10 +20,10 @@ export type TopBarProps = {
 export function TopBar({ user, connection }: TopBarProps) {
   return (
     <div className="flex h-11 items-center gap-4 border-b border-line bg-surface px-3">
-      <a href="/" className="flex items-center gap-2 rounded-xs text-ink no-underline">
+      <Link to="/" className="flex items-center gap-2 rounded-xs text-ink no-underline">
         <SeisiftMark />
         <span className="text-md font-semibold tracking-wide">Seisift</span>
-      </a>
+      </Link>
       <div className="ml-auto flex items-center gap-4">
         {connection ? <ConnectionIndicator state={connection} /> : null}
         <ThemeSwitch />
