@@ -2,7 +2,11 @@ import express, { type Express } from 'express';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { pinoHttp } from 'pino-http';
+import { createAuthKit } from './auth/kit';
+import { sessionCookieName } from './auth/sessions';
 import type { AppContext } from './context';
+import { authenticate } from './middleware/auth';
+import { csrfProtection } from './middleware/csrf';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
 import { healthRouter } from './routes/health/router';
 
@@ -25,6 +29,11 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean } = {})
     }),
   );
   app.use(express.json({ limit: '1mb' }));
+
+  // Who is asking (session cookie; issue 5 adds `bearer:` for ingest tokens) and the CSRF check.
+  const auth = createAuthKit(ctx);
+  app.use('/api', authenticate({ db: ctx.database.db, sessions: auth.sessions }));
+  app.use('/api', csrfProtection({ sessionCookieName, extraOrigins: ctx.env.SEISIFT_PUBLIC_URL ? [ctx.env.SEISIFT_PUBLIC_URL] : [] }));
 
   app.use('/api/health', healthRouter(ctx));
   app.use('/api', apiNotFound);

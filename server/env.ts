@@ -43,6 +43,14 @@ export const envSchema = z.object({
   SEISIFT_MAX_UPLOAD_BYTES: positiveInt(25 * 1024 * 1024),
   /** Most files in one upload request. */
   SEISIFT_MAX_UPLOAD_FILES: positiveInt(20),
+  /** Sessions end after this many hours without a request (sliding expiry). */
+  SEISIFT_SESSION_IDLE_HOURS: positiveInt(24),
+  /** Failed sign-ins allowed per account within SEISIFT_SIGNIN_WINDOW_S before 429. */
+  SEISIFT_SIGNIN_MAX_PER_ACCOUNT: positiveInt(10),
+  /** Sign-in attempts allowed per client address within SEISIFT_SIGNIN_WINDOW_S before 429. */
+  SEISIFT_SIGNIN_MAX_PER_ADDRESS: positiveInt(50),
+  /** Length of the sign-in rate-limit window, seconds. */
+  SEISIFT_SIGNIN_WINDOW_S: positiveInt(900),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 

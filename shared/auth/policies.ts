@@ -1,0 +1,116 @@
+import { z } from 'zod';
+import type { Role } from './roles';
+
+/**
+ * The one policy module. Every authorization decision in Seisift is one of these pure predicates:
+ * the server wraps them (server/policies/authorize.ts → 403), the client calls the same functions
+ * only to hide controls. No role checks anywhere else.
+ *
+ * Who may do what (issue 3, "Roles and what each may do"):
+ * - operator: only the stations assigned to them — view, edit, upload, ingest tokens, their items;
+ *   may register a new station.
+ * - analyst: works the queue for every station; may view every station.
+ * - supervisor: every analyst right, plus review, thresholds, catalogue export, audit log.
+ * - admin: people, roles, station assignments, invitations, the station registry and its tokens,
+ *   the audit log and the local mailbox. Admin implies no analyst/supervisor right, and no role
+ *   implies admin.
+ */
+export const actions = [
+  'station.view',
+  'station.create',
+  'station.edit',
+  'upload.create',
+  'token.manage',
+  'queue.view',
+  'queue.claim',
+  'queue.label',
+  'queue.dismiss',
+  'queue.escalate',
+  'review.evaluate',
+  'inbox.view',
+  'dashboard.view',
+  'thresholds.edit',
+  'catalogue.export',
+  'audit.view',
+  'users.manage',
+  'mailbox.view',
+] as const;
+
+/** One action name. */
+export type Action = (typeof actions)[number];
+
+/** zod schema of an action name. */
+export const actionSchema = z.enum(actions);
+
+/** Who is asking: their roles and (for operators) the station ids assigned to them. */
+export type PolicyActor = {
+  roles: readonly Role[];
+  /** Ids of the stations assigned to this user (station_assignments). */
+  stationIds: readonly number[];
+};
+
+/** What an action is about, when it is about one station. */
+export type PolicyTarget = { stationId: number };
+
+/**
+ * How each role reaches an action: `'all'` for every station (or an action with no station),
+ * `'assigned'` only for stations assigned to the user. A role missing from an action's entry has
+ * no right to it.
+ */
+export const policyTable: Record<Action, Partial<Record<Role, 'all' | 'assigned'>>> = {
+  'station.view': { operator: 'assigned', analyst: 'all', supervisor: 'all', admin: 'all' },
+  'station.create': { operator: 'all', admin: 'all' },
+  'station.edit': { operator: 'assigned', admin: 'all' },
+  'upload.create': { operator: 'assigned' },
+  'token.manage': { operator: 'assigned', admin: 'all' },
+  'queue.view': { operator: 'assigned', analyst: 'all', supervisor: 'all' },
+  'queue.claim': { analyst: 'all', supervisor: 'all' },
+  'queue.label': { analyst: 'all', supervisor: 'all' },
+  'queue.dismiss': { analyst: 'all', supervisor: 'all' },
+  'queue.escalate': { analyst: 'all', supervisor: 'all' },
+  'review.evaluate': { supervisor: 'all' },
+  'inbox.view': { supervisor: 'all' },
+  'dashboard.view': { supervisor: 'all' },
+  'thresholds.edit': { supervisor: 'all' },
+  'catalogue.export': { supervisor: 'all' },
+  'audit.view': { supervisor: 'all', admin: 'all' },
+  'users.manage': { admin: 'all' },
+  'mailbox.view': { admin: 'all' },
+};
+
+/**
+ * Which stations `actor` may act on with `action`.
+ * @returns `'all'` (every station), the list of assigned station ids, or `'none'`
+ */
+export function stationScope(actor: PolicyActor | null, action: Action): 'all' | readonly number[] | 'none' {
+  if (!actor) return 'none';
+  const entry = policyTable[action];
+  let assigned = false;
+  for (const role of actor.roles) {
+    const reach = entry[role];
+    if (reach === 'all') return 'all';
+    if (reach === 'assigned') assigned = true;
+  }
+  return assigned ? actor.stationIds : 'none';
+}
+
+/**
+ * Whether `actor` may do `action`.
+ * - With a `target`, the answer is for that station: a role with `'assigned'` reach needs the
+ *   station among `actor.stationIds`.
+ * - Without a target the answer is whether one of the actor's roles reaches the action at all
+ *   (an operator with no station yet may still open the stations list and see it empty).
+ *   Handlers acting on one station must pass it; lists filter with `stationScope`.
+ * Nobody signed in (`null`) may do nothing.
+ */
+export function can(actor: PolicyActor | null, action: Action, target?: PolicyTarget): boolean {
+  const scope = stationScope(actor, action);
+  if (scope === 'none') return false;
+  if (scope === 'all' || target === undefined) return true;
+  return scope.includes(target.stationId);
+}
+
+/** Every action one of `actor`'s roles reaches, in `actions` order (for hiding controls). */
+export function allowedActions(actor: PolicyActor | null): Action[] {
+  return actions.filter((a) => can(actor, a));
+}
