@@ -9,7 +9,7 @@ import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosRespon
 import { scoreWindow, type StationBaseline, type WindowScore } from './score';
 import { spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
 import { classicStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from './sta-lta';
-import { bandEnergy, sosfiltInPlace } from './sosfilt';
+import { bandEnergy, sosfiltInPlace, sosfiltZeroPhase } from './sosfilt';
 
 /**
  * The analysis of one window (one station's channels for one time span): the output contract of
@@ -30,6 +30,11 @@ export interface AnalyzeOptions {
   display?: boolean;
   /** Points per decimated display curve (min/max pairs), default 2000. */
   displayPoints?: number;
+  /**
+   * Filtering of the DISPLAYED band traces: `causal` (default, the traces the numbers come from) or
+   * `zero-phase` (forward-backward, no phase lag, for looking at onsets). Numbers are always causal.
+   */
+  displayFiltering?: 'causal' | 'zero-phase';
 }
 
 /** One band's edges (as used, after any cap) and energy. */
@@ -43,6 +48,8 @@ export interface BandResult {
 export interface ChannelDisplay {
   /** Samples per bucket; each bucket gives two points (min then max, in time order). */
   bucket: number;
+  /** How the displayed band traces were filtered. */
+  filtering: 'causal' | 'zero-phase';
   /** Times of the points, s from the first sample. */
   times: number[];
   trace: number[];
@@ -115,6 +122,10 @@ const MIN_SAMPLES = 16;
  */
 export function analyzeWindow(streams: readonly DecodedStream[], profile: ProcessingProfile, opts: AnalyzeOptions = {}): AnalysisResult {
   if (streams.length === 0) throw new AnalysisError('the window has no channels to analyse');
+  const stations = [...new Set(streams.map((s) => `${s.network}.${s.station}`))];
+  if (stations.length > 1) {
+    throw new AnalysisError(`a window holds one station's channels; got ${stations.length} stations (${stations.join(', ')})`);
+  }
   const designs = new Map<string, Sos>();
   const design = (order: number, edges: [number, number], type: 'bandpass' | 'bandstop', fs: number): Sos => {
     const key = `${order}|${edges[0]}|${edges[1]}|${type}|${fs}`;
@@ -140,6 +151,11 @@ function analyzeChannel(
   if (!(fs > 0) || !Number.isFinite(fs)) throw new AnalysisError(`${s.id}: sample rate ${fs} Hz is not a positive number`);
   const n = s.samples.length;
   if (n < MIN_SAMPLES) throw new AnalysisError(`${s.id}: only ${n} samples, at least ${MIN_SAMPLES} are needed`);
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(s.samples[i] as number)) {
+      throw new AnalysisError(`${s.id}: sample ${i} (${(i / fs).toFixed(3)} s) is ${s.samples[i]}, not a finite number`);
+    }
+  }
   const ltaSamples = Math.round(profile.staLta.ltaS * fs);
   const qc = qualityChecks(s.samples, fs, s.discontinuities, {
     fullScaleCounts: profile.qc.fullScaleCounts,
@@ -175,10 +191,14 @@ function analyzeChannel(
     sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
   }
   const rejectedCopy = profile.bandReject.length > 0 ? Float64Array.from(rejected) : rejected;
+  const lowSos = design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs);
+  const highSos = design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
+  const zeroPhaseDisplay = opts.display === true && opts.displayFiltering === 'zero-phase';
+  const rejectedForDisplay = zeroPhaseDisplay ? Float64Array.from(rejected) : null;
   const lowY = Float64Array.from(rejected);
-  sosfiltInPlace(design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs), lowY);
+  sosfiltInPlace(lowSos, lowY);
   const highY = rejected;
-  sosfiltInPlace(design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs), highY);
+  sosfiltInPlace(highSos, highY);
   const eLow = bandEnergy(lowY, fs);
   const eHigh = bandEnergy(highY, fs);
   const ratio = eLow > 0 ? eHigh / eLow : null;
@@ -264,12 +284,15 @@ function analyzeChannel(
     const bucket = Math.max(1, Math.ceil((2 * n) / points));
     const idx = minMaxIndices(pre, bucket);
     const pick = (y: Float64Array): number[] => idx.map((i) => y[i] as number);
+    const lowShown = rejectedForDisplay ? sosfiltZeroPhase(lowSos, rejectedForDisplay) : lowY;
+    const highShown = rejectedForDisplay ? sosfiltZeroPhase(highSos, rejectedForDisplay) : highY;
     result.display = {
       bucket,
+      filtering: rejectedForDisplay ? 'zero-phase' : 'causal',
       times: idx.map((i) => i / fs),
       trace: pick(pre),
-      low: pick(lowY),
-      high: pick(highY),
+      low: pick(lowShown),
+      high: pick(highShown),
       staLta: maxPerBucket(cf, idx, bucket),
       spectrogram: n >= 16 ? spectrogram(pre, fs) : null,
     };

@@ -162,6 +162,20 @@ describe('analyzeWindow: output contract, flags and errors', () => {
     expect(d?.trace.length).toBe(d?.times.length);
     expect(d?.staLta.length).toBe(d?.trace.length);
     expect(d?.spectrogram?.db.length).toBeGreaterThan(0);
+    expect(d?.filtering).toBe('causal');
+    const zp = analyzeWindow([stream('XX.KV01.00.HHZ', makeSignal(noiseSpec(3)), 100)], defaultProcessingProfile, { display: true, displayFiltering: 'zero-phase' });
+    expect(zp.channels[0]?.display?.filtering).toBe('zero-phase');
+    expect(zp.channels[0]?.display?.high).not.toEqual(res.channels[0]?.display?.high);
+    // the numbers do not change with the display choice
+    expect(zp.channels[0]?.bands).toEqual(res.channels[0]?.bands);
+  });
+
+  it('refuses channels of several stations in one window, and non-finite samples', () => {
+    const x = makeSignal(noiseSpec(4));
+    expect(() => analyzeWindow([stream('XX.KV01.00.HHZ', x, 100), stream('XX.KV02.00.HHZ', x, 100)], defaultProcessingProfile)).toThrow(/one station's channels; got 2 stations \(XX\.KV01, XX\.KV02\)/);
+    const bad = Float64Array.from(x);
+    bad[50] = NaN;
+    expect(() => analyzeWindow([stream('XX.KV01.00.HHZ', bad, 100)], defaultProcessingProfile)).toThrow(/sample 50 \(0\.500 s\) is NaN/);
   });
 
   it('refuses an empty window and a channel that is too short, naming it', () => {
