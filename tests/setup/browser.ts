@@ -69,6 +69,13 @@ const axeResultSchema = z.object({
   ),
 });
 
+declare global {
+  interface Window {
+    /** axe-core, once checkA11y has injected it into the page. */
+    axe?: { run: (context: Document, options: object) => Promise<unknown> };
+  }
+}
+
 let axeSource: string | null = null;
 
 async function loadAxe(): Promise<string> {
@@ -88,8 +95,8 @@ export async function checkA11y(page: Page): Promise<A11yViolation[]> {
   const hasAxe = await page.evaluate(() => 'axe' in window);
   if (!hasAxe) await page.addScriptTag({ content: await loadAxe() });
   const raw: unknown = await page.evaluate(async () => {
-    const w = window as unknown as { axe: { run: (ctx: Document, opts: object) => Promise<unknown> } };
-    return w.axe.run(document, {
+    if (!window.axe) throw new Error('axe-core did not load into the page');
+    return window.axe.run(document, {
       runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa', 'best-practice'] },
       resultTypes: ['violations'],
     });
