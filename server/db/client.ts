@@ -7,9 +7,10 @@ import * as sessions from './schema/sessions';
 import * as stations from './schema/stations';
 import * as uploads from './schema/uploads';
 import * as users from './schema/users';
+import * as windowFeatures from './schema/window-features';
 
 /** Every table, for drizzle's relational queries. */
-export const schema = { ...changeLog, ...users, ...sessions, ...stations, ...uploads, ...queueItems, ...auditLog };
+export const schema = { ...changeLog, ...users, ...sessions, ...stations, ...uploads, ...queueItems, ...auditLog, ...windowFeatures };
 
 /** The app's database handle. */
 export type Database = MySql2Database<typeof schema>;
