@@ -191,6 +191,42 @@ function TypePreview() {
   );
 }
 
+const spacingSteps = [1, 2, 3, 4, 6, 8] as const;
+const radii = [
+  ['xs', 'rounded-xs', '2 px'],
+  ['sm', 'rounded-sm', '3 px'],
+  ['md', 'rounded-md', '5 px'],
+  ['lg', 'rounded-lg', '8 px'],
+  ['full', 'rounded-full', 'pills'],
+] as const;
+
+function SpacingPreview() {
+  return (
+    <div className="flex flex-col gap-3">
+      <ul className="flex flex-wrap items-end gap-3" aria-label="Spacing steps">
+        {spacingSteps.map((step) => (
+          <li key={step} className="flex flex-col items-center gap-1">
+            <span aria-hidden="true" className="block bg-accent" style={{ width: `calc(var(--spacing) * ${step})`, height: `calc(var(--spacing) * ${step})` }} />
+            <code className="text-xs text-ink-muted">
+              {step} · {step * 4} px
+            </code>
+          </li>
+        ))}
+      </ul>
+      <ul className="flex flex-wrap gap-3" aria-label="Radii">
+        {radii.map(([name, cls, size]) => (
+          <li key={name} className="flex flex-col items-center gap-1">
+            <span aria-hidden="true" className={cx('block h-7 w-12 border-[1.5px] border-line-strong bg-raised', cls)} />
+            <code className="text-xs text-ink-muted">
+              {name} · {size}
+            </code>
+          </li>
+        ))}
+      </ul>
+    </div>
+  );
+}
+
 function MarkersPreview() {
   return (
     <div className="flex flex-col gap-2">
@@ -491,6 +527,7 @@ export function DesignRoute() {
       </header>
       <Pair title="Type" render={() => <TypePreview />} />
       <Pair title="Colour tokens" render={() => <Swatches />} />
+      <Pair title="Spacing and radii" render={() => <SpacingPreview />} />
       <Pair title="Flags, item states and the caution" render={() => <MarkersPreview />} />
       <Pair title="Buttons and key hints" render={() => <ButtonsPreview />} />
       <Pair title="Badges and connection state" render={() => <BadgesPreview />} />
