@@ -29,6 +29,8 @@ export const queueItems = mysqlTable(
     claimedAt: timeColumn('claimed_at'),
     /** The analyst's label (event type, certainty, picks, note) as JSON, once labelled. */
     label: jsonColumn<unknown>('label'),
+    /** The label's QuakeML event type, `noise` for a dismissal, null otherwise (for the label filter; issue 6). */
+    labelType: varchar('label_type', { length: 40 }),
     updatedByUserId: varchar('updated_by_user_id', { length: 255 }).references(() => users.id, { onDelete: 'set null' }),
     createdAt: timeColumn('created_at').notNull(),
     updatedAt: timeColumn('updated_at').notNull(),
@@ -38,5 +40,13 @@ export const queueItems = mysqlTable(
     index('queue_items_state_created_idx').on(t.state, t.createdAt),
     index('queue_items_station_created_idx').on(t.stationId, t.createdAt),
     index('queue_items_window_start_idx').on(t.windowStart),
+    // Issue 6: keyset pages of the queue list (score or age order, id as tie-breaker) under the
+    // usual filters, and the label filter.
+    index('queue_items_state_score_id_idx').on(t.state, t.score, t.id),
+    index('queue_items_state_created_id_idx').on(t.state, t.createdAt, t.id),
+    index('queue_items_station_state_score_idx').on(t.stationId, t.state, t.score),
+    index('queue_items_flag_state_score_idx').on(t.flag, t.state, t.score),
+    index('queue_items_label_type_idx').on(t.labelType, t.state),
+    index('queue_items_state_claimed_idx').on(t.state, t.claimedAt),
   ],
 );

@@ -1,0 +1,172 @@
+import { z } from 'zod';
+import { flagSchema } from './flags';
+import { itemStateSchema, type ItemState } from './item-states';
+import { dismissalSchema, escalationSchema, eventLabelSchema, quakemlEventTypes, storedLabelSchema } from './label';
+
+/**
+ * The review queue's wire formats, shared by the API (server/routes/queue) and the client
+ * (client/src/features/queue, client/src/features/review).
+ */
+
+/** Sort orders of the queue list: highest score first, or oldest first (by arrival). */
+export const queueSorts = ['score', 'age'] as const;
+
+/** One sort order. */
+export type QueueSort = (typeof queueSorts)[number];
+
+/** Largest page of the queue list. */
+export const MAX_QUEUE_PAGE = 500;
+
+/** `label` filter values: an event type, `noise` (dismissed as noise) or `none` (no label yet). */
+export const labelFilterValues = [...quakemlEventTypes, 'noise', 'none'] as const;
+
+const csv = <T extends z.ZodType>(item: T) =>
+  z.preprocess((v) => (typeof v === 'string' ? (v === '' ? [] : v.split(',')) : v), z.array(item));
+
+const isoTime = z
+  .string()
+  .refine((s) => /^\d{4}-\d{2}-\d{2}(T\d{2}:\d{2}(:\d{2}(\.\d{1,6})?)?Z?)?$/.test(s) && !Number.isNaN(Date.parse(s)), 'must be an ISO 8601 UTC time, e.g. 2026-03-14T09:26:53.589Z');
+
+const finiteNumber = z.preprocess((v) => (typeof v === 'string' && v.trim() !== '' ? Number(v) : v), z.number().finite('must be a number'));
+
+/**
+ * Query of GET /api/queue. Lists are comma-separated (`state=new,in review`). Station codes are
+ * `KV01` or `XX.KV01`. Times filter on the window start, `from` inclusive and `to` exclusive.
+ */
+export const queueQuerySchema = z
+  .object({
+    state: csv(itemStateSchema).optional(),
+    station: csv(z.string().regex(/^([A-Z0-9]{1,2}\.)?[A-Z0-9]{1,5}$/, 'must be a station code like KV01 or XX.KV01')).optional(),
+    flag: csv(flagSchema).optional(),
+    label: csv(z.enum(labelFilterValues)).optional(),
+    scoreMin: finiteNumber.optional(),
+    scoreMax: finiteNumber.optional(),
+    from: isoTime.optional(),
+    to: isoTime.optional(),
+    sort: z.enum(queueSorts).default('score'),
+    cursor: z.string().max(200).optional(),
+    limit: z.preprocess((v) => (typeof v === 'string' ? Number(v) : v), z.number().int().min(1).max(MAX_QUEUE_PAGE)).default(100),
+  })
+  .refine((q) => q.scoreMin === undefined || q.scoreMax === undefined || q.scoreMin <= q.scoreMax, { message: 'scoreMin must not exceed scoreMax', path: ['scoreMin'] })
+  .refine((q) => q.from === undefined || q.to === undefined || Date.parse(q.from) < Date.parse(q.to), { message: 'from must be before to', path: ['from'] });
+
+/** A parsed queue query. */
+export type QueueQuery = z.infer<typeof queueQuerySchema>;
+
+/** Who claimed or last changed an item. */
+export const personRefSchema = z.object({ id: z.string(), displayName: z.string() });
+
+/** One queue row as the list and the live channel show it. */
+export const queueRowSchema = z.object({
+  id: z.number().int(),
+  state: itemStateSchema,
+  score: z.number(),
+  flag: flagSchema,
+  reasons: z.array(z.string()),
+  station: z.string(),
+  stationId: z.number().int(),
+  windowStart: z.string(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+  version: z.number().int(),
+  claimedBy: personRefSchema.nullable(),
+  claimedAt: z.string().nullable(),
+  updatedBy: personRefSchema.nullable(),
+  labelType: z.string().nullable(),
+});
+
+/** One queue row. */
+export type QueueRow = z.infer<typeof queueRowSchema>;
+
+/** Items per state under the list's non-state filters. */
+export const stateCountsSchema = z.record(itemStateSchema, z.number().int());
+
+/** Counts per state. */
+export type StateCounts = Record<ItemState, number>;
+
+/** Response of GET /api/queue. */
+export const queuePageSchema = z.object({
+  items: z.array(queueRowSchema),
+  /** Pass as `cursor` for the next page; null on the last page. */
+  nextCursor: z.string().nullable(),
+  counts: stateCountsSchema,
+  /** Matching items in every state the `state` filter selects. */
+  total: z.number().int(),
+});
+
+/** A queue page. */
+export type QueuePage = z.infer<typeof queuePageSchema>;
+
+/** Item detail: the row, its label, the window and its analysis (the engine's output contract). */
+export const queueItemDetailSchema = queueRowSchema.extend({
+  label: storedLabelSchema.nullable(),
+  windowId: z.number().int(),
+  windowEnd: z.string(),
+  analysis: z.unknown(),
+  /** Per stream id: whether a sensitivity is known (the spectrum then shows NLNM/NHNM). */
+  channels: z.array(z.object({ streamId: z.string(), sampleRateHz: z.number(), startTime: z.string(), sampleCount: z.number().int(), hasSensitivity: z.boolean() })),
+  /** Idle minutes after which a claim lapses. */
+  claimIdleMinutes: z.number(),
+});
+
+/** Item detail. */
+export type QueueItemDetail = z.infer<typeof queueItemDetailSchema>;
+
+/** Every write names the version the client saw (optimistic locking). */
+const versioned = z.object({ version: z.number().int().positive('must be the item version you saw') });
+
+/** Body of POST .../claim and .../release. */
+export const versionBodySchema = versioned;
+/** Body of POST .../label. */
+export const labelBodySchema = versioned.extend({ label: eventLabelSchema });
+/** Body of POST .../dismiss. */
+export const dismissBodySchema = versioned.extend(dismissalSchema.shape);
+/** Body of POST .../escalate. */
+export const escalateBodySchema = versioned.extend(escalationSchema.shape);
+
+/** Query of GET /api/queue/items/:id/traces: a time range (s from the window start) and the plot width. */
+export const tracesQuerySchema = z
+  .object({
+    from: finiteNumber.optional(),
+    to: finiteNumber.optional(),
+    points: z.preprocess((v) => (typeof v === 'string' ? Number(v) : v), z.number().int().min(100).max(20_000)).default(2000),
+  })
+  .refine((q) => q.from === undefined || q.to === undefined || q.from < q.to, { message: 'from must be before to', path: ['from'] });
+
+/** A parsed traces query. */
+export type TracesQuery = z.infer<typeof tracesQuerySchema>;
+
+/** One channel's display traces. */
+export const channelTracesSchema = z.object({
+  streamId: z.string(),
+  sampleRateHz: z.number(),
+  startTime: z.string(),
+  /** Samples per display bucket (1 = full resolution). */
+  bucket: z.number().int(),
+  /** Times, s from the window's first sample (each bucket gives its min and max in time order). */
+  times: z.array(z.number()),
+  raw: z.array(z.number()),
+  low: z.array(z.number()),
+  high: z.array(z.number()),
+  staLta: z.array(z.number()),
+  units: z.string(),
+  bands: z.object({ low: z.tuple([z.number(), z.number()]), high: z.tuple([z.number(), z.number()]) }),
+  staLtaLevels: z.object({ on: z.number(), off: z.number(), method: z.string() }),
+  triggers: z.array(z.object({ on: z.number(), off: z.number().nullable() })),
+  spectrogram: z.object({ times: z.array(z.number()), freqs: z.array(z.number()), db: z.array(z.number()) }).nullable(),
+});
+
+/** Response of GET /api/queue/items/:id/traces. */
+export const tracesResponseSchema = z.object({
+  from: z.number(),
+  to: z.number(),
+  filtering: z.string(),
+  channels: z.array(channelTracesSchema),
+});
+
+/** Display traces of an item. */
+export type TracesResponse = z.infer<typeof tracesResponseSchema>;
+
+/** The summary the live channel carries with each item change, enough to patch a queue row. */
+export const itemChangeSummarySchema = queueRowSchema;
+
