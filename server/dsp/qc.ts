@@ -61,6 +61,7 @@ const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toS
  * - spikes: |x_i − med5_i| > k·1.4826·MAD(x − med5), med5 the 5-sample running median (MAD from at
  *   most ~4096 evenly spaced residuals)
  *   (robust MAD rule; 1.4826 makes the MAD a consistent estimate of σ for normal noise, common practice;
+ *   when the MAD is 0, as for quiet quantised data, σ = 1.2533 × the mean absolute residual;
  *   k = 20 by default so that the peaks of a real arrival are not called spikes), and the sample must
  *   stand alone (4× the residuals 2–10 samples away), so a strong high-frequency signal is not a spike;
  * - dc-offset: |mean| > 5 × the standard deviation (info), or > 10 % of full scale when given (warning);
@@ -212,9 +213,12 @@ function runsWhere(
   return { count, samples: total, first };
 }
 
-/** Median of three values. */
+const min2 = (a: number, b: number): number => (a < b ? a : b);
+const max2 = (a: number, b: number): number => (a > b ? a : b);
+
+/** Median of three values (finite inputs). */
 function median3(a: number, b: number, c: number): number {
-  return Math.max(Math.min(a, b), Math.min(Math.max(a, b), c));
+  return max2(min2(a, b), min2(max2(a, b), c));
 }
 
 /**
@@ -222,7 +226,7 @@ function median3(a: number, b: number, c: number): number {
  * (the smaller of the two pair-minima and the larger of the two pair-maxima can never be the median).
  */
 function median5(a: number, b: number, c: number, d: number, e: number): number {
-  return median3(e, Math.max(Math.min(a, b), Math.min(c, d)), Math.min(Math.max(a, b), Math.max(c, d)));
+  return median3(e, max2(min2(a, b), min2(c, d)), min2(max2(a, b), max2(c, d)));
 }
 
 /**
@@ -242,10 +246,21 @@ function spikes(x: Float64Array, k: number): { count: number; first: number } {
   // sampling error of the estimate is immaterial, and it keeps long windows fast.
   const inner = r.subarray(2, n - 2);
   const stride = Math.max(1, Math.ceil(inner.length / 4096));
-  const sample = stride === 1 ? inner : Float64Array.from({ length: Math.ceil(inner.length / stride) }, (_, i) => inner[i * stride] as number);
-  const mad = medianAbsoluteDeviation(sample);
-  if (!(mad > 0)) return { count: 0, first: -1 };
-  const lim = k * 1.4826 * mad;
+  let sample = inner;
+  if (stride > 1) {
+    sample = new Float64Array(Math.ceil(inner.length / stride));
+    for (let i = 0; i < sample.length; i++) sample[i] = inner[i * stride] as number;
+  }
+  let sigma = 1.4826 * medianAbsoluteDeviation(sample);
+  if (!(sigma > 0)) {
+    // Quantised quiet data can have MAD 0 (most residuals exactly 0): fall back to the mean absolute
+    // residual scaled for normal consistency (√(π/2) ≈ 1.2533, common practice).
+    let sum = 0;
+    for (let i = 0; i < sample.length; i++) sum += Math.abs(sample[i] as number);
+    sigma = (1.2533 * sum) / sample.length;
+  }
+  if (!(sigma > 0)) return { count: 0, first: -1 };
+  const lim = k * sigma;
   let count = 0;
   let first = -1;
   for (let i = 2; i < n - 2; i++) {

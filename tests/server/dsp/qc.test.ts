@@ -54,6 +54,12 @@ describe('quality checks (definitions in server/dsp/qc.ts)', () => {
     expect(codes(qualityChecks(tone, 100, [], opts))).not.toContain('spikes');
   });
 
+  it('spikes are found in quiet quantised data whose residual MAD is 0 (mean-absolute fallback)', () => {
+    const x = Float64Array.from({ length: 3000 }, (_, i) => (i % 10 === 0 ? 1 : 0));
+    x[1500] = 500;
+    expect(qualityChecks(x, 100, [], opts).find((q) => q.code === 'spikes')).toMatchObject({ count: 1, sampleIndex: 1500 });
+  });
+
   it('a DC offset large against the signal is reported; an expected sample rate mismatch is an error', () => {
     const x = noise(5000).map((v) => v + 1e6);
     const f = qualityChecks(x, 100, [], { ...opts, expectedSampleRateHz: 200 });
