@@ -265,6 +265,9 @@ describe('/design in a browser', () => {
     await screenshot(page, 'design-form-errors-toast-light');
     const after = await checkA11y(page);
     expect(after, JSON.stringify(after, null, 2)).toEqual([]);
+    // Errors stay until closed; the close button names the toast it closes.
+    await page.getByRole('button', { name: 'Close: Someone else labelled this item' }).click();
+    await alert.waitFor({ state: 'detached' });
     await page.close();
   });
 

@@ -42,14 +42,14 @@ export function TBody(props: ComponentPropsWithRef<'tbody'>) {
   return <tbody {...props} />;
 }
 
-/** Props of <Tr>: `selected` marks the row the keyboard cursor is on. */
+/** Props of <Tr>: `selected` marks the row the keyboard cursor is on (aria-current="true"). */
 export type TrProps = ComponentPropsWithRef<'tr'> & { selected?: boolean };
 
 /** A row. A selected row gets the accent wash and a bar on its left edge (not colour alone). */
 export function Tr({ selected, className, ...rest }: TrProps) {
   return (
     <tr
-      aria-selected={selected}
+      aria-current={selected ? 'true' : undefined}
       className={cx(
         'h-7 border-b border-line last:border-b-0',
         selected ? 'bg-accent-wash shadow-[inset_3px_0_0_var(--sf-accent)]' : 'hover:bg-raised',

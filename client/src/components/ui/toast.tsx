@@ -35,10 +35,13 @@ const toneClass: Record<ToastTone, string> = {
 };
 const toneText: Record<ToastTone, string> = { info: 'text-info', ok: 'text-ok', warn: 'text-warn', danger: 'text-danger' };
 
-function ToastCard({ toast, onClose }: { toast: ToastItem; onClose: () => void }) {
+function ToastCard({ toast, onDismiss }: { toast: ToastItem; onDismiss: (id: number) => void }) {
   const timer = useRef<number | undefined>(undefined);
+  const onClose = useCallback(() => onDismiss(toast.id), [onDismiss, toast.id]);
+  // Stable while the toast lives, so a new toast elsewhere does not restart this one's timer.
   const start = useCallback(() => {
     if (toast.durationMs === null) return;
+    window.clearTimeout(timer.current);
     timer.current = window.setTimeout(onClose, toast.durationMs);
   }, [toast.durationMs, onClose]);
   const stop = () => window.clearTimeout(timer.current);
@@ -87,7 +90,7 @@ export function ToastProvider({ children }: { children: ReactNode }) {
       <section aria-label="Notifications" className="pointer-events-none fixed right-4 bottom-4 z-50">
         <ol aria-live="polite" className="pointer-events-auto flex flex-col gap-2">
           {toasts.map((toast) => (
-            <ToastCard key={toast.id} toast={toast} onClose={() => dismiss(toast.id)} />
+            <ToastCard key={toast.id} toast={toast} onDismiss={dismiss} />
           ))}
         </ol>
       </section>
