@@ -1,6 +1,7 @@
 import type { DatabaseClient } from './db/client';
 import type { Env } from './env';
 import type { Logger } from './logger';
+import type { RealtimeHub } from './realtime/hub';
 
 /** What every route and service may use; built once at start (or per test). */
 export interface AppContext {
@@ -9,4 +10,6 @@ export interface AppContext {
   logger: Logger;
   /** The app version (package.json). */
   version: string;
+  /** The one live-update hub: call `hub.notify()` after committing a change-log row. */
+  hub: RealtimeHub;
 }

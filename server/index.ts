@@ -1,6 +1,12 @@
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
+import type { IncomingMessage } from 'node:http';
 import { createApp } from './app';
+import { createSessionStore } from './auth/sessions';
+import type { Database } from './db/client';
+import { loadAuthUser } from './middleware/auth';
+import { createHub, type RealtimeHub } from './realtime/hub';
+import type { Logger } from './logger';
 import type { AppContext } from './context';
 import { createDatabaseClient } from './db/client';
 import { ConfigError, loadEnv } from './env';
@@ -23,6 +29,7 @@ export class ListenError extends Error {
 export async function startServer(ctx: AppContext, opts: { host: string; port: number; serveClient?: boolean }): Promise<RunningServer> {
   const app = createApp(ctx, { serveClient: opts.serveClient });
   const server = createServer(app);
+  ctx.hub.attach(server);
   await new Promise<void>((resolve, reject) => {
     server.once('error', (err: NodeJS.ErrnoException) => {
       if (err.code === 'EADDRINUSE') reject(new ListenError(`port ${opts.port} on ${opts.host} is already in use: stop the other program or set PORT`));
@@ -38,15 +45,46 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
     url,
     close: () =>
       new Promise<void>((resolve) => {
+        void ctx.hub.close();
         server.close(() => resolve());
         server.closeAllConnections();
       }),
   };
 }
 
+/**
+ * The live-update hub of one app: upgrades are authenticated with the session cookie (an active
+ * user) and allowed only from our own origin — the one the Host header names (http or https) or
+ * SEISIFT_PUBLIC_URL.
+ */
+export function createAppHub(db: Database, logger: Logger, env: ReturnType<typeof loadEnv>): RealtimeHub {
+  const sessions = createSessionStore(db, { idleHours: env.SEISIFT_SESSION_IDLE_HOURS });
+  const publicOrigin = env.SEISIFT_PUBLIC_URL ? new URL(env.SEISIFT_PUBLIC_URL).origin : null;
+  return createHub({
+    db,
+    logger,
+    async authenticate(req: IncomingMessage) {
+      const id = sessions.readCookie(req.headers.cookie);
+      if (!id) return null;
+      const session = await sessions.validate(id);
+      if (!session) return null;
+      const user = await loadAuthUser(db, session.userId);
+      return user ? { userId: user.id } : null;
+    },
+    originAllowed(origin, req) {
+      if (!origin) return false;
+      if (publicOrigin && origin === publicOrigin) return true;
+      const host = req.headers.host;
+      return host !== undefined && (origin === `http://${host}` || origin === `https://${host}`);
+    },
+  });
+}
+
 /** Builds the app context from validated settings and a database URL. */
 export function createContext(env: ReturnType<typeof loadEnv>, databaseUrl: string): AppContext {
-  return { env, database: createDatabaseClient(databaseUrl), logger: createLogger(env.LOG_LEVEL), version: appVersion };
+  const database = createDatabaseClient(databaseUrl);
+  const logger = createLogger(env.LOG_LEVEL);
+  return { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env) };
 }
 
 // `tsx watch server/index.ts` (npm run dev): serve the API against DATABASE_URL.

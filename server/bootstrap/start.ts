@@ -9,7 +9,7 @@ import { migrateDatabase } from '../db/migrate';
 import { demoUsers, seedDemo } from '../db/seed-demo';
 import { ConfigError, loadEnv } from '../env';
 import { createLogger } from '../logger';
-import { ListenError, startServer } from '../index';
+import { createAppHub, ListenError, startServer } from '../index';
 import { appVersion } from '../version';
 import { buildClient, ensurePortFree, ensureWritableDir, secondsSince } from './common';
 import { BootstrapError, ensureMariaDbInstalled, provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from './mariadb';
@@ -56,7 +56,8 @@ try {
   console.log('seisift: building the client…');
   buildClient();
 
-  const ctx = { env, database, logger: createLogger(env.LOG_LEVEL), version: appVersion };
+  const logger = createLogger(env.LOG_LEVEL);
+  const ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env) };
   const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
   cleanups.push(() => running.close());
 

@@ -1,5 +1,6 @@
 import type { AppContext } from '../../server/context';
 import { loadEnv } from '../../server/env';
+import { createAppHub } from '../../server/index';
 import { createLogger } from '../../server/logger';
 import { appVersion } from '../../server/version';
 import { createTestDatabase, type TestDatabase } from './test-db';
@@ -14,5 +15,17 @@ export interface TestContext extends AppContext {
 export async function createTestContext(overrides: Record<string, string> = {}): Promise<TestContext> {
   const database = await createTestDatabase();
   const env = loadEnv({ NODE_ENV: 'test', LOG_LEVEL: 'silent', SEISIFT_DEMO_PASSWORD: 'kestrel-demo-pass', ...overrides });
-  return { env, database, logger: createLogger(env.LOG_LEVEL), version: appVersion, close: () => database.drop() };
+  const logger = createLogger(env.LOG_LEVEL);
+  const hub = createAppHub(database.db, logger, env);
+  return {
+    env,
+    database,
+    logger,
+    version: appVersion,
+    hub,
+    async close() {
+      await hub.close();
+      await database.drop();
+    },
+  };
 }
