@@ -2,6 +2,7 @@ import { spawnSync } from 'node:child_process';
 import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import Fili from 'fili';
+import { z } from 'zod';
 import { butterworthSos } from '../dsp/butterworth';
 import { analyzeWindow } from '../dsp/pipeline';
 import { sosfilt } from '../dsp/sosfilt';
@@ -102,7 +103,7 @@ async function main(): Promise<void> {
     encoding: 'utf8',
   });
   if (py.status === 0) {
-    const r = JSON.parse(py.stdout) as { medianMs: number; minMs: number };
+    const r = z.object({ medianMs: z.number(), minMs: z.number() }).parse(JSON.parse(py.stdout));
     console.log(`scipy same steps: median ${f2(r.medianMs)} ms, min ${f2(r.minMs)} ms over ${RUNS} runs`);
     console.log(`ratio scipy/ours: ${f2(r.medianMs / oursMed)}× (target > 1: faster than scipy)`);
   } else {
@@ -128,7 +129,7 @@ async function main(): Promise<void> {
 
   const child = spawnSync(process.execPath, ['--import', 'tsx', here, '--long-child'], { encoding: 'utf8', maxBuffer: 1 << 24 });
   if (child.status === 0) {
-    const r = JSON.parse(child.stdout) as { medianMs: number; maxRssMb: number; samples: number };
+    const r = z.object({ medianMs: z.number(), maxRssMb: z.number(), samples: z.number() }).parse(JSON.parse(child.stdout));
     console.log(`1-hour window, 3 × 3600 s at 200 sps (${r.samples} samples): median ${f2(r.medianMs)} ms of 3 (target < 1500 ms), peak RSS ${r.maxRssMb.toFixed(0)} MB (target < 400 MB)`);
   } else {
     console.log(`long-window child failed (${child.status}): ${child.stderr.trim()}`);

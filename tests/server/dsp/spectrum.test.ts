@@ -75,6 +75,26 @@ describe('Parseval for the Welch estimate', () => {
   });
 });
 
+describe('spectrogram against scipy.signal.spectrogram (fixtures/dsp/spectrogram.json)', () => {
+  const sg = readFixture(
+    'spectrogram.json',
+    z.object({ signal: signalSpecSchema, first: z.array(z.number()), freqs: z.array(z.number()), times: z.array(z.number()), db: z.array(z.array(z.number())) }),
+  );
+  it("hann, nperseg 256, noverlap 128, constant detrend, density: same times, frequencies and dB to 1e-6", () => {
+    const x = makeSignal(sg.signal);
+    expect(maxAbsDiff(x.slice(0, sg.first.length), sg.first)).toBeLessThan(1e-12);
+    // Source: scipy.signal.spectrogram(x, fs, window='hann', nperseg=256, noverlap=128,
+    // detrend='constant', scaling='density', mode='psd'), scipy 1.10.
+    const ours = spectrogram(x, sg.signal.fs, 256, 1000);
+    expect(ours.step).toBe(128);
+    expect(maxAbsDiff(ours.times, sg.times)).toBeLessThan(1e-9);
+    expect(maxAbsDiff(ours.freqs, sg.freqs)).toBeLessThan(1e-9);
+    sg.db.forEach((col, j) => {
+      expect(maxAbsDiff(ours.db.slice(j * col.length, (j + 1) * col.length), col), `column ${j}`).toBeLessThan(1e-6);
+    });
+  });
+});
+
 describe('dominant frequency, centroid and spectrogram', () => {
   it('a 5 Hz tone has its dominant bin at 5 Hz; excluded bands are skipped', () => {
     const fs = 128;
