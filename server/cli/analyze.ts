@@ -147,7 +147,11 @@ function message(err: unknown): string {
   return err instanceof Error ? err.message : String(err);
 }
 
-const num = (v: number | null, digits = 3): string => (v === null ? '—' : Number(v.toPrecision(digits)).toString());
+const num = (v: number | null, digits = 3): string => {
+  if (v === null) return '—';
+  const a = Math.abs(v);
+  return a !== 0 && (a >= 1e6 || a < 1e-3) ? v.toExponential(digits - 1) : Number(v.toPrecision(digits)).toString();
+};
 
 /** The human-readable table of a result. */
 function table(r: AnalysisResult): string {

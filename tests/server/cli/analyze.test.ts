@@ -116,6 +116,17 @@ describe('npm run analyze (server/cli/analyze.ts)', () => {
     expect(r.reasons[0]).toMatch(/high\/low ratio/);
   });
 
+  it('a file with two stations asks for --stream, which picks one station (libmseed fixture tests/fixtures/mseed/multi-stream.mseed)', () => {
+    const file = join(import.meta.dirname, '../../fixtures/mseed/multi-stream.mseed');
+    const both = runAnalyzeCli([file, '--json']);
+    expect(both.code).toBe(1);
+    expect(both.stderr).toMatch(/holds 2 stations \(XX\.KV01, XX\.KV02\): choose one with --stream/);
+    const one = runAnalyzeCli([file, '--json', '--stream', 'XX.KV02.00.HHZ']);
+    expect(one.code).toBe(0);
+    expect(contract.parse(JSON.parse(one.stdout)).channels.map((c) => c.id)).toEqual(['XX.KV02.00.HHZ']);
+    expect(runAnalyzeCli([file, '--stream', 'XX.KV09.00.HHZ']).stderr).toMatch(/stream XX\.KV09\.00\.HHZ is not in/);
+  });
+
   it('an undecodable file exits 2 with the reason on stderr (the real script, spawned)', () => {
     const file = join(dir, 'junk.bin');
     writeFileSync(file, Uint8Array.from([0, 1, 2, 3, 200, 201]));
