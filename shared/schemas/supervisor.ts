@@ -1,0 +1,165 @@
+import { z } from 'zod';
+import { flagSchema } from './flags';
+import { itemStateSchema } from './item-states';
+import { quakemlEventTypes } from './label';
+
+/**
+ * Wire formats of the network supervisor's side (issue 7): candidate events, thresholds, review,
+ * inbox, dashboard and the catalogue export. Shared by server/routes/supervisor and
+ * client/src/features/supervisor so both validate the same way.
+ */
+
+/** Settings of the candidate-event grouping (see server/services/candidate-events.ts). */
+export const groupingSettingsSchema = z.object({
+  /** Distinct stations needed for a candidate event. */
+  minStations: z.number().int().min(2, 'minStations must be at least 2').default(3),
+  /** Apparent velocity of the earliest arrivals, km/s (3 km/s: a slow crustal value, common practice). */
+  velocityKmS: z.number().positive('velocityKmS must be > 0 km/s').default(3),
+  /** Slack added to the travel-time difference allowed between two stations, s. */
+  slackS: z.number().min(0, 'slackS must be ≥ 0 s').default(2),
+});
+
+/** Parsed grouping settings. */
+export type GroupingSettings = z.infer<typeof groupingSettingsSchema>;
+
+/** The default grouping settings (3 stations, 3 km/s, 2 s). */
+export const defaultGroupingSettings: GroupingSettings = groupingSettingsSchema.parse({});
+
+/** QuakeML 1.2 EvaluationStatus values a supervisor may set (`preliminary` is the unreviewed state). */
+export const reviewStatuses = ['confirmed', 'reviewed', 'final', 'rejected'] as const;
+
+/** QuakeML 1.2 EvaluationStatus (all five values). */
+export const evaluationStatuses = ['preliminary', ...reviewStatuses] as const;
+
+/** One evaluation status. */
+export type EvaluationStatus = (typeof evaluationStatuses)[number];
+
+const csv = <T extends z.ZodType>(item: T) =>
+  z.preprocess((v) => (typeof v === 'string' ? (v === '' ? [] : v.split(',')) : v), z.array(item));
+
+const isoTime = z
+  .string()
+  .refine((s) => /^\d{4}-\d{2}-\d{2}(T\d{2}:\d{2}(:\d{2}(\.\d{1,6})?)?Z?)?$/.test(s) && !Number.isNaN(Date.parse(s)), 'must be an ISO 8601 UTC time, e.g. 2026-03-14T09:26:53.589Z');
+
+const stationCode = z.string().regex(/^([A-Z0-9]{1,2}\.)?[A-Z0-9]{1,5}$/, 'must be a station code like KV01 or XX.KV01');
+
+/** A period, `from` inclusive and `to` exclusive. */
+export const periodSchema = z
+  .object({ from: isoTime, to: isoTime })
+  .refine((p) => Date.parse(p.from) < Date.parse(p.to), { message: 'from must be before to', path: ['from'] });
+
+/** Query of GET /api/supervisor/review. Times filter on the window start. */
+export const reviewQuerySchema = z
+  .object({
+    station: csv(stationCode).optional(),
+    type: csv(z.enum(quakemlEventTypes)).optional(),
+    analyst: z.string().max(255).optional(),
+    status: csv(z.enum(evaluationStatuses)).optional(),
+    from: isoTime.optional(),
+    to: isoTime.optional(),
+    limit: z.preprocess((v) => (typeof v === 'string' ? Number(v) : v), z.number().int().min(1).max(500)).default(200),
+  })
+  .refine((q) => q.from === undefined || q.to === undefined || Date.parse(q.from) < Date.parse(q.to), { message: 'from must be before to', path: ['from'] });
+
+/** A parsed review query. */
+export type ReviewQuery = z.infer<typeof reviewQuerySchema>;
+
+/** How the time shown for an event was found. */
+export const eventTimeBases = ['earliest P pick', 'earliest trigger', 'window start'] as const;
+
+/** One row of the review list: a labelled item. */
+export const reviewRowSchema = z.object({
+  itemId: z.number().int(),
+  state: itemStateSchema,
+  station: z.string(),
+  stationId: z.number().int(),
+  flag: flagSchema,
+  score: z.number(),
+  eventType: z.string(),
+  certainty: z.string(),
+  picks: z.number().int(),
+  analyst: z.object({ id: z.string(), displayName: z.string() }).nullable(),
+  eventTime: z.string(),
+  eventTimeBasis: z.enum(eventTimeBases),
+  evaluationStatus: z.enum(evaluationStatuses),
+  reviewedBy: z.object({ id: z.string(), displayName: z.string() }).nullable(),
+  reviewComment: z.string().nullable(),
+  candidateEventId: z.number().int().nullable(),
+  version: z.number().int(),
+});
+
+/** One review row. */
+export type ReviewRow = z.infer<typeof reviewRowSchema>;
+
+/** Body of POST /api/supervisor/review/items/:id/status. */
+export const setStatusBodySchema = z.object({
+  version: z.number().int().positive('must be the item version you saw'),
+  status: z.enum(reviewStatuses),
+  comment: z.string().trim().max(2000).default(''),
+});
+
+/** Body of POST .../return (the comment is what the analyst sees). */
+export const returnBodySchema = z.object({
+  version: z.number().int().positive('must be the item version you saw'),
+  comment: z.string().trim().min(3, 'say why you return it (at least 3 characters)').max(2000),
+});
+
+/** The flagging thresholds a supervisor tunes (the rest of the profile is the operator's). */
+export const thresholdValuesSchema = z
+  .object({
+    eventZ: z.number().min(0, 'eventZ must be ≥ 0').max(50, 'eventZ must be ≤ 50'),
+    noiseZ: z.number().min(0, 'noiseZ must be ≥ 0').max(50, 'noiseZ must be ≤ 50'),
+    centroidMaxFactor: z.number().min(1, 'centroidMaxFactor must be ≥ 1').max(20),
+  })
+  .refine((t) => t.noiseZ <= t.eventZ, { message: 'noiseZ must not exceed eventZ', path: ['noiseZ'] });
+
+/** Threshold values. */
+export type ThresholdValues = z.infer<typeof thresholdValuesSchema>;
+
+/** Confusion counts and the derived rates (null where the denominator is 0). */
+export const evaluationSchema = z.object({
+  tp: z.number().int(),
+  fp: z.number().int(),
+  fn: z.number().int(),
+  tn: z.number().int(),
+  precision: z.number().nullable(),
+  recall: z.number().nullable(),
+});
+
+/** Confusion counts with precision and recall. */
+export type Evaluation = z.infer<typeof evaluationSchema>;
+
+/** Body of POST /api/supervisor/thresholds/:stationId/apply. */
+export const applyThresholdsBodySchema = z.object({ thresholds: thresholdValuesSchema });
+
+/** Body of POST /api/supervisor/thresholds/:stationId/rescore. */
+export const rescoreBodySchema = periodSchema;
+
+/** Query of GET /api/supervisor/export. */
+export const exportQuerySchema = z
+  .object({
+    from: isoTime,
+    to: isoTime,
+    format: z.enum(['quakeml', 'csv']).default('quakeml'),
+    status: csv(z.enum(evaluationStatuses)).default(['confirmed', 'reviewed', 'final']),
+  })
+  .refine((p) => Date.parse(p.from) < Date.parse(p.to), { message: 'from must be before to', path: ['from'] });
+
+/** A parsed export query. */
+export type ExportQuery = z.infer<typeof exportQuerySchema>;
+
+/** Body of POST /api/supervisor/candidate-events/:id/label: labels every member. */
+export const groupLabelBodySchema = z.object({
+  label: z.unknown(),
+});
+
+/** Query of GET /api/supervisor/dashboard. */
+export const dashboardQuerySchema = z
+  .object({ from: isoTime, to: isoTime })
+  .refine((p) => Date.parse(p.from) < Date.parse(p.to), { message: 'from must be before to', path: ['from'] })
+  .refine((p) => Date.parse(p.to) - Date.parse(p.from) <= 366 * 86_400_000, { message: 'at most 366 days at a time', path: ['to'] });
+
+/** Body of POST /api/supervisor/inbox/:id/return. */
+export const inboxReturnBodySchema = z.object({
+  comment: z.string().trim().min(3, 'say why you return it (at least 3 characters)').max(2000),
+});
