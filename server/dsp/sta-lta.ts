@@ -7,7 +7,8 @@
  * with squares s_i = y_i², STA_i = mean(s_{i−nsta+1} … s_i) and LTA_i = mean(s_{i−nlta+1} … s_i)
  * (both windows end at sample i, inclusive); ratio_i = STA_i / LTA_i, and 0 for i < nlta − 1 (LTA
  * window not yet full) or when LTA_i = 0. nsta = round(staS·fs), nlta = round(ltaS·fs).
- * O(n) with running sums (re-summed exactly every 65 536 samples so rounding cannot drift).
+ * O(n) with running sums, re-summed exactly when a sum falls below 10⁻⁴ of its recent peak (quiet after
+ * a huge burst, where cancellation would cost precision) and every 65 536 samples.
  * Units: y any; output dimensionless. @throws RangeError when nsta < 1 or nsta ≥ nlta.
  */
 export function classicStaLta(y: Float64Array, sampleRateHz: number, staS: number, ltaS: number): Float64Array {
@@ -25,24 +26,30 @@ export function classicStaLta(y: Float64Array, sampleRateHz: number, staS: numbe
     if (i >= nlta - nsta) ssta += v;
   }
   const ratio = (a: number, b: number): number => (b > 0 ? (a / nsta) / (b / nlta) : 0);
+  const sumSquares = (from: number, to: number): number => {
+    let acc = 0;
+    for (let j = from; j <= to; j++) acc += (y[j] as number) ** 2;
+    return acc;
+  };
   out[nlta - 1] = ratio(ssta, slta);
+  // A running sum that falls far below its recent peak (quiet after a huge burst) has lost relative
+  // precision to cancellation: re-sum that window exactly then (rare), and every 65 536 samples anyway.
+  let peakSta = ssta;
+  let peakLta = slta;
   for (let i = nlta; i < n; i++) {
     const v = (y[i] as number) ** 2;
-    if ((i & 0xffff) === 0) {
-      // Exact re-sum keeps the running sums from drifting on long traces.
-      ssta = 0;
-      slta = 0;
-      for (let j = i - nlta + 1; j <= i; j++) {
-        const u = (y[j] as number) ** 2;
-        slta += u;
-        if (j > i - nsta) ssta += u;
-      }
-    } else {
-      ssta += v - (y[i - nsta] as number) ** 2;
-      slta += v - (y[i - nlta] as number) ** 2;
-    }
-    // Subtraction can leave a tiny negative for an all-zero stretch: clamp.
-    out[i] = ratio(Math.max(ssta, 0), Math.max(slta, 0));
+    ssta += v - (y[i - nsta] as number) ** 2;
+    slta += v - (y[i - nlta] as number) ** 2;
+    const periodic = (i & 0xffff) === 0;
+    if (periodic || ssta < 1e-4 * peakSta) {
+      ssta = sumSquares(i - nsta + 1, i);
+      peakSta = ssta;
+    } else if (ssta > peakSta) peakSta = ssta;
+    if (periodic || slta < 1e-4 * peakLta) {
+      slta = sumSquares(i - nlta + 1, i);
+      peakLta = slta;
+    } else if (slta > peakLta) peakLta = slta;
+    out[i] = ratio(ssta, slta);
   }
   return out;
 }
