@@ -19,17 +19,19 @@ export type LaunchedBrowser = {
 
 /**
  * Launches headless chromium with a fresh profile (so no state leaks between tests).
- * @param options viewport size in CSS px (default 1440×900) and colour scheme to emulate
+ * @param options viewport size in CSS px (default 1440×900) and the system colour scheme to
+ *   emulate (default 'dark'; chromium treats 'no-preference' as light). Pages can change it with
+ *   page.emulateMedia({ colorScheme }).
  */
 export async function launchBrowser(
-  options: { width?: number; height?: number; colorScheme?: 'dark' | 'light' | 'no-preference' } = {},
+  options: { width?: number; height?: number; colorScheme?: 'dark' | 'light' } = {},
 ): Promise<LaunchedBrowser> {
   const profile = await mkdtemp(join(tmpdir(), 'seisift-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: chromiumPath,
     headless: true,
     viewport: { width: options.width ?? 1440, height: options.height ?? 900 },
-    colorScheme: options.colorScheme ?? 'no-preference',
+    colorScheme: options.colorScheme ?? 'dark',
     args: [
       '--headless',
       '--no-sandbox',
