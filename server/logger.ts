@@ -2,10 +2,11 @@ import pino from 'pino';
 
 /**
  * Structured JSON logging. Cookies, authorization headers, passwords and tokens are redacted
- * wherever they appear in a logged object.
+ * wherever they appear in a logged object. `destination` (default stdout) lets tests capture the
+ * lines and check that no secret is written.
  */
-export function createLogger(level: string) {
-  return pino({
+export function createLogger(level: string, destination?: pino.DestinationStream) {
+  const options: pino.LoggerOptions = {
     level,
     redact: {
       paths: [
@@ -19,7 +20,8 @@ export function createLogger(level: string) {
       ],
       censor: '[redacted]',
     },
-  });
+  };
+  return destination ? pino(options, destination) : pino(options);
 }
 
 /** The app's logger type. */
