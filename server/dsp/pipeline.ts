@@ -179,7 +179,7 @@ function analyzeChannel(
   if (high.warning) warnings.push(high.warning);
 
   // Band-reject first (one shared trace), then both band-passes on it.
-  const rejected = Float64Array.from(pre);
+  const rejected = pre.slice();
   const bandReject: ChannelResult['bandReject'] = [];
   for (const br of profile.bandReject) {
     const ok = br.fmax < fs / 2;
@@ -190,12 +190,12 @@ function analyzeChannel(
     }
     sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
   }
-  const rejectedCopy = profile.bandReject.length > 0 ? Float64Array.from(rejected) : rejected;
+  const rejectedCopy = profile.bandReject.length > 0 ? rejected.slice() : rejected;
   const lowSos = design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs);
   const highSos = design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
   const zeroPhaseDisplay = opts.display === true && opts.displayFiltering === 'zero-phase';
-  const rejectedForDisplay = zeroPhaseDisplay ? Float64Array.from(rejected) : null;
-  const lowY = Float64Array.from(rejected);
+  const rejectedForDisplay = zeroPhaseDisplay ? rejected.slice() : null;
+  const lowY = rejected.slice();
   sosfiltInPlace(lowSos, lowY);
   const highY = rejected;
   sosfiltInPlace(highSos, highY);
@@ -218,7 +218,7 @@ function analyzeChannel(
   const paz = typeof response === 'object' ? response : null;
   let psdTrace = pre;
   if (paz) {
-    psdTrace = Float64Array.from(pre);
+    psdTrace = pre.slice();
     for (let i = 0; i < n; i++) psdTrace[i] = (psdTrace[i] as number) * flatSensitivity;
   }
   const psd = welchPsd(psdTrace, fs, profile.psd.nperseg);

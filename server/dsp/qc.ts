@@ -283,7 +283,7 @@ function spikes(x: Float64Array, k: number): { count: number; first: number } {
  * modified. Even lengths average the two middle values. NaN for an empty input.
  */
 export function medianAbsoluteDeviation(r: Float64Array): number {
-  const work = Float64Array.from(r);
+  const work = r.slice();
   const med = medianInPlace(work);
   for (let i = 0; i < r.length; i++) work[i] = Math.abs((r[i] as number) - med);
   return medianInPlace(work);

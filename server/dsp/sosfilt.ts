@@ -8,7 +8,7 @@ import type { Sos } from './butterworth';
  * Throws when a section has a0 = 0.
  */
 export function sosfilt(sos: Sos, x: Float64Array): Float64Array {
-  const y = Float64Array.from(x);
+  const y = x.slice();
   sosfiltInPlace(sos, y);
   return y;
 }
