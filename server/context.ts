@@ -1,4 +1,5 @@
 import type { DatabaseClient } from './db/client';
+import type { Mailer } from './email/mailer';
 import type { Env } from './env';
 import type { Logger } from './logger';
 import type { RealtimeHub } from './realtime/hub';
@@ -12,4 +13,6 @@ export interface AppContext {
   version: string;
   /** The one live-update hub: call `hub.notify()` after committing a change-log row. */
   hub: RealtimeHub;
+  /** Outgoing mail (SMTP_URL, or the local fake SMTP server whose messages the mailbox page shows). */
+  mailer: Mailer;
 }

@@ -9,6 +9,8 @@ import { createHub, type RealtimeHub } from './realtime/hub';
 import type { Logger } from './logger';
 import type { AppContext } from './context';
 import { createDatabaseClient } from './db/client';
+import type { Mailer } from './email/mailer';
+import { setUpMail } from './email/setup';
 import { ConfigError, loadEnv } from './env';
 import { createLogger } from './logger';
 import { appVersion } from './version';
@@ -80,11 +82,11 @@ export function createAppHub(db: Database, logger: Logger, env: ReturnType<typeo
   });
 }
 
-/** Builds the app context from validated settings and a database URL. */
-export function createContext(env: ReturnType<typeof loadEnv>, databaseUrl: string): AppContext {
+/** Builds the app context from validated settings, a database URL and the mailer. */
+export function createContext(env: ReturnType<typeof loadEnv>, databaseUrl: string, mailer: Mailer): AppContext {
   const database = createDatabaseClient(databaseUrl);
   const logger = createLogger(env.LOG_LEVEL);
-  return { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env) };
+  return { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env), mailer };
 }
 
 // `tsx watch server/index.ts` (npm run dev): serve the API against DATABASE_URL.
@@ -92,9 +94,11 @@ if (import.meta.url === `file://${process.argv[1]}`) {
   try {
     const env = loadEnv();
     if (!env.DATABASE_URL) throw new ConfigError('DATABASE_URL: required when the server runs on its own (npm run dev sets it)');
-    const ctx = createContext(env, env.DATABASE_URL);
+    // SMTP_URL unset: the local fake SMTP server keeps mail for the admin mailbox page.
+    const mail = await setUpMail(env, createDatabaseClient(env.DATABASE_URL, { connectionLimit: 2 }).db);
+    const ctx = createContext(env, env.DATABASE_URL, mail.mailer);
     const running = await startServer(ctx, { host: env.HOST, port: env.PORT, serveClient: false });
-    console.log(`seisift: API on ${running.url}`);
+    console.log(`seisift: API on ${running.url}${mail.fake ? `; local test mail server on ${mail.fake.url} (admin page: Mailbox)` : ''}`);
   } catch (err) {
     console.error(`seisift: ${err instanceof Error ? err.message : String(err)}`);
     process.exit(1);

@@ -8,6 +8,8 @@ import { createDatabaseClient } from '../db/client';
 import { migrateDatabase } from '../db/migrate';
 import { demoUsers, seedDemo } from '../db/seed-demo';
 import { ConfigError, loadEnv } from '../env';
+import { FakeSmtpError } from '../email/fake-smtp';
+import { setUpMail } from '../email/setup';
 import { createLogger } from '../logger';
 import { createAppHub, ListenError, startServer } from '../index';
 import { appVersion } from '../version';
@@ -57,7 +59,10 @@ try {
   buildClient();
 
   const logger = createLogger(env.LOG_LEVEL);
-  const ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env) };
+  // No SMTP_URL: start the local fake SMTP server (loopback only); the admin Mailbox page shows its mail.
+  const mail = await setUpMail(env, database.db, { onError: (err) => logger.error({ err }, 'fake SMTP server error') });
+  cleanups.push(() => mail.close());
+  const ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env), mailer: mail.mailer };
   const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
   cleanups.push(() => running.close());
 
@@ -72,11 +77,14 @@ try {
           '',
         ]
       : []),
+    ...(mail.fake
+      ? [`Mail: no SMTP_URL set, so a local test mail server on ${mail.fake.url} keeps every message; sign in as an admin and open ${running.url}/mailbox to read them.`, '']
+      : [`Mail: sent through ${env.SMTP_URL?.replace(/\/\/[^@/]*@/, '//…@') ?? ''}`, '']),
     'Press Ctrl-C to stop.',
   ];
   console.log(lines.join('\n'));
 } catch (err) {
-  const known = err instanceof ConfigError || err instanceof BootstrapError || err instanceof ListenError;
+  const known = err instanceof ConfigError || err instanceof BootstrapError || err instanceof ListenError || err instanceof FakeSmtpError;
   console.error(`seisift: ${known ? err.message : err instanceof Error ? `${err.message}` : String(err)}`);
   if (!known && process.env.SEISIFT_DEBUG === '1' && err instanceof Error) console.error(err.stack);
   await shutdown(1);

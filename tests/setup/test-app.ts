@@ -1,4 +1,6 @@
 import type { AppContext } from '../../server/context';
+import type { FakeSmtpServer } from '../../server/email/fake-smtp';
+import { setUpMail } from '../../server/email/setup';
 import { loadEnv } from '../../server/env';
 import { createAppHub } from '../../server/index';
 import { createLogger } from '../../server/logger';
@@ -8,6 +10,8 @@ import { createTestDatabase, type TestDatabase } from './test-db';
 /** An app context over a fresh migrated test database; `close()` drops it. */
 export interface TestContext extends AppContext {
   database: TestDatabase;
+  /** The local fake SMTP server this context's mailer sends to (its messages land in mail_messages). */
+  fakeSmtp: FakeSmtpServer;
   close(): Promise<void>;
 }
 
@@ -17,14 +21,21 @@ export async function createTestContext(overrides: Record<string, string> = {}):
   const env = loadEnv({ NODE_ENV: 'test', LOG_LEVEL: 'silent', SEISIFT_DEMO_PASSWORD: 'kestrel-demo-pass', ...overrides });
   const logger = createLogger(env.LOG_LEVEL);
   const hub = createAppHub(database.db, logger, env);
+  // A fake SMTP server of its own on a free loopback port (SMTP_URL is ignored in tests).
+  const mail = await setUpMail({ ...env, SMTP_URL: undefined }, database.db, { fakePort: 0 });
+  if (!mail.fake) throw new Error('the test fake SMTP server did not start');
+  const fakeSmtp = mail.fake;
   return {
     env,
     database,
     logger,
     version: appVersion,
     hub,
+    mailer: mail.mailer,
+    fakeSmtp,
     async close() {
       await hub.close();
+      await mail.close();
       await database.drop();
     },
   };
