@@ -24,7 +24,7 @@ import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../components/u
 import { Tabs } from '../../components/ui/tabs';
 import { useToast } from '../../components/ui/toast';
 import { TriageCaution } from '../../components/ui/triage-caution';
-import { itemStates } from '../../config/item-states';
+import { itemStates } from '../../../../shared/schemas/item-states';
 import { navFor, navItems } from '../../config/paths';
 import { hasRole, SessionProvider, useSession, type SessionUser } from '../../lib/session-context';
 import type { Theme } from '../../lib/theme';

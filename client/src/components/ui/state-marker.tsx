@@ -1,4 +1,4 @@
-import type { ItemState } from '../../config/item-states';
+import type { ItemState } from '../../../../shared/schemas/item-states';
 import { cx } from '../../lib/cx';
 
 /** How each item state is drawn: a glyph and a colour token; the words are the state itself. */
