@@ -83,7 +83,11 @@ export interface ChannelResult {
     triggers: Array<{ on: number; off: number | null }>;
   };
   snr: number | null;
-  psd: { freqs: number[]; values: number[]; units: string; nperseg: number; segments: number };
+  /**
+   * Welch PSD of the pre-processed trace. `values` is null only where a poles-and-zeros response is 0
+   * (e.g. the 0 Hz bin of a velocity sensor), so the PSD cannot be corrected there.
+   */
+  psd: { freqs: number[]; values: Array<number | null>; units: string; nperseg: number; segments: number };
   dominantFrequency: number | null;
   spectralCentroid: number | null;
   /** With a sensitivity: acceleration PSD, dB rel 1 (m/s²)²/Hz, and where it sits against Peterson's models. */
@@ -270,7 +274,7 @@ function analyzeChannel(
     snr,
     psd: {
       freqs: Array.from(psd.freqs),
-      values: Array.from(psdValues),
+      values: Array.from(psdValues, (v) => (Number.isFinite(v) ? v : null)),
       units: physical ? '(m/s)^2/Hz' : 'counts^2/Hz',
       nperseg: psd.nperseg,
       segments: psd.segments,

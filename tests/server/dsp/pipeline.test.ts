@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { BandError } from '../../../server/dsp/bands';
 import { analyzeWindow, AnalysisError } from '../../../server/dsp/pipeline';
 import { computeBaseline } from '../../../server/dsp/score';
+import { responseMagnitude } from '../../../server/dsp/response';
 import { defaultProcessingProfile, processingProfileSchema } from '../../../shared/schemas/processing-profile';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema, stream, type SignalSpec } from './fixture-signal';
 
@@ -133,7 +134,8 @@ describe('analyzeWindow: output contract, flags and errors', () => {
     expect(phys?.noiseModels?.medianPosition).not.toBeNull();
     const flatPaz = { zeros: [], poles: [], normalizationFactor: 1, sensitivity: S, sensitivityFrequencyHz: 1 };
     const viaPaz = analyzeWindow([s], defaultProcessingProfile, { sensitivity: { [s.id]: flatPaz } }).channels[0];
-    expect(maxAbsDiff(viaPaz?.psd.values ?? [], phys?.psd.values ?? []) / Math.max(...(phys?.psd.values ?? [1]))).toBeLessThan(1e-9);
+    const nums = (v: Array<number | null> | undefined): number[] => (v ?? []).map((x) => x ?? NaN);
+    expect(maxAbsDiff(nums(viaPaz?.psd.values), nums(phys?.psd.values)) / Math.max(...nums(phys?.psd.values))).toBeLessThan(1e-9);
     // Acceleration PSD = velocity PSD × (2πf)² (dB): check one bin by hand.
     const k = 100;
     const f = phys?.psd.freqs[k] as number;
@@ -176,6 +178,37 @@ describe('analyzeWindow: output contract, flags and errors', () => {
     const bad = Float64Array.from(x);
     bad[50] = NaN;
     expect(() => analyzeWindow([stream('XX.KV01.00.HHZ', bad, 100)], defaultProcessingProfile)).toThrow(/sample 50 \(0\.500 s\) is NaN/);
+  });
+
+  it('a dead channel is analysed without crashing: QC error, null ratio and spectrum, needs eyes', () => {
+    const res = analyzeWindow([stream('XX.KV01.00.HHZ', new Float64Array(6000).fill(42), 100)], defaultProcessingProfile, { sensitivity: { 'XX.KV01.00.HHZ': 1e9 } });
+    const ch = res.channels[0];
+    expect(ch?.qc.map((q) => q.code)).toEqual(['flat-line']);
+    expect(ch?.ratio).toBeNull();
+    expect(ch?.dominantFrequency).toBeNull();
+    expect(res.flag).toBe('needs eyes');
+    expect(JSON.stringify(res)).not.toMatch(/NaN|Infinity/);
+  });
+
+  it('a poles-and-zeros sensor with zeros at 0 Hz: the uncorrectable 0 Hz bin is null, the rest corrected by |H(f)|²', () => {
+    const x = makeSignal(noiseSpec(41));
+    const s = stream('XX.KV06.00.HHZ', x, 100);
+    const w0 = 2 * Math.PI;
+    const paz = {
+      zeros: [{ re: 0, im: 0 }, { re: 0, im: 0 }],
+      poles: [{ re: -w0 / Math.SQRT2, im: w0 / Math.SQRT2 }, { re: -w0 / Math.SQRT2, im: -w0 / Math.SQRT2 }],
+      normalizationFactor: 1,
+      sensitivity: 1e9,
+      sensitivityFrequencyHz: 10,
+    };
+    const counts = analyzeWindow([s], defaultProcessingProfile).channels[0];
+    const res = analyzeWindow([s], defaultProcessingProfile, { sensitivity: { [s.id]: paz } }).channels[0];
+    expect(res?.psd.values[0]).toBeNull();
+    const k = 10; // ≈ 0.98 Hz, near the 1 Hz corner where |H| differs most from the flat value
+    const f = res?.psd.freqs[k] as number;
+    const h = responseMagnitude(paz, f);
+    expect((res?.psd.values[k] as number) / ((counts?.psd.values[k] as number) / (h * h))).toBeCloseTo(1, 9);
+    expect(JSON.stringify(res)).not.toMatch(/NaN|Infinity/);
   });
 
   it('refuses an empty window and a channel that is too short, naming it', () => {
