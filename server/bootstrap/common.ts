@@ -10,7 +10,7 @@ export function ensureWritableDir(dir: string, variable: string): string {
   try {
     // One level at a time: Node's recursive mkdir can spin on file systems such as /proc.
     const parts = abs.split(sep).filter(Boolean);
-    let path = sep;
+    let path: string = sep;
     for (const part of parts) {
       path = join(path, part);
       if (!existsSync(path)) mkdirSync(path);
