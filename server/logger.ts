@@ -13,10 +13,8 @@ export function createLogger(level: string, destination?: pino.DestinationStream
         'req.headers.cookie',
         'req.headers.authorization',
         'res.headers["set-cookie"]',
-        '*.password',
-        '*.token',
-        '*.newPassword',
-        '*.currentPassword',
+        // Top level, one and two levels down (pino paths match exact depths).
+        ...['password', 'token', 'newPassword', 'currentPassword', 'cookie', 'authorization'].flatMap((k) => [k, `*.${k}`, `*.*.${k}`]),
       ],
       censor: '[redacted]',
     },
