@@ -8,7 +8,12 @@ import type { AppContext } from './context';
 import { authenticate } from './middleware/auth';
 import { csrfProtection } from './middleware/csrf';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
+import { accountRouter } from './routes/account/router';
+import { adminRouter } from './routes/admin/router';
+import { auditRouter } from './routes/audit/router';
+import { authRouter } from './routes/auth/router';
 import { healthRouter } from './routes/health/router';
+import { queueRouter } from './routes/queue/router';
 
 /** The built client (vite build output). */
 export const clientDistDir = fileURLToPath(new URL('../dist/client', import.meta.url));
@@ -36,6 +41,11 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean } = {})
   app.use('/api', csrfProtection({ sessionCookieName, extraOrigins: ctx.env.SEISIFT_PUBLIC_URL ? [ctx.env.SEISIFT_PUBLIC_URL] : [] }));
 
   app.use('/api/health', healthRouter(ctx));
+  app.use('/api/auth', authRouter(ctx, auth));
+  app.use('/api/account', accountRouter(ctx, auth));
+  app.use('/api/admin', adminRouter(ctx, auth));
+  app.use('/api/audit', auditRouter(ctx));
+  app.use('/api/queue', queueRouter(ctx));
   app.use('/api', apiNotFound);
 
   if (opts.serveClient !== false && existsSync(clientDistDir)) {

@@ -5,6 +5,7 @@ import { createApp } from './app';
 import { createSessionStore } from './auth/sessions';
 import type { Database } from './db/client';
 import { loadAuthUser } from './middleware/auth';
+import { startClaimLapseJob } from './jobs/claim-lapse';
 import { createHub, type RealtimeHub } from './realtime/hub';
 import type { Logger } from './logger';
 import type { AppContext } from './context';
@@ -32,6 +33,7 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
   const app = createApp(ctx, { serveClient: opts.serveClient });
   const server = createServer(app);
   ctx.hub.attach(server);
+  const claimLapse = startClaimLapseJob(ctx);
   await new Promise<void>((resolve, reject) => {
     server.once('error', (err: NodeJS.ErrnoException) => {
       if (err.code === 'EADDRINUSE') reject(new ListenError(`port ${opts.port} on ${opts.host} is already in use: stop the other program or set PORT`));
@@ -48,6 +50,7 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
     close: () =>
       new Promise<void>((resolve) => {
         void ctx.hub.close();
+        void claimLapse.stop();
         server.close(() => resolve());
         server.closeAllConnections();
       }),

@@ -20,8 +20,12 @@ export const MAX_QUEUE_PAGE = 500;
 /** `label` filter values: an event type, `noise` (dismissed as noise) or `none` (no label yet). */
 export const labelFilterValues = [...quakemlEventTypes, 'noise', 'none'] as const;
 
+/** A comma-separated list; a repeated parameter (`?state=new&state=returned`) adds to it. */
 const csv = <T extends z.ZodType>(item: T) =>
-  z.preprocess((v) => (typeof v === 'string' ? (v === '' ? [] : v.split(',')) : v), z.array(item));
+  z.preprocess((v) => {
+    const parts = typeof v === 'string' ? [v] : Array.isArray(v) && v.every((x) => typeof x === 'string') ? v : null;
+    return parts === null ? v : parts.flatMap((p: string) => p.split(',')).filter((p: string) => p !== '');
+  }, z.array(item));
 
 const isoTime = z
   .string()
