@@ -20,7 +20,7 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
  *    `likely noise` when both z are below noiseZ and there is no trigger; `needs eyes` otherwise,
  *    and always when the lead channel has a QC error (dead, clipped, wrong rate).
  * 6. Score = ½·clamp(z ratio) + ½·clamp(z peak), each clamped to [−10, 50], halved when the spectrum
- *    peaks outside the high band; rounded to 0.1. It orders the queue; it is not a magnitude.
+ *    peaks outside the high band (when positive); rounded to 0.1. It orders the queue; it is not a magnitude.
  */
 
 /** Median and MAD (unscaled) of one feature over a station's noise windows. */
@@ -187,7 +187,7 @@ export function scoreWindow(
     );
   }
   let score = 0.5 * clamp(zr ?? 0) + 0.5 * clamp(zp);
-  if (!spectrumInBand) score /= 2;
+  if (!spectrumInBand && score > 0) score /= 2;
   score = Math.round(score * 10) / 10;
   return { score, flag, reasons, leadChannel: lead.id, baseline: useStation ? 'station' : 'network default', zLog10Ratio: zr, zStaLtaPeak: zp };
 }
