@@ -13,7 +13,11 @@ import { adminRouter } from './routes/admin/router';
 import { auditRouter } from './routes/audit/router';
 import { authRouter } from './routes/auth/router';
 import { healthRouter } from './routes/health/router';
+import { openApiRouter } from './routes/openapi/router';
 import { queueRouter } from './routes/queue/router';
+import { stationsRouter } from './routes/stations/router';
+import { uploadsRouter, type UploadsRouterOptions } from './routes/uploads/router';
+import { ingestTokenResolver } from './services/station-registry';
 
 /** The built client (vite build output). */
 export const clientDistDir = fileURLToPath(new URL('../dist/client', import.meta.url));
@@ -22,7 +26,7 @@ export const clientDistDir = fileURLToPath(new URL('../dist/client', import.meta
  * Builds the Express app: JSON API under /api, the built client with an SPA fallback for every
  * other GET. Used by the server and by supertest.
  */
-export function createApp(ctx: AppContext, opts: { serveClient?: boolean } = {}): Express {
+export function createApp(ctx: AppContext, opts: { serveClient?: boolean; uploads?: UploadsRouterOptions } = {}): Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -35,9 +39,9 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean } = {})
   );
   app.use(express.json({ limit: '1mb' }));
 
-  // Who is asking (session cookie; issue 5 adds `bearer:` for ingest tokens) and the CSRF check.
+  // Who is asking (session cookie, or `Authorization: Bearer` with a station's ingest token) and the CSRF check.
   const auth = createAuthKit(ctx);
-  app.use('/api', authenticate({ db: ctx.database.db, sessions: auth.sessions }));
+  app.use('/api', authenticate({ db: ctx.database.db, sessions: auth.sessions, bearer: ingestTokenResolver(ctx.database.db) }));
   app.use('/api', csrfProtection({ sessionCookieName, extraOrigins: ctx.env.SEISIFT_PUBLIC_URL ? [ctx.env.SEISIFT_PUBLIC_URL] : [] }));
 
   app.use('/api/health', healthRouter(ctx));
@@ -46,6 +50,9 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean } = {})
   app.use('/api/admin', adminRouter(ctx, auth));
   app.use('/api/audit', auditRouter(ctx));
   app.use('/api/queue', queueRouter(ctx));
+  app.use('/api/stations', stationsRouter(ctx));
+  app.use('/api/uploads', uploadsRouter(ctx, opts.uploads));
+  app.use('/api/openapi.json', openApiRouter(ctx));
   app.use('/api', apiNotFound);
 
   if (opts.serveClient !== false && existsSync(clientDistDir)) {

@@ -16,7 +16,7 @@ import {
 import type { z } from 'zod';
 import type { Database } from '../db/client';
 import { auditLog } from '../db/schema/audit-log';
-import { channels, ingestTokens, stations } from '../db/schema/stations';
+import { channels, ingestTokens, stationAssignments, stations } from '../db/schema/stations';
 import { users } from '../db/schema/users';
 import { windows } from '../db/schema/uploads';
 import { AppError, badRequest, conflict, notFound } from '../errors';
@@ -143,9 +143,10 @@ export async function requireStationRow(db: DbOrTx, id: number): Promise<Station
 
 /**
  * Registers a station (profile: the defaults). Throws 409 naming the codes when NET.STA exists.
+ * @param opts.assignTo a user to assign to the new station (an operator registering their own)
  * @returns the new station's id
  */
-export async function createStation(db: Database, input: z.output<typeof stationCreateSchema>, actor: Actor): Promise<number> {
+export async function createStation(db: Database, input: z.output<typeof stationCreateSchema>, actor: Actor, opts: { assignTo?: string } = {}): Promise<number> {
   return db.transaction(async (tx) => {
     const [dup] = await tx.select({ id: stations.id }).from(stations).where(and(eq(stations.network, input.network), eq(stations.code, input.code)));
     if (dup) throw conflict(`Station ${stationKey(input.network, input.code)} is already registered`, { field: 'code' });
@@ -163,6 +164,7 @@ export async function createStation(db: Database, input: z.output<typeof station
       updatedAt: now,
     }).$returningId();
     if (!res) throw new Error('insert returned no id');
+    if (opts.assignTo) await tx.insert(stationAssignments).values({ userId: opts.assignTo, stationId: res.id });
     await writeAudit(tx, actor, 'station.create', { type: 'station', id: res.id }, { station: stationKey(input.network, input.code) });
     return res.id;
   });
@@ -344,6 +346,7 @@ export interface RegisteredChannel {
   streamId: string;
   sampleRateHz: number;
   sensitivity: number | null;
+  sensitivityInputUnits: string | null;
   response: unknown;
 }
 
@@ -371,7 +374,7 @@ export async function stationsByKeys(db: DbOrTx, keys: readonly string[]): Promi
     const chans = new Map<string, RegisteredChannel>();
     for (const c of chRows.filter((c) => c.stationId === r.id)) {
       const streamId = `${r.network}.${r.code}.${c.location}.${c.code}`;
-      chans.set(streamId, { streamId, sampleRateHz: c.sampleRateHz, sensitivity: c.sensitivity, response: c.response });
+      chans.set(streamId, { streamId, sampleRateHz: c.sampleRateHz, sensitivity: c.sensitivity, sensitivityInputUnits: c.sensitivityInputUnits, response: c.response });
     }
     out.set(stationKey(r.network, r.code), { id: r.id, network: r.network, code: r.code, profile: storedProfile(r), channels: chans });
   }

@@ -16,31 +16,31 @@ import { processingProfileSchema, type ProcessingProfile } from './processing-pr
  * Codes are upper case (SEED 2.4 uses upper-case ASCII; we upper-case what people type).
  */
 
-const upper = (s: string) => s.trim().toUpperCase();
+const upper = (s: string) => s.toUpperCase();
 
 /** Network code: 1–2 upper-case letters or digits (SEED 2.4). */
 export const networkCodeSchema = z
   .string()
-  .transform(upper)
-  .pipe(z.string().regex(/^[A-Z0-9]{1,2}$/, 'network code must be 1–2 letters or digits (SEED 2.4)'));
+  .regex(/^[A-Za-z0-9]{1,2}$/, 'network code must be 1–2 letters or digits (SEED 2.4)')
+  .transform(upper);
 
 /** Station code: 1–5 upper-case letters or digits (SEED 2.4). */
 export const stationCodeSchema = z
   .string()
-  .transform(upper)
-  .pipe(z.string().regex(/^[A-Z0-9]{1,5}$/, 'station code must be 1–5 letters or digits (SEED 2.4)'));
+  .regex(/^[A-Za-z0-9]{1,5}$/, 'station code must be 1–5 letters or digits (SEED 2.4)')
+  .transform(upper);
 
 /** Location code: 0–2 upper-case letters or digits (SEED 2.4); empty means none. */
 export const locationCodeSchema = z
   .string()
-  .transform(upper)
-  .pipe(z.string().regex(/^[A-Z0-9]{0,2}$/, 'location code must be 0–2 letters or digits (SEED 2.4)'));
+  .regex(/^[A-Za-z0-9]{0,2}$/, 'location code must be 0–2 letters or digits (SEED 2.4)')
+  .transform(upper);
 
 /** Channel code: exactly 3 upper-case letters or digits, band/instrument/orientation (SEED 2.4). */
 export const channelCodeSchema = z
   .string()
-  .transform(upper)
-  .pipe(z.string().regex(/^[A-Z0-9]{3}$/, 'channel code must be exactly 3 letters or digits: band, instrument, orientation (SEED 2.4)'));
+  .regex(/^[A-Za-z0-9]{3}$/, 'channel code must be exactly 3 letters or digits: band, instrument, orientation (SEED 2.4)')
+  .transform(upper);
 
 /** Whether `network` and `station` are valid registry codes (as typed, before upper-casing). */
 export function isValidStationCodes(network: string, station: string): boolean {

@@ -1,0 +1,450 @@
+import { createHash } from 'node:crypto';
+import { eq, inArray } from 'drizzle-orm';
+import { can } from '../../shared/auth/policies';
+import { flagSchema } from '../../shared/schemas/flags';
+import { channelResponseSchema } from '../../shared/schemas/station';
+import type { UploadOutcome } from '../../shared/schemas/upload';
+import type { Database } from '../db/client';
+import { queueItems } from '../db/schema/queue-items';
+import { stations } from '../db/schema/stations';
+import { uploads, windowChannels, windows } from '../db/schema/uploads';
+import { windowFeatures } from '../db/schema/window-features';
+import type { AnalysisResult, AnalyzeOptions, ChannelResult } from '../dsp/pipeline';
+import type { PolesZerosResponse } from '../dsp/response';
+import { decodeWaveform } from '../formats/decode';
+import { WaveformParseError, type DecodedStream } from '../formats/types';
+import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
+import type { Logger } from '../logger';
+import type { AuthUser, IngestPrincipal } from '../middleware/auth';
+import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { stationBaseline } from './station-baseline';
+import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from './station-registry';
+
+/**
+ * Ingest of uploaded waveform files: sha256 → duplicate? → decode → stations known and in the
+ * caller's scope → analysis in the worker pool (per station window, with the station's profile,
+ * baseline, expected rates and sensitivities) → ONE transaction writing the upload with its
+ * original bytes, the window(s), their channels' samples, the window features, the queue item(s),
+ * an audit row and, last, the change-log rows → `notify()` after the commit.
+ *
+ * One file never stops another: each gets its own outcome. An error at any step before the commit
+ * leaves no row behind (the transaction rolls back; analysis happens before it opens).
+ */
+
+/** The engine version stored with every window. */
+export const ENGINE_VERSION = '1';
+
+/** One uploaded file. */
+export interface IngestFile {
+  filename: string;
+  contentType?: string | null;
+  bytes: Uint8Array;
+}
+
+/** Who uploads: a signed-in person or a station's ingest token. */
+export type IngestCaller = ({ kind: 'user'; user: AuthUser } | { kind: 'ingest'; ingest: IngestPrincipal }) & { ipAddress: string | null };
+
+/** What the ingest service needs. */
+export interface IngestDeps {
+  db: Database;
+  pool: AnalysisPool;
+  /** Told after each commit (the live hub). */
+  notify: () => void;
+  logger: Logger;
+  /**
+   * Test-only: runs inside the transaction after every row is written and before the commit; a
+   * throw here must roll everything back.
+   */
+  beforeCommit?: (tx: DbOrTx, info: { filename: string; uploadId: number; itemIds: number[] }) => Promise<void>;
+}
+
+/** Options for one request. */
+export interface IngestOptions {
+  /** Stream id for CSV files. */
+  streamId?: string;
+}
+
+let sharedPool: AnalysisPool | undefined;
+
+/**
+ * The process's analysis pool, created on first use: one worker thread per core beyond the first
+ * (at most 2), since the server shares the machine. Idle workers do not keep the process alive.
+ */
+export function defaultAnalysisPool(): AnalysisPool {
+  sharedPool ??= createAnalysisPool({ threads: 1 });
+  return sharedPool;
+}
+
+/** A file-level refusal carrying the outcome's status and code. */
+class FileRefused extends Error {
+  constructor(
+    readonly httpStatus: number,
+    readonly code: string,
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
+/** SHA-256 of the bytes, hex. */
+export function sha256Hex(bytes: Uint8Array): string {
+  return createHash('sha256').update(bytes).digest('hex');
+}
+
+function actorOf(caller: IngestCaller): Actor {
+  return caller.kind === 'user'
+    ? { userId: caller.user.id, label: caller.user.email, ipAddress: caller.ipAddress }
+    : { userId: null, label: `ingest token "${caller.ingest.label}"`, ipAddress: caller.ipAddress };
+}
+
+/** Whether the caller may upload for `stationId`: the policy for people, the own station for tokens. */
+function mayUpload(caller: IngestCaller, stationId: number): boolean {
+  return caller.kind === 'user' ? can(caller.user, 'upload.create', { stationId }) : caller.ingest.stationId === stationId;
+}
+
+/** The stored items of an existing upload, as an outcome's `items`. */
+async function itemsOfUpload(db: DbOrTx, uploadId: number): Promise<NonNullable<UploadOutcome['items']>> {
+  const rows = await db
+    .select({ id: queueItems.id, flag: queueItems.flag, score: queueItems.score, windowStart: queueItems.windowStart, network: stations.network, code: stations.code, windowId: windows.id })
+    .from(windows)
+    .innerJoin(queueItems, eq(queueItems.windowId, windows.id))
+    .innerJoin(stations, eq(stations.id, windows.stationId))
+    .where(eq(windows.uploadId, uploadId))
+    .orderBy(queueItems.id);
+  const chans = rows.length
+    ? await db.select({ windowId: windowChannels.windowId, streamId: windowChannels.streamId }).from(windowChannels).where(inArray(windowChannels.windowId, rows.map((r) => r.windowId)))
+    : [];
+  return rows.map((r) => ({
+    id: r.id,
+    station: stationKey(r.network, r.code),
+    flag: flagSchema.parse(r.flag),
+    score: r.score,
+    windowStart: r.windowStart.toISOString(),
+    channels: chans.filter((c) => c.windowId === r.windowId).map((c) => c.streamId),
+  }));
+}
+
+/** Samples as little-endian float64 bytes (window_channels.samples). */
+export function samplesToBytes(samples: Float64Array): Buffer {
+  const buf = Buffer.allocUnsafe(samples.length * 8);
+  for (let i = 0; i < samples.length; i++) buf.writeDoubleLE(samples[i] as number, i * 8);
+  return buf;
+}
+
+/** Little-endian float64 bytes back to samples. */
+export function bytesToSamples(bytes: Uint8Array): Float64Array {
+  if (bytes.byteLength % 8 !== 0) throw new RangeError(`sample bytes (${bytes.byteLength}) are not a whole number of float64 values`);
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const out = new Float64Array(bytes.byteLength / 8);
+  for (let i = 0; i < out.length; i++) out[i] = view.getFloat64(i * 8, true);
+  return out;
+}
+
+const VELOCITY_UNITS = /^(m\/s|m\/sec|meters?\/s(ec(ond)?)?)$/i;
+
+/**
+ * The engine's sensitivity options for a station's channels: a full poles-and-zeros response when
+ * one is stored, else the flat sensitivity (counts per m/s). A sensitivity whose input units are
+ * not velocity (e.g. an accelerometer's M/S**2) is not used, since the engine's physical units are
+ * m/s; such channels are analysed in counts.
+ */
+export function analysisOptionsFor(station: RegisteredStation, streams: readonly DecodedStream[]): Pick<AnalyzeOptions, 'sensitivity' | 'expectedSampleRateHz'> {
+  const sensitivity: Record<string, number | PolesZerosResponse> = {};
+  const expectedSampleRateHz: Record<string, number> = {};
+  for (const s of streams) {
+    const ch = station.channels.get(s.id);
+    if (!ch) continue;
+    expectedSampleRateHz[s.id] = ch.sampleRateHz;
+    const units = ch.sensitivityInputUnits;
+    const velocity = units === null || units.trim() === '' || VELOCITY_UNITS.test(units.trim());
+    if (!velocity) continue;
+    const paz = channelResponseSchema.safeParse(ch.response);
+    if (paz.success) sensitivity[s.id] = paz.data;
+    else if (ch.sensitivity !== null && ch.sensitivity > 0) sensitivity[s.id] = ch.sensitivity;
+  }
+  return { sensitivity, expectedSampleRateHz };
+}
+
+/**
+ * The noise level of a channel: the median over 1–5 Hz of its acceleration PSD in dB rel
+ * 1 (m/s²)²/Hz when the analysis had a sensitivity, else of 10·log10 of the counts PSD.
+ * Null when no bin lies in 1–5 Hz.
+ */
+export function noiseLevel(ch: ChannelResult): { db: number; units: string } | null {
+  const vals: number[] = [];
+  ch.psd.freqs.forEach((f, i) => {
+    if (f < 1 || f > 5) return;
+    if (ch.noiseModels) {
+      const v = ch.noiseModels.accelerationDb[i];
+      if (v !== null && v !== undefined && Number.isFinite(v)) vals.push(v);
+    } else {
+      const p = ch.psd.values[i];
+      if (typeof p === 'number' && p > 0) vals.push(10 * Math.log10(p));
+    }
+  });
+  if (vals.length === 0) return null;
+  vals.sort((a, b) => a - b);
+  const n = vals.length;
+  const med = n % 2 ? (vals[(n - 1) / 2] as number) : ((vals[n / 2 - 1] as number) + (vals[n / 2] as number)) / 2;
+  return { db: med, units: ch.noiseModels ? 'dB (m/s²)²/Hz' : 'dB counts²/Hz' };
+}
+
+interface AnalysedWindow {
+  station: RegisteredStation;
+  streams: DecodedStream[];
+  analysis: AnalysisResult;
+}
+
+const endUs = (s: DecodedStream) => s.startTimeUs + Math.round((s.samples.length / s.sampleRateHz) * 1e6);
+
+function duplicateKeyError(err: unknown): boolean {
+  let e: unknown = err;
+  for (let depth = 0; e && depth < 4; depth++) {
+    if (typeof e === 'object' && e !== null && 'code' in e && (e as { code: unknown }).code === 'ER_DUP_ENTRY') return true;
+    e = typeof e === 'object' && e !== null && 'cause' in e ? (e as { cause: unknown }).cause : undefined;
+  }
+  return false;
+}
+
+/**
+ * Ingests one file and returns its outcome (never throws for a problem with the file itself; an
+ * unexpected failure becomes a 500 outcome that is logged).
+ */
+export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: IngestCaller, opts: IngestOptions = {}): Promise<UploadOutcome> {
+  const { filename } = file;
+  try {
+    return await ingestOrThrow(deps, file, caller, opts);
+  } catch (err) {
+    if (err instanceof FileRefused) return { filename, status: 'rejected', httpStatus: err.httpStatus, code: err.code, message: err.message };
+    if (duplicateKeyError(err)) {
+      // The same bytes were committed by a concurrent request between our check and our insert.
+      try {
+        const again = await existingOutcome(deps.db, file, caller);
+        if (again) return again;
+      } catch (e) {
+        if (e instanceof FileRefused) return { filename, status: 'rejected', httpStatus: e.httpStatus, code: e.code, message: e.message };
+        throw e;
+      }
+    }
+    deps.logger.error({ err, filename }, 'upload: ingest failed');
+    return { filename, status: 'rejected', httpStatus: 500, code: 'internal_error', message: `${filename}: the file could not be stored because of a server error; nothing was saved` };
+  }
+}
+
+async function existingOutcome(db: Database, file: IngestFile, caller: IngestCaller): Promise<UploadOutcome | null> {
+  const sha = sha256Hex(file.bytes);
+  const [existing] = await db.select({ id: uploads.id, stationId: uploads.stationId, filename: uploads.filename }).from(uploads).where(eq(uploads.sha256, sha));
+  if (!existing) return null;
+  const items = await itemsOfUpload(db, existing.id);
+  const stationIds = new Set<number>([existing.stationId]);
+  const stationRows = await db.select({ stationId: windows.stationId }).from(windows).where(eq(windows.uploadId, existing.id));
+  for (const r of stationRows) stationIds.add(r.stationId);
+  for (const id of stationIds) {
+    if (!mayUpload(caller, id)) {
+      throw new FileRefused(403, 'forbidden', `${file.filename}: this file was already uploaded for a station you may not upload for`);
+    }
+  }
+  return {
+    filename: file.filename,
+    status: 'duplicate',
+    httpStatus: 200,
+    message: `${file.filename}: the same file (sha256 ${sha.slice(0, 12)}…) was already uploaded as "${existing.filename}"; its existing item is returned`,
+    uploadId: existing.id,
+    itemIds: items.map((i) => i.id),
+    items,
+  };
+}
+
+async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestCaller, opts: IngestOptions): Promise<UploadOutcome> {
+  const { filename } = file;
+  const dup = await existingOutcome(deps.db, file, caller);
+  if (dup) return dup;
+
+  let streams: DecodedStream[];
+  try {
+    streams = decodeWaveform(file.bytes, { filename, ...(opts.streamId ? { streamId: opts.streamId } : {}) });
+  } catch (err) {
+    if (err instanceof WaveformParseError) throw new FileRefused(422, 'unprocessable', err.message);
+    throw err;
+  }
+
+  // Group by station; each station must be registered and within the caller's scope.
+  const groups = new Map<string, DecodedStream[]>();
+  for (const s of streams) {
+    const key = stationKey(s.network, s.station);
+    const list = groups.get(key) ?? [];
+    list.push(s);
+    groups.set(key, list);
+  }
+  const registry = await stationsByKeys(deps.db, [...groups.keys()]);
+  for (const [key, list] of groups) {
+    const first = list[0] as DecodedStream;
+    const station = registry.get(key);
+    if (!station) throw new FileRefused(422, 'unknown_station', `${filename}: stream ${first.id}: station ${key} is not registered (register it, or import its StationXML, first)`);
+    if (!mayUpload(caller, station.id)) {
+      const why = caller.kind === 'ingest' ? `this ingest token is for another station` : `station ${key} is not one of your stations`;
+      throw new FileRefused(403, 'forbidden', `${filename}: stream ${first.id}: ${why}`);
+    }
+  }
+
+  // Analyse each station window in the pool (before any transaction opens).
+  const analysed: AnalysedWindow[] = [];
+  for (const [key, list] of groups) {
+    const station = registry.get(key) as RegisteredStation;
+    const { baseline } = await stationBaseline(deps.db, station.id, station.profile.thresholds.minBaselineWindows);
+    const copies = list.map((s) => ({ ...s, samples: Float64Array.from(s.samples), discontinuities: [...s.discontinuities] }));
+    let analysis: AnalysisResult;
+    try {
+      analysis = await deps.pool.run(copies, station.profile, { ...analysisOptionsFor(station, list), baseline });
+    } catch (err) {
+      const msg = err instanceof Error ? err.message : String(err);
+      throw new FileRefused(422, 'unprocessable', `${filename}: station ${key}: analysis refused: ${msg}`);
+    }
+    analysed.push({ station, streams: list, analysis });
+  }
+
+  const actor = actorOf(caller);
+  const sha = sha256Hex(file.bytes);
+  const format = streams[0]?.format ?? 'csv';
+  const primary = analysed[0] as AnalysedWindow;
+  const result = await deps.db.transaction(async (tx) => {
+    const now = new Date();
+    const [up] = await tx
+      .insert(uploads)
+      .values({
+        sha256: sha,
+        filename: filename.slice(0, 255),
+        contentType: file.contentType ? file.contentType.slice(0, 100) : null,
+        sizeBytes: file.bytes.byteLength,
+        format,
+        original: Buffer.from(file.bytes.buffer, file.bytes.byteOffset, file.bytes.byteLength),
+        stationId: primary.station.id,
+        uploadedByUserId: caller.kind === 'user' ? caller.user.id : null,
+        ingestTokenId: caller.kind === 'ingest' ? caller.ingest.tokenId : null,
+        createdAt: now,
+      })
+      .$returningId();
+    if (!up) throw new Error('upload insert returned no id');
+    const created: Array<{ itemId: number; w: AnalysedWindow; windowStart: Date }> = [];
+    for (const w of analysed) {
+      const startUs = Math.min(...w.streams.map((s) => s.startTimeUs));
+      const stopUs = Math.max(...w.streams.map(endUs));
+      const windowStart = new Date(Math.floor(startUs / 1000));
+      const [win] = await tx
+        .insert(windows)
+        .values({
+          uploadId: up.id,
+          stationId: w.station.id,
+          startTime: windowStart,
+          endTime: new Date(Math.ceil(stopUs / 1000)),
+          analysis: w.analysis,
+          engineVersion: ENGINE_VERSION,
+          createdAt: now,
+        })
+        .$returningId();
+      if (!win) throw new Error('window insert returned no id');
+      for (const s of w.streams) {
+        const ch = w.analysis.channels.find((c) => c.id === s.id);
+        await tx.insert(windowChannels).values({
+          windowId: win.id,
+          streamId: s.id,
+          sampleRateHz: s.sampleRateHz,
+          startTimeUs: s.startTimeUs,
+          sampleCount: s.samples.length,
+          samples: samplesToBytes(s.samples),
+          qc: ch ? ch.qc : null,
+        });
+      }
+      const lead = w.analysis.channels.find((c) => c.id === w.analysis.leadChannel) ?? w.analysis.channels[0];
+      if (!lead) throw new Error('analysis has no channel');
+      const level = noiseLevel(lead);
+      await tx.insert(windowFeatures).values({
+        windowId: win.id,
+        stationId: w.station.id,
+        windowStart,
+        leadChannel: lead.id,
+        leadLog10Ratio: lead.log10Ratio,
+        leadStaLtaPeak: lead.staLta.peak,
+        noiseLevelDb: level?.db ?? null,
+        noiseLevelUnits: level?.units ?? null,
+        flag: w.analysis.flag,
+        createdAt: now,
+      });
+      const [item] = await tx
+        .insert(queueItems)
+        .values({
+          windowId: win.id,
+          stationId: w.station.id,
+          state: 'new',
+          score: w.analysis.score,
+          flag: w.analysis.flag,
+          reasons: w.analysis.reasons,
+          windowStart,
+          version: 1,
+          createdAt: now,
+          updatedAt: now,
+        })
+        .$returningId();
+      if (!item) throw new Error('queue item insert returned no id');
+      created.push({ itemId: item.id, w, windowStart });
+    }
+    await writeAudit(tx, actor, 'upload.create', { type: 'upload', id: up.id }, {
+      filename,
+      sha256: sha,
+      format,
+      sizeBytes: file.bytes.byteLength,
+      streams: streams.map((s) => s.id),
+      itemIds: created.map((c) => c.itemId),
+    });
+    // Last writes of the transaction: the change-log rows (they lock the counter until commit).
+    for (const c of created) {
+      await recordChange(tx, {
+        resource: 'item',
+        resourceId: c.itemId,
+        kind: 'created',
+        version: 1,
+        summary: { stationId: c.w.station.id, state: 'new', flag: c.w.analysis.flag, score: c.w.analysis.score, windowStart: c.windowStart.toISOString() },
+      });
+    }
+    if (deps.beforeCommit) await deps.beforeCommit(tx, { filename, uploadId: up.id, itemIds: created.map((c) => c.itemId) });
+    return { uploadId: up.id, created };
+  });
+  deps.notify();
+  return {
+    filename,
+    status: 'created',
+    httpStatus: 201,
+    uploadId: result.uploadId,
+    itemIds: result.created.map((c) => c.itemId),
+    items: result.created.map((c) => ({
+      id: c.itemId,
+      station: stationKey(c.w.station.network, c.w.station.code),
+      flag: c.w.analysis.flag,
+      score: c.w.analysis.score,
+      windowStart: c.windowStart.toISOString(),
+      channels: c.w.streams.map((s) => s.id),
+    })),
+  };
+}
+
+/** Order in which a rejected file's status represents the whole request when nothing was created. */
+const STATUS_PRIORITY = [403, 413, 422, 400, 500];
+
+/**
+ * The status of a whole request from its files' outcomes: 201 when any file was created; else 200
+ * when any was a duplicate (nothing new, nothing lost); else the most telling refusal, in the
+ * order 403 (scope) > 413 (limit) > 422 (content) > 400 > 500 (others: the first file's).
+ */
+export function overallStatus(outcomes: readonly UploadOutcome[]): number {
+  if (outcomes.some((o) => o.status === 'created')) return 201;
+  if (outcomes.some((o) => o.status === 'duplicate')) return 200;
+  for (const s of STATUS_PRIORITY) if (outcomes.some((o) => o.httpStatus === s)) return s;
+  return outcomes[0]?.httpStatus ?? 400;
+}
+
+/** Ingests several files one after the other (each with its own transaction and outcome). */
+export async function ingestFiles(deps: IngestDeps, files: readonly IngestFile[], caller: IngestCaller, opts: IngestOptions = {}): Promise<{ status: number; files: UploadOutcome[] }> {
+  const outcomes: UploadOutcome[] = [];
+  for (const f of files) outcomes.push(await ingestFile(deps, f, caller, opts));
+  return { status: overallStatus(outcomes), files: outcomes };
+}
