@@ -1,5 +1,15 @@
+import { and, asc, desc, eq, gt, gte, inArray, lt, lte, max, sql } from 'drizzle-orm';
 import { z } from 'zod';
+import type { EventLabel } from '../../shared/schemas/label';
 import { defaultGroupingSettings, type GroupingSettings } from '../../shared/schemas/supervisor';
+import type { Database } from '../db/client';
+import { queueItems } from '../db/schema/queue-items';
+import { stations } from '../db/schema/stations';
+import { candidateEvents, itemArrivals } from '../db/schema/supervisor';
+import { windows } from '../db/schema/uploads';
+import { AppError, notFound } from '../errors';
+import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from './queue-transitions';
 
 /**
  * Candidate events: items from at least `minStations` distinct stations whose first triggers fall
@@ -203,4 +213,271 @@ export function firstTriggerMs(analysis: unknown): number | null {
   const start = Date.parse(lead.startTime);
   if (Number.isNaN(start)) return null;
   return start + first.on * 1000;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Database part: arrivals are copied out of the analysis once; groups are kept in
+// candidate_events (one row per anchor) and item_arrivals.candidate_event_id.
+// ---------------------------------------------------------------------------------------------
+
+/** What the database functions need. */
+export interface CandidateDeps {
+  db: Database;
+  /** Wakes the live hub after a commit. */
+  notify?: () => void;
+  settings?: GroupingSettings;
+}
+
+/**
+ * Copies the first trigger of each item into item_arrivals (items without a trigger are skipped;
+ * items already there are left alone).
+ * @returns the ids that got an arrival row
+ */
+export async function recordArrivals(db: Database, itemIds: readonly number[]): Promise<number[]> {
+  if (itemIds.length === 0) return [];
+  const rows = await db
+    .select({ itemId: queueItems.id, stationId: queueItems.stationId, analysis: windows.analysis, known: itemArrivals.itemId })
+    .from(queueItems)
+    .innerJoin(windows, eq(windows.id, queueItems.windowId))
+    .leftJoin(itemArrivals, eq(itemArrivals.itemId, queueItems.id))
+    .where(inArray(queueItems.id, [...itemIds]));
+  const added: number[] = [];
+  for (const r of rows) {
+    if (r.known !== null) continue;
+    const t = firstTriggerMs(r.analysis);
+    if (t === null) continue;
+    await db.insert(itemArrivals).values({ itemId: r.itemId, stationId: r.stationId, arrivalAt: new Date(t) }).onDuplicateKeyUpdate({ set: { itemId: sql`item_id` } });
+    added.push(r.itemId);
+  }
+  return added;
+}
+
+async function loadArrivals(db: DbOrTx, fromMs: number, toMs: number): Promise<Array<Arrival & { candidateEventId: number | null }>> {
+  const rows = await db
+    .select({ itemId: itemArrivals.itemId, stationId: itemArrivals.stationId, arrivalAt: itemArrivals.arrivalAt, candidateEventId: itemArrivals.candidateEventId, latitude: stations.latitude, longitude: stations.longitude })
+    .from(itemArrivals)
+    .innerJoin(stations, eq(stations.id, itemArrivals.stationId))
+    .where(and(gte(itemArrivals.arrivalAt, new Date(fromMs)), lte(itemArrivals.arrivalAt, new Date(toMs))));
+  return rows.map((r) => ({ itemId: r.itemId, stationId: r.stationId, latitude: r.latitude, longitude: r.longitude, arrivalMs: r.arrivalAt.getTime(), candidateEventId: r.candidateEventId }));
+}
+
+/** The grouping horizon now: the largest allowed lag over every registered station pair, s. */
+export async function networkHorizonS(db: DbOrTx, settings: GroupingSettings): Promise<number> {
+  const all = await db.select({ latitude: stations.latitude, longitude: stations.longitude }).from(stations);
+  return maxAllowedLagS(all, settings);
+}
+
+/**
+ * Recomputes the group around one item and stores it (see the module comment): the component is
+ * found from the arrivals within the horizon, widened until it no longer reaches the edge; when it
+ * is a candidate event its row is the anchor's (created if new), and every stored group it absorbed
+ * is folded into it.
+ * @returns the candidate event id, or null when the item is in no candidate event
+ */
+export async function regroupAround(deps: CandidateDeps, itemId: number): Promise<number | null> {
+  const settings = deps.settings ?? defaultGroupingSettings;
+  const [own] = await deps.db.select({ arrivalAt: itemArrivals.arrivalAt }).from(itemArrivals).where(eq(itemArrivals.itemId, itemId));
+  if (!own) return null;
+  const horizonMs = (await networkHorizonS(deps.db, settings)) * 1000;
+  let from = own.arrivalAt.getTime() - horizonMs;
+  let to = own.arrivalAt.getTime() + horizonMs;
+  let component: ArrivalGroup | undefined;
+  let loaded: Array<Arrival & { candidateEventId: number | null }> = [];
+  for (let round = 0; round < 50; round++) {
+    loaded = await loadArrivals(deps.db, from, to);
+    component = groupArrivals(loaded, settings, horizonMs / 1000).find((g) => g.itemIds.includes(itemId));
+    if (!component) return null;
+    const needFrom = component.firstArrivalMs - horizonMs;
+    const needTo = component.lastArrivalMs + horizonMs;
+    if (needFrom >= from && needTo <= to) break;
+    from = Math.min(from, needFrom);
+    to = Math.max(to, needTo);
+  }
+  if (!component) return null;
+  const group = component;
+  const members = loaded.filter((a) => group.itemIds.includes(a.itemId));
+  const oldIds = [...new Set(members.map((m) => m.candidateEventId).filter((v): v is number => v !== null))];
+  if (!isCandidateEvent(group, settings)) return null;
+  const now = new Date();
+  const id = await deps.db.transaction(async (tx) => {
+    const [existing] = await tx.select().from(candidateEvents).where(eq(candidateEvents.anchorItemId, group.anchorItemId)).for('update');
+    let eventId: number;
+    let version: number;
+    const values = { firstArrivalAt: new Date(group.firstArrivalMs), lastArrivalAt: new Date(group.lastArrivalMs), stationCount: group.stationIds.length, memberCount: group.itemIds.length, updatedAt: now };
+    if (existing) {
+      const same = existing.memberCount === values.memberCount && existing.stationCount === values.stationCount && oldIds.length === 1 && oldIds[0] === existing.id && members.every((m) => m.candidateEventId === existing.id);
+      if (same) return existing.id;
+      eventId = existing.id;
+      version = existing.version + 1;
+      await tx.update(candidateEvents).set({ ...values, version }).where(eq(candidateEvents.id, eventId));
+    } else {
+      const [ins] = await tx.insert(candidateEvents).values({ ...values, anchorItemId: group.anchorItemId, version: 1, createdAt: now }).$returningId();
+      if (!ins) throw new Error('candidate event insert returned no id');
+      eventId = ins.id;
+      version = 1;
+    }
+    await tx.update(itemArrivals).set({ candidateEventId: eventId }).where(inArray(itemArrivals.itemId, group.itemIds));
+    const absorbed = oldIds.filter((o) => o !== eventId);
+    if (absorbed.length > 0) await tx.delete(candidateEvents).where(inArray(candidateEvents.id, absorbed));
+    for (const a of absorbed) await recordChange(tx, { resource: 'candidate_event', resourceId: a, kind: 'deleted', version: 0, summary: { mergedInto: eventId } });
+    await recordChange(tx, {
+      resource: 'candidate_event',
+      resourceId: eventId,
+      kind: existing ? 'updated' : 'created',
+      version,
+      summary: { anchorItemId: group.anchorItemId, itemIds: group.itemIds, stationCount: group.stationIds.length, firstArrival: new Date(group.firstArrivalMs).toISOString() },
+    });
+    return eventId;
+  });
+  deps.notify?.();
+  return id;
+}
+
+/**
+ * What ingest calls after its commit for the items it created: copies their arrivals and regroups
+ * around each. Safe to call twice for the same items.
+ * @returns the candidate event ids touched
+ */
+export async function onItemsCreated(deps: CandidateDeps, itemIds: readonly number[]): Promise<number[]> {
+  const added = await recordArrivals(deps.db, itemIds);
+  const touched = new Set<number>();
+  for (const id of added) {
+    const ev = await regroupAround(deps, id);
+    if (ev !== null) touched.add(ev);
+  }
+  return [...touched];
+}
+
+/**
+ * Catches up on items that have no arrival row yet and are newer than the newest one that has
+ * (at most `limit` per call, in id order), so groups stand even where ingest did not call
+ * `onItemsCreated`.
+ * @returns the number of items looked at
+ */
+export async function catchUpArrivals(deps: CandidateDeps, limit = 2000): Promise<number> {
+  const [hw] = await deps.db.select({ maxId: max(itemArrivals.itemId) }).from(itemArrivals);
+  const rows = await deps.db
+    .select({ id: queueItems.id })
+    .from(queueItems)
+    .where(gt(queueItems.id, hw?.maxId ?? 0))
+    .orderBy(asc(queueItems.id))
+    .limit(limit);
+  if (rows.length === 0) return 0;
+  await onItemsCreated(deps, rows.map((r) => r.id));
+  return rows.length;
+}
+
+/** One member of a candidate event as the screens show it. */
+export interface CandidateMember {
+  itemId: number;
+  station: string;
+  stationId: number;
+  arrival: string;
+  state: string;
+  flag: string;
+  score: number;
+  labelType: string | null;
+  version: number;
+}
+
+/** A candidate event with its members. */
+export interface CandidateEventView {
+  id: number;
+  anchorItemId: number;
+  firstArrival: string;
+  lastArrival: string;
+  stationCount: number;
+  members: CandidateMember[];
+}
+
+/** Candidate events whose first arrival falls in [from, to), newest first (at most `limit`). */
+export async function listCandidateEvents(db: Database, period: { from: Date; to: Date }, limit = 200): Promise<CandidateEventView[]> {
+  const evs = await db
+    .select()
+    .from(candidateEvents)
+    .where(and(gte(candidateEvents.firstArrivalAt, period.from), lt(candidateEvents.firstArrivalAt, period.to)))
+    .orderBy(desc(candidateEvents.firstArrivalAt))
+    .limit(limit);
+  return withMembers(db, evs);
+}
+
+/** One candidate event, or null. */
+export async function getCandidateEvent(db: Database, id: number): Promise<CandidateEventView | null> {
+  const evs = await db.select().from(candidateEvents).where(eq(candidateEvents.id, id));
+  return (await withMembers(db, evs))[0] ?? null;
+}
+
+async function withMembers(db: Database, evs: Array<typeof candidateEvents.$inferSelect>): Promise<CandidateEventView[]> {
+  if (evs.length === 0) return [];
+  const rows = await db
+    .select({
+      eventId: itemArrivals.candidateEventId,
+      itemId: itemArrivals.itemId,
+      arrivalAt: itemArrivals.arrivalAt,
+      network: stations.network,
+      code: stations.code,
+      stationId: stations.id,
+      state: queueItems.state,
+      flag: queueItems.flag,
+      score: queueItems.score,
+      labelType: queueItems.labelType,
+      version: queueItems.version,
+    })
+    .from(itemArrivals)
+    .innerJoin(queueItems, eq(queueItems.id, itemArrivals.itemId))
+    .innerJoin(stations, eq(stations.id, itemArrivals.stationId))
+    .where(inArray(itemArrivals.candidateEventId, evs.map((e) => e.id)))
+    .orderBy(asc(itemArrivals.arrivalAt), asc(itemArrivals.itemId));
+  return evs.map((e) => ({
+    id: e.id,
+    anchorItemId: e.anchorItemId,
+    firstArrival: e.firstArrivalAt.toISOString(),
+    lastArrival: e.lastArrivalAt.toISOString(),
+    stationCount: e.stationCount,
+    members: rows
+      .filter((r) => r.eventId === e.id)
+      .map((r) => ({ itemId: r.itemId, station: `${r.network}.${r.code}`, stationId: r.stationId, arrival: r.arrivalAt.toISOString(), state: r.state, flag: r.flag, score: r.score, labelType: r.labelType, version: r.version })),
+  }));
+}
+
+/** The outcome of labelling a candidate event, per member. */
+export interface GroupLabelOutcome {
+  itemId: number;
+  result: 'labelled' | 'skipped';
+  /** Why a member was skipped (already settled, claimed by someone else, changed meanwhile). */
+  reason?: string;
+}
+
+/**
+ * Labels every member of a candidate event through the queue's own transitions (claim, then label),
+ * each member with the picks on its own station's streams. Members already settled or claimed by
+ * someone else are skipped and say why; each member stays individually correctable.
+ */
+export async function labelCandidateEvent(
+  deps: QueueServiceDeps,
+  actor: QueuePerson,
+  eventId: number,
+  label: EventLabel,
+): Promise<GroupLabelOutcome[]> {
+  const ev = await getCandidateEvent(deps.db, eventId);
+  if (!ev) throw notFound(`Candidate event ${eventId}`);
+  const out: GroupLabelOutcome[] = [];
+  for (const m of ev.members) {
+    const ownPicks = label.picks.filter((p) => p.streamId.startsWith(`${m.station}.`));
+    const memberLabel: EventLabel = { ...label, picks: ownPicks };
+    try {
+      let version = m.version;
+      if (m.state === 'new' || m.state === 'returned') version = (await claimItem(deps, actor, m.itemId, version)).version;
+      else if (m.state !== 'in review') {
+        out.push({ itemId: m.itemId, result: 'skipped', reason: `already ${m.state}` });
+        continue;
+      }
+      await labelItem(deps, actor, m.itemId, version, memberLabel);
+      out.push({ itemId: m.itemId, result: 'labelled' });
+    } catch (err) {
+      if (err instanceof AppError && (err.status === 409 || err.status === 404)) out.push({ itemId: m.itemId, result: 'skipped', reason: err.message });
+      else throw err;
+    }
+  }
+  return out;
 }

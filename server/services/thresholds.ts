@@ -1,6 +1,17 @@
+import { and, asc, count, desc, eq, gte, inArray, lt, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { storedLabelSchema } from '../../shared/schemas/label';
-import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
+import { processingProfileSchema, type ProcessingProfile } from '../../shared/schemas/processing-profile';
+import type { Database } from '../db/client';
+import { queueItems } from '../db/schema/queue-items';
+import { stations } from '../db/schema/stations';
+import { itemReviews } from '../db/schema/supervisor';
+import { windows } from '../db/schema/uploads';
+import { notFound, tooLarge, unprocessable } from '../errors';
+import { loadQueueRow } from '../presenters/queue-item';
+import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { recordAudit } from './audit';
+import { stationBaseline } from './station-baseline';
 import type { Evaluation, ThresholdValues } from '../../shared/schemas/supervisor';
 import { scoreWindow, type ChannelFeatures, type StationBaseline } from '../dsp/score';
 
@@ -164,4 +175,184 @@ export function evidenceFromAnalysis(analysis: unknown): { lead: ChannelFeatures
   const lead = parsed.data.channels.find((c) => c.id === parsed.data.leadChannel) ?? parsed.data.channels[0];
   if (!lead) return null;
   return { lead, channels: parsed.data.channels, zLog10Ratio: parsed.data.zLog10Ratio, zStaLtaPeak: parsed.data.zStaLtaPeak };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Database part.
+// ---------------------------------------------------------------------------------------------
+
+/** What the database functions need. */
+export interface ThresholdDeps {
+  db: Database;
+  notify?: () => void;
+  ipAddress?: string | null;
+}
+
+/** A supervisor acting. */
+export interface ThresholdActor {
+  id: string;
+  email: string;
+}
+
+/** The report a thresholds page shows for one station. */
+export interface ThresholdReport {
+  stationId: number;
+  station: string;
+  current: ThresholdValues;
+  proposed: ThresholdValues | null;
+  /** Items with a ground truth (events, noise). */
+  labelled: { events: number; noise: number };
+  /** The flags as they were shown (stored on the items). */
+  asShown: Evaluation;
+  /** The rule replayed under the current thresholds. */
+  currentEvaluation: Evaluation;
+  proposedEvaluation: Evaluation | null;
+  curve: CurvePoint[];
+  /** Items whose stored analysis could not be read (left out). */
+  unreadable: number;
+}
+
+async function stationRow(db: DbOrTx, stationId: number) {
+  const [row] = await db.select().from(stations).where(eq(stations.id, stationId));
+  if (!row) throw notFound(`Station ${stationId}`);
+  const parsed = processingProfileSchema.safeParse(row.profile ?? {});
+  if (!parsed.success) throw unprocessable(`Station ${row.network}.${row.code} has a processing profile that no longer validates: ${parsed.error.issues[0]?.message ?? 'invalid'}`);
+  return { row, profile: parsed.data };
+}
+
+/** The thresholds a supervisor tunes, out of a profile. */
+export function tunedThresholds(profile: ProcessingProfile): ThresholdValues {
+  return { eventZ: profile.thresholds.eventZ, noiseZ: profile.thresholds.noiseZ, centroidMaxFactor: profile.thresholds.centroidMaxFactor };
+}
+
+/** Loads a station's labelled history as evidence (at most the latest 20 000 items). */
+export async function loadEvidence(db: DbOrTx, stationId: number): Promise<{ evidence: LabelledEvidence[]; unreadable: number }> {
+  const rows = await db
+    .select({ id: queueItems.id, state: queueItems.state, label: queueItems.label, flag: queueItems.flag, analysis: windows.analysis, status: itemReviews.evaluationStatus })
+    .from(queueItems)
+    .innerJoin(windows, eq(windows.id, queueItems.windowId))
+    .leftJoin(itemReviews, eq(itemReviews.itemId, queueItems.id))
+    .where(and(eq(queueItems.stationId, stationId), inArray(queueItems.state, ['labelled', 'dismissed', 'confirmed'])))
+    .orderBy(desc(queueItems.windowStart))
+    .limit(20_000);
+  const evidence: LabelledEvidence[] = [];
+  let unreadable = 0;
+  for (const r of rows) {
+    const truth = truthOf(r.state, r.label, r.status);
+    if (truth === null) continue;
+    const e = evidenceFromAnalysis(r.analysis);
+    if (!e) {
+      unreadable++;
+      continue;
+    }
+    evidence.push({ itemId: r.id, truth, lead: e.lead, zLog10Ratio: e.zLog10Ratio, zStaLtaPeak: e.zStaLtaPeak, shownFlag: r.flag });
+  }
+  return { evidence, unreadable };
+}
+
+/** The thresholds report of one station, optionally with proposed thresholds. @throws 404 */
+export async function thresholdReport(db: Database, stationId: number, proposed: ThresholdValues | null): Promise<ThresholdReport> {
+  const { row, profile } = await stationRow(db, stationId);
+  const { evidence, unreadable } = await loadEvidence(db, stationId);
+  const current = tunedThresholds(profile);
+  const top = Math.max(10, Math.ceil(Math.max(0, ...evidence.map((e) => Math.max(e.zLog10Ratio ?? 0, e.zStaLtaPeak))) + 1));
+  return {
+    stationId,
+    station: `${row.network}.${row.code}`,
+    current,
+    proposed,
+    labelled: { events: evidence.filter((e) => e.truth === 'event').length, noise: evidence.filter((e) => e.truth === 'noise').length },
+    asShown: confusion(evidence.map((e) => ({ truth: e.truth, flag: e.shownFlag }))),
+    currentEvaluation: evaluateThresholds(evidence, current, profile.staLta),
+    proposedEvaluation: proposed ? evaluateThresholds(evidence, proposed, profile.staLta) : null,
+    curve: precisionRecallCurve(evidence, proposed ?? current, profile.staLta, { fromZ: 0, toZ: Math.min(50, top), steps: Math.min(200, Math.min(50, top) * 4) }),
+    unreadable,
+  };
+}
+
+/**
+ * Writes new thresholds into the station's profile with an audit row (before and after). Nothing
+ * is re-scored: old items keep the score they were shown with; the rule applies from the next
+ * window on, and `rescorePeriod` re-scores a chosen period on request.
+ * @throws 404 for a missing station; 422 when the stored profile no longer validates
+ */
+export async function applyThresholds(deps: ThresholdDeps, actor: ThresholdActor, stationId: number, values: ThresholdValues): Promise<ThresholdValues> {
+  await deps.db.transaction(async (tx) => {
+    const { row, profile } = await stationRow(tx, stationId);
+    const next = processingProfileSchema.parse({ ...profile, thresholds: { ...profile.thresholds, ...values } });
+    await tx.update(stations).set({ profile: next, updatedAt: new Date() }).where(eq(stations.id, stationId));
+    await recordAudit(tx, {
+      actor: { id: actor.id, email: actor.email },
+      action: 'thresholds.applied',
+      targetType: 'station',
+      targetId: stationId,
+      details: { station: `${row.network}.${row.code}`, before: tunedThresholds(profile), after: values, rescored: 0 },
+      ip: deps.ipAddress ?? null,
+    });
+  });
+  return values;
+}
+
+/** Most items one re-score request may touch. */
+export const MAX_RESCORE_ITEMS = 5000;
+
+/**
+ * Re-scores a station's items whose window starts in [from, to) with the station's current
+ * profile and baseline (server/dsp/score.ts over the stored channel features), writing score, flag
+ * and reasons to each item (version bumped, change-log row) and to the stored analysis, and one
+ * audit row with the count.
+ * @returns how many items were re-scored and how many changed flag
+ * @throws 404; 413 when the period holds more than MAX_RESCORE_ITEMS items
+ */
+export async function rescorePeriod(deps: ThresholdDeps, actor: ThresholdActor, stationId: number, period: { from: Date; to: Date }): Promise<{ rescored: number; flagChanged: number; skipped: number }> {
+  const { row, profile } = await stationRow(deps.db, stationId);
+  const where = and(eq(queueItems.stationId, stationId), gte(queueItems.windowStart, period.from), lt(queueItems.windowStart, period.to));
+  const [n] = await deps.db.select({ n: count() }).from(queueItems).where(where);
+  if ((n?.n ?? 0) > MAX_RESCORE_ITEMS) throw tooLarge(`The period holds ${n?.n} items; re-score at most ${MAX_RESCORE_ITEMS} at a time (choose a shorter period)`);
+  const { baseline } = await stationBaseline(deps.db, stationId, profile.thresholds.minBaselineWindows);
+  const items = await deps.db
+    .select({ id: queueItems.id, flag: queueItems.flag, version: queueItems.version, windowId: queueItems.windowId, analysis: windows.analysis })
+    .from(queueItems)
+    .innerJoin(windows, eq(windows.id, queueItems.windowId))
+    .where(where)
+    .orderBy(asc(queueItems.id));
+  let rescored = 0;
+  let flagChanged = 0;
+  let skipped = 0;
+  const now = new Date();
+  await deps.db.transaction(async (tx) => {
+    const changes: Array<{ id: number; version: number }> = [];
+    for (const it of items) {
+      const e = evidenceFromAnalysis(it.analysis);
+      if (!e) {
+        skipped++;
+        continue;
+      }
+      const s = scoreWindow(e.channels, baseline, profile);
+      const analysis: unknown = it.analysis;
+      const stored = typeof analysis === 'object' && analysis !== null ? { ...analysis } : {};
+      await tx.update(windows).set({ analysis: { ...stored, ...s } }).where(eq(windows.id, it.windowId));
+      await tx
+        .update(queueItems)
+        .set({ score: s.score, flag: s.flag, reasons: s.reasons, version: sql`${queueItems.version} + 1`, updatedAt: now })
+        .where(eq(queueItems.id, it.id));
+      rescored++;
+      if (s.flag !== it.flag) flagChanged++;
+      changes.push({ id: it.id, version: it.version + 1 });
+    }
+    await recordAudit(tx, {
+      actor: { id: actor.id, email: actor.email },
+      action: 'thresholds.rescored',
+      targetType: 'station',
+      targetId: stationId,
+      details: { station: `${row.network}.${row.code}`, from: period.from.toISOString(), to: period.to.toISOString(), rescored, flagChanged, skipped, thresholds: tunedThresholds(profile) },
+      ip: deps.ipAddress ?? null,
+    });
+    for (const c of changes) {
+      const fresh = await loadQueueRow(tx, eq(queueItems.id, c.id));
+      await recordChange(tx, { resource: 'item', resourceId: c.id, kind: 'updated', version: c.version, summary: fresh ?? undefined });
+    }
+  });
+  deps.notify?.();
+  return { rescored, flagChanged, skipped };
 }
