@@ -15,6 +15,7 @@ import { decodeWaveform } from '../formats/decode';
 import { WaveformParseError, type DecodedStream } from '../formats/types';
 import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
 import type { Logger } from '../logger';
+import { isDatabaseDown } from '../middleware/error-handler';
 import type { AuthUser, IngestPrincipal } from '../middleware/auth';
 import { recordChange, type DbOrTx } from '../realtime/change-log';
 import { stationBaseline } from './station-baseline';
@@ -208,7 +209,8 @@ function duplicateKeyError(err: unknown): boolean {
 
 /**
  * Ingests one file and returns its outcome (never throws for a problem with the file itself; an
- * unexpected failure becomes a 500 outcome that is logged).
+ * unexpected failure becomes a 500 outcome that is logged). Throws when the database is down
+ * (`isDatabaseDown`), so the request is answered 503 instead.
  */
 export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: IngestCaller, opts: IngestOptions = {}): Promise<UploadOutcome> {
   const { filename } = file;
@@ -226,6 +228,9 @@ export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: Ing
         throw e;
       }
     }
+    // The database is unreachable: the whole request becomes 503 + Retry-After (error handler);
+    // files committed before this one are found again by sha256 when the client retries.
+    if (isDatabaseDown(err)) throw err;
     deps.logger.error({ err, filename }, 'upload: ingest failed');
     return { filename, status: 'rejected', httpStatus: 500, code: 'internal_error', message: `${filename}: the file could not be stored because of a server error; nothing was saved` };
   }

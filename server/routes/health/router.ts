@@ -17,6 +17,8 @@ export function healthRouter(ctx: AppContext): Router {
     } catch (err) {
       database = { ok: false, error: err instanceof Error ? err.message : 'unreachable' };
     }
+    // A monitor or load balancer retrying a 503 learns when to come back (as the API's 503s say).
+    if (!database.ok) res.setHeader('Retry-After', '5');
     res.status(database.ok ? 200 : 503).json({ status: database.ok ? 'ok' : 'degraded', version: ctx.version, database });
   });
   return router;
