@@ -7,6 +7,10 @@ import { join } from 'node:path';
 import { createDatabaseClient } from '../db/client';
 import { migrateDatabase } from '../db/migrate';
 import { demoUsers, seedDemo } from '../db/seed-demo';
+import type { AppContext } from '../context';
+import { ingestDemo } from '../demo/ingest-demo';
+import { defaultAnalysisPool } from '../services/ingest-upload';
+import { escalationListener } from '../services/escalations';
 import { ConfigError, loadEnv } from '../env';
 import { FakeSmtpError } from '../email/fake-smtp';
 import { setUpMail } from '../email/setup';
@@ -34,6 +38,33 @@ async function shutdown(code: number): Promise<never> {
 }
 process.on('SIGINT', () => void shutdown(0));
 process.on('SIGTERM', () => void shutdown(0));
+
+/**
+ * Ingests demo-waveforms/ through the real ingest service and has the demo analyst work a handful
+ * (server/demo/ingest-demo.ts); files already stored are skipped. A failure is reported and the
+ * start goes on: the demo windows are a nicety, not something the app needs.
+ */
+async function ingestDemoWindows(ctx: AppContext): Promise<void> {
+  try {
+    const publicUrl = ctx.env.SEISIFT_PUBLIC_URL ?? `http://${ctx.env.HOST}:${ctx.env.PORT}`;
+    const notify = (): void => ctx.hub.notify();
+    const r = await ingestDemo({
+      db: ctx.database.db,
+      pool: defaultAnalysisPool(),
+      notify,
+      logger: ctx.logger,
+      escalationListeners: [escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify, publicUrl })],
+    });
+    for (const f of r.rejected) console.warn(`seisift: demo file ${f.filename} was refused: ${f.message}`);
+    console.log(
+      r.created > 0
+        ? `seisift: demo windows ingested (${r.created} files, ${r.items} queue items; the demo analyst labelled ${r.labelled}, dismissed ${r.dismissed}, escalated ${r.escalated}) in ${r.seconds.toFixed(1)} s`
+        : `seisift: demo windows already ingested (${r.duplicates} of ${r.files} files)`,
+    );
+  } catch (err) {
+    console.warn(`seisift: demo windows not ingested: ${err instanceof Error ? err.message : String(err)}`);
+  }
+}
 
 try {
   const env = loadEnv({ NODE_ENV: 'production', ...process.env });
@@ -63,6 +94,7 @@ try {
   const mail = await setUpMail(env, database.db, { onError: (err) => logger.error({ err }, 'fake SMTP server error') });
   cleanups.push(() => mail.close());
   const ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env), mailer: mail.mailer };
+  if (env.SEISIFT_SEED_DEMO === '1') await ingestDemoWindows(ctx);
   const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
   cleanups.push(() => running.close());
 

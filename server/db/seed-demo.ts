@@ -1,6 +1,7 @@
 import { and, eq } from 'drizzle-orm';
 import { randomBytes } from 'node:crypto';
 import type { Role } from '../../shared/auth/roles';
+import { processingProfileSchema } from '../../shared/schemas/processing-profile';
 import { hashPassword } from '../auth/password';
 import type { Database } from './client';
 import { channels, stationAssignments, stations } from './schema/stations';
@@ -47,6 +48,8 @@ export async function seedDemo(db: Database, opts: { demoPassword: string }): Pr
         longitude: s.longitude,
         elevationM: s.elevationM,
         siteDescription: s.site,
+        // KV04 sits in the pumping station: a band-reject around the pump's 25 Hz line.
+        ...(s.code === 'KV04' ? { profile: processingProfileSchema.parse({ bandReject: [{ fmin: 24.5, fmax: 25.5, order: 4, label: 'pump, 25 Hz' }] }) } : {}),
         createdAt: now,
         updatedAt: now,
       });

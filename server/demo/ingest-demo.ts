@@ -1,0 +1,256 @@
+/**
+ * The `npm start` demo step: ingests the demo windows of demo-waveforms/ through the real ingest
+ * service (decode → analysis → upload, window, queue item, audit and change-log rows), each file as
+ * its station sends it (with a per-station ingest token labelled "demo seed"), then — only for the
+ * items this run created — has the demo analyst work a handful through the real queue services:
+ * a few labelled (earthquake, quarry blast), a few dismissed as noise, two escalated. Idempotent:
+ * files whose SHA-256 is already stored are skipped, so a second start adds nothing.
+ */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { and, eq, inArray, isNull } from 'drizzle-orm';
+import { z } from 'zod';
+import { eventLabelSchema, type EventLabelInput, type NoiseReason } from '../../shared/schemas/label';
+import type { Database } from '../db/client';
+import { queueItems } from '../db/schema/queue-items';
+import { ingestTokens, stations } from '../db/schema/stations';
+import { uploads } from '../db/schema/uploads';
+import { users } from '../db/schema/users';
+import type { AnalysisPool } from '../jobs/analysis-pool';
+import type { Logger } from '../logger';
+import { ingestFile, sha256Hex, type IngestCaller } from '../services/ingest-upload';
+import { claimItem, dismissItem, escalateItem, labelItem, type EscalationListener, type QueuePerson } from '../services/queue-transitions';
+import { createToken, type Actor } from '../services/station-registry';
+import { DEMO_WAVEFORMS_DIR } from './generate-waveforms';
+
+/** Label of the per-station ingest tokens the demo seed uploads with. */
+export const DEMO_SEED_TOKEN_LABEL = 'demo seed (npm start)';
+/** The demo user who works the handful of items. */
+export const DEMO_ANALYST_EMAIL = 'analyst@kestrel.example';
+
+const manifestSchema = z.object({
+  files: z.array(
+    z.object({
+      file: z.string().min(1),
+      station: z.string().regex(/^KV0[1-6]$/u),
+      start: z.string(),
+      streams: z.array(z.string()),
+      reason: z.enum(['routine', 'trigger', 'manual']),
+      events: z.array(z.object({ id: z.string(), type: z.string(), p: z.string(), s: z.string(), hypocentralKm: z.number() })),
+    }),
+  ),
+});
+
+/** A parsed demo manifest. */
+export type DemoIngestManifest = z.infer<typeof manifestSchema>;
+
+/**
+ * Reads and validates demo-waveforms/manifest.json.
+ * @throws Error naming the file and the first problem when it is missing or malformed
+ */
+export function readDemoManifest(dir: string = DEMO_WAVEFORMS_DIR): DemoIngestManifest {
+  const path = join(dir, 'manifest.json');
+  let raw: unknown;
+  try {
+    raw = JSON.parse(readFileSync(path, 'utf8'));
+  } catch (err) {
+    throw new Error(`demo manifest ${path} cannot be read (${err instanceof Error ? err.message : String(err)}); run npm run demo:generate`);
+  }
+  const parsed = manifestSchema.safeParse(raw);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    throw new Error(`demo manifest ${path}: ${issue?.path.join('.') ?? ''}: ${issue?.message ?? 'invalid'}`);
+  }
+  return parsed.data;
+}
+
+/** What the demo ingest needs (the same pieces the upload route uses). */
+export interface DemoIngestDeps {
+  db: Database;
+  pool: AnalysisPool;
+  notify: () => void;
+  logger: Logger;
+  /** Run after each escalation (the app's escalation hooks: inbox entries and e-mail). */
+  escalationListeners?: readonly EscalationListener[];
+}
+
+/** What one run did. */
+export interface DemoIngestReport {
+  /** Waveform files in the manifest. */
+  files: number;
+  /** Files stored by this run. */
+  created: number;
+  /** Files already stored (skipped by SHA-256, or answered `duplicate` by the service). */
+  duplicates: number;
+  /** Files the service refused, with its message (should be none). */
+  rejected: { filename: string; message: string }[];
+  /** Queue items created by this run. */
+  items: number;
+  labelled: number;
+  dismissed: number;
+  escalated: number;
+  /** Wall time, s. */
+  seconds: number;
+}
+
+const seedActor: Actor = { userId: null, label: 'npm start demo seed', ipAddress: null };
+
+/** The station's demo-seed ingest token as an ingest principal, created once. */
+async function seedCaller(db: Database, stationId: number): Promise<IngestCaller> {
+  const [row] = await db
+    .select({ id: ingestTokens.id, label: ingestTokens.label })
+    .from(ingestTokens)
+    .where(and(eq(ingestTokens.stationId, stationId), eq(ingestTokens.label, DEMO_SEED_TOKEN_LABEL), isNull(ingestTokens.revokedAt)));
+  // The secret is never needed: the seed calls the service directly, as the route does after
+  // resolving a Bearer token to this principal.
+  const token = row ?? (await createToken(db, stationId, DEMO_SEED_TOKEN_LABEL, seedActor)).token;
+  return { kind: 'ingest', ingest: { tokenId: token.id, stationId, label: token.label }, ipAddress: null };
+}
+
+/** The file name as uploaded (no folder), e.g. `XX.KV03.2026-03-14T09-26-40.mseed`. */
+function uploadName(path: string): string {
+  return path.slice(path.lastIndexOf('/') + 1);
+}
+
+/** What the demo analyst does with an item, by file and event (invented, for the demo). */
+type DemoAction =
+  | { kind: 'label'; label: EventLabelInput }
+  | { kind: 'dismiss'; noiseReason: NoiseReason; note: string }
+  | { kind: 'escalate'; reason: string };
+
+/**
+ * The handful of items the demo analyst works, chosen from the manifest: the best-recorded
+ * earthquake labelled at its two nearest stations with P and S picks at the arrival times, the
+ * first blast labelled at KV02, one escalation each for the first and the last earthquake at their
+ * first recording station, and four noise windows dismissed with their reasons.
+ */
+export function demoActions(manifest: DemoIngestManifest): Map<string, DemoAction> {
+  const actions = new Map<string, DemoAction>();
+  const byEvent = (id: string): DemoIngestManifest['files'] => manifest.files.filter((f) => f.events.some((e) => e.id === id));
+  const picks = (f: DemoIngestManifest['files'][number], eventId: string, withS: boolean): EventLabelInput['picks'] => {
+    const ev = f.events.find((e) => e.id === eventId);
+    const z = f.streams.find((s) => s.endsWith('HHZ'));
+    const n = f.streams.find((s) => s.endsWith('HHN'));
+    if (!ev || !z) return [];
+    return [
+      { phase: 'P', time: ev.p, onset: 'impulsive', polarity: 'undecidable', streamId: z },
+      ...(withS && n ? [{ phase: 'S' as const, time: ev.s, onset: 'emergent' as const, polarity: 'undecidable' as const, streamId: n }] : []),
+    ];
+  };
+  const eq4 = byEvent('kv-eq-4')
+    .slice()
+    .sort((a, b) => (a.events.find((e) => e.id === 'kv-eq-4')?.hypocentralKm ?? 0) - (b.events.find((e) => e.id === 'kv-eq-4')?.hypocentralKm ?? 0));
+  for (const f of eq4.slice(0, 2)) {
+    actions.set(f.file, { kind: 'label', label: { eventType: 'earthquake', certainty: 'known', distanceClass: 'local', picks: picks(f, 'kv-eq-4', true), note: 'Clear local event, P and S on all components; seen across the network.' } });
+  }
+  const blast = byEvent('kv-bl-1').find((f) => f.station === 'KV02');
+  if (blast) {
+    actions.set(blast.file, {
+      kind: 'label',
+      label: { eventType: 'quarry blast', certainty: 'known', distanceClass: 'local', picks: (picks(blast, 'kv-bl-1', false) ?? []).map((p) => ({ ...p, polarity: 'positive' as const })), note: 'Midday blast at the quarry, ripple-fired; compressional first motion.' },
+    });
+  }
+  const eq1 = byEvent('kv-eq-1')[0];
+  if (eq1) actions.set(eq1.file, { kind: 'escalate', reason: 'Night-time local earthquake recorded at four stations; please confirm before it goes in the catalogue.' });
+  const eq5 = byEvent('kv-eq-5')[0];
+  if (eq5) actions.set(eq5.file, { kind: 'escalate', reason: 'Small event north of the valley, close to the noise at the southern stations; second opinion please.' });
+  const noise: [string, string, NoiseReason, string][] = [
+    ['KV04', '2026-03-14T00:40:00', 'machinery', 'Pumping station, 25 Hz line only.'],
+    ['KV05', '2026-03-14T14:55:00', 'wind', 'Afternoon gusts on the saddle.'],
+    ['KV03', '2026-03-14T09:26:40', 'traffic', 'Morning traffic on the valley highway.'],
+    ['KV06', '2026-03-14T03:50:00', 'instrument glitch', 'Single-sample spikes on HHZ; the digitiser again.'],
+  ];
+  for (const [station, start, noiseReason, note] of noise) {
+    const f = manifest.files.find((x) => x.station === station && x.start.startsWith(start) && x.file.endsWith('.mseed'));
+    if (f) actions.set(f.file, { kind: 'dismiss', noiseReason, note });
+  }
+  return actions;
+}
+
+/**
+ * Ingests the demo windows (see the module comment).
+ * @param opts.dir the demo-waveforms folder (default: the repository's)
+ * @param opts.work false to ingest only (no labels); default true
+ * @returns what was done
+ * @throws Error when the manifest is unreadable, a listed file is missing, or a demo station is not
+ *   registered (run the demo seed first)
+ */
+export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; work?: boolean } = {}): Promise<DemoIngestReport> {
+  const t0 = performance.now();
+  const dir = opts.dir ?? DEMO_WAVEFORMS_DIR;
+  const manifest = readDemoManifest(dir);
+  const { db } = deps;
+
+  const files = manifest.files.map((f) => {
+    let bytes: Uint8Array;
+    try {
+      bytes = readFileSync(join(dir, f.file));
+    } catch (err) {
+      throw new Error(`demo file ${join(dir, f.file)} cannot be read (${err instanceof Error ? err.message : String(err)}); run npm run demo:generate`);
+    }
+    return { entry: f, bytes, sha: sha256Hex(bytes) };
+  });
+  const known = new Set(
+    files.length ? (await db.select({ sha: uploads.sha256 }).from(uploads).where(inArray(uploads.sha256, files.map((f) => f.sha)))).map((r) => r.sha) : [],
+  );
+
+  const stationRows = await db.select({ id: stations.id, code: stations.code }).from(stations).where(eq(stations.network, 'XX'));
+  const stationId = new Map(stationRows.map((r) => [r.code, r.id]));
+  const callers = new Map<string, IngestCaller>();
+
+  const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, labelled: 0, dismissed: 0, escalated: 0, seconds: 0 };
+  const createdItems = new Map<string, number[]>();
+  for (const f of files) {
+    if (known.has(f.sha)) {
+      report.duplicates++;
+      continue;
+    }
+    const id = stationId.get(f.entry.station);
+    if (id === undefined) throw new Error(`demo station XX.${f.entry.station} is not registered: the demo seed (seedDemo) must run first`);
+    let caller = callers.get(f.entry.station);
+    if (!caller) {
+      caller = await seedCaller(db, id);
+      callers.set(f.entry.station, caller);
+    }
+    const name = uploadName(f.entry.file);
+    const outcome = await ingestFile(deps, { filename: name, contentType: name.endsWith('.csv') ? 'text/csv' : 'application/vnd.fdsn.mseed', bytes: f.bytes }, caller);
+    if (outcome.status === 'created') {
+      report.created++;
+      const ids = outcome.itemIds ?? outcome.items?.map((i) => i.id) ?? [];
+      report.items += ids.length;
+      createdItems.set(f.entry.file, ids);
+    } else if (outcome.status === 'duplicate') {
+      report.duplicates++;
+    } else {
+      report.rejected.push({ filename: name, message: outcome.message ?? outcome.code ?? 'rejected' });
+    }
+  }
+
+  if (opts.work !== false && createdItems.size > 0) {
+    const [analyst] = await db.select({ id: users.id, displayName: users.displayName, email: users.email }).from(users).where(eq(users.email, DEMO_ANALYST_EMAIL));
+    if (analyst) await workItems(deps, analyst, demoActions(manifest), createdItems, report);
+  }
+  report.seconds = (performance.now() - t0) / 1000;
+  return report;
+}
+
+async function workItems(deps: DemoIngestDeps, analyst: QueuePerson, actions: Map<string, DemoAction>, createdItems: Map<string, number[]>, report: DemoIngestReport): Promise<void> {
+  const qdeps = { db: deps.db, notify: deps.notify, ipAddress: null };
+  for (const [file, action] of actions) {
+    const itemId = createdItems.get(file)?.[0];
+    if (itemId === undefined) continue;
+    const [item] = await deps.db.select({ version: queueItems.version, state: queueItems.state }).from(queueItems).where(eq(queueItems.id, itemId));
+    if (!item) continue;
+    const claimed = await claimItem(qdeps, analyst, itemId, item.version);
+    if (action.kind === 'label') {
+      await labelItem(qdeps, analyst, itemId, claimed.version, eventLabelSchema.parse(action.label));
+      report.labelled++;
+    } else if (action.kind === 'dismiss') {
+      await dismissItem(qdeps, analyst, itemId, claimed.version, { noiseReason: action.noiseReason, note: action.note });
+      report.dismissed++;
+    } else {
+      await escalateItem({ ...qdeps, onError: (err) => deps.logger.error({ err, itemId }, 'demo seed: escalation hook failed') }, analyst, itemId, claimed.version, { reason: action.reason }, deps.escalationListeners ?? []);
+      report.escalated++;
+    }
+  }
+}

@@ -1,0 +1,71 @@
+import { count, eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { auditLog } from '../../../server/db/schema/audit-log';
+import { changeLog } from '../../../server/db/schema/change-log';
+import { queueItems } from '../../../server/db/schema/queue-items';
+import { uploads, windows } from '../../../server/db/schema/uploads';
+import { seedDemo } from '../../../server/db/seed-demo';
+import { ingestDemo, readDemoManifest, type DemoIngestReport } from '../../../server/demo/ingest-demo';
+import { createAnalysisPool, type AnalysisPool } from '../../../server/jobs/analysis-pool';
+import { createTestContext, type TestContext } from '../../setup/test-app';
+
+let ctx: TestContext;
+let pool: AnalysisPool;
+let first: DemoIngestReport;
+
+async function counts(): Promise<Record<string, number>> {
+  const db = ctx.database.db;
+  const n = async (table: typeof uploads | typeof windows | typeof queueItems | typeof auditLog | typeof changeLog): Promise<number> => (await db.select({ n: count() }).from(table))[0]?.n ?? -1;
+  return { uploads: await n(uploads), windows: await n(windows), items: await n(queueItems), audit: await n(auditLog), changes: await n(changeLog) };
+}
+
+beforeAll(async () => {
+  ctx = await createTestContext();
+  pool = createAnalysisPool({ threads: 1 });
+  await seedDemo(ctx.database.db, { demoPassword: 'kestrel-demo-pass' });
+  first = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger });
+}, 180_000);
+
+afterAll(async () => {
+  await pool?.close();
+  await ctx?.close();
+});
+
+describe('ingestDemo (the npm start demo step, through the real ingest service)', () => {
+  it('stores every demo file once, one queue item per window, with nothing refused', async () => {
+    const files = readDemoManifest().files.length;
+    expect(first.rejected).toEqual([]);
+    expect(first.files).toBe(files);
+    expect(first.created).toBe(files);
+    expect(first.duplicates).toBe(0);
+    expect(first.items).toBe(files);
+    const c = await counts();
+    expect(c.uploads).toBe(files);
+    expect(c.windows).toBe(files);
+    expect(c.items).toBe(files);
+    console.log(`demo ingest: ${files} files in ${first.seconds.toFixed(1)} s`);
+  });
+
+  it('has the demo analyst label, dismiss and escalate a handful through the queue services (audit rows are real)', async () => {
+    expect([first.labelled, first.dismissed, first.escalated]).toEqual([3, 4, 2]);
+    const db = ctx.database.db;
+    const states = await db.select({ state: queueItems.state, n: count() }).from(queueItems).groupBy(queueItems.state);
+    const byState = Object.fromEntries(states.map((s) => [s.state, s.n]));
+    expect(byState.labelled).toBe(3);
+    expect(byState.dismissed).toBe(4);
+    expect(byState.escalated).toBe(2);
+    for (const action of ['queue.claimed', 'queue.labelled', 'queue.dismissed', 'queue.escalated']) {
+      const [row] = await db.select({ n: count() }).from(auditLog).where(eq(auditLog.action, action));
+      expect(row?.n, action).toBe(action === 'queue.claimed' ? 9 : action === 'queue.labelled' ? 3 : action === 'queue.dismissed' ? 4 : 2);
+    }
+  });
+
+  it('adds nothing on a second run: every file is a duplicate by SHA-256', async () => {
+    const before = await counts();
+    const again = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger });
+    expect(again.created).toBe(0);
+    expect(again.duplicates).toBe(first.files);
+    expect([again.items, again.labelled, again.dismissed, again.escalated]).toEqual([0, 0, 0, 0]);
+    expect(await counts()).toEqual(before);
+  }, 60_000);
+});
