@@ -16,7 +16,10 @@ import { healthRouter } from './routes/health/router';
 import { openApiRouter } from './routes/openapi/router';
 import { queueRouter } from './routes/queue/router';
 import { stationsRouter } from './routes/stations/router';
+import { supervisorRouter } from './routes/supervisor/router';
 import { uploadsRouter, type UploadsRouterOptions } from './routes/uploads/router';
+import { publicBaseUrl } from './email/links';
+import { escalationListener } from './services/escalations';
 import { ingestTokenResolver } from './services/station-registry';
 
 /** The built client (vite build output). */
@@ -49,7 +52,10 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api/account', accountRouter(ctx, auth));
   app.use('/api/admin', adminRouter(ctx, auth));
   app.use('/api/audit', auditRouter(ctx));
-  app.use('/api/queue', queueRouter(ctx));
+  // Escalations reach every supervisor by e-mail and in the inbox (issue 7).
+  const onEscalation = escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify: () => ctx.hub.notify(), publicUrl: publicBaseUrl(ctx.env) });
+  app.use('/api/queue', queueRouter(ctx, { escalationListeners: [onEscalation] }));
+  app.use('/api/supervisor', supervisorRouter(ctx));
   app.use('/api/stations', stationsRouter(ctx));
   app.use('/api/uploads', uploadsRouter(ctx, opts.uploads));
   app.use('/api/openapi.json', openApiRouter(ctx));
