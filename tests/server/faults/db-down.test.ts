@@ -1,11 +1,9 @@
 import { Writable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { AppContext } from '../../../server/context';
 import { createDatabaseClient, type DatabaseClient } from '../../../server/db/client';
-import { loadEnv } from '../../../server/env';
-import { createAppHub, startServer, type RunningServer } from '../../../server/index';
+import { startServer, type RunningServer } from '../../../server/index';
 import { createLogger } from '../../../server/logger';
-import { appVersion } from '../../../server/version';
+import { contextOver } from '../../faults/support/context';
 import { ingestRowCounts, seedIngestToken, seedPerson, seedStation } from '../../faults/support/fixtures';
 import { startThrowawayDb, type ThrowawayDb } from '../../faults/support/private-db';
 import { makeWindowFile } from '../../faults/support/windows';
@@ -35,21 +33,22 @@ interface Outcome {
 describe('MariaDB stopped and started under load', () => {
   let db: ThrowawayDb;
   let client: DatabaseClient;
-  let ctx: AppContext;
+  let closeContext: (() => Promise<void>) | undefined;
   let running: RunningServer;
   const logLines: string[] = [];
 
   beforeAll(async () => {
     db = await startThrowawayDb('fault-dbdown');
     client = createDatabaseClient(db.url);
-    const env = loadEnv({ NODE_ENV: 'test', LOG_LEVEL: 'info' });
     const logger = createLogger('info', new Writable({ write: (c: Buffer, _e, done) => (logLines.push(c.toString('utf8')), done()) }));
-    ctx = { env, database: client, logger, version: appVersion, hub: createAppHub(client.db, logger, env) };
-    running = await startServer(ctx, { host: '127.0.0.1', port: 0, serveClient: false });
+    const built = await contextOver(client, logger);
+    closeContext = built.close;
+    running = await startServer(built.ctx, { host: '127.0.0.1', port: 0, serveClient: false });
   });
 
   afterAll(async () => {
     await running?.close();
+    await closeContext?.();
     await client?.close();
     await db?.cleanup();
   });
@@ -87,7 +86,7 @@ describe('MariaDB stopped and started under load', () => {
       while (!stop) {
         const i = next++;
         const form = new FormData();
-        form.append('files', new Blob([makeWindowFile('KV02', START_US + i * 120_000_000, { seed: i })]), `kv02-${i}.mseed`);
+        form.append('files', new Blob([Buffer.from(makeWindowFile('KV02', START_US + i * 120_000_000, { seed: i }))]), `kv02-${i}.mseed`);
         try {
           await record('upload', await fetch(`${running.url}/api/uploads`, { method: 'POST', headers: { Authorization: `Bearer ${token}` }, body: form }));
         } catch (err) {

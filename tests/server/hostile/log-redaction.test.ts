@@ -3,10 +3,8 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../../server/app';
 import type { AppContext } from '../../../server/context';
-import { loadEnv } from '../../../server/env';
-import { createAppHub } from '../../../server/index';
 import { createLogger } from '../../../server/logger';
-import { appVersion } from '../../../server/version';
+import { contextOver } from '../../faults/support/context';
 import { createTestDatabase, type TestDatabase } from '../../setup/test-db';
 import { seedIngestToken, seedPerson, seedStation } from '../../faults/support/fixtures';
 
@@ -24,12 +22,12 @@ const wrongBearer = 'kvi_NOT-A-REAL-TOKEN-but-secret-9f3a2c';
 describe('no secrets in logs', () => {
   let database: TestDatabase;
   let ctx: AppContext;
+  let closeContext: (() => Promise<void>) | undefined;
   const lines: string[] = [];
   const secrets: Record<string, string> = { password, wrongBearer };
 
   beforeAll(async () => {
     database = await createTestDatabase();
-    const env = loadEnv({ NODE_ENV: 'test', LOG_LEVEL: 'trace' });
     const sink = new Writable({
       write(chunk: Buffer, _enc, done) {
         lines.push(...chunk.toString('utf8').split('\n').filter((l) => l !== ''));
@@ -37,7 +35,9 @@ describe('no secrets in logs', () => {
       },
     });
     const logger = createLogger('trace', sink);
-    ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env) };
+    const built = await contextOver(database, logger, { LOG_LEVEL: 'trace' });
+    ctx = built.ctx;
+    closeContext = built.close;
     const person = await seedPerson(database.db, { roles: ['operator'], password, email: 'redaction.check@kestrel.example' });
     secrets.sessionId = person.sessionId;
     const stationId = await seedStation(database.db, 'KV01');
@@ -45,7 +45,7 @@ describe('no secrets in logs', () => {
   });
 
   afterAll(async () => {
-    await ctx?.hub.close();
+    await closeContext?.();
     await database?.drop();
   });
 
