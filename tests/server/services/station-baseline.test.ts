@@ -5,7 +5,7 @@ import { windowFeatures } from '../../../server/db/schema/window-features';
 import { stationBaseline } from '../../../server/services/station-baseline';
 import { createItem, ensureStation } from '../../setup/queue-fixtures';
 import { createTestContext, type TestContext } from '../../setup/test-app';
-import type { ItemState } from '../../../client/src/config/item-states';
+import type { ItemState } from '../../../shared/schemas/item-states';
 import type { Flag } from '../../../shared/schemas/flags';
 
 describe('station noise baseline (real MariaDB)', () => {
