@@ -3,7 +3,7 @@ import multer from 'multer';
 import { can } from '../../../shared/auth/policies';
 import { uploadFieldsSchema } from '../../../shared/schemas/upload';
 import type { AppContext } from '../../context';
-import { badRequest, forbidden, tooLarge, unauthorized } from '../../errors';
+import { badRequest, forbidden, tooLarge, unauthorized, type AppError } from '../../errors';
 import type { AnalysisPool } from '../../jobs/analysis-pool';
 import { clientAddress, getRequestAuth } from '../../middleware/auth';
 import { parseInput } from '../../middleware/validate';
@@ -28,6 +28,66 @@ function uploadCaller(req: Request): IngestCaller {
 }
 
 /**
+ * Answers `err` now and closes the connection once the answer is written. Needed because multer,
+ * after a limit error, drains the rest of the body before it reports, so a client streaming
+ * 200 MB (or a body without end) would be read in full before hearing 413. Later errors for the
+ * same request find the headers sent and are dropped by the error handler.
+ */
+function refuseNow(req: Request, res: Response, err: AppError): void {
+  if (res.headersSent) return;
+  res.setHeader('Connection', 'close');
+  res.status(err.status).json({ error: { code: err.code, message: err.message } });
+  res.once('finish', () => setImmediate(() => req.socket.destroy()));
+}
+
+/**
+ * multer's memory storage plus the limits checked as the bytes arrive: the file past
+ * SEISIFT_MAX_UPLOAD_FILES, or a file growing past SEISIFT_MAX_UPLOAD_BYTES, is answered 413 at
+ * once (refuseNow). Files within the limits are kept in memory as `buffer`, as memoryStorage does.
+ */
+function earlyRefusalStorage(maxBytes: number, maxFiles: number): multer.StorageEngine {
+  const filesSeen = new WeakMap<Request, number>();
+  return {
+    _handleFile(req, file, cb) {
+      const res = req.res;
+      const n = (filesSeen.get(req) ?? 0) + 1;
+      filesSeen.set(req, n);
+      if (n > maxFiles) {
+        if (res) refuseNow(req, res, tooLarge(`More than ${maxFiles} files in one request (SEISIFT_MAX_UPLOAD_FILES = ${maxFiles}); send them in several requests`));
+        file.stream.resume();
+        cb(new multer.MulterError('LIMIT_FILE_COUNT'));
+        return;
+      }
+      const chunks: Buffer[] = [];
+      let size = 0;
+      let refused = false;
+      const tooBig = () => {
+        if (refused) return;
+        refused = true;
+        chunks.length = 0;
+        if (res) refuseNow(req, res, tooLarge(`A file (field "${file.fieldname}") is larger than the limit of ${mb(maxBytes)} per file (SEISIFT_MAX_UPLOAD_BYTES = ${maxBytes} bytes)`));
+      };
+      file.stream.on('data', (chunk: Buffer) => {
+        size += chunk.length;
+        if (size > maxBytes) tooBig();
+        else if (!refused) chunks.push(chunk);
+      });
+      file.stream.on('limit', tooBig);
+      file.stream.on('error', (err) => cb(err));
+      file.stream.on('end', () => {
+        if (refused) return cb(new multer.MulterError('LIMIT_FILE_SIZE', file.fieldname));
+        cb(null, { buffer: Buffer.concat(chunks, size), size });
+      });
+    },
+    _removeFile(_req, file, cb) {
+      // Drop the buffer so a refused request holds no file bytes.
+      Object.assign(file, { buffer: Buffer.alloc(0) });
+      cb(null);
+    },
+  };
+}
+
+/**
  * POST /api/uploads: multipart with one or more files in the field `files` (MiniSEED 2/3 or CSV)
  * and an optional `streamId` for CSV. Authenticated by session or ingest token BEFORE the body is
  * read; multer's limits (SEISIFT_MAX_UPLOAD_BYTES per file, SEISIFT_MAX_UPLOAD_FILES per request)
@@ -38,9 +98,11 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
   const router = Router();
   const maxBytes = ctx.env.SEISIFT_MAX_UPLOAD_BYTES;
   const maxFiles = ctx.env.SEISIFT_MAX_UPLOAD_FILES;
+  // busboy's own file-count limit is one higher, so the file past the limit reaches our storage
+  // engine, which refuses it at once (multer's own limit error waits for the whole body).
   const upload = multer({
-    storage: multer.memoryStorage(),
-    limits: { fileSize: maxBytes, files: maxFiles, fields: 5, fieldSize: 1024, parts: maxFiles + 5, headerPairs: 200 },
+    storage: earlyRefusalStorage(maxBytes, maxFiles),
+    limits: { fileSize: maxBytes, files: maxFiles + 1, fields: 5, fieldSize: 1024, parts: maxFiles + 6, headerPairs: 200 },
   }).any();
 
   const guard = (req: Request, _res: Response, next: NextFunction) => {
