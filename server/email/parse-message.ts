@@ -90,7 +90,8 @@ function decodeBody(body: string, headers: Map<string, string>, charset: string)
 }
 
 function walk(raw: string, found: { text: string | null; html: string | null }, depth: number): Map<string, string> {
-  const { head, body } = splitHead(raw);
+  const { head, body: rawBody } = splitHead(raw);
+  let body = rawBody;
   const headers = parseHeaders(head);
   const ct = contentType(headers.get('content-type'));
   const disposition = (headers.get('content-disposition') ?? '').toLowerCase();
@@ -105,6 +106,8 @@ function walk(raw: string, found: { text: string | null; html: string | null }, 
     return headers;
   }
   if (disposition.startsWith('attachment')) return headers;
+  // A single-part message ends with the line break that closes its last line (RFC 5321 §4.1.1.4).
+  if (depth === 0) body = body.replace(/\r?\n$/, '');
   const charset = ct.params.get('charset') ?? 'utf-8';
   if (ct.type === 'text/plain' && found.text === null) found.text = decodeBody(body, headers, charset).replace(/\r\n/g, '\n');
   else if (ct.type === 'text/html' && found.html === null) found.html = decodeBody(body, headers, charset).replace(/\r\n/g, '\n');
