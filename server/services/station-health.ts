@@ -39,6 +39,9 @@ export interface ChannelPsd {
   /** Whether the channel had a sensitivity (only then do the noise models apply). */
   physical: boolean;
   units: string;
+  /** Peterson (1993) NLNM and NHNM at `freqs`, dB rel 1 (m/s²)²/Hz (null outside 0.1–100 000 s). */
+  nlnm: Array<number | null>;
+  nhnm: Array<number | null>;
 }
 
 /** The station's health. */
@@ -109,6 +112,8 @@ export async function stationHealth(db: Database, stationId: number, opts: { day
         db: dbs,
         physical: acc !== null,
         units: acc ? 'dB rel 1 (m/s²)²/Hz' : 'dB rel 1 counts²/Hz',
+        nlnm: freqs.map((f) => nlnmDb(1 / f)),
+        nhnm: freqs.map((f) => nhnmDb(1 / f)),
       });
     }
   }

@@ -1,0 +1,6 @@
+import { StationList } from '../../features/stations/components/station-list';
+
+/** /stations: the station registry. */
+export function StationsRoute() {
+  return <StationList />;
+}

@@ -1,0 +1,6 @@
+import { UploadScreen } from '../../features/uploads/components/upload-screen';
+
+/** /upload: send waveform files by hand. */
+export function UploadRoute() {
+  return <UploadScreen />;
+}

@@ -1,0 +1,61 @@
+import { Link } from 'react-router';
+import { EmptyState } from '../../../components/ui/empty-state';
+import { Loading } from '../../../components/ui/skeleton';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
+import { paths } from '../../../config/paths';
+import { useStations } from '../api/stations';
+
+/** Coordinates in degrees with 4 decimals and a hemisphere letter. */
+export function formatCoordinates(lat: number, lon: number): string {
+  return `${Math.abs(lat).toFixed(4)}° ${lat >= 0 ? 'N' : 'S'}, ${Math.abs(lon).toFixed(4)}° ${lon >= 0 ? 'E' : 'W'}`;
+}
+
+/** The station list: every station the user may see, linking to each station's page. */
+export function StationList() {
+  const { data, error, isPending } = useStations();
+  return (
+    <div className="flex max-w-5xl flex-col gap-4">
+      <header>
+        <h1 className="text-xl font-semibold">Stations</h1>
+        <p className="text-base text-ink-muted">Registry, processing profiles, ingest tokens and health of the stations you look after.</p>
+      </header>
+      {isPending ? <Loading label="Loading stations…" /> : null}
+      {error ? <p role="alert" className="text-danger">{error.message}</p> : null}
+      {data && data.stations.length === 0 ? (
+        <EmptyState title="No stations yet">Register a station or import its StationXML; an admin may also assign you existing stations.</EmptyState>
+      ) : null}
+      {data && data.stations.length > 0 ? (
+        <TableScroll label="Stations">
+          <Table caption="Stations you may see" captionHidden>
+            <THead>
+              <Tr>
+                <Th>Station</Th>
+                <Th>Name</Th>
+                <Th>Position</Th>
+                <Th figure>Elevation (m)</Th>
+                <Th figure>Channels</Th>
+                <Th>Latest window (UTC)</Th>
+              </Tr>
+            </THead>
+            <TBody>
+              {data.stations.map((s) => (
+                <Tr key={s.id}>
+                  <Td className="font-mono">
+                    <Link to={`${paths.stations.href}/${s.id}`}>
+                      {s.network}.{s.code}
+                    </Link>
+                  </Td>
+                  <Td>{s.name}</Td>
+                  <Td className="font-mono text-sm">{formatCoordinates(s.latitude, s.longitude)}</Td>
+                  <Td figure>{s.elevationM.toFixed(0)}</Td>
+                  <Td figure>{s.channelCount}</Td>
+                  <Td className="font-mono text-sm">{s.lastWindowAt ?? '—'}</Td>
+                </Tr>
+              ))}
+            </TBody>
+          </Table>
+        </TableScroll>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,124 @@
+import { Link } from 'react-router';
+import { EmptyState } from '../../../components/ui/empty-state';
+import { Loading } from '../../../components/ui/skeleton';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
+import { TriageCaution } from '../../../components/ui/triage-caution';
+import { paths } from '../../../config/paths';
+import { useStation, useStationHealth } from '../api/stations';
+import { BaselineSummary, NoiseTrend, PsdPlots, QcFindings, RecentItems } from './health-panels';
+import { ProfileEditor } from './profile-editor';
+import { formatCoordinates } from './station-list';
+import { TokensPanel } from './tokens-panel';
+
+function Section({ id, title, children }: { id: string; title: string; children: React.ReactNode }) {
+  return (
+    <section aria-labelledby={id} className="flex flex-col gap-2">
+      <h2 id={id} className="text-md font-semibold">
+        {title}
+      </h2>
+      {children}
+    </section>
+  );
+}
+
+/**
+ * One station: its facts and channels, health (latest PSD per channel against NLNM/NHNM, noise
+ * trend, QC findings, baseline), recent items, the processing profile editor and ingest tokens.
+ * Controls the server would refuse are hidden or explained; the server decides.
+ */
+export function StationPage({ stationId }: { stationId: number }) {
+  const station = useStation(stationId);
+  const health = useStationHealth(stationId);
+  if (station.isPending) return <Loading label="Loading the station…" />;
+  if (station.error) {
+    return (
+      <EmptyState title="Station not available" action={<Link to={paths.stations.href}>Back to the stations</Link>}>
+        {station.error.message}
+      </EmptyState>
+    );
+  }
+  const s = station.data.station;
+  const key = `${s.network}.${s.code}`;
+  const flagsShown = (health.data?.items.length ?? 0) > 0;
+  return (
+    <div className="flex max-w-6xl flex-col gap-6">
+      <header className="flex flex-col gap-1">
+        <p className="text-sm">
+          <Link to={paths.stations.href}>Stations</Link> / <span className="font-mono">{key}</span>
+        </p>
+        <h1 className="text-xl font-semibold">
+          <span className="font-mono">{key}</span> — {s.name}
+        </h1>
+        <p className="text-base text-ink-muted">
+          <span className="font-mono">{formatCoordinates(s.latitude, s.longitude)}</span>, {s.elevationM.toFixed(0)} m.{s.siteDescription ? ` ${s.siteDescription}` : ''}
+        </p>
+      </header>
+
+      {flagsShown ? <TriageCaution /> : null}
+
+      <Section id="st-channels" title="Channels">
+        {s.channels.length === 0 ? (
+          <p className="text-sm text-ink-muted">No channels registered. Import the station’s StationXML, or uploads are analysed in counts without expected rates.</p>
+        ) : (
+          <TableScroll label="Channels">
+            <Table caption={`Channels of ${key}`} captionHidden>
+              <THead>
+                <Tr>
+                  <Th>Stream id</Th>
+                  <Th figure>Rate (Hz)</Th>
+                  <Th figure>Sensitivity</Th>
+                  <Th>at</Th>
+                  <Th>Input units</Th>
+                  <Th>Response</Th>
+                </Tr>
+              </THead>
+              <TBody>
+                {s.channels.map((c) => (
+                  <Tr key={c.id}>
+                    <Td className="font-mono">{c.streamId}</Td>
+                    <Td figure>{c.sampleRateHz}</Td>
+                    <Td figure>{c.sensitivity === null ? '—' : c.sensitivity.toExponential(4)}</Td>
+                    <Td className="font-mono text-sm">{c.sensitivityFrequencyHz === null ? '—' : `${c.sensitivityFrequencyHz} Hz`}</Td>
+                    <Td className="font-mono text-sm">{c.sensitivityInputUnits ?? '—'}</Td>
+                    <Td className="text-sm">{c.hasResponse ? 'poles and zeros' : 'flat sensitivity only'}</Td>
+                  </Tr>
+                ))}
+              </TBody>
+            </Table>
+          </TableScroll>
+        )}
+      </Section>
+
+      <Section id="st-health" title="Health: latest spectrum per channel">
+        {health.isPending ? <Loading label="Loading health…" rows={2} /> : null}
+        {health.error ? <p role="alert" className="text-danger">{health.error.message}</p> : null}
+        {health.data ? <PsdPlots health={health.data} /> : null}
+      </Section>
+
+      {health.data ? (
+        <>
+          <Section id="st-trend" title={`Noise level over the last ${health.data.days} days`}>
+            <NoiseTrend health={health.data} />
+          </Section>
+          <Section id="st-qc" title="QC findings">
+            <QcFindings health={health.data} />
+          </Section>
+          <Section id="st-baseline" title="Noise baseline used by the score">
+            <BaselineSummary baseline={health.data.baseline} />
+          </Section>
+          <Section id="st-items" title="Recent items">
+            <RecentItems health={health.data} />
+          </Section>
+        </>
+      ) : null}
+
+      <Section id="st-profile" title="Processing profile">
+        <ProfileEditor key={s.updatedAt} stationId={s.id} profile={s.profile} channels={s.channels} canEdit />
+      </Section>
+
+      <Section id="st-tokens" title="Ingest tokens">
+        <TokensPanel stationId={s.id} stationKey={key} />
+      </Section>
+    </div>
+  );
+}
