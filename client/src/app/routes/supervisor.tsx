@@ -1,0 +1,24 @@
+import { DashboardScreen } from '../../features/supervisor/components/dashboard-screen';
+import { InboxScreen } from '../../features/supervisor/components/inbox-screen';
+import { ReviewScreen } from '../../features/supervisor/components/review-screen';
+import { ThresholdsScreen } from '../../features/supervisor/components/thresholds-screen';
+
+/** /inbox: escalations for the signed-in supervisor. */
+export function InboxRoute() {
+  return <InboxScreen />;
+}
+
+/** /review: labelled events, candidate events and the catalogue export. */
+export function ReviewRoute() {
+  return <ReviewScreen />;
+}
+
+/** /thresholds: per-station thresholds against labelled history. */
+export function ThresholdsRoute() {
+  return <ThresholdsScreen />;
+}
+
+/** /dashboard: the network's triage at a glance. */
+export function DashboardRoute() {
+  return <DashboardScreen />;
+}

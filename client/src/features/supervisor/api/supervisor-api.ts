@@ -1,0 +1,205 @@
+import { queryOptions } from '@tanstack/react-query';
+import { z } from 'zod';
+import { apiErrorBodySchema } from '../../../../../shared/api-error';
+import { evaluationSchema, reviewRowSchema, type ThresholdValues } from '../../../../../shared/schemas/supervisor';
+
+/**
+ * The supervisor screens' calls to /api/supervisor (server/routes/supervisor/router.ts), each with
+ * a zod schema of its answer and, for reads, a TanStack Query options factory.
+ */
+
+/** An API answer other than 2xx: status, stable code and the server's message. */
+export class SupervisorApiError extends Error {
+  override readonly name = 'SupervisorApiError';
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+  ) {
+    super(message);
+  }
+}
+
+/** Fetches JSON and parses it with `schema`; non-2xx answers throw with the server's message. */
+export async function fetchJson<S extends z.ZodType>(schema: S, path: string, init: { method?: 'GET' | 'POST'; body?: unknown } = {}): Promise<z.infer<S>> {
+  const res = await fetch(path, {
+    method: init.method ?? 'GET',
+    credentials: 'same-origin',
+    headers: init.body === undefined ? { Accept: 'application/json' } : { Accept: 'application/json', 'Content-Type': 'application/json' },
+    body: init.body === undefined ? undefined : JSON.stringify(init.body),
+  });
+  const json: unknown = await res.json().catch(() => null);
+  if (!res.ok) {
+    const err = apiErrorBodySchema.safeParse(json);
+    if (err.success) throw new SupervisorApiError(res.status, err.data.error.code, err.data.error.message);
+    throw new SupervisorApiError(res.status, 'http_error', `${path}: the server answered ${res.status}`);
+  }
+  const parsed = schema.safeParse(json);
+  if (!parsed.success) throw new SupervisorApiError(500, 'bad_response', `${path}: unexpected answer (${parsed.error.issues[0]?.path.join('.') ?? ''}: ${parsed.error.issues[0]?.message ?? ''})`);
+  return parsed.data;
+}
+
+const qs = (params: Record<string, string | number | undefined>) => {
+  const u = new URLSearchParams();
+  for (const [k, v] of Object.entries(params)) if (v !== undefined && v !== '') u.set(k, String(v));
+  return u.toString();
+};
+
+// Inbox.
+
+/** One inbox entry. */
+export const inboxEntrySchema = z.object({
+  id: z.number(),
+  itemId: z.number(),
+  station: z.string(),
+  subject: z.string(),
+  reason: z.string(),
+  escalatedBy: z.string().nullable(),
+  createdAt: z.string(),
+  readAt: z.string().nullable(),
+  acknowledgedAt: z.string().nullable(),
+  resolution: z.string().nullable(),
+  resolutionComment: z.string().nullable(),
+  resolvedBy: z.string().nullable(),
+  resolvedAt: z.string().nullable(),
+  itemState: z.string(),
+  itemVersion: z.number(),
+  mailError: z.string().nullable(),
+});
+/** One inbox entry. */
+export type InboxEntry = z.infer<typeof inboxEntrySchema>;
+const inboxSchema = z.object({ entries: z.array(inboxEntrySchema), unread: z.number() });
+
+/** The signed-in supervisor's inbox. */
+export const inboxQuery = () => queryOptions({ queryKey: ['supervisor', 'inbox'], queryFn: () => fetchJson(inboxSchema, '/api/supervisor/inbox') });
+
+/** An inbox action: read, acknowledge, confirm, or return with a comment. */
+export function inboxAction(id: number, action: 'read' | 'acknowledge' | 'confirm' | 'return', comment?: string) {
+  return fetchJson(inboxSchema, `/api/supervisor/inbox/${id}/${action}`, { method: 'POST', body: action === 'return' ? { comment } : {} });
+}
+
+// Review.
+
+/** Filters of the review list. */
+export interface ReviewFilters {
+  station?: string;
+  type?: string;
+  analyst?: string;
+  status?: string;
+  from?: string;
+  to?: string;
+}
+
+/** The review list under `f`. */
+export const reviewQuery = (f: ReviewFilters) =>
+  queryOptions({
+    queryKey: ['supervisor', 'review', f],
+    queryFn: () => fetchJson(z.object({ items: z.array(reviewRowSchema) }), `/api/supervisor/review?${qs({ ...f })}`),
+  });
+
+/** Sets a labelled item's evaluation status. */
+export function setStatus(itemId: number, version: number, status: string, comment: string) {
+  return fetchJson(z.object({ ok: z.boolean() }), `/api/supervisor/review/items/${itemId}/status`, { method: 'POST', body: { version, status, comment } });
+}
+
+/** Returns a labelled item to the queue with a comment. */
+export function returnItem(itemId: number, version: number, comment: string) {
+  return fetchJson(z.object({ ok: z.boolean() }), `/api/supervisor/review/items/${itemId}/return`, { method: 'POST', body: { version, comment } });
+}
+
+// Candidate events.
+
+const candidateSchema = z.object({
+  id: z.number(),
+  anchorItemId: z.number(),
+  firstArrival: z.string(),
+  lastArrival: z.string(),
+  stationCount: z.number(),
+  members: z.array(z.object({ itemId: z.number(), station: z.string(), stationId: z.number(), arrival: z.string(), state: z.string(), flag: z.string(), score: z.number(), labelType: z.string().nullable(), version: z.number() })),
+});
+/** A candidate event. */
+export type CandidateEvent = z.infer<typeof candidateSchema>;
+
+/** Candidate events whose first arrival is in [from, to). */
+export const candidateEventsQuery = (from: string, to: string) =>
+  queryOptions({
+    queryKey: ['supervisor', 'candidates', from, to],
+    queryFn: () => fetchJson(z.object({ events: z.array(candidateSchema) }), `/api/supervisor/candidate-events?${qs({ from, to })}`),
+  });
+
+/** Labels every member of a candidate event. */
+export function labelCandidate(id: number, label: { eventType: string; certainty: string; note: string }) {
+  return fetchJson(z.object({ members: z.array(z.object({ itemId: z.number(), result: z.string(), reason: z.string().optional() })) }), `/api/supervisor/candidate-events/${id}/label`, { method: 'POST', body: { label } });
+}
+
+// Thresholds.
+
+const thresholdValues = z.object({ eventZ: z.number(), noiseZ: z.number(), centroidMaxFactor: z.number() });
+const reportSchema = z.object({
+  stationId: z.number(),
+  station: z.string(),
+  current: thresholdValues,
+  proposed: thresholdValues.nullable(),
+  labelled: z.object({ events: z.number(), noise: z.number() }),
+  asShown: evaluationSchema,
+  currentEvaluation: evaluationSchema,
+  proposedEvaluation: evaluationSchema.nullable(),
+  curve: z.array(evaluationSchema.extend({ eventZ: z.number() })),
+  unreadable: z.number(),
+});
+/** A thresholds report. */
+export type ThresholdReport = z.infer<typeof reportSchema>;
+
+/** The thresholds report of a station, with proposed values when given. */
+export const thresholdsQuery = (stationId: number, proposed: ThresholdValues | null) =>
+  queryOptions({
+    queryKey: ['supervisor', 'thresholds', stationId, proposed],
+    queryFn: () => fetchJson(reportSchema, `/api/supervisor/thresholds/${stationId}?${proposed ? qs({ ...proposed }) : ''}`),
+  });
+
+/** Applies thresholds to a station (no re-scoring). */
+export function applyThresholds(stationId: number, thresholds: ThresholdValues) {
+  return fetchJson(reportSchema, `/api/supervisor/thresholds/${stationId}/apply`, { method: 'POST', body: { thresholds } });
+}
+
+/** Re-scores a station's items in [from, to). */
+export function rescore(stationId: number, from: string, to: string) {
+  return fetchJson(z.object({ rescored: z.number(), flagChanged: z.number(), skipped: z.number() }), `/api/supervisor/thresholds/${stationId}/rescore`, { method: 'POST', body: { from, to } });
+}
+
+/** The station list (id and codes) for the station picker. */
+export const stationsQuery = () =>
+  queryOptions({
+    queryKey: ['supervisor', 'stations'],
+    queryFn: async () => {
+      const body = await fetchJson(z.unknown(), '/api/stations');
+      const list = z.array(z.object({ id: z.number(), network: z.string(), code: z.string() }));
+      const direct = list.safeParse(body);
+      if (direct.success) return direct.data;
+      return z.object({ stations: list }).parse(body).stations;
+    },
+  });
+
+// Dashboard.
+
+const dashboardSchema = z.object({
+  days: z.array(z.string()),
+  itemsPerStation: z.array(z.object({ station: z.string(), counts: z.array(z.number()) })),
+  flagMix: z.array(z.object({ flag: z.string(), counts: z.array(z.number()) })),
+  medianTriageMinutes: z.array(z.number().nullable()),
+  triageCount: z.array(z.number()),
+  workload: z.array(z.object({ analyst: z.string(), actions: z.number() })),
+  falseAlarmRate: z.array(z.number().nullable()),
+  flaggedWithTruth: z.array(z.number()),
+});
+/** The dashboard's numbers. */
+export type Dashboard = z.infer<typeof dashboardSchema>;
+
+/** The dashboard for [from, to). */
+export const dashboardQuery = (from: string, to: string) =>
+  queryOptions({ queryKey: ['supervisor', 'dashboard', from, to], queryFn: () => fetchJson(dashboardSchema, `/api/supervisor/dashboard?${qs({ from, to })}`) });
+
+/** The export download URL. */
+export function exportUrl(from: string, to: string, format: 'quakeml' | 'csv', status: string): string {
+  return `/api/supervisor/export?${qs({ from, to, format, status })}`;
+}

@@ -1,0 +1,98 @@
+import { useQuery } from '@tanstack/react-query';
+import { useState } from 'react';
+import { Input } from '../../../components/ui/input';
+import { PlotFrame } from '../../../components/ui/plot-frame';
+import { Loading } from '../../../components/ui/skeleton';
+import { Table, TBody, THead, Tr } from '../../../components/ui/table';
+import { TriageCaution } from '../../../components/ui/triage-caution';
+import { dashboardQuery } from '../api/supervisor-api';
+import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage } from './common';
+
+const dayFormat = (v: number) => new Date(v * 1000).toISOString().slice(5, 10);
+
+/**
+ * /dashboard: items per day per station, the flag mix, median time to triage, analyst workload and
+ * the false-alarm rate of “likely event” over time. Every series differs by dash pattern as well as
+ * colour, and the legend names it.
+ */
+export function DashboardScreen() {
+  const [fromDay, setFromDay] = useState(daysAgoIso(13).slice(0, 10));
+  const [toDay, setToDay] = useState(daysAgoIso(-1).slice(0, 10));
+  const q = useQuery(dashboardQuery(dayToIso(fromDay), dayToIso(toDay)));
+  const d = q.data;
+  const x = d ? d.days.map((day) => Date.parse(`${day}T00:00:00Z`) / 1000) : [];
+  return (
+    <SupervisorPage title="Dashboard" summary="How the network's triage is going, per UTC day.">
+      <TriageCaution variant="line" />
+      <form className="flex flex-wrap items-end gap-3" aria-label="Period" onSubmit={(e) => e.preventDefault()}>
+        <label className="flex flex-col text-sm">
+          From (UTC day)
+          <Input type="date" value={fromDay} onChange={(e) => setFromDay(e.target.value)} />
+        </label>
+        <label className="flex flex-col text-sm">
+          To (UTC day, exclusive)
+          <Input type="date" value={toDay} onChange={(e) => setToDay(e.target.value)} />
+        </label>
+      </form>
+      <ErrorLine error={q.error} />
+      {!d ? (
+        <Loading label="Loading the dashboard…" />
+      ) : (
+        <div className="grid gap-4 lg:grid-cols-2">
+          <PlotFrame
+            title="Items per day per station"
+            description={`Queue items that arrived each day, one line per station: ${d.itemsPerStation.map((s) => `${s.station} ${s.counts.reduce((a, b) => a + b, 0)}`).join(', ')}.`}
+            x={{ label: 'day (UTC)', values: x, format: dayFormat }}
+            y={{ label: 'items' }}
+            series={d.itemsPerStation.map((s) => ({ label: s.station, values: s.counts }))}
+          />
+          <PlotFrame
+            title="Flag mix"
+            description="Items per day by automatic flag."
+            x={{ label: 'day (UTC)', values: x, format: dayFormat }}
+            y={{ label: 'items' }}
+            series={d.flagMix.map((f) => ({ label: f.flag, values: f.counts }))}
+          />
+          <PlotFrame
+            title="Median time to triage"
+            description="Median minutes from an item's arrival to its first label, dismissal or escalation, by the day of the triage."
+            x={{ label: 'day (UTC)', values: x, format: dayFormat }}
+            y={{ label: 'median', unit: 'min' }}
+            series={[{ label: 'median time to triage', values: d.medianTriageMinutes }]}
+          />
+          <PlotFrame
+            title="False-alarm rate of “likely event”"
+            description="Of the items flagged likely event that arrived each day and have been labelled or dismissed, the share that turned out to be noise."
+            x={{ label: 'day (UTC)', values: x, format: dayFormat }}
+            y={{ label: 'false alarms', format: (v) => `${Math.round(v * 100)} %` }}
+            series={[{ label: 'false-alarm rate', values: d.falseAlarmRate }]}
+          />
+          <Section title="Analyst workload">
+            <Table caption="Labels, dismissals and escalations per analyst in the period">
+              <THead>
+                <tr>
+                  <th scope="col">Analyst</th>
+                  <th scope="col">Actions</th>
+                </tr>
+              </THead>
+              <TBody>
+                {d.workload.length === 0 ? (
+                  <Tr>
+                    <td colSpan={2}>No triage in this period.</td>
+                  </Tr>
+                ) : (
+                  d.workload.map((w) => (
+                    <Tr key={w.analyst}>
+                      <td>{w.analyst}</td>
+                      <td className="font-mono">{w.actions}</td>
+                    </Tr>
+                  ))
+                )}
+              </TBody>
+            </Table>
+          </Section>
+        </div>
+      )}
+    </SupervisorPage>
+  );
+}

@@ -1,0 +1,138 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useState } from 'react';
+import { Badge } from '../../../components/ui/badge';
+import { Button } from '../../../components/ui/button';
+import { EmptyState } from '../../../components/ui/empty-state';
+import { Loading } from '../../../components/ui/skeleton';
+import { Table, TableScroll, TBody, THead, Tr } from '../../../components/ui/table';
+import { TriageCaution } from '../../../components/ui/triage-caution';
+import { inboxAction, inboxQuery, type InboxEntry } from '../api/supervisor-api';
+import { useSupervisorLive } from '../hooks/use-supervisor-live';
+import { ErrorLine, SupervisorPage } from './common';
+
+/**
+ * /inbox: escalations sent to this supervisor, newest first, updating live. Acknowledge ("I am on
+ * it"), then confirm the item or return it to the queue with a comment the analyst sees.
+ */
+export function InboxScreen() {
+  const live = useSupervisorLive();
+  const qc = useQueryClient();
+  const inbox = useQuery(inboxQuery());
+  const [returning, setReturning] = useState<number | null>(null);
+  const [comment, setComment] = useState('');
+  const act = useMutation({
+    mutationFn: (v: { id: number; action: 'read' | 'acknowledge' | 'confirm' | 'return'; comment?: string }) => inboxAction(v.id, v.action, v.comment),
+    onSuccess: (data) => {
+      qc.setQueryData(inboxQuery().queryKey, data);
+      setReturning(null);
+      setComment('');
+    },
+  });
+  const unread = inbox.data?.unread ?? 0;
+  return (
+    <SupervisorPage
+      title="Inbox"
+      summary={
+        <span>
+          Escalations from the duty analysts. <span aria-live="polite" data-testid="unread-count">{unread === 0 ? 'Nothing unread' : `${unread} unread`}</span>
+        </span>
+      }
+      live={live}
+    >
+      <TriageCaution variant="line" />
+      <ErrorLine error={inbox.error ?? act.error} />
+      {inbox.isPending ? (
+        <Loading label="Loading the inbox…" />
+      ) : (inbox.data?.entries.length ?? 0) === 0 ? (
+        <EmptyState title="No escalations">When an analyst escalates an item it appears here at once, and you get an e-mail.</EmptyState>
+      ) : (
+        <TableScroll label="Escalations">
+          <Table caption="Escalations, newest first">
+            <THead>
+              <tr>
+                <th scope="col">Received</th>
+                <th scope="col">Item</th>
+                <th scope="col">Reason</th>
+                <th scope="col">Status</th>
+                <th scope="col">Actions</th>
+              </tr>
+            </THead>
+            <TBody>
+              {inbox.data?.entries.map((e) => (
+                <Tr key={e.id} data-testid={`inbox-entry-${e.id}`} className={e.readAt ? undefined : 'font-semibold'}>
+                  <td className="font-mono text-sm whitespace-nowrap">{e.createdAt}</td>
+                  <td>
+                    <a className="underline" href={`/queue/items/${e.itemId}`} onClick={() => !e.readAt && act.mutate({ id: e.id, action: 'read' })}>
+                      {e.subject}
+                    </a>
+                    <div className="text-sm text-ink-muted">escalated by {e.escalatedBy ?? 'someone'}</div>
+                  </td>
+                  <td className="max-w-[28rem] text-sm">{e.reason}</td>
+                  <td>
+                    <EntryStatus entry={e} />
+                  </td>
+                  <td>
+                    {e.resolution ? null : returning === e.id ? (
+                      <form
+                        className="flex flex-col gap-1"
+                        onSubmit={(ev) => {
+                          ev.preventDefault();
+                          act.mutate({ id: e.id, action: 'return', comment });
+                        }}
+                      >
+                        <label className="text-sm" htmlFor={`ret-${e.id}`}>
+                          Comment for the analyst
+                        </label>
+                        <textarea id={`ret-${e.id}`} className="rounded-xs border border-line bg-surface p-1 text-sm" rows={2} value={comment} onChange={(ev) => setComment(ev.target.value)} />
+                        <div className="flex gap-2">
+                          <Button size="sm" type="submit" variant="primary" disabled={comment.trim().length < 3}>
+                            Return to queue
+                          </Button>
+                          <Button size="sm" variant="quiet" onClick={() => setReturning(null)}>
+                            Cancel
+                          </Button>
+                        </div>
+                      </form>
+                    ) : (
+                      <div className="flex flex-wrap gap-2">
+                        {!e.acknowledgedAt ? (
+                          <Button size="sm" onClick={() => act.mutate({ id: e.id, action: 'acknowledge' })}>
+                            Acknowledge
+                          </Button>
+                        ) : null}
+                        <Button size="sm" variant="primary" onClick={() => act.mutate({ id: e.id, action: 'confirm' })}>
+                          Confirm
+                        </Button>
+                        <Button size="sm" variant="secondary" onClick={() => setReturning(e.id)}>
+                          Return…
+                        </Button>
+                      </div>
+                    )}
+                  </td>
+                </Tr>
+              ))}
+            </TBody>
+          </Table>
+        </TableScroll>
+      )}
+    </SupervisorPage>
+  );
+}
+
+function EntryStatus({ entry: e }: { entry: InboxEntry }) {
+  if (e.resolution) {
+    return (
+      <span className="text-sm">
+        <Badge tone={e.resolution === 'confirmed' ? 'ok' : 'warn'}>{e.resolution === 'confirmed' ? '✓ confirmed' : '↩ returned'}</Badge> by {e.resolvedBy ?? 'a supervisor'}
+        {e.resolutionComment ? <span className="block text-ink-muted">“{e.resolutionComment}”</span> : null}
+      </span>
+    );
+  }
+  return (
+    <span className="flex flex-col gap-1 text-sm">
+      {e.readAt ? <span>read</span> : <Badge tone="accent">● unread</Badge>}
+      {e.acknowledgedAt ? <span>acknowledged</span> : null}
+      {e.mailError ? <span className="text-danger">e-mail not sent</span> : null}
+    </span>
+  );
+}

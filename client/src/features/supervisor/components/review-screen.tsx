@@ -1,0 +1,259 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useState } from 'react';
+import { quakemlEventTypes } from '../../../../../shared/schemas/label';
+import { evaluationStatuses, reviewStatuses, type ReviewRow } from '../../../../../shared/schemas/supervisor';
+import { Badge } from '../../../components/ui/badge';
+import { Button, buttonClass } from '../../../components/ui/button';
+import { EmptyState } from '../../../components/ui/empty-state';
+import { FlagMarker } from '../../../components/ui/flag-marker';
+import { Input } from '../../../components/ui/input';
+import { Select } from '../../../components/ui/select';
+import { Loading } from '../../../components/ui/skeleton';
+import { Table, TableScroll, TBody, THead, Tr } from '../../../components/ui/table';
+import { TriageCaution } from '../../../components/ui/triage-caution';
+import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuery, setStatus, type ReviewFilters } from '../api/supervisor-api';
+import { useSupervisorLive } from '../hooks/use-supervisor-live';
+import { dayToIso, daysAgoIso, ErrorLine, noLocationText, Section, SupervisorPage } from './common';
+
+/**
+ * /review: labelled events to confirm, review, finalise or reject (QuakeML evaluation status) or
+ * return to the queue with a comment; the candidate events of the period (several stations, one
+ * source); and the catalogue export.
+ */
+export function ReviewScreen() {
+  const live = useSupervisorLive();
+  const [fromDay, setFromDay] = useState(daysAgoIso(7).slice(0, 10));
+  const [toDay, setToDay] = useState(daysAgoIso(-1).slice(0, 10));
+  const [station, setStation] = useState('');
+  const [type, setType] = useState('');
+  const [analyst, setAnalyst] = useState('');
+  const [status, setStatusFilter] = useState('');
+  const filters: ReviewFilters = { from: dayToIso(fromDay), to: dayToIso(toDay), station: station.trim().toUpperCase() || undefined, type: type || undefined, analyst: analyst.trim() || undefined, status: status || undefined };
+  const list = useQuery(reviewQuery(filters));
+  return (
+    <SupervisorPage title="Review & catalogue" summary="Labelled events by window time; set their evaluation status or return them to the queue." live={live}>
+      <TriageCaution variant="line" />
+      <p role="note" className="text-sm text-ink-muted">
+        {noLocationText}
+      </p>
+      <form className="flex flex-wrap items-end gap-3" aria-label="Review filters" onSubmit={(e) => e.preventDefault()}>
+        <label className="flex flex-col text-sm">
+          From (UTC day)
+          <Input type="date" value={fromDay} onChange={(e) => setFromDay(e.target.value)} />
+        </label>
+        <label className="flex flex-col text-sm">
+          To (UTC day, exclusive)
+          <Input type="date" value={toDay} onChange={(e) => setToDay(e.target.value)} />
+        </label>
+        <label className="flex flex-col text-sm">
+          Station
+          <Input placeholder="KV01" value={station} onChange={(e) => setStation(e.target.value)} className="w-28" />
+        </label>
+        <label className="flex flex-col text-sm">
+          Event type
+          <Select value={type} onChange={(e) => setType(e.target.value)}>
+            <option value="">any</option>
+            {quakemlEventTypes.filter((t) => t !== 'not existing').map((t) => (
+              <option key={t}>{t}</option>
+            ))}
+          </Select>
+        </label>
+        <label className="flex flex-col text-sm">
+          Analyst
+          <Input value={analyst} onChange={(e) => setAnalyst(e.target.value)} className="w-36" />
+        </label>
+        <label className="flex flex-col text-sm">
+          Evaluation status
+          <Select value={status} onChange={(e) => setStatusFilter(e.target.value)}>
+            <option value="">any</option>
+            {evaluationStatuses.map((s) => (
+              <option key={s}>{s}</option>
+            ))}
+          </Select>
+        </label>
+      </form>
+      <ErrorLine error={list.error} />
+      {list.isPending ? <Loading label="Loading labelled events…" /> : <ReviewTable rows={list.data?.items ?? []} />}
+      <CandidateEvents from={filters.from ?? ''} to={filters.to ?? ''} />
+      <ExportForm from={fromDay} to={toDay} />
+    </SupervisorPage>
+  );
+}
+
+function ReviewTable({ rows }: { rows: ReviewRow[] }) {
+  const qc = useQueryClient();
+  const [open, setOpen] = useState<number | null>(null);
+  const [comment, setComment] = useState('');
+  const [choice, setChoice] = useState<string>('confirmed');
+  const done = () => {
+    setOpen(null);
+    setComment('');
+    void qc.invalidateQueries({ queryKey: ['supervisor', 'review'] });
+  };
+  const status = useMutation({ mutationFn: (r: ReviewRow) => setStatus(r.itemId, r.version, choice, comment), onSuccess: done });
+  const ret = useMutation({ mutationFn: (r: ReviewRow) => returnItem(r.itemId, r.version, comment), onSuccess: done });
+  if (rows.length === 0) return <EmptyState title="No labelled events">Nothing labelled as an event matches these filters.</EmptyState>;
+  return (
+    <TableScroll label="Labelled events">
+      <ErrorLine error={status.error ?? ret.error} />
+      <Table caption="Labelled events, newest window first">
+        <THead>
+          <tr>
+            <th scope="col">Event time (basis)</th>
+            <th scope="col">Station</th>
+            <th scope="col">Type</th>
+            <th scope="col">Flag</th>
+            <th scope="col">Analyst</th>
+            <th scope="col">Group</th>
+            <th scope="col">Evaluation status</th>
+            <th scope="col">Action</th>
+          </tr>
+        </THead>
+        <TBody>
+          {rows.map((r) => (
+            <Tr key={r.itemId} data-testid={`review-row-${r.itemId}`}>
+              <td className="font-mono text-sm whitespace-nowrap">
+                {r.eventTime}
+                <span className="block font-sans text-xs text-ink-muted">{r.eventTimeBasis}</span>
+              </td>
+              <td>
+                <a className="underline" href={`/queue/items/${r.itemId}`}>
+                  {r.station}
+                </a>
+              </td>
+              <td>
+                {r.eventType} <span className="text-sm text-ink-muted">({r.certainty}, {r.picks} picks)</span>
+              </td>
+              <td>
+                <FlagMarker flag={r.flag} />
+              </td>
+              <td className="text-sm">{r.analyst?.displayName ?? '—'}</td>
+              <td className="text-sm">{r.candidateEventId ? `candidate ${r.candidateEventId}` : '—'}</td>
+              <td>
+                <Badge tone={r.evaluationStatus === 'rejected' ? 'danger' : r.evaluationStatus === 'preliminary' ? 'neutral' : 'ok'}>{r.evaluationStatus}</Badge>
+                {r.reviewedBy ? <span className="block text-xs text-ink-muted">by {r.reviewedBy.displayName}</span> : null}
+              </td>
+              <td>
+                {open === r.itemId ? (
+                  <form className="flex flex-col gap-1" onSubmit={(e) => e.preventDefault()} aria-label={`Review item ${r.itemId}`}>
+                    <label className="text-sm">
+                      Status{' '}
+                      <Select value={choice} onChange={(e) => setChoice(e.target.value)}>
+                        {reviewStatuses.map((s) => (
+                          <option key={s}>{s}</option>
+                        ))}
+                      </Select>
+                    </label>
+                    <label className="text-sm" htmlFor={`c-${r.itemId}`}>
+                      Comment (required to return)
+                    </label>
+                    <textarea id={`c-${r.itemId}`} rows={2} className="rounded-xs border border-line bg-surface p-1 text-sm" value={comment} onChange={(e) => setComment(e.target.value)} />
+                    <div className="flex gap-2">
+                      <Button size="sm" variant="primary" onClick={() => status.mutate(r)}>
+                        Set status
+                      </Button>
+                      <Button size="sm" disabled={comment.trim().length < 3} onClick={() => ret.mutate(r)}>
+                        Return to queue
+                      </Button>
+                      <Button size="sm" variant="quiet" onClick={() => setOpen(null)}>
+                        Cancel
+                      </Button>
+                    </div>
+                  </form>
+                ) : (
+                  <Button size="sm" onClick={() => setOpen(r.itemId)}>
+                    Review…
+                  </Button>
+                )}
+              </td>
+            </Tr>
+          ))}
+        </TBody>
+      </Table>
+    </TableScroll>
+  );
+}
+
+function CandidateEvents({ from, to }: { from: string; to: string }) {
+  const qc = useQueryClient();
+  const q = useQuery(candidateEventsQuery(from, to));
+  const [type, setType] = useState('earthquake');
+  const label = useMutation({
+    mutationFn: (id: number) => labelCandidate(id, { eventType: type, certainty: 'suspected', note: '' }),
+    onSuccess: () => void qc.invalidateQueries({ queryKey: ['supervisor'] }),
+  });
+  return (
+    <Section title="Candidate events (several stations, one source?)">
+      <p className="mb-2 text-sm text-ink-muted">
+        Items from at least 3 stations whose first triggers lie within the inter-station distance at 3 km/s plus 2 s. Labelling a group labels each member that is still waiting; each stays correctable on its own.
+      </p>
+      <ErrorLine error={q.error ?? label.error} />
+      {(q.data?.events.length ?? 0) === 0 ? (
+        <p className="text-sm">No candidate events in this period.</p>
+      ) : (
+        <ul className="flex flex-col gap-2">
+          {q.data?.events.map((ev) => (
+            <li key={ev.id} className="rounded-sm border border-line bg-surface p-2" aria-label={`Candidate event ${ev.id}`}>
+              <div className="flex flex-wrap items-baseline gap-3">
+                <strong>Candidate {ev.id}</strong>
+                <span className="font-mono text-sm">first trigger {ev.firstArrival}</span>
+                <span className="text-sm">{ev.stationCount} stations</span>
+                <label className="ml-auto text-sm">
+                  Label all as{' '}
+                  <Select value={type} onChange={(e) => setType(e.target.value)}>
+                    {quakemlEventTypes.map((t) => (
+                      <option key={t}>{t}</option>
+                    ))}
+                  </Select>
+                </label>
+                <Button size="sm" onClick={() => label.mutate(ev.id)}>
+                  Label group
+                </Button>
+              </div>
+              <ul className="mt-1 text-sm">
+                {ev.members.map((m) => (
+                  <li key={m.itemId} className="flex gap-3">
+                    <a className="underline" href={`/queue/items/${m.itemId}`}>
+                      {m.station}
+                    </a>
+                    <span className="font-mono">{m.arrival}</span>
+                    <span>{m.state}</span>
+                    <span>{m.labelType ?? 'no label'}</span>
+                  </li>
+                ))}
+              </ul>
+            </li>
+          ))}
+        </ul>
+      )}
+    </Section>
+  );
+}
+
+function ExportForm({ from, to }: { from: string; to: string }) {
+  const [format, setFormat] = useState<'quakeml' | 'csv'>('quakeml');
+  const [withPreliminary, setWithPreliminary] = useState(false);
+  const status = withPreliminary ? 'preliminary,confirmed,reviewed,final' : 'confirmed,reviewed,final';
+  return (
+    <Section title="Export the reviewed catalogue">
+      <p className="mb-2 text-sm text-ink-muted">
+        Events whose window starts in the period above ({from} to {to}, UTC). QuakeML 1.2 or CSV; no origins or magnitudes, since Seisift does not locate events. Resource ids use smi:seisift.local — a network publishing the catalogue sets its own authority id.
+      </p>
+      <div className="flex flex-wrap items-end gap-3">
+        <label className="flex flex-col text-sm">
+          Format
+          <Select value={format} onChange={(e) => setFormat(e.target.value === 'csv' ? 'csv' : 'quakeml')}>
+            <option value="quakeml">QuakeML 1.2 (XML)</option>
+            <option value="csv">CSV</option>
+          </Select>
+        </label>
+        <label className="flex items-center gap-1 text-sm">
+          <input type="checkbox" checked={withPreliminary} onChange={(e) => setWithPreliminary(e.target.checked)} /> include unreviewed (preliminary)
+        </label>
+        <a className={buttonClass('primary')} href={exportUrl(dayToIso(from), dayToIso(to), format, status)} download>
+          Download {format === 'csv' ? 'CSV' : 'QuakeML'}
+        </a>
+      </div>
+    </Section>
+  );
+}

@@ -1,0 +1,165 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useEffect, useMemo, useState } from 'react';
+import type { Evaluation, ThresholdValues } from '../../../../../shared/schemas/supervisor';
+import { Button } from '../../../components/ui/button';
+import { Input } from '../../../components/ui/input';
+import { PlotFrame } from '../../../components/ui/plot-frame';
+import { Select } from '../../../components/ui/select';
+import { Loading } from '../../../components/ui/skeleton';
+import { Table, TBody, THead, Tr } from '../../../components/ui/table';
+import { TriageCaution } from '../../../components/ui/triage-caution';
+import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '../api/supervisor-api';
+import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage } from './common';
+
+const pct = (v: number | null) => (v === null ? 'n/a' : `${(v * 100).toFixed(1)} %`);
+
+/**
+ * /thresholds: per station, how the flagging rule's thresholds do on that station's labelled
+ * history (confusion counts, precision and recall as shown, now, and with proposed values), the
+ * precision–recall curve over eventZ, applying new values (no silent re-scoring) and an explicit
+ * re-score of a chosen period.
+ */
+export function ThresholdsScreen() {
+  const qc = useQueryClient();
+  const stations = useQuery(stationsQuery());
+  const [stationId, setStationId] = useState<number | null>(null);
+  useEffect(() => {
+    if (stationId === null && stations.data?.[0]) setStationId(stations.data[0].id);
+  }, [stations.data, stationId]);
+  const [draft, setDraft] = useState<ThresholdValues | null>(null);
+  const [proposed, setProposed] = useState<ThresholdValues | null>(null);
+  const report = useQuery({ ...thresholdsQuery(stationId ?? 0, proposed), enabled: stationId !== null });
+  useEffect(() => {
+    if (report.data && draft === null) setDraft(report.data.current);
+  }, [report.data, draft]);
+  const apply = useMutation({
+    mutationFn: (v: ThresholdValues) => applyThresholds(stationId ?? 0, v),
+    onSuccess: (data) => {
+      setProposed(null);
+      setDraft(data.current);
+      void qc.invalidateQueries({ queryKey: ['supervisor', 'thresholds'] });
+    },
+  });
+  const [fromDay, setFromDay] = useState(daysAgoIso(7).slice(0, 10));
+  const [toDay, setToDay] = useState(daysAgoIso(-1).slice(0, 10));
+  const rs = useMutation({ mutationFn: () => rescore(stationId ?? 0, dayToIso(fromDay), dayToIso(toDay)) });
+
+  const curve = report.data?.curve ?? [];
+  const x = useMemo(() => curve.map((p) => p.eventZ), [curve]);
+  return (
+    <SupervisorPage title="Thresholds" summary="The flagging rule against each station's labelled history.">
+      <TriageCaution variant="line" />
+      <ErrorLine error={stations.error ?? report.error ?? apply.error ?? rs.error} />
+      <label className="flex w-fit flex-col text-sm">
+        Station
+        <Select value={stationId ?? ''} onChange={(e) => { setStationId(Number(e.target.value)); setDraft(null); setProposed(null); }}>
+          {stations.data?.map((s) => (
+            <option key={s.id} value={s.id}>
+              {s.network}.{s.code}
+            </option>
+          ))}
+        </Select>
+      </label>
+      {!report.data || !draft ? (
+        <Loading label="Loading the station's labelled history…" />
+      ) : (
+        <>
+          <p className="text-sm">
+            {report.data.station}: {report.data.labelled.events} items labelled as events, {report.data.labelled.noise} as noise (dismissed, “not existing” or rejected). Predicted event = flag “likely event”.
+            {report.data.unreadable > 0 ? ` ${report.data.unreadable} items without a readable analysis are left out.` : ''}
+          </p>
+          <form
+            className="flex flex-wrap items-end gap-3"
+            aria-label="Proposed thresholds"
+            onSubmit={(e) => {
+              e.preventDefault();
+              setProposed(draft);
+            }}
+          >
+            {(['eventZ', 'noiseZ', 'centroidMaxFactor'] as const).map((k) => (
+              <label key={k} className="flex flex-col text-sm">
+                {k === 'eventZ' ? 'Event z (≥)' : k === 'noiseZ' ? 'Noise z (<)' : 'Centroid factor (× high-band edge)'}
+                <Input type="number" step="0.1" className="w-32" value={draft[k]} onChange={(e) => setDraft({ ...draft, [k]: Number(e.target.value) })} />
+              </label>
+            ))}
+            <Button type="submit">Evaluate</Button>
+            <Button variant="primary" onClick={() => apply.mutate(draft)}>
+              Apply to {report.data.station}
+            </Button>
+          </form>
+          <p className="text-sm text-ink-muted">Applying writes the station profile and an audit row. Nothing is re-scored: old items keep the score they were shown with; the new rule applies to new windows.</p>
+          <Table caption="Confusion counts on the labelled history">
+            <THead>
+              <tr>
+                <th scope="col">Thresholds</th>
+                <th scope="col">TP</th>
+                <th scope="col">FP</th>
+                <th scope="col">FN</th>
+                <th scope="col">TN</th>
+                <th scope="col">Precision</th>
+                <th scope="col">Recall</th>
+              </tr>
+            </THead>
+            <TBody>
+              <EvalRow name="as shown (stored flags)" e={report.data.asShown} />
+              <EvalRow name={`current (eventZ ${report.data.current.eventZ}, noiseZ ${report.data.current.noiseZ}, ×${report.data.current.centroidMaxFactor})`} e={report.data.currentEvaluation} />
+              {report.data.proposed && report.data.proposedEvaluation ? (
+                <EvalRow name={`proposed (eventZ ${report.data.proposed.eventZ}, noiseZ ${report.data.proposed.noiseZ}, ×${report.data.proposed.centroidMaxFactor})`} e={report.data.proposedEvaluation} />
+              ) : null}
+            </TBody>
+          </Table>
+          <PlotFrame
+            title="Precision and recall across eventZ"
+            description={`Precision (solid) and recall (dashed) of the flag “likely event” on ${report.data.station}'s labelled history as eventZ goes from ${x[0] ?? 0} to ${x[x.length - 1] ?? 0}.`}
+            x={{ label: 'eventZ', values: x }}
+            y={{ label: 'share', format: (v) => `${Math.round(v * 100)} %` }}
+            series={[
+              { label: 'precision', values: curve.map((p) => p.precision) },
+              { label: 'recall', values: curve.map((p) => p.recall) },
+            ]}
+          />
+          <Section title="Re-score a period">
+            <form
+              className="flex flex-wrap items-end gap-3"
+              onSubmit={(e) => {
+                e.preventDefault();
+                rs.mutate();
+              }}
+            >
+              <label className="flex flex-col text-sm">
+                From (UTC day)
+                <Input type="date" value={fromDay} onChange={(e) => setFromDay(e.target.value)} />
+              </label>
+              <label className="flex flex-col text-sm">
+                To (UTC day, exclusive)
+                <Input type="date" value={toDay} onChange={(e) => setToDay(e.target.value)} />
+              </label>
+              <Button type="submit">Re-score with the current thresholds</Button>
+            </form>
+            {rs.data ? (
+              <p role="status" className="text-sm">
+                Re-scored {rs.data.rescored} items; {rs.data.flagChanged} changed flag{rs.data.skipped ? `; ${rs.data.skipped} skipped (no readable analysis)` : ''}.
+              </p>
+            ) : null}
+          </Section>
+        </>
+      )}
+    </SupervisorPage>
+  );
+}
+
+function EvalRow({ name, e }: { name: string; e: Evaluation }) {
+  return (
+    <Tr>
+      <th scope="row" className="text-left font-normal">
+        {name}
+      </th>
+      <td className="font-mono">{e.tp}</td>
+      <td className="font-mono">{e.fp}</td>
+      <td className="font-mono">{e.fn}</td>
+      <td className="font-mono">{e.tn}</td>
+      <td className="font-mono">{pct(e.precision)}</td>
+      <td className="font-mono">{pct(e.recall)}</td>
+    </Tr>
+  );
+}
