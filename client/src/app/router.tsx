@@ -45,6 +45,34 @@ export const routes: RouteObject[] = [
           return { Component: DesignRoute };
         },
       },
+      {
+        path: paths.inbox.path.slice(1),
+        lazy: async () => {
+          const { InboxRoute } = await import('./routes/supervisor');
+          return { Component: InboxRoute };
+        },
+      },
+      {
+        path: paths.review.path.slice(1),
+        lazy: async () => {
+          const { ReviewRoute } = await import('./routes/supervisor');
+          return { Component: ReviewRoute };
+        },
+      },
+      {
+        path: paths.thresholds.path.slice(1),
+        lazy: async () => {
+          const { ThresholdsRoute } = await import('./routes/supervisor');
+          return { Component: ThresholdsRoute };
+        },
+      },
+      {
+        path: paths.dashboard.path.slice(1),
+        lazy: async () => {
+          const { DashboardRoute } = await import('./routes/supervisor');
+          return { Component: DashboardRoute };
+        },
+      },
       { path: '*', element: <NotFoundRoute /> },
     ],
   },
