@@ -6,7 +6,9 @@ import { queueItems } from '../../../server/db/schema/queue-items';
 import { uploads, windows } from '../../../server/db/schema/uploads';
 import { seedDemo } from '../../../server/db/seed-demo';
 import { ingestDemo, readDemoManifest, type DemoIngestReport } from '../../../server/demo/ingest-demo';
+import { inboxEntries } from '../../../server/db/schema/supervisor';
 import { createAnalysisPool, type AnalysisPool } from '../../../server/jobs/analysis-pool';
+import { escalationListener } from '../../../server/services/escalations';
 import { createTestContext, type TestContext } from '../../setup/test-app';
 
 let ctx: TestContext;
@@ -23,7 +25,9 @@ beforeAll(async () => {
   ctx = await createTestContext();
   pool = createAnalysisPool({ threads: 1 });
   await seedDemo(ctx.database.db, { demoPassword: 'kestrel-demo-pass' });
-  first = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger });
+  // The app's escalation hook (inbox entry and e-mail for every supervisor), as npm start passes it.
+  const hook = escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, publicUrl: 'http://127.0.0.1:3000' });
+  first = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger, escalationListeners: [hook] });
 }, 180_000);
 
 afterAll(async () => {
@@ -58,6 +62,11 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
       const [row] = await db.select({ n: count() }).from(auditLog).where(eq(auditLog.action, action));
       expect(row?.n, action).toBe(action === 'queue.claimed' ? 9 : action === 'queue.labelled' ? 3 : action === 'queue.dismissed' ? 4 : 2);
     }
+  });
+
+  it('the escalations reach the supervisor: one inbox entry each for the demo supervisor', async () => {
+    const [row] = await ctx.database.db.select({ n: count() }).from(inboxEntries);
+    expect(row?.n).toBe(2);
   });
 
   it('adds nothing on a second run: every file is a duplicate by SHA-256', async () => {
