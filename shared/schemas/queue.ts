@@ -174,3 +174,35 @@ export type TracesResponse = z.infer<typeof tracesResponseSchema>;
 /** The summary the live channel carries with each item change, enough to patch a queue row. */
 export const itemChangeSummarySchema = queueRowSchema;
 
+
+/**
+ * Whether a row belongs in a list under `q`'s filters (the same rules as GET /api/queue, for
+ * placing rows that arrive over the live channel). Station codes match `KV01` or `XX.KV01`.
+ */
+export function queueRowMatches(row: QueueRow, q: Partial<QueueQuery>): boolean {
+  if (q.state && q.state.length > 0 && !q.state.includes(row.state)) return false;
+  if (q.station && q.station.length > 0) {
+    const [net, sta] = row.station.split('.');
+    if (!q.station.some((s) => (s.includes('.') ? s === row.station : s === sta && net !== undefined))) return false;
+  }
+  if (q.flag && q.flag.length > 0 && !q.flag.includes(row.flag)) return false;
+  if (q.label && q.label.length > 0) {
+    const ok = q.label.some((l) => (l === 'none' ? row.labelType === null : row.labelType === l));
+    if (!ok) return false;
+  }
+  if (q.scoreMin !== undefined && row.score < q.scoreMin) return false;
+  if (q.scoreMax !== undefined && row.score > q.scoreMax) return false;
+  const t = Date.parse(row.windowStart);
+  if (q.from !== undefined && t < Date.parse(q.from)) return false;
+  if (q.to !== undefined && t >= Date.parse(q.to)) return false;
+  return true;
+}
+
+/**
+ * The list order of GET /api/queue as a comparator: `score` = score descending then id
+ * descending; `age` = created_at ascending then id ascending.
+ */
+export function compareQueueRows(sort: QueueSort): (a: QueueRow, b: QueueRow) => number {
+  if (sort === 'score') return (a, b) => b.score - a.score || b.id - a.id;
+  return (a, b) => Date.parse(a.createdAt) - Date.parse(b.createdAt) || a.id - b.id;
+}

@@ -2,6 +2,7 @@ import { createBrowserRouter, matchRoutes, Outlet, type RouteObject } from 'reac
 import { AppShell } from '../components/layouts/app-shell';
 import { Loading } from '../components/ui/skeleton';
 import { paths } from '../config/paths';
+import { LiveUpdatesProvider, useLiveConnection } from './live-updates';
 import { HomeRoute } from './routes/home';
 import { NotFoundRoute } from './routes/not-found';
 import { RouteError } from './routes/route-error';
@@ -19,7 +20,16 @@ export function isRouted(href: string): boolean {
 
 function RootLayout() {
   return (
-    <AppShell isRouted={isRouted}>
+    <LiveUpdatesProvider>
+      <LiveShell />
+    </LiveUpdatesProvider>
+  );
+}
+
+function LiveShell() {
+  const connection = useLiveConnection();
+  return (
+    <AppShell isRouted={isRouted} connection={connection}>
       <Outlet />
     </AppShell>
   );
@@ -43,6 +53,41 @@ export const routes: RouteObject[] = [
         lazy: async () => {
           const { DesignRoute } = await import('./routes/design');
           return { Component: DesignRoute };
+        },
+      },
+      {
+        path: paths.queue.path.slice(1),
+        lazy: async () => {
+          const { QueueRoute } = await import('./routes/queue');
+          return { Component: QueueRoute };
+        },
+      },
+      {
+        path: paths.queueItem.path.slice(1),
+        lazy: async () => {
+          const { QueueItemRoute } = await import('./routes/queue-item');
+          return { Component: QueueItemRoute };
+        },
+      },
+      {
+        path: paths.stations.path.slice(1),
+        lazy: async () => {
+          const { StationsRoute } = await import('./routes/stations');
+          return { Component: StationsRoute };
+        },
+      },
+      {
+        path: paths.station.path.slice(1),
+        lazy: async () => {
+          const { StationRoute } = await import('./routes/station');
+          return { Component: StationRoute };
+        },
+      },
+      {
+        path: paths.upload.path.slice(1),
+        lazy: async () => {
+          const { UploadRoute } = await import('./routes/upload');
+          return { Component: UploadRoute };
         },
       },
       {

@@ -8,7 +8,11 @@ import type { Role } from '../../../shared/auth/roles';
 export const paths = {
   home: { path: '/', href: '/' },
   queue: { path: '/queue', href: '/queue' },
+  /** One queue item on the review screen: `${paths.queueItem.href}/${id}`. */
+  queueItem: { path: '/queue/items/:id', href: '/queue/items' },
   stations: { path: '/stations', href: '/stations' },
+  /** One station's page: `${paths.station.href}/${id}`. */
+  station: { path: '/stations/:id', href: '/stations' },
   upload: { path: '/upload', href: '/upload' },
   review: { path: '/review', href: '/review' },
   thresholds: { path: '/thresholds', href: '/thresholds' },

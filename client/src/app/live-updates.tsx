@@ -1,0 +1,37 @@
+import { useQueryClient } from '@tanstack/react-query';
+import { createContext, useContext, useEffect, useState, type ReactNode } from 'react';
+import type { ConnectionState } from '../components/ui/connection-indicator';
+import { applyChanges, refetchAll } from '../features/queue/api/live-patch';
+import { createLiveClient, liveUrl } from '../lib/ws-client';
+
+const LiveContext = createContext<ConnectionState | undefined>(undefined);
+
+/**
+ * Opens the live channel once for the app (reconnecting by itself) and feeds its changes into the
+ * query cache; children read the connection state with `useLiveConnection`. When the browser
+ * comes back online the client reconnects at once instead of waiting out its backoff.
+ */
+export function LiveUpdatesProvider({ children }: { children: ReactNode }) {
+  const qc = useQueryClient();
+  const [state, setState] = useState<ConnectionState>('connecting');
+  useEffect(() => {
+    const client = createLiveClient({
+      url: liveUrl(window.location),
+      onChanges: (changes) => applyChanges(qc, changes),
+      onRefetch: () => refetchAll(qc),
+      onState: setState,
+    });
+    const online = () => client.reconnectNow();
+    window.addEventListener('online', online);
+    return () => {
+      window.removeEventListener('online', online);
+      client.stop();
+    };
+  }, [qc]);
+  return <LiveContext.Provider value={state}>{children}</LiveContext.Provider>;
+}
+
+/** The live connection's state (undefined outside LiveUpdatesProvider). */
+export function useLiveConnection(): ConnectionState | undefined {
+  return useContext(LiveContext);
+}

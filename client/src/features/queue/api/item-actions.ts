@@ -1,0 +1,48 @@
+import { useMutation, useQueryClient, type QueryClient } from '@tanstack/react-query';
+import { queueRowSchema, type QueueRow } from '../../../../../shared/schemas/queue';
+import type { EventLabelInput, NoiseReason } from '../../../../../shared/schemas/label';
+import { fetchJson } from './http';
+import { patchRow } from './live-patch';
+
+/** One analyst action and what it sends. */
+export type ItemActionInput =
+  | { action: 'claim' | 'release'; id: number; version: number }
+  | { action: 'label'; id: number; version: number; label: EventLabelInput }
+  | { action: 'dismiss'; id: number; version: number; noiseReason: NoiseReason; note?: string }
+  | { action: 'escalate'; id: number; version: number; reason: string };
+
+/**
+ * Sends one action (POST /api/queue/items/:id/<action> with the version the analyst saw).
+ * @throws QueueApiError — 409 names who changed the item and how
+ */
+export function postItemAction(input: ItemActionInput): Promise<QueueRow> {
+  const { action, id, ...body } = input;
+  return fetchJson(queueRowSchema, `/api/queue/items/${id}/${action}`, { method: 'POST', body });
+}
+
+/** Keeps the analyst's claim alive (POST .../keepalive). */
+export function postKeepAlive(id: number): Promise<unknown> {
+  return fetch(`/api/queue/items/${id}/keepalive`, { method: 'POST', credentials: 'same-origin' });
+}
+
+/**
+ * A mutation for item actions: on success the returned row patches every cached list and the open
+ * item at once (the live channel brings the same change to everyone else); on a 409 the item is
+ * refetched so the screen shows what changed.
+ */
+export function useItemAction() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: postItemAction,
+    onSuccess: (row) => applyRow(qc, row),
+    onError: (_err, input) => {
+      void qc.invalidateQueries({ queryKey: ['queue', 'item', input.id] });
+    },
+  });
+}
+
+/** Applies a row the server returned to the cache (lists and the item detail). */
+export function applyRow(qc: QueryClient, row: QueueRow): void {
+  patchRow(qc, row, 'updated');
+  void qc.invalidateQueries({ queryKey: ['queue', 'item', row.id] });
+}

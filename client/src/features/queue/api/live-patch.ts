@@ -1,0 +1,135 @@
+import type { QueryClient } from '@tanstack/react-query';
+import type { ChangeMessage } from '../../../../../shared/realtime';
+import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '../../../../../shared/schemas/queue';
+import { getQueuePage, type QueueFilters, type QueueListData } from './get-queue';
+
+/**
+ * Feeding live changes into the TanStack Query cache:
+ * - a change whose summary is a queue row patches that row in every cached list in place (its
+ *   place in the list does not move, so the analyst's place is kept), or, for a row not yet listed
+ *   that matches a list's filters, inserts it where the list's order puts it — but only inside the
+ *   part already loaded (rows further down arrive with later pages);
+ * - the counts per state of each list are refreshed with one small request per burst of changes;
+ * - an open item whose version moved on is refetched;
+ * - a change without a usable summary invalidates the lists.
+ */
+
+type Listener = () => void;
+const arrived = new Set<number>();
+const listeners = new Set<Listener>();
+let arrivedVersion = 0;
+
+/** Ids that arrived over the live channel in this session and the analyst has not looked at yet. */
+export const liveArrivals = {
+  has: (id: number) => arrived.has(id),
+  size: () => arrived.size,
+  /** Marks an item as seen (selected or opened). */
+  seen(id: number) {
+    if (arrived.delete(id)) bump();
+  },
+  add(id: number) {
+    arrived.add(id);
+    bump();
+  },
+  subscribe(fn: Listener) {
+    listeners.add(fn);
+    return () => listeners.delete(fn);
+  },
+  version: () => arrivedVersion,
+};
+
+function bump() {
+  arrivedVersion++;
+  for (const fn of listeners) fn();
+}
+
+const filtersOf = (key: readonly unknown[]): QueueFilters | null => {
+  const f = key[2];
+  return typeof f === 'object' && f !== null && 'sort' in f ? (f as QueueFilters) : null;
+};
+
+let countTimer: ReturnType<typeof setTimeout> | null = null;
+
+/** Refreshes the counts per state of every cached list (one request per list), debounced by 300 ms. */
+export function scheduleCountRefresh(qc: QueryClient): void {
+  if (countTimer) return;
+  countTimer = setTimeout(() => {
+    countTimer = null;
+    for (const [key] of qc.getQueriesData<QueueListData>({ queryKey: ['queue', 'list'] })) {
+      const f = filtersOf(key);
+      if (!f) continue;
+      getQueuePage(f, undefined, 1)
+        .then((page) =>
+          qc.setQueryData<QueueListData>(key, (old) =>
+            old ? { ...old, pages: old.pages.map((p) => ({ ...p, counts: page.counts, total: page.total })) } : old,
+          ),
+        )
+        .catch(() => undefined);
+    }
+  }, 300);
+}
+
+/**
+ * Puts one row into every cached list (see the module comment).
+ * @param kind 'created' rows are remembered as new arrivals (marked on the queue screen)
+ */
+export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['kind']): void {
+  for (const [key, data] of qc.getQueriesData<QueueListData>({ queryKey: ['queue', 'list'] })) {
+    const f = filtersOf(key);
+    if (!f || !data) continue;
+    let found = false;
+    const pages = data.pages.map((p) => {
+      const i = p.items.findIndex((r) => r.id === row.id);
+      if (i < 0) return p;
+      found = true;
+      const current = p.items[i];
+      if (current && current.version >= row.version) return p;
+      const items = p.items.slice();
+      items[i] = row;
+      return { ...p, items };
+    });
+    if (!found && kind !== 'deleted' && queueRowMatches(row, f)) {
+      const cmp = compareQueueRows(f.sort);
+      const lastPage = pages[pages.length - 1];
+      const lastRow = lastPage?.items[lastPage.items.length - 1];
+      const withinLoaded = !lastPage?.nextCursor || (lastRow !== undefined && cmp(row, lastRow) < 0);
+      if (withinLoaded) {
+        let placed = false;
+        for (let k = 0; k < pages.length && !placed; k++) {
+          const p = pages[k];
+          if (!p) continue;
+          const at = p.items.findIndex((r) => cmp(row, r) < 0);
+          const isLast = k === pages.length - 1;
+          if (at >= 0 || isLast) {
+            const items = p.items.slice();
+            items.splice(at >= 0 ? at : items.length, 0, row);
+            pages[k] = { ...p, items };
+            placed = true;
+          }
+        }
+      }
+    }
+    qc.setQueryData<QueueListData>(key, { ...data, pages });
+  }
+  if (kind === 'created') liveArrivals.add(row.id);
+}
+
+/** Applies a batch of live changes to the cache. */
+export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[]): void {
+  let needLists = false;
+  for (const c of changes) {
+    if (c.resource !== 'item') continue;
+    const row = queueRowSchema.safeParse(c.summary);
+    if (row.success) patchRow(qc, row.data, c.kind);
+    else needLists = true;
+    const open = qc.getQueryData<{ version: number }>(['queue', 'item', c.id]);
+    if (open && open.version < c.version) void qc.invalidateQueries({ queryKey: ['queue', 'item', c.id] });
+  }
+  if (needLists) void qc.invalidateQueries({ queryKey: ['queue', 'list'] });
+  scheduleCountRefresh(qc);
+}
+
+/** The server could not replay what was missed: every queue query is refetched. */
+export function refetchAll(qc: QueryClient): void {
+  void qc.invalidateQueries({ queryKey: ['queue'] });
+}

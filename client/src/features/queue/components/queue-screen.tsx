@@ -1,0 +1,381 @@
+import { useQueryClient } from '@tanstack/react-query';
+import { getCoreRowModel, useReactTable, flexRender, createColumnHelper } from '@tanstack/react-table';
+import { useVirtualizer } from '@tanstack/react-virtual';
+import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react';
+import { useNavigate } from 'react-router';
+import { flags } from '../../../../../shared/schemas/flags';
+import { itemStates, type ItemState } from '../../../../../shared/schemas/item-states';
+import { labelFilterValues, type QueueRow } from '../../../../../shared/schemas/queue';
+import { Button } from '../../../components/ui/button';
+import { EmptyState } from '../../../components/ui/empty-state';
+import { FlagMarker } from '../../../components/ui/flag-marker';
+import { Input } from '../../../components/ui/input';
+import { Kbd } from '../../../components/ui/kbd';
+import { Select } from '../../../components/ui/select';
+import { Loading } from '../../../components/ui/skeleton';
+import { StateMarker } from '../../../components/ui/state-marker';
+import { useToast } from '../../../components/ui/toast';
+import { TriageCaution } from '../../../components/ui/triage-caution';
+import { paths } from '../../../config/paths';
+import { useMe, useQueueList, type QueueFilters } from '../api/get-queue';
+import { useItemAction } from '../api/item-actions';
+import { liveArrivals } from '../api/live-patch';
+import { useQueueFilters, workingStates } from '../hooks/use-queue-filters';
+import { formatAge, useNow } from './age';
+import { isTypingTarget, KeyHelp, type KeyBinding } from './key-help';
+
+/** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
+const ROW_PX = 32;
+
+/** The queue screen's keys. */
+export const queueKeysHelp: readonly KeyBinding[] = [
+  { keys: ['J', '↓'], does: 'Next item' },
+  { keys: ['K', '↑'], does: 'Previous item' },
+  { keys: ['Enter', 'O'], does: 'Open the item for review' },
+  { keys: ['C'], does: 'Claim the item and open it' },
+  { keys: ['G'], does: 'Go to the top (shows new arrivals)' },
+  { keys: ['?'], does: 'Show these keys' },
+];
+
+const column = createColumnHelper<QueueRow>();
+
+/** Time of day in UTC with milliseconds, and the date, as the trade writes them. */
+function utc(iso: string): string {
+  return iso.replace('T', ' ').replace('Z', '');
+}
+
+/**
+ * The live review queue: filters in the URL, counts per state, a virtualised table that stays
+ * smooth at 10 000 rows, rows arriving live without moving the analyst's place ("N new above"),
+ * and keyboard-first work (J/K, Enter, C, ?).
+ */
+export function QueueScreen() {
+  const { filters, setFilters, setStateParam, search } = useQueueFilters();
+  const list = useQueueList(filters);
+  const me = useMe();
+  const navigate = useNavigate();
+  const toast = useToast();
+  const action = useItemAction();
+  const qc = useQueryClient();
+  const now = useNow();
+  const rows = useMemo(() => list.data?.pages.flatMap((p) => p.items) ?? [], [list.data]);
+  const counts = list.data?.pages[0]?.counts;
+  const total = list.data?.pages[0]?.total;
+  const [selectedId, setSelectedId] = useState<number | null>(null);
+  const [help, setHelp] = useState(false);
+  const arrivals = useSyncExternalStore(liveArrivals.subscribe, liveArrivals.version);
+  const scrollRef = useRef<HTMLDivElement>(null);
+
+  const selectedIndex = selectedId === null ? -1 : rows.findIndex((r) => r.id === selectedId);
+
+  const columns = useMemo(
+    () => [
+      column.display({
+        id: 'arrival',
+        header: () => <span className="sr-only">Arrived just now</span>,
+        cell: (c) =>
+          liveArrivals.has(c.row.original.id) ? (
+            <span className="rounded-xs border border-accent px-1 text-xs font-semibold text-accent-ink" title="Arrived while this page was open">
+              new
+            </span>
+          ) : null,
+      }),
+      column.accessor('score', { header: 'Score', cell: (c) => c.getValue().toFixed(1) }),
+      column.accessor('flag', { header: 'Flag', cell: (c) => <FlagMarker flag={c.getValue()} /> }),
+      column.accessor('station', { header: 'Station' }),
+      column.accessor('windowStart', { header: 'Window start (UTC)', cell: (c) => <time dateTime={c.getValue()}>{utc(c.getValue())}</time> }),
+      column.accessor('createdAt', { header: 'Waiting', cell: (c) => <span title={`arrived ${utc(c.getValue())} UTC`}>{formatAge(c.getValue(), now)}</span> }),
+      column.accessor('state', { header: 'State', cell: (c) => <StateMarker state={c.getValue()} /> }),
+      column.display({
+        id: 'who',
+        header: 'Claimed by',
+        cell: (c) => {
+          const by = c.row.original.claimedBy;
+          if (!by || c.row.original.state !== 'in review') return <span className="text-ink-muted">—</span>;
+          return <span className={by.id === me?.id ? 'font-semibold' : undefined}>{by.id === me?.id ? 'you' : by.displayName}</span>;
+        },
+      }),
+      column.accessor('reasons', { header: 'Why flagged', cell: (c) => <span className="block max-w-[32rem] truncate text-sm text-ink-muted" title={c.getValue().join('; ')}>{c.getValue()[0] ?? ''}</span> }),
+    ],
+    // `arrivals` re-renders the marker column when the set changes.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+    [now, me?.id, arrivals],
+  );
+  const table = useReactTable({ data: rows, columns, getCoreRowModel: getCoreRowModel(), getRowId: (r) => String(r.id) });
+  const virtual = useVirtualizer({ count: rows.length, getScrollElement: () => scrollRef.current, estimateSize: () => ROW_PX, overscan: 12 });
+
+  // Keep the analyst's place when rows arrive above it: remember the first visible row and its
+  // offset, and after the list changes scroll by however far that row moved.
+  const anchor = useRef<{ id: number; offset: number } | null>(null);
+  const firstVisible = virtual.getVirtualItems().find((v) => v.start >= (scrollRef.current?.scrollTop ?? 0));
+  useLayoutEffect(() => {
+    const el = scrollRef.current;
+    const a = anchor.current;
+    if (el && a && el.scrollTop > 0) {
+      const idx = rows.findIndex((r) => r.id === a.id);
+      if (idx >= 0) {
+        const want = idx * ROW_PX - a.offset;
+        if (Math.abs(want - el.scrollTop) >= 1) el.scrollTop = want;
+      }
+    }
+  }, [rows]);
+  const onScroll = useCallback(() => {
+    const el = scrollRef.current;
+    if (!el) return;
+    const idx = Math.min(rows.length - 1, Math.floor(el.scrollTop / ROW_PX));
+    const r = rows[idx];
+    anchor.current = r ? { id: r.id, offset: idx * ROW_PX - el.scrollTop } : null;
+    if (list.hasNextPage && !list.isFetchingNextPage && el.scrollTop + el.clientHeight > rows.length * ROW_PX - 40 * ROW_PX) void list.fetchNextPage();
+  }, [rows, list]);
+
+  const topIndex = firstVisible?.index ?? 0;
+  const newAbove = rows.slice(0, topIndex).filter((r) => liveArrivals.has(r.id)).length;
+
+  const select = useCallback(
+    (i: number) => {
+      const r = rows[Math.max(0, Math.min(rows.length - 1, i))];
+      if (!r) return;
+      setSelectedId(r.id);
+      liveArrivals.seen(r.id);
+      virtual.scrollToIndex(rows.indexOf(r), { align: 'auto' });
+    },
+    [rows, virtual],
+  );
+  const open = useCallback((r: QueueRow) => void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`), [navigate, search]);
+  const claim = useCallback(
+    (r: QueueRow) => {
+      action.mutate(
+        { action: 'claim', id: r.id, version: r.version },
+        {
+          onSuccess: () => open(r),
+          onError: (err) => toast.notify({ tone: 'danger', title: `Could not claim item ${r.id}`, body: err.message }),
+        },
+      );
+    },
+    [action, open, toast],
+  );
+
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target)) return;
+      const current = rows[selectedIndex];
+      if (e.key === 'j' || e.key === 'ArrowDown') select(selectedIndex + 1);
+      else if (e.key === 'k' || e.key === 'ArrowUp') select(selectedIndex <= 0 ? 0 : selectedIndex - 1);
+      else if ((e.key === 'Enter' || e.key === 'o') && current) open(current);
+      else if (e.key === 'c' && current) claim(current);
+      else if (e.key === 'g') {
+        scrollRef.current?.scrollTo({ top: 0 });
+        select(0);
+      } else if (e.key === '?') setHelp(true);
+      else return;
+      e.preventDefault();
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  }, [rows, selectedIndex, select, open, claim]);
+
+  const headerGroups = table.getHeaderGroups();
+  const items = virtual.getVirtualItems();
+  const padTop = items[0]?.start ?? 0;
+  const padBottom = virtual.getTotalSize() - (items[items.length - 1]?.end ?? 0);
+
+  return (
+    <div className="flex h-full min-h-0 flex-col gap-3 p-4">
+      <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
+        <h1 className="text-xl font-semibold">Review queue</h1>
+        <p className="text-sm text-ink-muted">
+          {total === undefined ? 'Loading…' : `${total.toLocaleString('en')} item${total === 1 ? '' : 's'} in view`} · press <Kbd>?</Kbd> for keys
+        </p>
+        <Button size="sm" variant="quiet" className="ml-auto" onClick={() => void qc.invalidateQueries({ queryKey: ['queue', 'list'] })}>
+          Reload list
+        </Button>
+      </header>
+      <TriageCaution variant="line" />
+      <QueueFilterBar filters={filters} setFilters={setFilters} setStateParam={setStateParam} counts={counts} />
+      <div className="relative flex min-h-0 flex-1 flex-col">
+        {newAbove > 0 ? (
+          <button
+            type="button"
+            onClick={() => {
+              scrollRef.current?.scrollTo({ top: 0 });
+              select(0);
+            }}
+            className="absolute top-9 left-1/2 z-[2] -translate-x-1/2 rounded-full border border-accent bg-surface px-3 py-0.5 text-sm font-medium text-accent-ink shadow"
+          >
+            ↑ {newAbove} new above <Kbd>G</Kbd>
+          </button>
+        ) : null}
+        {list.isPending ? (
+          <Loading label="Loading the queue…" />
+        ) : list.isError ? (
+          <EmptyState title="The queue could not be loaded">{list.error.message}</EmptyState>
+        ) : rows.length === 0 ? (
+          <EmptyState title="Nothing waiting under these filters">New windows appear here as soon as they are scored.</EmptyState>
+        ) : (
+          <div ref={scrollRef} onScroll={onScroll} role="region" aria-label="Queue items" tabIndex={0} className="min-h-0 flex-1 overflow-auto rounded-sm border border-line bg-surface">
+            <table className="w-full border-collapse text-base" aria-rowcount={rows.length + 1}>
+              <caption className="sr-only">Queue items, {filters.sort === 'score' ? 'highest score first' : 'oldest first'}. Use J and K to move, Enter to open.</caption>
+              <thead className="sticky top-0 z-[1] bg-raised">
+                {headerGroups.map((g) => (
+                  <tr key={g.id}>
+                    {g.headers.map((h) => (
+                      <th key={h.id} scope="col" className="h-8 px-2 text-left text-sm font-medium whitespace-nowrap text-ink-muted">
+                        {flexRender(h.column.columnDef.header, h.getContext())}
+                      </th>
+                    ))}
+                  </tr>
+                ))}
+              </thead>
+              <tbody>
+                {padTop > 0 ? <tr aria-hidden="true" style={{ height: padTop }} /> : null}
+                {items.map((v) => {
+                  const row = table.getRowModel().rows[v.index];
+                  if (!row) return null;
+                  const r = row.original;
+                  const selected = r.id === selectedId;
+                  return (
+                    <tr
+                      key={row.id}
+                      data-item-id={r.id}
+                      data-state={r.state}
+                      aria-rowindex={v.index + 2}
+                      aria-current={selected ? 'true' : undefined}
+                      style={{ height: ROW_PX }}
+                      onClick={() => select(v.index)}
+                      onDoubleClick={() => open(r)}
+                      className={
+                        selected
+                          ? 'cursor-pointer border-b border-line bg-accent-wash shadow-[inset_3px_0_0_var(--sf-accent)]'
+                          : 'cursor-pointer border-b border-line hover:bg-raised'
+                      }
+                    >
+                      {row.getVisibleCells().map((cell) => (
+                        <td key={cell.id} className={cell.column.id === 'score' || cell.column.id === 'windowStart' || cell.column.id === 'createdAt' ? 'px-2 font-mono text-sm whitespace-nowrap tabular-nums' : 'px-2 whitespace-nowrap'}>
+                          {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                        </td>
+                      ))}
+                    </tr>
+                  );
+                })}
+                {padBottom > 0 ? <tr aria-hidden="true" style={{ height: padBottom }} /> : null}
+              </tbody>
+            </table>
+            {list.isFetchingNextPage ? <p className="p-2 text-sm text-ink-muted">Loading more…</p> : null}
+          </div>
+        )}
+      </div>
+      <KeyHelp open={help} onClose={() => setHelp(false)} title="Queue keys" bindings={queueKeysHelp} />
+    </div>
+  );
+}
+
+/** Props of <QueueFilterBar>. */
+type FilterBarProps = {
+  filters: QueueFilters;
+  setFilters: (f: Partial<QueueFilters>) => void;
+  setStateParam: (v: string) => void;
+  counts: Record<ItemState, number> | undefined;
+};
+
+const stateChoice = (f: QueueFilters): string => {
+  if (!f.state) return 'all';
+  if (f.state.length === workingStates.length && workingStates.every((s) => f.state?.includes(s))) return '';
+  return f.state.join(',');
+};
+
+/** The filter bar: every filter of GET /api/queue, written to the URL as it changes. */
+function QueueFilterBar({ filters, setFilters, setStateParam, counts }: FilterBarProps) {
+  const [station, setStation] = useState((filters.station ?? []).join(','));
+  useEffect(() => setStation((filters.station ?? []).join(',')), [filters.station]);
+  const countOf = (s: ItemState) => (counts ? ` (${counts[s].toLocaleString('en')})` : '');
+  const waiting = counts ? workingStates.reduce((n, s) => n + counts[s], 0) : undefined;
+  return (
+    <form className="flex flex-wrap items-end gap-3" aria-label="Queue filters" onSubmit={(e) => e.preventDefault()}>
+      <label className="flex w-56 flex-col gap-1 text-sm font-medium">
+        State
+        <Select value={stateChoice(filters)} onChange={(e) => setStateParam(e.target.value)} name="state">
+          <option value="">Waiting: new, returned, in review{waiting === undefined ? '' : ` (${waiting})`}</option>
+          {itemStates.map((s) => (
+            <option key={s} value={s}>
+              {s}
+              {countOf(s)}
+            </option>
+          ))}
+          <option value="all">Every state</option>
+        </Select>
+      </label>
+      <label className="flex w-36 flex-col gap-1 text-sm font-medium">
+        Station
+        <Input
+          value={station}
+          placeholder="KV01,KV04"
+          onChange={(e) => setStation(e.target.value.toUpperCase())}
+          onBlur={() => setFilters({ station: station.split(',').map((s) => s.trim()).filter(Boolean) })}
+          onKeyDown={(e) => {
+            if (e.key === 'Enter') setFilters({ station: station.split(',').map((s) => s.trim()).filter(Boolean) });
+          }}
+          mono
+        />
+      </label>
+      <label className="flex w-40 flex-col gap-1 text-sm font-medium">
+        Flag
+        <Select value={filters.flag?.[0] ?? ''} onChange={(e) => setFilters({ flag: e.target.value ? [e.target.value as (typeof flags)[number]] : undefined })}>
+          <option value="">Any flag</option>
+          {flags.map((f) => (
+            <option key={f}>{f}</option>
+          ))}
+        </Select>
+      </label>
+      <label className="flex w-44 flex-col gap-1 text-sm font-medium">
+        Label
+        <Select value={filters.label?.[0] ?? ''} onChange={(e) => setFilters({ label: e.target.value ? [e.target.value as (typeof labelFilterValues)[number]] : undefined })}>
+          <option value="">Any label</option>
+          <option value="none">No label yet</option>
+          <option value="noise">Noise (dismissed)</option>
+          {labelFilterValues
+            .filter((l) => l !== 'none' && l !== 'noise')
+            .map((l) => (
+              <option key={l}>{l}</option>
+            ))}
+        </Select>
+      </label>
+      <NumberFilter label="Score from" value={filters.scoreMin} onChange={(v) => setFilters({ scoreMin: v })} />
+      <NumberFilter label="Score to" value={filters.scoreMax} onChange={(v) => setFilters({ scoreMax: v })} />
+      <TimeFilter label="Window from (UTC)" value={filters.from} onChange={(v) => setFilters({ from: v })} />
+      <TimeFilter label="Window to (UTC)" value={filters.to} onChange={(v) => setFilters({ to: v })} />
+      <label className="flex w-44 flex-col gap-1 text-sm font-medium">
+        Order
+        <Select value={filters.sort} onChange={(e) => setFilters({ sort: e.target.value === 'age' ? 'age' : 'score' })}>
+          <option value="score">Highest score first</option>
+          <option value="age">Waiting longest first</option>
+        </Select>
+      </label>
+    </form>
+  );
+}
+
+function NumberFilter({ label, value, onChange }: { label: string; value: number | undefined; onChange: (v: number | undefined) => void }) {
+  const [text, setText] = useState(value === undefined ? '' : String(value));
+  useEffect(() => setText(value === undefined ? '' : String(value)), [value]);
+  const commit = () => {
+    const n = text.trim() === '' ? undefined : Number(text);
+    onChange(n !== undefined && Number.isFinite(n) ? n : undefined);
+  };
+  return (
+    <label className="flex w-24 flex-col gap-1 text-sm font-medium">
+      {label}
+      <Input value={text} inputMode="decimal" onChange={(e) => setText(e.target.value)} onBlur={commit} onKeyDown={(e) => e.key === 'Enter' && commit()} mono />
+    </label>
+  );
+}
+
+function TimeFilter({ label, value, onChange }: { label: string; value: string | undefined; onChange: (v: string | undefined) => void }) {
+  // datetime-local has no zone: the value is read and written as UTC.
+  const local = value ? value.slice(0, 16) : '';
+  return (
+    <label className="flex w-52 flex-col gap-1 text-sm font-medium">
+      {label}
+      <Input type="datetime-local" value={local} onChange={(e) => onChange(e.target.value ? `${e.target.value}:00.000Z` : undefined)} mono />
+    </label>
+  );
+}

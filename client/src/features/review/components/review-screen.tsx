@@ -1,0 +1,424 @@
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { Link, useLocation, useNavigate } from 'react-router';
+import { commonEventTypes, type Pick } from '../../../../../shared/schemas/label';
+import { Button } from '../../../components/ui/button';
+import { Dialog } from '../../../components/ui/dialog';
+import { EmptyState } from '../../../components/ui/empty-state';
+import { FlagMarker } from '../../../components/ui/flag-marker';
+import { Input } from '../../../components/ui/input';
+import { Kbd } from '../../../components/ui/kbd';
+import { Select } from '../../../components/ui/select';
+import { Loading } from '../../../components/ui/skeleton';
+import { StateMarker } from '../../../components/ui/state-marker';
+import { useToast } from '../../../components/ui/toast';
+import { TriageCaution } from '../../../components/ui/triage-caution';
+import { paths } from '../../../config/paths';
+import { useMe, useQueueList } from '../../queue/api/get-queue';
+import { postKeepAlive, useItemAction, type ItemActionInput } from '../../queue/api/item-actions';
+import { liveArrivals } from '../../queue/api/live-patch';
+import { isTypingTarget, KeyHelp, type KeyBinding } from '../../queue/components/key-help';
+import { parseFilters } from '../../queue/hooks/use-queue-filters';
+import { analysisViewSchema, useItem, useTraces } from '../api/get-item';
+import { LabelForm, useReviewForm, type ReviewFormValues } from './label-form';
+import { SpectrogramPanel } from './spectrogram-panel';
+import { SpectrumPanel } from './spectrum-panel';
+import { TracePanel, pickSeconds } from './trace-panel';
+
+/** The review screen's keys. */
+export const reviewKeysHelp: readonly KeyBinding[] = [
+  { keys: ['J'], does: 'Next item in the queue' },
+  { keys: ['K'], does: 'Previous item in the queue' },
+  { keys: ['C'], does: 'Claim this item' },
+  { keys: ['R'], does: 'Release your claim' },
+  ...commonEventTypes.map((t, i) => ({ keys: [String(i + 1)], does: `Label as ${t} (claims first if needed) and go to the next item` })),
+  { keys: ['Enter'], does: 'Label with the form’s values (inside the form)' },
+  { keys: ['D'], does: 'Dismiss as noise with the form’s noise reason, then next item' },
+  { keys: ['E'], does: 'Escalate to the supervisors (asks for a reason)' },
+  { keys: ['P', 'S'], does: 'Place a P or S pick at the cursor (else at the first trigger); also sets the phase a click places' },
+  { keys: ['+', '−'], does: 'Zoom in / out around the cursor or the middle' },
+  { keys: ['0'], does: 'Show the whole window' },
+  { keys: ['Esc'], does: 'Back to the queue' },
+  { keys: ['?'], does: 'Show these keys' },
+];
+
+/** µs-precision ISO time of `seconds` after `startMs`. */
+function isoAt(startMs: number, seconds: number): string {
+  const totalUs = Math.round(startMs * 1000 + seconds * 1e6);
+  const ms = Math.floor(totalUs / 1000);
+  const us = totalUs - ms * 1000;
+  return `${new Date(ms).toISOString().slice(0, 23)}${String(us).padStart(3, '0')}Z`;
+}
+
+const fmt = (v: number | null | undefined, digits = 2) => (v === null || v === undefined ? '—' : Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(2) : v.toFixed(digits));
+
+/**
+ * The review screen of one queue item: who holds it, the flag and why, the traces of every
+ * channel with both bands and STA/LTA (linked cursor and zoom), spectrum with noise models,
+ * spectrogram, metrics, picks and the label form — worked from the keyboard (see reviewKeysHelp).
+ */
+export function ReviewScreen({ itemId }: { itemId: number }) {
+  const item = useItem(itemId);
+  const me = useMe();
+  const toast = useToast();
+  const navigate = useNavigate();
+  const location = useLocation();
+  const action = useItemAction();
+  const filters = useMemo(() => parseFilters(new URLSearchParams(location.search)), [location.search]);
+  const list = useQueueList(filters);
+  const [view, setView] = useState<{ from: number; to: number } | null>(null);
+  const traces = useTraces(itemId, view?.from ?? null, view?.to ?? null, 1600);
+  const [phase, setPhase] = useState<'P' | 'S'>('P');
+  const [help, setHelp] = useState(false);
+  const [escalating, setEscalating] = useState(false);
+  const [reason, setReason] = useState('');
+  const [spectrumChannel, setSpectrumChannel] = useState<string | null>(null);
+  const cursorS = useRef<number | null>(null);
+  const form = useReviewForm();
+  const picks = form.watch('picks') ?? [];
+
+  useEffect(() => liveArrivals.seen(itemId), [itemId]);
+
+  const detail = item.data;
+  const analysis = useMemo(() => {
+    const r = analysisViewSchema.safeParse(detail?.analysis);
+    return r.success ? r.data : null;
+  }, [detail?.analysis]);
+  const windowStartMs = detail ? Date.parse(detail.windowStart) : 0;
+  const durationS = detail ? (Date.parse(detail.windowEnd) - windowStartMs) / 1000 : 0;
+  const mine = detail?.state === 'in review' && detail.claimedBy?.id === me?.id;
+  const claimable = detail?.state === 'new' || detail?.state === 'returned';
+
+  // Keep a claim alive while this screen is open (the server lets idle claims lapse).
+  useEffect(() => {
+    if (!mine) return;
+    const t = setInterval(() => void postKeepAlive(itemId), 60_000);
+    return () => clearInterval(t);
+  }, [mine, itemId]);
+
+  const rows = useMemo(() => list.data?.pages.flatMap((p) => p.items) ?? [], [list.data]);
+  const idx = rows.findIndex((r) => r.id === itemId);
+  const neighbour = (step: 1 | -1) => {
+    if (idx < 0) return rows[0]?.id === itemId ? undefined : rows[0];
+    for (let i = idx + step; i >= 0 && i < rows.length; i += step) {
+      const r = rows[i];
+      if (r && (r.state === 'new' || r.state === 'returned' || r.claimedBy?.id === me?.id)) return r;
+    }
+    return undefined;
+  };
+  const go = (id: number | undefined) => {
+    if (id === undefined) void navigate(`${paths.queue.href}${location.search}`);
+    else void navigate(`${paths.queueItem.href}/${id}${location.search}`);
+  };
+
+  const run = useCallback(
+    async (input: ItemActionInput, okWords: string, advance: boolean) => {
+      try {
+        const row = await action.mutateAsync(input);
+        toast.notify({ tone: 'ok', title: `Item ${row.id} ${okWords}`, durationMs: 2500 });
+        if (advance) go(neighbour(1)?.id);
+        return row;
+      } catch (err) {
+        toast.notify({ tone: 'danger', title: `Item ${input.id}: not saved`, body: err instanceof Error ? err.message : String(err) });
+        return null;
+      }
+    },
+    // neighbour/go read the latest render's rows.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+    [action, toast, rows, idx, me?.id, location.search],
+  );
+
+  /** Claims first when the item is waiting, then returns the version to write with. */
+  const ensureClaim = useCallback(async (): Promise<number | null> => {
+    if (!detail) return null;
+    if (mine) return detail.version;
+    if (!claimable) {
+      toast.notify({ tone: 'warn', title: `Item ${detail.id} is ${detail.state}${detail.claimedBy ? ` (claimed by ${detail.claimedBy.displayName})` : ''}` });
+      return null;
+    }
+    const row = await run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false);
+    return row ? row.version : null;
+  }, [detail, mine, claimable, run, toast]);
+
+  const label = useCallback(
+    async (v: ReviewFormValues) => {
+      const version = await ensureClaim();
+      if (version === null || !detail) return;
+      await run({ action: 'label', id: detail.id, version, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } }, `labelled ${v.eventType}`, true);
+    },
+    [ensureClaim, run, detail],
+  );
+  const dismiss = useCallback(
+    async (v: ReviewFormValues) => {
+      const version = await ensureClaim();
+      if (version === null || !detail) return;
+      await run({ action: 'dismiss', id: detail.id, version, noiseReason: v.noiseReason, note: v.note }, `dismissed (${v.noiseReason})`, true);
+    },
+    [ensureClaim, run, detail],
+  );
+  const escalate = async () => {
+    const version = await ensureClaim();
+    if (version === null || !detail) return;
+    const row = await run({ action: 'escalate', id: detail.id, version, reason }, 'escalated to the supervisors', true);
+    if (row) {
+      setEscalating(false);
+      setReason('');
+    }
+  };
+
+  const leadTraces = traces.data?.channels.find((c) => c.streamId.endsWith('Z')) ?? traces.data?.channels[0];
+  const placePick = useCallback(
+    (streamId: string, timeS: number, which: 'P' | 'S') => {
+      const others = (form.getValues('picks') ?? []).filter((p) => !(p.phase === which && p.streamId === streamId));
+      const pick: Pick = { phase: which, time: isoAt(windowStartMs, timeS), onset: 'questionable', polarity: 'undecidable', streamId };
+      form.setValue('picks', [...others, pick].sort((a, b) => pickSeconds(a, windowStartMs) - pickSeconds(b, windowStartMs)), { shouldDirty: true });
+    },
+    [form, windowStartMs],
+  );
+  const onPick = useCallback((streamId: string, t: number) => placePick(streamId, t, phase), [placePick, phase]);
+  const onZoom = useCallback((from: number, to: number) => setView({ from, to }), []);
+  const onCursor = useCallback((t: number | null) => {
+    cursorS.current = t;
+  }, []);
+
+  const zoom = (factor: number) => {
+    const from = view?.from ?? 0;
+    const to = view?.to ?? durationS;
+    const centre = cursorS.current ?? (from + to) / 2;
+    const half = Math.min(durationS / 2, ((to - from) * factor) / 2);
+    if (half * 2 >= durationS - 1e-6) return setView(null);
+    const f = Math.max(0, Math.min(durationS - 2 * half, centre - half));
+    setView({ from: f, to: f + 2 * half });
+  };
+
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !detail) return;
+      const k = e.key;
+      const n = Number(k);
+      if (k === 'j') go(neighbour(1)?.id);
+      else if (k === 'k') go(neighbour(-1)?.id);
+      else if (k === 'c') {
+        if (claimable) void run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false);
+        else toast.notify({ tone: 'warn', title: mine ? 'You already hold this item' : `Item ${detail.id} is ${detail.state}` });
+      } else if (k === 'r' && mine) void run({ action: 'release', id: detail.id, version: detail.version }, 'released', false);
+      else if (Number.isInteger(n) && n >= 1 && n <= commonEventTypes.length) {
+        const type = commonEventTypes[n - 1];
+        if (type) {
+          form.setValue('eventType', type);
+          void form.handleSubmit(label)();
+        }
+      } else if (k === 'd') void form.handleSubmit(dismiss)();
+      else if (k === 'e') setEscalating(true);
+      else if (k === 'p' || k === 's') {
+        const which = k === 'p' ? 'P' : 'S';
+        setPhase(which);
+        const t = cursorS.current ?? leadTraces?.triggers[0]?.on ?? null;
+        if (t !== null && leadTraces) placePick(leadTraces.streamId, t, which);
+      } else if (k === '+' || k === '=') zoom(0.5);
+      else if (k === '-' || k === '_') zoom(2);
+      else if (k === '0') setView(null);
+      else if (k === 'Escape') go(undefined);
+      else if (k === '?') setHelp(true);
+      else return;
+      e.preventDefault();
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  });
+
+  if (item.isPending) return <Loading label={`Loading item ${itemId}…`} className="m-6" />;
+  if (item.isError || !detail) return <EmptyState title={`Item ${itemId} could not be loaded`} className="m-6">{item.error?.message}</EmptyState>;
+
+  const specChannel = analysis?.channels.find((c) => c.id === (spectrumChannel ?? analysis.leadChannel)) ?? analysis?.channels[0];
+  const next = neighbour(1);
+  const prev = neighbour(-1);
+  const holder = detail.claimedBy && detail.state === 'in review' ? (detail.claimedBy.id === me?.id ? 'you' : detail.claimedBy.displayName) : null;
+
+  return (
+    <div className="flex flex-col gap-3 p-4" data-item-id={detail.id} data-version={detail.version}>
+      <header className="flex flex-wrap items-center gap-x-4 gap-y-2">
+        <Link to={`${paths.queue.href}${location.search}`} className="text-sm">
+          ← Queue <Kbd>Esc</Kbd>
+        </Link>
+        <h1 className="text-xl font-semibold">
+          <span className="font-mono">{detail.station}</span> <span className="font-normal text-ink-muted">item {detail.id}</span>
+        </h1>
+        <span className="font-mono text-sm">
+          <time dateTime={detail.windowStart}>{detail.windowStart.replace('T', ' ')}</time> · {durationS.toFixed(1)} s
+        </span>
+        <StateMarker state={detail.state} />
+        <FlagMarker flag={detail.flag} size="md" />
+        <span className="font-mono text-sm" title="Orders the queue; not a magnitude">
+          score {detail.score.toFixed(1)}
+        </span>
+        <span className="text-sm" data-testid="claim-holder">
+          {holder ? (
+            <>
+              Claimed by <strong>{holder}</strong>
+            </>
+          ) : detail.state === 'new' || detail.state === 'returned' ? (
+            'Not claimed'
+          ) : (
+            <>by {detail.updatedBy?.displayName ?? 'the system'}</>
+          )}
+        </span>
+      </header>
+      <div className="flex flex-wrap items-center gap-2" role="toolbar" aria-label="Item actions">
+        <Button size="sm" variant={claimable ? 'primary' : 'secondary'} shortcut="C" disabled={!claimable || action.isPending} onClick={() => void run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false)}>
+          Claim
+        </Button>
+        <Button size="sm" shortcut="R" disabled={!mine || action.isPending} onClick={() => void run({ action: 'release', id: detail.id, version: detail.version }, 'released', false)}>
+          Release
+        </Button>
+        <Button size="sm" shortcut="D" disabled={(!mine && !claimable) || action.isPending} onClick={() => void form.handleSubmit(dismiss)()}>
+          Dismiss
+        </Button>
+        <Button size="sm" shortcut="E" disabled={(!mine && !claimable) || action.isPending} onClick={() => setEscalating(true)}>
+          Escalate
+        </Button>
+        <span className="mx-2 h-5 border-l border-line" aria-hidden="true" />
+        <Button size="sm" variant="quiet" shortcut="K" disabled={!prev} onClick={() => go(prev?.id)}>
+          Previous
+        </Button>
+        <Button size="sm" variant="quiet" shortcut="J" disabled={!next} onClick={() => go(next?.id)}>
+          Next
+        </Button>
+        <Button size="sm" variant="quiet" shortcut="?" onClick={() => setHelp(true)}>
+          Keys
+        </Button>
+        <span className="ml-auto text-sm text-ink-muted">
+          Zoom {view ? `${view.from.toFixed(2)}–${view.to.toFixed(2)} s` : 'whole window'} (<Kbd>+</Kbd> <Kbd>−</Kbd> <Kbd>0</Kbd>) · click places <strong className="text-ink">{phase}</strong>
+        </span>
+      </div>
+      <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_26rem]">
+        <main className="flex min-w-0 flex-col gap-3" aria-label="Waveforms">
+          {traces.data ? (
+            <TracePanel traces={traces.data} windowStartMs={windowStartMs} picks={picks} activePhase={phase} onZoom={onZoom} onPick={onPick} onCursor={onCursor} syncKey={`item-${detail.id}`} />
+          ) : traces.isError ? (
+            <EmptyState title="Traces could not be loaded">{traces.error.message}</EmptyState>
+          ) : (
+            <Loading label="Loading traces…" />
+          )}
+          {leadTraces?.spectrogram ? (
+            <section aria-label="Spectrogram" className="rounded-sm border border-line bg-surface p-2">
+              <h2 className="pb-1 text-md font-semibold">Spectrogram · {leadTraces.streamId}</h2>
+              <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} fromS={view?.from ?? 0} toS={view?.to ?? durationS} />
+            </section>
+          ) : null}
+        </main>
+        <aside className="flex flex-col gap-3" aria-label="Assessment">
+          <section className="rounded-sm border border-line bg-surface p-3">
+            <h2 className="pb-1 text-md font-semibold">Why it is flagged {detail.flag}</h2>
+            <ul className="list-disc pl-5 text-sm">
+              {detail.reasons.map((r) => (
+                <li key={r}>{r}</li>
+              ))}
+            </ul>
+            <TriageCaution className="mt-2" />
+          </section>
+          <section className="rounded-sm border border-line bg-surface p-3">
+            <h2 className="pb-1 text-md font-semibold">Label</h2>
+            <LabelForm form={form} canWrite={mine || claimable} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
+          </section>
+          {analysis ? <Metrics analysis={analysis} /> : null}
+          {specChannel ? (
+            <section className="rounded-sm border border-line bg-surface p-3">
+              <div className="flex items-center justify-between gap-2 pb-1">
+                <h2 className="text-md font-semibold">Spectrum</h2>
+                <label className="flex items-center gap-2 text-sm">
+                  Channel
+                  <Select className="h-7" value={specChannel.id} onChange={(e) => setSpectrumChannel(e.target.value)}>
+                    {analysis?.channels.map((c) => (
+                      <option key={c.id}>{c.id}</option>
+                    ))}
+                  </Select>
+                </label>
+              </div>
+              <SpectrumPanel channel={specChannel} />
+            </section>
+          ) : null}
+        </aside>
+      </div>
+      <KeyHelp open={help} onClose={() => setHelp(false)} title="Review keys" bindings={reviewKeysHelp} />
+      <Dialog
+        open={escalating}
+        onClose={() => setEscalating(false)}
+        title={`Escalate item ${detail.id}`}
+        description="Supervisors get it in their inbox. Say what they should look at."
+        actions={
+          <>
+            <Button onClick={() => setEscalating(false)}>Cancel</Button>
+            <Button variant="primary" shortcut="Enter" disabled={reason.trim().length < 3} onClick={() => void escalate()}>
+              Escalate
+            </Button>
+          </>
+        }
+      >
+        <form
+          onSubmit={(e) => {
+            e.preventDefault();
+            if (reason.trim().length >= 3) void escalate();
+          }}
+        >
+          <label className="flex flex-col gap-1 text-sm font-medium">
+            Reason
+            <Input value={reason} onChange={(e) => setReason(e.target.value)} placeholder="e.g. felt nearby? similar arrivals at KV02 and KV03" />
+          </label>
+        </form>
+      </Dialog>
+    </div>
+  );
+}
+
+/** Metrics per channel from the engine's analysis. */
+function Metrics({ analysis }: { analysis: NonNullable<ReturnType<typeof analysisViewSchema.safeParse>['data']> }) {
+  return (
+    <section className="rounded-sm border border-line bg-surface p-3">
+      <h2 className="pb-1 text-md font-semibold">Metrics</h2>
+      <div className="overflow-x-auto">
+        <table className="w-full text-sm">
+          <caption className="sr-only">Per-channel metrics: band ratio, STA/LTA peak, SNR, dominant frequency and centroid</caption>
+          <thead>
+            <tr className="text-left text-ink-muted">
+              <th scope="col" className="pr-2 font-medium">Channel</th>
+              <th scope="col" className="pr-2 text-right font-medium" title="E_high / E_low">high/low</th>
+              <th scope="col" className="pr-2 text-right font-medium">log10</th>
+              <th scope="col" className="pr-2 text-right font-medium">STA/LTA peak</th>
+              <th scope="col" className="pr-2 text-right font-medium">SNR</th>
+              <th scope="col" className="pr-2 text-right font-medium">f dom (Hz)</th>
+              <th scope="col" className="text-right font-medium">centroid (Hz)</th>
+            </tr>
+          </thead>
+          <tbody className="font-mono">
+            {analysis.channels.map((c) => (
+              <tr key={c.id} className="border-t border-line">
+                <th scope="row" className="pr-2 text-left font-normal">
+                  {c.id.split('.').pop()}
+                  {c.id === analysis.leadChannel ? <span className="ml-1 font-sans text-xs text-ink-muted">(lead)</span> : null}
+                </th>
+                <td className="pr-2 text-right">{fmt(c.ratio)}</td>
+                <td className="pr-2 text-right">{fmt(c.log10Ratio)}</td>
+                <td className="pr-2 text-right">
+                  {fmt(c.staLta.peak)} <span className="text-ink-muted">@{c.staLta.peakTime.toFixed(1)} s</span>
+                </td>
+                <td className="pr-2 text-right">{fmt(c.snr, 1)}</td>
+                <td className="pr-2 text-right">{fmt(c.dominantFrequency)}</td>
+                <td className="text-right">{fmt(c.spectralCentroid)}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+      {analysis.channels.some((c) => c.qc.length > 0 || c.warnings.length > 0) ? (
+        <ul className="mt-2 list-disc pl-5 text-sm">
+          {analysis.channels.flatMap((c) => [...c.qc.map((q) => `${c.id}: ${q.severity}: ${q.message}`), ...c.warnings.map((w) => `${c.id}: ${w}`)]).map((m) => (
+            <li key={m}>{m}</li>
+          ))}
+        </ul>
+      ) : null}
+      <p className="mt-1 text-xs text-ink-muted">
+        Baseline: {analysis.baseline ?? '—'}. Band energies from causal filtering from zero state.
+      </p>
+    </section>
+  );
+}
