@@ -1,3 +1,4 @@
+import { authPagePaths } from '../../shared/auth/links';
 import type { Env } from '../env';
 
 /**
@@ -12,9 +13,9 @@ export function publicBaseUrl(env: Env): string {
 }
 
 /** Client path of the invitation page; the token goes in the fragment, so it never reaches logs. */
-export const invitationPath = '/welcome';
+export const invitationPath = authPagePaths.welcome;
 /** Client path of the set-new-password page; token in the fragment too. */
-export const resetPasswordPath = '/reset-password';
+export const resetPasswordPath = authPagePaths.resetPassword;
 
 /** The link in an invitation mail. */
 export function invitationLink(env: Env, token: string): string {
