@@ -1,11 +1,14 @@
 import type { ReactNode } from 'react';
-import { ConnectionIndicator } from '../../../components/ui/connection-indicator';
+import type uPlot from 'uplot';
 import type { LiveState } from '../../../lib/ws-client';
 
 /** The sentence every supervisor screen that shows event times carries. */
 export const noLocationText = 'Seisift does not yet locate events or compute magnitudes: times shown are station times (earliest P pick, else earliest trigger), not origin times.';
 
-/** A supervisor screen's frame: title, one line of purpose, the live indicator, then the content. */
+/**
+ * A supervisor screen's frame: title, one line of purpose, then the content. The shell shows the
+ * live connection; a screen with a live client of its own says only when that one is not live.
+ */
 export function SupervisorPage({ title, summary, live, children, actions }: { title: string; summary: ReactNode; live?: LiveState; children: ReactNode; actions?: ReactNode }) {
   return (
     <div className="flex flex-col gap-4 p-4">
@@ -14,7 +17,11 @@ export function SupervisorPage({ title, summary, live, children, actions }: { ti
         <p className="text-sm text-ink-muted">{summary}</p>
         <div className="ml-auto flex items-center gap-3">
           {actions}
-          {live ? <ConnectionIndicator state={live} /> : null}
+          {live && live !== 'live' ? (
+            <span role="status" className="text-sm text-warn">
+              {live === 'offline' ? 'Live updates offline; retrying…' : 'Connecting live updates…'}
+            </span>
+          ) : null}
         </div>
       </header>
       {children}
@@ -51,4 +58,12 @@ export function daysAgoIso(n: number, now = new Date()): string {
 /** A date input's value (YYYY-MM-DD, read as a UTC day) as ISO UTC midnight. */
 export function dayToIso(value: string): string {
   return `${value}T00:00:00.000Z`;
+}
+
+/**
+ * PlotFrame `configure` that also draws each value as a point, so a day standing alone between
+ * gaps (no line to draw) is still seen. Module-level, hence stable for PlotFrame's memo.
+ */
+export function withPoints(options: uPlot.Options): uPlot.Options {
+  return { ...options, series: options.series.map((s, i) => (i === 0 ? s : { ...s, points: { show: true, size: 6 } })) };
 }

@@ -6,7 +6,7 @@ import { Loading } from '../../../components/ui/skeleton';
 import { Table, TBody, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { dashboardQuery } from '../api/supervisor-api';
-import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage } from './common';
+import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPoints } from './common';
 
 const dayFormat = (v: number) => new Date(v * 1000).toISOString().slice(5, 10);
 
@@ -42,6 +42,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="Items per day per station"
             description={`Queue items that arrived each day, one line per station: ${d.itemsPerStation.map((s) => `${s.station} ${s.counts.reduce((a, b) => a + b, 0)}`).join(', ')}.`}
+            configure={withPoints}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'items' }}
             series={d.itemsPerStation.map((s) => ({ label: s.station, values: s.counts }))}
@@ -49,6 +50,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="Flag mix"
             description="Items per day by automatic flag."
+            configure={withPoints}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'items' }}
             series={d.flagMix.map((f) => ({ label: f.flag, values: f.counts }))}
@@ -56,6 +58,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="Median time to triage"
             description="Median minutes from an item's arrival to its first label, dismissal or escalation, by the day of the triage."
+            configure={withPoints}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'median', unit: 'min' }}
             series={[{ label: 'median time to triage', values: d.medianTriageMinutes }]}
@@ -63,6 +66,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="False-alarm rate of “likely event”"
             description="Of the items flagged likely event that arrived each day and have been labelled or dismissed, the share that turned out to be noise."
+            configure={withPoints}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'false alarms', format: (v) => `${Math.round(v * 100)} %` }}
             series={[{ label: 'false-alarm rate', values: d.falseAlarmRate }]}

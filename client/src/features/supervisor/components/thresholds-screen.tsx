@@ -9,7 +9,7 @@ import { Loading } from '../../../components/ui/skeleton';
 import { Table, TBody, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '../api/supervisor-api';
-import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage } from './common';
+import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPoints } from './common';
 
 const pct = (v: number | null) => (v === null ? 'n/a' : `${(v * 100).toFixed(1)} %`);
 
@@ -111,6 +111,7 @@ export function ThresholdsScreen() {
           <PlotFrame
             title="Precision and recall across eventZ"
             description={`Precision (solid) and recall (dashed) of the flag “likely event” on ${report.data.station}'s labelled history as eventZ goes from ${x[0] ?? 0} to ${x[x.length - 1] ?? 0}.`}
+            configure={withPoints}
             x={{ label: 'eventZ', values: x }}
             y={{ label: 'share', format: (v) => `${Math.round(v * 100)} %` }}
             series={[
