@@ -4,8 +4,7 @@
  * each piece draws from its own generator seeded by station, window start and purpose, so a window
  * does not depend on which other windows are generated. Invented data, for the demo only.
  */
-import { butterworthSos, type Sos } from '../dsp/butterworth';
-import { sosfiltInPlace } from '../dsp/sosfilt';
+import { bandpass, filterInPlace, lowpass2, type Biquad } from './filters';
 import { prngFor, type Prng } from './prng';
 import {
   DEMO_CHANNELS,
@@ -38,25 +37,27 @@ export interface SynthWindow {
   events: { event: DemoEvent; at: EventAtStation }[];
 }
 
-const sosCache = new Map<string, Sos>();
-function sos(order: number, edges: readonly number[], type: 'lowpass' | 'highpass' | 'bandpass'): Sos {
+const chainCache = new Map<string, Biquad[]>();
+/** A filter chain by shape: `band` f1…f2 of order 1 or 2, or a second-order `lowpass` at f1. */
+function chain(order: 1 | 2, edges: readonly [number] | readonly [number, number], type: 'lowpass' | 'bandpass'): Biquad[] {
   const key = `${order}/${edges.join(',')}/${type}`;
-  let s = sosCache.get(key);
-  if (!s) {
-    s = butterworthSos(order, edges, type, FS);
-    sosCache.set(key, s);
+  let c = chainCache.get(key);
+  if (!c) {
+    const [f1, f2] = edges;
+    c = type === 'lowpass' || f2 === undefined ? [lowpass2(f1, FS)] : bandpass(order, f1, f2, FS);
+    chainCache.set(key, c);
   }
-  return s;
+  return c;
 }
 
 /**
  * Gaussian white noise of `n + warm` samples, filtered causally, with the first `warm` samples
  * (the filter's start-up) dropped and the rest scaled to unit RMS.
  */
-function colouredNoise(rng: Prng, n: number, filter: Sos, warm: number): Float64Array {
+function colouredNoise(rng: Prng, n: number, filter: readonly Biquad[], warm: number): Float64Array {
   const x = new Float64Array(n + warm);
   for (let i = 0; i < x.length; i++) x[i] = rng.gauss();
-  sosfiltInPlace(filter, x);
+  filterInPlace(filter, x);
   const y = x.slice(warm);
   let ss = 0;
   for (let i = 0; i < n; i++) ss += (y[i] ?? 0) ** 2;
@@ -114,7 +115,7 @@ function addScaled(dst: Float64Array, src: Float64Array, scale: number, offset =
  */
 function transient(rng: Prng, lengthS: number, band: readonly [number, number], riseS: number, decayS: number, upFirst = false): Float64Array {
   const n = Math.round(lengthS * FS);
-  const carrier = colouredNoise(rng, n, sos(2, band, 'bandpass'), 2 * FS);
+  const carrier = colouredNoise(rng, n, chain(2, band, 'bandpass'), 2 * FS);
   const y = new Float64Array(n);
   let peak = 0;
   for (let i = 0; i < n; i++) {
@@ -160,15 +161,15 @@ function addEarthquake(c: Components, ev: DemoEvent, at: EventAtStation, startUs
   const aP = aS / 3.5;
   const p0 = Math.round((at.pArrivalUs - startUs) / (1e6 / FS));
   const s0 = Math.round((at.sArrivalUs - startUs) / (1e6 / FS));
-  // A second-order band-pass fc/2 … 2·fc: the velocity spectrum peaks at the corner frequency and
+  // A band-pass 0.6·fc … 2·fc (second order each side): the velocity spectrum peaks at the corner frequency and
   // falls off on both sides (the ω² source model of Brune 1970 falls as 1/f above the corner in
   // velocity; the steeper low side here is a simplification of the demo).
-  const band: [number, number] = [0.5 * ev.cornerHz, Math.min(2 * ev.cornerHz, 30)];
+  const band: [number, number] = [0.6 * ev.cornerHz, Math.min(2 * ev.cornerHz, 30)];
   const p = transient(rng, 6, band, 0.03, 0.35 + 0.03 * r);
   addScaled(c.HHZ, p, aP * cosI, p0);
   addHorizontal(c, p, undefined, at.azimuthDeg, aP * sinI, 0, p0);
   // S carries somewhat lower frequencies than P (common practice).
-  const sBand: [number, number] = [0.4 * ev.cornerHz, Math.min(1.6 * ev.cornerHz, 30)];
+  const sBand: [number, number] = [0.5 * ev.cornerHz, Math.min(1.6 * ev.cornerHz, 30)];
   const sv = transient(rng, 10, sBand, 0.08, 0.7 + 0.05 * r);
   const sh = transient(rng, 10, sBand, 0.08, 0.7 + 0.05 * r);
   addScaled(c.HHZ, sv, -aS * 0.6 * Math.max(sinI, 0.5), s0);
@@ -235,9 +236,9 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
   const daytime = h > 6 && h < 21 ? 1.4 : 1;
   contents.push('background noise', 'ocean microseism');
   for (const ch of DEMO_CHANNELS) {
-    const bg = colouredNoise(prngFor(`${key}/bg/${ch}`), N, sos(1, [0.05, 0.8], 'bandpass'), 60 * FS);
-    addScaled(c[ch], bg, 1.2e-8 * site * daytime);
-    const ms = colouredNoise(prngFor(`${key}/microseism/${ch}`), N, sos(2, [0.1, 0.35], 'bandpass'), 200 * FS);
+    const bg = colouredNoise(prngFor(`${key}/bg/${ch}`), N, chain(1, [0.05, 0.8], 'bandpass'), 60 * FS);
+    addScaled(c[ch], bg, 1.0e-8 * site * daytime);
+    const ms = colouredNoise(prngFor(`${key}/microseism/${ch}`), N, chain(2, [0.1, 0.35], 'bandpass'), 200 * FS);
     addScaled(c[ch], ms, microseismRms(h) * (ch === 'HHZ' ? 1 : 1.25) * (0.8 + 0.2 * site));
   }
 
@@ -257,14 +258,14 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
   }
   if (vehicles > 0 && coupling >= 0.1) contents.push(`traffic (${vehicles} vehicle passes${coupling < 1 ? ', far from the highway' : ''})`);
   for (const ch of DEMO_CHANNELS) {
-    const carrier = colouredNoise(prngFor(`${key}/traffic/${ch}`), N, sos(2, [3, 20], 'bandpass'), 2 * FS);
+    const carrier = colouredNoise(prngFor(`${key}/traffic/${ch}`), N, chain(2, [3, 20], 'bandpass'), 2 * FS);
     for (let i = 0; i < N; i++) c[ch][i] = (c[ch][i] ?? 0) + (carrier[i] ?? 0) * (envelope[i] ?? 0);
   }
 
   if (station === 'KV04') {
     contents.push('pump line 25 Hz (with 12.5 Hz and 37.5 Hz)');
     const rng = prngFor(`${key}/pump`);
-    const wander = colouredNoise(rng, N, sos(2, [0.02], 'lowpass'), 100 * FS);
+    const wander = colouredNoise(rng, N, chain(2, [0.02], 'lowpass'), 100 * FS);
     for (const ch of DEMO_CHANNELS) {
       const amp = ch === 'HHZ' ? 2.5e-7 : 1.6e-7;
       const phases = [rng.uniform(0, 2 * Math.PI), rng.uniform(0, 2 * Math.PI), rng.uniform(0, 2 * Math.PI)];
@@ -282,10 +283,10 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
   if (exposure > 0) {
     const strength = exposure * byHour(WIND_BY_HOUR, h);
     if (strength >= 0.05) contents.push(`wind gusts (strength ${strength.toFixed(2)} of the saddle's afternoon peak)`);
-    const gust = colouredNoise(prngFor(`${key}/gust`), N, sos(2, [0.05], 'lowpass'), 100 * FS);
+    const gust = colouredNoise(prngFor(`${key}/gust`), N, chain(2, [0.05], 'lowpass'), 100 * FS);
     for (const ch of DEMO_CHANNELS) {
-      const low = colouredNoise(prngFor(`${key}/wind-low/${ch}`), N, sos(2, [2], 'lowpass'), 10 * FS);
-      const broad = colouredNoise(prngFor(`${key}/wind-broad/${ch}`), N, sos(2, [0.5, 30], 'bandpass'), 2 * FS);
+      const low = colouredNoise(prngFor(`${key}/wind-low/${ch}`), N, chain(2, [2], 'lowpass'), 10 * FS);
+      const broad = colouredNoise(prngFor(`${key}/wind-broad/${ch}`), N, chain(2, [0.5, 30], 'bandpass'), 2 * FS);
       const amp = 1.5e-7 * strength * (ch === 'HHZ' ? 1 : 2);
       for (let i = 0; i < N; i++) {
         const env = Math.exp(0.9 * (gust[i] ?? 0) - 0.4);

@@ -177,11 +177,11 @@ describe('the scenario is physically consistent', () => {
         const p = Math.round((hit.at.pArrivalUs - w.startUs) / 1e4);
         const s = Math.round((hit.at.sArrivalUs - w.startUs) / 1e4);
         // The vertical band-passed 2–15 Hz (away from microseism and KV04's 25 Hz line); the onset is
-        // where it first exceeds 8× its RMS over the 10 s before the predicted P.
+        // where it first exceeds 6× its RMS over the 10 s before the predicted P.
         const z = sosfilt(butterworthSos(4, [2, 15], 'bandpass', 100), Float64Array.from(syn.counts.HHZ));
         let ss = 0;
         for (let i = p - 1000; i < p; i++) ss += (z[i] ?? 0) ** 2;
-        const level = 8 * Math.sqrt(ss / 1000);
+        const level = 6 * Math.sqrt(ss / 1000);
         let onset = -1;
         for (let i = p - 1000; i < p + 500; i++) {
           if (Math.abs(z[i] ?? 0) > level) {
