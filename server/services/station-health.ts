@@ -55,7 +55,7 @@ export interface StationHealth {
   qc: Array<{ windowId: number; windowStart: string; streamId: string; code: string; severity: string; message: string }>;
   baseline: BaselineView;
   items: Array<{ id: number; state: string; flag: string; score: number; windowStart: string }>;
-  /** Days covered by `trend` and `qc`. */
+  /** Days covered by `trend` and `qc`, ending at the latest window. */
   days: number;
 }
 
@@ -69,13 +69,12 @@ export function noiseModelCurves(fmin = 0.01, fmax = 10, points = 120): StationH
 }
 
 /**
- * The health of station `stationId` over the last `days` days (at most `limit` windows).
- * @param now the reference time (tests pass one)
+ * The health of station `stationId` over the `days` days up to its latest window (at most `limit`
+ * windows), so a station that stopped sending still shows its last stretch.
  */
-export async function stationHealth(db: Database, stationId: number, opts: { days?: number; limit?: number; minBaselineWindows: number; now?: Date }): Promise<StationHealth> {
+export async function stationHealth(db: Database, stationId: number, opts: { days?: number; limit?: number; minBaselineWindows: number }): Promise<StationHealth> {
   const days = opts.days ?? 30;
   const limit = opts.limit ?? 2000;
-  const since = new Date((opts.now ?? new Date()).getTime() - days * 86_400_000);
 
   // Latest PSD per channel: walk the newest windows until every stream has one.
   const recent = await db
@@ -117,7 +116,11 @@ export async function stationHealth(db: Database, stationId: number, opts: { day
       });
     }
   }
-  psd.sort((a, b) => a.streamId.localeCompare(b.streamId));
+  // The vertical component first (it leads the score), then the others by id.
+  const vertical = (id: string) => (/Z$/i.test(id) ? 0 : 1);
+  const latest = recent[0]?.startTime ?? new Date();
+  const since = new Date(latest.getTime() - days * 86_400_000);
+  psd.sort((a, b) => vertical(a.streamId) - vertical(b.streamId) || a.streamId.localeCompare(b.streamId));
 
   const trendRows = await db
     .select()

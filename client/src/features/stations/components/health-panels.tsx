@@ -1,4 +1,5 @@
 import { Link } from 'react-router';
+import type uPlot from 'uplot';
 import type { BaselineView } from '../../../../../shared/schemas/station';
 import { Badge } from '../../../components/ui/badge';
 import { EmptyState } from '../../../components/ui/empty-state';
@@ -53,29 +54,40 @@ export function PsdPlots({ health }: { health: StationHealthView }) {
   );
 }
 
-/** The noise level per window (median PSD over 1–5 Hz of the lead channel) over the last days. */
+/** Trend plot options: wide spacing for the date ticks, and a point per window (few windows draw a line otherwise). */
+function trendOptions(o: uPlot.Options): uPlot.Options {
+  const [xAxis, ...rest] = o.axes ?? [];
+  return {
+    ...o,
+    axes: [{ ...xAxis, space: 120 }, ...rest],
+    series: o.series.map((s, i) => (i === 0 ? s : { ...s, points: { show: true, size: 6 } })),
+  };
+}
+
+/** The noise level per window (median PSD over 1–5 Hz of the lead channel) over the days up to the latest window. */
 export function NoiseTrend({ health }: { health: StationHealthView }) {
   const points = health.trend.filter((t) => t.db !== null);
   if (points.length < 2) {
-    return <p className="text-sm text-ink-muted">The trend needs at least two windows with a 1–5 Hz spectrum in the last {health.days} days.</p>;
+    return <p className="text-sm text-ink-muted">The trend needs at least two windows with a 1–5 Hz spectrum in the {health.days} days up to the latest window.</p>;
   }
   const units = points[0]?.units ?? 'dB';
   const x = points.map((p) => Date.parse(p.windowStart) / 1000);
   return (
     <PlotFrame
       title="Noise level per window, 1–5 Hz"
-      description={`Median PSD between 1 and 5 Hz of each window's lead channel over the last ${health.days} days, ${units}.`}
+      description={`Median PSD between 1 and 5 Hz of each window's lead channel over the ${health.days} days up to the latest window, ${units}.`}
       x={{ label: 'Window start', unit: 'UTC', values: x, format: (v) => new Date(v * 1000).toISOString().slice(5, 16).replace('T', ' ') }}
-      y={{ label: 'Median PSD 1–5 Hz', unit: units.replace(/^dB /, 'dB rel 1 '), format: fmtDb }}
-      series={[{ label: 'noise level', values: points.map((p) => p.db) }]}
-      height={200}
+      y={{ label: 'PSD 1–5 Hz', unit: units.replace(/^dB /, 'dB rel 1 '), format: fmtDb }}
+      series={[{ label: 'median PSD 1–5 Hz of the lead channel', values: points.map((p) => p.db) }]}
+      height={240}
+      configure={trendOptions}
     />
   );
 }
 
 /** QC findings (warnings and errors) of the recent windows. */
 export function QcFindings({ health }: { health: StationHealthView }) {
-  if (health.qc.length === 0) return <p className="text-sm text-ink-muted">No gaps, clipping, dead channels or other findings in the last {health.days} days.</p>;
+  if (health.qc.length === 0) return <p className="text-sm text-ink-muted">No gaps, clipping, dead channels or other findings in the {health.days} days up to the latest window.</p>;
   return (
     <TableScroll label="QC findings">
       <Table caption="Quality findings of recent windows" captionHidden>
@@ -125,7 +137,7 @@ export function BaselineSummary({ baseline }: { baseline: BaselineView }) {
             network default in use ({baseline.count} of {baseline.minWindows} windows)
           </Badge>
         )}{' '}
-        From {baseline.count} {sourceWords[baseline.source]}.
+        {baseline.source === 'none' ? 'No noise windows yet: the score uses the network default.' : `From ${baseline.count} ${baseline.count === 1 ? sourceWords[baseline.source].replace(/^windows/, 'window') : sourceWords[baseline.source]}.`}
       </p>
       {baseline.log10Ratio && baseline.staLtaPeak ? (
         <dl className="grid max-w-lg grid-cols-[auto_1fr_1fr] gap-x-4 gap-y-1 font-mono text-sm">

@@ -61,7 +61,7 @@ export function ProfileEditor({ stationId, profile, channels, canEdit }: { stati
       <p className="text-sm text-ink-muted">
         Band edges must stay below 0.45·fs{slowest !== null ? ` = ${(0.45 * slowest).toFixed(2)} Hz for the slowest channel (${slowest} Hz)` : ''}. Frequencies in Hz, times in s.
       </p>
-      <fieldset disabled={disabled} className="grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] gap-3">
+      <fieldset disabled={disabled} className="grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] items-end gap-3">
         <legend className="pb-1 text-md font-semibold">Bands (Butterworth band-pass)</legend>
         <FormField label="Low band from" error={errors.bands?.low?.fmin?.message ?? errors.bands?.low?.message}>
           {(p) => <Input {...p} type="number" step="any" mono {...register('bands.low.fmin', num)} />}
@@ -75,7 +75,7 @@ export function ProfileEditor({ stationId, profile, channels, canEdit }: { stati
         <FormField label="High band to" error={errors.bands?.high?.fmax?.message}>
           {(p) => <Input {...p} type="number" step="any" mono {...register('bands.high.fmax', num)} />}
         </FormField>
-        <FormField label="Filter order N" hint="2N poles" error={errors.bands?.order?.message}>
+        <FormField label="Filter order N (2N poles)" error={errors.bands?.order?.message}>
           {(p) => <Input {...p} type="number" step="1" mono {...register('bands.order', num)} />}
         </FormField>
         <FormField label="At or above 0.45·fs" error={errors.bands?.nyquistPolicy?.message}>
@@ -117,7 +117,7 @@ export function ProfileEditor({ stationId, profile, channels, canEdit }: { stati
         </div>
       </fieldset>
 
-      <fieldset disabled={disabled} className="grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] gap-3">
+      <fieldset disabled={disabled} className="grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] items-end gap-3">
         <legend className="pb-1 text-md font-semibold">STA/LTA</legend>
         <FormField label="Method" error={errors.staLta?.method?.message}>
           {(p) => (
@@ -141,7 +141,7 @@ export function ProfileEditor({ stationId, profile, channels, canEdit }: { stati
         </FormField>
       </fieldset>
 
-      <fieldset disabled={disabled} className="grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] gap-3">
+      <fieldset disabled={disabled} className="grid grid-cols-[repeat(auto-fill,minmax(11rem,1fr))] items-end gap-3">
         <legend className="pb-1 text-md font-semibold">Thresholds</legend>
         <FormField label="Event evidence from z" error={errors.thresholds?.eventZ?.message}>
           {(p) => <Input {...p} type="number" step="any" mono {...register('thresholds.eventZ', num)} />}

@@ -44,7 +44,7 @@ export function StationPage({ stationId }: { stationId: number }) {
     <div className="flex max-w-6xl flex-col gap-6">
       <header className="flex flex-col gap-1">
         <p className="text-sm">
-          <Link to={paths.stations.href}>Stations</Link> / <span className="font-mono">{key}</span>
+          <Link to={paths.stations.href} className="underline">Stations</Link> / <span className="font-mono">{key}</span>
         </p>
         <h1 className="text-xl font-semibold">
           <span className="font-mono">{key}</span> — {s.name}
@@ -97,7 +97,7 @@ export function StationPage({ stationId }: { stationId: number }) {
 
       {health.data ? (
         <>
-          <Section id="st-trend" title={`Noise level over the last ${health.data.days} days`}>
+          <Section id="st-trend" title={`Noise level over the ${health.data.days} days up to the latest window`}>
             <NoiseTrend health={health.data} />
           </Section>
           <Section id="st-qc" title="QC findings">

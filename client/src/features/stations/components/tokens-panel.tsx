@@ -52,7 +52,7 @@ export function TokensPanel({ stationId, stationKey }: { stationId: number; stat
           void submit();
         }}
       >
-        <FormField label="New token for" hint="What the token is for, e.g. the acquisition computer" error={labelError} className="min-w-64">
+        <FormField label="New token: what is it for?" hint="e.g. the acquisition computer in the vault" error={labelError} className="min-w-64">
           {(p) => <Input {...p} value={label} onChange={(e) => setLabel(e.target.value)} placeholder="acquisition PC in the vault" />}
         </FormField>
         <Button type="submit" variant="primary" disabled={create.isPending}>

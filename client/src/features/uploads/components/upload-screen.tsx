@@ -137,15 +137,19 @@ export function UploadScreen() {
           </h2>
           <ul className="flex flex-col gap-2">
             {entries.map((e) => (
-              <FileRow key={e.key} entry={e} csvProblem={csvProblem(e)} onStreamId={(v) => update(e.key, { streamId: v })} onRemove={() => setEntries((prev) => prev.filter((x) => x.key !== e.key))} />
+              <FileRow key={e.key} entry={e} busy={busy} csvProblem={csvProblem(e)} onStreamId={(v) => update(e.key, { streamId: v })} onRemove={() => setEntries((prev) => prev.filter((x) => x.key !== e.key))} />
             ))}
           </ul>
-          <div className="flex items-center gap-3">
-            <Button variant="primary" disabled={busy || ready.length === 0 || blocked} onClick={() => void send()}>
-              {busy ? 'Uploading…' : `Upload ${ready.length} file${ready.length === 1 ? '' : 's'}`}
-            </Button>
-            {blocked ? <span className="text-sm text-danger">Give every CSV file its stream id first.</span> : null}
-          </div>
+          {busy || ready.length > 0 ? (
+            <div className="flex items-center gap-3">
+              <Button variant="primary" disabled={busy || blocked} onClick={() => void send()}>
+                {busy ? 'Uploading…' : `Upload ${ready.length} file${ready.length === 1 ? '' : 's'}`}
+              </Button>
+              {blocked ? <span className="text-sm text-danger">Give every CSV file its stream id first.</span> : null}
+            </div>
+          ) : (
+            <p className="text-sm text-ink-muted">Every file has been sent. Drop or choose more files to upload again.</p>
+          )}
         </section>
       ) : null}
 
@@ -209,7 +213,7 @@ export function UploadScreen() {
   );
 }
 
-function FileRow({ entry, csvProblem, onStreamId, onRemove }: { entry: Entry; csvProblem: string | null; onStreamId: (v: string) => void; onRemove: () => void }) {
+function FileRow({ entry, busy, csvProblem, onStreamId, onRemove }: { entry: Entry; busy: boolean; csvProblem: string | null; onStreamId: (v: string) => void; onRemove: () => void }) {
   const s = entry.state;
   const streamInputId = useId();
   const pct = s.phase === 'uploading' ? Math.round((100 * s.sentBytes) / Math.max(1, s.totalBytes)) : s.phase === 'ready' ? 0 : 100;
@@ -233,7 +237,7 @@ function FileRow({ entry, csvProblem, onStreamId, onRemove }: { entry: Entry; cs
         <span className="text-sm" aria-live="polite">
           {status}
         </span>
-        {s.phase === 'ready' ? (
+        {s.phase === 'ready' && !busy ? (
           <Button size="sm" variant="quiet" onClick={onRemove} aria-label={`Remove ${entry.file.name}`}>
             Remove
           </Button>
@@ -241,6 +245,7 @@ function FileRow({ entry, csvProblem, onStreamId, onRemove }: { entry: Entry; cs
       </div>
       <progress
         className="h-2 w-full"
+        style={{ accentColor: 'var(--color-accent)' }}
         max={100}
         value={s.phase === 'analysing' ? undefined : pct}
         aria-label={`${entry.file.name}: ${status}`}

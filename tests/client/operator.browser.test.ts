@@ -1,0 +1,148 @@
+import { and, eq } from 'drizzle-orm';
+import type { Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { stations } from '../../server/db/schema/stations';
+import { seedDemo } from '../../server/db/seed-demo';
+import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
+import { encodeMiniSeed3 } from '../../server/formats/mseed3-writer';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
+import { startTestServer, type TestServer } from '../setup/test-server';
+
+/*
+ * The station operator's path in a real browser (Debian chromium, playwright-core) against a real
+ * server over a fresh MariaDB with the Kestrel Valley demo seeded: sign in as the demo operator,
+ * upload two files through the upload page (upload throughput throttled so the per-file progress
+ * is visible), see the results with links to the new items, open the station page and see the
+ * PSD plot against the noise models. Screenshots go to .data/screenshots/.
+ */
+
+const demoPassword = 'kestrel-demo-pass';
+
+/** Demo-like window: deterministic pseudo-random counts with a small burst (demo input, not a check value). */
+function demoCounts(n: number, seed: number, burstAt: number): Int32Array {
+  let state = seed >>> 0;
+  const out = new Int32Array(n);
+  for (let i = 0; i < n; i++) {
+    state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
+    const noise = (state / 2 ** 32 - 0.5) * 200;
+    const t = (i - burstAt) / 100;
+    const burst = t > 0 && t < 8 ? 2500 * Math.exp(-t / 1.5) * Math.sin(2 * Math.PI * 5 * t) : 0;
+    out[i] = Math.round(noise + burst);
+  }
+  return out;
+}
+
+describe('operator: upload two files, see results, open the station page (browser)', () => {
+  let server: TestServer;
+  let browser: LaunchedBrowser;
+  let kv01Id = 0;
+
+  beforeAll(async () => {
+    server = await startTestServer();
+    await seedDemo(server.ctx.database.db, { demoPassword });
+    const [kv01] = await server.ctx.database.db.select({ id: stations.id }).from(stations).where(and(eq(stations.network, 'XX'), eq(stations.code, 'KV01')));
+    kv01Id = kv01?.id ?? 0;
+    browser = await launchBrowser({ width: 1400, height: 1000 });
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await server?.close();
+  });
+
+  const watch = (page: Page) => {
+    const problems: string[] = [];
+    page.on('pageerror', (err) => problems.push(`pageerror: ${err.message}`));
+    page.on('console', (msg) => {
+      if (msg.type() === 'error' && !/status of 40[13]/.test(msg.text())) problems.push(`console: ${msg.text()}`);
+    });
+    return problems;
+  };
+
+  it('signs in, uploads with progress, lists results, shows the PSD plot', async () => {
+    const page = await browser.context.newPage();
+    const problems = watch(page);
+    await page.goto(`${server.url}/`);
+    // The client has no sign-in screen in this build: sign in through the API from the page (same origin).
+    const status = await page.evaluate(async (password) => {
+      const res = await fetch('/api/auth/sign-in', { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ email: 'operator@kestrel.example', password }) });
+      return res.status;
+    }, demoPassword);
+    expect(status).toBe(200);
+
+    const start = Date.UTC(2026, 2, 14, 9, 26, 0) * 1000;
+    const parts = ['HHZ', 'HHN', 'HHE'].map((channel, k) =>
+      encodeMiniSeed2({ network: 'XX', station: 'KV01', location: '00', channel, sampleRateHz: 100, startTimeUs: start, samples: demoCounts(12000, 11 + k, 4000) }, { encoding: 'steim2', recordLength: 512 }),
+    );
+    const file1 = Buffer.concat(parts.map((p) => Buffer.from(p)));
+    const file2 = Buffer.from(
+      encodeMiniSeed3({ network: 'XX', station: 'KV01', location: '00', channel: 'HHZ', sampleRateHz: 100, startTimeUs: start + 3_600_000_000, samples: demoCounts(9000, 99, 100000) }, { encoding: 'steim2' }),
+    );
+
+    await page.goto(`${server.url}/upload`);
+    await page.getByRole('heading', { name: 'Upload waveform windows' }).waitFor();
+    await page.locator('input[type=file]').setInputFiles([
+      { name: 'XX.KV01.20260314T0926.mseed', mimeType: 'application/vnd.fdsn.mseed', buffer: file1 },
+      { name: 'XX.KV01.20260314T1026.ms3', mimeType: 'application/vnd.fdsn.mseed', buffer: file2 },
+    ]);
+    await page.getByText('XX.KV01.20260314T1026.ms3').waitFor();
+    expect(await checkA11y(page)).toEqual([]);
+
+    // Throttle uploads (~40 KB/s) so the progress bar is seen moving.
+    const cdp = await page.context().newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 20, downloadThroughput: -1, uploadThroughput: 40 * 1024 });
+    await page.getByRole('button', { name: 'Upload 2 files' }).click();
+    await page.getByText(/Uploading \d+ %/).first().waitFor({ timeout: 10_000 });
+    await screenshot(page, 'operator-upload-progress');
+    await page.getByRole('heading', { name: 'Results' }).waitFor({ timeout: 30_000 });
+    await page.locator('table tbody tr').nth(1).waitFor({ timeout: 30_000 });
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    const rows = await page.locator('table tbody tr').allInnerTexts();
+    expect(rows).toHaveLength(2);
+    expect(rows[0]).toContain('XX.KV01.20260314T0926.mseed');
+    expect(rows[0]).toContain('Queued');
+    expect(rows[1]).toContain('Queued');
+    const links = await page.locator('table a[href^="/queue/items/"]').count();
+    expect(links).toBe(2);
+    await expect(page.getByRole('note').first().innerText()).resolves.toContain('Triage aid, not an alert');
+    expect(await checkA11y(page)).toEqual([]);
+    await screenshot(page, 'operator-upload-results', true);
+
+    // The same file again: recognised, not duplicated.
+    await page.locator('input[type=file]').setInputFiles([{ name: 'again.mseed', mimeType: 'application/vnd.fdsn.mseed', buffer: file1 }]);
+    await page.getByRole('button', { name: 'Upload 1 file' }).click();
+    await page.getByText('Already uploaded').first().waitFor({ timeout: 15_000 });
+
+    await page.goto(`${server.url}/stations`);
+    await page.getByRole('link', { name: 'XX.KV01' }).click();
+    await page.getByRole('heading', { name: /XX\.KV01/ }).first().waitFor();
+    await page.getByText('XX.KV01.00.HHZ — power spectral density').waitFor({ timeout: 15_000 });
+    await page.locator('canvas').first().waitFor();
+    expect(await page.locator('figure canvas').count()).toBeGreaterThanOrEqual(3);
+    expect(await page.getByText('NLNM (Peterson 1993)').count()).toBeGreaterThanOrEqual(1);
+    expect(page.url()).toBe(`${server.url}/stations/${kv01Id}`);
+    expect(await checkA11y(page)).toEqual([]);
+    await screenshot(page, 'operator-station-page');
+    // The noise trend has two windows now.
+    await page.getByText('Noise level per window, 1–5 Hz').waitFor();
+    // Tokens: create one (shown once, with a copy button), see it listed, revoke it.
+    await page.getByLabel('New token: what is it for?').fill('acquisition PC');
+    await page.getByRole('button', { name: 'Create token' }).click();
+    await page.getByText('it is shown only this once').waitFor();
+    const secret = await page.getByLabel('Token secret').inputValue();
+    expect(secret).toMatch(/^ssi_[A-Za-z0-9_-]{43}$/);
+    await page.getByRole('button', { name: 'Copy' }).waitFor();
+    await page.getByRole('button', { name: 'Revoke token acquisition PC' }).waitFor();
+    expect(await checkA11y(page)).toEqual([]);
+    await page.locator('#st-tokens').scrollIntoViewIfNeeded();
+    await screenshot(page, 'operator-station-token-created');
+    await page.getByRole('button', { name: 'I have stored it' }).click();
+    await page.getByRole('button', { name: 'Revoke token acquisition PC' }).click();
+    await page.getByText(/^revoked /).waitFor();
+    await page.locator('#st-trend').scrollIntoViewIfNeeded();
+    await screenshot(page, 'operator-station-health');
+    await page.locator('#st-tokens').scrollIntoViewIfNeeded();
+    await screenshot(page, 'operator-station-profile-tokens');
+    expect(problems).toEqual([]);
+  }, 120_000);
+});
