@@ -348,22 +348,34 @@ export async function onItemsCreated(deps: CandidateDeps, itemIds: readonly numb
   return [...touched];
 }
 
+/** Per database handle: the highest queue item id this process has looked at for arrivals. */
+const processedUpTo = new WeakMap<Database, number>();
+
 /**
- * Catches up on items that have no arrival row yet and are newer than the newest one that has
- * (at most `limit` per call, in id order), so groups stand even where ingest did not call
- * `onItemsCreated`.
+ * Catches up on items this process has not looked at yet (ids above a high-water mark that starts
+ * at the newest item with an arrival row), at most `limit` per call in id order, so groups stand
+ * even where ingest did not call `onItemsCreated`. Each item's analysis is read once per process.
  * @returns the number of items looked at
  */
-export async function catchUpArrivals(deps: CandidateDeps, limit = 2000): Promise<number> {
-  const [hw] = await deps.db.select({ maxId: max(itemArrivals.itemId) }).from(itemArrivals);
+export async function catchUpArrivals(deps: CandidateDeps, limit = 500): Promise<number> {
+  let mark = processedUpTo.get(deps.db);
+  if (mark === undefined) {
+    const [hw] = await deps.db.select({ maxId: max(itemArrivals.itemId) }).from(itemArrivals);
+    mark = hw?.maxId ?? 0;
+  }
   const rows = await deps.db
     .select({ id: queueItems.id })
     .from(queueItems)
-    .where(gt(queueItems.id, hw?.maxId ?? 0))
+    .where(gt(queueItems.id, mark))
     .orderBy(asc(queueItems.id))
     .limit(limit);
-  if (rows.length === 0) return 0;
+  const last = rows[rows.length - 1];
+  if (!last) {
+    processedUpTo.set(deps.db, mark);
+    return 0;
+  }
   await onItemsCreated(deps, rows.map((r) => r.id));
+  processedUpTo.set(deps.db, Math.max(mark, last.id));
   return rows.length;
 }
 

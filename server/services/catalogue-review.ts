@@ -6,13 +6,11 @@ import type { Database } from '../db/client';
 import { queueItems } from '../db/schema/queue-items';
 import { stations } from '../db/schema/stations';
 import { itemArrivals, itemReviews } from '../db/schema/supervisor';
-import { windows } from '../db/schema/uploads';
 import { users } from '../db/schema/users';
 import { conflict, notFound } from '../errors';
 import { loadQueueRow } from '../presenters/queue-item';
 import { recordChange } from '../realtime/change-log';
 import { recordAudit } from './audit';
-import { firstTriggerMs } from './candidate-events';
 import type { InboxActor, InboxDeps } from './inbox';
 import type { CatalogueEvent, CataloguePick } from './quakeml-export';
 
@@ -65,11 +63,9 @@ function selectReview(db: Database) {
       reviewerName: reviewer.displayName,
       arrivalAt: itemArrivals.arrivalAt,
       candidateEventId: itemArrivals.candidateEventId,
-      analysis: windows.analysis,
     })
     .from(queueItems)
     .innerJoin(stations, eq(stations.id, queueItems.stationId))
-    .innerJoin(windows, eq(windows.id, queueItems.windowId))
     .leftJoin(analyst, eq(analyst.id, queueItems.claimedByUserId))
     .leftJoin(itemReviews, eq(itemReviews.itemId, queueItems.id))
     .leftJoin(reviewer, eq(reviewer.id, itemReviews.reviewedByUserId))
@@ -81,7 +77,9 @@ type ReviewRecord = Awaited<ReturnType<ReturnType<typeof selectReview>['where']>
 function present(r: ReviewRecord): ReviewRow & { parsedLabel: StoredLabel | null } {
   const parsed = storedLabelSchema.safeParse(r.label);
   const label = parsed.success ? parsed.data : null;
-  const trig = r.arrivalAt ? r.arrivalAt.getTime() : firstTriggerMs(r.analysis);
+  // The first trigger comes from item_arrivals (filled by ingest's hook or catchUpArrivals), so the
+  // analysis JSON is never read for a list.
+  const trig = r.arrivalAt ? r.arrivalAt.getTime() : null;
   const t = eventTime(label, trig, r.windowStart);
   const status = (r.status ?? 'preliminary') as EvaluationStatus;
   return {
