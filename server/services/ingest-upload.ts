@@ -3,6 +3,7 @@ import { eq, inArray } from 'drizzle-orm';
 import { can } from '../../shared/auth/policies';
 import { flagSchema } from '../../shared/schemas/flags';
 import { channelResponseSchema } from '../../shared/schemas/station';
+import type { QueueRow } from '../../shared/schemas/queue';
 import type { UploadOutcome } from '../../shared/schemas/upload';
 import type { Database } from '../db/client';
 import { queueItems } from '../db/schema/queue-items';
@@ -16,6 +17,7 @@ import { WaveformParseError, type DecodedStream } from '../formats/types';
 import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
 import type { Logger } from '../logger';
 import { isDatabaseDown } from '../middleware/error-handler';
+import { loadQueueRow } from '../presenters/queue-item';
 import type { AuthUser, IngestPrincipal } from '../middleware/auth';
 import { recordChange, type DbOrTx } from '../realtime/change-log';
 import { stationBaseline } from './station-baseline';
@@ -402,13 +404,20 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
       itemIds: created.map((c) => c.itemId),
     });
     // Last writes of the transaction: the change-log rows (they lock the counter until commit).
+    // The summary is the full queue row (server/presenters/queue-item.ts), so open queues insert
+    // it in place without refetching their lists.
+    const rows = new Map<number, QueueRow>();
+    for (const c of created) {
+      const row = await loadQueueRow(tx, eq(queueItems.id, c.itemId));
+      if (row) rows.set(c.itemId, row);
+    }
     for (const c of created) {
       await recordChange(tx, {
         resource: 'item',
         resourceId: c.itemId,
         kind: 'created',
         version: 1,
-        summary: { stationId: c.w.station.id, state: 'new', flag: c.w.analysis.flag, score: c.w.analysis.score, windowStart: c.windowStart.toISOString() },
+        summary: rows.get(c.itemId) ?? { stationId: c.w.station.id, state: 'new', flag: c.w.analysis.flag, score: c.w.analysis.score, windowStart: c.windowStart.toISOString() },
       });
     }
     if (deps.beforeCommit) await deps.beforeCommit(tx, { filename, uploadId: up.id, itemIds: created.map((c) => c.itemId) });
