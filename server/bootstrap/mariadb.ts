@@ -124,6 +124,8 @@ export async function startPrivateMariaDb(opts: { dataDir: string; port: number;
   }
 
   const errorLog = join(dataDir, 'mariadb.err');
+  // Temporary tables of big sorts go to our own data folder (as #sql-… files), not the shared
+  // /tmp, where another program's clean-up made a sort fail ("Error on delete of '/tmp/#sql-temptable…'").
   const args = [
     '--no-defaults',
     `--datadir=${dataDir}`,
@@ -132,6 +134,7 @@ export async function startPrivateMariaDb(opts: { dataDir: string; port: number;
     `--port=${opts.port}`,
     '--bind-address=127.0.0.1',
     `--log-error=${errorLog}`,
+    `--tmpdir=${dataDir}`,
     '--skip-name-resolve',
     '--character-set-server=utf8mb4',
     '--collation-server=utf8mb4_unicode_ci',
