@@ -119,7 +119,7 @@ async function describeFailure(what: string, res: Response): Promise<ReplayError
   return new ReplayError(`${what}: HTTP ${res.status} ${detail}`);
 }
 
-/** Signs in and creates one ingest token per demo station (`demo replay`). */
+/** Signs in and creates one ingest token (`demo replay`) per demo station the person may manage. */
 async function makeTokens(url: string, credentials: { email: string; password: string }, stationCodes: readonly string[]): Promise<Map<string, string>> {
   const origin = new URL(url).origin;
   const signIn = await fetch(`${url}/api/auth/sign-in`, {
@@ -138,13 +138,15 @@ async function makeTokens(url: string, credentials: { email: string; password: s
   const body = z.object({ stations: z.array(z.object({ id: z.number(), network: z.string(), code: z.string() })) }).parse(await list.json());
   const tokens = new Map<string, string>();
   for (const code of stationCodes) {
+    // Stations this person cannot see or manage (an operator's unassigned ones) are left out.
     const st = body.stations.find((s) => s.network === 'XX' && s.code === code);
-    if (!st) throw new ReplayError(`station XX.${code} is not registered on ${url} (or ${credentials.email} may not see it)`);
+    if (!st) continue;
     const res = await fetch(`${url}/api/stations/${st.id}/tokens`, {
       method: 'POST',
       headers: { 'content-type': 'application/json', origin, cookie },
       body: JSON.stringify({ label: REPLAY_TOKEN_LABEL }),
     });
+    if (res.status === 403) continue;
     if (!res.ok) throw await describeFailure(`creating an ingest token for XX.${code} as ${credentials.email}`, res);
     tokens.set(code, tokenCreatedSchema.parse(await res.json()).secret);
   }
@@ -171,7 +173,13 @@ export async function replayDemo(opts: ReplayOptions): Promise<ReplayReport> {
   const codes = [...new Set(manifest.files.map((f) => f.station))].sort();
   const tokens = opts.tokens ?? (opts.credentials ? await makeTokens(opts.url, opts.credentials, codes) : new Map<string, string>());
   const files = manifest.files.filter((f) => tokens.has(f.station));
-  if (files.length === 0) throw new ReplayError(`no token for any demo station (${codes.join(', ')}): give --token KV03=SECRET or sign-in credentials`);
+  if (files.length === 0) {
+    throw new ReplayError(
+      opts.tokens
+        ? `no token for any demo station (${codes.join(', ')}): give --token KV03=SECRET`
+        : `${opts.credentials?.email ?? 'nobody'} may not make ingest tokens for any demo station (${codes.join(', ')}) on ${opts.url}`,
+    );
+  }
 
   const report: ReplayReport = { sent: 0, created: 0, refused: [], itemIds: [] };
   const t0 = now();

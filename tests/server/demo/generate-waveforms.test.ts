@@ -60,8 +60,9 @@ describe('demo:generate (deterministic)', () => {
       for (const name of readdirSync(join(dir, sub))) fresh.set(`${sub}/${name}`, sha(readFileSync(join(dir, sub, name))));
     }
     fresh.set('manifest.json', sha(readFileSync(join(dir, 'manifest.json'))));
-    expect([...fresh.keys()].sort()).toEqual([...committedFiles().keys()].sort());
-    expect(Object.fromEntries(fresh)).toEqual(Object.fromEntries(committedFiles()));
+    // On a deliberate change to the generator or the MiniSEED writer: npm run demo:generate, and commit demo-waveforms/.
+    expect([...fresh.keys()].sort(), 'file list differs from demo-waveforms/ (run npm run demo:generate)').toEqual([...committedFiles().keys()].sort());
+    expect(Object.fromEntries(fresh), 'file contents differ from demo-waveforms/ (run npm run demo:generate)').toEqual(Object.fromEntries(committedFiles()));
   });
 
   it('keeps to the size and count the demo asks for (40–60 windows, at most 4 MB)', () => {

@@ -6,9 +6,11 @@ import { queueItems } from '../../../server/db/schema/queue-items';
 import { uploads, windows } from '../../../server/db/schema/uploads';
 import { seedDemo } from '../../../server/db/seed-demo';
 import { ingestDemo, readDemoManifest, type DemoIngestReport } from '../../../server/demo/ingest-demo';
+import { stations } from '../../../server/db/schema/stations';
 import { inboxEntries } from '../../../server/db/schema/supervisor';
 import { createAnalysisPool, type AnalysisPool } from '../../../server/jobs/analysis-pool';
 import { escalationListener } from '../../../server/services/escalations';
+import { processingProfileSchema } from '../../../shared/schemas/processing-profile';
 import { createTestContext, type TestContext } from '../../setup/test-app';
 
 let ctx: TestContext;
@@ -62,6 +64,12 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
       const [row] = await db.select({ n: count() }).from(auditLog).where(eq(auditLog.action, action));
       expect(row?.n, action).toBe(action === 'queue.claimed' ? 9 : action === 'queue.labelled' ? 3 : action === 'queue.dismissed' ? 4 : 2);
     }
+  });
+
+  it('the demo seed gives KV04 a 24.5–25.5 Hz band-reject for its pump', async () => {
+    const [kv04] = await ctx.database.db.select({ profile: stations.profile }).from(stations).where(eq(stations.code, 'KV04'));
+    const profile = processingProfileSchema.parse(kv04?.profile);
+    expect(profile.bandReject).toEqual([{ fmin: 24.5, fmax: 25.5, order: 4, label: 'pump, 25 Hz' }]);
   });
 
   it('the escalations reach the supervisor: one inbox entry each for the demo supervisor', async () => {

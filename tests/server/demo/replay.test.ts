@@ -138,6 +138,16 @@ describe('replayDemo against a running server (POST /api/uploads with ingest tok
     expect(names.length).toBeGreaterThanOrEqual(4);
   }, 60_000);
 
+  it('as an operator, makes tokens only for the stations assigned to them (KV01–KV03)', async () => {
+    const report = await replayDemo({ url: running.url, rate: 50, loops: 1, limit: 30, credentials: { email: 'operator@kestrel.example', password: 'kestrel-demo-pass' }, ...fast });
+    expect(report.refused).toEqual([]);
+    const db = ctx.database.db;
+    const rows = await db.select({ code: stations.code }).from(ingestTokens).innerJoin(stations, eq(stations.id, ingestTokens.stationId)).where(eq(ingestTokens.label, REPLAY_TOKEN_LABEL));
+    // 6 from the admin's replay above, 3 from this one.
+    expect(rows.map((r) => r.code).sort()).toEqual(['KV01', 'KV01', 'KV02', 'KV02', 'KV03', 'KV03', 'KV04', 'KV05', 'KV06']);
+    expect(report.created).toBe(30);
+  }, 60_000);
+
   it('stops with an error naming the station when its token is refused', async () => {
     await expect(replayDemo({ url: running.url, rate: 50, loops: 1, limit: 1, tokens: new Map([['KV01', 'ssi_not-a-token']]), ...fast })).rejects.toThrow(ReplayError);
     await expect(replayDemo({ url: running.url, rate: 50, loops: 1, limit: 1, tokens: new Map([['KV01', 'ssi_not-a-token']]), ...fast })).rejects.toThrow(/XX\.KV01 token: HTTP 401/);
