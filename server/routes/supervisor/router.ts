@@ -1,3 +1,4 @@
+import { eq } from 'drizzle-orm';
 import { Router, type Request } from 'express';
 import { z } from 'zod';
 import { eventLabelSchema } from '../../../shared/schemas/label';
@@ -14,11 +15,12 @@ import {
   thresholdValuesSchema,
 } from '../../../shared/schemas/supervisor';
 import type { AppContext } from '../../context';
+import { queueItems } from '../../db/schema/queue-items';
 import { clientAddress, currentUser, requireUser, type AuthUser } from '../../middleware/auth';
 import { parseInput } from '../../middleware/validate';
-import { requirePermission } from '../../policies/authorize';
+import { authorize, authorizedStations, requirePermission } from '../../policies/authorize';
 import { recordAudit } from '../../services/audit';
-import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents } from '../../services/candidate-events';
+import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '../../services/candidate-events';
 import { buildCatalogueCsv } from '../../services/catalogue-csv';
 import { listReview, loadCatalogue, reviewNote, setEvaluationStatus } from '../../services/catalogue-review';
 import { dashboard } from '../../services/dashboard';
@@ -32,6 +34,16 @@ const stationParams = z.object({ stationId: z.string().regex(/^\d{1,15}$/, 'must
 const num = z.preprocess((v) => (typeof v === 'string' && v.trim() !== '' ? Number(v) : v), z.number().finite('must be a number'));
 const proposedQuery = z.object({ eventZ: num.optional(), noiseZ: num.optional(), centroidMaxFactor: num.optional() });
 const candidateQuery = periodSchema;
+
+/**
+ * A candidate event as `scope` may see it: everything for 'all'; for an operator only the members
+ * on their own stations (null when none is).
+ */
+function inScope(ev: CandidateEventView, scope: 'all' | readonly number[]): CandidateEventView | null {
+  if (scope === 'all') return ev;
+  const members = ev.members.filter((m) => scope.includes(m.stationId));
+  return members.length === 0 ? null : { ...ev, members };
+}
 
 /**
  * The network supervisor's API (issue 7), mounted at /api/supervisor. Every route needs a session
@@ -101,6 +113,9 @@ export function supervisorRouter(ctx: AppContext): Router {
   });
   router.get('/items/:id/review-note', requirePermission('queue.view'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
+    const [row] = await db.select({ stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, id));
+    if (!row) throw notFound(`Queue item ${id}`);
+    authorize(currentUser(req), 'queue.view', { stationId: row.stationId });
     res.json({ note: await reviewNote(db, id) });
   });
 
@@ -108,11 +123,14 @@ export function supervisorRouter(ctx: AppContext): Router {
   router.get('/candidate-events', requirePermission('queue.view'), async (req, res) => {
     const q = parseInput(candidateQuery, req.query, 'query');
     await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
-    res.json({ events: await listCandidateEvents(db, { from: new Date(q.from), to: new Date(q.to) }) });
+    const scope = authorizedStations(currentUser(req), 'queue.view');
+    const events = await listCandidateEvents(db, { from: new Date(q.from), to: new Date(q.to) });
+    res.json({ events: events.map((e) => inScope(e, scope)).filter((e) => e !== null) });
   });
   router.get('/candidate-events/:id', requirePermission('queue.view'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
-    const ev = await getCandidateEvent(db, id);
+    const found = await getCandidateEvent(db, id);
+    const ev = found ? inScope(found, authorizedStations(currentUser(req), 'queue.view')) : null;
     if (!ev) throw notFound(`Candidate event ${id}`);
     res.json(ev);
   });

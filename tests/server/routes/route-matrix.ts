@@ -16,15 +16,19 @@
  */
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
-import { eq } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import type { Action } from '../../../shared/auth/policies';
 import type { Role } from '../../../shared/auth/roles';
 import { generateOneTimeToken, hashOneTimeToken } from '../../../server/auth/tokens';
 import { invitations } from '../../../server/db/schema/invitations';
 import { mailMessages } from '../../../server/db/schema/mail-messages';
 import { passwordResetTokens } from '../../../server/db/schema/password-reset-tokens';
+import { queueItems } from '../../../server/db/schema/queue-items';
 import { channels } from '../../../server/db/schema/stations';
+import { inboxEntries } from '../../../server/db/schema/supervisor';
+import { windows } from '../../../server/db/schema/uploads';
 import { users } from '../../../server/db/schema/users';
+import { onItemsCreated } from '../../../server/services/candidate-events';
 import { createItem } from '../../setup/queue-fixtures';
 import { call, demoPassword, type Principal, type World } from './support/world';
 
@@ -104,6 +108,42 @@ const csvWindow = (n: number) => {
   const rows = Array.from({ length: 3000 }, (_, i) => `${(start + i / 100).toFixed(2)},${Math.round(500 * Math.sin((2 * Math.PI * 3 * i) / 100) + ((i * 7919 + n) % 41))}`);
   return Buffer.from(['t_seconds,counts', ...rows].join('\n'));
 };
+
+/** An escalation by the demo analyst; returns the demo supervisor's inbox entry id for it. */
+async function inboxEntry(w: World): Promise<number> {
+  const it = await item(w, 'analyst', { claim: true });
+  await call(w, 'POST', `/api/queue/items/${it.id}/escalate`, w.cookie.analyst).send({ version: it.version, reason: 'matrix escalation' });
+  const [row] = await w.ctx.database.db
+    .select({ id: inboxEntries.id })
+    .from(inboxEntries)
+    .where(and(eq(inboxEntries.itemId, it.id), eq(inboxEntries.userId, w.userId.supervisor)));
+  if (!row) throw new Error(`no inbox entry for item ${it.id}`);
+  return row.id;
+}
+
+/** An item labelled as an earthquake by the demo analyst; returns its id and version. */
+async function labelledItem(w: World, station = 'KV01'): Promise<{ id: number; version: number }> {
+  const it = await item(w, 'analyst', { claim: true, station });
+  const res = await call(w, 'POST', `/api/queue/items/${it.id}/label`, w.cookie.analyst).send({ version: it.version, label: { eventType: 'earthquake' } });
+  return { id: it.id, version: res.body?.version ?? it.version + 1 };
+}
+
+/** A candidate event: three items at `codes` whose first triggers coincide (lag 0 s ≤ the 2 s slack). */
+async function candidateEvent(w: World, codes: readonly string[] = ['KV01', 'KV02', 'KV03']): Promise<number> {
+  const db = w.ctx.database.db;
+  const windowStart = new Date(Date.UTC(2026, 5, 1) + next() * 3600_000);
+  const ids: number[] = [];
+  for (const code of codes) {
+    const id = await createItem(db, { station: code, windowStart });
+    const [row] = await db.select({ windowId: queueItems.windowId }).from(queueItems).where(eq(queueItems.id, id));
+    const channel = { id: `XX.${code}.00.HHZ`, startTime: windowStart.toISOString(), staLta: { triggers: [{ on: 20, off: 30 }] } };
+    await db.update(windows).set({ analysis: { leadChannel: channel.id, channels: [channel] } }).where(eq(windows.id, row?.windowId ?? 0));
+    ids.push(id);
+  }
+  const touched = await onItemsCreated({ db }, ids);
+  if (touched[0] === undefined) throw new Error('the matrix candidate event was not formed');
+  return touched[0];
+}
 
 /** Every API route. Keep it sorted by path. */
 export const routeMatrix: readonly MatrixRow[] = [
@@ -449,6 +489,87 @@ export const routeMatrix: readonly MatrixRow[] = [
       const id = made.body?.token?.id ?? made.body?.id ?? 1;
       return { path: `/api/stations/${kv(w, 'KV04')}/tokens/${id}/revoke` };
     },
+  },
+
+  // ---- supervisor (issue 7): inbox, review, candidate events, thresholds, dashboard, export
+  {
+    method: 'GET',
+    path: '/api/supervisor/candidate-events',
+    allow: ['operator', 'analyst', 'supervisor'],
+    action: 'queue.view',
+    build: async () => ({ path: '/api/supervisor/candidate-events?from=2026-06-01T00:00:00Z&to=2026-07-01T00:00:00Z' }),
+  },
+  {
+    method: 'GET',
+    path: '/api/supervisor/candidate-events/:id',
+    allow: ['operator', 'analyst', 'supervisor'],
+    action: 'queue.view',
+    build: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w)}` }),
+    foreignStation: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w, ['KV04', 'KV05', 'KV06'])}` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/supervisor/candidate-events/:id/label',
+    allow: ['analyst', 'supervisor'],
+    action: 'queue.label',
+    build: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w)}/label`, body: { label: { eventType: 'earthquake' } } }),
+  },
+  { method: 'GET', path: '/api/supervisor/dashboard', allow: ['supervisor'], action: 'dashboard.view', build: async () => ({ path: '/api/supervisor/dashboard?from=2026-03-01T00:00:00Z&to=2026-03-15T00:00:00Z' }) },
+  { method: 'GET', path: '/api/supervisor/export', allow: ['supervisor'], action: 'catalogue.export', build: async () => ({ path: '/api/supervisor/export?from=2026-03-01T00:00:00Z&to=2026-03-15T00:00:00Z&format=csv' }) },
+  { method: 'GET', path: '/api/supervisor/inbox', allow: ['supervisor'], action: 'inbox.view', build: async () => ({ path: '/api/supervisor/inbox' }) },
+  { method: 'POST', path: '/api/supervisor/inbox/:id/acknowledge', allow: ['supervisor'], action: 'inbox.view', build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/acknowledge` }) },
+  { method: 'POST', path: '/api/supervisor/inbox/:id/confirm', allow: ['supervisor'], action: 'review.evaluate', build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/confirm` }) },
+  { method: 'POST', path: '/api/supervisor/inbox/:id/read', allow: ['supervisor'], action: 'inbox.view', build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/read` }) },
+  {
+    method: 'POST',
+    path: '/api/supervisor/inbox/:id/return',
+    allow: ['supervisor'],
+    action: 'review.evaluate',
+    build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/return`, body: { comment: 'matrix: look again' } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/supervisor/items/:id/review-note',
+    allow: ['operator', 'analyst', 'supervisor'],
+    action: 'queue.view',
+    build: async (w) => ({ path: `/api/supervisor/items/${(await labelledItem(w)).id}/review-note` }),
+    foreignStation: async (w) => ({ path: `/api/supervisor/items/${(await labelledItem(w, 'KV04')).id}/review-note` }),
+  },
+  { method: 'GET', path: '/api/supervisor/review', allow: ['supervisor'], action: 'review.evaluate', build: async () => ({ path: '/api/supervisor/review' }) },
+  {
+    method: 'POST',
+    path: '/api/supervisor/review/items/:id/return',
+    allow: ['supervisor'],
+    action: 'review.evaluate',
+    build: async (w) => {
+      const it = await labelledItem(w);
+      return { path: `/api/supervisor/review/items/${it.id}/return`, body: { version: it.version, comment: 'matrix: look again' } };
+    },
+  },
+  {
+    method: 'POST',
+    path: '/api/supervisor/review/items/:id/status',
+    allow: ['supervisor'],
+    action: 'review.evaluate',
+    build: async (w) => {
+      const it = await labelledItem(w);
+      return { path: `/api/supervisor/review/items/${it.id}/status`, body: { version: it.version, status: 'confirmed' } };
+    },
+  },
+  { method: 'GET', path: '/api/supervisor/thresholds/:stationId', allow: ['supervisor'], action: 'thresholds.edit', build: async (w) => ({ path: `/api/supervisor/thresholds/${kv(w, 'KV01')}` }) },
+  {
+    method: 'POST',
+    path: '/api/supervisor/thresholds/:stationId/apply',
+    allow: ['supervisor'],
+    action: 'thresholds.edit',
+    build: async (w) => ({ path: `/api/supervisor/thresholds/${kv(w, 'KV05')}/apply`, body: { thresholds: { eventZ: 3, noiseZ: 2, centroidMaxFactor: 1.5 } } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/supervisor/thresholds/:stationId/rescore',
+    allow: ['supervisor'],
+    action: 'thresholds.edit',
+    build: async (w) => ({ path: `/api/supervisor/thresholds/${kv(w, 'KV05')}/rescore`, body: { from: '2026-03-01T00:00:00Z', to: '2026-03-02T00:00:00Z' } }),
   },
 
   // ---- uploads (issue 5): operators for their own stations (or an ingest token)
