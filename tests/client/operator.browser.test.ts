@@ -1,3 +1,4 @@
+import { fileURLToPath } from 'node:url';
 import { and, eq } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -145,4 +146,38 @@ describe('operator: upload two files, see results, open the station page (browse
     await screenshot(page, 'operator-station-profile-tokens');
     expect(problems).toEqual([]);
   }, 120_000);
+
+  it('imports StationXML with a preview of the changes, then applies it', async () => {
+    const page = await browser.context.newPage();
+    const problems = watch(page);
+    await page.goto(`${server.url}/stations`);
+    await page.getByRole('button', { name: 'Import StationXML' }).click();
+    await page.getByLabel('FDSN StationXML file (1.0–1.2)').setInputFiles(fileURLToPath(new URL('../fixtures/stationxml/xx-kestrel-valley.xml', import.meta.url)));
+    await page.getByRole('table', { name: 'What the import would change' }).waitFor();
+    const rows = await page.getByRole('table', { name: 'What the import would change' }).locator('tbody tr').allInnerTexts();
+    // KV01 is seeded with other coordinates and a 1.5e9 sensitivity; KV04 is not seeded with the fixture's EHZ.
+    expect(rows.find((r) => r.startsWith('XX.KV01\t'))).toMatch(/changed/);
+    expect(rows.find((r) => r.includes('XX.KV01.00.HHZ'))).toMatch(/sensitivity: 1500000000 → 1201600000/);
+    expect(rows.find((r) => r.includes('XX.KV01.00.HHN'))).toMatch(/skipped/);
+    expect(await checkA11y(page)).toEqual([]);
+    await screenshot(page, 'operator-stationxml-preview');
+    // KV04 is seeded but not assigned to this operator: the preview says so and nothing can be applied.
+    expect(rows.find((r) => r.startsWith('XX.KV04\t'))).toContain('you may not change this station');
+    expect(await page.getByRole('button', { name: /^Apply \d+ station change/ }).isDisabled()).toBe(true);
+    // An admin may apply it.
+    const status = await page.evaluate(async (password) => {
+      const res = await fetch('/api/auth/sign-in', { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ email: 'admin@kestrel.example', password }) });
+      return res.status;
+    }, demoPassword);
+    expect(status).toBe(200);
+    await page.reload();
+    await page.getByRole('button', { name: 'Import StationXML' }).click();
+    await page.getByLabel('FDSN StationXML file (1.0–1.2)').setInputFiles(fileURLToPath(new URL('../fixtures/stationxml/xx-kestrel-valley.xml', import.meta.url)));
+    await page.getByRole('button', { name: 'Apply 2 station changes' }).click();
+    await page.getByText('Applied.').waitFor();
+    const [kv01] = await server.ctx.database.db.select().from(stations).where(and(eq(stations.network, 'XX'), eq(stations.code, 'KV01')));
+    // The fixture's value (tests/fixtures/stationxml/xx-kestrel-valley.xml).
+    expect(kv01?.latitude).toBe(46.5123);
+    expect(problems).toEqual([]);
+  }, 60_000);
 });

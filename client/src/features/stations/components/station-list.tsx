@@ -1,9 +1,13 @@
+import { useState } from 'react';
 import { Link } from 'react-router';
+import { Button } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { Loading } from '../../../components/ui/skeleton';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
 import { paths } from '../../../config/paths';
 import { useStations } from '../api/stations';
+import { StationCreateForm } from './station-create-form';
+import { StationXmlImport } from './stationxml-import';
 
 /** Coordinates in degrees with 4 decimals and a hemisphere letter. */
 export function formatCoordinates(lat: number, lon: number): string {
@@ -13,12 +17,25 @@ export function formatCoordinates(lat: number, lon: number): string {
 /** The station list: every station the user may see, linking to each station's page. */
 export function StationList() {
   const { data, error, isPending } = useStations();
+  const [panel, setPanel] = useState<'none' | 'create' | 'import'>('none');
   return (
     <div className="flex max-w-5xl flex-col gap-4">
-      <header>
-        <h1 className="text-xl font-semibold">Stations</h1>
-        <p className="text-base text-ink-muted">Registry, processing profiles, ingest tokens and health of the stations you look after.</p>
+      <header className="flex flex-wrap items-end justify-between gap-3">
+        <div>
+          <h1 className="text-xl font-semibold">Stations</h1>
+          <p className="text-base text-ink-muted">Registry, processing profiles, ingest tokens and health of the stations you look after.</p>
+        </div>
+        <div className="flex gap-2">
+          <Button onClick={() => setPanel(panel === 'create' ? 'none' : 'create')} aria-expanded={panel === 'create'}>
+            Register a station
+          </Button>
+          <Button onClick={() => setPanel(panel === 'import' ? 'none' : 'import')} aria-expanded={panel === 'import'}>
+            Import StationXML
+          </Button>
+        </div>
       </header>
+      {panel === 'create' ? <StationCreateForm onCancel={() => setPanel('none')} /> : null}
+      {panel === 'import' ? <StationXmlImport onDone={() => undefined} /> : null}
       {isPending ? <Loading label="Loading stations…" /> : null}
       {error ? <p role="alert" className="text-danger">{error.message}</p> : null}
       {data && data.stations.length === 0 ? (
