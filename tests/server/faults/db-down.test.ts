@@ -20,6 +20,9 @@ import { makeWindowFile } from '../../faults/support/windows';
  */
 
 const START_US = 1_780_000_000_000_000;
+/** Outages and their length: 1 × 3 s under npm test; `npm run test:faults` sets FAULT_ROUNDS and FAULT_OUTAGE_S. */
+const ROUNDS = Number(process.env.FAULT_ROUNDS ?? 1);
+const OUTAGE_MS = Number(process.env.FAULT_OUTAGE_S ?? 3) * 1000;
 
 interface Outcome {
   at: number;
@@ -111,14 +114,16 @@ describe('MariaDB stopped and started under load', () => {
     };
     try {
       expect(await waitFor(() => outcomes.filter((o) => o.kind === 'upload' && o.status === 201).length >= 3, 30_000)).toBe(true);
-      await db.stop();
-      phase = 'down';
-      await new Promise((r) => setTimeout(r, 3000));
-      await db.start();
-      phase = 'after';
-      const firstAfter = Date.now();
-      expect(await waitFor(() => outcomes.some((o) => o.phase === 'after' && o.kind === 'upload' && o.status === 201 && o.at > firstAfter), 30_000)).toBe(true);
-      await new Promise((r) => setTimeout(r, 1000));
+      for (let round = 1; round <= ROUNDS; round++) {
+        await db.stop();
+        phase = 'down';
+        await new Promise((r) => setTimeout(r, OUTAGE_MS));
+        await db.start();
+        phase = 'after';
+        const firstAfter = Date.now();
+        expect(await waitFor(() => outcomes.some((o) => o.phase === 'after' && o.kind === 'upload' && o.status === 201 && o.at > firstAfter), 30_000)).toBe(true);
+        await new Promise((r) => setTimeout(r, 1000));
+      }
     } finally {
       stop = true;
       await Promise.all(workers);
@@ -155,5 +160,5 @@ describe('MariaDB stopped and started under load', () => {
     const log = logLines.join('');
     expect(log).toContain('database unavailable');
     expect(log.includes('seisift-fault-pass')).toBe(false);
-  }, 120_000);
+  }, 600_000);
 });

@@ -22,6 +22,8 @@ import { makeWindowFile } from '../../faults/support/windows';
  */
 
 const START_US = 1_782_000_000_000_000;
+/** Kill/restart rounds: 1 under npm test, more under `npm run test:faults` (FAULT_ROUNDS). */
+const ROUNDS = Number(process.env.FAULT_ROUNDS ?? 1);
 const uploadResponse = z.object({ files: z.array(z.object({ status: z.string(), uploadId: z.number().int().optional(), itemIds: z.array(z.number().int()).optional() })) });
 const countRow = z.array(z.object({ n: z.coerce.number() }));
 
@@ -50,14 +52,11 @@ describe('SIGKILL during an upload burst', () => {
     const stationId = await seedStation(client.db, 'KV03');
     const token = await seedIngestToken(client.db, stationId);
     const port = await freePort();
-    server = await startChildServer({ databaseUrl: db.url, port });
-    const url = server.url;
-
     const acknowledged = new Map<number, { sha256: string; bytes: Uint8Array; itemIds: number[] }>();
     const inFlight = new Map<number, Uint8Array>();
     let next = 0;
-    let killed = false;
     const statusCounts: Record<string, number> = {};
+    let url = '';
 
     const send = async (i: number, bytes: Uint8Array) => {
       const form = new FormData();
@@ -65,36 +64,46 @@ describe('SIGKILL during an upload burst', () => {
       const res = await fetch(`${url}/api/uploads`, { method: 'POST', headers: { Authorization: `Bearer ${token}` }, body: form });
       return { status: res.status, body: uploadResponse.parse(await res.json()) };
     };
-    const uploader = async () => {
-      while (!killed) {
-        const i = next++;
-        const bytes = makeWindowFile('KV03', START_US + i * 120_000_000, { seed: i });
-        inFlight.set(i, bytes);
-        try {
-          const r = await send(i, bytes);
-          statusCounts[r.status] = (statusCounts[r.status] ?? 0) + 1;
-          const f = r.body.files[0];
-          if (r.status === 201 && f?.uploadId !== undefined) {
-            acknowledged.set(f.uploadId, { sha256: createHash('sha256').update(bytes).digest('hex'), bytes, itemIds: f.itemIds ?? [] });
-            inFlight.delete(i);
+
+    for (let round = 1; round <= ROUNDS; round++) {
+      server = await startChildServer({ databaseUrl: db.url, port });
+      url = server.url;
+      let killed = false;
+      let lost = 0;
+      const uploader = async () => {
+        while (!killed) {
+          const i = next++;
+          const bytes = makeWindowFile('KV03', START_US + i * 120_000_000, { seed: i });
+          inFlight.set(i, bytes);
+          try {
+            const r = await send(i, bytes);
+            statusCounts[r.status] = (statusCounts[r.status] ?? 0) + 1;
+            const f = r.body.files[0];
+            if (r.status === 201 && f?.uploadId !== undefined) {
+              acknowledged.set(f.uploadId, { sha256: createHash('sha256').update(bytes).digest('hex'), bytes, itemIds: f.itemIds ?? [] });
+              inFlight.delete(i);
+            }
+          } catch {
+            // The connection died with the server: this upload's fate is unknown to the client.
+            lost++;
           }
-        } catch {
-          // The connection died with the server: this upload's fate is unknown to the client.
-          statusCounts.connectionLost = (statusCounts.connectionLost ?? 0) + 1;
         }
-      }
-    };
-    const workers = [uploader(), uploader(), uploader(), uploader()];
-    const deadline = Date.now() + 60_000;
-    while (acknowledged.size < 12 && Date.now() < deadline) await new Promise((r) => setTimeout(r, 20));
-    expect(acknowledged.size).toBeGreaterThanOrEqual(12);
-    killed = true; // no new requests; those in flight meet the kill
-    await server.kill('SIGKILL');
-    await Promise.all(workers);
-    console.log(`kill-during-burst: ${acknowledged.size} answered 201 before SIGKILL; outcomes ${JSON.stringify(statusCounts)}; ${inFlight.size} in flight`);
-    expect(statusCounts.connectionLost ?? 0).toBeGreaterThan(0); // the kill really hit requests in flight
+      };
+      const target = acknowledged.size + 12;
+      const workers = [uploader(), uploader(), uploader(), uploader()];
+      const deadline = Date.now() + 60_000;
+      while (acknowledged.size < target && Date.now() < deadline) await new Promise((r) => setTimeout(r, 20));
+      expect(acknowledged.size).toBeGreaterThanOrEqual(target);
+      killed = true; // no new requests; those in flight meet the kill
+      await server.kill('SIGKILL');
+      await Promise.all(workers);
+      statusCounts.connectionLost = (statusCounts.connectionLost ?? 0) + lost;
+      console.log(`kill-during-burst round ${round}/${ROUNDS}: ${acknowledged.size} answered 201 so far; outcomes ${JSON.stringify(statusCounts)}; ${lost} in flight at the kill`);
+      expect(lost).toBeGreaterThan(0); // the kill really hit requests in flight
+    }
 
     server = await startChildServer({ databaseUrl: db.url, port });
+    url = server.url;
 
     // Every acknowledged upload: present, same bytes, complete.
     for (const [uploadId, sent] of acknowledged) {

@@ -1,0 +1,297 @@
+/**
+ * `npm run bench:ingest`: sustained upload throughput and live-update latency.
+ *
+ * - A throw-away private MariaDB (.data/bench-ingest-XXXX, removed at the end) with the Kestrel
+ *   Valley stations XX.KV01–KV06 (HHZ/HHN/HHE at 100 Hz), one ingest token per station and
+ *   20 analysts with real sessions.
+ * - The server as a child process (tests/faults/serve.ts, the same app as `npm start`), so its
+ *   peak RSS is read from /proc/PID/status (VmHWM) and a CPU profile can be taken
+ *   (BENCH_CPU_PROF=1 → .data/bench-prof/*.cpuprofile, the hottest functions are printed).
+ * - 20 websocket clients follow /ws with those sessions.
+ * - BENCH_INGEST_CONCURRENCY (default 8) clients upload 120 s 3-component Steim-2 windows
+ *   (MiniSEED 2, 4096-byte records, written once per station by encodeMiniSeed2 and then moved
+ *   in time by rewriting each record's start time, so every file is distinct: no duplicates)
+ *   with their station's token, back to back, for BENCH_INGEST_SECONDS (default 60) after a 5 s
+ *   warm-up that is not counted.
+ *
+ * Prints: windows per second over the measured span; latency p50/p95/p99 from sending an upload
+ * to its 201, and from sending it to its change reaching every one of the 20 clients; changes
+ * that never reached a client; the server's peak RSS. Targets (issue 9, 2-core machine):
+ * ≥ 100 windows/s, p95 upload→websocket ≤ 250 ms, RSS < 500 MB. Exits 1 when one is missed.
+ * Every process it started is stopped on every exit path.
+ */
+import { createHash, randomBytes } from 'node:crypto';
+import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { WebSocket } from 'ws';
+import { z } from 'zod';
+import { serverMessageSchema } from '../../shared/realtime';
+import { defaultProcessingProfile } from '../../shared/schemas/processing-profile';
+import { startChildServer, type ChildServer } from '../../tests/faults/support/child-server';
+import { createSessionStore, sessionCookieName } from '../auth/sessions';
+import { freePort } from '../bootstrap/common';
+import { provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from '../bootstrap/mariadb';
+import { createDatabaseClient } from '../db/client';
+import { migrateDatabase } from '../db/migrate';
+import { channels, ingestTokens, stations } from '../db/schema/stations';
+import { userRoles, users } from '../db/schema/users';
+import { encodeMiniSeed2 } from '../formats/mseed2-writer';
+
+const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
+const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);
+const WARMUP_S = 5;
+const WS_CLIENTS = 20;
+const CPU_PROF = process.env.BENCH_CPU_PROF === '1';
+const TARGETS = { windowsPerS: 100, wsP95Ms: 250, rssMb: 500 };
+const CODES = ['KV01', 'KV02', 'KV03', 'KV04', 'KV05', 'KV06'];
+const BASE_START_US = 1_784_000_000_000_000;
+const RECORD = 4096;
+
+const log = (line: string) => console.log(line);
+
+/** Deterministic noise (32-bit LCG, Numerical Recipes constants; common practice) plus a 0.2 Hz swell. */
+function channelSamples(seed: number, n: number): Int32Array {
+  let s = seed >>> 0;
+  const out = new Int32Array(n);
+  for (let i = 0; i < n; i++) {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    out[i] = Math.round(400 * (s / 2 ** 32 - 0.5) + 150 * Math.sin((2 * Math.PI * 0.2 * i) / 100));
+  }
+  return out;
+}
+
+/** One station's 120 s HHZ/HHN/HHE window as MiniSEED 2 Steim-2, starting at BASE_START_US. */
+function baseWindow(code: string, seed: number): Uint8Array {
+  const parts = ['HHZ', 'HHN', 'HHE'].map((channel, k) =>
+    encodeMiniSeed2({ network: 'XX', station: code, location: '00', channel, sampleRateHz: 100, startTimeUs: BASE_START_US, samples: channelSamples(seed * 7 + k, 12_000) }, { encoding: 'steim2', recordLength: RECORD }),
+  );
+  const out = new Uint8Array(parts.reduce((s, p) => s + p.length, 0));
+  let o = 0;
+  for (const p of parts) {
+    out.set(p, o);
+    o += p.length;
+  }
+  return out;
+}
+
+/**
+ * A copy of a big-endian MiniSEED 2 file with every record's start time (BTIME at bytes 20–29 of
+ * the fixed header: year, day of year, hour, minute, second, unused, 0.0001 s; FDSN SEED manual 2.4
+ * ch. 8) moved by `deltaS` whole seconds. Samples, blockettes and sub-second parts are untouched.
+ */
+function shiftStart(file: Uint8Array, deltaS: number): Uint8Array {
+  const out = Uint8Array.from(file);
+  const v = new DataView(out.buffer);
+  for (let at = 0; at + 48 <= out.length; at += RECORD) {
+    const year = v.getUint16(at + 20);
+    const day = v.getUint16(at + 22);
+    const ms = Date.UTC(year, 0, 1) + (day - 1) * 86_400_000 + v.getUint8(at + 24) * 3_600_000 + v.getUint8(at + 25) * 60_000 + v.getUint8(at + 26) * 1000 + deltaS * 1000;
+    const d = new Date(ms);
+    const y = d.getUTCFullYear();
+    v.setUint16(at + 20, y);
+    v.setUint16(at + 22, Math.floor((ms - Date.UTC(y, 0, 1)) / 86_400_000) + 1);
+    v.setUint8(at + 24, d.getUTCHours());
+    v.setUint8(at + 25, d.getUTCMinutes());
+    v.setUint8(at + 26, d.getUTCSeconds());
+  }
+  return out;
+}
+
+function percentile(sorted: number[], p: number): number {
+  if (sorted.length === 0) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))] ?? NaN;
+}
+
+/** Top self-time functions of a V8 .cpuprofile (nodes with hitCount; samples are equally spaced). */
+function summariseProfile(path: string, top = 20): string[] {
+  const profile = z
+    .object({
+      nodes: z.array(z.object({ id: z.number(), hitCount: z.number().optional(), callFrame: z.object({ functionName: z.string(), url: z.string(), lineNumber: z.number() }) })),
+      startTime: z.number(),
+      endTime: z.number(),
+    })
+    .parse(JSON.parse(readFileSync(path, 'utf8')));
+  const total = profile.nodes.reduce((s, n) => s + (n.hitCount ?? 0), 0);
+  const byFn = new Map<string, number>();
+  for (const n of profile.nodes) {
+    const url = n.callFrame.url.replace(/^file:\/\/.*?\/(server|node_modules)\//, '$1/');
+    const key = `${n.callFrame.functionName || '(anonymous)'} ${url ? `${url}:${n.callFrame.lineNumber + 1}` : ''}`.trim();
+    byFn.set(key, (byFn.get(key) ?? 0) + (n.hitCount ?? 0));
+  }
+  const spanS = (profile.endTime - profile.startTime) / 1e6;
+  return [...byFn.entries()]
+    .sort((a, b) => b[1] - a[1])
+    .slice(0, top)
+    .map(([k, hits]) => `${((100 * hits) / total).toFixed(1).padStart(5)} %  ${((hits / total) * spanS).toFixed(1).padStart(6)} s  ${k}`);
+}
+
+async function main(): Promise<number> {
+  const cleanups: Array<() => Promise<void>> = [];
+  const cleanup = async () => {
+    while (cleanups.length > 0) await cleanups.pop()?.().catch(() => {});
+  };
+  process.once('SIGINT', () => void cleanup().then(() => process.exit(130)));
+  process.once('SIGTERM', () => void cleanup().then(() => process.exit(143)));
+  try {
+    log(`bench:ingest — ${CONCURRENCY} concurrent uploaders, ${WS_CLIENTS} websocket clients, ${SECONDS} s measured after ${WARMUP_S} s warm-up`);
+    mkdirSync(resolve('.data'), { recursive: true });
+    const dataDir = mkdtempSync(join(resolve('.data'), 'bench-ingest-'));
+    cleanups.push(async () => rmSync(dataDir, { recursive: true, force: true }));
+    const maria: PrivateMariaDb = await startPrivateMariaDb({ dataDir, port: await freePort(), log: () => {} });
+    cleanups.push(() => maria.stop());
+    const url = await provisionDatabase(maria, { database: 'seisift_bench', user: 'seisift_bench', password: 'seisift-bench-pass' });
+    const client = createDatabaseClient(url, { connectionLimit: 4 });
+    cleanups.push(() => client.close());
+    await migrateDatabase(client.db);
+
+    // Stations, tokens, analysts with sessions.
+    const now = new Date();
+    const tokens = new Map<string, string>();
+    for (const code of CODES) {
+      const [res] = await client.db.insert(stations).values({ network: 'XX', code, name: `Kestrel Valley ${code}`, latitude: 46.5, longitude: 8.1, elevationM: 900, profile: defaultProcessingProfile, createdAt: now, updatedAt: now });
+      for (const cha of ['HHZ', 'HHN', 'HHE']) await client.db.insert(channels).values({ stationId: res.insertId, location: '00', code: cha, sampleRateHz: 100, createdAt: now, updatedAt: now });
+      const token = `kvi_${randomBytes(24).toString('base64url')}`;
+      await client.db.insert(ingestTokens).values({ stationId: res.insertId, label: 'bench', tokenHash: createHash('sha256').update(token).digest('hex'), createdAt: now });
+      tokens.set(code, token);
+    }
+    const sessionStore = createSessionStore(client.db, { idleHours: 24 });
+    const cookies: string[] = [];
+    for (let i = 0; i < WS_CLIENTS; i++) {
+      const id = `bench-analyst-${i}`;
+      await client.db.insert(users).values({ id, email: `${id}@kestrel.example`, displayName: `Bench analyst ${i}`, passwordHash: null, active: true, createdAt: now, updatedAt: now });
+      await client.db.insert(userRoles).values({ userId: id, role: 'analyst' });
+      const s = await sessionStore.create(id, { ipAddress: '127.0.0.1', userAgent: 'bench:ingest' });
+      cookies.push(`${sessionCookieName}=${s.id}`);
+    }
+
+    const profDir = resolve('.data/bench-prof');
+    if (CPU_PROF) {
+      rmSync(profDir, { recursive: true, force: true });
+      mkdirSync(profDir, { recursive: true });
+    }
+    const server: ChildServer = await startChildServer({
+      databaseUrl: url,
+      port: await freePort(),
+      env: { LOG_LEVEL: 'warn' },
+      nodeArgs: CPU_PROF ? ['--cpu-prof', `--cpu-prof-dir=${profDir}`] : [],
+    });
+    cleanups.push(() => server.kill('SIGKILL'));
+    log(`server pid ${server.pid} on ${server.url}`);
+
+    // Websocket clients: arrival time of every created item, per client.
+    const arrivals: Array<Map<number, number>> = [];
+    const sockets: WebSocket[] = [];
+    await Promise.all(
+      cookies.map(
+        (cookie, i) =>
+          new Promise<void>((ok, fail) => {
+            const seen = new Map<number, number>();
+            arrivals[i] = seen;
+            const ws = new WebSocket(`${server.url.replace(/^http/, 'ws')}/ws`, { headers: { Cookie: cookie, Origin: server.url } });
+            sockets.push(ws);
+            ws.on('message', (data: Buffer) => {
+              const t = performance.now();
+              const msg = serverMessageSchema.parse(JSON.parse(data.toString('utf8')));
+              if (msg.type === 'hello') ok();
+              if (msg.type === 'changes') for (const c of msg.changes) if (c.resource === 'item' && c.kind === 'created') seen.set(c.id, t);
+            });
+            ws.on('error', fail);
+            ws.on('close', (code) => fail(new Error(`websocket ${i} closed (${code})`)));
+          }),
+      ),
+    );
+    cleanups.push(async () => {
+      for (const ws of sockets) ws.terminate();
+    });
+    log(`${WS_CLIENTS} websocket clients connected`);
+
+    // Upload files: one encoded window per station, moved in time for each upload.
+    const bases = new Map(CODES.map((code, k) => [code, baseWindow(code, k + 1)]));
+    const uploadSchema = z.object({ files: z.array(z.object({ status: z.string(), itemIds: z.array(z.number()).optional() })) });
+    interface Sample {
+      sentAt: number;
+      answeredAt: number;
+      status: number;
+      itemIds: number[];
+    }
+    const samples: Sample[] = [];
+    let counter = 0;
+    const t0 = performance.now();
+    const warmEnd = t0 + WARMUP_S * 1000;
+    const end = warmEnd + SECONDS * 1000;
+    const uploader = async (w: number) => {
+      while (performance.now() < end) {
+        const n = counter++;
+        const code = CODES[(w + n) % CODES.length] ?? 'KV01';
+        const file = shiftStart(bases.get(code) ?? new Uint8Array(), (n + 1) * 120);
+        const form = new FormData();
+        form.append('files', new Blob([Buffer.from(file)]), `${code}-${n}.mseed`);
+        const sentAt = performance.now();
+        const res = await fetch(`${server.url}/api/uploads`, { method: 'POST', headers: { Authorization: `Bearer ${tokens.get(code) ?? ''}` }, body: form });
+        const body = uploadSchema.parse(await res.json());
+        const answeredAt = performance.now();
+        samples.push({ sentAt, answeredAt, status: res.status, itemIds: body.files.flatMap((f) => f.itemIds ?? []) });
+        if (res.status !== 201) log(`  upload ${n}: HTTP ${res.status} ${JSON.stringify(body).slice(0, 200)}`);
+      }
+    };
+    await Promise.all(Array.from({ length: CONCURRENCY }, (_, w) => uploader(w)));
+    // Let the last changes reach the clients.
+    const measured = samples.filter((s) => s.sentAt >= warmEnd && s.answeredAt <= end && s.status === 201);
+    const wanted = measured.flatMap((s) => s.itemIds);
+    const deadline = performance.now() + 10_000;
+    while (performance.now() < deadline && !arrivals.every((m) => wanted.every((id) => m.has(id)))) await new Promise((r) => setTimeout(r, 50));
+
+    const toAnswer = measured.map((s) => s.answeredAt - s.sentAt).sort((a, b) => a - b);
+    const toAll: number[] = [];
+    let missing = 0;
+    for (const s of measured) {
+      for (const id of s.itemIds) {
+        let last = -Infinity;
+        for (const m of arrivals) {
+          const t = m.get(id);
+          if (t === undefined) missing++;
+          else last = Math.max(last, t);
+        }
+        if (last > -Infinity) toAll.push(last - s.sentAt);
+      }
+    }
+    toAll.sort((a, b) => a - b);
+    const rssMb = server.peakRssMb();
+    const windowsPerS = measured.length / SECONDS;
+    const failedUploads = samples.filter((s) => s.status !== 201).length;
+
+    if (CPU_PROF) await server.kill('SIGTERM');
+    else await server.kill('SIGKILL');
+
+    const f = (x: number) => x.toFixed(1);
+    log('');
+    log(`uploads answered 201 in the measured ${SECONDS} s: ${measured.length}  (not 201 overall: ${failedUploads})`);
+    log(`windows per second:            ${f(windowsPerS)}   target ≥ ${TARGETS.windowsPerS}  ${windowsPerS >= TARGETS.windowsPerS ? 'ok' : 'MISSED'}`);
+    log(`upload → 201 (ms):             p50 ${f(percentile(toAnswer, 50))}  p95 ${f(percentile(toAnswer, 95))}  p99 ${f(percentile(toAnswer, 99))}`);
+    const wsP95 = percentile(toAll, 95);
+    log(`upload → all ${WS_CLIENTS} clients (ms):  p50 ${f(percentile(toAll, 50))}  p95 ${f(wsP95)}  p99 ${f(percentile(toAll, 99))}   target p95 ≤ ${TARGETS.wsP95Ms}  ${wsP95 <= TARGETS.wsP95Ms ? 'ok' : 'MISSED'}`);
+    log(`changes that never reached a client: ${missing}`);
+    log(`server peak RSS (VmHWM):       ${f(rssMb)} MB   target < ${TARGETS.rssMb}  ${rssMb < TARGETS.rssMb ? 'ok' : 'MISSED'}`);
+    if (CPU_PROF) {
+      await new Promise((r) => setTimeout(r, 500));
+      const files = readdirSync(profDir).filter((n) => n.endsWith('.cpuprofile'));
+      for (const file of files) {
+        log('');
+        log(`CPU profile ${join(profDir, file)} — hottest functions by self time:`);
+        for (const line of summariseProfile(join(profDir, file))) log(`  ${line}`);
+      }
+    }
+    const ok = windowsPerS >= TARGETS.windowsPerS && wsP95 <= TARGETS.wsP95Ms && rssMb < TARGETS.rssMb && missing === 0;
+    log('');
+    log(ok ? 'bench:ingest: every target met' : 'bench:ingest: a target was MISSED (see above)');
+    return ok ? 0 : 1;
+  } finally {
+    await cleanup();
+  }
+}
+
+const code = await main().catch((err: unknown) => {
+  console.error(`bench:ingest: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`);
+  return 1;
+});
+process.exit(code);
