@@ -121,12 +121,26 @@ export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[])
     if (c.resource !== 'item') continue;
     const row = queueRowSchema.safeParse(c.summary);
     if (row.success) patchRow(qc, row.data, c.kind);
-    else needLists = true;
+    else {
+      needLists = true;
+      if (c.kind === 'created') liveArrivals.add(c.id);
+    }
     const open = qc.getQueryData<{ version: number }>(['queue', 'item', c.id]);
     if (open && open.version < c.version) void qc.invalidateQueries({ queryKey: ['queue', 'item', c.id] });
   }
-  if (needLists) void qc.invalidateQueries({ queryKey: ['queue', 'list'] });
+  if (needLists) scheduleListRefetch(qc);
   scheduleCountRefresh(qc);
+}
+
+let listTimer: ReturnType<typeof setTimeout> | null = null;
+
+/** Refetches the lists once per burst of changes that could not be patched (500 ms). */
+function scheduleListRefetch(qc: QueryClient): void {
+  if (listTimer) return;
+  listTimer = setTimeout(() => {
+    listTimer = null;
+    void qc.invalidateQueries({ queryKey: ['queue', 'list'] });
+  }, 500);
 }
 
 /** The server could not replay what was missed: every queue query is refetched. */

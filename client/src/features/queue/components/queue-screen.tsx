@@ -75,7 +75,7 @@ export function QueueScreen() {
         header: () => <span className="sr-only">Arrived just now</span>,
         cell: (c) =>
           liveArrivals.has(c.row.original.id) ? (
-            <span className="rounded-xs border border-accent px-1 text-xs font-semibold text-accent-ink" title="Arrived while this page was open">
+            <span data-arrival="new" className="rounded-xs border border-accent px-1 text-xs font-semibold text-accent-ink" title="Arrived while this page was open">
               new
             </span>
           ) : null,

@@ -148,7 +148,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         x={x}
         y={{ label: 'raw', unit: c.units }}
         series={[{ label: 'trace (demeaned, detrended)', values: c.raw, styleIndex: 0 }]}
-        height={90}
+        height={130}
         configure={withTriggers}
       />
       <PlotFrame
@@ -157,7 +157,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         x={x}
         y={{ label: 'low', unit: c.units }}
         series={[{ label: `low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz`, values: c.low, styleIndex: 1 }]}
-        height={70}
+        height={100}
         configure={plain}
       />
       <PlotFrame
@@ -166,7 +166,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         x={x}
         y={{ label: 'high', unit: c.units }}
         series={[{ label: `high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz`, values: c.high, styleIndex: 2 }]}
-        height={70}
+        height={100}
         configure={plain}
       />
       <PlotFrame
@@ -179,7 +179,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
           { label: `on level ${c.staLtaLevels.on}`, values: on, styleIndex: 4 },
           { label: `off level ${c.staLtaLevels.off}`, values: off, styleIndex: 5 },
         ]}
-        height={80}
+        height={110}
         configure={withTriggers}
       />
     </section>

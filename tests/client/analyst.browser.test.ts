@@ -1,0 +1,134 @@
+import { readFileSync } from 'node:fs';
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
+import { queueItemDetailSchema } from '../../shared/schemas/queue';
+import { uploadResponseSchema } from '../../shared/schemas/upload';
+import { createStation, upsertChannel, type Actor } from '../../server/services/station-registry';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
+import { createItem, createPerson, type TestPerson } from '../setup/queue-fixtures';
+import { startTestServer, type TestServer } from '../setup/test-server';
+
+/**
+ * Two duty analysts in two browsers against the real server: an operator's upload reaches both
+ * queues over the live channel, one claims it and the other sees the claim, and the first labels
+ * it with the keyboard alone. Needs the built client (`node node_modules/.bin/vite build`).
+ */
+describe('analysts in two browsers (real server, real sessions, chromium)', () => {
+  let server: TestServer;
+  let ana: TestPerson;
+  let ben: TestPerson;
+  let operator: TestPerson;
+  let browsers: LaunchedBrowser[] = [];
+  const system: Actor = { userId: null, label: 'test setup', ipAddress: null };
+
+  const openAs = async (who: TestPerson, path: string): Promise<Page> => {
+    const b = await launchBrowser({ width: 1440, height: 900, colorScheme: 'dark' });
+    browsers.push(b);
+    await b.context.addCookies([{ name: 'seisift_session', value: who.sessionId, url: server.url }]);
+    const page = b.context.pages()[0] ?? (await b.context.newPage());
+    await page.goto(`${server.url}${path}`);
+    return page;
+  };
+
+  beforeAll(async () => {
+    server = await startTestServer();
+    const db = server.ctx.database.db;
+    const base = { latitude: 46.3, longitude: 11.05, elevationM: 900 };
+    const kv01 = await createStation(db, { network: 'XX', code: 'KV01', name: 'Kestrel Valley north ridge', ...base }, system);
+    for (const cha of ['HHZ', 'HHN', 'HHE']) {
+      await upsertChannel(db, kv01, { location: '00', code: cha, sampleRateHz: 100, sensitivity: 1.5e9, sensitivityFrequencyHz: 1, sensitivityInputUnits: 'm/s' }, system);
+    }
+    await createStation(db, { network: 'XX', code: 'KV02', name: 'Kestrel Valley quarry rim', ...base }, system);
+    ana = await createPerson(db, { roles: ['analyst'], displayName: 'Ana Kestrel' });
+    ben = await createPerson(db, { roles: ['analyst'], displayName: 'Ben Valley' });
+    operator = await createPerson(db, { roles: ['operator'], stationIds: [kv01] });
+    // A few waiting items so the queue is not empty (synthetic test windows, not check values).
+    for (let i = 0; i < 6; i++) await createItem(db, { station: i % 2 ? 'KV02' : 'KV01', withSamples: i < 2, burstAtS: 50, score: -1 - i, flag: 'likely noise', createdAt: new Date(Date.now() - (i + 1) * 600_000) });
+  });
+  afterAll(async () => {
+    for (const b of browsers) await b.close();
+    browsers = [];
+    await server?.close();
+  });
+
+  it('an upload appears in both queues within 2 s; a claim shows for the other; the first labels with keys only', async () => {
+    const started = Date.now();
+    const step = (what: string) => console.log(`${((Date.now() - started) / 1000).toFixed(1)} s: ${what}`);
+    const pageA = await openAs(ana, '/queue');
+    const pageB = await openAs(ben, '/queue');
+    for (const p of [pageA, pageB]) {
+      await p.waitForSelector('tr[data-item-id]');
+      await p.waitForSelector('[data-connection="live"]');
+    }
+
+    step('both queues live');
+    const file = readFileSync(new URL('../../demo-waveforms/mseed/XX.KV01.2026-03-14T10-11-53.mseed', import.meta.url));
+    const res = await request(server.url)
+      .post('/api/uploads')
+      .set('Origin', server.url)
+      .set('Cookie', operator.cookie)
+      .attach('files', file, 'XX.KV01.2026-03-14T10-11-53.mseed');
+    expect(res.status).toBe(201);
+    const id = uploadResponseSchema.parse(res.body).files[0]?.itemIds?.[0];
+    expect(id).toBeDefined();
+    const t0 = Date.now();
+    await Promise.all([pageA, pageB].map((p) => p.waitForSelector(`tr[data-item-id="${id}"]`, { timeout: 2000 })));
+    const arrivalMs = Date.now() - t0;
+    console.log(`upload → row in both queues: ${arrivalMs} ms`);
+    expect(arrivalMs).toBeLessThan(2000);
+    // Marked as a new arrival in both.
+    for (const p of [pageA, pageB]) await p.waitForSelector(`tr[data-item-id="${id}"] [data-arrival="new"]`, { timeout: 1000 });
+    await screenshot(pageB, 'analyst-queue-new-arrival');
+
+    // Ana moves to it with J and claims it with C (which opens the review screen).
+    for (let i = 0; i < 20; i++) {
+      const current = await pageA.evaluate(() => document.querySelector('tr[aria-current="true"]')?.getAttribute('data-item-id') ?? null);
+      if (current === String(id)) break;
+      await pageA.keyboard.press('j');
+    }
+    expect(await pageA.locator('tr[aria-current="true"]').getAttribute('data-item-id')).toBe(String(id));
+    await pageA.keyboard.press('c');
+    await pageA.waitForURL(`**/queue/items/${id}**`, { timeout: 5000 }).catch(async (e: unknown) => {
+      await screenshot(pageA, 'analyst-debug-claim');
+      throw e;
+    });
+    await pageA.waitForSelector(`[data-item-id="${id}"] [data-testid="claim-holder"]:has-text("you")`, { timeout: 5000 }).catch(async (e: unknown) => {
+      await screenshot(pageA, 'analyst-debug-review');
+      console.log(await pageA.locator('main').innerText().catch(() => ''));
+      throw e;
+    });
+
+    step('claimed and review open');
+    // Ben sees it claimed by Ana, live.
+    await pageB.waitForSelector(`tr[data-item-id="${id}"][data-state="in review"]:has-text("Ana Kestrel")`, { timeout: 2000 });
+    await screenshot(pageB, 'analyst-queue-claimed-by-other');
+
+    // The review screen with its plots.
+    await pageA.waitForSelector('[data-testid="trace-panel"] canvas');
+    await pageA.waitForTimeout(300);
+    await screenshot(pageA, 'analyst-review', true);
+    const a11y = await checkA11y(pageA);
+    expect(a11y, JSON.stringify(a11y, null, 1)).toEqual([]);
+
+    step('review checked');
+    // Keyboard alone: P places a P pick (at the first trigger), 1 labels as earthquake.
+    await pageA.keyboard.press('p');
+    await pageA.keyboard.press('1');
+    const db = server.ctx.database.db;
+    let detail = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body);
+    for (let i = 0; i < 50 && detail.state !== 'labelled'; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+      detail = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body);
+    }
+    expect(detail.state).toBe('labelled');
+    expect(detail.updatedBy?.id).toBe(ana.id);
+    expect(detail.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
+    if (detail.label?.kind === 'event') expect(detail.label.picks.map((p) => p.phase)).toEqual(['P']);
+    void db;
+    await pageB.waitForSelector(`tr[data-item-id="${id}"][data-state="labelled"]`, { timeout: 2000 });
+    const queueA11y = await checkA11y(pageB);
+    expect(queueA11y, JSON.stringify(queueA11y, null, 1)).toEqual([]);
+    await screenshot(pageB, 'analyst-queue-after-label');
+  }, 90_000);
+});
