@@ -18,7 +18,7 @@ const router = createAppRouter();
 
 createRoot(container).render(
   <StrictMode>
-    <AppProvider session={{ user: null }}>
+    <AppProvider>
       <RouterProvider router={router} />
     </AppProvider>
   </StrictMode>,

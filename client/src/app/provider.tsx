@@ -1,6 +1,7 @@
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import { useState, type ReactNode } from 'react';
 import { ToastProvider } from '../components/ui/toast';
+import { AuthSessionProvider } from '../features/auth/components/session-boundary';
 import { SessionProvider, type SessionValue } from '../lib/session-context';
 import { ThemeProvider } from '../lib/theme-provider';
 
@@ -16,8 +17,11 @@ export function createQueryClient(): QueryClient {
 /** Props of <AppProvider>. */
 export type AppProviderProps = {
   children: ReactNode;
-  /** The signed-in user. Until sign-in exists this is { user: null }; the sign-in feature feeds it. */
-  session: SessionValue;
+  /**
+   * A fixed session (previews and tests). Left out, the session comes from GET /api/auth/me
+   * through the sign-in feature.
+   */
+  session?: SessionValue;
 };
 
 /** Every app-wide provider, outermost first: theme, data, session, toasts. */
@@ -26,9 +30,15 @@ export function AppProvider({ children, session }: AppProviderProps) {
   return (
     <ThemeProvider>
       <QueryClientProvider client={queryClient}>
-        <SessionProvider value={session}>
-          <ToastProvider>{children}</ToastProvider>
-        </SessionProvider>
+        {session ? (
+          <SessionProvider value={session}>
+            <ToastProvider>{children}</ToastProvider>
+          </SessionProvider>
+        ) : (
+          <AuthSessionProvider>
+            <ToastProvider>{children}</ToastProvider>
+          </AuthSessionProvider>
+        )}
       </QueryClientProvider>
     </ThemeProvider>
   );

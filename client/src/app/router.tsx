@@ -1,6 +1,7 @@
 import { createBrowserRouter, matchRoutes, Outlet, type RouteObject } from 'react-router';
 import { AppShell } from '../components/layouts/app-shell';
 import { Loading } from '../components/ui/skeleton';
+import { authPagePaths } from '../../../shared/auth/links';
 import { paths } from '../config/paths';
 import { LiveUpdatesProvider, useLiveConnection } from './live-updates';
 import { HomeRoute } from './routes/home';
@@ -40,6 +41,23 @@ function LiveShell() {
  * screen: a file in routes/, a `paths` entry, a route here; the nav picks it up by itself.
  */
 export const routes: RouteObject[] = [
+  // Pages used before signing in: their own frame, no navigation, no live connection.
+  ...(
+    [
+      [authPagePaths.signIn, 'SignInPage'],
+      [authPagePaths.forgotPassword, 'ForgotPasswordPage'],
+      [authPagePaths.resetPassword, 'ResetPasswordPage'],
+      [authPagePaths.welcome, 'WelcomePage'],
+    ] as const
+  ).map(([path, name]): RouteObject => ({
+    path,
+    errorElement: <RouteError />,
+    hydrateFallbackElement: <Loading label="Loading Seisift…" className="m-6" />,
+    lazy: async () => {
+      const pages = await import('../features/auth/components/auth-pages');
+      return { Component: pages[name] };
+    },
+  })),
   {
     path: paths.home.path,
     element: <RootLayout />,
@@ -116,6 +134,34 @@ export const routes: RouteObject[] = [
         lazy: async () => {
           const { DashboardRoute } = await import('./routes/supervisor');
           return { Component: DashboardRoute };
+        },
+      },
+      {
+        path: paths.account.path.slice(1),
+        lazy: async () => {
+          const { AccountRoute } = await import('./routes/account');
+          return { Component: AccountRoute };
+        },
+      },
+      {
+        path: paths.adminUsers.path.slice(1),
+        lazy: async () => {
+          const { AdminUsersRoute } = await import('./routes/admin-users');
+          return { Component: AdminUsersRoute };
+        },
+      },
+      {
+        path: paths.mailbox.path.slice(1),
+        lazy: async () => {
+          const { MailboxRoute } = await import('./routes/mailbox');
+          return { Component: MailboxRoute };
+        },
+      },
+      {
+        path: paths.audit.path.slice(1),
+        lazy: async () => {
+          const { AuditRoute } = await import('./routes/audit');
+          return { Component: AuditRoute };
         },
       },
       { path: '*', element: <NotFoundRoute /> },

@@ -1,7 +1,9 @@
 import { Link } from 'react-router';
+import { authPagePaths } from '../../../../shared/auth/links';
 import { roleLabels } from '../../../../shared/auth/roles';
 import { navFor } from '../../config/paths';
 import { useSession } from '../../lib/session-context';
+import { buttonClass } from '../../components/ui/button';
 import { EmptyState } from '../../components/ui/empty-state';
 
 /** Props of <HomeRoute>: which paths the router serves, to tell built sections from coming ones. */
@@ -27,8 +29,15 @@ export function HomeRoute({ isRouted }: HomeRouteProps) {
           Signed in as <strong className="font-semibold">{user.displayName}</strong> ({user.roles.map((r) => roleLabels[r]).join(', ')}).
         </p>
       ) : (
-        <EmptyState title="Not signed in">
-          Sign-in is not part of this build yet, so no sections are open to you.
+        <EmptyState
+          title="Not signed in"
+          action={
+            <Link to={authPagePaths.signIn} className={buttonClass('primary')}>
+              Sign in
+            </Link>
+          }
+        >
+          Sign in to see the sections your roles give you.
           {import.meta.env.DEV ? ' In development the design reference is listed below.' : ''}
         </EmptyState>
       )}

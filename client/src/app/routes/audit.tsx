@@ -1,0 +1,7 @@
+import { RequirePermission } from '../../features/auth/components/require-permission';
+import { AuditScreen } from '../../features/audit/components/audit-screen';
+
+/** /audit: the audit log (supervisors and admins). */
+export function AuditRoute() {
+  return <RequirePermission action="audit.view">{() => <AuditScreen />}</RequirePermission>;
+}

@@ -1,0 +1,34 @@
+import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { z } from 'zod';
+import { sessionRowSchema } from '../../../../../shared/auth/schemas';
+import { apiRequest, noContent } from '../../../lib/api-client';
+
+/** Query key of your own sessions. */
+export const sessionsKey = ['account', 'sessions'] as const;
+
+/** GET /api/account/sessions */
+export const sessionsQueryOptions = () =>
+  queryOptions({ queryKey: sessionsKey, queryFn: () => apiRequest(z.object({ sessions: z.array(sessionRowSchema) }), '/api/account/sessions').then((r) => r.sessions) });
+
+/** Your sessions, newest first. */
+export function useSessions() {
+  return useQuery(sessionsQueryOptions());
+}
+
+/** DELETE /api/account/sessions/:id (one) or /api/account/sessions (all but this one). */
+export function useEndSessions() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (which: { id: string } | 'others') => apiRequest(noContent, which === 'others' ? '/api/account/sessions' : `/api/account/sessions/${which.id}`, { method: 'DELETE' }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: sessionsKey }),
+  });
+}
+
+/** PUT /api/account/password; your other sessions end. */
+export function useChangePassword() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: { currentPassword: string; newPassword: string }) => apiRequest(noContent, '/api/account/password', { method: 'PUT', body: input }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: sessionsKey }),
+  });
+}

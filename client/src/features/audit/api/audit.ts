@@ -1,0 +1,32 @@
+import { keepPreviousData, useQuery } from '@tanstack/react-query';
+import { z } from 'zod';
+import { auditRowSchema } from '../../../../../shared/auth/schemas';
+import { apiRequest } from '../../../lib/api-client';
+
+/** Filters of the audit page; empty strings mean "any". */
+export type AuditFilters = { action: string; actor: string; targetType: string; from: string; to: string };
+
+/** Rows per audit page. */
+export const auditPageSize = 50;
+
+const pageSchema = z.object({ rows: z.array(auditRowSchema), total: z.number(), limit: z.number(), offset: z.number() });
+
+/** GET /api/audit with filters and an offset; the previous page stays shown while the next loads. */
+export function useAuditPage(filters: AuditFilters, offset: number) {
+  return useQuery({
+    queryKey: ['audit', filters, offset],
+    placeholderData: keepPreviousData,
+    queryFn: () =>
+      apiRequest(pageSchema, '/api/audit', {
+        query: {
+          limit: auditPageSize,
+          offset,
+          action: filters.action || undefined,
+          actor: filters.actor || undefined,
+          targetType: filters.targetType || undefined,
+          from: filters.from ? new Date(`${filters.from}T00:00:00Z`).toISOString() : undefined,
+          to: filters.to ? new Date(`${filters.to}T23:59:59.999Z`).toISOString() : undefined,
+        },
+      }),
+  });
+}
