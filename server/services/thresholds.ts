@@ -225,10 +225,72 @@ export function tunedThresholds(profile: ProcessingProfile): ThresholdValues {
   return { eventZ: profile.thresholds.eventZ, noiseZ: profile.thresholds.noiseZ, centroidMaxFactor: profile.thresholds.centroidMaxFactor };
 }
 
+/**
+ * The score's inputs out of `windows.analysis`, extracted by the database (JSON_EXTRACT) so a
+ * history of thousands of windows never ships their spectra (~50 KB each) to the app: the lead
+ * channel id, the stored z values and, per channel, the few features the score reads. Parse the
+ * row with `scoreInputFromExtract`.
+ */
+const scoreExtract = {
+  leadChannel: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.leadChannel')`,
+  zLog10Ratio: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.zLog10Ratio')`,
+  zStaLtaPeak: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.zStaLtaPeak')`,
+  ids: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].id')`,
+  log10Ratio: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].log10Ratio')`,
+  ratio: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].ratio')`,
+  staLta: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].staLta')`,
+  dominantFrequency: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].dominantFrequency')`,
+  spectralCentroid: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].spectralCentroid')`,
+  bands: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].bands')`,
+  qc: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].qc')`,
+};
+
+type ScoreExtractRow = { [K in keyof typeof scoreExtract]: unknown };
+
+/**
+ * The driver hands JSON results back parsed (MariaDB marks them JSON) or as JSON text, depending on
+ * the server; a string that is not JSON text is a string value already parsed.
+ */
+const parseJson = (v: unknown): unknown => {
+  if (typeof v !== 'string') return v ?? null;
+  try {
+    return JSON.parse(v);
+  } catch {
+    return v;
+  }
+};
+
+/**
+ * Rebuilds the stored-analysis shape `evidenceFromAnalysis` reads from a `scoreExtract` row. A
+ * wildcard path that matched one channel may come back unwrapped; the channel ids tell which.
+ */
+export function scoreInputFromExtract(row: ScoreExtractRow): unknown {
+  const idsRaw = parseJson(row.ids);
+  const single = !Array.isArray(idsRaw);
+  const col = (v: unknown): unknown[] | null => {
+    const parsed = parseJson(v);
+    if (single) return [parsed];
+    return Array.isArray(parsed) ? parsed : null;
+  };
+  const ids = single ? [idsRaw] : idsRaw;
+  const fields = { log10Ratio: col(row.log10Ratio), ratio: col(row.ratio), staLta: col(row.staLta), dominantFrequency: col(row.dominantFrequency), spectralCentroid: col(row.spectralCentroid), bands: col(row.bands), qc: col(row.qc) };
+  const channels = ids.map((id, i) => ({
+    id,
+    log10Ratio: fields.log10Ratio?.[i],
+    ratio: fields.ratio?.[i],
+    staLta: fields.staLta?.[i],
+    dominantFrequency: fields.dominantFrequency?.[i],
+    spectralCentroid: fields.spectralCentroid?.[i],
+    bands: fields.bands?.[i],
+    qc: fields.qc?.[i],
+  }));
+  return { leadChannel: parseJson(row.leadChannel), zLog10Ratio: parseJson(row.zLog10Ratio), zStaLtaPeak: parseJson(row.zStaLtaPeak), channels };
+}
+
 /** Loads a station's labelled history as evidence (at most the latest 20 000 items). */
 export async function loadEvidence(db: DbOrTx, stationId: number): Promise<{ evidence: LabelledEvidence[]; unreadable: number }> {
   const rows = await db
-    .select({ id: queueItems.id, state: queueItems.state, label: queueItems.label, flag: queueItems.flag, analysis: windows.analysis, status: itemReviews.evaluationStatus })
+    .select({ id: queueItems.id, state: queueItems.state, label: queueItems.label, flag: queueItems.flag, status: itemReviews.evaluationStatus, ...scoreExtract })
     .from(queueItems)
     .innerJoin(windows, eq(windows.id, queueItems.windowId))
     .leftJoin(itemReviews, eq(itemReviews.itemId, queueItems.id))
@@ -240,7 +302,7 @@ export async function loadEvidence(db: DbOrTx, stationId: number): Promise<{ evi
   for (const r of rows) {
     const truth = truthOf(r.state, r.label, r.status);
     if (truth === null) continue;
-    const e = evidenceFromAnalysis(r.analysis);
+    const e = evidenceFromAnalysis(scoreInputFromExtract(r));
     if (!e) {
       unreadable++;
       continue;
@@ -311,7 +373,7 @@ export async function rescorePeriod(deps: ThresholdDeps, actor: ThresholdActor, 
   if ((n?.n ?? 0) > MAX_RESCORE_ITEMS) throw tooLarge(`The period holds ${n?.n} items; re-score at most ${MAX_RESCORE_ITEMS} at a time (choose a shorter period)`);
   const { baseline } = await stationBaseline(deps.db, stationId, profile.thresholds.minBaselineWindows);
   const items = await deps.db
-    .select({ id: queueItems.id, flag: queueItems.flag, version: queueItems.version, windowId: queueItems.windowId, analysis: windows.analysis })
+    .select({ id: queueItems.id, flag: queueItems.flag, version: queueItems.version, windowId: queueItems.windowId, ...scoreExtract })
     .from(queueItems)
     .innerJoin(windows, eq(windows.id, queueItems.windowId))
     .where(where)
@@ -323,15 +385,19 @@ export async function rescorePeriod(deps: ThresholdDeps, actor: ThresholdActor, 
   await deps.db.transaction(async (tx) => {
     const changes: Array<{ id: number; version: number }> = [];
     for (const it of items) {
-      const e = evidenceFromAnalysis(it.analysis);
+      const e = evidenceFromAnalysis(scoreInputFromExtract(it));
       if (!e) {
         skipped++;
         continue;
       }
       const s = scoreWindow(e.channels, baseline, profile);
-      const analysis: unknown = it.analysis;
-      const stored = typeof analysis === 'object' && analysis !== null ? { ...analysis } : {};
-      await tx.update(windows).set({ analysis: { ...stored, ...s } }).where(eq(windows.id, it.windowId));
+      // Only the score's own fields of the stored analysis change (the spectra stay in place).
+      await tx
+        .update(windows)
+        .set({
+          analysis: sql`JSON_SET(${windows.analysis}, '$.score', JSON_EXTRACT(${JSON.stringify(s.score)}, '$'), '$.flag', ${s.flag}, '$.reasons', JSON_EXTRACT(${JSON.stringify(s.reasons)}, '$'), '$.baseline', ${s.baseline}, '$.zLog10Ratio', JSON_EXTRACT(${JSON.stringify(s.zLog10Ratio)}, '$'), '$.zStaLtaPeak', JSON_EXTRACT(${JSON.stringify(s.zStaLtaPeak)}, '$'), '$.leadChannel', ${s.leadChannel})`,
+        })
+        .where(eq(windows.id, it.windowId));
       await tx
         .update(queueItems)
         .set({ score: s.score, flag: s.flag, reasons: s.reasons, version: sql`${queueItems.version} + 1`, updatedAt: now })

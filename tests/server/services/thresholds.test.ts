@@ -8,6 +8,7 @@ import {
   flagUnder,
   precisionRecallCurve,
   rates,
+  scoreInputFromExtract,
   truthOf,
   type LabelledEvidence,
   type Truth,
@@ -142,5 +143,26 @@ describe('evidenceFromAnalysis', () => {
     expect(e?.lead.id).toBe('XX.KV01.00.HHZ');
     expect(e?.zLog10Ratio).toBe(4.2);
     expect(evidenceFromAnalysis({ channels: [] })).toBeNull();
+  });
+});
+
+describe('scoreInputFromExtract', () => {
+  const full = { leadChannel: 'XX.KV01.00.HHZ', zLog10Ratio: 4.2, zStaLtaPeak: 5.1, channels: [lead(), lead({ id: 'XX.KV01.00.HHN', log10Ratio: null, ratio: null })] };
+  const col = <K extends keyof ChannelFeatures>(k: K) => full.channels.map((c) => c[k]);
+  it('rebuilds the analysis from parsed driver values and from JSON text alike', () => {
+    const parsed = { leadChannel: full.leadChannel, zLog10Ratio: 4.2, zStaLtaPeak: 5.1, ids: col('id'), log10Ratio: col('log10Ratio'), ratio: col('ratio'), staLta: col('staLta'), dominantFrequency: col('dominantFrequency'), spectralCentroid: col('spectralCentroid'), bands: col('bands'), qc: col('qc') };
+    const text: Record<keyof typeof parsed, unknown> = { ...parsed };
+    for (const k of Object.keys(parsed) as Array<keyof typeof parsed>) text[k] = JSON.stringify(parsed[k]);
+    for (const row of [parsed, text]) {
+      const e = evidenceFromAnalysis(scoreInputFromExtract(row));
+      expect(e?.lead).toEqual(full.channels[0]);
+      expect(e?.channels[1]?.log10Ratio).toBeNull();
+      expect(e?.zStaLtaPeak).toBe(5.1);
+    }
+  });
+  it('wraps the values of a single channel that came back unwrapped', () => {
+    const c = lead();
+    const row = { leadChannel: c.id, zLog10Ratio: 1, zStaLtaPeak: 2, ids: c.id, log10Ratio: c.log10Ratio, ratio: c.ratio, staLta: c.staLta, dominantFrequency: c.dominantFrequency, spectralCentroid: c.spectralCentroid, bands: c.bands, qc: c.qc };
+    expect(evidenceFromAnalysis(scoreInputFromExtract(row))?.lead).toEqual(c);
   });
 });

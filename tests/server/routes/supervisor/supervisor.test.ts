@@ -261,6 +261,18 @@ describe('supervisor API (real MariaDB, fake SMTP, supertest)', () => {
       expect((await item(ev)).version).toBe(versionBefore + 1);
       const [rescored] = await ctx.database.db.select().from(auditLog).where(eq(auditLog.action, 'thresholds.rescored'));
       expect(rescored?.details).toMatchObject({ rescored: 2 });
+      // The stored analysis keeps its spectra and gets the new score fields as JSON values.
+      const [win] = await ctx.database.db.select({ analysis: windows.analysis }).from(windows).innerJoin(queueItems, eq(queueItems.windowId, windows.id)).where(eq(queueItems.id, ev));
+      const a = win?.analysis as { reasons: unknown; score: unknown; flag: unknown; channels: Array<{ psd: { values: unknown[] } }> };
+      expect(Array.isArray(a.reasons)).toBe(true);
+      expect(typeof a.score).toBe('number');
+      expect(a.score).toBe((await item(ev)).score);
+      expect(a.flag).toBe((await item(ev)).flag);
+      expect(a.channels[0]?.psd.values.length).toBeGreaterThan(100);
+      // Replaying from the extract gives the same flags as the full analysis (both items readable).
+      const again = await get(sue, `/api/supervisor/thresholds/${kv05}`).expect(200);
+      expect(again.body.unreadable).toBe(0);
+      expect(again.body.labelled).toEqual({ events: 1, noise: 1 });
     });
   });
 
