@@ -151,8 +151,8 @@ export function eventAtStation(ev: DemoEvent, st: { latitude: number; longitude:
 
 /** A station records an event window when the event's peak velocity there reaches this, m/s (an STA/LTA trigger in the valley's noise; invented). */
 export const RECORD_THRESHOLD_MS = 3.84e-6;
-/** An event window starts this long before the origin time, s (the STA/LTA needs 30 s of noise first). */
-export const EVENT_LEAD_S = 40;
+/** An event window starts this long before the origin time, s (the STA/LTA needs 30 s of noise first; a short lead leaves traffic little time to trigger before the P). */
+export const EVENT_LEAD_S = 33;
 
 /** A glitch of KV06's older digitiser, applied to the vertical's counts. */
 export type DemoGlitch = 'spikes' | 'flat' | 'step' | 'gap';
