@@ -1,6 +1,7 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { apiErrorBodySchema } from '../../../../../shared/api-error';
+import { roleSchema } from '../../../../../shared/auth/roles';
 import { flagSchema } from '../../../../../shared/schemas/flags';
 import { itemStateSchema } from '../../../../../shared/schemas/item-states';
 import { processingProfileSchema, type ProcessingProfile } from '../../../../../shared/schemas/processing-profile';
@@ -143,3 +144,9 @@ export function useRevokeToken(id: number) {
     onSuccess: () => qc.invalidateQueries({ queryKey: ['stations', id, 'tokens'] }),
   });
 }
+
+/** The signed-in user's roles and stations (GET /api/auth/me), for hiding controls with the shared policy. */
+export const meSchema = z.object({ user: z.object({ roles: z.array(roleSchema), stationIds: z.array(z.number()) }) });
+
+/** Hook: who is signed in (roles and assigned stations); only used to hide controls, the server decides. */
+export const useMe = () => useQuery({ queryKey: ['stations', 'me'], queryFn: () => stationFetch(meSchema, '/api/auth/me'), staleTime: 60_000, retry: false });

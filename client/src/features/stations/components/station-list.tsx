@@ -5,7 +5,8 @@ import { EmptyState } from '../../../components/ui/empty-state';
 import { Loading } from '../../../components/ui/skeleton';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
 import { paths } from '../../../config/paths';
-import { useStations } from '../api/stations';
+import { can } from '../../../../../shared/auth/policies';
+import { useMe, useStations } from '../api/stations';
 import { StationCreateForm } from './station-create-form';
 import { StationXmlImport } from './stationxml-import';
 
@@ -18,6 +19,8 @@ export function formatCoordinates(lat: number, lon: number): string {
 export function StationList() {
   const { data, error, isPending } = useStations();
   const [panel, setPanel] = useState<'none' | 'create' | 'import'>('none');
+  const me = useMe();
+  const mayCreate = me.data ? can(me.data.user, 'station.create') : false;
   return (
     <div className="flex max-w-5xl flex-col gap-4">
       <header className="flex flex-wrap items-end justify-between gap-3">
@@ -26,9 +29,11 @@ export function StationList() {
           <p className="text-base text-ink-muted">Registry, processing profiles, ingest tokens and health of the stations you look after.</p>
         </div>
         <div className="flex gap-2">
-          <Button onClick={() => setPanel(panel === 'create' ? 'none' : 'create')} aria-expanded={panel === 'create'}>
-            Register a station
-          </Button>
+          {mayCreate ? (
+            <Button onClick={() => setPanel(panel === 'create' ? 'none' : 'create')} aria-expanded={panel === 'create'}>
+              Register a station
+            </Button>
+          ) : null}
           <Button onClick={() => setPanel(panel === 'import' ? 'none' : 'import')} aria-expanded={panel === 'import'}>
             Import StationXML
           </Button>

@@ -4,7 +4,8 @@ import { Loading } from '../../../components/ui/skeleton';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { paths } from '../../../config/paths';
-import { useStation, useStationHealth } from '../api/stations';
+import { can } from '../../../../../shared/auth/policies';
+import { useMe, useStation, useStationHealth } from '../api/stations';
 import { BaselineSummary, NoiseTrend, PsdPlots, QcFindings, RecentItems } from './health-panels';
 import { ProfileEditor } from './profile-editor';
 import { formatCoordinates } from './station-list';
@@ -29,6 +30,10 @@ function Section({ id, title, children }: { id: string; title: string; children:
 export function StationPage({ stationId }: { stationId: number }) {
   const station = useStation(stationId);
   const health = useStationHealth(stationId);
+  const me = useMe();
+  // Hiding only: the server checks every request with the same policy.
+  const canEdit = me.data ? can(me.data.user, 'station.edit', { stationId }) : false;
+  const canTokens = me.data ? can(me.data.user, 'token.manage', { stationId }) : false;
   if (station.isPending) return <Loading label="Loading the station…" />;
   if (station.error) {
     return (
@@ -113,12 +118,14 @@ export function StationPage({ stationId }: { stationId: number }) {
       ) : null}
 
       <Section id="st-profile" title="Processing profile">
-        <ProfileEditor key={s.updatedAt} stationId={s.id} profile={s.profile} channels={s.channels} canEdit />
+        <ProfileEditor key={s.updatedAt} stationId={s.id} profile={s.profile} channels={s.channels} canEdit={canEdit} />
       </Section>
 
-      <Section id="st-tokens" title="Ingest tokens">
-        <TokensPanel stationId={s.id} stationKey={key} />
-      </Section>
+      {canTokens ? (
+        <Section id="st-tokens" title="Ingest tokens">
+          <TokensPanel stationId={s.id} stationKey={key} />
+        </Section>
+      ) : null}
     </div>
   );
 }
