@@ -235,8 +235,17 @@ export interface CandidateDeps {
  */
 export async function recordArrivals(db: Database, itemIds: readonly number[]): Promise<number[]> {
   if (itemIds.length === 0) return [];
+  // Only the few fields the first trigger needs come out of the (~50 KB) analysis JSON.
   const rows = await db
-    .select({ itemId: queueItems.id, stationId: queueItems.stationId, analysis: windows.analysis, known: itemArrivals.itemId })
+    .select({
+      itemId: queueItems.id,
+      stationId: queueItems.stationId,
+      known: itemArrivals.itemId,
+      leadChannel: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.leadChannel')`,
+      ids: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].id')`,
+      starts: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].startTime')`,
+      staLta: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].staLta')`,
+    })
     .from(queueItems)
     .innerJoin(windows, eq(windows.id, queueItems.windowId))
     .leftJoin(itemArrivals, eq(itemArrivals.itemId, queueItems.id))
@@ -244,12 +253,36 @@ export async function recordArrivals(db: Database, itemIds: readonly number[]): 
   const added: number[] = [];
   for (const r of rows) {
     if (r.known !== null) continue;
-    const t = firstTriggerMs(r.analysis);
+    const t = firstTriggerMs(analysisFromExtract(r));
     if (t === null) continue;
     await db.insert(itemArrivals).values({ itemId: r.itemId, stationId: r.stationId, arrivalAt: new Date(t) }).onDuplicateKeyUpdate({ set: { itemId: sql`item_id` } });
     added.push(r.itemId);
   }
   return added;
+}
+
+/** A JSON_EXTRACT result: parsed by the driver, or JSON text (a non-JSON string is a parsed string). */
+function extracted(v: unknown): unknown {
+  if (typeof v !== 'string') return v ?? null;
+  try {
+    return JSON.parse(v);
+  } catch {
+    return v;
+  }
+}
+
+/** Rebuilds the part of the analysis `firstTriggerMs` reads from its extracted fields. */
+function analysisFromExtract(r: { leadChannel: unknown; ids: unknown; starts: unknown; staLta: unknown }): unknown {
+  const ids = extracted(r.ids);
+  const single = !Array.isArray(ids);
+  const col = (v: unknown): unknown[] => {
+    const p = extracted(v);
+    return single ? [p] : Array.isArray(p) ? p : [];
+  };
+  const starts = col(r.starts);
+  const staLta = col(r.staLta);
+  const list = single ? [ids] : ids;
+  return { leadChannel: extracted(r.leadChannel), channels: list.map((id, i) => ({ id, startTime: starts[i], staLta: staLta[i] })) };
 }
 
 async function loadArrivals(db: DbOrTx, fromMs: number, toMs: number): Promise<Array<Arrival & { candidateEventId: number | null }>> {

@@ -12,7 +12,7 @@ import { stations } from '../../../../server/db/schema/stations';
 import { candidateEvents, itemArrivals } from '../../../../server/db/schema/supervisor';
 import { windows } from '../../../../server/db/schema/uploads';
 import { publicBaseUrl } from '../../../../server/email/links';
-import { getCandidateEvent, haversineKm, onItemsCreated } from '../../../../server/services/candidate-events';
+import { firstTriggerMs, getCandidateEvent, haversineKm, onItemsCreated } from '../../../../server/services/candidate-events';
 import { createTestContext, type TestContext } from '../../../setup/test-app';
 import { createItem, createPerson, ensureStation, type TestPerson } from '../../../setup/queue-fixtures';
 
@@ -326,6 +326,18 @@ describe('supervisor API (real MariaDB, fake SMTP, supertest)', () => {
         expect(alone?.candidateEventId).toBeNull();
         expect(await ctx.database.db.select().from(candidateEvents).where(eq(candidateEvents.anchorItemId, ids[1] as number))).toHaveLength(0);
       }
+    });
+
+    it('reads the first trigger of a real engine analysis the same way through the database extract', async () => {
+      const ws = new Date('2026-04-20T06:00:00.000Z');
+      const id = await createItem(ctx.database.db, { station: 'KV01', withSamples: true, burstAtS: 50, windowStart: ws });
+      await onItemsCreated({ db: ctx.database.db }, [id]);
+      const [arr] = await ctx.database.db.select().from(itemArrivals).where(eq(itemArrivals.itemId, id));
+      const [win] = await ctx.database.db.select({ analysis: windows.analysis }).from(windows).innerJoin(queueItems, eq(queueItems.windowId, windows.id)).where(eq(queueItems.id, id));
+      expect(arr?.arrivalAt.getTime()).toBe(Math.round(firstTriggerMs(win?.analysis) ?? Number.NaN));
+      // The synthetic burst starts at 50 s; the STA/LTA trigger comes on within the next 2 s.
+      expect((arr?.arrivalAt.getTime() ?? 0) - ws.getTime()).toBeGreaterThanOrEqual(50_000);
+      expect((arr?.arrivalAt.getTime() ?? 0) - ws.getTime()).toBeLessThan(52_000);
     });
 
     it('labels every member through the queue, each still correctable', async () => {
