@@ -1,4 +1,4 @@
-import { and, asc, eq } from 'drizzle-orm';
+import { and, asc, eq, inArray } from 'drizzle-orm';
 import type { Express } from 'express';
 import { XMLParser } from 'fast-xml-parser';
 import request from 'supertest';
@@ -9,9 +9,10 @@ import { changeLog } from '../../../../server/db/schema/change-log';
 import { mailMessages } from '../../../../server/db/schema/mail-messages';
 import { queueItems } from '../../../../server/db/schema/queue-items';
 import { stations } from '../../../../server/db/schema/stations';
-import { candidateEvents, itemArrivals } from '../../../../server/db/schema/supervisor';
+import { candidateEvents, inboxEntries, itemArrivals } from '../../../../server/db/schema/supervisor';
 import { windows } from '../../../../server/db/schema/uploads';
 import { publicBaseUrl } from '../../../../server/email/links';
+import { fanOutEscalation } from '../../../../server/services/escalations';
 import { firstTriggerMs, getCandidateEvent, haversineKm, onItemsCreated } from '../../../../server/services/candidate-events';
 import { createTestContext, type TestContext } from '../../../setup/test-app';
 import { createItem, createPerson, ensureStation, type TestPerson } from '../../../setup/queue-fixtures';
@@ -143,6 +144,17 @@ describe('supervisor API (real MariaDB, fake SMTP, supertest)', () => {
       expect(audits.map((a) => a.action)).toEqual(['queue.claimed', 'queue.escalated', 'inbox.acknowledged', 'review.confirmed']);
       // Settled twice is refused.
       expect((await post(sue, `/api/supervisor/inbox/${entry.id}/acknowledge`, {})).status).toBe(409);
+    });
+
+    it('keeps the inbox entries and notes the failure when the e-mail cannot be sent', async () => {
+      const id = await createItem(ctx.database.db, { station: 'KV01' });
+      const c = await post(ana, `/api/queue/items/${id}/claim`, { version: 1 }).expect(200);
+      const row = await post(ana, `/api/queue/items/${id}/escalate`, { version: c.body.version, reason: 'mail failure check' }).expect(200);
+      const failing = { kind: 'smtp' as const, send: async () => Promise.reject(new Error('connection refused')), close: () => undefined };
+      const ids = await fanOutEscalation({ db: ctx.database.db, mailer: failing, logger: ctx.logger, publicUrl: 'https://seisift.example' }, row.body, { reason: 'mail failure check' }, { id: ana.id, displayName: ana.displayName, email: ana.email });
+      expect(ids).toHaveLength(2);
+      const entries = await ctx.database.db.select().from(inboxEntries).where(inArray(inboxEntries.id, ids));
+      expect(entries.map((e) => e.mailError)).toEqual(['the e-mail could not be sent; see the server log', 'the e-mail could not be sent; see the server log']);
     });
 
     it('returns an item to the queue with a comment the analyst sees, and it can be claimed again', async () => {
