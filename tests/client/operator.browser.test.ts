@@ -126,6 +126,15 @@ describe('operator: upload two files, see results, open the station page (browse
     await screenshot(page, 'operator-station-page');
     // The noise trend has two windows now.
     await page.getByText('Noise level per window, 1–5 Hz').waitFor();
+    // Channels by hand: add one, see it, remove it.
+    await page.getByText('Add or replace a channel by hand').click();
+    await page.getByLabel('Channel', { exact: true }).fill('HNZ');
+    await page.getByLabel('Rate (Hz)').fill('100');
+    await page.getByRole('button', { name: 'Add or replace channel' }).click();
+    const channelsTable = page.getByRole('table', { name: 'Channels of XX.KV01' });
+    await channelsTable.getByText('XX.KV01.00.HNZ', { exact: true }).waitFor();
+    await page.getByRole('button', { name: 'Remove channel XX.KV01.00.HNZ' }).click();
+    await channelsTable.getByText('XX.KV01.00.HNZ', { exact: true }).waitFor({ state: 'detached' });
     // Tokens: create one (shown once, with a copy button), see it listed, revoke it.
     await page.getByLabel('New token: what is it for?').fill('acquisition PC');
     await page.getByRole('button', { name: 'Create token' }).click();

@@ -6,6 +6,8 @@ import { TriageCaution } from '../../../components/ui/triage-caution';
 import { paths } from '../../../config/paths';
 import { can } from '../../../../../shared/auth/policies';
 import { useMe, useStation, useStationHealth } from '../api/stations';
+import { Button } from '../../../components/ui/button';
+import { ChannelForm, useDeleteChannel } from './channel-form';
 import { BaselineSummary, NoiseTrend, PsdPlots, QcFindings, RecentItems } from './health-panels';
 import { ProfileEditor } from './profile-editor';
 import { formatCoordinates } from './station-list';
@@ -34,6 +36,7 @@ export function StationPage({ stationId }: { stationId: number }) {
   // Hiding only: the server checks every request with the same policy.
   const canEdit = me.data ? can(me.data.user, 'station.edit', { stationId }) : false;
   const canTokens = me.data ? can(me.data.user, 'token.manage', { stationId }) : false;
+  const removeChannel = useDeleteChannel(stationId);
   if (station.isPending) return <Loading label="Loading the station…" />;
   if (station.error) {
     return (
@@ -75,6 +78,11 @@ export function StationPage({ stationId }: { stationId: number }) {
                   <Th>at</Th>
                   <Th>Input units</Th>
                   <Th>Response</Th>
+                  {canEdit ? (
+                    <Th>
+                      <span className="sr-only">Actions</span>
+                    </Th>
+                  ) : null}
                 </Tr>
               </THead>
               <TBody>
@@ -86,12 +94,27 @@ export function StationPage({ stationId }: { stationId: number }) {
                     <Td className="font-mono text-sm">{c.sensitivityFrequencyHz === null ? '—' : `${c.sensitivityFrequencyHz} Hz`}</Td>
                     <Td className="font-mono text-sm">{c.sensitivityInputUnits ?? '—'}</Td>
                     <Td className="text-sm">{c.hasResponse ? 'poles and zeros' : 'flat sensitivity only'}</Td>
+                    {canEdit ? (
+                      <Td>
+                        <Button size="sm" variant="quiet" disabled={removeChannel.isPending} onClick={() => removeChannel.mutate(c.id)} aria-label={`Remove channel ${c.streamId}`}>
+                          Remove
+                        </Button>
+                      </Td>
+                    ) : null}
                   </Tr>
                 ))}
               </TBody>
             </Table>
           </TableScroll>
         )}
+        {canEdit ? (
+          <details className="rounded-sm border border-line px-3 py-2">
+            <summary className="cursor-pointer text-sm font-medium">Add or replace a channel by hand</summary>
+            <div className="pt-2">
+              <ChannelForm stationId={s.id} />
+            </div>
+          </details>
+        ) : null}
       </Section>
 
       <Section id="st-health" title="Health: latest spectrum per channel">
