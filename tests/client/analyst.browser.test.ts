@@ -1,4 +1,3 @@
-import { readFileSync } from 'node:fs';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
@@ -6,7 +5,8 @@ import { queueItemDetailSchema } from '../../shared/schemas/queue';
 import { uploadResponseSchema } from '../../shared/schemas/upload';
 import { createStation, upsertChannel, type Actor } from '../../server/services/station-registry';
 import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { createItem, createPerson, type TestPerson } from '../setup/queue-fixtures';
+import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
+import { createItem, createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';
 import { startTestServer, type TestServer } from '../setup/test-server';
 
 /**
@@ -63,7 +63,9 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     }
 
     step('both queues live');
-    const file = readFileSync(new URL('../../demo-waveforms/mseed/XX.KV01.2026-03-14T10-11-53.mseed', import.meta.url));
+    // A synthetic KV01 window with a 5 Hz burst at 50 s, written as MiniSEED 2 Steim-2 (test input).
+    const streams = syntheticStreams('KV01', Date.UTC(2026, 2, 14, 10, 11, 53) * 1000, { durationS: 120, burstAtS: 50 });
+    const file = Buffer.concat(streams.map((st) => Buffer.from(encodeMiniSeed2({ ...st, samples: Int32Array.from(st.samples) }, { encoding: 'steim2', recordLength: 512 }))));
     const res = await request(server.url)
       .post('/api/uploads')
       .set('Origin', server.url)
@@ -108,6 +110,18 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await pageA.waitForSelector('[data-testid="trace-panel"] canvas');
     await pageA.waitForTimeout(300);
     await screenshot(pageA, 'analyst-review', true);
+    await pageA.evaluate(() => document.getElementById('main')?.scrollTo(0, 900));
+    await pageA.waitForTimeout(200);
+    await screenshot(pageA, 'analyst-review-lower');
+    await pageA.evaluate(() => document.querySelector('[aria-label="Spectrogram"]')?.scrollIntoView());
+    await pageA.waitForTimeout(200);
+    await screenshot(pageA, 'analyst-review-spectrogram');
+    await pageA.evaluate(() => document.getElementById('main')?.scrollTo(0, 0));
+    // Zoom with the keys: + halves the span (whole 120 s window → 60 s), 0 shows the whole window.
+    await pageA.keyboard.press('+');
+    await pageA.waitForSelector('text=/Zoom 30\\.00–90\\.00 s/');
+    await pageA.keyboard.press('0');
+    await pageA.waitForSelector('text=/Zoom whole window/');
     const a11y = await checkA11y(pageA);
     expect(a11y, JSON.stringify(a11y, null, 1)).toEqual([]);
 

@@ -25,6 +25,103 @@ describe('backoffDelayMs (exponential backoff with jitter, common practice)', ()
   });
 });
 
+/** A socket the test drives by hand. */
+class FakeSocket implements SocketLike {
+  readyState = 1;
+  onopen: SocketLike['onopen'] = null;
+  onmessage: SocketLike['onmessage'] = null;
+  onclose: SocketLike['onclose'] = null;
+  onerror: SocketLike['onerror'] = null;
+  closed = false;
+  constructor(readonly url: string) {}
+  send(m: object) {
+    this.onmessage?.({ data: JSON.stringify(m) });
+  }
+  drop(code = 1006) {
+    this.readyState = 3;
+    this.onclose?.({ code, reason: '' });
+  }
+  close() {
+    this.closed = true;
+  }
+}
+
+const change = (seq: number, id = seq) => ({ seq, resource: 'item', id, kind: 'created' as const, version: 1, summary: null, at: '2026-03-14T09:00:00.000Z' });
+
+describe('live client protocol (fake sockets)', () => {
+  it('resumes with since=last seq, drops repeats, asks for a refetch when told, ignores junk', async () => {
+    const sockets: FakeSocket[] = [];
+    const got: number[] = [];
+    const refetches: string[] = [];
+    const client = createLiveClient({
+      url: 'ws://x/ws',
+      connect: (u) => {
+        const s = new FakeSocket(u);
+        sockets.push(s);
+        return s;
+      },
+      onChanges: (cs) => got.push(...cs.map((c) => c.seq)),
+      onRefetch: (r) => refetches.push(r),
+      backoff: { initialMs: 1, maxMs: 5, jitter: 0 },
+    });
+    expect(sockets[0]?.url).toBe('ws://x/ws');
+    sockets[0]?.send({ type: 'hello', seq: 10 });
+    expect(client.state()).toBe('live');
+    sockets[0]?.send({ type: 'changes', changes: [change(11), change(12)] });
+    sockets[0]?.send({ type: 'changes', changes: [change(12), change(13)] });
+    sockets[0]?.onmessage?.({ data: 'not json' });
+    sockets[0]?.send({ type: 'nonsense' });
+    expect(got).toEqual([11, 12, 13]);
+    sockets[0]?.drop();
+    expect(client.state()).toBe('connecting');
+    await until(() => sockets.length === 2);
+    expect(sockets[1]?.url).toBe('ws://x/ws?since=13');
+    sockets[1]?.send({ type: 'hello', seq: 20 });
+    sockets[1]?.send({ type: 'changes', changes: [change(13), change(14)] });
+    expect(got).toEqual([11, 12, 13, 14]);
+    sockets[1]?.send({ type: 'refetch', seq: 30, reason: 'changes after 14 are no longer kept' });
+    expect(refetches).toEqual(['changes after 14 are no longer kept']);
+    expect(client.lastSeq()).toBe(30);
+    // A server whose sequence went backwards (a new database) also means: reload everything.
+    sockets[1]?.drop();
+    await until(() => sockets.length === 3);
+    sockets[2]?.send({ type: 'hello', seq: 2 });
+    expect(refetches).toHaveLength(2);
+    expect(client.lastSeq()).toBe(2);
+    client.stop();
+    expect(sockets[2]?.closed).toBe(true);
+    expect(client.state()).toBe('offline');
+  });
+
+  it('reads offline after repeated failures and after a policy close, and keeps retrying', async () => {
+    const sockets: FakeSocket[] = [];
+    const client = createLiveClient({
+      url: 'ws://x/ws',
+      connect: (u) => {
+        const s = new FakeSocket(u);
+        sockets.push(s);
+        return s;
+      },
+      onChanges: () => {},
+      onRefetch: () => {},
+      backoff: { initialMs: 1, maxMs: 5, jitter: 0 },
+      offlineAfter: 2,
+    });
+    sockets[0]?.drop();
+    expect(client.state()).toBe('connecting');
+    await until(() => sockets.length === 2);
+    sockets[1]?.drop();
+    expect(client.state()).toBe('offline');
+    await until(() => sockets.length === 3);
+    sockets[2]?.send({ type: 'hello', seq: 0 });
+    expect(client.state()).toBe('live');
+    sockets[2]?.drop(wsPolicyViolation);
+    expect(client.state()).toBe('offline');
+    await until(() => sockets.length === 4);
+    client.stop();
+  });
+});
+
 describe('live client against the real server and sessions', () => {
   let ctx: TestContext;
   let running: RunningServer;

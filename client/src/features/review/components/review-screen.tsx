@@ -293,18 +293,29 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
       <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_26rem]">
         <main className="flex min-w-0 flex-col gap-3" aria-label="Waveforms">
           {traces.data ? (
-            <TracePanel traces={traces.data} windowStartMs={windowStartMs} picks={picks} activePhase={phase} onZoom={onZoom} onPick={onPick} onCursor={onCursor} syncKey={`item-${detail.id}`} />
+            <TracePanel
+              traces={traces.data}
+              windowStartMs={windowStartMs}
+              picks={picks}
+              activePhase={phase}
+              onZoom={onZoom}
+              onPick={onPick}
+              onCursor={onCursor}
+              syncKey={`item-${detail.id}`}
+              afterLead={
+                leadTraces?.spectrogram ? (
+                  <section aria-label="Spectrogram" className="rounded-sm border border-line bg-surface p-2">
+                    <h2 className="pb-1 text-md font-semibold">Spectrogram · {leadTraces.streamId}</h2>
+                    <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} fromS={view?.from ?? 0} toS={view?.to ?? durationS} />
+                  </section>
+                ) : null
+              }
+            />
           ) : traces.isError ? (
             <EmptyState title="Traces could not be loaded">{traces.error.message}</EmptyState>
           ) : (
             <Loading label="Loading traces…" />
           )}
-          {leadTraces?.spectrogram ? (
-            <section aria-label="Spectrogram" className="rounded-sm border border-line bg-surface p-2">
-              <h2 className="pb-1 text-md font-semibold">Spectrogram · {leadTraces.streamId}</h2>
-              <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} fromS={view?.from ?? 0} toS={view?.to ?? durationS} />
-            </section>
-          ) : null}
         </main>
         <aside className="flex flex-col gap-3" aria-label="Assessment">
           <section className="rounded-sm border border-line bg-surface p-3">

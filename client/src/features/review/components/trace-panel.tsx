@@ -1,4 +1,4 @@
-import { useCallback, useMemo, useRef } from 'react';
+import { Fragment, useCallback, useMemo, useRef, type ReactNode } from 'react';
 import type uPlot from 'uplot';
 import type { TracesResponse } from '../../../../../shared/schemas/queue';
 import { PlotFrame } from '../../../components/ui/plot-frame';
@@ -23,6 +23,8 @@ export type TracePanelProps = {
   /** The cursor's time, s (null when off the plots), for keyboard picks and zoom. */
   onCursor: (timeS: number | null) => void;
   syncKey: string;
+  /** Shown right after the lead (vertical) channel, e.g. its spectrogram. */
+  afterLead?: ReactNode;
 };
 
 /** Seconds from the window start of an ISO pick time. */
@@ -72,22 +74,27 @@ function drawMarks(u: uPlot, picks: readonly PickMark[], streamId: string, windo
  * resolution for short spans). Picks are drawn as lines (P solid, S dashed, with their letter);
  * STA/LTA trigger spans are shaded.
  */
-export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, onPick, onCursor, syncKey }: TracePanelProps) {
-  const ordered = useMemo(() => [...traces.channels].sort((a, b) => Number(b.streamId.endsWith('Z')) - Number(a.streamId.endsWith('Z'))), [traces.channels]);
+export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, onPick, onCursor, syncKey, afterLead }: TracePanelProps) {
+  // Vertical first, then the horizontals N/1 and E/2 (the usual Z, N, E reading order, common practice).
+  const rank = (id: string) => ({ Z: 0, N: 1, '1': 1, E: 2, '2': 2 })[id.slice(-1)] ?? 3;
+  const ordered = useMemo(() => [...traces.channels].sort((a, b) => rank(a.streamId) - rank(b.streamId) || a.streamId.localeCompare(b.streamId)), [traces.channels]);
   return (
     <div className="flex flex-col gap-2" data-testid="trace-panel">
       <p className="text-sm text-ink-muted">
         Drag across a trace to zoom all of them; click to place a <strong className="text-ink">{activePhase}</strong> pick (<kbd>P</kbd>/<kbd>S</kbd> choose the
         phase). Band traces: Butterworth band-pass, {traces.filtering}. {ordered[0] && ordered[0].bucket > 1 ? `Shown as min/max of ${ordered[0].bucket} samples per point.` : 'Every sample shown.'}
       </p>
-      {ordered.map((c) => (
-        <ChannelPlots key={c.streamId} c={c} windowStartMs={windowStartMs} picks={picks} onZoom={onZoom} onPick={onPick} onCursor={onCursor} syncKey={syncKey} />
+      {ordered.map((c, i) => (
+        <Fragment key={c.streamId}>
+          <ChannelPlots c={c} windowStartMs={windowStartMs} picks={picks} onZoom={onZoom} onPick={onPick} onCursor={onCursor} syncKey={syncKey} />
+          {i === 0 ? afterLead : null}
+        </Fragment>
       ))}
     </div>
   );
 }
 
-function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncKey }: Omit<TracePanelProps, 'traces' | 'activePhase'> & { c: ChannelTraces }) {
+function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncKey }: Omit<TracePanelProps, 'traces' | 'activePhase' | 'afterLead'> & { c: ChannelTraces }) {
   const picksRef = useRef(picks);
   picksRef.current = picks;
   const x = useMemo(() => ({ label: 'Time from window start', unit: 's', values: c.times }), [c.times]);
@@ -137,13 +144,14 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
   const on = useMemo(() => c.times.map(() => c.staLtaLevels.on), [c.times, c.staLtaLevels.on]);
   const off = useMemo(() => c.times.map(() => c.staLtaLevels.off), [c.times, c.staLtaLevels.off]);
   const f = (v: number) => String(v);
+  const peak = (y: number[]) => y.reduce((m, v) => Math.max(m, Math.abs(v)), 0).toExponential(2).replace('-', '\u2212');
   return (
     <section aria-label={`Channel ${c.streamId}`} className="rounded-sm border border-line bg-surface p-2">
       <h3 className="pb-1 font-mono text-sm font-medium">
         {c.streamId} <span className="font-sans font-normal text-ink-muted">· {c.sampleRateHz} Hz · {c.units}</span>
       </h3>
       <PlotFrame
-        title={`${c.streamId} pre-processed trace`}
+        title={`${c.streamId} pre-processed trace · peak |x| ${peak(c.raw)} ${c.units}`}
         description={`Demeaned, detrended and tapered trace of ${c.streamId} in ${c.units}`}
         x={x}
         y={{ label: 'raw', unit: c.units }}
@@ -152,7 +160,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         configure={withTriggers}
       />
       <PlotFrame
-        title={`${c.streamId} low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz`}
+        title={`${c.streamId} low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz · peak |x| ${peak(c.low)} ${c.units}`}
         description={`Low band ${c.bands.low[0]} to ${c.bands.low[1]} Hz of ${c.streamId}`}
         x={x}
         y={{ label: 'low', unit: c.units }}
@@ -161,7 +169,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         configure={plain}
       />
       <PlotFrame
-        title={`${c.streamId} high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz`}
+        title={`${c.streamId} high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz · peak |x| ${peak(c.high)} ${c.units}`}
         description={`High band ${c.bands.high[0]} to ${c.bands.high[1]} Hz of ${c.streamId}`}
         x={x}
         y={{ label: 'high', unit: c.units }}
@@ -170,7 +178,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         configure={plain}
       />
       <PlotFrame
-        title={`${c.streamId} STA/LTA (${c.staLtaLevels.method})`}
+        title={`${c.streamId} STA/LTA (${c.staLtaLevels.method}; 0 until the LTA window is full; shaded: triggered)`}
         description={`STA/LTA ratio of the high band with trigger-on level ${c.staLtaLevels.on} and off level ${c.staLtaLevels.off}; trigger spans shaded`}
         x={x}
         y={{ label: 'STA/LTA' }}

@@ -1,0 +1,73 @@
+import { QueryClient } from '@tanstack/react-query';
+import { describe, expect, it } from 'vitest';
+import type { QueuePage, QueueRow } from '../../../../shared/schemas/queue';
+import { queueKeys, type QueueFilters, type QueueListData } from '../../../../client/src/features/queue/api/get-queue';
+import { applyChanges, liveArrivals, patchRow } from '../../../../client/src/features/queue/api/live-patch';
+
+const row = (id: number, score: number, over: Partial<QueueRow> = {}): QueueRow => ({
+  id,
+  state: 'new',
+  score,
+  flag: 'needs eyes',
+  reasons: [],
+  station: 'XX.KV01',
+  stationId: 1,
+  windowStart: '2026-03-14T09:00:00.000Z',
+  createdAt: `2026-03-14T09:00:${String(id % 60).padStart(2, '0')}.000Z`,
+  updatedAt: '2026-03-14T09:00:00.000Z',
+  version: 1,
+  claimedBy: null,
+  claimedAt: null,
+  updatedBy: null,
+  labelType: null,
+  ...over,
+});
+const page = (items: QueueRow[], nextCursor: string | null): QueuePage => ({
+  items,
+  nextCursor,
+  counts: { new: items.length, 'in review': 0, labelled: 0, dismissed: 0, escalated: 0, confirmed: 0, returned: 0 },
+  total: items.length,
+});
+const ids = (qc: QueryClient, f: QueueFilters) => qc.getQueryData<QueueListData>(queueKeys.list(f))?.pages.flatMap((p) => p.items.map((r) => r.id));
+
+describe('live changes into the query cache', () => {
+  const f: QueueFilters = { sort: 'score', state: ['new', 'in review'] };
+  const seed = (next: string | null) => {
+    const qc = new QueryClient();
+    qc.setQueryData<QueueListData>(queueKeys.list(f), { pages: [page([row(1, 9), row(2, 7)], 'c1'), page([row(3, 5), row(4, 3)], next)], pageParams: [undefined, 'c1'] });
+    return qc;
+  };
+
+  it('inserts a new row where the score order puts it, and marks it as a new arrival', () => {
+    const qc = seed(null);
+    patchRow(qc, row(10, 6), 'created');
+    expect(ids(qc, f)).toEqual([1, 2, 10, 3, 4]);
+    expect(liveArrivals.has(10)).toBe(true);
+    liveArrivals.seen(10);
+    expect(liveArrivals.has(10)).toBe(false);
+  });
+
+  it('leaves a row that sorts past the loaded pages for a later page; skips rows outside the filters', () => {
+    const qc = seed('c2');
+    patchRow(qc, row(11, 1), 'created');
+    patchRow(qc, row(12, 8, { station: 'XX.KV02', state: 'labelled' }), 'created');
+    expect(ids(qc, f)).toEqual([1, 2, 3, 4]);
+  });
+
+  it('updates a listed row in place (its place is kept) and ignores an older version', () => {
+    const qc = seed(null);
+    patchRow(qc, row(2, 7, { state: 'in review', version: 2, claimedBy: { id: 'u1', displayName: 'Ana' } }), 'updated');
+    patchRow(qc, row(2, 7, { version: 1 }), 'updated');
+    const data = qc.getQueryData<QueueListData>(queueKeys.list(f));
+    expect(data?.pages[0]?.items[1]).toMatchObject({ id: 2, state: 'in review', version: 2, claimedBy: { displayName: 'Ana' } });
+    expect(ids(qc, f)).toEqual([1, 2, 3, 4]);
+  });
+
+  it('applyChanges patches from summaries and marks an open item stale when its version moves on', async () => {
+    const qc = seed(null);
+    qc.setQueryData(queueKeys.item(3), { version: 1 });
+    applyChanges(qc, [{ seq: 5, resource: 'item', id: 3, kind: 'updated', version: 2, summary: row(3, 5, { version: 2, state: 'in review' }), at: '2026-03-14T09:00:00.000Z' }]);
+    expect(qc.getQueryState(queueKeys.item(3))?.isInvalidated).toBe(true);
+    expect(qc.getQueryData<QueueListData>(queueKeys.list(f))?.pages[1]?.items[0]?.state).toBe('in review');
+  });
+});
