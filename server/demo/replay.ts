@@ -156,7 +156,7 @@ async function makeTokens(url: string, credentials: { email: string; password: s
 
 /**
  * Replays the demo windows (see the module comment) and returns what happened. Files of stations
- * without a token are skipped. Each file's window ends "now" (whole seconds) at the moment it is
+ * without a token are skipped. Each file's window ends "now" (to 10 ms) at the moment it is
  * sent; windows sharing a demo start share the new one, and each new start is at least 1 s after
  * the previous, so no two sent files are identical.
  * @throws ReplayError when the server cannot be reached, the sign-in or token creation fails, or a
@@ -196,10 +196,11 @@ export async function replayDemo(opts: ReplayOptions): Promise<ReplayReport> {
       k++;
       let newStartUs = shifts.get(f.start);
       if (newStartUs === undefined) {
-        // The window ends now (whole seconds), so it is the newest thing the station has sent; each
-        // new group starts at least 1 s after the previous one, so that at rates above one window
-        // per second (or on the next pass) no re-encoded file repeats an earlier one byte for byte.
-        newStartUs = Math.max(Math.floor(now() / 1000) * 1e6 - 120e6, lastGroupStartUs + 1e6);
+        // The window ends now (on the 10 ms sample grid of the demo's 100 sps), so it is the newest
+        // thing the station has sent; each new group starts at least 1 s after the previous one, so
+        // that at rates above one window per second (or on the next pass) no re-encoded file
+        // repeats an earlier one byte for byte.
+        newStartUs = Math.max(Math.floor(now() / 10) * 10_000 - 120e6, lastGroupStartUs + 1e6);
         lastGroupStartUs = newStartUs;
         shifts.set(f.start, newStartUs);
       }
