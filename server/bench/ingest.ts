@@ -18,11 +18,17 @@
  * to its 201, and from sending it to its change reaching every one of the 20 clients; changes
  * that never reached a client; the server's peak RSS. Targets (issue 9, 2-core machine):
  * ≥ 100 windows/s, p95 upload→websocket ≤ 250 ms, RSS < 500 MB. Exits 1 when one is missed.
+ * Before the load, the same ingest service runs 30 windows one at a time in this process and
+ * prints where the time goes (decode, analysis, database). BENCH_INNODB_FLUSH=2 (diagnosis only)
+ * relaxes MariaDB's per-commit redo-log sync to show how much of the database time is that sync.
  * Every process it started is stopped on every exit path.
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { cpus, loadavg, totalmem } from 'node:os';
 import { join, resolve } from 'node:path';
+import { eq } from 'drizzle-orm';
+import mysql from 'mysql2/promise';
 import { WebSocket } from 'ws';
 import { z } from 'zod';
 import { serverMessageSchema } from '../../shared/realtime';
@@ -35,7 +41,12 @@ import { createDatabaseClient } from '../db/client';
 import { migrateDatabase } from '../db/migrate';
 import { channels, ingestTokens, stations } from '../db/schema/stations';
 import { userRoles, users } from '../db/schema/users';
+import { decodeWaveform } from '../formats/decode';
 import { encodeMiniSeed2 } from '../formats/mseed2-writer';
+import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
+import { createLogger } from '../logger';
+import { ingestFile } from '../services/ingest-upload';
+import { stationsByKeys } from '../services/station-registry';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);
@@ -97,6 +108,11 @@ function shiftStart(file: Uint8Array, deltaS: number): Uint8Array {
   return out;
 }
 
+/** The machine and its load, printed with the figures (others share this machine). */
+function machineLine(): string {
+  return `machine: ${cpus().length} cores (${cpus()[0]?.model ?? '?'}), ${(totalmem() / 2 ** 30).toFixed(1)} GiB, node ${process.version}, load average ${loadavg().map((x) => x.toFixed(2)).join(' ')}, ${new Date().toISOString()}`;
+}
+
 function percentile(sorted: number[], p: number): number {
   if (sorted.length === 0) return NaN;
   return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))] ?? NaN;
@@ -125,6 +141,67 @@ function summariseProfile(path: string, top = 20): string[] {
     .map(([k, hits]) => `${((100 * hits) / total).toFixed(1).padStart(5)} %  ${((hits / total) * spanS).toFixed(1).padStart(6)} s  ${k}`);
 }
 
+/**
+ * Where one upload's time goes, measured in this process on the bench database before the load:
+ * STAGE_WINDOWS windows one after the other through the real ingest service (ingestFile), with
+ * the analysis pool wrapped to time each analysis and the decoder timed on the same bytes.
+ * DB time = ingest total − decode − analysis (the rest: duplicate check, station and baseline
+ * reads, the one transaction, the change log).
+ */
+async function stageTimings(db: Parameters<typeof ingestFile>[0]['db'], bases: Map<string, Uint8Array>): Promise<string[]> {
+  const STAGE_WINDOWS = 30;
+  const pool = createAnalysisPool({ threads: 1 });
+  const analysisMs: number[] = [];
+  const timed: AnalysisPool = {
+    threads: pool.threads,
+    close: () => pool.close(),
+    async run(streams, profile, opts) {
+      const t = performance.now();
+      try {
+        return await pool.run(streams, profile, opts);
+      } finally {
+        analysisMs.push(performance.now() - t);
+      }
+    },
+  };
+  const code = CODES[0] ?? 'KV01';
+  const [station] = (await stationsByKeys(db, [`XX.${code}`])).values();
+  if (!station) throw new Error('stage timing: station missing');
+  const [tokenRow] = await db.select({ id: ingestTokens.id }).from(ingestTokens).where(eq(ingestTokens.stationId, station.id));
+  if (!tokenRow) throw new Error('stage timing: token missing');
+  const decodeMs: number[] = [];
+  const totalMs: number[] = [];
+  const logger = createLogger('silent');
+  try {
+    for (let i = 0; i < STAGE_WINDOWS + 3; i++) {
+      const bytes = shiftStart(bases.get(code) ?? new Uint8Array(), -(i + 1) * 120);
+      const td = performance.now();
+      decodeWaveform(bytes);
+      const dMs = performance.now() - td;
+      const t = performance.now();
+      const outcome = await ingestFile({ db, pool: timed, notify: () => {}, logger }, { filename: `stage-${i}.mseed`, bytes }, { kind: 'ingest', ingest: { tokenId: tokenRow.id, stationId: station.id, label: 'bench' }, ipAddress: null });
+      if (outcome.httpStatus !== 201) throw new Error(`stage timing: ${outcome.message}`);
+      if (i >= 3) {
+        decodeMs.push(dMs);
+        totalMs.push(performance.now() - t);
+      } else analysisMs.splice(0);
+    }
+  } finally {
+    await pool.close();
+  }
+  const mean = (a: number[]) => a.reduce((x, y) => x + y, 0) / a.length;
+  const a = mean(analysisMs.slice(-STAGE_WINDOWS));
+  const d = mean(decodeMs);
+  const t = mean(totalMs);
+  return [
+    `stage timing, ${STAGE_WINDOWS} windows one at a time (mean ms per window):`,
+    `  decode (MiniSEED 2 Steim-2, 3 × 12 000 samples): ${d.toFixed(1)}`,
+    `  analysis in the worker pool (engine + transfer):  ${a.toFixed(1)}`,
+    `  database (checks, baseline, one transaction):     ${(t - d - a).toFixed(1)}`,
+    `  ingest total:                                     ${t.toFixed(1)}  → at most ${(1000 / a).toFixed(0)} windows/s per analysis thread, ${(1000 / (t - d - a)).toFixed(0)} per DB connection in series`,
+  ];
+}
+
 async function main(): Promise<number> {
   const cleanups: Array<() => Promise<void>> = [];
   const cleanup = async () => {
@@ -133,6 +210,7 @@ async function main(): Promise<number> {
   process.once('SIGINT', () => void cleanup().then(() => process.exit(130)));
   process.once('SIGTERM', () => void cleanup().then(() => process.exit(143)));
   try {
+    log(machineLine());
     log(`bench:ingest — ${CONCURRENCY} concurrent uploaders, ${WS_CLIENTS} websocket clients, ${SECONDS} s measured after ${WARMUP_S} s warm-up`);
     mkdirSync(resolve('.data'), { recursive: true });
     const dataDir = mkdtempSync(join(resolve('.data'), 'bench-ingest-'));
@@ -140,6 +218,15 @@ async function main(): Promise<number> {
     const maria: PrivateMariaDb = await startPrivateMariaDb({ dataDir, port: await freePort(), log: () => {} });
     cleanups.push(() => maria.stop());
     const url = await provisionDatabase(maria, { database: 'seisift_bench', user: 'seisift_bench', password: 'seisift-bench-pass' });
+    // Diagnosis only: BENCH_INNODB_FLUSH=2 writes the redo log at commit but syncs it once a second
+    // (a MariaDB or OS crash may lose the last second); the default 1 syncs at every commit.
+    const flush = process.env.BENCH_INNODB_FLUSH;
+    if (flush === '0' || flush === '2') {
+      const root = await mysql.createConnection({ socketPath: maria.socketPath, user: 'root' });
+      await root.query(`SET GLOBAL innodb_flush_log_at_trx_commit = ${flush}`);
+      await root.end();
+      log(`(diagnosis) innodb_flush_log_at_trx_commit = ${flush}: commits are not synced to disk one by one`);
+    }
     const client = createDatabaseClient(url, { connectionLimit: 4 });
     cleanups.push(() => client.close());
     await migrateDatabase(client.db);
@@ -163,6 +250,9 @@ async function main(): Promise<number> {
       const s = await sessionStore.create(id, { ipAddress: '127.0.0.1', userAgent: 'bench:ingest' });
       cookies.push(`${sessionCookieName}=${s.id}`);
     }
+
+    const bases = new Map(CODES.map((code, k) => [code, baseWindow(code, k + 1)]));
+    for (const line of await stageTimings(client.db, bases)) log(line);
 
     const profDir = resolve('.data/bench-prof');
     if (CPU_PROF) {
@@ -205,8 +295,7 @@ async function main(): Promise<number> {
     });
     log(`${WS_CLIENTS} websocket clients connected`);
 
-    // Upload files: one encoded window per station, moved in time for each upload.
-    const bases = new Map(CODES.map((code, k) => [code, baseWindow(code, k + 1)]));
+    // Upload files: one encoded window per station (above), moved in time for each upload.
     const uploadSchema = z.object({ files: z.array(z.object({ status: z.string(), itemIds: z.array(z.number()).optional() })) });
     interface Sample {
       sentAt: number;
@@ -265,6 +354,7 @@ async function main(): Promise<number> {
 
     const f = (x: number) => x.toFixed(1);
     log('');
+    log(machineLine());
     log(`uploads answered 201 in the measured ${SECONDS} s: ${measured.length}  (not 201 overall: ${failedUploads})`);
     log(`windows per second:            ${f(windowsPerS)}   target ≥ ${TARGETS.windowsPerS}  ${windowsPerS >= TARGETS.windowsPerS ? 'ok' : 'MISSED'}`);
     log(`upload → 201 (ms):             p50 ${f(percentile(toAnswer, 50))}  p95 ${f(percentile(toAnswer, 95))}  p99 ${f(percentile(toAnswer, 99))}`);

@@ -20,6 +20,7 @@
  * Exits 1 when any target is missed. MariaDB and the HTTP server are stopped on every exit path.
  */
 import { existsSync, rmSync } from 'node:fs';
+import { cpus, loadavg, totalmem } from 'node:os';
 import { resolve } from 'node:path';
 import { drizzle } from 'drizzle-orm/mysql2';
 import mysql from 'mysql2/promise';
@@ -76,6 +77,11 @@ const YEAR_START_MS = Date.UTC(2025, 5, 1);
 const YEAR_MS = 365 * 86_400_000;
 
 const log = (line: string) => console.log(line);
+
+/** The machine and its load, printed with the figures (others share this machine). */
+function machineLine(): string {
+  return `machine: ${cpus().length} cores (${cpus()[0]?.model ?? '?'}), ${(totalmem() / 2 ** 30).toFixed(1)} GiB, node ${process.version}, load average ${loadavg().map((x) => x.toFixed(2)).join(' ')}, ${new Date().toISOString()}`;
+}
 
 /** A deterministic 32-bit LCG in [0, 1) (Numerical Recipes constants; common practice). */
 function lcg(seed: number): () => number {
@@ -183,6 +189,7 @@ async function main(): Promise<number> {
   process.once('SIGTERM', onSignal);
   try {
     if (FRESH && existsSync(DATA_DIR)) rmSync(DATA_DIR, { recursive: true, force: true });
+    log(machineLine());
     log(`bench:queue — ${ITEMS} items, ${REPEATS} timed requests per view, target p95 ≤ ${TARGET_P95_MS} ms`);
     server = await startPrivateMariaDb({ dataDir: DATA_DIR, port: await freePort(), log });
     const srv = server;
@@ -257,6 +264,7 @@ async function main(): Promise<number> {
       }
     }
     log('');
+    log(machineLine());
     log('view'.padEnd(46) + 'n'.padStart(4) + 'p50 ms'.padStart(8) + 'p95 ms'.padStart(8) + 'max ms'.padStart(8) + 'rows'.padStart(6) + 'total'.padStart(9) + '  target');
     for (const x of results) {
       const ok = x.p95 <= TARGET_P95_MS;
