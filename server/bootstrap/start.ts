@@ -11,6 +11,7 @@ import type { AppContext } from '../context';
 import { ingestDemo } from '../demo/ingest-demo';
 import { defaultAnalysisPool } from '../services/ingest-upload';
 import { escalationListener } from '../services/escalations';
+import { publicBaseUrl } from '../email/links';
 import { ConfigError, loadEnv } from '../env';
 import { FakeSmtpError } from '../email/fake-smtp';
 import { setUpMail } from '../email/setup';
@@ -46,14 +47,13 @@ process.on('SIGTERM', () => void shutdown(0));
  */
 async function ingestDemoWindows(ctx: AppContext): Promise<void> {
   try {
-    const publicUrl = ctx.env.SEISIFT_PUBLIC_URL ?? `http://${ctx.env.HOST}:${ctx.env.PORT}`;
     const notify = (): void => ctx.hub.notify();
     const r = await ingestDemo({
       db: ctx.database.db,
       pool: defaultAnalysisPool(),
       notify,
       logger: ctx.logger,
-      escalationListeners: [escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify, publicUrl })],
+      escalationListeners: [escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify, publicUrl: publicBaseUrl(ctx.env) })],
     });
     for (const f of r.rejected) console.warn(`seisift: demo file ${f.filename} was refused: ${f.message}`);
     console.log(
