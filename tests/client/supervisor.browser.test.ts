@@ -83,7 +83,11 @@ describe('supervisor in the browser', () => {
 
     // A labelled event, reviewed as final in the review screen, then exported.
     const windowStart = new Date(Date.now() - 3600_000);
-    const ev = await createItem(db, { station: 'KV02', windowStart });
+    const ev = await createItem(db, { station: 'KV02', windowStart, withSamples: true, burstAtS: 50 });
+    // A noise window at the same station, so the thresholds page has both kinds of history.
+    const quiet = await createItem(db, { station: 'KV02', windowStart: new Date(windowStart.getTime() - 600_000), withSamples: true });
+    const cq = await api(ana, 'POST', `/api/queue/items/${quiet}/claim`, { version: 1 });
+    await api(ana, 'POST', `/api/queue/items/${quiet}/dismiss`, { version: cq.version, noiseReason: 'wind' });
     const c2 = await api(ana, 'POST', `/api/queue/items/${ev}/claim`, { version: 1 });
     const pTime = new Date(windowStart.getTime() + 38_250).toISOString();
     await api(ana, 'POST', `/api/queue/items/${ev}/label`, { version: c2.version, label: { eventType: 'earthquake', certainty: 'known', picks: [{ phase: 'P', time: pTime, onset: 'impulsive', streamId: 'XX.KV02.00.HHZ' }] } });
@@ -113,6 +117,8 @@ describe('supervisor in the browser', () => {
     await page.goto(`${server.url}/thresholds`);
     await page.getByRole('table', { name: 'Confusion counts on the labelled history' }).waitFor({ timeout: 15_000 });
     await page.getByText('Precision and recall across eventZ').waitFor();
+    await page.getByText('XX.KV02: 1 items labelled as events, 1 as noise', { exact: false }).waitFor();
+    await page.getByText('Precision–recall curve').waitFor();
     await screenshot(page, 'supervisor-thresholds', true);
     await page.goto(`${server.url}/dashboard`);
     await page.getByText('Items per day per station').waitFor({ timeout: 15_000 });

@@ -67,3 +67,9 @@ export function dayToIso(value: string): string {
 export function withPoints(options: uPlot.Options): uPlot.Options {
   return { ...options, series: options.series.map((s, i) => (i === 0 ? s : { ...s, points: { show: true, size: 6 } })) };
 }
+
+/** `withPoints`, with the y scale fixed to 0…1 (shares such as precision and recall). */
+export function withPointsShare(options: uPlot.Options): uPlot.Options {
+  const o = withPoints(options);
+  return { ...o, scales: { ...o.scales, y: { ...o.scales?.y, range: [0, 1] } } };
+}

@@ -6,7 +6,7 @@ import { Loading } from '../../../components/ui/skeleton';
 import { Table, TBody, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { dashboardQuery } from '../api/supervisor-api';
-import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPoints } from './common';
+import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPoints, withPointsShare } from './common';
 
 const dayFormat = (v: number) => new Date(v * 1000).toISOString().slice(5, 10);
 
@@ -66,7 +66,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="False-alarm rate of “likely event”"
             description="Of the items flagged likely event that arrived each day and have been labelled or dismissed, the share that turned out to be noise."
-            configure={withPoints}
+            configure={withPointsShare}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'false alarms', format: (v) => `${Math.round(v * 100)} %` }}
             series={[{ label: 'false-alarm rate', values: d.falseAlarmRate }]}

@@ -9,7 +9,7 @@ import { Loading } from '../../../components/ui/skeleton';
 import { Table, TBody, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '../api/supervisor-api';
-import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPoints } from './common';
+import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPointsShare } from './common';
 
 const pct = (v: number | null) => (v === null ? 'n/a' : `${(v * 100).toFixed(1)} %`);
 
@@ -46,6 +46,12 @@ export function ThresholdsScreen() {
 
   const curve = report.data?.curve ?? [];
   const x = useMemo(() => curve.map((p) => p.eventZ), [curve]);
+  // Precision against recall: recall falls as eventZ rises, so the curve read backwards has recall
+  // ascending, as uPlot needs its x values (points without a recall are left out).
+  const pr = useMemo(() => {
+    const pts = [...curve].reverse().filter((p) => p.recall !== null);
+    return { recall: pts.map((p) => p.recall ?? 0), precision: pts.map((p) => p.precision), eventZ: pts.map((p) => p.eventZ) };
+  }, [curve]);
   return (
     <SupervisorPage title="Thresholds" summary="The flagging rule against each station's labelled history.">
       <TriageCaution variant="line" />
@@ -111,7 +117,7 @@ export function ThresholdsScreen() {
           <PlotFrame
             title="Precision and recall across eventZ"
             description={`Precision (solid) and recall (dashed) of the flag “likely event” on ${report.data.station}'s labelled history as eventZ goes from ${x[0] ?? 0} to ${x[x.length - 1] ?? 0}.`}
-            configure={withPoints}
+            configure={withPointsShare}
             x={{ label: 'eventZ', values: x }}
             y={{ label: 'share', format: (v) => `${Math.round(v * 100)} %` }}
             series={[
@@ -119,6 +125,16 @@ export function ThresholdsScreen() {
               { label: 'recall', values: curve.map((p) => p.recall) },
             ]}
           />
+          {pr.recall.length > 1 ? (
+            <PlotFrame
+              title="Precision–recall curve"
+              description={`Precision against recall of “likely event” on ${report.data.station}'s labelled history, one point per eventZ, from ${pr.eventZ[0] ?? 0} (left) down to ${pr.eventZ[pr.eventZ.length - 1] ?? 0} (right).`}
+              configure={withPointsShare}
+              x={{ label: 'recall', values: pr.recall, format: (v) => `${Math.round(v * 100)} %` }}
+              y={{ label: 'precision', format: (v) => `${Math.round(v * 100)} %` }}
+              series={[{ label: 'precision at that recall', values: pr.precision }]}
+            />
+          ) : null}
           <Section title="Re-score a period">
             <form
               className="flex flex-wrap items-end gap-3"
