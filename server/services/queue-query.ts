@@ -1,7 +1,7 @@
 import { and, asc, count, desc, eq, gt, gte, inArray, isNull, lt, lte, or, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import { itemStates, itemStateSchema, type ItemState } from '../../shared/schemas/item-states';
-import type { QueuePage, QueueQuery, QueueRow, StateCounts } from '../../shared/schemas/queue';
+import { compareQueueRows, type QueuePage, type QueueQuery, type QueueRow, type StateCounts } from '../../shared/schemas/queue';
 import type { Database } from '../db/client';
 import { queueItems } from '../db/schema/queue-items';
 import { stations } from '../db/schema/stations';
@@ -82,25 +82,34 @@ function baseConditions(q: QueueQuery, scope: 'all' | readonly number[]): SQL[] 
  */
 export async function listQueue(db: Database, q: QueueQuery, scope: 'all' | readonly number[]): Promise<QueuePage> {
   const base = baseConditions(q, scope);
-  const states: ItemState[] = q.state && q.state.length > 0 ? q.state : [...itemStates];
-  const where: SQL[] = [...base];
-  if (q.state && q.state.length > 0) where.push(inArray(queueItems.state, q.state));
+  const states: ItemState[] = q.state && q.state.length > 0 ? [...new Set(q.state)] : [...itemStates];
+  const keyset: SQL[] = [];
   if (q.cursor) {
     const cur = decodeCursor(q.sort, q.cursor);
     const after =
       typeof cur.v === 'number'
         ? or(lt(queueItems.score, cur.v), and(eq(queueItems.score, cur.v), lt(queueItems.id, cur.id)))
         : or(gt(queueItems.createdAt, cur.v), and(eq(queueItems.createdAt, cur.v), gt(queueItems.id, cur.id)));
-    if (after) where.push(after);
+    if (after) keyset.push(after);
   }
   const order = q.sort === 'score' ? [desc(queueItems.score), desc(queueItems.id)] : [asc(queueItems.createdAt), asc(queueItems.id)];
-  const records = await selectQueueRows(db)
-    .where(and(...where))
-    .orderBy(...order)
-    .limit(q.limit + 1);
-  const items = records.slice(0, q.limit).map(presentQueueRow);
+  // One query per state, merged here: with `state = ?` each reads the (state, score, id) or
+  // (state, created_at, id) index in order and stops after limit+1 rows, where `state IN (...)`
+  // would sort every matching row (EXPLAIN: "Using filesort") — at a million rows the difference
+  // is a few hundred index entries against a sort of most of the table.
+  const perState = await Promise.all(
+    states.map((state) =>
+      selectQueueRows(db)
+        .where(and(...base, eq(queueItems.state, state), ...keyset))
+        .orderBy(...order)
+        .limit(q.limit + 1),
+    ),
+  );
+  const cmp = compareQueueRows(q.sort);
+  const merged = perState.flat().map(presentQueueRow).sort(cmp);
+  const items = merged.slice(0, q.limit);
   const last = items[items.length - 1];
-  const nextCursor = records.length > q.limit && last ? encodeCursor(q.sort, last) : null;
+  const nextCursor = merged.length > q.limit && last ? encodeCursor(q.sort, last) : null;
   const counts = await countByState(db, base, q.station !== undefined && q.station.length > 0);
   const total = states.reduce((sum, s) => sum + counts[s], 0);
   return { items, nextCursor, counts, total };

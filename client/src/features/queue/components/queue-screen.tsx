@@ -129,7 +129,7 @@ export function QueueScreen() {
   }, [rows, list]);
 
   const topIndex = firstVisible?.index ?? 0;
-  const newAbove = rows.slice(0, topIndex).filter((r) => liveArrivals.has(r.id)).length;
+  const newAbove = liveArrivals.size() === 0 ? 0 : rows.slice(0, topIndex).filter((r) => liveArrivals.has(r.id)).length;
 
   const select = useCallback(
     (i: number) => {
