@@ -59,7 +59,7 @@ const VIEWS: Record<string, string> = {
   'label=none': 'state=&label=none&limit=100',
   'scoreMin=8': 'state=new,returned,in review&scoreMin=8&limit=100',
   'one week (from/to)': 'state=new,returned,in review&from=2026-03-01T00:00:00Z&to=2026-03-08T00:00:00Z&limit=100',
-  'station+flag+week': 'state=new,returned,in review&station=KV02&flag=needs eyes&from=2026-03-01T00:00:00Z&to=2026-04-01T00:00:00Z&limit=100',
+  'station+flag+month': 'state=new,returned,in review&station=KV02&flag=needs eyes&from=2026-03-01T00:00:00Z&to=2026-04-01T00:00:00Z&limit=100',
   'state=labelled, age order': 'state=labelled&sort=age&limit=100',
 };
 
