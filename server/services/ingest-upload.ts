@@ -20,6 +20,7 @@ import { isDatabaseDown } from '../middleware/error-handler';
 import { loadQueueRow } from '../presenters/queue-item';
 import type { AuthUser, IngestPrincipal } from '../middleware/auth';
 import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { onItemsCreated } from './candidate-events';
 import { stationBaseline } from './station-baseline';
 import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from './station-registry';
 
@@ -424,6 +425,9 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
     return { uploadId: up.id, created };
   });
   deps.notify();
+  // Issue 7: copy the new items' first triggers and group them into candidate events (after the
+  // commit; a failure here is logged and never undoes the upload).
+  await onItemsCreated({ db: deps.db, notify: deps.notify }, result.created.map((c) => c.itemId)).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: candidate-event grouping failed'));
   return {
     filename,
     status: 'created',
