@@ -49,7 +49,7 @@ const actorOf = (user: AuthUser, req: Request): Actor => ({ userId: user.id, lab
 export function stationsRouter(ctx: AppContext): Router {
   const db = ctx.database.db;
   const router = Router();
-  const xmlUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_STATIONXML_BYTES, files: 1, fields: 4, fieldSize: 1024 } }).single('file');
+  const xmlUpload = multer({ storage: multer.memoryStorage(), defParamCharset: 'utf8', limits: { fileSize: MAX_STATIONXML_BYTES, files: 1, fields: 4, fieldSize: 1024 } }).single('file');
 
   const readXml = (req: Request, res: Parameters<typeof xmlUpload>[1]) =>
     new Promise<string>((resolve, reject) => {

@@ -102,6 +102,8 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
   // engine, which refuses it at once (multer's own limit error waits for the whole body).
   const upload = multer({
     storage: earlyRefusalStorage(maxBytes, maxFiles),
+    // Browsers and curl send UTF-8 file names without a charset parameter (busboy assumes latin1).
+    defParamCharset: 'utf8',
     limits: { fileSize: maxBytes, files: maxFiles + 1, fields: 5, fieldSize: 1024, parts: maxFiles + 6, headerPairs: 200 },
   }).any();
 

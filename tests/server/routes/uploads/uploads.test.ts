@@ -161,9 +161,10 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     const samples = wave(4000, 2);
     const start = Date.UTC(2026, 2, 14, 10, 0, 0) / 1000;
     const csv = ['t_seconds,counts', ...Array.from(samples, (v, i) => `${(start + i / 100).toFixed(2)},${v}`)].join('\n');
-    const ok = await post(operator).field('streamId', 'XX.KV01.00.HHZ').attach('files', Buffer.from(csv), 'kv01.csv');
+    const ok = await post(operator).field('streamId', 'XX.KV01.00.HHZ').attach('files', Buffer.from(csv), 'kv01-nördlich.csv');
     expect(ok.status).toBe(201);
     const out = uploadResponseSchema.parse(ok.body).files[0];
+    expect(out?.filename).toBe('kv01-nördlich.csv');
     expect(out?.items?.[0]?.channels).toEqual(['XX.KV01.00.HHZ']);
     const other = ['t_seconds,counts', ...Array.from(wave(4000, 5), (v, i) => `${(start + i / 100).toFixed(2)},${v}`)].join('\n');
     const bad = await post(operator).attach('files', Buffer.from(other), 'no-stream.csv');
