@@ -145,4 +145,35 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     expect(queueA11y, JSON.stringify(queueA11y, null, 1)).toEqual([]);
     await screenshot(pageB, 'analyst-queue-after-label');
   }, 90_000);
+
+  it('rows arriving above keep the analyst\'s place and are counted as "N new above"', async () => {
+    const db = server.ctx.database.db;
+    for (let i = 0; i < 80; i++) await createItem(db, { station: 'KV02', score: -10 - i, flag: 'likely noise' });
+    const page = await openAs(ben, '/queue?sort=score');
+    await page.waitForSelector('[data-connection="live"]');
+    await page.waitForFunction(() => document.querySelectorAll('tr[data-item-id]').length > 20);
+    const topRow = () =>
+      page.evaluate(`(() => {
+        const el = document.querySelector('[aria-label="Queue items"]');
+        const head = el.querySelector('thead').getBoundingClientRect().bottom;
+        const row = [...el.querySelectorAll('tr[data-item-id]')].find((r) => r.getBoundingClientRect().bottom > head + 4);
+        return row ? { id: row.getAttribute('data-item-id'), offset: row.getBoundingClientRect().top - head } : null;
+      })()`);
+    await page.evaluate(`document.querySelector('[aria-label="Queue items"]').scrollTop = 40 * 32`);
+    await page.waitForTimeout(200);
+    const before = (await topRow()) as { id: string; offset: number } | null;
+    expect(before).not.toBeNull();
+    const fresh: number[] = [];
+    for (let i = 0; i < 3; i++) fresh.push(await createItem(db, { station: 'KV01', score: 200 + i, flag: 'likely event' }));
+    server.ctx.hub.notify();
+    await page.waitForSelector('button:has-text("3 new above")', { timeout: 2000 });
+    const after = (await topRow()) as { id: string; offset: number } | null;
+    expect(after?.id).toBe(before?.id);
+    expect(Math.abs((after?.offset ?? 0) - (before?.offset ?? 0))).toBeLessThanOrEqual(2);
+    await screenshot(page, 'analyst-queue-new-above');
+    // G goes to the top, where the new rows are: the first is selected (and so seen), the others stay marked.
+    await page.keyboard.press('g');
+    await page.waitForSelector(`tr[aria-current="true"][data-item-id="${fresh[2]}"]`);
+    for (const id of fresh.slice(0, 2)) await page.waitForSelector(`tr[data-item-id="${id}"] [data-arrival="new"]`);
+  }, 60_000);
 });
