@@ -135,6 +135,14 @@ describe('operator: upload two files, see results, open the station page (browse
     await channelsTable.getByText('XX.KV01.00.HNZ', { exact: true }).waitFor();
     await page.getByRole('button', { name: 'Remove channel XX.KV01.00.HNZ' }).click();
     await channelsTable.getByText('XX.KV01.00.HNZ', { exact: true }).waitFor({ state: 'detached' });
+    // Profile editor: a band edge at 0.45·fs is refused with the field's message; a valid change saves.
+    const highTo = page.getByLabel('High band to');
+    await highTo.fill('45');
+    await highTo.blur();
+    await page.getByText(/must be below 0\.45·fs = 45 Hz of XX\.KV01\.00\.HH[ENZ] \(100 Hz\)/).waitFor();
+    await highTo.fill('12');
+    await page.getByRole('button', { name: 'Save profile' }).click();
+    await page.getByText('Profile saved').waitFor();
     // Tokens: create one (shown once, with a copy button), see it listed, revoke it.
     await page.getByLabel('New token: what is it for?').fill('acquisition PC');
     await page.getByRole('button', { name: 'Create token' }).click();
