@@ -146,7 +146,7 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await screenshot(pageB, 'analyst-queue-after-label');
   }, 90_000);
 
-  it('rows arriving above keep the analyst\'s place and are counted as "N new above"', async () => {
+  it('rows arriving above keep the analyst\'s place and are counted as "N just in above"', async () => {
     const db = server.ctx.database.db;
     for (let i = 0; i < 80; i++) await createItem(db, { station: 'KV02', score: -10 - i, flag: 'likely noise' });
     const page = await openAs(ben, '/queue?sort=score');
@@ -166,7 +166,7 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     const fresh: number[] = [];
     for (let i = 0; i < 3; i++) fresh.push(await createItem(db, { station: 'KV01', score: 200 + i, flag: 'likely event' }));
     server.ctx.hub.notify();
-    await page.waitForSelector('button:has-text("3 new above")', { timeout: 2000 });
+    await page.waitForSelector('button:has-text("3 just in above")', { timeout: 2000 });
     const after = (await topRow()) as { id: string; offset: number } | null;
     expect(after?.id).toBe(before?.id);
     expect(Math.abs((after?.offset ?? 0) - (before?.offset ?? 0))).toBeLessThanOrEqual(2);

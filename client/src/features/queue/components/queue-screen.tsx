@@ -75,8 +75,8 @@ export function QueueScreen() {
         header: () => <span className="sr-only">Arrived just now</span>,
         cell: (c) =>
           liveArrivals.has(c.row.original.id) ? (
-            <span data-arrival="new" className="rounded-xs border border-accent px-1 text-xs font-semibold text-accent-ink" title="Arrived while this page was open">
-              new
+            <span data-arrival="new" className="rounded-xs border border-accent px-1 text-xs font-semibold whitespace-nowrap text-accent-ink" title="Arrived while this page was open; marked until you select it">
+              just in
             </span>
           ) : null,
       }),
@@ -193,18 +193,20 @@ export function QueueScreen() {
       <TriageCaution variant="line" />
       <QueueFilterBar filters={filters} setFilters={setFilters} setStateParam={setStateParam} counts={counts} />
       <div className="relative flex min-h-0 flex-1 flex-col">
-        {newAbove > 0 ? (
-          <button
-            type="button"
-            onClick={() => {
-              scrollRef.current?.scrollTo({ top: 0 });
-              select(0);
-            }}
-            className="absolute top-9 left-1/2 z-[2] -translate-x-1/2 rounded-full border border-accent bg-surface px-3 py-0.5 text-sm font-medium text-accent-ink shadow"
-          >
-            ↑ {newAbove} new above <Kbd>G</Kbd>
-          </button>
-        ) : null}
+        <p className="h-6 text-sm" aria-live="polite">
+          {newAbove > 0 ? (
+            <button
+              type="button"
+              onClick={() => {
+                scrollRef.current?.scrollTo({ top: 0 });
+                select(0);
+              }}
+              className="rounded-full border border-accent bg-surface px-3 py-0.5 font-medium text-accent-ink"
+            >
+              ↑ {newAbove} just in above <Kbd>G</Kbd>
+            </button>
+          ) : null}
+        </p>
         {list.isPending ? (
           <Loading label="Loading the queue…" />
         ) : list.isError ? (
@@ -291,10 +293,10 @@ function QueueFilterBar({ filters, setFilters, setStateParam, counts }: FilterBa
   const waiting = counts ? workingStates.reduce((n, s) => n + counts[s], 0) : undefined;
   return (
     <form className="flex flex-wrap items-end gap-3" aria-label="Queue filters" onSubmit={(e) => e.preventDefault()}>
-      <label className="flex w-56 flex-col gap-1 text-sm font-medium">
+      <label className="flex w-72 flex-col gap-1 text-sm font-medium">
         State
         <Select value={stateChoice(filters)} onChange={(e) => setStateParam(e.target.value)} name="state">
-          <option value="">Waiting: new, returned, in review{waiting === undefined ? '' : ` (${waiting})`}</option>
+          <option value="">Open: new, returned, in review{waiting === undefined ? '' : ` (${waiting})`}</option>
           {itemStates.map((s) => (
             <option key={s} value={s}>
               {s}
@@ -304,11 +306,11 @@ function QueueFilterBar({ filters, setFilters, setStateParam, counts }: FilterBa
           <option value="all">Every state</option>
         </Select>
       </label>
-      <label className="flex w-36 flex-col gap-1 text-sm font-medium">
+      <label className="flex w-44 flex-col gap-1 text-sm font-medium">
         Station
         <Input
           value={station}
-          placeholder="KV01,KV04"
+          placeholder="any (e.g. KV01,KV04)"
           onChange={(e) => setStation(e.target.value.toUpperCase())}
           onBlur={() => setFilters({ station: station.split(',').map((s) => s.trim()).filter(Boolean) })}
           onKeyDown={(e) => {
