@@ -38,7 +38,7 @@ function MessageView({ id }: { id: number }) {
       </dl>
       {m.text !== null ? (
         <pre className="overflow-auto rounded-sm border border-line bg-raised p-3 font-mono text-sm whitespace-pre-wrap">
-          {linkify(m.text).map((p, i) => (p.href ? <a key={i} href={p.href}>{p.text}</a> : <Fragment key={i}>{p.text}</Fragment>))}
+          {linkify(m.text).map((p, i) => (p.href ? <a key={i} href={p.href} className="underline underline-offset-2">{p.text}</a> : <Fragment key={i}>{p.text}</Fragment>))}
         </pre>
       ) : null}
       {m.html !== null ? (

@@ -86,8 +86,8 @@ export function UsersTable({ users, stations, selfId, onEditAccess, onSetActive,
           const u = c.row.original;
           return (
             <div className="flex justify-end gap-1">
-              <Button size="sm" onClick={() => onEditAccess(u)} aria-label={`Roles and stations of ${u.displayName}`}>
-                Access…
+              <Button size="sm" onClick={() => onEditAccess(u)} aria-label={`Access of ${u.displayName}`} title="Roles and stations">
+                Access
               </Button>
               {u.active ? (
                 <Button size="sm" variant="danger" disabled={busy || u.id === selfId} onClick={() => onSetActive(u, false)} aria-label={`Deactivate ${u.displayName}`}>

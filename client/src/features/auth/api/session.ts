@@ -28,15 +28,21 @@ export function useMe() {
   return useQuery(meQueryOptions());
 }
 
+/**
+ * After signing in or out: drops every cached answer of the previous person except the session
+ * query itself (whose observer must stay attached), then stores the new session.
+ */
+async function switchPerson(qc: ReturnType<typeof useQueryClient>, me: Me | null | 'refetch'): Promise<void> {
+  qc.removeQueries({ predicate: (q) => q.queryKey[0] !== meKey[0] || q.queryKey[1] !== meKey[1] });
+  qc.setQueryData(meKey, me === 'refetch' ? await fetchMe() : me);
+}
+
 /** POST /api/auth/sign-in; on success the session query is refetched. */
 export function useSignIn() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: { email: string; password: string }) => apiRequest(noContent, '/api/auth/sign-in', { method: 'POST', body: input, allowUnauthenticated: true }),
-    onSuccess: async () => {
-      qc.clear();
-      await qc.fetchQuery(meQueryOptions());
-    },
+    onSuccess: () => switchPerson(qc, 'refetch'),
   });
 }
 
@@ -45,10 +51,7 @@ export function useSignOut() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: () => apiRequest(noContent, '/api/auth/sign-out', { method: 'POST', allowUnauthenticated: true }),
-    onSettled: () => {
-      qc.clear();
-      qc.setQueryData(meKey, null);
-    },
+    onSettled: () => switchPerson(qc, null),
   });
 }
 
@@ -81,9 +84,6 @@ export function useSetPassword(kind: 'reset' | 'invitation') {
   return useMutation({
     mutationFn: (input: { token: string; password: string; displayName?: string }) =>
       apiRequest(noContent, kind === 'reset' ? '/api/auth/reset-password' : '/api/auth/invitations/accept', { method: 'POST', body: input, allowUnauthenticated: true }),
-    onSuccess: async () => {
-      qc.clear();
-      await qc.fetchQuery(meQueryOptions());
-    },
+    onSuccess: () => switchPerson(qc, 'refetch'),
   });
 }
