@@ -31,7 +31,8 @@ afterAll(async () => {
 async function signIn(page: Page, email: string, password: string): Promise<void> {
   // One browser profile for the file: start each sign-in signed out.
   await browser.context.clearCookies();
-  await page.goto(`${server.url}/sign-in`, { waitUntil: 'networkidle' });
+  await page.goto(`${server.url}/sign-in`, { waitUntil: 'domcontentloaded' });
+  await page.getByRole('heading', { name: 'Sign in to Seisift' }).waitFor({ timeout: 10_000 });
   await page.getByLabel('E-mail').fill(email);
   await page.getByLabel('Password', { exact: true }).fill(password);
   await page.getByRole('button', { name: 'Sign in' }).click();
