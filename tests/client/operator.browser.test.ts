@@ -62,13 +62,13 @@ describe('operator: upload two files, see results, open the station page (browse
   it('signs in, uploads with progress, lists results, shows the PSD plot', async () => {
     const page = await browser.context.newPage();
     const problems = watch(page);
-    await page.goto(`${server.url}/`);
-    // The client has no sign-in screen in this build: sign in through the API from the page (same origin).
-    const status = await page.evaluate(async (password) => {
-      const res = await fetch('/api/auth/sign-in', { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ email: 'operator@kestrel.example', password }) });
-      return res.status;
-    }, demoPassword);
-    expect(status).toBe(200);
+    // Sign in through the sign-in page.
+    await page.goto(`${server.url}/sign-in`);
+    await page.getByLabel('E-mail').fill('operator@kestrel.example');
+    await page.getByLabel('Password').fill(demoPassword);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.getByText('Demo Operator').first().waitFor();
+    if (!page.url().endsWith('/upload')) await page.goto(`${server.url}/upload`);
 
     const start = Date.UTC(2026, 2, 14, 9, 26, 0) * 1000;
     const parts = ['HHZ', 'HHN', 'HHE'].map((channel, k) =>
@@ -79,7 +79,6 @@ describe('operator: upload two files, see results, open the station page (browse
       encodeMiniSeed3({ network: 'XX', station: 'KV01', location: '00', channel: 'HHZ', sampleRateHz: 100, startTimeUs: start + 3_600_000_000, samples: demoCounts(9000, 99, 100000) }, { encoding: 'steim2' }),
     );
 
-    await page.goto(`${server.url}/upload`);
     await page.getByRole('heading', { name: 'Upload waveform windows' }).waitFor();
     await page.locator('input[type=file]').setInputFiles([
       { name: 'XX.KV01.20260314T0926.mseed', mimeType: 'application/vnd.fdsn.mseed', buffer: file1 },
