@@ -6,8 +6,8 @@ import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
 import { preprocessTrace } from './preprocess';
 import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
-import { scoreWindow, type StationBaseline, type WindowScore } from './score';
-import { spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
+import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
+import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
 import { classicStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from './sta-lta';
 import { bandEnergy, sosfiltInPlace, sosfiltZeroPhase } from './sosfilt';
 
@@ -90,6 +90,15 @@ export interface ChannelResult {
   psd: { freqs: number[]; values: Array<number | null>; units: string; nperseg: number; segments: number };
   dominantFrequency: number | null;
   spectralCentroid: number | null;
+  /**
+   * With a trigger: where the triggered part rises above the pre-trigger noise (Welch PSD of the
+   * pre-processed, band-rejected trace over the signal part ÷ the same over the noise part; see
+   * `planSignalSegments`, `snrSpectrum`). Null without a trigger or when the parts are too short
+   * (`signalSpectrumNote` says why); the score then uses the whole-window spectrum.
+   */
+  signalSpectrum: SignalSpectrumFeatures | null;
+  /** Why `signalSpectrum` is null although there is a trigger; null otherwise. */
+  signalSpectrumNote: string | null;
   /** With a sensitivity: acceleration PSD, dB rel 1 (m/s²)²/Hz, and where it sits against Peterson's models. */
   noiseModels: {
     accelerationDb: Array<number | null>;
@@ -118,7 +127,8 @@ const MIN_SAMPLES = 16;
 /**
  * Analyse one window: per channel QC → pre-process (demean, linear detrend, Tukey taper) → optional
  * sensitivity → band-reject → low/high Butterworth band-passes (causal) → band energies and ratio →
- * STA/LTA on the high band → SNR → Welch PSD, dominant frequency, centroid → noise-model position
+ * STA/LTA on the high band → SNR → Welch PSD, dominant frequency, centroid → with a trigger, the
+ * signal-to-noise spectrum of the triggered part → noise-model position
  * (with a sensitivity); then `scoreWindow` over all channels.
  * Pure: the input samples are not mutated.
  * @throws AnalysisError for no channels or a channel under 16 samples; BandError for a refused band;
@@ -242,6 +252,36 @@ function analyzeChannel(
     } else statsValues = rej;
   }
   const stats = spectralStats(psd.freqs, statsValues, profile.psd.fminStats, excluded);
+
+  // Signal spectrum: the first trigger's part of the pre-processed, band-rejected trace against the
+  // noise before it. Units cancel in the ratio (so does a flat sensitivity or a response).
+  let signalSpectrum: SignalSpectrumFeatures | null = null;
+  let signalSpectrumNote: string | null = null;
+  const first = trig[0];
+  if (first) {
+    const planned = planSignalSegments(n, fs, first, {
+      ...profile.signalSpectrum,
+      guardSamples: Math.round(sl.staS * fs),
+      taperSamples: Math.floor((profile.preprocess.taperAlpha * (n - 1)) / 2) + 1,
+      maxNperseg: profile.psd.nperseg,
+    });
+    if ('note' in planned) signalSpectrumNote = planned.note;
+    else {
+      const p = planned.plan;
+      const sp = snrSpectrum(profile.bandReject.length > 0 ? rejectedCopy : pre, fs, p, profile.psd.fminStats, 0.45 * fs, excluded, profile.signalSpectrum.minSnr);
+      signalSpectrum = {
+        peakFrequency: sp.peakFrequency,
+        peakSnr: sp.peakSnr,
+        centroid: sp.centroid,
+        fromS: p.signalFrom / fs,
+        toS: p.signalTo / fs,
+        noiseFromS: p.noiseFrom / fs,
+        noiseToS: p.noiseTo / fs,
+        nperseg: p.nperseg,
+        minSnr: profile.signalSpectrum.minSnr,
+      };
+    }
+  }
   const physical = response !== undefined;
   let noiseModels: ChannelResult['noiseModels'] = null;
   if (physical) {
@@ -281,6 +321,8 @@ function analyzeChannel(
     },
     dominantFrequency: stats.dominantFrequency,
     spectralCentroid: stats.spectralCentroid,
+    signalSpectrum,
+    signalSpectrumNote,
     noiseModels,
   };
   if (opts.display) {

@@ -11,12 +11,20 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
  *    tiny change into a huge z.
  * 3. Evidence: `ratioHigh` when z(log10 ratio) ≥ eventZ; `staHigh` when the STA/LTA peak passed
  *    the trigger-on level and z(peak) ≥ eventZ; each is "ordinary" below noiseZ.
- * 4. Where the spectrum peaks: the dominant frequency must lie inside the high band, and the
- *    centroid must not lie above `centroidMaxFactor` (1.5) × the band's upper edge. Causal filtering
- *    lets loud energy outside the band (a 15–25 Hz machinery burst) leak into it, so a high ratio with
- *    the spectrum peaking elsewhere is never a likely event on its own. The centroid gets a margin
- *    because a white instrument-noise floor up to fs/2 pulls a real arrival's centroid above the band.
- * 5. Flag: `likely event` when ratioHigh and staHigh and the spectrum peaks in the high band;
+ * 4. Where the spectrum peaks. Causal filtering lets loud energy outside the band (a 15–25 Hz
+ *    machinery burst) leak into it, so a high ratio with the spectrum peaking elsewhere is never a
+ *    likely event on its own.
+ *    a. With a trigger and a signal spectrum (the triggered part's PSD over the pre-trigger noise's,
+ *       see `snrSpectrum`): the signal peak frequency must lie in the high band widened by
+ *       `signalPeakTolerance` (fmin/(1 + t) … fmax·(1 + t)), there must be such a peak (some bin
+ *       with the signal ≥ minSnr × the noise), and the excess-weighted centroid must not lie above `centroidMaxFactor` ×
+ *       the band's upper edge. A stationary microseism or machinery line is in both parts and drops
+ *       out of the ratio; a leaking 20 Hz burst has its excess at 20 Hz.
+ *    b. Otherwise (no trigger, or too little noise before it): the whole-window rule — the dominant
+ *       frequency inside the high band and the centroid at most `centroidMaxFactor` (1.5) × the
+ *       upper edge (a margin, because a white instrument-noise floor up to fs/2 pulls a real
+ *       arrival's centroid above the band).
+ * 5. Flag: `likely event` when ratioHigh and staHigh and the spectrum peaks in the high band (4a or 4b);
  *    `likely noise` when both z are below noiseZ and there is no trigger; `needs eyes` otherwise,
  *    and always when the lead channel has a QC error (dead, clipped, wrong rate).
  * 6. Score = ½·clamp(z ratio) + ½·clamp(z peak), each clamped to [−10, 50], halved when the spectrum
@@ -50,6 +58,28 @@ export const NETWORK_DEFAULT_BASELINE: StationBaseline = {
   count: 0,
 };
 
+/** Where a triggered part of a channel rises above the noise before the trigger (the score's input). */
+export interface SignalSpectrumFeatures {
+  /**
+   * Signal peak frequency: the bin of the largest excess PSD (signal − noise) among the bins where
+   * the signal PSD is ≥ minSnr × the noise PSD, Hz; null when no bin is (see `snrSpectrum`).
+   */
+  peakFrequency: number | null;
+  /** Signal-to-noise PSD ratio at that bin (power, dimensionless). */
+  peakSnr: number | null;
+  /** Excess-weighted centroid over the same bins, Hz. */
+  centroid: number | null;
+  /** The ratio a bin needed to be counted. */
+  minSnr: number;
+  /** Signal and noise parts, s from the first sample. */
+  fromS: number;
+  toS: number;
+  noiseFromS: number;
+  noiseToS: number;
+  /** Welch segment length of both parts, samples. */
+  nperseg: number;
+}
+
 /** The per-channel features the score reads. */
 export interface ChannelFeatures {
   id: string;
@@ -58,6 +88,10 @@ export interface ChannelFeatures {
   staLta: { peak: number; peakTime: number; triggers: ReadonlyArray<{ on: number; off: number | null }> };
   dominantFrequency: number | null;
   spectralCentroid: number | null;
+  /** Absent (older stored analyses) or null: the whole-window rule decides where the spectrum peaks. */
+  signalSpectrum?: SignalSpectrumFeatures | null;
+  /** Why there is no signal spectrum although there is a trigger. */
+  signalSpectrumNote?: string | null;
   bands: { high: { fmin: number; fmax: number } };
   qc: ReadonlyArray<{ severity: 'info' | 'warning' | 'error'; message: string; code: string }>;
 }
@@ -114,6 +148,13 @@ export function leadChannelIndex(ids: readonly string[]): number {
   return i >= 0 ? i : 0;
 }
 
+/** The signal-spectrum knobs' defaults (the profile schema's), for callers that pass older thresholds. */
+const SIGNAL_DEFAULTS = { signalPeakTolerance: 0.2 } as const;
+
+/** The thresholds the score reads; the signal-spectrum knobs may be absent (their defaults apply). */
+export type ScoreThresholds = Omit<ProcessingProfile['thresholds'], keyof typeof SIGNAL_DEFAULTS> &
+  Partial<Pick<ProcessingProfile['thresholds'], keyof typeof SIGNAL_DEFAULTS>>;
+
 /**
  * Score a window: a pure function of the channels' features, the station's baseline (or null) and the
  * profile's thresholds; see the module comment for the rule. Throws when there is no channel.
@@ -121,10 +162,10 @@ export function leadChannelIndex(ids: readonly string[]): number {
 export function scoreWindow(
   channels: readonly ChannelFeatures[],
   baseline: StationBaseline | null,
-  profile: Pick<ProcessingProfile, 'thresholds' | 'staLta'>,
+  profile: { thresholds: ScoreThresholds; staLta: ProcessingProfile['staLta'] },
 ): WindowScore {
   if (channels.length === 0) throw new RangeError('a window needs at least one channel to score');
-  const th = profile.thresholds;
+  const th = { ...SIGNAL_DEFAULTS, ...profile.thresholds };
   const useStation = baseline !== null && baseline.count >= th.minBaselineWindows;
   const base = useStation ? baseline : NETWORK_DEFAULT_BASELINE;
   const baseWords = useStation ? "this station's noise" : `the network default (station has ${baseline?.count ?? 0} of ${th.minBaselineWindows} noise windows)`;
@@ -147,7 +188,21 @@ export function scoreWindow(
   const hb = lead.bands.high;
   const dominantInBand = lead.dominantFrequency !== null && lead.dominantFrequency >= hb.fmin && lead.dominantFrequency <= hb.fmax;
   const centroidOk = lead.spectralCentroid !== null && lead.spectralCentroid <= th.centroidMaxFactor * hb.fmax;
-  const spectrumInBand = dominantInBand && centroidOk;
+  // With a trigger, where the triggered part rises above the noise before it decides (rule 4a).
+  const sig = triggered ? (lead.signalSpectrum ?? null) : null;
+  const tolLo = hb.fmin / (1 + th.signalPeakTolerance);
+  const tolHi = hb.fmax * (1 + th.signalPeakTolerance);
+  const sigStrong = sig !== null && sig.peakFrequency !== null;
+  const sigPeakIn = sig !== null && sig.peakFrequency !== null && sig.peakFrequency >= tolLo && sig.peakFrequency <= tolHi;
+  const sigCentroidOk = sig !== null && sig.centroid !== null && sig.centroid <= th.centroidMaxFactor * hb.fmax;
+  const spectrumInBand = sig !== null ? sigPeakIn && sigStrong && sigCentroidOk : dominantInBand && centroidOk;
+  const sigWords = sig === null
+    ? ''
+    : sig.peakFrequency === null
+      ? `the triggered part (${f1(sig.fromS)}–${f1(sig.toS)} s) is nowhere ${sig.minSnr} × the pre-trigger noise (${f1(sig.noiseFromS)}–${f1(sig.noiseToS)} s)`
+      : `signal peaks at ${fmtHz(sig.peakFrequency)} over the pre-trigger noise (${fmtDb(sig.peakSnr)} above it there, centroid of the excess ${fmtHz(sig.centroid)}; signal ${f1(sig.fromS)}–${f1(sig.toS)} s against noise ${f1(sig.noiseFromS)}–${f1(sig.noiseToS)} s)`;
+  if (sig !== null) reasons.push(sigWords);
+  else if (triggered && lead.signalSpectrumNote) reasons.push(`no signal spectrum: ${lead.signalSpectrumNote}; the whole-window spectrum decides`);
   const ratioHigh = zr !== null && zr >= th.eventZ;
   const staHigh = triggered && zp >= th.eventZ;
   const quiet = (zr === null || zr < th.noiseZ) && zp < th.noiseZ && !triggered;
@@ -163,7 +218,15 @@ export function scoreWindow(
     flag = 'likely noise';
   } else {
     flag = 'needs eyes';
-    if ((ratioHigh || staHigh) && !spectrumInBand) {
+    if ((ratioHigh || staHigh) && !spectrumInBand && sig !== null) {
+      reasons.push(
+        !sigStrong
+          ? 'the triggered part does not stand out from the pre-trigger noise in any frequency bin: not an event on the ratio alone'
+          : !sigPeakIn
+          ? `signal spectrum peaks outside the high band ${hb.fmin}–${hb.fmax} Hz (at ${fmtHz(sig.peakFrequency)}, accepted ${f1(tolLo)}–${f1(tolHi)} Hz): energy may be leaking in from outside the band, not an event on the ratio alone`
+            : `the centroid of the signal's excess over the noise, ${fmtHz(sig.centroid)}, lies above ${th.centroidMaxFactor} × the high band's ${hb.fmax} Hz edge: much of the excess is above the band, not an event on the ratio alone`,
+      );
+    } else if ((ratioHigh || staHigh) && !spectrumInBand) {
       reasons.push(
         dominantInBand
           ? `spectral centroid ${fmtHz(lead.spectralCentroid)} lies above ${th.centroidMaxFactor} × the high band's ${hb.fmax} Hz edge (dominant ${fmtHz(lead.dominantFrequency)}): much of the energy is above the band, not an event on the ratio alone`
@@ -175,7 +238,7 @@ export function scoreWindow(
       reasons.push('evidence between ordinary noise and an event');
     }
   }
-  if (spectrumInBand && flag !== 'needs eyes') {
+  if (spectrumInBand && flag !== 'needs eyes' && sig === null) {
     reasons.push(`spectrum peaks at ${fmtHz(lead.dominantFrequency)} (centroid ${fmtHz(lead.spectralCentroid)}), in the high band ${hb.fmin}–${hb.fmax} Hz`);
   }
   for (let i = 0; i < channels.length; i++) {
@@ -190,6 +253,11 @@ export function scoreWindow(
   if (!spectrumInBand && score > 0) score /= 2;
   score = Math.round(score * 10) / 10;
   return { score, flag, reasons, leadChannel: lead.id, baseline: useStation ? 'station' : 'network default', zLog10Ratio: zr, zStaLtaPeak: zp };
+}
+
+/** A power ratio in dB (10·log10). */
+function fmtDb(r: number | null): string {
+  return r === null || !(r > 0) ? 'n/a' : `${f1(10 * Math.log10(r))} dB`;
 }
 
 function fmtHz(f: number | null): string {

@@ -192,3 +192,158 @@ export function spectrogram(x: Float64Array, sampleRateHz: number, nperseg = 256
   const freqs = Array.from({ length: bins }, (_, k) => (k * sampleRateHz) / seg);
   return { times, freqs, db, nperseg: seg, step };
 }
+
+/** Largest power of two ≤ n (n ≥ 1), e.g. 600 → 512; 0 for n < 1. */
+export function largestPowerOfTwoAtMost(n: number): number {
+  if (!(n >= 1)) return 0;
+  let p = 1;
+  while (p * 2 <= n) p *= 2;
+  return p;
+}
+
+/** Where the signal and the pre-trigger noise are taken from, sample indices [from, to) of the trace. */
+export interface SignalSegmentPlan {
+  signalFrom: number;
+  signalTo: number;
+  noiseFrom: number;
+  noiseTo: number;
+  /** Welch segment length for both parts, samples (a power of two). */
+  nperseg: number;
+}
+
+/** The knobs of the segment plan (the profile's `signalSpectrum` section, seconds). */
+export interface SignalSegmentOptions {
+  /** Signal span after trigger-on: the trigger's duration (on → off) bounded to [minS, maxS]; maxS when still on. */
+  minS: number;
+  maxS: number;
+  /** Pre-trigger noise: at most noiseMaxS, at least noiseMinS, else no plan. */
+  noiseMinS: number;
+  noiseMaxS: number;
+  /** Wanted Welch segment length, s (rounded down to a power of two of samples). */
+  segmentS: number;
+}
+
+/**
+ * Plan the signal and noise parts of a triggered trace (our rule, documented in server/dsp/README.md):
+ * - signal: [on, on + clamp(off − on, minS, maxS)) — maxS when the trigger is still on at the end —
+ *   clipped to the trace; refused when the clipped part is shorter than minS;
+ * - noise: [max(taperEnd, on − guard − noiseMaxS), on − guard) with guard = the STA window (it holds
+ *   the rise that set the trigger off) and taperEnd the first sample after the start taper (tapered
+ *   samples are not the recorded noise level); refused when shorter than noiseMinS;
+ * - Welch segment: the largest power of two ≤ min(maxNperseg, segmentS·fs, signal length, noise
+ *   length), both parts with the same one so their bins match; refused below 16 samples.
+ * Indices in samples, fs in Hz, times in s.
+ * @returns the plan, or a sentence saying why there is none (for the reasons).
+ */
+export function planSignalSegments(
+  n: number,
+  sampleRateHz: number,
+  trigger: { onIndex: number; offIndex: number | null },
+  opts: SignalSegmentOptions & { guardSamples: number; taperSamples: number; maxNperseg: number },
+): { plan: SignalSegmentPlan } | { note: string } {
+  const fs = sampleRateHz;
+  const s = (samples: number): string => `${(samples / fs).toFixed(1)} s`;
+  const minLen = Math.round(opts.minS * fs);
+  const maxLen = Math.round(opts.maxS * fs);
+  const on = trigger.onIndex;
+  const dur = trigger.offIndex === null ? maxLen : Math.min(maxLen, Math.max(minLen, trigger.offIndex - on));
+  const signalFrom = on;
+  const signalTo = Math.min(n, on + dur);
+  if (signalTo - signalFrom < minLen) {
+    return { note: `only ${s(signalTo - signalFrom)} of signal after the trigger at ${s(on)} before the window ends (at least ${opts.minS} s needed)` };
+  }
+  const noiseTo = on - opts.guardSamples;
+  const noiseFrom = Math.max(opts.taperSamples, noiseTo - Math.round(opts.noiseMaxS * fs));
+  if (noiseTo - noiseFrom < Math.round(opts.noiseMinS * fs)) {
+    return { note: `only ${s(Math.max(0, noiseTo - noiseFrom))} of untapered noise before the trigger at ${s(on)} (at least ${opts.noiseMinS} s needed)` };
+  }
+  const nperseg = largestPowerOfTwoAtMost(Math.min(opts.maxNperseg, Math.floor(opts.segmentS * fs), signalTo - signalFrom, noiseTo - noiseFrom));
+  if (nperseg < 16) return { note: `the signal and noise parts allow only ${nperseg}-sample spectra (at least 16 needed)` };
+  return { plan: { signalFrom, signalTo, noiseFrom, noiseTo, nperseg } };
+}
+
+/** The signal-to-noise spectral ratio of a triggered trace and where it peaks. */
+export interface SnrSpectrum {
+  freqs: Float64Array;
+  /** Welch PSD of the signal part and of the noise part, (units of x)²/Hz. */
+  signalPsd: Float64Array;
+  noisePsd: Float64Array;
+  /** Segments averaged in each part. */
+  signalSegments: number;
+  noiseSegments: number;
+  /** signalPsd/noisePsd per bin (dimensionless power ratio); NaN where the noise PSD is 0. */
+  snr: Float64Array;
+  /**
+   * Frequency of the largest excess P_signal − P_noise among the counted bins (fmin ≤ f ≤ fmax,
+   * outside excluded bands, ratio ≥ minSnr), Hz; null when no bin is counted.
+   */
+  peakFrequency: number | null;
+  /** The ratio R at that bin. */
+  peakSnr: number | null;
+  /** Σ f·(P_signal − P_noise) ÷ Σ (P_signal − P_noise) over the counted bins, Hz; null when none. */
+  centroid: number | null;
+}
+
+/**
+ * Signal-to-noise spectral ratio: R_k = P_signal,k / P_noise,k, each a Welch PSD exactly as
+ * `welchPsd` (= `scipy.signal.welch(part, fs, window='hann', nperseg=nperseg, noverlap=nperseg//2,
+ * detrend='constant', scaling='density')`) of x[signalFrom, signalTo) and x[noiseFrom, noiseTo).
+ * The counted bins are those with fminHz ≤ f ≤ fmaxHz, outside `excludeBands`, noise PSD > 0 and
+ * R_k ≥ minSnr: where the triggered part clearly stands above the noise before it. Among them the
+ * peak is the bin of the largest excess power P_signal,k − P_noise,k (the signal's own spectrum with
+ * the noise removed) and the centroid is Σ f·excess ÷ Σ excess. Why the excess and not R itself:
+ * background noise falls steeply with frequency (velocity PSD ∝ f⁻² where it is flat in
+ * acceleration), so R alone peaks wherever the noise is lowest — far above a local event's energy —
+ * while a stationary microseism or machinery line, present in both parts, has R ≈ 1 and is not
+ * counted. A leaking 20 Hz burst has its excess at 20 Hz.
+ * Units: fs and f in Hz; R dimensionless (units of x cancel, so does a flat gain); PSDs (units of x)²/Hz.
+ * @throws RangeError when a part is shorter than nperseg or the indices lie outside x.
+ */
+export function snrSpectrum(
+  x: Float64Array,
+  sampleRateHz: number,
+  plan: SignalSegmentPlan,
+  fminHz: number,
+  fmaxHz: number,
+  excludeBands: ReadonlyArray<{ fmin: number; fmax: number }> = [],
+  minSnr = 2,
+): SnrSpectrum {
+  const { signalFrom, signalTo, noiseFrom, noiseTo, nperseg } = plan;
+  const inside = (a: number, b: number): boolean => Number.isInteger(a) && Number.isInteger(b) && a >= 0 && b <= x.length && b - a >= nperseg;
+  if (!inside(signalFrom, signalTo)) throw new RangeError(`SNR spectrum: signal part [${signalFrom}, ${signalTo}) must lie in the trace of ${x.length} samples and hold at least ${nperseg} samples`);
+  if (!inside(noiseFrom, noiseTo)) throw new RangeError(`SNR spectrum: noise part [${noiseFrom}, ${noiseTo}) must lie in the trace of ${x.length} samples and hold at least ${nperseg} samples`);
+  const sig = welchPsd(x.subarray(signalFrom, signalTo), sampleRateHz, nperseg);
+  const noi = welchPsd(x.subarray(noiseFrom, noiseTo), sampleRateHz, nperseg);
+  const bins = sig.freqs.length;
+  const snr = new Float64Array(bins);
+  let best = -1;
+  let bestV = -Infinity;
+  let w = 0;
+  let wf = 0;
+  for (let k = 0; k < bins; k++) {
+    const nv = noi.values[k] as number;
+    const r = nv > 0 ? (sig.values[k] as number) / nv : NaN;
+    snr[k] = r;
+    const f = sig.freqs[k] as number;
+    if (!(nv > 0) || f < fminHz || f > fmaxHz || !(r >= minSnr)) continue;
+    if (excludeBands.some((b) => f >= b.fmin && f <= b.fmax)) continue;
+    const e = (sig.values[k] as number) - nv;
+    if (e > bestV) {
+      bestV = e;
+      best = k;
+    }
+    w += e;
+    wf += e * f;
+  }
+  return {
+    freqs: sig.freqs,
+    signalPsd: sig.values,
+    noisePsd: noi.values,
+    signalSegments: sig.segments,
+    noiseSegments: noi.segments,
+    snr,
+    peakFrequency: best >= 0 ? (sig.freqs[best] as number) : null,
+    peakSnr: best >= 0 ? (snr[best] as number) : null,
+    centroid: w > 0 ? wf / w : null,
+  };
+}

@@ -116,8 +116,36 @@ export const processingProfileSchema = z.object({
        * pulled up by a white instrument-noise floor; a machinery burst above the band pulls it far up).
        */
       centroidMaxFactor: z.number().min(1).default(1.5),
+      /**
+       * With a trigger, "likely event" needs the signal peak frequency (where the triggered part
+       * rises most above the pre-trigger noise) within the high band widened by this fraction:
+       * fmin/(1 + t) … fmax·(1 + t) (0.2: 1.67–12 Hz for 2–10 Hz). The excess-weighted centroid must
+       * then lie at or below centroidMaxFactor × fmax. (No signal peak at all — the triggered part is
+       * nowhere signalSpectrum.minSnr × the noise — refuses "likely event" too.)
+       */
+      signalPeakTolerance: z.number().min(0).max(2).default(0.2),
     })
-    .default({ eventZ: 3, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5 }),
+    .default({ eventZ: 3, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5, signalPeakTolerance: 0.2 }),
+  /**
+   * The signal spectrum the score reads when there is a trigger: Welch PSD of the triggered part over
+   * that of the pre-trigger noise (see server/dsp/README.md). Absent in older profiles: defaults.
+   */
+  signalSpectrum: z
+    .object({
+      /** Signal part: from the first trigger-on for its duration, bounded to [minS, maxS], s. */
+      minS: z.number().positive().default(2),
+      maxS: z.number().positive().default(20),
+      /** Pre-trigger noise part: at most noiseMaxS, at least noiseMinS (else the whole-window rule), s. */
+      noiseMinS: z.number().positive().default(5),
+      noiseMaxS: z.number().positive().default(30),
+      /** Welch segment length wanted for both parts, s (rounded down to a power of two of samples, ≤ psd.nperseg). */
+      segmentS: z.number().positive().default(2.56),
+      /** Bins count for the signal peak and centroid only where signal PSD ≥ minSnr × noise PSD. */
+      minSnr: z.number().min(1).default(2),
+    })
+    .refine((s) => s.minS <= s.maxS, { message: 'signalSpectrum.minS must not exceed maxS' })
+    .refine((s) => s.noiseMinS <= s.noiseMaxS, { message: 'signalSpectrum.noiseMinS must not exceed noiseMaxS' })
+    .default({ minS: 2, maxS: 20, noiseMinS: 5, noiseMaxS: 30, segmentS: 2.56, minSnr: 2 }),
 });
 
 /** A parsed processing profile (all defaults filled in). */
