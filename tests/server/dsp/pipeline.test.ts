@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { BandError } from '../../../server/dsp/bands';
 import { analyzeWindow, AnalysisError } from '../../../server/dsp/pipeline';
-import { computeBaseline } from '../../../server/dsp/score';
+import { computeBaseline, scoreWindow } from '../../../server/dsp/score';
 import { responseMagnitude } from '../../../server/dsp/response';
 import { defaultProcessingProfile, processingProfileSchema } from '../../../shared/schemas/processing-profile';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema, stream, type SignalSpec } from './fixture-signal';
@@ -221,5 +221,102 @@ describe('analyzeWindow: output contract, flags and errors', () => {
     const copy = Float64Array.from(x);
     analyzeWindow([stream('XX.KV01.00.HHZ', x, 100)], defaultProcessingProfile);
     expect(maxAbsDiff(x, copy)).toBe(0);
+  });
+});
+
+const sigFixture = readFixture(
+  'signal-spectrum.json',
+  z.object({
+    cases: z.array(
+      z.object({
+        signal: signalSpecSchema,
+        onIndex: z.number().int(),
+        offIndex: z.number().int().nullable(),
+        signalFrom: z.number().int(),
+        signalTo: z.number().int(),
+        noiseFrom: z.number().int(),
+        noiseTo: z.number().int(),
+        nperseg: z.number().int(),
+        peakFrequency: z.number(),
+        centroid: z.number(),
+        wholeWindowDominant: z.number(),
+      }),
+    ),
+  }),
+);
+
+describe('signal spectrum in analyzeWindow against the same rule in scipy (fixtures/dsp/signal-spectrum.json)', () => {
+  // Constructed test signals (0.2 Hz "microseism" sine ×30 + white noise + a windowed burst), not reference data.
+  for (const c of sigFixture.cases) {
+    it(`${c.signal.n} samples at ${c.signal.fs} Hz, burst at ${c.signal.bursts?.[0]?.[3]} Hz: trigger, parts, segment, peak and centroid`, () => {
+      const fs = c.signal.fs;
+      const ch = analyzeWindow([stream('XX.KV01.00.HHZ', makeSignal(c.signal), fs)], defaultProcessingProfile).channels[0];
+      // Source: scipy.signal detrend/tukey/butter/sosfilt/welch + numpy STA/LTA, scipy 1.10.
+      expect(ch?.staLta.triggers[0]).toEqual({ on: c.onIndex / fs, off: c.offIndex === null ? null : c.offIndex / fs });
+      expect(ch?.dominantFrequency).toBeCloseTo(c.wholeWindowDominant, 9);
+      const ss = ch?.signalSpectrum;
+      expect(ss).toMatchObject({ fromS: c.signalFrom / fs, toS: c.signalTo / fs, noiseFromS: c.noiseFrom / fs, noiseToS: c.noiseTo / fs, nperseg: c.nperseg, minSnr: 2 });
+      expect(ss?.peakFrequency).toBeCloseTo(c.peakFrequency, 9);
+      expect(ss?.centroid as number).toBeCloseTo(c.centroid, 6);
+      expect(ch?.signalSpectrumNote).toBeNull();
+    });
+  }
+});
+
+describe('the score with the signal spectrum (constructed test signals: a large 0.2 Hz microseism, white noise, a windowed burst)', () => {
+  const fs = 100;
+  const micro = (seed: number, phase: number): SignalSpec => ({ n: 12000, fs, sines: [[30, 0.2, phase]], noise: 1, seed });
+  // The station's own noise windows carry the microseism too, as a real station's would.
+  const noiseWindows = Array.from({ length: 25 }, (_, i) => analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal(micro(500 + i, 0.7 * i)), fs)], defaultProcessingProfile).channels[0]);
+  const baseline = computeBaseline(noiseWindows.map((c) => ({ log10Ratio: c?.log10Ratio ?? null, staLtaPeak: c?.staLta.peak ?? null })));
+
+  it('a 5 Hz burst at 60 s under a microseism that dominates the whole-window PSD: likely event, the signal peak named', () => {
+    const res = analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal({ ...micro(71, 0), bursts: [[60, 6, 5, 5]] }), fs)], defaultProcessingProfile, { baseline });
+    const ch = res.channels[0];
+    if (!ch) throw new Error('no channel');
+    expect(res.baseline).toBe('station');
+    // the whole-window spectrum peaks at the microseism (bin 0.195 Hz = 2·100/1024) …
+    expect(ch.dominantFrequency).toBeCloseTo(0.1953125, 9);
+    // … so the whole-window rule alone would not call it an event:
+    expect(scoreWindow([{ ...ch, signalSpectrum: null }], baseline, defaultProcessingProfile).flag).toBe('needs eyes');
+    // the excess over the pre-trigger noise is at the burst's 5 Hz (bin 5.08 Hz of a 256-sample segment)
+    expect(Math.abs((ch.signalSpectrum?.peakFrequency as number) - 5)).toBeLessThan(100 / 256);
+    expect(res.flag).toBe('likely event');
+    expect(res.reasons.join(' | ')).toMatch(/signal peaks at 5\.1 Hz over the pre-trigger noise \(\d+\.\d dB above it there, centroid of the excess 5\.1 Hz; signal 60\.\d–6\d\.\d s against noise \d+\.\d–59\.\d s\)/);
+  });
+
+  it('the same with a loud 20 Hz burst leaking through the causal 2–10 Hz filter: needs eyes, naming the signal peak', () => {
+    const res = analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal({ ...micro(72, 0), bursts: [[60, 8, 400, 20]] }), fs)], defaultProcessingProfile, { baseline });
+    const ch = res.channels[0];
+    expect(res.zLog10Ratio as number).toBeGreaterThan(3);
+    expect(res.zStaLtaPeak).toBeGreaterThan(3);
+    expect(ch?.staLta.triggers.length).toBeGreaterThan(0);
+    expect(Math.abs((ch?.signalSpectrum?.peakFrequency as number) - 20)).toBeLessThan(100 / 256);
+    expect(res.flag).toBe('needs eyes');
+    expect(res.reasons.join(' | ')).toMatch(/signal spectrum peaks outside the high band 2–10 Hz \(at 19\.9 Hz, accepted 1\.7–12\.0 Hz\)/);
+  });
+
+  it('no trigger: no signal spectrum, and the score is the whole-window rule unchanged', () => {
+    const res = analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal(micro(999, 1)), fs)], defaultProcessingProfile, { baseline });
+    const ch = res.channels[0];
+    if (!ch) throw new Error('no channel');
+    expect(ch.staLta.triggers).toEqual([]);
+    expect(ch.signalSpectrum).toBeNull();
+    expect(ch.signalSpectrumNote).toBeNull();
+    const { signalSpectrum: _s, signalSpectrumNote: _n, ...wholeWindowOnly } = ch;
+    const old = scoreWindow([wholeWindowOnly], baseline, defaultProcessingProfile);
+    expect({ flag: res.flag, score: res.score, reasons: res.reasons }).toEqual({ flag: old.flag, score: old.score, reasons: old.reasons });
+    expect(res.flag).toBe('likely noise');
+  });
+
+  it('a trigger too early for 5 s of untapered noise before it: the whole-window rule, said in the reasons', () => {
+    // A 5 s LTA lets a trigger come at ~10 s, inside the first 6 s taper + 1 s guard + 5 s minimum.
+    const profile = processingProfileSchema.parse({ staLta: { ltaS: 5 } });
+    const res = analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal({ ...micro(73, 0), bursts: [[9, 6, 5, 5]] }), fs)], profile);
+    const ch = res.channels[0];
+    expect(ch?.staLta.triggers[0]?.on as number).toBeLessThan(12);
+    expect(ch?.signalSpectrum).toBeNull();
+    expect(ch?.signalSpectrumNote).toMatch(/of untapered noise before the trigger at \d+\.\d s \(at least 5 s needed\)/);
+    expect(res.reasons.join(' | ')).toMatch(/no signal spectrum: only \d\.\d s of untapered noise .*; the whole-window spectrum decides/);
   });
 });

@@ -1,7 +1,8 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { hannPeriodic, spectralStats, spectrogram, welchPsd } from '../../../server/dsp/spectrum';
+import { hannPeriodic, largestPowerOfTwoAtMost, planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd } from '../../../server/dsp/spectrum';
+import { preprocessTrace } from '../../../server/dsp/preprocess';
 import { lcgUniform, makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 const fixture = readFixture(
@@ -122,5 +123,85 @@ describe('dominant frequency, centroid and spectrogram', () => {
     const row = sg.db.slice(0, sg.freqs.length);
     const k = row.indexOf(Math.max(...row));
     expect(sg.freqs[k]).toBeCloseTo(12.5, 6);
+  });
+});
+
+const signalFixture = readFixture(
+  'signal-spectrum.json',
+  z.object({
+    cases: z.array(
+      z.object({
+        signal: signalSpecSchema,
+        first: z.array(z.number()),
+        signalFrom: z.number().int(),
+        signalTo: z.number().int(),
+        noiseFrom: z.number().int(),
+        noiseTo: z.number().int(),
+        nperseg: z.number().int(),
+        freqs: z.array(z.number()),
+        signalPsd: z.array(z.number()),
+        noisePsd: z.array(z.number()),
+        peakFrequency: z.number(),
+        peakSnr: z.number(),
+        centroid: z.number(),
+      }),
+    ),
+  }),
+);
+
+describe('signal-to-noise spectrum: each part against scipy.signal.welch on the same part (fixtures/dsp/signal-spectrum.json)', () => {
+  // The inputs are constructed test signals (0.2 Hz sine + white noise + a windowed burst), not
+  // reference data; the check values are scipy's.
+  for (const c of signalFixture.cases) {
+    it(`${c.signal.n} samples at ${c.signal.fs} Hz, parts [${c.signalFrom}, ${c.signalTo}) and [${c.noiseFrom}, ${c.noiseTo}), nperseg ${c.nperseg}: PSDs to 1e-6 of their max, peak and centroid`, () => {
+      const x = makeSignal(c.signal);
+      expect(maxAbsDiff(x.slice(0, c.first.length), c.first)).toBeLessThan(1e-12);
+      const pre = preprocessTrace(x, 0.1);
+      const plan = { signalFrom: c.signalFrom, signalTo: c.signalTo, noiseFrom: c.noiseFrom, noiseTo: c.noiseTo, nperseg: c.nperseg };
+      const fs = c.signal.fs;
+      const sp = snrSpectrum(pre, fs, plan, 0.1, 0.45 * fs, [], 2);
+      // Source: scipy.signal.welch(pre[a:b], fs, window='hann', nperseg=N, noverlap=N//2,
+      // detrend='constant', scaling='density') on scipy's detrend(linear)·tukey(n, 0.1), scipy 1.10.
+      expect(maxAbsDiff(sp.freqs, c.freqs)).toBeLessThan(1e-9);
+      expect(maxAbsDiff(sp.signalPsd, c.signalPsd) / Math.max(...c.signalPsd)).toBeLessThan(1e-6);
+      expect(maxAbsDiff(sp.noisePsd, c.noisePsd) / Math.max(...c.noisePsd)).toBeLessThan(1e-6);
+      // Peak, ratio and centroid by the rule written in the script (numpy on scipy's PSDs).
+      expect(sp.peakFrequency).toBeCloseTo(c.peakFrequency, 9);
+      expect(Math.abs((sp.peakSnr as number) / c.peakSnr - 1)).toBeLessThan(1e-6);
+      expect(sp.centroid as number).toBeCloseTo(c.centroid, 6);
+    });
+  }
+
+  it('refuses parts outside the trace or shorter than the segment, naming them', () => {
+    const x = new Float64Array(1000).fill(1);
+    expect(() => snrSpectrum(x, 100, { signalFrom: 900, signalTo: 1100, noiseFrom: 0, noiseTo: 500, nperseg: 64 }, 0.1, 45)).toThrow(/signal part \[900, 1100\) must lie in the trace of 1000 samples/);
+    expect(() => snrSpectrum(x, 100, { signalFrom: 600, signalTo: 800, noiseFrom: 0, noiseTo: 32, nperseg: 64 }, 0.1, 45)).toThrow(/noise part \[0, 32\) .* at least 64 samples/);
+  });
+
+  it('hand-worked ratio: a tone present in both parts at equal power is not counted; a tone only in the signal part is the peak', () => {
+    // Constructed: 0.8·sin at 3.125 Hz everywhere (bin 8 of 256 at 100 Hz) + 1.0·sin at 6.25 Hz only in the signal part.
+    const fs = 100;
+    const x = Float64Array.from({ length: 4000 }, (_, i) => 0.8 * Math.sin((2 * Math.PI * 3.125 * i) / fs) + (i >= 3000 ? Math.sin((2 * Math.PI * 6.25 * i) / fs) : 0) + 1e-3 * Math.sin(i * i));
+    const sp = snrSpectrum(x, fs, { signalFrom: 3000, signalTo: 4000, noiseFrom: 0, noiseTo: 2900, nperseg: 256 }, 0.1, 45);
+    expect(sp.peakFrequency).toBe(6.25);
+    expect(sp.snr[8] as number).toBeCloseTo(1, 1);
+  });
+});
+
+describe('planSignalSegments (the documented rule, hand-worked at 100 Hz, taper 600 samples, guard 100)', () => {
+  const opts = { minS: 2, maxS: 20, noiseMinS: 5, noiseMaxS: 30, segmentS: 2.56, guardSamples: 100, taperSamples: 600, maxNperseg: 1024 };
+  it('signal = trigger duration bounded to [2 s, 20 s]; maxS when still on; noise = 30 s before on − 1 s, after the taper', () => {
+    expect(planSignalSegments(12000, 100, { onIndex: 6000, offIndex: 6500 }, opts)).toEqual({ plan: { signalFrom: 6000, signalTo: 6500, noiseFrom: 2900, noiseTo: 5900, nperseg: 256 } });
+    expect(planSignalSegments(12000, 100, { onIndex: 6000, offIndex: 6050 }, opts)).toEqual({ plan: { signalFrom: 6000, signalTo: 6200, noiseFrom: 2900, noiseTo: 5900, nperseg: 128 } });
+    expect(planSignalSegments(12000, 100, { onIndex: 6000, offIndex: null }, opts)).toEqual({ plan: { signalFrom: 6000, signalTo: 8000, noiseFrom: 2900, noiseTo: 5900, nperseg: 256 } });
+    expect(planSignalSegments(12000, 100, { onIndex: 3100, offIndex: 3600 }, opts)).toEqual({ plan: { signalFrom: 3100, signalTo: 3600, noiseFrom: 600, noiseTo: 3000, nperseg: 256 } });
+  });
+  it('too little signal before the end, or too little untapered noise: a sentence instead of a plan', () => {
+    expect(planSignalSegments(12000, 100, { onIndex: 11900, offIndex: null }, opts)).toEqual({ note: 'only 1.0 s of signal after the trigger at 119.0 s before the window ends (at least 2 s needed)' });
+    expect(planSignalSegments(12000, 100, { onIndex: 1000, offIndex: 1500 }, opts)).toEqual({ note: 'only 3.0 s of untapered noise before the trigger at 10.0 s (at least 5 s needed)' });
+  });
+  it('largest power of two at most n', () => {
+    expect([1, 2, 3, 255, 256, 600].map(largestPowerOfTwoAtMost)).toEqual([1, 2, 2, 128, 256, 512]);
+    expect(largestPowerOfTwoAtMost(0)).toBe(0);
   });
 });
