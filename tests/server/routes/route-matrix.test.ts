@@ -5,7 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { policyTable } from '../../../shared/auth/policies';
-import { roles, type Role } from '../../../shared/auth/roles';
+import { roles } from '../../../shared/auth/roles';
 import { routeMatrix, type MatrixRequest, type MatrixRow } from './route-matrix';
 import { mountedApiRoutes } from './support/mounted-routes';
 import { call, createWorld, type Principal, type World } from './support/world';
@@ -84,6 +84,3 @@ describe('route matrix', () => {
     });
   }
 });
-
-/** Roles listed in a row, for documentation output. */
-export type MatrixRoles = readonly Role[];
