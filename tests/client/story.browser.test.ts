@@ -2,6 +2,7 @@ import { readFile } from 'node:fs/promises';
 import { XMLParser } from 'fast-xml-parser';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { z } from 'zod';
 import { queueItemDetailSchema } from '../../shared/schemas/queue';
 import { seedDemo } from '../../server/db/seed-demo';
 import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
@@ -24,6 +25,22 @@ import { startTestServer, type TestServer } from '../setup/test-server';
  */
 
 const demoPassword = 'kestrel-demo-pass';
+
+/** The parts of a QuakeML 1.2 document this test reads (element names per the QuakeML 1.2 BED schema). */
+const quakemlSchema = z.object({
+  'q:quakeml': z.object({
+    eventParameters: z.object({
+      event: z.array(
+        z.object({
+          '@_publicID': z.string(),
+          type: z.string(),
+          typeCertainty: z.string().optional(),
+          pick: z.array(z.object({ time: z.object({ value: z.string() }), evaluationStatus: z.string() })),
+        }),
+      ),
+    }),
+  }),
+});
 
 let server: TestServer;
 let browser: LaunchedBrowser;
@@ -166,7 +183,7 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     const [xmlDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download QuakeML' }).click()]);
     const xml = await readFile(await xmlDownload.path(), 'utf8');
     const doc: unknown = new XMLParser({ ignoreAttributes: false, parseTagValue: false, isArray: (n) => n === 'event' || n === 'pick' }).parse(xml);
-    const events = (doc as { 'q:quakeml': { eventParameters: { event: Array<{ '@_publicID': string; type: string; typeCertainty?: string; pick: Array<{ time: { value: string }; phaseHint?: string; evaluationStatus: string }> }> } } })['q:quakeml'].eventParameters.event;
+    const events = quakemlSchema.parse(doc)['q:quakeml'].eventParameters.event;
     const exported = events.find((e) => e['@_publicID'] === `smi:seisift.local/event/item/${kv01Item}`);
     expect(exported, `the export lists ${events.map((e) => e['@_publicID']).join(', ')}`).toBeDefined();
     expect(exported?.type).toBe('earthquake');
