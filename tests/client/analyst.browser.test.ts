@@ -138,7 +138,9 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     expect(detail.state).toBe('labelled');
     expect(detail.updatedBy?.id).toBe(ana.id);
     expect(detail.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
-    if (detail.label?.kind === 'event') expect(detail.label.picks.map((p) => p.phase)).toEqual(['P']);
+    if (detail.label?.kind !== 'event') throw new Error('expected an event label');
+    // The P pick went to the first STA/LTA trigger-on of the vertical.
+    expect(detail.label.picks.map((p) => [p.phase, p.streamId])).toEqual([['P', 'XX.KV01.00.HHZ']]);
     void db;
     await pageB.waitForSelector(`tr[data-item-id="${id}"][data-state="labelled"]`, { timeout: 2000 });
     const queueA11y = await checkA11y(pageB);
@@ -175,5 +177,33 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await page.keyboard.press('g');
     await page.waitForSelector(`tr[aria-current="true"][data-item-id="${fresh[2]}"]`);
     for (const id of fresh.slice(0, 2)) await page.waitForSelector(`tr[data-item-id="${id}"] [data-arrival="new"]`);
+  }, 60_000);
+
+  it('a click on a trace places a pick of the chosen phase at that time', async () => {
+    const db = server.ctx.database.db;
+    const id = await createItem(db, { station: 'KV01', withSamples: true, burstAtS: 40, durationS: 90, score: 300 });
+    const page = await openAs(ben, `/queue/items/${id}`);
+    await page.waitForSelector('[data-testid="trace-panel"] .u-over');
+    await page.keyboard.press('c');
+    await page.waitForSelector(`[data-item-id="${id}"] [data-testid="claim-holder"]:has-text("you")`);
+    await page.keyboard.press('s');
+    await page.locator('form[aria-label="Label this item"] li').first().waitFor();
+    const before = await page.locator('form[aria-label="Label this item"] li').first().textContent();
+    const over = page.locator('section[aria-label="Channel XX.KV01.00.HHZ"] .u-over').first();
+    const box = await over.boundingBox();
+    if (!box) throw new Error('no plot area for the vertical channel');
+    // 70 % across the 90 s window: about 63 s. The S pick placed by the key moves there.
+    await page.mouse.click(box.x + box.width * 0.7, box.y + box.height / 2);
+    await page.waitForFunction((was) => document.querySelector('form[aria-label="Label this item"] li')?.textContent !== was, before);
+    const text = await page.locator('form[aria-label="Label this item"] li').first().innerText();
+    const windowStart = Date.parse(queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ben.cookie)).body).windowStart);
+    const iso = /\d{4}-\d\d-\d\d \d\d:\d\d:\d\d\.\d{6}/.exec(text)?.[0];
+    expect(iso).toBeDefined();
+    const atS = (Date.parse(`${iso?.replace(' ', 'T').slice(0, 23)}Z`) - windowStart) / 1000;
+    expect(text.startsWith('S')).toBe(true);
+    expect(atS).toBeGreaterThan(55);
+    expect(atS).toBeLessThan(72);
+    await page.keyboard.press('r');
+    await page.waitForSelector(`[data-item-id="${id}"] [data-testid="claim-holder"]:has-text("Not claimed")`);
   }, 60_000);
 });
