@@ -120,7 +120,8 @@ export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFor
               {picks.fields.map((f, i) => (
                 <li key={f.id} className="flex flex-wrap items-center gap-2 text-sm">
                   <span className="w-5 font-mono font-semibold">{f.phase}</span>
-                  <span className="font-mono">{f.time.replace('T', ' ').replace('Z', '')}</span>
+                  {/* ISO 8601 with milliseconds, as every time on screen (the pick keeps its microseconds). */}
+                  <span className="font-mono">{f.time.replace(/(\.\d{3})\d*Z$/, '$1Z')}</span>
                   <span className="font-mono text-ink-muted">{f.streamId}</span>
                   <label className="flex items-center gap-1">
                     <span className="sr-only">Onset of pick {i + 1}</span>
