@@ -113,7 +113,8 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
           {rows.map((r) => (
             <Tr key={r.itemId} data-testid={`review-row-${r.itemId}`}>
               <td className="font-mono text-sm whitespace-nowrap">
-                {r.eventTime}
+                {/* ISO 8601 with milliseconds on screen; the export keeps the microseconds. */}
+                {r.eventTime.replace(/(\.\d{3})\d*Z$/, '$1Z')}
                 <span className="block font-sans text-xs text-ink-muted">{r.eventTimeBasis}</span>
               </td>
               <td>
