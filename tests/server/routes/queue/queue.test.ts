@@ -2,7 +2,7 @@ import { and, eq } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Express } from 'express';
-import { queuePageSchema, queueRowSchema, queueItemDetailSchema, tracesResponseSchema, type QueueRow } from '../../../../shared/schemas/queue';
+import { queuePageSchema, queueQuerySchema, queueRowMatches, queueRowSchema, queueItemDetailSchema, tracesResponseSchema, type QueueRow } from '../../../../shared/schemas/queue';
 import { createApp } from '../../../../server/app';
 import { auditLog } from '../../../../server/db/schema/audit-log';
 import { changeLog } from '../../../../server/db/schema/change-log';
@@ -265,6 +265,17 @@ describe('queue API (real MariaDB, supertest)', () => {
       await check('label=quarry blast', (i) => i % 20 === 19);
       await check('label=none&state=new', (i) => i % 10 !== 9);
       await check('label=earthquake&flag=likely event', (i) => i % 10 === 9 && i % 20 !== 19 && i % 5 === 0);
+    });
+
+    it('the client-side matcher used for live rows agrees with the server on every filter', async () => {
+      // No state parameter: every state.
+      const every = await all(ana, 'station=KV05,KV06', 500);
+      for (const qs of ['state=labelled', 'station=XX.KV06', 'flag=likely noise', 'scoreMin=1&scoreMax=4', 'from=2026-03-14T01:00:00.000Z', 'label=none', 'label=quarry blast,earthquake']) {
+        const server = (await all(ana, `station=KV05,KV06&${qs}`.replace('station=KV05,KV06&station=', 'station='), 500)).map((r) => r.id).sort((a, b) => a - b);
+        const q = queueQuerySchema.parse(Object.fromEntries(new URLSearchParams(qs)));
+        const client = every.filter((r) => queueRowMatches(r, q)).map((r) => r.id).sort((a, b) => a - b);
+        expect(client, qs).toEqual(server);
+      }
     });
 
     it('counts per state under the other filters, and a total for the selected states', async () => {
