@@ -77,17 +77,19 @@ export function truthOf(state: string, label: unknown, evaluationStatus: string 
 }
 
 /**
- * The flag the rule gives `e` under `thresholds` (see the module comment for the replay).
- * @param staLta the station's STA/LTA settings (only its wording enters the reasons)
+ * The flag the rule gives `e` with the tuned values `thresholds` in place of the station's own (see
+ * the module comment for the replay); every other threshold (e.g. the signal-spectrum tolerance)
+ * is the station's.
+ * @param profile the station's profile (its thresholds and STA/LTA settings)
  */
-export function flagUnder(e: LabelledEvidence, thresholds: ThresholdValues, staLta: ProcessingProfile['staLta'], minBaselineWindows = 1): string {
+export function flagUnder(e: LabelledEvidence, thresholds: ThresholdValues, profile: Pick<ProcessingProfile, 'thresholds' | 'staLta'>): string {
   const channel: ChannelFeatures = {
     ...e.lead,
     log10Ratio: e.zLog10Ratio,
     ratio: e.zLog10Ratio === null ? null : (e.lead.ratio ?? 1),
     staLta: { ...e.lead.staLta, peak: e.zStaLtaPeak },
   };
-  return scoreWindow([channel], identityBaseline, { thresholds: { ...thresholds, minBaselineWindows }, staLta }).flag;
+  return scoreWindow([channel], identityBaseline, { thresholds: { ...profile.thresholds, ...thresholds, minBaselineWindows: 1 }, staLta: profile.staLta }).flag;
 }
 
 /** Precision and recall from counts (null for 0/0). */
@@ -113,8 +115,8 @@ export function confusion(rows: ReadonlyArray<{ truth: Truth; flag: string }>): 
 }
 
 /** Confusion counts of the rule under `thresholds` over `evidence`. */
-export function evaluateThresholds(evidence: readonly LabelledEvidence[], thresholds: ThresholdValues, staLta: ProcessingProfile['staLta']): Evaluation {
-  return confusion(evidence.map((e) => ({ truth: e.truth, flag: flagUnder(e, thresholds, staLta) })));
+export function evaluateThresholds(evidence: readonly LabelledEvidence[], thresholds: ThresholdValues, profile: Pick<ProcessingProfile, 'thresholds' | 'staLta'>): Evaluation {
+  return confusion(evidence.map((e) => ({ truth: e.truth, flag: flagUnder(e, thresholds, profile) })));
 }
 
 /** One point of the precision–recall curve. */
@@ -130,7 +132,7 @@ export interface CurvePoint extends Evaluation {
 export function precisionRecallCurve(
   evidence: readonly LabelledEvidence[],
   base: ThresholdValues,
-  staLta: ProcessingProfile['staLta'],
+  profile: Pick<ProcessingProfile, 'thresholds' | 'staLta'>,
   range: { fromZ: number; toZ: number; steps: number } = { fromZ: 0, toZ: 10, steps: 40 },
 ): CurvePoint[] {
   if (!(range.fromZ < range.toZ)) throw new RangeError('the curve needs fromZ < toZ');
@@ -139,7 +141,7 @@ export function precisionRecallCurve(
   for (let k = 0; k <= range.steps; k++) {
     const eventZ = Math.round((range.fromZ + ((range.toZ - range.fromZ) * k) / range.steps) * 1e9) / 1e9;
     const th = { ...base, eventZ, noiseZ: Math.min(base.noiseZ, eventZ) };
-    out.push({ eventZ, ...evaluateThresholds(evidence, th, staLta) });
+    out.push({ eventZ, ...evaluateThresholds(evidence, th, profile) });
   }
   return out;
 }
@@ -153,6 +155,22 @@ const channelSchema = z.object({
   spectralCentroid: z.number().nullable(),
   bands: z.object({ high: z.object({ fmin: z.number(), fmax: z.number() }) }),
   qc: z.array(z.object({ severity: z.enum(['info', 'warning', 'error']), message: z.string(), code: z.string() })),
+  /** Where the triggered part rises above the pre-trigger noise (absent in older analyses). */
+  signalSpectrum: z
+    .object({
+      peakFrequency: z.number().nullable(),
+      peakSnr: z.number().nullable(),
+      centroid: z.number().nullable(),
+      minSnr: z.number(),
+      fromS: z.number(),
+      toS: z.number(),
+      noiseFromS: z.number(),
+      noiseToS: z.number(),
+      nperseg: z.number(),
+    })
+    .nullable()
+    .optional(),
+  signalSpectrumNote: z.string().nullable().optional(),
 });
 
 /** The parts of a stored analysis (the engine's output contract) the score reads. */
@@ -243,9 +261,11 @@ const scoreExtract = {
   spectralCentroid: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].spectralCentroid')`,
   bands: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].bands')`,
   qc: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].qc')`,
+  signalSpectrum: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].signalSpectrum')`,
+  signalSpectrumNote: sql<string | null>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].signalSpectrumNote')`,
 };
 
-type ScoreExtractRow = { [K in keyof typeof scoreExtract]: unknown };
+type ScoreExtractRow = { [K in keyof typeof scoreExtract]?: unknown };
 
 /**
  * The driver hands JSON results back parsed (MariaDB marks them JSON) or as JSON text, depending on
@@ -274,6 +294,10 @@ export function scoreInputFromExtract(row: ScoreExtractRow): unknown {
   };
   const ids = single ? [idsRaw] : idsRaw;
   const fields = { log10Ratio: col(row.log10Ratio), ratio: col(row.ratio), staLta: col(row.staLta), dominantFrequency: col(row.dominantFrequency), spectralCentroid: col(row.spectralCentroid), bands: col(row.bands), qc: col(row.qc) };
+  // Older analyses have no signal spectrum at all (the path matches nothing: null); newer ones
+  // have one per channel (null where there was no trigger).
+  const sigCol = row.signalSpectrum === null || row.signalSpectrum === undefined ? null : col(row.signalSpectrum);
+  const noteCol = row.signalSpectrumNote === null || row.signalSpectrumNote === undefined ? null : col(row.signalSpectrumNote);
   const channels = ids.map((id, i) => ({
     id,
     log10Ratio: fields.log10Ratio?.[i],
@@ -283,6 +307,8 @@ export function scoreInputFromExtract(row: ScoreExtractRow): unknown {
     spectralCentroid: fields.spectralCentroid?.[i],
     bands: fields.bands?.[i],
     qc: fields.qc?.[i],
+    ...(sigCol && sigCol.length === ids.length ? { signalSpectrum: sigCol[i] } : {}),
+    ...(noteCol && noteCol.length === ids.length ? { signalSpectrumNote: noteCol[i] } : {}),
   }));
   return { leadChannel: parseJson(row.leadChannel), zLog10Ratio: parseJson(row.zLog10Ratio), zStaLtaPeak: parseJson(row.zStaLtaPeak), channels };
 }
@@ -325,9 +351,9 @@ export async function thresholdReport(db: Database, stationId: number, proposed:
     proposed,
     labelled: { events: evidence.filter((e) => e.truth === 'event').length, noise: evidence.filter((e) => e.truth === 'noise').length },
     asShown: confusion(evidence.map((e) => ({ truth: e.truth, flag: e.shownFlag }))),
-    currentEvaluation: evaluateThresholds(evidence, current, profile.staLta),
-    proposedEvaluation: proposed ? evaluateThresholds(evidence, proposed, profile.staLta) : null,
-    curve: precisionRecallCurve(evidence, proposed ?? current, profile.staLta, { fromZ: 0, toZ: Math.min(50, top), steps: Math.min(200, Math.min(50, top) * 4) }),
+    currentEvaluation: evaluateThresholds(evidence, current, profile),
+    proposedEvaluation: proposed ? evaluateThresholds(evidence, proposed, profile) : null,
+    curve: precisionRecallCurve(evidence, proposed ?? current, profile, { fromZ: 0, toZ: Math.min(50, top), steps: Math.min(200, Math.min(50, top) * 4) }),
     unreadable,
   };
 }

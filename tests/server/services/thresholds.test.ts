@@ -14,7 +14,7 @@ import {
   type Truth,
 } from '../../../server/services/thresholds';
 
-const staLta = defaultProcessingProfile.staLta;
+const profile = defaultProcessingProfile;
 const base = { eventZ: 3, noiseZ: 2, centroidMaxFactor: 1.5 };
 
 function lead(over: Partial<ChannelFeatures> = {}): ChannelFeatures {
@@ -76,33 +76,33 @@ const table: LabelledEvidence[] = [
 
 describe('confusion counts and precision/recall against the hand-worked table', () => {
   it('at the default thresholds (eventZ 3, noiseZ 2, centroid ×1.5)', () => {
-    expect(evaluateThresholds(table, base, staLta)).toEqual({ tp: 2, fp: 1, fn: 3, tn: 3, precision: 2 / 3, recall: 2 / 5 });
+    expect(evaluateThresholds(table, base, profile)).toEqual({ tp: 2, fp: 1, fn: 3, tn: 3, precision: 2 / 3, recall: 2 / 5 });
   });
   it('at eventZ 2.5', () => {
-    expect(evaluateThresholds(table, { ...base, eventZ: 2.5 }, staLta)).toEqual({ tp: 3, fp: 1, fn: 2, tn: 3, precision: 3 / 4, recall: 3 / 5 });
+    expect(evaluateThresholds(table, { ...base, eventZ: 2.5 }, profile)).toEqual({ tp: 3, fp: 1, fn: 2, tn: 3, precision: 3 / 4, recall: 3 / 5 });
   });
   it('at eventZ 4', () => {
-    expect(evaluateThresholds(table, { ...base, eventZ: 4 }, staLta)).toEqual({ tp: 1, fp: 0, fn: 4, tn: 4, precision: 1, recall: 1 / 5 });
+    expect(evaluateThresholds(table, { ...base, eventZ: 4 }, profile)).toEqual({ tp: 1, fp: 0, fn: 4, tn: 4, precision: 1, recall: 1 / 5 });
   });
   it('with the centroid factor raised to 2', () => {
-    expect(evaluateThresholds(table, { ...base, centroidMaxFactor: 2 }, staLta)).toEqual({ tp: 2, fp: 2, fn: 3, tn: 2, precision: 1 / 2, recall: 2 / 5 });
+    expect(evaluateThresholds(table, { ...base, centroidMaxFactor: 2 }, profile)).toEqual({ tp: 2, fp: 2, fn: 3, tn: 2, precision: 1 / 2, recall: 2 / 5 });
   });
   it('gives a null precision when nothing is flagged', () => {
-    expect(evaluateThresholds(table, { ...base, eventZ: 9 }, staLta)).toEqual({ tp: 0, fp: 0, fn: 5, tn: 4, precision: null, recall: 0 });
+    expect(evaluateThresholds(table, { ...base, eventZ: 9 }, profile)).toEqual({ tp: 0, fp: 0, fn: 5, tn: 4, precision: null, recall: 0 });
   });
   it('replays z exactly at the boundary (item 2: z = 3.0 ≥ 3)', () => {
-    expect(flagUnder(table[1] as LabelledEvidence, base, staLta)).toBe('likely event');
-    expect(flagUnder(table[1] as LabelledEvidence, { ...base, eventZ: 3.0000001 }, staLta)).not.toBe('likely event');
+    expect(flagUnder(table[1] as LabelledEvidence, base, profile)).toBe('likely event');
+    expect(flagUnder(table[1] as LabelledEvidence, { ...base, eventZ: 3.0000001 }, profile)).not.toBe('likely event');
   });
   it('gives likely noise for the quiet item and needs eyes for the out-of-band one', () => {
-    expect(flagUnder(table[6] as LabelledEvidence, base, staLta)).toBe('likely noise');
-    expect(flagUnder(table[5] as LabelledEvidence, base, staLta)).toBe('needs eyes');
+    expect(flagUnder(table[6] as LabelledEvidence, base, profile)).toBe('likely noise');
+    expect(flagUnder(table[5] as LabelledEvidence, base, profile)).toBe('needs eyes');
   });
 });
 
 describe('precision–recall curve', () => {
   it('passes through the hand-worked points and never gains recall as eventZ rises', () => {
-    const curve = precisionRecallCurve(table, base, staLta, { fromZ: 2, toZ: 4, steps: 4 });
+    const curve = precisionRecallCurve(table, base, profile, { fromZ: 2, toZ: 4, steps: 4 });
     expect(curve.map((p) => p.eventZ)).toEqual([2, 2.5, 3, 3.5, 4]);
     expect(curve[1]).toMatchObject({ tp: 3, fp: 1, fn: 2, tn: 3 });
     expect(curve[2]).toMatchObject({ tp: 2, fp: 1, fn: 3, tn: 3 });
@@ -110,8 +110,8 @@ describe('precision–recall curve', () => {
     for (let i = 1; i < curve.length; i++) expect((curve[i] as { recall: number }).recall).toBeLessThanOrEqual((curve[i - 1] as { recall: number }).recall);
   });
   it('refuses an empty range', () => {
-    expect(() => precisionRecallCurve(table, base, staLta, { fromZ: 3, toZ: 3, steps: 4 })).toThrow(/fromZ < toZ/);
-    expect(() => precisionRecallCurve(table, base, staLta, { fromZ: 0, toZ: 3, steps: 0 })).toThrow(/steps/);
+    expect(() => precisionRecallCurve(table, base, profile, { fromZ: 3, toZ: 3, steps: 4 })).toThrow(/fromZ < toZ/);
+    expect(() => precisionRecallCurve(table, base, profile, { fromZ: 0, toZ: 3, steps: 0 })).toThrow(/steps/);
   });
 });
 
@@ -164,5 +164,32 @@ describe('scoreInputFromExtract', () => {
     const c = lead();
     const row = { leadChannel: c.id, zLog10Ratio: 1, zStaLtaPeak: 2, ids: c.id, log10Ratio: c.log10Ratio, ratio: c.ratio, staLta: c.staLta, dominantFrequency: c.dominantFrequency, spectralCentroid: c.spectralCentroid, bands: c.bands, qc: c.qc };
     expect(evidenceFromAnalysis(scoreInputFromExtract(row))?.lead).toEqual(c);
+  });
+});
+
+/*
+ * Rule 4a of server/dsp/score.ts (with a trigger, the signal spectrum decides where the spectrum
+ * peaks): the signal peak must lie within [fmin/(1+tol), fmax·(1+tol)] and its centroid at or below
+ * centroidMaxFactor·fmax. High band 2–10 Hz, default tolerance 0.2 → [1.667, 12] Hz, centroid ≤ 15 Hz.
+ * | item | z ratio | z peak | whole-window dominant | signal peak | signal centroid | flag at eventZ 3 |
+ * | A    | 5       | 6      | 5 Hz (in band)        | 15 Hz (out) | 14 Hz           | needs eyes        |
+ * | B    | 5       | 6      | 20 Hz (out)           | 11 Hz (in)  | 8 Hz            | likely event      |
+ * | B'   | as B with the station's tolerance 0 → [2, 10] Hz: 11 Hz is out  | needs eyes        |
+ */
+describe('signal-spectrum rule in the replay', () => {
+  const sig = (peakFrequency: number, centroid: number) => ({ peakFrequency, peakSnr: 20, centroid, minSnr: 4, fromS: 40, toS: 50, noiseFromS: 10, noiseToS: 40, nperseg: 256 });
+  const a = ev(101, 'noise', 5, 6, { signalSpectrum: sig(15, 14) });
+  const b = ev(102, 'event', 5, 6, { dominantFrequency: 20, spectralCentroid: 21, signalSpectrum: sig(11, 8) });
+  it('follows the triggered part, not the whole window', () => {
+    expect(flagUnder(a, base, profile)).toBe('needs eyes');
+    expect(flagUnder(b, base, profile)).toBe('likely event');
+  });
+  it('uses the station’s own signal-peak tolerance', () => {
+    const strict = { ...profile, thresholds: { ...profile.thresholds, signalPeakTolerance: 0 } };
+    expect(flagUnder(b, base, strict)).toBe('needs eyes');
+  });
+  it('keeps the signal spectrum when reading a stored analysis', () => {
+    const e = evidenceFromAnalysis({ leadChannel: 'XX.KV01.00.HHZ', zLog10Ratio: 5, zStaLtaPeak: 6, channels: [lead({ signalSpectrum: sig(11, 8), signalSpectrumNote: null })] });
+    expect(e?.lead.signalSpectrum?.peakFrequency).toBe(11);
   });
 });

@@ -251,6 +251,9 @@ describe('supervisor API (real MariaDB, fake SMTP, supertest)', () => {
       expect(e.tp + e.fn).toBe(1);
       expect(e.fp + e.tn).toBe(1);
       expect(report.body.curve.length).toBeGreaterThan(10);
+      // Replaying the stored evidence under the thresholds the items were scored with gives back the
+      // flags the engine stored (server/dsp/score.ts is the one rule on both paths).
+      expect(report.body.currentEvaluation).toEqual(report.body.asShown);
       const bad = await get(sue, `/api/supervisor/thresholds/${kv05}?noiseZ=5&eventZ=4`);
       expect(bad.status).toBe(400);
       expect(bad.body.error.message).toBe('noiseZ: noiseZ must not exceed eventZ');
