@@ -32,8 +32,9 @@ import { scoreWindow, type ChannelFeatures, type StationBaseline } from '../dsp/
  * Replaying the rule under other thresholds: each window's evidence is fixed when it is scored —
  * the robust z of its log10 band ratio and of its STA/LTA peak against the baseline of that time
  * (stored in the analysis as `zLog10Ratio`, `zStaLtaPeak`), plus its triggers, dominant frequency,
- * centroid and QC. The thresholds only compare that evidence with eventZ, noiseZ and
- * centroidMaxFactor, so the flag under other thresholds is `scoreWindow` (server/dsp/score.ts, the
+ * centroid, signal spectrum (where the triggered part rises above the noise) and QC. The tuned
+ * thresholds only compare that evidence with eventZ, noiseZ and centroidMaxFactor (the station's
+ * other thresholds, e.g. the signal-peak tolerance, are kept as they are), so the flag under other thresholds is `scoreWindow` (server/dsp/score.ts, the
  * one rule) run on the stored lead channel with the stored z values in place of the raw features and
  * an identity baseline (median 0, MAD 1/1.4826, so that 1.4826·MAD is exactly 1 and z = x exactly).
  * `minBaselineWindows` changes which baseline a window is scored against and cannot be replayed
