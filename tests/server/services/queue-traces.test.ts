@@ -26,7 +26,7 @@ describe('display decimation (min/max per bucket)', () => {
     expect(Math.min(...d.values)).toBe(Math.min(...y));
     for (let b = 0; b < y.length; b += bucket) {
       const seg = Array.from(y.subarray(b, b + bucket));
-      const inBucket = d.index.filter((i) => i >= b && i < b + bucket).map((i) => y[i]);
+      const inBucket = d.index.filter((i) => i >= b && i < b + bucket).map((i) => y[i] ?? NaN);
       expect(Math.max(...inBucket)).toBe(Math.max(...seg));
       expect(Math.min(...inBucket)).toBe(Math.min(...seg));
     }
