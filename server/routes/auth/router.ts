@@ -2,7 +2,7 @@ import { Router } from 'express';
 import { acceptInvitationSchema, forgotPasswordSchema, resetPasswordSchema, signInSchema, tokenCheckSchema, type Me } from '../../../shared/auth/schemas';
 import type { AuthKit } from '../../auth/kit';
 import type { AppContext } from '../../context';
-import { currentSession, currentUser, requireUser } from '../../middleware/auth';
+import { currentSession, currentUser, optionalUser, requireUser, type AuthUser } from '../../middleware/auth';
 import { parseInput } from '../../middleware/validate';
 import { recordAudit } from '../../services/audit';
 import { acceptInvitation, inspectInvitation } from '../../services/invitations';
@@ -37,14 +37,24 @@ export function authRouter(ctx: AppContext, kit: AuthKit): Router {
     res.status(204).end();
   });
 
+  const meOf = (user: AuthUser): Me => ({
+    user: { id: user.id, email: user.email, displayName: user.displayName, roles: user.roles, stationIds: user.stationIds },
+    mailbox: ctx.mailer.kind === 'fake',
+  });
+
   /** GET /api/auth/me → 200 {user, mailbox}; 401 when nobody is signed in. */
   router.get('/me', requireUser, (req, res) => {
-    const user = currentUser(req);
-    const body: Me = {
-      user: { id: user.id, email: user.email, displayName: user.displayName, roles: user.roles, stationIds: user.stationIds },
-      mailbox: ctx.mailer.kind === 'fake',
-    };
-    res.json(body);
+    res.json(meOf(currentUser(req)));
+  });
+
+  /**
+   * GET /api/auth/session → 200 {session: {user, mailbox} | null}: the client's probe at start, so
+   * a signed-out visitor is an answer, not an error.
+   */
+  router.get('/session', (req, res) => {
+    const user = optionalUser(req);
+    res.setHeader('Cache-Control', 'no-store');
+    res.json({ session: user ? meOf(user) : null });
   });
 
   /** POST /api/auth/forgot-password {email} → 202, the same answer whether or not the account exists. */

@@ -262,6 +262,7 @@ export const routeMatrix: readonly MatrixRow[] = [
   },
   { method: 'POST', path: '/api/auth/invitations/check', allow: 'public', build: async (w) => ({ path: '/api/auth/invitations/check', body: { token: (await invitationToken(w)).token } }) },
   { method: 'GET', path: '/api/auth/me', allow: 'signed-in', build: async () => ({ path: '/api/auth/me' }) },
+  { method: 'GET', path: '/api/auth/session', allow: 'public', build: async () => ({ path: '/api/auth/session' }) },
   { method: 'POST', path: '/api/auth/reset-password', allow: 'public', build: async (w) => ({ path: '/api/auth/reset-password', cookie: null, body: { token: await resetToken(w), password: 'matrix-reset-password' } }) },
   { method: 'POST', path: '/api/auth/reset-password/check', allow: 'public', build: async (w) => ({ path: '/api/auth/reset-password/check', body: { token: await resetToken(w) } }) },
   {

@@ -62,6 +62,15 @@ describe('sign-in and sessions', () => {
     expect(rows.every((r) => r.ipAddress !== null)).toBe(true);
   });
 
+  it('answers the session probe with null for a visitor and the user once signed in (never 401)', async () => {
+    const anon = await call(w, 'GET', '/api/auth/session');
+    expect(anon.status).toBe(200);
+    expect(anon.body).toEqual({ session: null });
+    const signed = await call(w, 'GET', '/api/auth/session', w.cookie.operator);
+    expect(signed.body.session.user).toMatchObject({ email: 'operator@kestrel.example', roles: ['operator'], stationIds: [w.stationIds.KV01, w.stationIds.KV02, w.stationIds.KV03] });
+    expect(signed.headers['cache-control']).toBe('no-store');
+  });
+
   it('names the bad field on malformed input (400)', async () => {
     const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'not-an-address', password: 'x' });
     expect(res.status).toBe(400);

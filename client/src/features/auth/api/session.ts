@@ -8,12 +8,12 @@ import { ApiError, apiRequest, noContent } from '../../../lib/api-client';
 export const meKey = ['auth', 'me'] as const;
 
 /**
- * GET /api/auth/me: the signed-in user, or null when nobody is (401) or the server cannot say
- * (no API behind a static build): the app then shows itself signed out.
+ * GET /api/auth/session: the signed-in user, or null when nobody is or the server cannot say (no
+ * API behind a static build): the app then shows itself signed out.
  */
 export async function fetchMe(): Promise<Me | null> {
   try {
-    return await apiRequest(meSchema, '/api/auth/me', { allowUnauthenticated: true });
+    return (await apiRequest(z.object({ session: meSchema.nullable() }), '/api/auth/session', { allowUnauthenticated: true })).session;
   } catch (err) {
     if (err instanceof ApiError) return null;
     throw err;
