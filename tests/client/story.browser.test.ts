@@ -54,7 +54,7 @@ async function signInAs(email: string): Promise<void> {
   await page.getByLabel('E-mail').fill(email);
   await page.getByLabel('Password', { exact: true }).fill(demoPassword);
   await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Account' }).waitFor({ timeout: 10_000 });
+  await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Account' }).waitFor({ timeout: 20_000 });
 }
 
 /** GET `path` as whoever is signed in in the browser (the page's own session cookie). */
@@ -118,21 +118,21 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     // 2. The analyst sees both in the queue, labels one and escalates the other.
     await signInAs('analyst@kestrel.example');
     await page.goto(`${server.url}/queue`);
-    await page.locator('[data-connection="live"]').waitFor({ timeout: 15_000 });
-    for (const id of ids) await page.locator(`tr[data-item-id="${id}"]`).waitFor({ timeout: 15_000 });
+    await page.locator('[data-connection="live"]').waitFor({ timeout: 30_000 });
+    for (const id of ids) await page.locator(`tr[data-item-id="${id}"]`).waitFor({ timeout: 30_000 });
     await screenshot(page, 'story-2-analyst-queue');
 
     await page.goto(`${server.url}/queue/items/${kv01Item}`);
-    await page.locator('[data-testid="trace-panel"] canvas').first().waitFor({ timeout: 15_000 });
+    await page.locator('[data-testid="trace-panel"] canvas').first().waitFor({ timeout: 30_000 });
     await page.keyboard.press('c');
-    await page.locator(`[data-item-id="${kv01Item}"] [data-testid="claim-holder"]:has-text("you")`).waitFor({ timeout: 10_000 });
+    await page.locator(`[data-item-id="${kv01Item}"] [data-testid="claim-holder"]:has-text("you")`).waitFor({ timeout: 20_000 });
     // P places a P pick at the first STA/LTA trigger of the vertical channel; the form then labels it.
     await page.keyboard.press('p');
     await page.getByRole('combobox', { name: 'Event type (QuakeML)' }).selectOption('earthquake');
     await page.getByRole('combobox', { name: 'Type certainty' }).selectOption('suspected');
     await page.getByRole('button', { name: /^Label/ }).click();
     let labelled = queueItemDetailSchema.parse(await apiGet(`/api/queue/items/${kv01Item}`));
-    for (let i = 0; i < 50 && labelled.state !== 'labelled'; i++) {
+    for (let i = 0; i < 200 && labelled.state !== 'labelled'; i++) {
       await new Promise((r) => setTimeout(r, 100));
       labelled = queueItemDetailSchema.parse(await apiGet(`/api/queue/items/${kv01Item}`));
     }
@@ -148,11 +148,11 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
 
     const reason = 'Burst at KV02 five seconds after the KV01 event; same source?';
     await page.goto(`${server.url}/queue/items/${kv02Item}`);
-    await page.locator('[data-testid="trace-panel"] canvas').first().waitFor({ timeout: 15_000 });
+    await page.locator('[data-testid="trace-panel"] canvas').first().waitFor({ timeout: 30_000 });
     await page.keyboard.press('e');
     await page.getByRole('dialog').getByRole('textbox', { name: 'Reason' }).fill(reason);
     await page.getByRole('dialog').getByRole('button', { name: /^Escalate/ }).click();
-    await page.getByRole('dialog').waitFor({ state: 'detached', timeout: 10_000 });
+    await page.getByRole('dialog').waitFor({ state: 'detached', timeout: 20_000 });
     const escalated = queueItemDetailSchema.parse(await apiGet(`/api/queue/items/${kv02Item}`));
     expect(escalated.state).toBe('escalated');
 
@@ -160,22 +160,22 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     await signInAs('supervisor@kestrel.example');
     await page.goto(`${server.url}/inbox`);
     const entry = page.locator('tr', { hasText: reason });
-    await entry.waitFor({ timeout: 15_000 });
+    await entry.waitFor({ timeout: 30_000 });
     expect(await entry.textContent()).toContain('escalated by');
     await entry.getByRole('button', { name: 'Confirm' }).click();
-    await entry.getByText('✓ confirmed').waitFor({ timeout: 10_000 });
+    await entry.getByText('✓ confirmed').waitFor({ timeout: 20_000 });
     const confirmed = queueItemDetailSchema.parse(await apiGet(`/api/queue/items/${kv02Item}`));
     expect(confirmed.state).toBe('confirmed');
     await screenshot(page, 'story-3-supervisor-inbox');
 
     await page.goto(`${server.url}/review`);
     const reviewRow = page.getByTestId(`review-row-${kv01Item}`);
-    await reviewRow.waitFor({ timeout: 15_000 });
+    await reviewRow.waitFor({ timeout: 30_000 });
     expect(await reviewRow.textContent()).toContain('earthquake');
     await reviewRow.getByRole('button', { name: 'Review…' }).click();
     await reviewRow.getByRole('combobox').selectOption('confirmed');
     await reviewRow.getByRole('button', { name: 'Set status' }).click();
-    await reviewRow.getByText('by ', { exact: false }).waitFor({ timeout: 10_000 });
+    await reviewRow.getByText('by ', { exact: false }).waitFor({ timeout: 20_000 });
     expect(await reviewRow.textContent()).toContain('confirmed');
     expect(await checkA11y(page)).toEqual([]);
     await screenshot(page, 'story-4-supervisor-review');
@@ -202,5 +202,5 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     expect(line).toContain(',earthquake,suspected,confirmed,');
     expect(line).toContain('XX.KV01');
     expect(problems.filter((p) => !/favicon/.test(p))).toEqual([]);
-  }, 120_000);
+  }, 180_000);
 });
