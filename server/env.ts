@@ -1,3 +1,4 @@
+import { availableParallelism } from 'node:os';
 import { z } from 'zod';
 
 const port = (fallback: number) =>
@@ -53,6 +54,8 @@ export const envSchema = z.object({
   SEISIFT_SIGNIN_MAX_PER_ADDRESS: positiveInt(50),
   /** Length of the sign-in rate-limit window, seconds. */
   SEISIFT_SIGNIN_WINDOW_S: positiveInt(900),
+  /** Worker threads of the analysis pool (default: one per core, `max(1, availableParallelism())`). */
+  SEISIFT_ANALYSIS_THREADS: positiveInt(Math.max(1, availableParallelism())),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 

@@ -6,6 +6,7 @@ import { channelResponseSchema } from '../../shared/schemas/station';
 import type { QueueRow } from '../../shared/schemas/queue';
 import type { UploadOutcome } from '../../shared/schemas/upload';
 import type { Database } from '../db/client';
+import { ConfigError, envSchema } from '../env';
 import { queueItems } from '../db/schema/queue-items';
 import { stations } from '../db/schema/stations';
 import { uploads, windowChannels, windows } from '../db/schema/uploads';
@@ -21,6 +22,7 @@ import { loadQueueRow } from '../presenters/queue-item';
 import type { AuthUser, IngestPrincipal } from '../middleware/auth';
 import { recordChange, type DbOrTx } from '../realtime/change-log';
 import { onItemsCreated } from './candidate-events';
+import { decodeStoredSamples, encodeSamples } from './samples-codec';
 import { stationBaseline } from './station-baseline';
 import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from './station-registry';
 
@@ -71,12 +73,22 @@ export interface IngestOptions {
 let sharedPool: AnalysisPool | undefined;
 
 /**
- * The process's analysis pool, created on first use: one worker thread per core beyond the first
- * (at most 2), since the server shares the machine. Idle workers do not keep the process alive.
+ * The process's analysis pool, created on first use with `threads` worker threads (default:
+ * SEISIFT_ANALYSIS_THREADS, else one per core: `max(1, availableParallelism())`). One thread
+ * analyses a 120 s 3-component window in about 8–20 ms, so the 100 windows/s target needs two on a
+ * 2-core machine (docs/PERFORMANCE.md). Idle workers do not keep the process alive.
+ * @throws ConfigError when SEISIFT_ANALYSIS_THREADS is not a positive whole number
  */
-export function defaultAnalysisPool(): AnalysisPool {
-  sharedPool ??= createAnalysisPool({ threads: 1 });
+export function defaultAnalysisPool(threads: number = analysisThreads()): AnalysisPool {
+  sharedPool ??= createAnalysisPool({ threads });
   return sharedPool;
+}
+
+/** SEISIFT_ANALYSIS_THREADS from `source` (validated like every setting), else one per core. */
+export function analysisThreads(source: NodeJS.ProcessEnv = process.env): number {
+  const r = envSchema.shape.SEISIFT_ANALYSIS_THREADS.safeParse(source.SEISIFT_ANALYSIS_THREADS);
+  if (!r.success) throw new ConfigError(`SEISIFT_ANALYSIS_THREADS: ${r.error.issues[0]?.message ?? 'invalid'} (got "${source.SEISIFT_ANALYSIS_THREADS ?? ''}")`);
+  return r.data;
 }
 
 /** A file-level refusal carrying the outcome's status and code. */
@@ -128,20 +140,24 @@ async function itemsOfUpload(db: DbOrTx, uploadId: number): Promise<NonNullable<
   }));
 }
 
-/** Samples as little-endian float64 bytes (window_channels.samples). */
+/**
+ * Samples as little-endian float64 bytes with no header: the LEGACY layout of
+ * window_channels.samples (rows written before `encodeSamples`), kept so old rows can be written
+ * in tests and so the layout stays documented. New rows use `encodeSamples` (samples-codec.ts).
+ */
 export function samplesToBytes(samples: Float64Array): Buffer {
   const buf = Buffer.allocUnsafe(samples.length * 8);
   for (let i = 0; i < samples.length; i++) buf.writeDoubleLE(samples[i] as number, i * 8);
   return buf;
 }
 
-/** Little-endian float64 bytes back to samples. */
+/**
+ * A stored window_channels.samples blob back to samples, whatever its layout (legacy float64, or
+ * tagged int32/float64, raw or DEFLATEd; see `decodeStoredSamples`).
+ * @throws RangeError when the blob is not a valid samples blob
+ */
 export function bytesToSamples(bytes: Uint8Array): Float64Array {
-  if (bytes.byteLength % 8 !== 0) throw new RangeError(`sample bytes (${bytes.byteLength}) are not a whole number of float64 values`);
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const out = new Float64Array(bytes.byteLength / 8);
-  for (let i = 0; i < out.length; i++) out[i] = view.getFloat64(i * 8, true);
-  return out;
+  return decodeStoredSamples(bytes);
 }
 
 const VELOCITY_UNITS = /^(m\/s|m\/sec|meters?\/s(ec(ond)?)?)$/i;
@@ -351,18 +367,18 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
         })
         .$returningId();
       if (!win) throw new Error('window insert returned no id');
-      for (const s of w.streams) {
-        const ch = w.analysis.channels.find((c) => c.id === s.id);
-        await tx.insert(windowChannels).values({
+      // One multi-row insert for the window's channels; samples as int32 when they are counts.
+      await tx.insert(windowChannels).values(
+        w.streams.map((s) => ({
           windowId: win.id,
           streamId: s.id,
           sampleRateHz: s.sampleRateHz,
           startTimeUs: s.startTimeUs,
           sampleCount: s.samples.length,
-          samples: samplesToBytes(s.samples),
-          qc: ch ? ch.qc : null,
-        });
-      }
+          samples: encodeSamples(s.samples),
+          qc: w.analysis.channels.find((c) => c.id === s.id)?.qc ?? null,
+        })),
+      );
       const lead = w.analysis.channels.find((c) => c.id === w.analysis.leadChannel) ?? w.analysis.channels[0];
       if (!lead) throw new Error('analysis has no channel');
       const level = noiseLevel(lead);

@@ -5,6 +5,7 @@ import type { Database } from '../db/client';
 import { queueItems } from '../db/schema/queue-items';
 import { channels, stations } from '../db/schema/stations';
 import { windowChannels } from '../db/schema/uploads';
+import { decodeStoredSamples } from './samples-codec';
 import { validateBand } from '../dsp/bands';
 import { butterworthSos } from '../dsp/butterworth';
 import { preprocessTrace } from '../dsp/preprocess';
@@ -73,12 +74,13 @@ export function bucketFor(n: number, points: number): number {
   return Math.max(1, Math.ceil((2 * n) / points));
 }
 
-/** Reads little-endian float64 samples from a stored blob (copying, so alignment never matters). */
+/**
+ * Reads `count` samples from a stored blob of any layout (legacy little-endian float64, or the
+ * tagged int32/float64 layouts of samples-codec.ts), copying, so alignment never matters.
+ * @throws RangeError when the blob does not hold exactly `count` samples or is not a samples blob
+ */
 export function decodeSamples(blob: Buffer, count: number): Float64Array {
-  if (blob.length !== count * 8) throw new RangeError(`stored samples hold ${blob.length} bytes, expected ${count} × 8`);
-  const out = new Float64Array(count);
-  for (let i = 0; i < count; i++) out[i] = blob.readDoubleLE(i * 8);
-  return out;
+  return decodeStoredSamples(blob, count);
 }
 
 /** Parses a station's stored profile (null or absent: the defaults). */
