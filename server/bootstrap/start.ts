@@ -15,6 +15,7 @@ import { publicBaseUrl } from '../email/links';
 import { ConfigError, loadEnv } from '../env';
 import { FakeSmtpError } from '../email/fake-smtp';
 import { setUpMail } from '../email/setup';
+import { createSessionStore } from '../auth/sessions';
 import { createLogger } from '../logger';
 import { createAppHub, ListenError, startServer } from '../index';
 import { appVersion } from '../version';
@@ -93,6 +94,13 @@ try {
   // No SMTP_URL: start the local fake SMTP server (loopback only); the admin Mailbox page shows its mail.
   const mail = await setUpMail(env, database.db, { onError: (err) => logger.error({ err }, 'fake SMTP server error') });
   cleanups.push(() => mail.close());
+  // Expired sessions are refused when presented; this also removes the ones nobody presents again.
+  const sessionStore = createSessionStore(database.db, { idleHours: env.SEISIFT_SESSION_IDLE_HOURS });
+  const sweep = () => sessionStore.deleteExpired().catch((err: unknown) => logger.warn({ err }, 'could not delete expired sessions'));
+  await sweep();
+  const sweeper = setInterval(() => void sweep(), 3600_000);
+  sweeper.unref();
+  cleanups.push(async () => clearInterval(sweeper));
   const ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env), mailer: mail.mailer };
   if (env.SEISIFT_SEED_DEMO === '1') await ingestDemoWindows(ctx);
   const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
