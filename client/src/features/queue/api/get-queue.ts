@@ -1,7 +1,7 @@
 import { infiniteQueryOptions, queryOptions, useInfiniteQuery, useQuery, type InfiniteData } from '@tanstack/react-query';
 import { z } from 'zod';
 import { queuePageSchema, type QueuePage, type QueueQuery } from '../../../../../shared/schemas/queue';
-import { fetchJson } from './http';
+import { apiRequest } from '../../../lib/api-client';
 
 /** The list filters a screen holds (everything of GET /api/queue but the cursor and page size). */
 export type QueueFilters = Omit<Partial<QueueQuery>, 'cursor' | 'limit'> & { sort: QueueQuery['sort'] };
@@ -40,7 +40,7 @@ export function queueSearch(f: QueueFilters, extra: { cursor?: string; limit?: n
 
 /** Fetches one page of the queue. */
 export function getQueuePage(f: QueueFilters, cursor: string | undefined, limit = QUEUE_PAGE_SIZE, signal?: AbortSignal): Promise<QueuePage> {
-  return fetchJson(queuePageSchema, `/api/queue?${queueSearch(f, { cursor, limit })}`, { signal });
+  return apiRequest(queuePageSchema, `/api/queue?${queueSearch(f, { cursor, limit })}`, { signal });
 }
 
 /** Query options of the queue list: pages of QUEUE_PAGE_SIZE, fetched on as the analyst scrolls. */
@@ -67,7 +67,7 @@ const meSchema = z.object({ user: z.object({ id: z.string(), displayName: z.stri
 
 /** Who is signed in (GET /api/auth/me): the queue needs the id to know whose claim an item is. */
 export function meOptions() {
-  return queryOptions({ queryKey: ['me'], queryFn: ({ signal }) => fetchJson(meSchema, '/api/auth/me', { signal }), staleTime: 5 * 60_000, retry: false });
+  return queryOptions({ queryKey: ['me'], queryFn: ({ signal }) => apiRequest(meSchema, '/api/auth/me', { signal, allowUnauthenticated: true }), staleTime: 5 * 60_000, retry: false });
 }
 
 /** The signed-in user (id, name, roles), or undefined while loading / signed out. */

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { queueRowSchema, type QueueRow } from '../../../../../shared/schemas/queue';
 import type { EventLabelInput, NoiseReason } from '../../../../../shared/schemas/label';
-import { fetchJson } from './http';
+import { apiRequest, noContent } from '../../../lib/api-client';
 import { patchRow } from './live-patch';
 
 /** One analyst action and what it sends. */
@@ -13,16 +13,16 @@ export type ItemActionInput =
 
 /**
  * Sends one action (POST /api/queue/items/:id/<action> with the version the analyst saw).
- * @throws QueueApiError — 409 names who changed the item and how
+ * @throws ApiError (client/src/lib/api-client.ts) — 409 names who changed the item and how
  */
 export function postItemAction(input: ItemActionInput): Promise<QueueRow> {
   const { action, id, ...body } = input;
-  return fetchJson(queueRowSchema, `/api/queue/items/${id}/${action}`, { method: 'POST', body });
+  return apiRequest(queueRowSchema, `/api/queue/items/${id}/${action}`, { method: 'POST', body });
 }
 
 /** Keeps the analyst's claim alive (POST .../keepalive). */
 export function postKeepAlive(id: number): Promise<unknown> {
-  return fetch(`/api/queue/items/${id}/keepalive`, { method: 'POST', credentials: 'same-origin' });
+  return apiRequest(noContent, `/api/queue/items/${id}/keepalive`, { method: 'POST' });
 }
 
 /**

@@ -1,12 +1,12 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { queueItemDetailSchema, tracesResponseSchema } from '../../../../../shared/schemas/queue';
-import { fetchJson } from '../../queue/api/http';
+import { apiRequest } from '../../../lib/api-client';
 import { queueKeys } from '../../queue/api/get-queue';
 
 /** Query options of one item's detail (refetched by the live channel when its version moves on). */
 export function itemOptions(id: number) {
-  return queryOptions({ queryKey: queueKeys.item(id), queryFn: ({ signal }) => fetchJson(queueItemDetailSchema, `/api/queue/items/${id}`, { signal }), staleTime: Infinity });
+  return queryOptions({ queryKey: queueKeys.item(id), queryFn: ({ signal }) => apiRequest(queueItemDetailSchema, `/api/queue/items/${id}`, { signal }), staleTime: Infinity });
 }
 
 /** One item's detail. */
@@ -24,7 +24,7 @@ export function useTraces(id: number, from: number | null, to: number | null, po
   if (to !== null) qs.set('to', to.toFixed(3));
   return useQuery({
     queryKey: queueKeys.traces(id, from, to, points),
-    queryFn: ({ signal }) => fetchJson(tracesResponseSchema, `/api/queue/items/${id}/traces?${qs.toString()}`, { signal }),
+    queryFn: ({ signal }) => apiRequest(tracesResponseSchema, `/api/queue/items/${id}/traces?${qs.toString()}`, { signal }),
     staleTime: Infinity,
     placeholderData: keepPreviousData,
   });

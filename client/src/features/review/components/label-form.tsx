@@ -53,6 +53,8 @@ export type LabelFormProps = {
 export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFormProps) {
   const { register, handleSubmit, control, formState } = form;
   const picks = useFieldArray({ control, name: 'picks' });
+  // Picks are placed from outside the form (keys, clicks) with setValue: read their values, not the field array's snapshots.
+  const values = form.watch('picks') ?? [];
   const errors = formState.errors;
   return (
     <form onSubmit={handleSubmit(onLabel)} aria-label="Label this item" className="flex flex-col gap-3">
@@ -119,10 +121,10 @@ export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFor
             <ul className="flex flex-col gap-1">
               {picks.fields.map((f, i) => (
                 <li key={f.id} className="flex flex-wrap items-center gap-2 text-sm">
-                  <span className="w-5 font-mono font-semibold">{f.phase}</span>
+                  <span className="w-5 font-mono font-semibold">{values[i]?.phase ?? f.phase}</span>
                   {/* ISO 8601 with milliseconds, as every time on screen (the pick keeps its microseconds). */}
-                  <span className="font-mono">{f.time.replace(/(\.\d{3})\d*Z$/, '$1Z')}</span>
-                  <span className="font-mono text-ink-muted">{f.streamId}</span>
+                  <span className="font-mono">{(values[i]?.time ?? f.time).replace(/(\.\d{3})\d*Z$/, '$1Z')}</span>
+                  <span className="font-mono text-ink-muted">{values[i]?.streamId ?? f.streamId}</span>
                   <label className="flex items-center gap-1">
                     <span className="sr-only">Onset of pick {i + 1}</span>
                     <Select className="h-7 w-32" {...register(`picks.${i}.onset` as const)}>
@@ -139,7 +141,7 @@ export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFor
                       ))}
                     </Select>
                   </label>
-                  <Button size="sm" variant="quiet" onClick={() => picks.remove(i)} aria-label={`Remove ${f.phase} pick ${i + 1}`}>
+                  <Button size="sm" variant="quiet" onClick={() => picks.remove(i)} aria-label={`Remove ${values[i]?.phase ?? f.phase} pick ${i + 1}`}>
                     Remove
                   </Button>
                 </li>
