@@ -1,8 +1,9 @@
-import { and, asc, count, desc, eq, gt, gte, inArray, isNull, lt, lte, or, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, gt, gte, inArray, isNull, lt, lte, or, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import { itemStates, itemStateSchema, type ItemState } from '../../shared/schemas/item-states';
 import { compareQueueRows, type QueuePage, type QueueQuery, type QueueRow, type StateCounts } from '../../shared/schemas/queue';
 import type { Database } from '../db/client';
+import { queueCounts } from '../db/schema/queue-counts';
 import { queueItems } from '../db/schema/queue-items';
 import { stations } from '../db/schema/stations';
 import { badRequest } from '../errors';
@@ -48,27 +49,25 @@ export function decodeCursor(sort: QueueQuery['sort'], cursor: string): { v: num
   return { v: t, id: parsed.id };
 }
 
-/** Conditions of every filter except `state` (the counts use these alone). */
-function baseConditions(q: QueueQuery, scope: 'all' | readonly number[]): SQL[] {
+/** Most per-part queries of one page (states × stations × flags × labels) before the parts are merged. */
+const MAX_PARTS = 64;
+
+/** The station ids a `station` filter names (`KV01` any network, or `XX.KV01`). */
+async function stationIdsFor(db: Database, keys: readonly string[]): Promise<number[]> {
+  const parts = keys.map((s) => {
+    const [a, b] = s.split('.');
+    return b === undefined ? eq(stations.code, a ?? '') : and(eq(stations.network, a ?? ''), eq(stations.code, b));
+  });
+  const rows = await db.select({ id: stations.id }).from(stations).where(or(...parts));
+  return rows.map((r) => r.id);
+}
+
+/** The label filter's condition for one value (`none`: no label). */
+const labelIs = (l: string): SQL => (l === 'none' ? isNull(queueItems.labelType) : eq(queueItems.labelType, l));
+
+/** Conditions on queue_items' own columns for the score and time ranges. */
+function rangeConditions(q: QueueQuery): SQL[] {
   const c: SQL[] = [];
-  if (scope !== 'all') c.push(scope.length > 0 ? inArray(queueItems.stationId, [...scope]) : eq(queueItems.id, -1));
-  if (q.station && q.station.length > 0) {
-    const parts = q.station.map((s) => {
-      const [a, b] = s.split('.');
-      return b === undefined ? eq(stations.code, a ?? '') : and(eq(stations.network, a ?? ''), eq(stations.code, b));
-    });
-    const any = or(...parts);
-    if (any) c.push(any);
-  }
-  if (q.flag && q.flag.length > 0) c.push(inArray(queueItems.flag, q.flag));
-  if (q.label && q.label.length > 0) {
-    const types = q.label.filter((l) => l !== 'none');
-    const parts: SQL[] = [];
-    if (types.length > 0) parts.push(inArray(queueItems.labelType, types));
-    if (q.label.includes('none')) parts.push(isNull(queueItems.labelType));
-    const any = or(...parts);
-    if (any) c.push(any);
-  }
   if (q.scoreMin !== undefined) c.push(gte(queueItems.score, q.scoreMin));
   if (q.scoreMax !== undefined) c.push(lte(queueItems.score, q.scoreMax));
   if (q.from !== undefined) c.push(gte(queueItems.windowStart, new Date(q.from)));
@@ -76,55 +75,142 @@ function baseConditions(q: QueueQuery, scope: 'all' | readonly number[]): SQL[] 
   return c;
 }
 
+/** One part of a page: a state and, where the query filters them, one station, flag and label. */
+interface Part {
+  state: ItemState;
+  stationId: number | null;
+  flag: string | null;
+  label: string | null;
+}
+
+/**
+ * The parts of a page. Each part's query has equality conditions only on the leading columns of
+ * one of the (state, score, id), (state, created_at, id), (station_id, state, score),
+ * (flag, state, score) or (label_type, state, score) indexes, so it reads that index in order and
+ * stops after limit+1 entries; an `IN` list instead would make MariaDB sort every matching row.
+ * When the product of the lists is too large, the lists stay `IN` conditions, per state.
+ */
+function pagePlan(states: readonly ItemState[], stationIds: readonly number[] | 'all', q: QueueQuery): { parts: Part[]; shared: SQL[] } {
+  const stationList: Array<number | null> = stationIds === 'all' ? [null] : [...stationIds];
+  const flagList: Array<string | null> = q.flag && q.flag.length > 0 ? [...new Set(q.flag)] : [null];
+  const labelList: Array<string | null> = q.label && q.label.length > 0 ? [...new Set(q.label)] : [null];
+  const shared = rangeConditions(q);
+  if (states.length * stationList.length * flagList.length * labelList.length <= MAX_PARTS) {
+    const parts: Part[] = [];
+    for (const state of states) for (const stationId of stationList) for (const flag of flagList) for (const label of labelList) parts.push({ state, stationId, flag, label });
+    return { parts, shared };
+  }
+  if (stationIds !== 'all') shared.push(inArray(queueItems.stationId, [...stationIds]));
+  if (q.flag && q.flag.length > 0) shared.push(inArray(queueItems.flag, q.flag));
+  if (q.label && q.label.length > 0) {
+    const any = or(...q.label.map(labelIs));
+    if (any) shared.push(any);
+  }
+  return { parts: states.map((state) => ({ state, stationId: null, flag: null, label: null })), shared };
+}
+
+const partConditions = (p: Part): SQL[] => {
+  const c: SQL[] = [eq(queueItems.state, p.state)];
+  if (p.stationId !== null) c.push(eq(queueItems.stationId, p.stationId));
+  if (p.flag !== null) c.push(eq(queueItems.flag, p.flag));
+  if (p.label !== null) c.push(labelIs(p.label));
+  return c;
+};
+
+const emptyCounts = (): StateCounts => ({ new: 0, 'in review': 0, labelled: 0, dismissed: 0, escalated: 0, confirmed: 0, returned: 0 });
+
 /**
  * One page of the queue for a viewer whose station scope is `scope` ('all' or assigned ids).
+ *
+ * 1. The station filter and the scope become station ids (the 6-row stations table, once).
+ * 2. The page's ids come from queue_items alone, one index-ordered `ORDER BY … LIMIT limit+1`
+ *    query per part (`pagePlan`), merged here. The cursor condition is `key <= v AND (key < v OR
+ *    id < cursorId)` (mirrored for age order), which the index answers as a range starting at the
+ *    cursor; the id breaks ties.
+ * 3. Only those ids are joined with stations and users (`selectQueueRows`).
+ * 4. Counts per state: from queue_counts (kept exact by triggers, migration 0006) unless a score or
+ *    time range is given; then an exact COUNT per state over the covering
+ *    (state, window_start, …) / (state, score, …) indexes, reading only the entries in range.
  * @throws AppError 400 for a bad cursor
  */
 export async function listQueue(db: Database, q: QueueQuery, scope: 'all' | readonly number[]): Promise<QueuePage> {
-  const base = baseConditions(q, scope);
   const states: ItemState[] = q.state && q.state.length > 0 ? [...new Set(q.state)] : [...itemStates];
+  const cur = q.cursor ? decodeCursor(q.sort, q.cursor) : null;
+  let stationIds: readonly number[] | 'all' = scope === 'all' ? 'all' : [...new Set(scope)];
+  if (q.station && q.station.length > 0) {
+    const named = await stationIdsFor(db, q.station);
+    stationIds = stationIds === 'all' ? named : stationIds.filter((id) => named.includes(id));
+  }
+  if (stationIds !== 'all' && stationIds.length === 0) return { items: [], nextCursor: null, counts: emptyCounts(), total: 0 };
+
   const keyset: SQL[] = [];
-  if (q.cursor) {
-    const cur = decodeCursor(q.sort, q.cursor);
+  if (cur) {
     const after =
       typeof cur.v === 'number'
-        ? or(lt(queueItems.score, cur.v), and(eq(queueItems.score, cur.v), lt(queueItems.id, cur.id)))
-        : or(gt(queueItems.createdAt, cur.v), and(eq(queueItems.createdAt, cur.v), gt(queueItems.id, cur.id)));
+        ? and(lte(queueItems.score, cur.v), or(lt(queueItems.score, cur.v), lt(queueItems.id, cur.id)))
+        : and(gte(queueItems.createdAt, cur.v), or(gt(queueItems.createdAt, cur.v), gt(queueItems.id, cur.id)));
     if (after) keyset.push(after);
   }
   const order = q.sort === 'score' ? [desc(queueItems.score), desc(queueItems.id)] : [asc(queueItems.createdAt), asc(queueItems.id)];
-  // One query per state, merged here: with `state = ?` each reads the (state, score, id) or
-  // (state, created_at, id) index in order and stops after limit+1 rows, where `state IN (...)`
-  // would sort every matching row (EXPLAIN: "Using filesort") — at a million rows the difference
-  // is a few hundred index entries against a sort of most of the table.
-  const perState = await Promise.all(
-    states.map((state) =>
-      selectQueueRows(db)
-        .where(and(...base, eq(queueItems.state, state), ...keyset))
-        .orderBy(...order)
-        .limit(q.limit + 1),
+  const { parts, shared } = pagePlan(states, stationIds, q);
+  const [perPart, counts] = await Promise.all([
+    Promise.all(
+      parts.map((p) =>
+        db
+          .select({ id: queueItems.id, score: queueItems.score, createdAt: queueItems.createdAt })
+          .from(queueItems)
+          .where(and(...partConditions(p), ...shared, ...keyset))
+          .orderBy(...order)
+          .limit(q.limit + 1),
+      ),
     ),
-  );
-  const cmp = compareQueueRows(q.sort);
-  const merged = perState.flat().map(presentQueueRow).sort(cmp);
+    countByState(db, q, stationIds),
+  ]);
+  const keys = perPart.flat();
+  keys.sort(q.sort === 'score' ? (a, b) => b.score - a.score || b.id - a.id : (a, b) => a.createdAt.getTime() - b.createdAt.getTime() || a.id - b.id);
+  const ids = keys.slice(0, q.limit + 1).map((k) => k.id);
+  const rows = ids.length > 0 ? (await selectQueueRows(db).where(inArray(queueItems.id, ids))).map(presentQueueRow) : [];
+  const merged = rows.sort(compareQueueRows(q.sort));
   const items = merged.slice(0, q.limit);
   const last = items[items.length - 1];
   const nextCursor = merged.length > q.limit && last ? encodeCursor(q.sort, last) : null;
-  const counts = await countByState(db, base, q.station !== undefined && q.station.length > 0);
   const total = states.reduce((sum, s) => sum + counts[s], 0);
   return { items, nextCursor, counts, total };
 }
 
-/** Items per state under `conditions` (joined with stations only when a station filter needs it). */
-async function countByState(db: Database, conditions: SQL[], needsStations: boolean): Promise<StateCounts> {
-  const query = db.select({ state: queueItems.state, n: count() }).from(queueItems);
-  const rows = needsStations
-    ? await query.innerJoin(stations, eq(stations.id, queueItems.stationId)).where(and(...conditions)).groupBy(queueItems.state)
-    : await query.where(and(...conditions)).groupBy(queueItems.state);
-  const counts: StateCounts = { new: 0, 'in review': 0, labelled: 0, dismissed: 0, escalated: 0, confirmed: 0, returned: 0 };
-  for (const r of rows) {
-    const state = itemStateSchema.safeParse(r.state);
-    if (state.success) counts[state.data] = r.n;
+/** Items per state under every filter except `state` (exact; see `listQueue` step 4). */
+async function countByState(db: Database, q: QueueQuery, stationIds: readonly number[] | 'all'): Promise<StateCounts> {
+  const counts = emptyCounts();
+  const labels = q.label && q.label.length > 0 ? q.label : null;
+  const flags = q.flag && q.flag.length > 0 ? q.flag : null;
+  const ranged = q.scoreMin !== undefined || q.scoreMax !== undefined || q.from !== undefined || q.to !== undefined;
+  if (!ranged) {
+    const c: SQL[] = [];
+    if (stationIds !== 'all') c.push(inArray(queueCounts.stationId, [...stationIds]));
+    if (flags) c.push(inArray(queueCounts.flag, flags));
+    if (labels) c.push(inArray(queueCounts.labelKey, labels.map((l) => (l === 'none' ? '' : l))));
+    const rows = await db
+      .select({ state: queueCounts.state, n: sql<string | number>`SUM(${queueCounts.n})` })
+      .from(queueCounts)
+      .where(and(...c))
+      .groupBy(queueCounts.state);
+    for (const r of rows) {
+      const state = itemStateSchema.safeParse(r.state);
+      if (state.success) counts[state.data] = Number(r.n);
+    }
+    return counts;
   }
+  const c = rangeConditions(q);
+  if (stationIds !== 'all') c.push(inArray(queueItems.stationId, [...stationIds]));
+  if (flags) c.push(inArray(queueItems.flag, flags));
+  if (labels) {
+    const any = or(...labels.map(labelIs));
+    if (any) c.push(any);
+  }
+  // One COUNT per state: `state = ?` plus the range is a range scan of a covering index.
+  const per = await Promise.all(itemStates.map((state) => db.select({ n: count() }).from(queueItems).where(and(eq(queueItems.state, state), ...c))));
+  itemStates.forEach((state, i) => {
+    counts[state] = per[i]?.[0]?.n ?? 0;
+  });
   return counts;
 }

@@ -48,5 +48,10 @@ export const queueItems = mysqlTable(
     index('queue_items_flag_state_score_idx').on(t.flag, t.state, t.score),
     index('queue_items_label_type_idx').on(t.labelType, t.state),
     index('queue_items_state_claimed_idx').on(t.state, t.claimedAt),
+    // Issue 9 (a million items): the label filter in score order, and exact per-state counts
+    // under a score or time range read from the index alone (covering: every filter column).
+    index('queue_items_label_state_score_idx').on(t.labelType, t.state, t.score),
+    index('queue_items_state_window_cover_idx').on(t.state, t.windowStart, t.stationId, t.flag, t.labelType, t.score),
+    index('queue_items_state_score_cover_idx').on(t.state, t.score, t.stationId, t.flag, t.labelType, t.windowStart),
   ],
 );
