@@ -54,14 +54,22 @@ function demoFolderWithout(files: readonly string[]): string {
   return dir;
 }
 
-/** Runs `what`, naming `step` in the error when it fails. */
-async function step<T>(name: string, what: () => Promise<T>): Promise<T> {
+/** Where a failing step leaves a picture of the page (git-ignored). */
+const failureShot = resolve(process.cwd(), '.data/screenshots/docs-screenshots-failure.png');
+
+/** Runs `what`, naming `step` in the error when it fails, with a picture of `page` at that moment. */
+async function step<T>(page: Page, name: string, what: () => Promise<T>): Promise<T> {
   try {
     return await what();
   } catch (err) {
-    throw new Error(`screenshot step "${name}": ${err instanceof Error ? err.message : String(err)}`);
+    mkdirSync(dirname(failureShot), { recursive: true });
+    await page.screenshot({ path: failureShot }).catch(() => undefined);
+    throw new Error(`screenshot step "${name}" on ${page.url()}: ${err instanceof Error ? err.message : String(err)} (the page as it was: ${failureShot})`);
   }
 }
+
+/** The trimmed copy of demo-waveforms/ of this run. */
+let demoDir = '';
 
 async function main(): Promise<void> {
   if (!process.argv.includes('--no-build')) {
@@ -69,8 +77,18 @@ async function main(): Promise<void> {
     buildClient();
   }
   mkdirSync(docsScreenshotDir, { recursive: true });
-  const demoDir = demoFolderWithout(heldBackFiles);
+  demoDir = demoFolderWithout(heldBackFiles);
   await startThrowAwayMariaDb();
+  try {
+    await takeScreenshots();
+  } finally {
+    await stopThrowAwayMariaDb();
+    rmSync(demoDir, { recursive: true, force: true });
+  }
+}
+
+/** Seeds and ingests the demo into a fresh database on the throw-away MariaDB, serves it, and takes every screenshot. */
+async function takeScreenshots(): Promise<void> {
   const ctx = await createTestContext();
   const pool = createAnalysisPool({ threads: 1 });
   const browser = await launchBrowser({ width: 1440, height: 900, colorScheme: 'dark' });
@@ -115,14 +133,14 @@ async function main(): Promise<void> {
       await page.evaluate(() => (document.activeElement instanceof HTMLElement ? document.activeElement.blur() : undefined));
     };
 
-    await step('sign-in page', async () => {
+    await step(page, 'sign-in page', async () => {
       await page.goto(`${url}/sign-in`, { waitUntil: 'networkidle' });
       await page.getByRole('heading', { name: 'Sign in to Seisift' }).waitFor();
       await page.getByLabel('E-mail').fill('analyst@kestrel.example');
       await shoot('01-sign-in');
     });
 
-    await step('operator upload results', async () => {
+    await step(page, 'operator upload results', async () => {
       await signIn('operator@kestrel.example');
       await page.goto(`${url}/upload`);
       await page.getByRole('heading', { name: 'Upload waveform windows' }).waitFor();
@@ -136,7 +154,7 @@ async function main(): Promise<void> {
       await shoot('02-operator-upload-results');
     });
 
-    await step('operator station health', async () => {
+    await step(page, 'operator station health', async () => {
       const [kv01] = await db.select({ id: stations.id }).from(stations).where(and(eq(stations.network, 'XX'), eq(stations.code, 'KV01')));
       if (!kv01) throw new Error('station XX.KV01 is not seeded');
       await page.goto(`${url}/stations/${kv01.id}`);
@@ -150,7 +168,7 @@ async function main(): Promise<void> {
       await shoot('03-operator-station-health');
     });
 
-    await step('analyst queue', async () => {
+    await step(page, 'analyst queue', async () => {
       await signIn('analyst@kestrel.example');
       await page.goto(`${url}/queue`);
       await page.locator('tr[data-item-id]').first().waitFor({ timeout: 15_000 });
@@ -167,9 +185,9 @@ async function main(): Promise<void> {
       .limit(1);
     if (!event) throw new Error('no waiting "likely event" item after the demo ingest');
 
-    await step('analyst review', async () => {
+    await step(page, 'analyst review', async () => {
       await page.goto(`${url}/queue/items/${event.id}`);
-      await page.locator('[data-testid="trace-panel"] canvas').first().waitFor({ timeout: 20_000 });
+      await page.locator('[data-testid="trace-panel"] canvas').first().waitFor({ timeout: 45_000 });
       await page.keyboard.press('c');
       await page.locator(`[data-item-id="${event.id}"] [data-testid="claim-holder"]:has-text("you")`).waitFor({ timeout: 10_000 });
       await page.keyboard.press('p');
@@ -178,14 +196,14 @@ async function main(): Promise<void> {
       await shoot('05-analyst-review');
     });
 
-    await step('supervisor inbox', async () => {
+    await step(page, 'supervisor inbox', async () => {
       await signIn('supervisor@kestrel.example');
       await page.goto(`${url}/inbox`);
       await page.locator('tr', { hasText: 'escalated by' }).first().waitFor({ timeout: 15_000 });
       await shoot('06-supervisor-inbox');
     });
 
-    await step('supervisor review and catalogue', async () => {
+    await step(page, 'supervisor review and catalogue', async () => {
       await page.goto(`${url}/review`);
       await page.getByRole('heading', { name: 'Review & catalogue' }).waitFor({ timeout: 15_000 });
       await setPeriod();
@@ -193,7 +211,7 @@ async function main(): Promise<void> {
       await shoot('07-supervisor-review');
     });
 
-    await step('supervisor thresholds', async () => {
+    await step(page, 'supervisor thresholds', async () => {
       await page.goto(`${url}/thresholds`);
       await page.getByRole('table', { name: 'Confusion counts on the labelled history' }).waitFor({ timeout: 15_000 });
       await setPeriod();
@@ -204,7 +222,7 @@ async function main(): Promise<void> {
       await shoot('08-supervisor-thresholds');
     });
 
-    await step('supervisor dashboard', async () => {
+    await step(page, 'supervisor dashboard', async () => {
       await page.goto(`${url}/dashboard`);
       // The dashboard counts items by the day they arrived (today, for the demo ingest): its default period fits.
       await page.getByText('Items per day per station').waitFor({ timeout: 15_000 });
@@ -213,7 +231,7 @@ async function main(): Promise<void> {
       await shoot('09-supervisor-dashboard');
     });
 
-    await step('light theme', async () => {
+    await step(page, 'light theme', async () => {
       // The supervisor (who may see every station) on KV04's page, in the light theme.
       const [kv04] = await db.select({ id: stations.id }).from(stations).where(and(eq(stations.network, 'XX'), eq(stations.code, 'KV04')));
       if (!kv04) throw new Error('station XX.KV04 is not seeded');
@@ -231,8 +249,6 @@ async function main(): Promise<void> {
     await running?.close();
     await pool.close();
     await ctx.close();
-    await stopThrowAwayMariaDb();
-    rmSync(demoDir, { recursive: true, force: true });
   }
 }
 
