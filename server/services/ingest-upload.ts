@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import { eq, inArray } from 'drizzle-orm';
+import { z } from 'zod';
 import { can } from '../../shared/auth/policies';
 import { flagSchema } from '../../shared/schemas/flags';
 import { channelResponseSchema } from '../../shared/schemas/station';
@@ -158,6 +159,46 @@ export function samplesToBytes(samples: Float64Array): Buffer {
  */
 export function bytesToSamples(bytes: Uint8Array): Float64Array {
   return decodeStoredSamples(bytes);
+}
+
+/** A mysql2 connection's `execute` (prepared statement, binary protocol). */
+type Execute = (sql: string, params: unknown[]) => Promise<unknown>;
+
+/**
+ * The open transaction's own mysql2 connection's `execute`, or null when it cannot be reached
+ * (drizzle keeps it as `session.client`; a pool there would mean another connection, outside the
+ * transaction, so that is refused too).
+ */
+function transactionExecute(tx: DbOrTx): Execute | null {
+  const session: unknown = Reflect.get(tx, 'session');
+  if (typeof session !== 'object' || session === null) return null;
+  const client: unknown = Reflect.get(session, 'client');
+  if (typeof client !== 'object' || client === null) return null;
+  if (typeof Reflect.get(client, 'getConnection') === 'function') return null;
+  const execute: unknown = Reflect.get(client, 'execute');
+  if (typeof execute !== 'function') return null;
+  return (sql, params) => Promise.resolve(Reflect.apply(execute, client, [sql, params]));
+}
+
+const insertResultSchema = z.tuple([z.object({ insertId: z.number() }).loose()], z.unknown());
+
+/**
+ * Runs a drizzle INSERT with its parameters sent as binary (mysql2 `execute`, a prepared statement)
+ * on the transaction's connection, instead of drizzle's text `query`, which hex-escapes BLOBs and
+ * so sends twice their size as SQL (measured: 205 kB of BLOBs commit in 5.2 ms binary against
+ * 8.5 ms as text; docs/PERFORMANCE.md). Falls back to the drizzle statement when the connection
+ * cannot be reached. Returns the first inserted id, as `$returningId()` would.
+ */
+async function insertBinary(tx: DbOrTx, insert: { toSQL(): { sql: string; params: unknown[] }; execute(): Promise<unknown> }): Promise<Array<{ id: number }>> {
+  const execute = transactionExecute(tx);
+  let result: unknown;
+  if (execute) {
+    const { sql, params } = insert.toSQL();
+    result = await execute(sql, params);
+  } else result = await insert.execute();
+  const parsed = insertResultSchema.safeParse(result);
+  if (!parsed.success) throw new Error('insert returned no result header');
+  return [{ id: parsed.data[0].insertId }];
 }
 
 const VELOCITY_UNITS = /^(m\/s|m\/sec|meters?\/s(ec(ond)?)?)$/i;
@@ -333,7 +374,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   const primary = analysed[0] as AnalysedWindow;
   const result = await deps.db.transaction(async (tx) => {
     const now = new Date();
-    const [up] = await tx
+    const [up] = await insertBinary(tx, tx
       .insert(uploads)
       .values({
         sha256: sha,
@@ -346,8 +387,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
         uploadedByUserId: caller.kind === 'user' ? caller.user.id : null,
         ingestTokenId: caller.kind === 'ingest' ? caller.ingest.tokenId : null,
         createdAt: now,
-      })
-      .$returningId();
+      }));
     if (!up) throw new Error('upload insert returned no id');
     const created: Array<{ itemId: number; w: AnalysedWindow; windowStart: Date }> = [];
     for (const w of analysed) {
@@ -368,7 +408,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
         .$returningId();
       if (!win) throw new Error('window insert returned no id');
       // One multi-row insert for the window's channels; samples as int32 when they are counts.
-      await tx.insert(windowChannels).values(
+      await insertBinary(tx, tx.insert(windowChannels).values(
         w.streams.map((s) => ({
           windowId: win.id,
           streamId: s.id,
@@ -378,7 +418,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
           samples: encodeSamples(s.samples),
           qc: w.analysis.channels.find((c) => c.id === s.id)?.qc ?? null,
         })),
-      );
+      ));
       const lead = w.analysis.channels.find((c) => c.id === w.analysis.leadChannel) ?? w.analysis.channels[0];
       if (!lead) throw new Error('analysis has no channel');
       const level = noiseLevel(lead);
