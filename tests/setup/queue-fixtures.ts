@@ -55,18 +55,27 @@ export async function ensureStation(db: Database, code: string): Promise<number>
   const [found] = await db.select({ id: stations.id }).from(stations).where(eq(stations.code, code));
   if (found) return found.id;
   const now = new Date();
-  const [res] = await db.insert(stations).values({
-    network: 'XX',
-    code,
-    name: `Kestrel Valley ${code}`,
-    latitude: 46.5,
-    longitude: 8.1,
-    elevationM: 900,
-    profile: defaultProcessingProfile,
-    createdAt: now,
-    updatedAt: now,
-  });
-  return res.insertId;
+  // Concurrent callers may race to create the same station: the unique key decides, the loser reads it.
+  const inserted = await db
+    .insert(stations)
+    .values({
+      network: 'XX',
+      code,
+      name: `Kestrel Valley ${code}`,
+      latitude: 46.5,
+      longitude: 8.1,
+      elevationM: 900,
+      profile: defaultProcessingProfile,
+      createdAt: now,
+      updatedAt: now,
+    })
+    .then(([res]) => res.insertId)
+    .catch(async (err: unknown) => {
+      const [again] = await db.select({ id: stations.id }).from(stations).where(eq(stations.code, code));
+      if (again) return again.id;
+      throw err;
+    });
+  return inserted;
 }
 
 /**
