@@ -52,6 +52,13 @@ export function decodeCursor(sort: QueueQuery['sort'], cursor: string): { v: num
 /** Most per-part queries of one page (states × stations × flags × labels) before the parts are merged. */
 const MAX_PARTS = 64;
 
+/**
+ * Under a time range, a state with at most this many matching items is read through the
+ * (state, window_start, …) index and sorted (at most this many index entries), rather than by
+ * walking its score or age index.
+ */
+const FEW_IN_RANGE = 5000;
+
 /** The station ids a `station` filter names (`KV01` any network, or `XX.KV01`). */
 async function stationIdsFor(db: Database, keys: readonly string[]): Promise<number[]> {
   const parts = keys.map((s) => {
@@ -152,22 +159,27 @@ export async function listQueue(db: Database, q: QueueQuery, scope: 'all' | read
     if (after) keyset.push(after);
   }
   const order = q.sort === 'score' ? [desc(queueItems.score), desc(queueItems.id)] : [asc(queueItems.createdAt), asc(queueItems.id)];
-  const { parts, shared } = pagePlan(states, stationIds, q);
-  const [perPart, counts] = await Promise.all([
-    Promise.all(
-      parts.map((p) =>
-        db
-          .select({ id: queueItems.id, score: queueItems.score, createdAt: queueItems.createdAt })
-          .from(queueItems)
-          .where(and(...partConditions(p), ...shared, ...keyset))
-          .orderBy(...order)
-          .limit(q.limit + 1),
-      ),
-    ),
-    countByState(db, q, stationIds),
-  ]);
-  const keys = perPart.flat();
-  keys.sort(q.sort === 'score' ? (a, b) => b.score - a.score || b.id - a.id : (a, b) => a.createdAt.getTime() - b.createdAt.getTime() || a.id - b.id);
+  // The counts come first: a state with no matching item needs no page query, and a state with
+  // few matches under a time range is read by that range (the index on (state, window_start, …))
+  // and sorted, where walking the score or age index would pass over most of the state's rows.
+  const counts = await countByState(db, q, stationIds);
+  const timeRanged = q.from !== undefined || q.to !== undefined;
+  const { parts, shared } = pagePlan(
+    states.filter((st) => counts[st] > 0),
+    stationIds,
+    q,
+  );
+  const perPart = await Promise.all(
+    parts.map((p) => {
+      const hint = timeRanged && counts[p.state] <= FEW_IN_RANGE ? { forceIndex: 'queue_items_state_window_cover_idx' } : undefined;
+      const where = and(...partConditions(p), ...shared, ...keyset);
+      return q.sort === 'score'
+        ? db.select({ id: queueItems.id, key: queueItems.score }).from(queueItems, hint).where(where).orderBy(...order).limit(q.limit + 1)
+        : db.select({ id: queueItems.id, key: queueItems.createdAt }).from(queueItems, hint).where(where).orderBy(...order).limit(q.limit + 1);
+    }),
+  );
+  const keys = perPart.flat().map((k) => ({ id: k.id, key: typeof k.key === 'number' ? k.key : k.key.getTime() }));
+  keys.sort(q.sort === 'score' ? (a, b) => b.key - a.key || b.id - a.id : (a, b) => a.key - b.key || a.id - b.id);
   const ids = keys.slice(0, q.limit + 1).map((k) => k.id);
   const rows = ids.length > 0 ? (await selectQueueRows(db).where(inArray(queueItems.id, ids))).map(presentQueueRow) : [];
   const merged = rows.sort(compareQueueRows(q.sort));

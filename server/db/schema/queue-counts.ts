@@ -1,4 +1,4 @@
-import { bigint, mysqlTable, primaryKey, varchar } from 'drizzle-orm/mysql-core';
+import { bigint, index, mysqlTable, primaryKey, varchar } from 'drizzle-orm/mysql-core';
 import { refColumn } from './columns';
 
 /**
@@ -18,5 +18,9 @@ export const queueCounts = mysqlTable(
     labelKey: varchar('label_key', { length: 40 }).notNull(),
     n: bigint('n', { mode: 'number' }).notNull().default(0),
   },
-  (t) => [primaryKey({ columns: [t.stationId, t.state, t.flag, t.labelKey] })],
+  (t) => [
+    primaryKey({ columns: [t.stationId, t.state, t.flag, t.labelKey] }),
+    // Covering: the per-state sums read this index alone, whichever filters are given.
+    index('queue_counts_state_cover_idx').on(t.state, t.flag, t.labelKey, t.stationId, t.n),
+  ],
 );

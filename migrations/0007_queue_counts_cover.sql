@@ -1,0 +1,1 @@
+CREATE INDEX `queue_counts_state_cover_idx` ON `queue_counts` (`state`,`flag`,`label_key`,`station_id`,`n`);
