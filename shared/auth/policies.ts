@@ -7,10 +7,13 @@ import type { Role } from './roles';
  * only to hide controls. No role checks anywhere else.
  *
  * Who may do what (issue 3, "Roles and what each may do"):
- * - operator: only the stations assigned to them — view, edit, upload, ingest tokens, their items;
- *   may register a new station.
- * - analyst: works the queue for every station; may view every station.
- * - supervisor: every analyst right, plus review, thresholds, catalogue export, audit log.
+ * - operator: only the stations assigned to them — view, edit, upload, ingest tokens, their items.
+ *   Operators do not register stations (issue 5: "Supervisors and admins create stations;
+ *   operators edit their own").
+ * - analyst: works the queue for every station; may view every station (its health helps when
+ *   judging an item), so the Stations page is in an analyst's navigation.
+ * - supervisor: every analyst right, plus registering stations, review, thresholds, catalogue
+ *   export, audit log.
  * - admin: people, roles, station assignments, invitations, the station registry and its tokens,
  *   the audit log and the local mailbox. Admin implies no analyst/supervisor right, and no role
  *   implies admin.
@@ -59,7 +62,7 @@ export type PolicyTarget = { stationId: number };
  */
 export const policyTable: Record<Action, Partial<Record<Role, 'all' | 'assigned'>>> = {
   'station.view': { operator: 'assigned', analyst: 'all', supervisor: 'all', admin: 'all' },
-  'station.create': { operator: 'all', admin: 'all' },
+  'station.create': { supervisor: 'all', admin: 'all' },
   'station.edit': { operator: 'assigned', admin: 'all' },
   'upload.create': { operator: 'assigned' },
   'token.manage': { operator: 'assigned', admin: 'all' },

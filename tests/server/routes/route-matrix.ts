@@ -359,12 +359,12 @@ export const routeMatrix: readonly MatrixRow[] = [
     },
   },
 
-  // ---- stations (issue 5): operators only on their own stations
+  // ---- stations (issue 5): supervisors and admins register stations; operators only on their own stations
   { method: 'GET', path: '/api/stations', allow: ['operator', 'analyst', 'supervisor', 'admin'], action: 'station.view', build: async () => ({ path: '/api/stations' }) },
   {
     method: 'POST',
     path: '/api/stations',
-    allow: ['operator', 'admin'],
+    allow: ['supervisor', 'admin'],
     action: 'station.create',
     build: async () => {
       const n = next();

@@ -16,12 +16,12 @@ describe('policies', () => {
     expect(stationScope(null, 'station.view')).toBe('none');
   });
 
-  it('operator: only assigned stations — view, edit, upload, tokens, their items; may register stations', () => {
+  it('operator: only assigned stations — view, edit, upload, tokens, their items; registers no station (issue 5)', () => {
     for (const a of ['station.view', 'station.edit', 'upload.create', 'token.manage', 'queue.view'] as const) {
       expect(can(operator, a, { stationId: 2 }), a).toBe(true);
       expect(can(operator, a, { stationId: 4 }), a).toBe(false);
     }
-    expect(can(operator, 'station.create')).toBe(true);
+    expect(can(operator, 'station.create')).toBe(false);
     expect(stationScope(operator, 'station.view')).toEqual([1, 2, 3]);
     for (const a of ['queue.claim', 'queue.label', 'queue.dismiss', 'queue.escalate', 'review.evaluate', 'thresholds.edit', 'catalogue.export', 'audit.view', 'users.manage', 'mailbox.view'] as const)
       expect(can(operator, a), a).toBe(false);
@@ -36,13 +36,13 @@ describe('policies', () => {
 
   it('analyst: works the queue for every station, views every station, nothing of supervision or admin', () => {
     for (const a of ['queue.view', 'queue.claim', 'queue.label', 'queue.dismiss', 'queue.escalate', 'station.view'] as const) expect(can(analyst, a, { stationId: 99 }), a).toBe(true);
-    for (const a of ['review.evaluate', 'thresholds.edit', 'catalogue.export', 'audit.view', 'users.manage', 'upload.create', 'station.edit', 'token.manage'] as const)
+    for (const a of ['review.evaluate', 'thresholds.edit', 'catalogue.export', 'audit.view', 'users.manage', 'upload.create', 'station.create', 'station.edit', 'token.manage'] as const)
       expect(can(analyst, a), a).toBe(false);
   });
 
-  it('supervisor: every analyst right plus review, thresholds, export and the audit log', () => {
+  it('supervisor: every analyst right plus registering stations (issue 5), review, thresholds, export and the audit log', () => {
     for (const a of allowedActions(analyst)) expect(can(supervisor, a, { stationId: 7 }), a).toBe(true);
-    for (const a of ['review.evaluate', 'thresholds.edit', 'catalogue.export', 'audit.view', 'inbox.view', 'dashboard.view'] as const) expect(can(supervisor, a), a).toBe(true);
+    for (const a of ['station.create', 'review.evaluate', 'thresholds.edit', 'catalogue.export', 'audit.view', 'inbox.view', 'dashboard.view'] as const) expect(can(supervisor, a), a).toBe(true);
     expect(can(supervisor, 'users.manage')).toBe(false);
     expect(can(supervisor, 'mailbox.view')).toBe(false);
   });

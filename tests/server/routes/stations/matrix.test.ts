@@ -82,7 +82,7 @@ describe('role × route matrix: stations, tokens, import, uploads, OpenAPI', () 
     {
       route: 'POST /api/stations',
       run: (w) => call('post', '/api/stations', w).send({ network: 'XX', code: `M${next()}`, name: 'Matrix station', latitude: 46, longitude: 11, elevationM: 0 }),
-      expect: { anonymous: 401, opMine: 201, opOther: 201, analyst: 403, supervisor: 403, admin: 201 },
+      expect: { anonymous: 401, opMine: 403, opOther: 403, analyst: 403, supervisor: 201, admin: 201 },
     },
     { route: 'GET /api/stations/:id', run: (w) => call('get', `/api/stations/${stationId}`, w), expect: { anonymous: 401, opMine: 200, opOther: 403, analyst: 200, supervisor: 200, admin: 200 } },
     {

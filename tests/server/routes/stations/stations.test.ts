@@ -35,6 +35,7 @@ describe('station registry API (real MariaDB)', () => {
   let admin: TestPerson;
   let operator: TestPerson;
   let analyst: TestPerson;
+  let supervisor: TestPerson;
   let stationId: number;
 
   const send = (method: 'post' | 'patch' | 'put' | 'delete', who: TestPerson | null, url: string) => {
@@ -52,6 +53,7 @@ describe('station registry API (real MariaDB)', () => {
     admin = await createPerson(ctx.database.db, { roles: ['admin'] });
     operator = await createPerson(ctx.database.db, { roles: ['operator'] });
     analyst = await createPerson(ctx.database.db, { roles: ['analyst'] });
+    supervisor = await createPerson(ctx.database.db, { roles: ['supervisor'] });
   });
   afterAll(async () => {
     await ctx.close();
@@ -111,10 +113,15 @@ describe('station registry API (real MariaDB)', () => {
     expect(detail.body.baseline).toMatchObject({ count: 0, source: 'none', inUse: false });
   });
 
-  it('operators: register their own station (and are assigned), edit it, not others; analysts view only', async () => {
-    const mine = await send('post', operator, '/api/stations').send({ network: 'XX', code: 'KV06', name: 'Kestrel Valley east forest', latitude: 46.26, longitude: 11.17, elevationM: 960 });
+  it('supervisors register stations, operators may not (issue 5); an operator edits their own station, not others; analysts view only', async () => {
+    const refused = await send('post', operator, '/api/stations').send({ network: 'XX', code: 'KV06', name: 'Kestrel Valley east forest', latitude: 46.26, longitude: 11.17, elevationM: 960 });
+    expect(refused.status).toBe(403);
+    const mine = await send('post', supervisor, '/api/stations').send({ network: 'XX', code: 'KV06', name: 'Kestrel Valley east forest', latitude: 46.26, longitude: 11.17, elevationM: 960 });
     expect(mine.status).toBe(201);
     const mineId = z.number().parse(mine.body.station.id);
+    // An admin assigns the new station to the operator.
+    const assigned = await send('put', admin, `/api/admin/users/${operator.id}/stations`).send({ stationIds: [mineId] });
+    expect(assigned.status).toBe(204);
     const edit = await send('patch', operator, `/api/stations/${mineId}`).send({ siteDescription: 'Forest road vault' });
     expect(edit.status).toBe(200);
     expect(edit.body.station.siteDescription).toBe('Forest road vault');
