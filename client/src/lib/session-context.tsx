@@ -11,6 +11,8 @@ export type SessionUser = {
 /** What the session context holds: the user, or null when nobody is signed in. */
 export type SessionValue = {
   user: SessionUser | null;
+  /** Server features in use (from GET /api/auth/session); left out, the navigation treats them as on. */
+  features?: { mailbox: boolean };
 };
 
 const SessionContext = createContext<SessionValue>({ user: null });

@@ -3,16 +3,19 @@ import { roles, type Role } from '../../../shared/auth/roles';
 import { navFor, navItems, paths } from '../../../client/src/config/paths';
 
 /*
- * Who sees which section, as issue 10 lists it: Queue (analyst, supervisor); Stations and Upload
- * (operator, supervisor, admin); Review & catalogue, Thresholds, Dashboard, Inbox (supervisor);
- * Audit log (supervisor, admin); admin users and Mailbox (admin); Account (all). Home is for
- * everyone signed in; the design reference for admins (and in development builds).
+ * Who sees which section, written out by hand from the role descriptions of issue 3 and issue 5
+ * (not derived from the policy table the navigation reads, so a drift in either shows here):
+ * Queue (analyst, supervisor: they work the queue); Stations (operator, analyst, supervisor, admin:
+ * station.view); Upload (operator only: upload.create); Review & catalogue, Thresholds, Dashboard,
+ * Inbox (supervisor); Audit log (supervisor, admin); Users and Mailbox (admin; Mailbox only while the
+ * local fake mailbox is in use); Account (all). Home is for everyone signed in; the design reference
+ * for admins (and in development builds).
  */
 const expected: Record<string, readonly Role[]> = {
   home: roles,
   queue: ['analyst', 'supervisor'],
-  stations: ['operator', 'supervisor', 'admin'],
-  upload: ['operator', 'supervisor', 'admin'],
+  stations: ['operator', 'analyst', 'supervisor', 'admin'],
+  upload: ['operator'],
   review: ['supervisor'],
   thresholds: ['supervisor'],
   dashboard: ['supervisor'],
@@ -30,7 +33,7 @@ describe('navigation by role', () => {
   });
 
   it.each(roles)('shows a %s exactly the sections of that role', (role) => {
-    const shown = navFor([role], false, true).map((i) => i.key).sort();
+    const shown = navFor([role], false, true, { mailbox: true }).map((i) => i.key).sort();
     const want = Object.entries(expected)
       .filter(([, who]) => who.includes(role))
       .map(([key]) => key)
@@ -39,8 +42,13 @@ describe('navigation by role', () => {
   });
 
   it('unions the sections of several roles', () => {
-    const shown = navFor(['operator', 'analyst'], false, true).map((i) => i.key);
+    const shown = navFor(['operator', 'analyst'], false, true, { mailbox: true }).map((i) => i.key);
     expect(shown).toEqual(['home', 'queue', 'stations', 'upload', 'account']);
+  });
+
+  it('hides Mailbox when the fake mailbox is off (a real SMTP server is configured)', () => {
+    expect(navFor(['admin'], false, true, { mailbox: false }).map((i) => i.key)).not.toContain('mailbox');
+    expect(navFor(['admin'], false, true, { mailbox: true }).map((i) => i.key)).toContain('mailbox');
   });
 
   it('shows nothing to nobody in production, and only the development entries in development', () => {

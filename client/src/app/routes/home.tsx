@@ -14,8 +14,8 @@ export type HomeRouteProps = { isRouted: (href: string) => boolean };
  * screens are not in this build yet are listed as such rather than linked.
  */
 export function HomeRoute({ isRouted }: HomeRouteProps) {
-  const { user } = useSession();
-  const sections = navFor(user?.roles ?? [], import.meta.env.DEV, user !== null).filter((item) => item.key !== 'home');
+  const { user, features } = useSession();
+  const sections = navFor(user?.roles ?? [], import.meta.env.DEV, user !== null, features).filter((item) => item.key !== 'home');
   return (
     <div className="flex max-w-4xl flex-col gap-4">
       <header>

@@ -109,8 +109,8 @@ export type AppShellProps = {
  * and a content area that takes the full width. Landmarks: banner, navigation, main.
  */
 export function AppShell({ children, connection, isRouted }: AppShellProps) {
-  const { user } = useSession();
-  const items = navFor(user?.roles ?? [], import.meta.env.DEV, user !== null).filter((item) => isRouted(item.href));
+  const { user, features } = useSession();
+  const items = navFor(user?.roles ?? [], import.meta.env.DEV, user !== null, features).filter((item) => isRouted(item.href));
   return (
     <div className="grid h-dvh grid-rows-[auto_minmax(0,1fr)] bg-canvas text-ink">
       <a

@@ -32,7 +32,7 @@ export function AuthSessionProvider({ children }: { children: ReactNode }) {
   const value = me.data ?? null;
   return (
     <MeContext.Provider value={value}>
-      <SessionProvider value={{ user: value ? { email: value.user.email, displayName: value.user.displayName, roles: value.user.roles } : null }}>{children}</SessionProvider>
+      <SessionProvider value={{ user: value ? { email: value.user.email, displayName: value.user.displayName, roles: value.user.roles } : null, features: { mailbox: value?.mailbox ?? false } }}>{children}</SessionProvider>
     </MeContext.Provider>
   );
 }
