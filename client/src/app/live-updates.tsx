@@ -1,7 +1,7 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { createContext, useContext, useEffect, useState, type ReactNode } from 'react';
 import type { ConnectionState } from '../components/ui/connection-indicator';
-import { applyChanges, refetchAll } from '../features/queue/api/live-patch';
+import { applyChanges, refetchAll } from '../api/queue/live-patch';
 import { createLiveClient, liveUrl } from '../lib/ws-client';
 
 const LiveContext = createContext<ConnectionState | undefined>(undefined);

@@ -17,12 +17,13 @@ import { StateMarker } from '../../../components/ui/state-marker';
 import { useToast } from '../../../components/ui/toast';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { paths } from '../../../config/paths';
-import { useMe, useQueueList, type QueueFilters } from '../api/get-queue';
-import { useItemAction } from '../api/item-actions';
-import { liveArrivals } from '../api/live-patch';
-import { useQueueFilters, workingStates } from '../hooks/use-queue-filters';
+import { useMe, useQueueList, type QueueFilters } from '../../../api/queue/get-queue';
+import { useItemAction } from '../../../api/queue/item-actions';
+import { liveArrivals } from '../../../api/queue/live-patch';
+import { workingStates } from '../../../api/queue/queue-filters';
+import { useQueueFilters } from '../hooks/use-queue-filters';
 import { formatAge, useNow } from './age';
-import { isTypingTarget, KeyHelp, type KeyBinding } from './key-help';
+import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui/key-help';
 
 /** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
 const ROW_PX = 32;

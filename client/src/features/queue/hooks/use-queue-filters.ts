@@ -1,10 +1,7 @@
 import { useCallback, useMemo } from 'react';
 import { useSearchParams } from 'react-router';
-import { queueQuerySchema } from '../../../../../shared/schemas/queue';
-import type { QueueFilters } from '../api/get-queue';
-
-/** The states the queue shows when the URL names none: what still waits for an analyst. */
-export const workingStates = ['new', 'returned', 'in review'] as const;
+import type { QueueFilters } from '../../../api/queue/get-queue';
+import { parseFilters } from '../../../api/queue/queue-filters';
 
 /**
  * The queue filters, kept in the URL's search params (so a view can be bookmarked, shared and
@@ -51,24 +48,4 @@ export function useQueueFilters(): {
     [setParams],
   );
   return { filters, setFilters, setStateParam, search };
-}
-
-/** Filters from search params (see useQueueFilters). */
-export function parseFilters(p: URLSearchParams): QueueFilters {
-  const out: QueueFilters = { sort: 'score' };
-  const one = <K extends keyof QueueFilters>(key: K) => {
-    const raw = p.get(key);
-    if (raw === null || raw === '') return;
-    const r = queueQuerySchema.safeParse({ [key]: raw });
-    if (r.success) out[key] = r.data[key] as QueueFilters[K];
-  };
-  (['station', 'flag', 'label', 'scoreMin', 'scoreMax', 'from', 'to', 'sort'] as const).forEach(one);
-  const state = p.get('state');
-  if (state === 'all') out.state = undefined;
-  else if (state === null || state === '') out.state = [...workingStates];
-  else {
-    const r = queueQuerySchema.safeParse({ state });
-    out.state = r.success ? r.data.state : [...workingStates];
-  }
-  return out;
 }

@@ -2,7 +2,7 @@ import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query'
 import { z } from 'zod';
 import { queueItemDetailSchema, tracesResponseSchema } from '../../../../../shared/schemas/queue';
 import { apiRequest } from '../../../lib/api-client';
-import { queueKeys } from '../../queue/api/get-queue';
+import { queueKeys } from '../../../api/queue/get-queue';
 
 /** Query options of one item's detail (refetched by the live channel when its version moves on). */
 export function itemOptions(id: number) {

@@ -1,5 +1,5 @@
-import { Dialog } from '../../../components/ui/dialog';
-import { Kbd } from '../../../components/ui/kbd';
+import { Dialog } from './dialog';
+import { Kbd } from './kbd';
 
 /** One key and what it does. */
 export type KeyBinding = { keys: string[]; does: string };
