@@ -124,6 +124,15 @@ const partConditions = (p: Part): SQL[] => {
   return c;
 };
 
+/** Rows of the page-parts statement: id and sort key (score, or created_at as a Date). */
+const partRowsSchema = z.array(
+  z.object({
+    id: z.coerce.number().int(),
+    // A DATETIME(3) in a UNION comes back as its UTC text ('2026-03-14 01:00:00.000').
+    k: z.union([z.number(), z.date().transform((d) => d.getTime()), z.string().transform((t) => Date.parse(`${t.replace(' ', 'T')}Z`))]),
+  }),
+);
+
 const emptyCounts = (): StateCounts => ({ new: 0, 'in review': 0, labelled: 0, dismissed: 0, escalated: 0, confirmed: 0, returned: 0 });
 
 /**
@@ -169,16 +178,24 @@ export async function listQueue(db: Database, q: QueueQuery, scope: 'all' | read
     stationIds,
     q,
   );
-  const perPart = await Promise.all(
-    parts.map((p) => {
-      const hint = timeRanged && counts[p.state] <= FEW_IN_RANGE ? { forceIndex: 'queue_items_state_window_cover_idx' } : undefined;
-      const where = and(...partConditions(p), ...shared, ...keyset);
-      return q.sort === 'score'
-        ? db.select({ id: queueItems.id, key: queueItems.score }).from(queueItems, hint).where(where).orderBy(...order).limit(q.limit + 1)
-        : db.select({ id: queueItems.id, key: queueItems.createdAt }).from(queueItems, hint).where(where).orderBy(...order).limit(q.limit + 1);
-    }),
-  );
-  const keys = perPart.flat().map((k) => ({ id: k.id, key: typeof k.key === 'number' ? k.key : k.key.getTime() }));
+  // All parts in ONE statement (`(…) UNION ALL (…)`, each part keeping its own ORDER BY … LIMIT),
+  // so a page costs one round trip however many parts it has.
+  const statements = parts.map((p) => {
+    const hint = timeRanged && counts[p.state] <= FEW_IN_RANGE ? { forceIndex: 'queue_items_state_window_cover_idx' } : undefined;
+    const key = q.sort === 'score' ? queueItems.score : queueItems.createdAt;
+    const part = db
+      .select({ id: queueItems.id, k: sql`${key}`.as('k') })
+      .from(queueItems, hint)
+      .where(and(...partConditions(p), ...shared, ...keyset))
+      .orderBy(...order)
+      .limit(q.limit + 1);
+    return sql`${part}`; // drizzle puts a subquery in parentheses
+  });
+  const keys: Array<{ id: number; key: number }> = [];
+  if (statements.length > 0) {
+    const [raw] = await db.execute(sql.join(statements, sql` UNION ALL `));
+    for (const r of partRowsSchema.parse(raw)) keys.push({ id: r.id, key: r.k });
+  }
   keys.sort(q.sort === 'score' ? (a, b) => b.key - a.key || b.id - a.id : (a, b) => a.key - b.key || a.id - b.id);
   const ids = keys.slice(0, q.limit + 1).map((k) => k.id);
   const rows = ids.length > 0 ? (await selectQueueRows(db).where(inArray(queueItems.id, ids))).map(presentQueueRow) : [];
