@@ -100,7 +100,8 @@ describe('accounts in the browser', () => {
     await page.getByText('this session').waitFor();
     await screenshot(page, 'accounts-account', true);
     expect(await checkA11y(page)).toEqual([]);
-    await page.getByRole('button', { name: 'Sign out' }).click();
+    // The account page's own button (the top bar has one too).
+    await page.getByRole('main').getByRole('button', { name: 'Sign out' }).click();
     await page.getByRole('heading', { name: 'Sign in to Seisift' }).waitFor();
     await page.goto(`${server.url}/account`, { waitUntil: 'networkidle' });
     await page.getByRole('heading', { name: 'Sign in to Seisift' }).waitFor();

@@ -1,8 +1,9 @@
-import { createBrowserRouter, matchRoutes, Outlet, type RouteObject } from 'react-router';
+import { createBrowserRouter, matchRoutes, Outlet, useNavigate, type RouteObject } from 'react-router';
 import { AppShell } from '../components/layouts/app-shell';
 import { Loading } from '../components/ui/skeleton';
 import { authPagePaths } from '../../../shared/auth/links';
 import { paths } from '../config/paths';
+import { useSignOut } from '../features/auth/api/session';
 import { LiveUpdatesProvider, useLiveConnection } from './live-updates';
 import { HomeRoute } from './routes/home';
 import { NotFoundRoute } from './routes/not-found';
@@ -29,8 +30,13 @@ function RootLayout() {
 
 function LiveShell() {
   const connection = useLiveConnection();
+  const signOut = useSignOut();
+  const navigate = useNavigate();
+  // The session ends on the server (POST /api/auth/sign-out), cached answers are dropped, then the
+  // sign-in page; a failed request still leaves the person signed out here.
+  const onSignOut = () => void signOut.mutateAsync().catch(() => {}).finally(() => navigate(authPagePaths.signIn, { replace: true }));
   return (
-    <AppShell isRouted={isRouted} connection={connection}>
+    <AppShell isRouted={isRouted} connection={connection} onSignOut={onSignOut} signingOut={signOut.isPending}>
       <Outlet />
     </AppShell>
   );

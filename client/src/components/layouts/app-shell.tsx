@@ -5,6 +5,7 @@ import { navFor, navGroups, type NavItem } from '../../config/paths';
 import { cx } from '../../lib/cx';
 import { useSession, type SessionUser } from '../../lib/session-context';
 import { Badge } from '../ui/badge';
+import { Button } from '../ui/button';
 import { ConnectionIndicator, type ConnectionState } from '../ui/connection-indicator';
 import { SeisiftMark } from '../ui/seisift-mark';
 import { ThemeSwitch } from '../ui/theme-switch';
@@ -14,10 +15,20 @@ export type TopBarProps = {
   user: SessionUser | null;
   /** The websocket state; leave undefined where no live connection exists yet (nothing is shown). */
   connection?: ConnectionState;
+  /**
+   * Ends the session (POST /api/auth/sign-out, wired by the app layer); shown as a "Sign out"
+   * button next to the user while someone is signed in. Left out, no button.
+   */
+  onSignOut?: () => void;
+  /** Whether a sign-out is on its way (the button is disabled meanwhile). */
+  signingOut?: boolean;
 };
 
-/** The top bar: mark and name, connection state, theme switch, the signed-in user and their roles. */
-export function TopBar({ user, connection }: TopBarProps) {
+/**
+ * The top bar: mark and name, connection state, theme switch, the signed-in user and their roles,
+ * and a sign-out button (a real <button>, so it is reached with Tab and pressed with Enter/Space).
+ */
+export function TopBar({ user, connection, onSignOut, signingOut = false }: TopBarProps) {
   return (
     <div className="flex h-11 items-center gap-4 border-b border-line bg-surface px-3">
       <Link to="/" className="flex items-center gap-2 rounded-xs text-ink no-underline">
@@ -28,6 +39,11 @@ export function TopBar({ user, connection }: TopBarProps) {
         {connection ? <ConnectionIndicator state={connection} /> : null}
         <ThemeSwitch />
         <UserBadge user={user} />
+        {user && onSignOut ? (
+          <Button size="sm" variant="quiet" onClick={onSignOut} disabled={signingOut} aria-busy={signingOut || undefined}>
+            {signingOut ? 'Signing out…' : 'Sign out'}
+          </Button>
+        ) : null}
       </div>
     </div>
   );
@@ -102,13 +118,17 @@ export type AppShellProps = {
   connection?: ConnectionState;
   /** Whether the router has a screen at `href`; sections without one are left out of the nav. */
   isRouted: (href: string) => boolean;
+  /** Signs the person out (see TopBarProps.onSignOut). */
+  onSignOut?: () => void;
+  /** Whether a sign-out is on its way. */
+  signingOut?: boolean;
 };
 
 /**
  * The frame of every signed-in screen: top bar, role-aware navigation (from the session context)
  * and a content area that takes the full width. Landmarks: banner, navigation, main.
  */
-export function AppShell({ children, connection, isRouted }: AppShellProps) {
+export function AppShell({ children, connection, isRouted, onSignOut, signingOut }: AppShellProps) {
   const { user, features } = useSession();
   const items = navFor(user?.roles ?? [], import.meta.env.DEV, user !== null, features).filter((item) => isRouted(item.href));
   return (
@@ -120,7 +140,7 @@ export function AppShell({ children, connection, isRouted }: AppShellProps) {
         Skip to content
       </a>
       <header>
-        <TopBar user={user} connection={connection} />
+        <TopBar user={user} connection={connection} onSignOut={onSignOut} signingOut={signingOut} />
       </header>
       <div className="grid min-h-0 grid-cols-[12.5rem_minmax(0,1fr)]">
         <nav aria-label="Sections" className="min-h-0 overflow-y-auto border-r border-line bg-surface">
