@@ -1,32 +1,21 @@
-import { createServer as createNetServer } from 'node:net';
-import { resolve } from 'node:path';
 import type { Page } from 'playwright-core';
-import { createServer, type ViteDevServer } from 'vite';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { seedDemo } from '../../server/db/seed-demo';
 import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
+import { startTestServer, type TestServer } from '../setup/test-server';
 
 /*
- * The /design page in a real browser (Debian chromium via playwright-core), served by the Vite dev
- * server (a development build, where the page is open without sign-in).
+ * The /design page in a real browser (Debian chromium via playwright-core), reached as an admin
+ * reaches it in production: the real server (real MariaDB, the built client, the session probe and
+ * the live websocket) with the demo users seeded, signed in as the demo admin.
  * Accessibility bar: axe-core's WCAG 2.x A/AA rules, failing on serious or critical findings.
  * Screenshots land in .data/screenshots/ for a person to look at.
  */
 
-let server: ViteDevServer;
+const demoPassword = 'kestrel-demo-pass';
+let server: TestServer;
 let baseUrl: string;
 let browser: LaunchedBrowser;
-
-async function freePort(): Promise<number> {
-  return new Promise((done, fail) => {
-    const probe = createNetServer();
-    probe.once('error', fail);
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      probe.close(() => done(port));
-    });
-  });
-}
 
 /** Opens a page that records console errors, page errors and any request leaving our origin. */
 async function openPage(width: number, height: number, colorScheme: 'dark' | 'light') {
@@ -42,6 +31,10 @@ async function openPage(width: number, height: number, colorScheme: 'dark' | 'li
     const url = req.url();
     if (!url.startsWith(baseUrl) && !url.startsWith('data:')) problems.push(`off-origin request: ${url}`);
   });
+  page.on('websocket', (ws) => {
+    // The live connection must go to our own host too (ws:// of the same origin).
+    if (!ws.url().startsWith(baseUrl.replace(/^http/, 'ws'))) problems.push(`off-origin websocket: ${ws.url()}`);
+  });
   page.on('requestfailed', (req) => problems.push(`failed: ${req.url()}`));
   page.on('response', (res) => {
     if (res.status() >= 400) problems.push(`HTTP ${res.status()}: ${res.url()}`);
@@ -56,16 +49,24 @@ async function gotoDesign(page: Page) {
   await page.locator('.seisift-plot canvas').nth(1).waitFor();
 }
 
+/** Signs the demo admin in through the sign-in page (the browser profile keeps the cookie). */
+async function signInAsAdmin(): Promise<void> {
+  const page = await browser.context.newPage();
+  await page.goto(`${baseUrl}/sign-in`, { waitUntil: 'domcontentloaded' });
+  await page.getByRole('heading', { name: 'Sign in to Seisift' }).waitFor({ timeout: 10_000 });
+  await page.getByLabel('E-mail').fill('admin@kestrel.example');
+  await page.getByLabel('Password', { exact: true }).fill(demoPassword);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Account' }).waitFor({ timeout: 10_000 });
+  await page.close();
+}
+
 beforeAll(async () => {
-  const port = await freePort();
-  server = await createServer({
-    configFile: resolve(process.cwd(), 'vite.config.ts'),
-    logLevel: 'error',
-    server: { port, strictPort: true, host: '127.0.0.1' },
-  });
-  await server.listen();
-  baseUrl = `http://127.0.0.1:${port}`;
+  server = await startTestServer();
+  await seedDemo(server.ctx.database.db, { demoPassword });
+  baseUrl = server.url;
   browser = await launchBrowser();
+  await signInAsAdmin();
 });
 
 afterAll(async () => {
@@ -147,8 +148,9 @@ describe('/design in a browser', () => {
     const { page } = await openPage(1280, 720, 'dark');
     await page.goto(`${baseUrl}/design`, { waitUntil: 'networkidle' });
     await page.evaluate(() => localStorage.setItem('seisift.theme', 'light'));
-    // Block the app bundle: only the inline script in index.html can set the attribute now.
-    await page.route('**/src/main.tsx', (route) => route.abort());
+    // Block the app bundle (the built scripts under /assets/): only the inline script in
+    // index.html can set the attribute now.
+    await page.route('**/assets/*.js', (route) => route.abort());
     await page.reload({ waitUntil: 'load' });
     expect(await page.getAttribute('html', 'data-theme')).toBe('light');
     expect(await page.locator('#root').innerHTML()).toBe('');
@@ -179,7 +181,9 @@ describe('/design in a browser', () => {
     // the page are reached too, so the expected colour follows the element's own theme.
     const focusColor: Record<string, string> = { dark: 'rgb(255, 201, 77)', light: 'rgb(154, 79, 0)' };
     const seen: string[] = [];
-    for (let i = 0; i < 16; i += 1) {
+    // Signed in as admin, the top bar and the navigation hold more stops than a visitor's, so Tab
+    // on until the first control of the page's own content (the dialog example's Dismiss) is met.
+    for (let i = 0; i < 32 && !seen.some((x) => x.includes('Dismiss')); i += 1) {
       await page.keyboard.press('Tab');
       const ring = await page.evaluate(() => {
         const el = document.activeElement;
@@ -207,8 +211,9 @@ describe('/design in a browser', () => {
         await screenshot(page, 'design-focus-skip-link');
       }
     }
-    // The Tab order reaches the theme switch and the navigation.
+    // The Tab order reaches the theme switch, the sign-out button and the navigation.
     expect(seen.some((s) => s.includes('Auto'))).toBe(true);
+    expect(seen).toContain('button:Sign out');
     expect(seen.some((s) => s.includes('Design reference'))).toBe(true);
     expect(seen.some((s) => s.includes('Dismiss'))).toBe(true);
     await screenshot(page, 'design-focus-after-tabs');
@@ -275,13 +280,13 @@ describe('/design in a browser', () => {
     const { page } = await openPage(1440, 900, 'dark');
     await gotoDesign(page);
     const preview = page.getByRole('region', { name: 'App shell' }).locator('[data-theme="dark"]');
-    // Sample user with roles supervisor + analyst: the union of both roles' sections (issue 10).
+    // Sample user with roles supervisor + analyst: the union of both roles' sections (issue 10);
+    // no Upload, which only operators may use (upload.create).
     expect(await preview.getByRole('link').allTextContents()).toEqual([
       'Seisift',
       'Home',
       'Queue',
       'Stations',
-      'Upload',
       'Review & catalogue',
       'Thresholds',
       'Dashboard',
@@ -296,19 +301,36 @@ describe('/design in a browser', () => {
     await page.close();
   });
 
-  it('shows only routed sections in the navigation and a 404 page for unknown paths', async () => {
-    const { page } = await openPage(1280, 720, 'dark');
+  it('shows the admin the sections of that role, and a 404 page for unknown paths', async () => {
+    const { page, problems } = await openPage(1280, 720, 'dark');
     await page.goto(`${baseUrl}/`, { waitUntil: 'networkidle' });
     const nav = page.getByRole('navigation', { name: 'Sections' });
-    // Nobody is signed in (sign-in is not built yet); development shows Home and the reference.
-    expect(await nav.getByRole('link').allTextContents()).toEqual(['Home', 'Design reference']);
-    expect(await page.getByRole('banner').textContent()).toContain('Not signed in');
+    // An admin (issue 3): stations, audit log, users, the local mailbox (the test server uses the
+    // fake SMTP server), account, and the design reference.
+    expect(await nav.getByRole('link').allTextContents()).toEqual(['Home', 'Stations', 'Audit log', 'Users', 'Mailbox', 'Account', 'Design reference']);
+    const banner = page.getByRole('banner');
+    expect(await banner.textContent()).toContain('admin@kestrel.example');
     await screenshot(page, 'home-dark-1280x720');
     expect(await checkA11y(page)).toEqual([]);
 
-    await page.goto(`${baseUrl}/queue`, { waitUntil: 'networkidle' });
+    await page.goto(`${baseUrl}/no-such-page`, { waitUntil: 'networkidle' });
     await page.getByText('No page here').waitFor();
-    expect(await page.locator('main').textContent()).toContain('/queue');
+    expect(await page.locator('main').textContent()).toContain('/no-such-page');
+    expect(problems).toEqual([]);
+    await page.close();
+  });
+
+  // Last: it ends the admin's session.
+  it('signs out from the top bar by keyboard, and the session is over', async () => {
+    const { page, problems } = await openPage(1280, 720, 'dark');
+    await gotoDesign(page);
+    const signOut = page.getByRole('banner').getByRole('button', { name: 'Sign out' });
+    await signOut.focus();
+    await page.keyboard.press('Enter');
+    await page.getByRole('heading', { name: 'Sign in to Seisift' }).waitFor();
+    const after = await page.evaluate(async () => (await fetch('/api/auth/session')).json());
+    expect(after).toEqual({ session: null });
+    expect(problems).toEqual([]);
     await page.close();
   });
 });
