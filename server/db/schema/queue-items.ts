@@ -53,5 +53,7 @@ export const queueItems = mysqlTable(
     index('queue_items_label_state_score_idx').on(t.labelType, t.state, t.score),
     index('queue_items_state_window_cover_idx').on(t.state, t.windowStart, t.stationId, t.flag, t.labelType, t.score),
     index('queue_items_state_score_cover_idx').on(t.state, t.score, t.stationId, t.flag, t.labelType, t.windowStart),
+    // The same under a station filter: only that station's entries in the range are read.
+    index('queue_items_station_window_cover_idx').on(t.stationId, t.state, t.windowStart, t.flag, t.labelType, t.score),
   ],
 );

@@ -1,0 +1,1 @@
+CREATE INDEX `queue_items_station_window_cover_idx` ON `queue_items` (`station_id`,`state`,`window_start`,`flag`,`label_type`,`score`);
