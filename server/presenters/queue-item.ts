@@ -6,12 +6,16 @@ import type { QueueRow } from '../../shared/schemas/queue';
 import type { DbOrTx } from '../realtime/change-log';
 import { queueItems } from '../db/schema/queue-items';
 import { stations } from '../db/schema/stations';
+import { candidateEvents, itemArrivals } from '../db/schema/supervisor';
 import { users } from '../db/schema/users';
 
 const claimer = alias(users, 'claimer');
 const updater = alias(users, 'updater');
 
-/** The columns a queue row is built from (item, station codes, claimer and last writer names). */
+/**
+ * The columns a queue row is built from (item, station codes, claimer and last writer names, and
+ * the candidate event the item belongs to, if any).
+ */
 export const queueRowColumns = {
   id: queueItems.id,
   state: queueItems.state,
@@ -31,6 +35,8 @@ export const queueRowColumns = {
   updatedById: queueItems.updatedByUserId,
   updatedByName: updater.displayName,
   labelType: queueItems.labelType,
+  candidateEventId: candidateEvents.id,
+  candidateStationCount: candidateEvents.stationCount,
 };
 
 /** One record selected with `queueRowColumns`. */
@@ -53,10 +59,14 @@ export type QueueRowRecord = {
   updatedById: string | null;
   updatedByName: string | null;
   labelType: string | null;
+  candidateEventId: number | null;
+  candidateStationCount: number | null;
 };
 
 /**
- * A select of queue rows with the joins `queueRowColumns` needs; add where/order/limit.
+ * A select of queue rows with the joins `queueRowColumns` needs; add where/order/limit. The
+ * candidate-event joins go by primary keys (item_arrivals.item_id, candidate_events.id), so they
+ * cost one index lookup per selected row: keep the where on the page's ids.
  * @param db a database handle or an open transaction
  */
 export function selectQueueRows(db: DbOrTx) {
@@ -65,7 +75,9 @@ export function selectQueueRows(db: DbOrTx) {
     .from(queueItems)
     .innerJoin(stations, eq(stations.id, queueItems.stationId))
     .leftJoin(claimer, eq(claimer.id, queueItems.claimedByUserId))
-    .leftJoin(updater, eq(updater.id, queueItems.updatedByUserId));
+    .leftJoin(updater, eq(updater.id, queueItems.updatedByUserId))
+    .leftJoin(itemArrivals, eq(itemArrivals.itemId, queueItems.id))
+    .leftJoin(candidateEvents, eq(candidateEvents.id, itemArrivals.candidateEventId));
 }
 
 /**
@@ -79,7 +91,8 @@ export async function loadQueueRow(db: DbOrTx, where: SQL): Promise<QueueRow | n
 
 /**
  * The wire shape of a queue row (shared/schemas/queue.ts `queueRowSchema`): times as ISO 8601 UTC
- * with milliseconds, the station as `NET.STA`, people as id + display name.
+ * with milliseconds, the station as `NET.STA`, people as id + display name, the candidate event as
+ * id + station count.
  * @throws Error when the stored state or flag is not one of ours (a corrupt row)
  */
 export function presentQueueRow(r: QueueRowRecord): QueueRow {
@@ -99,5 +112,6 @@ export function presentQueueRow(r: QueueRowRecord): QueueRow {
     claimedAt: r.claimedAt ? r.claimedAt.toISOString() : null,
     updatedBy: r.updatedById ? { id: r.updatedById, displayName: r.updatedByName ?? 'a removed user' } : null,
     labelType: r.labelType,
+    candidateEvent: r.candidateEventId !== null ? { id: r.candidateEventId, stationCount: r.candidateStationCount ?? 0 } : null,
   };
 }

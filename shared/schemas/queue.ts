@@ -77,6 +77,11 @@ export const queueRowSchema = z.object({
   claimedAt: z.string().nullable(),
   updatedBy: personRefSchema.nullable(),
   labelType: z.string().nullable(),
+  /**
+   * The candidate event (issue 7) the item belongs to: its id and how many stations it spans; null
+   * when it belongs to none. Defaults to null for summaries written before the field existed.
+   */
+  candidateEvent: z.object({ id: z.number().int(), stationCount: z.number().int() }).nullable().default(null),
 });
 
 /** One queue row. */

@@ -20,6 +20,7 @@ const row = (id: number, score: number, over: Partial<QueueRow> = {}): QueueRow 
   claimedAt: null,
   updatedBy: null,
   labelType: null,
+  candidateEvent: null,
   ...over,
 });
 const page = (items: QueueRow[], nextCursor: string | null): QueuePage => ({
