@@ -57,7 +57,22 @@ const MAX_PARTS = 64;
  * (state, window_start, …) index and sorted (at most this many index entries), rather than by
  * walking its score or age index.
  */
-const FEW_IN_RANGE = 5000;
+const FEW_IN_RANGE = 20_000;
+
+/**
+ * Index hints for a page part under a time range (none without one). MariaDB otherwise walks the
+ * score or age index and looks up every row to test window_start.
+ * - few matches (≤ FEW_IN_RANGE): read the range through a (…, state, window_start, …) index, from
+ *   the index alone, and sort what it finds;
+ * - many, in score order without a station: walk (state, score, …, window_start), which covers
+ *   the test, so no row is looked up.
+ */
+function indexHint(timeRanged: boolean, matches: number, p: Part, sort: QueueQuery['sort']): { forceIndex: string[] } | undefined {
+  if (!timeRanged) return undefined;
+  if (matches <= FEW_IN_RANGE) return { forceIndex: ['queue_items_state_window_cover_idx', 'queue_items_station_window_cover_idx'] };
+  if (sort === 'score' && p.stationId === null) return { forceIndex: ['queue_items_state_score_cover_idx'] };
+  return undefined;
+}
 
 /** The station ids a `station` filter names (`KV01` any network, or `XX.KV01`). */
 async function stationIdsFor(db: Database, keys: readonly string[]): Promise<number[]> {
@@ -184,7 +199,7 @@ export async function listQueue(db: Database, q: QueueQuery, scope: 'all' | read
   // All parts in ONE statement (`(…) UNION ALL (…)`, each part keeping its own ORDER BY … LIMIT),
   // so a page costs one round trip however many parts it has.
   const statements = parts.map((p) => {
-    const hint = timeRanged && counts[p.state] <= FEW_IN_RANGE ? { forceIndex: 'queue_items_state_window_cover_idx' } : undefined;
+    const hint = indexHint(timeRanged, counts[p.state], p, q.sort);
     const key = q.sort === 'score' ? queueItems.score : queueItems.createdAt;
     const part = db
       .select({ id: queueItems.id, k: sql`${key}`.as('k') })
