@@ -394,7 +394,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
       const startUs = Math.min(...w.streams.map((s) => s.startTimeUs));
       const stopUs = Math.max(...w.streams.map(endUs));
       const windowStart = new Date(Math.floor(startUs / 1000));
-      const [win] = await tx
+      const [win] = await insertBinary(tx, tx
         .insert(windows)
         .values({
           uploadId: up.id,
@@ -404,8 +404,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
           analysis: w.analysis,
           engineVersion: ENGINE_VERSION,
           createdAt: now,
-        })
-        .$returningId();
+        }));
       if (!win) throw new Error('window insert returned no id');
       // One multi-row insert for the window's channels; samples as int32 when they are counts.
       await insertBinary(tx, tx.insert(windowChannels).values(
