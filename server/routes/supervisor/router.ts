@@ -1,6 +1,7 @@
 import { eq } from 'drizzle-orm';
 import { Router, type Request } from 'express';
 import { z } from 'zod';
+import { latestWindowsQuerySchema } from '../../../shared/schemas/data-period';
 import { eventLabelSchema } from '../../../shared/schemas/label';
 import {
   applyThresholdsBodySchema,
@@ -24,6 +25,7 @@ import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateE
 import { buildCatalogueCsv } from '../../services/catalogue-csv';
 import { listReview, loadCatalogue, reviewNote, setEvaluationStatus } from '../../services/catalogue-review';
 import { dashboard } from '../../services/dashboard';
+import { latestWindows } from '../../services/data-period';
 import { acknowledge, confirmFromInbox, listInbox, markRead, returnFromInbox, settleItem } from '../../services/inbox';
 import { buildQuakeml } from '../../services/quakeml-export';
 import { applyThresholds, rescorePeriod, thresholdReport } from '../../services/thresholds';
@@ -57,6 +59,8 @@ function inScope(ev: CandidateEventView, scope: 'all' | readonly number[]): Cand
  * - thresholds (thresholds.edit): `GET /thresholds/:stationId?eventZ=&noiseZ=&centroidMaxFactor=`;
  *   `POST /thresholds/:stationId/apply {thresholds}`; `POST /thresholds/:stationId/rescore {from,to}`
  * - `GET /dashboard?from=&to=` (dashboard.view)
+ * - `GET /latest-windows?stationId=` (review.evaluate; the review, thresholds and dashboard screens,
+ *   all a supervisor's, default their period to the data with it)
  * - `GET /export?from=&to=&format=quakeml|csv&status=` (catalogue.export): a download
  */
 export function supervisorRouter(ctx: AppContext): Router {
@@ -168,6 +172,12 @@ export function supervisorRouter(ctx: AppContext): Router {
   router.get('/dashboard', requirePermission('dashboard.view'), async (req, res) => {
     const q = parseInput(dashboardQuerySchema, req.query, 'query');
     res.json(await dashboard(db, { from: new Date(q.from), to: new Date(q.to) }));
+  });
+
+  // Where the data is in time (default periods of the screens).
+  router.get('/latest-windows', requirePermission('review.evaluate'), async (req, res) => {
+    const q = parseInput(latestWindowsQuerySchema, req.query, 'query');
+    res.json(await latestWindows(db, q.stationId));
   });
 
   // Export.

@@ -515,6 +515,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'queue.label',
     build: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w)}/label`, body: { label: { eventType: 'earthquake' } } }),
   },
+  { method: 'GET', path: '/api/supervisor/latest-windows', allow: ['supervisor'], action: 'review.evaluate', build: async () => ({ path: '/api/supervisor/latest-windows' }) },
   { method: 'GET', path: '/api/supervisor/dashboard', allow: ['supervisor'], action: 'dashboard.view', build: async () => ({ path: '/api/supervisor/dashboard?from=2026-03-01T00:00:00Z&to=2026-03-15T00:00:00Z' }) },
   { method: 'GET', path: '/api/supervisor/export', allow: ['supervisor'], action: 'catalogue.export', build: async () => ({ path: '/api/supervisor/export?from=2026-03-01T00:00:00Z&to=2026-03-15T00:00:00Z&format=csv' }) },
   { method: 'GET', path: '/api/supervisor/inbox', allow: ['supervisor'], action: 'inbox.view', build: async () => ({ path: '/api/supervisor/inbox' }) },
