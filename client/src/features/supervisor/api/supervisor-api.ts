@@ -1,6 +1,7 @@
 import { queryOptions } from '@tanstack/react-query';
 import { z } from 'zod';
 import { apiErrorBodySchema } from '../../../../../shared/api-error';
+import { latestWindowsSchema } from '../../../../../shared/schemas/data-period';
 import { evaluationSchema, reviewRowSchema, type ThresholdValues } from '../../../../../shared/schemas/supervisor';
 
 /**
@@ -198,6 +199,13 @@ export type Dashboard = z.infer<typeof dashboardSchema>;
 /** The dashboard for [from, to). */
 export const dashboardQuery = (from: string, to: string) =>
   queryOptions({ queryKey: ['supervisor', 'dashboard', from, to], queryFn: () => fetchJson(dashboardSchema, `/api/supervisor/dashboard?${qs({ from, to })}`) });
+
+/** Window starts of the latest item and latest labelled event (all stations, or one), for default periods. */
+export const latestWindowsQuery = (stationId?: number) =>
+  queryOptions({
+    queryKey: ['supervisor', 'latest-windows', stationId ?? 'all'],
+    queryFn: () => fetchJson(latestWindowsSchema, `/api/supervisor/latest-windows${stationId === undefined ? '' : `?${qs({ stationId: String(stationId) })}`}`),
+  });
 
 /** The export download URL. */
 export function exportUrl(from: string, to: string, format: 'quakeml' | 'csv', status: string): string {

@@ -1,12 +1,12 @@
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
-import { Input } from '../../../components/ui/input';
 import { PlotFrame } from '../../../components/ui/plot-frame';
 import { Loading } from '../../../components/ui/skeleton';
-import { Table, TBody, THead, Tr } from '../../../components/ui/table';
+import { Table, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
+import { UtcTimeInput } from '../../../components/ui/utc-time-input';
 import { dashboardQuery } from '../api/supervisor-api';
-import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPoints, withPointsShare } from './common';
+import { daysAgoIso, ErrorLine, Section, SupervisorPage, withDayAxis, withDayAxisShare } from './common';
 
 const dayFormat = (v: number) => new Date(v * 1000).toISOString().slice(5, 10);
 
@@ -16,33 +16,29 @@ const dayFormat = (v: number) => new Date(v * 1000).toISOString().slice(5, 10);
  * colour, and the legend names it.
  */
 export function DashboardScreen() {
-  const [fromDay, setFromDay] = useState(daysAgoIso(13).slice(0, 10));
-  const [toDay, setToDay] = useState(daysAgoIso(-1).slice(0, 10));
-  const q = useQuery(dashboardQuery(dayToIso(fromDay), dayToIso(toDay)));
+  // By arrival day (created_at), the 14 UTC days up to and including today.
+  const [from, setFrom] = useState(() => daysAgoIso(13));
+  const [to, setTo] = useState(() => daysAgoIso(-1));
+  const periodOk = Date.parse(from) < Date.parse(to);
+  const q = useQuery({ ...dashboardQuery(from, to), enabled: periodOk });
   const d = q.data;
   const x = d ? d.days.map((day) => Date.parse(`${day}T00:00:00Z`) / 1000) : [];
   return (
     <SupervisorPage title="Dashboard" summary="How the network's triage is going, per UTC day.">
       <TriageCaution variant="line" />
       <form className="flex flex-wrap items-end gap-3" aria-label="Period" onSubmit={(e) => e.preventDefault()}>
-        <label className="flex flex-col text-sm">
-          From (UTC day)
-          <Input type="date" value={fromDay} onChange={(e) => setFromDay(e.target.value)} />
-        </label>
-        <label className="flex flex-col text-sm">
-          To (UTC day, exclusive)
-          <Input type="date" value={toDay} onChange={(e) => setToDay(e.target.value)} />
-        </label>
+        <UtcTimeInput label="From (UTC)" value={from} onChange={setFrom} error={periodOk ? undefined : 'must be before To'} />
+        <UtcTimeInput label="To (UTC, exclusive)" value={to} onChange={setTo} />
       </form>
       <ErrorLine error={q.error} />
-      {!d ? (
+      {!periodOk ? null : !d ? (
         <Loading label="Loading the dashboard…" />
       ) : (
         <div className="grid gap-4 lg:grid-cols-2">
           <PlotFrame
             title="Items per day per station"
             description={`Queue items that arrived each day, one line per station: ${d.itemsPerStation.map((s) => `${s.station} ${s.counts.reduce((a, b) => a + b, 0)}`).join(', ')}.`}
-            configure={withPoints}
+            configure={withDayAxis}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'items' }}
             series={d.itemsPerStation.map((s) => ({ label: s.station, values: s.counts }))}
@@ -50,7 +46,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="Flag mix"
             description="Items per day by automatic flag."
-            configure={withPoints}
+            configure={withDayAxis}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'items' }}
             series={d.flagMix.map((f) => ({ label: f.flag, values: f.counts }))}
@@ -58,7 +54,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="Median time to triage"
             description="Median minutes from an item's arrival to its first label, dismissal or escalation, by the day of the triage."
-            configure={withPoints}
+            configure={withDayAxis}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'median', unit: 'min' }}
             series={[{ label: 'median time to triage', values: d.medianTriageMinutes }]}
@@ -66,7 +62,7 @@ export function DashboardScreen() {
           <PlotFrame
             title="False-alarm rate of “likely event”"
             description="Of the items flagged likely event that arrived each day and have been labelled or dismissed, the share that turned out to be noise."
-            configure={withPointsShare}
+            configure={withDayAxisShare}
             x={{ label: 'day (UTC)', values: x, format: dayFormat }}
             y={{ label: 'false alarms', format: (v) => `${Math.round(v * 100)} %` }}
             series={[{ label: 'false-alarm rate', values: d.falseAlarmRate }]}
@@ -75,8 +71,8 @@ export function DashboardScreen() {
             <Table caption="Labels, dismissals and escalations per analyst in the period">
               <THead>
                 <tr>
-                  <th scope="col">Analyst</th>
-                  <th scope="col">Actions</th>
+                  <Th>Analyst</Th>
+                  <Th figure>Actions</Th>
                 </tr>
               </THead>
               <TBody>
@@ -87,8 +83,8 @@ export function DashboardScreen() {
                 ) : (
                   d.workload.map((w) => (
                     <Tr key={w.analyst}>
-                      <td>{w.analyst}</td>
-                      <td className="font-mono">{w.actions}</td>
+                      <Td>{w.analyst}</Td>
+                      <Td figure>{w.actions}</Td>
                     </Tr>
                   ))
                 )}

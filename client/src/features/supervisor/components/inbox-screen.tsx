@@ -1,10 +1,10 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { useState } from 'react';
+import { useState, type ReactNode } from 'react';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, THead, Tr } from '../../../components/ui/table';
+import { Table, TableScroll, TBody, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { inboxAction, inboxQuery, type InboxEntry } from '../api/supervisor-api';
 import { useSupervisorLive } from '../hooks/use-supervisor-live';
@@ -50,11 +50,11 @@ export function InboxScreen() {
           <Table caption="Escalations, newest first">
             <THead>
               <tr>
-                <th scope="col">Received</th>
-                <th scope="col">Item</th>
-                <th scope="col">Reason</th>
-                <th scope="col">Status</th>
-                <th scope="col">Actions</th>
+                <Th>Received</Th>
+                <Th>Item</Th>
+                <Th>Reason</Th>
+                <Th>Status</Th>
+                <Th>Actions</Th>
               </tr>
             </THead>
             <TBody>
@@ -63,7 +63,7 @@ export function InboxScreen() {
                   <td className="font-mono text-sm whitespace-nowrap">{e.createdAt}</td>
                   <td>
                     <a className="underline" href={`/queue/items/${e.itemId}`} onClick={() => !e.readAt && act.mutate({ id: e.id, action: 'read' })}>
-                      {e.subject}
+                      <SubjectText subject={e.subject} />
                     </a>
                     <div className="text-sm text-ink-muted">escalated by {e.escalatedBy ?? 'someone'}</div>
                   </td>
@@ -117,6 +117,30 @@ export function InboxScreen() {
       )}
     </SupervisorPage>
   );
+}
+
+/** ISO 8601 times inside a subject line ("… 2026-03-14T09:26:00.000Z …"). */
+const isoTimeInText = /\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)?Z/g;
+
+/**
+ * A subject with each ISO time kept on one line in Plex Mono (a time broken after its "T" or at
+ * a colon reads as two values).
+ */
+function SubjectText({ subject }: { subject: string }) {
+  const parts: ReactNode[] = [];
+  let last = 0;
+  for (const m of subject.matchAll(isoTimeInText)) {
+    const at = m.index;
+    if (at > last) parts.push(subject.slice(last, at));
+    parts.push(
+      <span key={at} className="font-mono text-sm whitespace-nowrap">
+        {m[0]}
+      </span>,
+    );
+    last = at + m[0].length;
+  }
+  if (last < subject.length) parts.push(subject.slice(last));
+  return <>{parts}</>;
 }
 
 function EntryStatus({ entry: e }: { entry: InboxEntry }) {

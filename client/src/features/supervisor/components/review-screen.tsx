@@ -7,13 +7,15 @@ import { Button, buttonClass } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { FlagMarker } from '../../../components/ui/flag-marker';
 import { Input } from '../../../components/ui/input';
+import { UtcTimeInput } from '../../../components/ui/utc-time-input';
 import { Select } from '../../../components/ui/select';
 import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, THead, Tr } from '../../../components/ui/table';
+import { Table, TableScroll, TBody, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuery, setStatus, type ReviewFilters } from '../api/supervisor-api';
+import { usePeriod } from '../hooks/use-period';
 import { useSupervisorLive } from '../hooks/use-supervisor-live';
-import { dayToIso, daysAgoIso, ErrorLine, noLocationText, Section, SupervisorPage } from './common';
+import { ErrorLine, noLocationText, periodText, Section, SupervisorPage } from './common';
 
 /**
  * /review: labelled events to confirm, review, finalise or reject (QuakeML evaluation status) or
@@ -22,14 +24,16 @@ import { dayToIso, daysAgoIso, ErrorLine, noLocationText, Section, SupervisorPag
  */
 export function ReviewScreen() {
   const live = useSupervisorLive();
-  const [fromDay, setFromDay] = useState(daysAgoIso(7).slice(0, 10));
-  const [toDay, setToDay] = useState(daysAgoIso(-1).slice(0, 10));
+  // Default: the 7 UTC days up to the latest labelled event's window (so the demo, dated
+  // 2026-03-14, opens on its events), until the person sets a period of their own.
+  const period = usePeriod(7, 'labelled');
+  const periodOk = period.from !== undefined && period.to !== undefined && Date.parse(period.from) < Date.parse(period.to);
   const [station, setStation] = useState('');
   const [type, setType] = useState('');
   const [analyst, setAnalyst] = useState('');
   const [status, setStatusFilter] = useState('');
-  const filters: ReviewFilters = { from: dayToIso(fromDay), to: dayToIso(toDay), station: station.trim().toUpperCase() || undefined, type: type || undefined, analyst: analyst.trim() || undefined, status: status || undefined };
-  const list = useQuery(reviewQuery(filters));
+  const filters: ReviewFilters = { from: period.from, to: period.to, station: station.trim().toUpperCase() || undefined, type: type || undefined, analyst: analyst.trim() || undefined, status: status || undefined };
+  const list = useQuery({ ...reviewQuery(filters), enabled: periodOk });
   return (
     <SupervisorPage title="Review & catalogue" summary="Labelled events by window time; set their evaluation status or return them to the queue." live={live}>
       <TriageCaution variant="line" />
@@ -37,14 +41,12 @@ export function ReviewScreen() {
         {noLocationText}
       </p>
       <form className="flex flex-wrap items-end gap-3" aria-label="Review filters" onSubmit={(e) => e.preventDefault()}>
-        <label className="flex flex-col text-sm">
-          From (UTC day)
-          <Input type="date" value={fromDay} onChange={(e) => setFromDay(e.target.value)} />
-        </label>
-        <label className="flex flex-col text-sm">
-          To (UTC day, exclusive)
-          <Input type="date" value={toDay} onChange={(e) => setToDay(e.target.value)} />
-        </label>
+        {period.from !== undefined && period.to !== undefined ? (
+          <>
+            <UtcTimeInput label="From (UTC)" value={period.from} onChange={period.setFrom} error={periodOk ? undefined : 'must be before To'} />
+            <UtcTimeInput label="To (UTC, exclusive)" value={period.to} onChange={period.setTo} />
+          </>
+        ) : null}
         <label className="flex flex-col text-sm">
           Station
           <Input placeholder="KV01" value={station} onChange={(e) => setStation(e.target.value)} className="w-28" />
@@ -72,10 +74,19 @@ export function ReviewScreen() {
           </Select>
         </label>
       </form>
-      <ErrorLine error={list.error} />
-      {list.isPending ? <Loading label="Loading labelled events…" /> : <ReviewTable rows={list.data?.items ?? []} />}
-      <CandidateEvents from={filters.from ?? ''} to={filters.to ?? ''} />
-      <ExportForm from={fromDay} to={toDay} />
+      {period.defaultPeriod && !period.edited ? (
+        <p className="text-sm text-ink-muted" data-testid="default-period">
+          Period: {periodText(period.defaultPeriod)}.
+        </p>
+      ) : null}
+      <ErrorLine error={list.error ?? period.error} />
+      {!periodOk ? null : list.isPending ? <Loading label="Loading labelled events…" /> : <ReviewTable rows={list.data?.items ?? []} />}
+      {periodOk && period.from !== undefined && period.to !== undefined ? (
+        <>
+          <CandidateEvents from={period.from} to={period.to} />
+          <ExportForm from={period.from} to={period.to} />
+        </>
+      ) : null}
     </SupervisorPage>
   );
 }
@@ -99,14 +110,14 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
       <Table caption="Labelled events, newest window first">
         <THead>
           <tr>
-            <th scope="col">Event time (basis)</th>
-            <th scope="col">Station</th>
-            <th scope="col">Type</th>
-            <th scope="col">Flag</th>
-            <th scope="col">Analyst</th>
-            <th scope="col">Group</th>
-            <th scope="col">Evaluation status</th>
-            <th scope="col">Action</th>
+            <Th>Event time (basis)</Th>
+            <Th>Station</Th>
+            <Th>Type</Th>
+            <Th>Flag</Th>
+            <Th>Analyst</Th>
+            <Th>Group</Th>
+            <Th>Evaluation status</Th>
+            <Th>Action</Th>
           </tr>
         </THead>
         <TBody>
@@ -238,7 +249,7 @@ function ExportForm({ from, to }: { from: string; to: string }) {
   return (
     <Section title="Export the reviewed catalogue">
       <p className="mb-2 text-sm text-ink-muted">
-        Events whose window starts in the period above ({from} to {to}, UTC). QuakeML 1.2 or CSV; no origins or magnitudes, since Seisift does not locate events. Resource ids use smi:seisift.local — a network publishing the catalogue sets its own authority id.
+        Events whose window starts in the period above (<span className="font-mono whitespace-nowrap">{from}</span> to <span className="font-mono whitespace-nowrap">{to}</span>, UTC). QuakeML 1.2 or CSV; no origins or magnitudes, since Seisift does not locate events. Resource ids use smi:seisift.local — a network publishing the catalogue sets its own authority id.
       </p>
       <div className="flex flex-wrap items-end gap-3">
         <label className="flex flex-col text-sm">
@@ -251,7 +262,7 @@ function ExportForm({ from, to }: { from: string; to: string }) {
         <label className="flex items-center gap-1 text-sm">
           <input type="checkbox" checked={withPreliminary} onChange={(e) => setWithPreliminary(e.target.checked)} /> include unreviewed (preliminary)
         </label>
-        <a className={buttonClass('primary')} href={exportUrl(dayToIso(from), dayToIso(to), format, status)} download>
+        <a className={buttonClass('primary')} href={exportUrl(from, to, format, status)} download>
           Download {format === 'csv' ? 'CSV' : 'QuakeML'}
         </a>
       </div>

@@ -3,13 +3,15 @@ import { useEffect, useMemo, useState } from 'react';
 import type { Evaluation, ThresholdValues } from '../../../../../shared/schemas/supervisor';
 import { Button } from '../../../components/ui/button';
 import { Input } from '../../../components/ui/input';
+import { UtcTimeInput } from '../../../components/ui/utc-time-input';
 import { PlotFrame } from '../../../components/ui/plot-frame';
 import { Select } from '../../../components/ui/select';
 import { Loading } from '../../../components/ui/skeleton';
-import { Table, TBody, THead, Tr } from '../../../components/ui/table';
+import { Table, TBody, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '../api/supervisor-api';
-import { dayToIso, daysAgoIso, ErrorLine, Section, SupervisorPage, withPointsShare } from './common';
+import { usePeriod } from '../hooks/use-period';
+import { ErrorLine, periodText, Section, SupervisorPage, withPointsShare } from './common';
 
 const pct = (v: number | null) => (v === null ? 'n/a' : `${(v * 100).toFixed(1)} %`);
 
@@ -40,9 +42,10 @@ export function ThresholdsScreen() {
       void qc.invalidateQueries({ queryKey: ['supervisor', 'thresholds'] });
     },
   });
-  const [fromDay, setFromDay] = useState(daysAgoIso(7).slice(0, 10));
-  const [toDay, setToDay] = useState(daysAgoIso(-1).slice(0, 10));
-  const rs = useMutation({ mutationFn: () => rescore(stationId ?? 0, dayToIso(fromDay), dayToIso(toDay)) });
+  // Re-score period, by default the 7 UTC days up to this station's latest window.
+  const period = usePeriod(7, 'any', stationId ?? undefined);
+  const periodOk = period.from !== undefined && period.to !== undefined && Date.parse(period.from) < Date.parse(period.to);
+  const rs = useMutation({ mutationFn: () => rescore(stationId ?? 0, period.from ?? '', period.to ?? '') });
 
   const curve = report.data?.curve ?? [];
   const x = useMemo(() => curve.map((p) => p.eventZ), [curve]);
@@ -97,13 +100,13 @@ export function ThresholdsScreen() {
           <Table caption="Confusion counts on the labelled history">
             <THead>
               <tr>
-                <th scope="col">Thresholds</th>
-                <th scope="col">TP</th>
-                <th scope="col">FP</th>
-                <th scope="col">FN</th>
-                <th scope="col">TN</th>
-                <th scope="col">Precision</th>
-                <th scope="col">Recall</th>
+                <Th>Thresholds</Th>
+                <Th>TP</Th>
+                <Th>FP</Th>
+                <Th>FN</Th>
+                <Th>TN</Th>
+                <Th>Precision</Th>
+                <Th>Recall</Th>
               </tr>
             </THead>
             <TBody>
@@ -143,16 +146,21 @@ export function ThresholdsScreen() {
                 rs.mutate();
               }}
             >
-              <label className="flex flex-col text-sm">
-                From (UTC day)
-                <Input type="date" value={fromDay} onChange={(e) => setFromDay(e.target.value)} />
-              </label>
-              <label className="flex flex-col text-sm">
-                To (UTC day, exclusive)
-                <Input type="date" value={toDay} onChange={(e) => setToDay(e.target.value)} />
-              </label>
-              <Button type="submit">Re-score with the current thresholds</Button>
+              {period.from !== undefined && period.to !== undefined ? (
+                <>
+                  <UtcTimeInput label="From (UTC)" value={period.from} onChange={period.setFrom} error={periodOk ? undefined : 'must be before To'} />
+                  <UtcTimeInput label="To (UTC, exclusive)" value={period.to} onChange={period.setTo} />
+                </>
+              ) : null}
+              <Button type="submit" disabled={!periodOk || rs.isPending}>
+                Re-score with the current thresholds
+              </Button>
             </form>
+            {period.defaultPeriod && !period.edited ? (
+              <p className="mt-1 text-sm text-ink-muted" data-testid="default-period">
+                Period: {periodText(period.defaultPeriod, report.data.station)}.
+              </p>
+            ) : null}
             {rs.data ? (
               <p role="status" className="text-sm">
                 Re-scored {rs.data.rescored} items; {rs.data.flagChanged} changed flag{rs.data.skipped ? `; ${rs.data.skipped} skipped (no readable analysis)` : ''}.
@@ -168,9 +176,9 @@ export function ThresholdsScreen() {
 function EvalRow({ name, e }: { name: string; e: Evaluation }) {
   return (
     <Tr>
-      <th scope="row" className="text-left font-normal">
+      <Th scope="row" className="font-normal text-ink">
         {name}
-      </th>
+      </Th>
       <td className="font-mono">{e.tp}</td>
       <td className="font-mono">{e.fp}</td>
       <td className="font-mono">{e.fn}</td>

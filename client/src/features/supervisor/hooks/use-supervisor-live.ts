@@ -27,6 +27,8 @@ export function useSupervisorLive(): LiveState {
           if (c.resource === 'item') {
             pending.add('review');
             pending.add('inbox');
+            // A new or newly labelled item may move the screens' default period.
+            pending.add('latest-windows');
           }
           if (c.resource === 'candidate_event' || c.resource === 'item') pending.add('candidates');
         }
