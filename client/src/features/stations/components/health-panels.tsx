@@ -1,5 +1,6 @@
 import { Link } from 'react-router';
 import type uPlot from 'uplot';
+import { sortChannels } from '../../../../../shared/channel-order';
 import type { BaselineView } from '../../../../../shared/schemas/station';
 import { Badge } from '../../../components/ui/badge';
 import { EmptyState } from '../../../components/ui/empty-state';
@@ -23,7 +24,8 @@ export function PsdPlots({ health }: { health: StationHealthView }) {
   }
   return (
     <div className="grid gap-4 lg:grid-cols-2">
-      {health.psd.map((c) => {
+      {/* One channel order everywhere (Z, N, E, then others): shared/channel-order.ts. */}
+      {sortChannels(health.psd, (c) => c.streamId).map((c) => {
         const series = c.physical
           ? [
               { label: c.streamId, values: c.db, styleIndex: 0 },

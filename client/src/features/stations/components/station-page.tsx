@@ -1,4 +1,5 @@
 import { Link } from 'react-router';
+import { sortChannels } from '../../../../../shared/channel-order';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { Loading } from '../../../components/ui/skeleton';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
@@ -86,7 +87,7 @@ export function StationPage({ stationId }: { stationId: number }) {
                 </Tr>
               </THead>
               <TBody>
-                {s.channels.map((c) => (
+                {sortChannels(s.channels, (c) => c.streamId).map((c) => (
                   <Tr key={c.id}>
                     <Td className="font-mono">{c.streamId}</Td>
                     <Td figure>{c.sampleRateHz}</Td>
