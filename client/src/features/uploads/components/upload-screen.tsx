@@ -213,6 +213,32 @@ export function UploadScreen() {
   );
 }
 
+/**
+ * A per-file progress bar in the kit's tokens (docs/design.md), not the browser's native bar, whose
+ * colour is the engine's own: a sunken track with a strong line (≥ 3:1 against the panel), filled
+ * with the accent (or danger for a refused file). `percent` null is indeterminate (analysing): a
+ * striped fill, still without motion, plus the status word next to the file name.
+ */
+function ProgressBar({ label, percent, tone }: { label: string; percent: number | null; tone: 'accent' | 'danger' }) {
+  const fill = tone === 'danger' ? 'bg-danger' : 'bg-accent';
+  return (
+    <div
+      role="progressbar"
+      aria-label={label}
+      aria-valuemin={0}
+      aria-valuemax={100}
+      aria-valuenow={percent ?? undefined}
+      className="h-2 w-full overflow-hidden rounded-xs border border-line-strong bg-sunken"
+    >
+      {percent === null ? (
+        <div className={cx('h-full w-full opacity-70', fill)} style={{ backgroundImage: 'repeating-linear-gradient(45deg, transparent 0 4px, var(--sf-sunken) 4px 8px)' }} />
+      ) : (
+        <div className={cx('h-full', fill)} style={{ width: `${Math.max(0, Math.min(100, percent))}%` }} />
+      )}
+    </div>
+  );
+}
+
 function FileRow({ entry, busy, csvProblem, onStreamId, onRemove }: { entry: Entry; busy: boolean; csvProblem: string | null; onStreamId: (v: string) => void; onRemove: () => void }) {
   const s = entry.state;
   const streamInputId = useId();
@@ -243,12 +269,10 @@ function FileRow({ entry, busy, csvProblem, onStreamId, onRemove }: { entry: Ent
           </Button>
         ) : null}
       </div>
-      <progress
-        className="h-2 w-full"
-        style={{ accentColor: 'var(--color-accent)' }}
-        max={100}
-        value={s.phase === 'analysing' ? undefined : pct}
-        aria-label={`${entry.file.name}: ${status}`}
+      <ProgressBar
+        label={`${entry.file.name}: ${status}`}
+        percent={s.phase === 'analysing' ? null : pct}
+        tone={s.phase === 'done' && s.outcome.status === 'rejected' ? 'danger' : 'accent'}
       />
       {s.phase === 'ready' && isCsvName(entry.file.name) ? (
         <div className="flex flex-col gap-1">
