@@ -124,10 +124,22 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await pageA.waitForSelector('text=/Zoom whole window/');
     const a11y = await checkA11y(pageA);
     expect(a11y, JSON.stringify(a11y, null, 1)).toEqual([]);
+    // Every trace panel has an amplitude scale: more than one tick, not just "0" (the uPlot root
+    // lists its drawn y tick labels in data-y-ticks, as the canvas cannot be read).
+    const ticks = await pageA.$$eval('[data-testid="trace-panel"] .uplot', (els) => els.map((e) => e.getAttribute("data-y-ticks") ?? ""));
+    expect(ticks.length, ticks.join(" | ")).toBeGreaterThanOrEqual(12);
+    console.log(`y ticks: ${ticks.join(" | ")}`);
+    for (const t of ticks) expect(t.split(' ').filter((x) => x !== '' && x !== '0').length, `ticks "${t}"`).toBeGreaterThanOrEqual(1);
 
     step('review checked');
-    // Keyboard alone: P places a P pick (at the first trigger), 1 labels as earthquake.
+    // Keyboard alone: P places a P pick (at the first trigger), drawn on every channel's panels
+    // (data-picks lists the drawn marks); 1 labels as earthquake.
     await pageA.keyboard.press('p');
+    await pageA.waitForFunction(() => {
+      const sections = [...document.querySelectorAll('[data-testid="trace-panel"] section[aria-label^="Channel"]')];
+      return sections.length === 3 && sections.every((s) => [...s.querySelectorAll('.uplot')].every((u) => /\bP@\d/.test(u.getAttribute('data-picks') ?? '')));
+    }, undefined, { timeout: 3000 });
+    await screenshot(pageA, 'analyst-review-p-pick');
     await pageA.keyboard.press('1');
     const db = server.ctx.database.db;
     let detail = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body);
@@ -178,6 +190,95 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await page.waitForSelector(`tr[aria-current="true"][data-item-id="${fresh[2]}"]`);
     for (const id of fresh.slice(0, 2)) await page.waitForSelector(`tr[data-item-id="${id}"] [data-arrival="new"]`);
   }, 60_000);
+
+  it('a three-station candidate event from real uploads shows in the queue and the review, and labels as one', async () => {
+    const db = server.ctx.database.db;
+    // Three stations at one place (distance 0: allowed lag 0/3 km/s + 2 s slack); the same synthetic
+    // burst at 50 s in each window gives first triggers within that lag (test input, not check values).
+    const base = { latitude: 46.31, longitude: 11.06, elevationM: 900 };
+    const ids: number[] = [];
+    const sids: number[] = [];
+    for (const code of ['KV03', 'KV04', 'KV05']) {
+      const sid = await createStation(db, { network: 'XX', code, name: `Kestrel Valley ${code}`, ...base }, system);
+      for (const cha of ['HHZ', 'HHN', 'HHE']) await upsertChannel(db, sid, { location: '00', code: cha, sampleRateHz: 100 }, system);
+      sids.push(sid);
+    }
+    const uploader = await createPerson(db, { roles: ['operator'], stationIds: sids });
+    const sue = await createPerson(db, { roles: ['supervisor'], displayName: 'Sue Ridge' });
+    for (const code of ['KV03', 'KV04', 'KV05']) {
+      const streams = syntheticStreams(code, Date.UTC(2026, 2, 14, 12, 0, 0) * 1000, { durationS: 120, burstAtS: 50 });
+      const file = Buffer.concat(streams.map((st) => Buffer.from(encodeMiniSeed2({ ...st, samples: Int32Array.from(st.samples) }, { encoding: 'steim2', recordLength: 512 }))));
+      const res = await request(server.url).post('/api/uploads').set('Origin', server.url).set('Cookie', uploader.cookie).attach('files', file, `XX.${code}.2026-03-14T12-00-00.mseed`);
+      expect(res.status).toBe(201);
+      const id = uploadResponseSchema.parse(res.body).files[0]?.itemIds?.[0];
+      if (id === undefined) throw new Error(`no item for ${code}`);
+      ids.push(id);
+    }
+    const detail = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${ids[0]}`).set('Cookie', ana.cookie)).body);
+    expect(detail.candidateEvent?.stationCount).toBe(3);
+    const groupId = detail.candidateEvent?.id;
+
+    for (const [width, height] of [[1440, 900], [1280, 720]] as const) {
+      for (const colorScheme of ['dark', 'light'] as const) {
+        const b = await launchBrowser({ width, height, colorScheme });
+        browsers.push(b);
+        await b.context.addCookies([{ name: 'seisift_session', value: ana.sessionId, url: server.url }]);
+        const page = b.context.pages()[0] ?? (await b.context.newPage());
+        await page.goto(`${server.url}/queue?station=KV03,KV04,KV05`);
+        await page.waitForSelector(`tr[data-item-id="${ids[0]}"] [data-group="${groupId}"]`);
+        // The table fits the screen: no horizontal scroll in the queue region.
+        const overflow = await page.$eval('[aria-label="Queue items"]', (el) => el.scrollWidth - el.clientWidth);
+        expect(overflow, `${width} px`).toBeLessThanOrEqual(1);
+        await screenshot(page, `analyst-queue-${width}-${colorScheme}`);
+        await page.click(`tr[data-item-id="${ids[1]}"] [data-group="${groupId}"]`);
+        await page.waitForSelector(`dialog[open] tbody tr:nth-child(3)`);
+        expect(await page.locator('dialog[open] tbody tr').count()).toBe(3);
+        await screenshot(page, `analyst-queue-group-${width}-${colorScheme}`);
+        await page.keyboard.press('Escape');
+        await page.goto(`${server.url}/queue/items/${ids[0]}`);
+        await page.waitForSelector('[data-testid="group-panel"] tbody tr:nth-child(3)');
+        await page.waitForSelector('[data-testid="trace-panel"] canvas');
+        await page.waitForTimeout(300);
+        await screenshot(page, `analyst-review-${width}-${colorScheme}`);
+        if (width === 1440 && colorScheme === 'dark') {
+          expect(await page.locator('[data-testid="group-panel"] a').count()).toBe(2);
+          await expect(page.getByRole('button', { name: /Label the whole group/ }).isVisible()).resolves.toBe(true);
+          await expect(page.locator('[data-testid="signal-spectrum"]').isVisible()).resolves.toBe(true);
+          const a11y = await checkA11y(page);
+          expect(a11y, JSON.stringify(a11y, null, 1)).toEqual([]);
+        }
+        await b.close();
+        browsers = browsers.filter((x) => x !== b);
+      }
+    }
+
+    // Label the whole group from the review screen: every member is labelled by Ana.
+    const page = await openAs(ana, `/queue/items/${ids[0]}`);
+    await page.getByRole('button', { name: /Label the whole group as earthquake/ }).click();
+    for (const id of ids) {
+      let d = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body);
+      for (let i = 0; i < 50 && d.state !== 'labelled'; i++) {
+        await new Promise((r) => setTimeout(r, 100));
+        d = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body);
+      }
+      expect(d.state, `item ${id}`).toBe('labelled');
+      expect(d.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
+    }
+
+    // A supervisor returns one member with a comment: the analyst sees it on the review screen and
+    // the row is marked in the queue.
+    const returned = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${ids[2]}`).set('Cookie', sue.cookie)).body);
+    await request(server.url)
+      .post(`/api/supervisor/review/items/${ids[2]}/return`)
+      .set('Origin', server.url)
+      .set('Cookie', sue.cookie)
+      .send({ version: returned.version, comment: 'The S onset at KV05 looks early; check the horizontals.' })
+      .expect(200);
+    await page.goto(`${server.url}/queue/items/${ids[2]}`);
+    await page.waitForSelector('[data-testid="return-note"]:has-text("S onset at KV05 looks early")');
+    await page.goto(`${server.url}/queue?station=KV05`);
+    await page.waitForSelector(`tr[data-item-id="${ids[2]}"][data-state="returned"]:has-text("comment")`);
+  }, 180_000);
 
   it('a click on a trace places a pick of the chosen phase at that time', async () => {
     const db = server.ctx.database.db;

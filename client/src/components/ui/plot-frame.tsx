@@ -20,6 +20,8 @@ export type PlotSeries = {
   values: Float64Array | Array<number | null>;
   /** Index into the token colours (--sf-plot-1..6) and plotDashes; defaults to the series' position. */
   styleIndex?: number;
+  /** Dash pattern (CSS px) in place of the style index's; [] draws a solid line. */
+  dash?: readonly number[];
 };
 
 /** One axis description. */
@@ -176,7 +178,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
       const palette = plotTheme?.series ?? [];
       return {
         color: palette[k % Math.max(1, palette.length)] ?? 'currentColor',
-        dash: plotDashes[k % plotDashes.length] ?? [],
+        dash: s.dash ?? plotDashes[k % plotDashes.length] ?? [],
       };
     },
     [plotTheme],
@@ -184,7 +186,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
 
   const xFormat = x.format ?? formatPlotNumber;
   const yFormat = y.format ?? formatPlotNumber;
-  const seriesKey = series.map((s) => `${s.label}:${s.styleIndex ?? ''}`).join('|');
+  const seriesKey = series.map((s) => `${s.label}:${s.styleIndex ?? ''}:${s.dash?.join(',') ?? ''}`).join('|');
 
   const options = useMemo<uPlot.Options | null>(() => {
     if (!plotTheme || width <= 0) return null;

@@ -2,11 +2,12 @@ import { useQueryClient } from '@tanstack/react-query';
 import { getCoreRowModel, useReactTable, flexRender, createColumnHelper } from '@tanstack/react-table';
 import { useVirtualizer } from '@tanstack/react-virtual';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react';
-import { useNavigate } from 'react-router';
+import { Link, useNavigate } from 'react-router';
 import { flags } from '../../../../../shared/schemas/flags';
 import { itemStates, type ItemState } from '../../../../../shared/schemas/item-states';
 import { labelFilterValues, type QueueRow } from '../../../../../shared/schemas/queue';
 import { Button } from '../../../components/ui/button';
+import { Dialog } from '../../../components/ui/dialog';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { FlagMarker } from '../../../components/ui/flag-marker';
 import { Input } from '../../../components/ui/input';
@@ -17,6 +18,7 @@ import { StateMarker } from '../../../components/ui/state-marker';
 import { useToast } from '../../../components/ui/toast';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { paths } from '../../../config/paths';
+import { useCandidateEvent } from '../../../api/queue/candidate-events';
 import { useMe, useQueueList, type QueueFilters } from '../../../api/queue/get-queue';
 import { useItemAction } from '../../../api/queue/item-actions';
 import { liveArrivals } from '../../../api/queue/live-patch';
@@ -26,7 +28,13 @@ import { formatAge, useNow } from './age';
 import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui/key-help';
 
 /** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
-const ROW_PX = 32;
+const ROW_PX = 44;
+
+/** Fixed column widths, px (the reasons column takes the rest), so the table fits 1280–1440 px screens. */
+const columnPx: Record<string, number | undefined> = { arrival: 56, flag: 124, score: 52, station: 60, windowStart: 104, createdAt: 64, state: 130, group: 84 };
+
+/** Columns of figures, codes and times: IBM Plex Mono with tabular digits. */
+const monoColumns = new Set(['score', 'station', 'windowStart', 'createdAt']);
 
 /** The queue screen's keys. */
 export const queueKeysHelp: readonly KeyBinding[] = [
@@ -69,6 +77,7 @@ export function QueueScreen() {
 
   const selectedIndex = selectedId === null ? -1 : rows.findIndex((r) => r.id === selectedId);
 
+  const [groupOpen, setGroupOpen] = useState<number | null>(null);
   const columns = useMemo(
     () => [
       column.display({
@@ -81,22 +90,72 @@ export function QueueScreen() {
             </span>
           ) : null,
       }),
-      column.accessor('score', { header: 'Score', cell: (c) => c.getValue().toFixed(1) }),
-      column.accessor('flag', { header: 'Flag', cell: (c) => <FlagMarker flag={c.getValue()} /> }),
-      column.accessor('station', { header: 'Station' }),
-      column.accessor('windowStart', { header: 'Window start (UTC)', cell: (c) => <time dateTime={c.getValue()}>{utc(c.getValue())}</time> }),
+      column.accessor('flag', { header: 'Flag', cell: (c) => <FlagMarker flag={c.getValue()} className="font-medium" /> }),
+      column.accessor('score', { header: () => <span title="Orders the queue; not a magnitude">Score</span>, cell: (c) => c.getValue().toFixed(1) }),
+      column.accessor('station', { header: 'Station', cell: (c) => c.getValue().split('.').pop() }),
+      column.accessor('windowStart', {
+        header: 'Window start (UTC)',
+        cell: (c) => (
+          <time dateTime={c.getValue()} className="flex flex-col leading-tight">
+            <span className="text-xs text-ink-muted">{c.getValue().slice(0, 10)}</span>
+            <span>{c.getValue().slice(11, 23)}</span>
+          </time>
+        ),
+      }),
       column.accessor('createdAt', { header: 'Waiting', cell: (c) => <span title={`arrived ${utc(c.getValue())} UTC`}>{formatAge(c.getValue(), now)}</span> }),
-      column.accessor('state', { header: 'State', cell: (c) => <StateMarker state={c.getValue()} /> }),
-      column.display({
-        id: 'who',
-        header: 'Claimed by',
+      column.accessor('state', {
+        header: 'State · holder',
         cell: (c) => {
-          const by = c.row.original.claimedBy;
-          if (!by || c.row.original.state !== 'in review') return <span className="text-ink-muted">—</span>;
-          return <span className={by.id === me?.id ? 'font-semibold' : undefined}>{by.id === me?.id ? 'you' : by.displayName}</span>;
+          const r = c.row.original;
+          const by = r.claimedBy;
+          return (
+            <span className="flex flex-col items-start gap-0.5 leading-tight">
+              <StateMarker state={c.getValue()} />
+              {r.state === 'in review' && by ? (
+                <span className={by.id === me?.id ? 'text-xs font-semibold' : 'text-xs text-ink-muted'}>{by.id === me?.id ? 'by you' : `by ${by.displayName}`}</span>
+              ) : r.state === 'returned' ? (
+                <span className="text-xs font-semibold">supervisor’s comment inside</span>
+              ) : null}
+            </span>
+          );
         },
       }),
-      column.accessor('reasons', { header: 'Why flagged', cell: (c) => <span className="block max-w-[32rem] truncate text-sm text-ink-muted" title={c.getValue().join('; ')}>{c.getValue()[0] ?? ''}</span> }),
+      column.display({
+        id: 'group',
+        header: 'Event group',
+        cell: (c) => {
+          const g = c.row.original.candidateEvent;
+          if (!g) return <span className="text-ink-muted">—</span>;
+          return (
+            <button
+              type="button"
+              data-group={g.id}
+              className="rounded-xs border border-line-strong px-1 text-left text-xs leading-tight hover:bg-raised"
+              title={`Candidate event #${g.id}: first triggers at ${g.stationCount} stations within the allowed time. Show its members.`}
+              onClick={(e) => {
+                e.stopPropagation();
+                setGroupOpen(g.id);
+              }}
+            >
+              group #{g.id}
+              <br />
+              {g.stationCount} stations
+            </button>
+          );
+        },
+      }),
+      column.accessor('reasons', {
+        header: 'Why flagged',
+        cell: (c) => {
+          const [first = '', ...rest] = c.getValue();
+          return (
+            <span className="flex items-center gap-1 text-sm text-ink-muted" title={c.getValue().join('\n')}>
+              <span className="line-clamp-2 min-w-0 leading-tight whitespace-normal">{first}</span>
+              {rest.length > 0 ? <span className="shrink-0 rounded-xs border border-line px-1 text-xs">+{rest.length}</span> : null}
+            </span>
+          );
+        },
+      }),
     ],
     // `arrivals` re-renders the marker column when the set changes.
     // eslint-disable-next-line react-hooks/exhaustive-deps
@@ -216,13 +275,18 @@ export function QueueScreen() {
           <EmptyState title="Nothing waiting under these filters">New windows appear here as soon as they are scored.</EmptyState>
         ) : (
           <div ref={scrollRef} onScroll={onScroll} role="region" aria-label="Queue items" tabIndex={0} className="min-h-0 flex-1 overflow-auto rounded-sm border border-line bg-surface">
-            <table className="w-full border-collapse text-base" aria-rowcount={rows.length + 1}>
+            <table className="w-full table-fixed border-collapse text-base" aria-rowcount={rows.length + 1}>
               <caption className="sr-only">Queue items, {filters.sort === 'score' ? 'highest score first' : 'oldest first'}. Use J and K to move, Enter to open.</caption>
+              <colgroup>
+                {table.getVisibleLeafColumns().map((col) => (
+                  <col key={col.id} style={columnPx[col.id] ? { width: columnPx[col.id] } : undefined} />
+                ))}
+              </colgroup>
               <thead className="sticky top-0 z-[1] bg-raised">
                 {headerGroups.map((g) => (
                   <tr key={g.id}>
                     {g.headers.map((h) => (
-                      <th key={h.id} scope="col" className="h-8 px-2 text-left text-sm font-medium whitespace-nowrap text-ink-muted">
+                      <th key={h.id} scope="col" className={h.column.id === 'flag' ? 'h-8 px-2 text-left text-sm font-semibold whitespace-nowrap text-ink' : 'h-8 overflow-hidden px-2 text-left text-sm font-medium whitespace-nowrap text-ink-muted'}>
                         {flexRender(h.column.columnDef.header, h.getContext())}
                       </th>
                     ))}
@@ -249,11 +313,13 @@ export function QueueScreen() {
                       className={
                         selected
                           ? 'cursor-pointer border-b border-line bg-accent-wash shadow-[inset_3px_0_0_var(--sf-accent)]'
-                          : 'cursor-pointer border-b border-line hover:bg-raised'
+                          : r.state === 'returned'
+                            ? 'cursor-pointer border-b border-line shadow-[inset_3px_0_0_var(--sf-state-returned)] hover:bg-raised'
+                            : 'cursor-pointer border-b border-line hover:bg-raised'
                       }
                     >
                       {row.getVisibleCells().map((cell) => (
-                        <td key={cell.id} className={cell.column.id === 'score' || cell.column.id === 'windowStart' || cell.column.id === 'createdAt' ? 'px-2 font-mono text-sm whitespace-nowrap tabular-nums' : 'px-2 whitespace-nowrap'}>
+                        <td key={cell.id} className={monoColumns.has(cell.column.id) ? 'overflow-hidden px-2 font-mono text-sm whitespace-nowrap tabular-nums' : 'overflow-hidden px-2 whitespace-nowrap'}>
                           {flexRender(cell.column.columnDef.cell, cell.getContext())}
                         </td>
                       ))}
@@ -268,7 +334,55 @@ export function QueueScreen() {
         )}
       </div>
       <KeyHelp open={help} onClose={() => setHelp(false)} title="Queue keys" bindings={queueKeysHelp} />
+      <GroupDialog eventId={groupOpen} onClose={() => setGroupOpen(null)} search={search} />
     </div>
+  );
+}
+
+/**
+ * The members of one candidate event (GET /api/supervisor/candidate-events/:id), each a link to
+ * its review: the queue's way to see a group whose members sit far apart in the list.
+ */
+function GroupDialog({ eventId, onClose, search }: { eventId: number | null; onClose: () => void; search: string }) {
+  const ev = useCandidateEvent(eventId);
+  return (
+    <Dialog open={eventId !== null} onClose={onClose} title={`Event group #${eventId ?? ''}`} description="Items whose first triggers at several stations fall within the time their distances allow. Not located; no magnitude." actions={<Button onClick={onClose}>Close</Button>}>
+      {ev.isPending ? (
+        <Loading label="Loading the group…" />
+      ) : ev.isError ? (
+        <p className="text-sm">The group could not be loaded: {ev.error.message}</p>
+      ) : (
+        <table className="w-full text-sm">
+          <caption className="sr-only">Members of event group {eventId}</caption>
+          <thead>
+            <tr className="text-left text-ink-muted">
+              <th scope="col" className="pr-3 font-medium">Station</th>
+              <th scope="col" className="pr-3 font-medium">First trigger (UTC)</th>
+              <th scope="col" className="pr-3 font-medium">Flag</th>
+              <th scope="col" className="font-medium">State</th>
+            </tr>
+          </thead>
+          <tbody>
+            {ev.data.members.map((m) => (
+              <tr key={m.itemId} className="border-t border-line">
+                <th scope="row" className="py-1 pr-3 text-left font-mono font-normal">
+                  <Link className="inline-flex h-6 items-center" to={`${paths.queueItem.href}/${m.itemId}${search ? `?${search}` : ''}`} onClick={onClose}>
+                    {m.station.split('.').pop()} · item {m.itemId}
+                  </Link>
+                </th>
+                <td className="pr-3 font-mono tabular-nums">{utc(m.arrival)}</td>
+                <td className="pr-3">
+                  <FlagMarker flag={m.flag} />
+                </td>
+                <td>
+                  <StateMarker state={m.state} />
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      )}
+    </Dialog>
   );
 }
 

@@ -52,6 +52,12 @@ export const analysisViewSchema = z.object({
       psd: z.object({ freqs: z.array(z.number()), values: z.array(z.number()), units: z.string() }),
       dominantFrequency: num,
       spectralCentroid: num,
+      /** Signal part over the pre-trigger noise (absent in analyses made before the engine had it). */
+      signalSpectrum: z
+        .object({ peakFrequency: num, peakSnr: num, centroid: num, fromS: z.number(), toS: z.number(), noiseFromS: z.number(), noiseToS: z.number() })
+        .nullable()
+        .optional(),
+      signalSpectrumNote: z.string().nullable().optional(),
       noiseModels: z.object({ accelerationDb: z.array(num), nlnmDb: z.array(num), nhnmDb: z.array(num), medianPosition: num }).nullable(),
       qc: z.array(z.object({ severity: z.string(), message: z.string() })),
       warnings: z.array(z.string()),

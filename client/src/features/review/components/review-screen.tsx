@@ -1,6 +1,9 @@
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Link, useLocation, useNavigate } from 'react-router';
+import { can } from '../../../../../shared/auth/policies';
+import { roleSchema, type Role } from '../../../../../shared/auth/roles';
 import { commonEventTypes, type Pick } from '../../../../../shared/schemas/label';
+import { useCandidateEvent, useLabelGroup, useReviewNote, type CandidateEvent } from '../../../api/queue/candidate-events';
 import { Button } from '../../../components/ui/button';
 import { Dialog } from '../../../components/ui/dialog';
 import { EmptyState } from '../../../components/ui/empty-state';
@@ -18,11 +21,11 @@ import { postKeepAlive, useItemAction, type ItemActionInput } from '../../../api
 import { liveArrivals } from '../../../api/queue/live-patch';
 import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui/key-help';
 import { parseFilters } from '../../../api/queue/queue-filters';
-import { analysisViewSchema, useItem, useTraces } from '../api/get-item';
+import { analysisViewSchema, useItem, useTraces, type AnalysisView } from '../api/get-item';
 import { LabelForm, useReviewForm, type ReviewFormValues } from './label-form';
 import { SpectrogramPanel } from './spectrogram-panel';
 import { SpectrumPanel } from './spectrum-panel';
-import { TracePanel, pickSeconds } from './trace-panel';
+import { TracePanel, pickSeconds, type SignalSegments } from './trace-panel';
 
 /** The review screen's keys. */
 export const reviewKeysHelp: readonly KeyBinding[] = [
@@ -77,6 +80,10 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const picks = form.watch('picks') ?? [];
 
   useEffect(() => liveArrivals.seen(itemId), [itemId]);
+  const group = useCandidateEvent(item.data?.candidateEvent?.id ?? null);
+  const labelGroup = useLabelGroup();
+  const note = useReviewNote(itemId, item.data !== undefined && (item.data.state === 'returned' || item.data.state === 'confirmed' || item.data.state === 'in review' || item.data.state === 'labelled'));
+  const mayLabelGroup = me ? can({ roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] }, 'queue.label') : false;
 
   const detail = item.data;
   const analysis = useMemo(() => {
@@ -155,6 +162,22 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     },
     [ensureClaim, run, detail],
   );
+  const labelWholeGroup = async (v: ReviewFormValues) => {
+    const ev = group.data;
+    if (!ev) return;
+    try {
+      const res = await labelGroup.mutateAsync({ eventId: ev.id, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } });
+      const done = res.members.filter((m) => m.result === 'labelled').length;
+      const skipped = res.members.filter((m) => m.result === 'skipped');
+      toast.notify({
+        tone: skipped.length > 0 ? 'warn' : 'ok',
+        title: `Event group #${ev.id}: ${done} of ${res.members.length} labelled ${v.eventType}`,
+        body: skipped.length > 0 ? skipped.map((m) => `item ${m.itemId}: ${m.reason ?? 'skipped'}`).join('; ') : 'Each member can still be corrected on its own.',
+      });
+    } catch (err) {
+      toast.notify({ tone: 'danger', title: `Could not label event group #${ev.id}`, body: err instanceof Error ? err.message : String(err) });
+    }
+  };
   const escalate = async () => {
     const version = await ensureClaim();
     if (version === null || !detail) return;
@@ -229,6 +252,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   if (item.isPending) return <Loading label={`Loading item ${itemId}…`} className="m-6" />;
   if (item.isError || !detail) return <EmptyState title={`Item ${itemId} could not be loaded`} className="m-6">{item.error?.message}</EmptyState>;
 
+  const segments: Record<string, SignalSegments | null> = Object.fromEntries((analysis?.channels ?? []).map((c) => [c.id, c.signalSpectrum ?? null]));
   const specChannel = analysis?.channels.find((c) => c.id === (spectrumChannel ?? analysis.leadChannel)) ?? analysis?.channels[0];
   const next = neighbour(1);
   const prev = neighbour(-1);
@@ -302,6 +326,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
               onPick={onPick}
               onCursor={onCursor}
               syncKey={`item-${detail.id}`}
+              segments={segments}
               afterLead={
                 leadTraces?.spectrogram ? (
                   <section aria-label="Spectrogram" className="rounded-sm border border-line bg-surface p-2">
@@ -318,6 +343,36 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           )}
         </main>
         <aside className="flex flex-col gap-3" aria-label="Assessment">
+          {note.data?.note?.returnComment && (detail.state === 'returned' || detail.state === 'in review') ? (
+            <section aria-label="Returned by a supervisor" className="rounded-sm border-[1.5px] p-3" style={{ borderColor: 'var(--sf-state-returned)' }} data-testid="return-note">
+              <h2 className="pb-1 text-md font-semibold">Returned to the queue</h2>
+              <p className="text-sm text-ink-muted">
+                by {note.data.note.returnedBy ?? 'a supervisor'}
+                {note.data.note.returnedAt ? (
+                  <>
+                    {' '}
+                    at <time className="font-mono" dateTime={note.data.note.returnedAt}>{note.data.note.returnedAt.replace('T', ' ')}</time>
+                  </>
+                ) : null}
+              </p>
+              <blockquote className="mt-1 border-l-2 border-line-strong pl-2 text-base whitespace-pre-wrap">{note.data.note.returnComment}</blockquote>
+            </section>
+          ) : null}
+          {detail.candidateEvent ? (
+            <GroupPanel
+              eventId={detail.candidateEvent.id}
+              stationCount={detail.candidateEvent.stationCount}
+              ev={group.data}
+              loading={group.isPending}
+              error={group.error?.message ?? null}
+              currentId={detail.id}
+              search={location.search}
+              mayLabel={mayLabelGroup}
+              eventType={form.watch('eventType')}
+              busy={labelGroup.isPending}
+              onLabel={() => void form.handleSubmit(labelWholeGroup)()}
+            />
+          ) : null}
           <section className="rounded-sm border border-line bg-surface p-3">
             <h2 className="pb-1 text-md font-semibold">Why it is flagged {detail.flag}</h2>
             <ul className="list-disc pl-5 text-sm">
@@ -382,7 +437,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
 }
 
 /** Metrics per channel from the engine's analysis. */
-function Metrics({ analysis }: { analysis: NonNullable<ReturnType<typeof analysisViewSchema.safeParse>['data']> }) {
+function Metrics({ analysis }: { analysis: AnalysisView }) {
   return (
     <section className="rounded-sm border border-line bg-surface p-3">
       <h2 className="pb-1 text-md font-semibold">Metrics</h2>
@@ -427,9 +482,145 @@ function Metrics({ analysis }: { analysis: NonNullable<ReturnType<typeof analysi
           ))}
         </ul>
       ) : null}
+      <SignalSpectrumTable analysis={analysis} />
       <p className="mt-1 text-xs text-ink-muted">
         Baseline: {analysis.baseline ?? '—'}. Band energies from causal filtering from zero state.
       </p>
+    </section>
+  );
+}
+
+/** 10·log10 of a power ratio, dB (a PSD ratio is a power ratio; common practice). */
+const powerDb = (r: number | null) => (r === null || r <= 0 ? '—' : (10 * Math.log10(r)).toFixed(1));
+
+/**
+ * The engine's signal spectrum per channel: where the triggered part rises most above the
+ * pre-trigger noise (peak frequency, that ratio in dB, the centroid of the excess) and the two
+ * segments it compared (shaded on the Z trace).
+ */
+function SignalSpectrumTable({ analysis }: { analysis: AnalysisView }) {
+  const rows = analysis.channels.filter((c) => c.signalSpectrum !== undefined || c.signalSpectrumNote);
+  if (rows.length === 0) return null;
+  return (
+    <div className="mt-3" data-testid="signal-spectrum">
+      <h3 className="pb-1 text-sm font-semibold">Signal over pre-trigger noise</h3>
+      <table className="w-full text-sm">
+        <caption className="sr-only">Per channel: peak frequency of the signal-to-noise spectral ratio, that ratio in dB, centroid of the excess, and the segments used</caption>
+        <thead>
+          <tr className="text-left text-ink-muted">
+            <th scope="col" className="pr-2 font-medium">Channel</th>
+            <th scope="col" className="pr-2 text-right font-medium">peak (Hz)</th>
+            <th scope="col" className="pr-2 text-right font-medium" title="10·log10 of signal PSD ÷ noise PSD at the peak">SNR (dB)</th>
+            <th scope="col" className="pr-2 text-right font-medium">centroid (Hz)</th>
+            <th scope="col" className="text-right font-medium">noise · signal (s)</th>
+          </tr>
+        </thead>
+        <tbody className="font-mono tabular-nums">
+          {rows.map((c) => {
+            const sp = c.signalSpectrum ?? null;
+            return (
+              <tr key={c.id} className="border-t border-line">
+                <th scope="row" className="pr-2 text-left font-normal">{c.id.split('.').pop()}</th>
+                {sp ? (
+                  <>
+                    <td className="pr-2 text-right">{fmt(sp.peakFrequency)}</td>
+                    <td className="pr-2 text-right">{powerDb(sp.peakSnr)}</td>
+                    <td className="pr-2 text-right">{fmt(sp.centroid)}</td>
+                    <td className="text-right whitespace-nowrap">
+                      {sp.noiseFromS.toFixed(1)}–{sp.noiseToS.toFixed(1)} · {sp.fromS.toFixed(1)}–{sp.toS.toFixed(1)}
+                    </td>
+                  </>
+                ) : (
+                  <td colSpan={4} className="font-sans text-ink-muted">
+                    {c.signalSpectrumNote ?? 'no trigger: whole-window spectrum used'}
+                  </td>
+                )}
+              </tr>
+            );
+          })}
+        </tbody>
+      </table>
+      <p className="mt-1 text-xs text-ink-muted">Welch PSD of the triggered part ÷ the same over the noise before it; a peak is counted only where the ratio clears the profile’s minimum.</p>
+    </div>
+  );
+}
+
+/** Props of <GroupPanel>. */
+type GroupPanelProps = {
+  eventId: number;
+  stationCount: number;
+  ev: CandidateEvent | undefined;
+  loading: boolean;
+  error: string | null;
+  currentId: number;
+  search: string;
+  mayLabel: boolean;
+  eventType: string;
+  busy: boolean;
+  onLabel: () => void;
+};
+
+/**
+ * The candidate event this item belongs to (issue 7): every member with station, first trigger,
+ * flag and state, each a link to its own review; "Label the whole group" for those the policy
+ * lets label (queue.label), with the form's values.
+ */
+function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, search, mayLabel, eventType, busy, onLabel }: GroupPanelProps) {
+  return (
+    <section aria-labelledby={`group-${eventId}`} className="rounded-sm border border-line bg-surface p-3" data-testid="group-panel">
+      <h2 id={`group-${eventId}`} className="pb-1 text-md font-semibold">
+        Event group #{eventId} · {stationCount} stations
+      </h2>
+      <p className="pb-2 text-sm text-ink-muted">First triggers at {stationCount} stations close enough in time for one source. Not located; no magnitude.</p>
+      {loading ? (
+        <Loading label="Loading the group…" />
+      ) : error || !ev ? (
+        <p className="text-sm">The group could not be loaded{error ? `: ${error}` : ''}.</p>
+      ) : (
+        <table className="w-full text-sm">
+          <caption className="sr-only">Members of event group {eventId}</caption>
+          <thead>
+            <tr className="text-left text-ink-muted">
+              <th scope="col" className="pr-2 font-medium">Station</th>
+              <th scope="col" className="pr-2 font-medium">First trigger (UTC)</th>
+              <th scope="col" className="pr-2 font-medium">Flag</th>
+              <th scope="col" className="font-medium">State</th>
+            </tr>
+          </thead>
+          <tbody>
+            {ev.members.map((m) => (
+              <tr key={m.itemId} className="border-t border-line" aria-current={m.itemId === currentId ? 'true' : undefined}>
+                <th scope="row" className="py-1 pr-2 text-left font-mono font-normal">
+                  {m.itemId === currentId ? (
+                    <strong className="inline-flex h-6 items-center">{m.station.split('.').pop()} (this)</strong>
+                  ) : (
+                    <Link className="inline-flex h-6 min-w-12 items-center" to={`${paths.queueItem.href}/${m.itemId}${search}`}>
+                      {m.station.split('.').pop()}
+                    </Link>
+                  )}
+                </th>
+                <td className="pr-2 font-mono tabular-nums">
+                  <time dateTime={m.arrival}>{m.arrival.slice(11, 23)}</time>
+                </td>
+                <td className="pr-2">
+                  <FlagMarker flag={m.flag} />
+                </td>
+                <td>
+                  <StateMarker state={m.state} />
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      )}
+      {mayLabel && ev ? (
+        <div className="mt-2 flex flex-wrap items-center gap-2">
+          <Button size="sm" disabled={busy} onClick={onLabel}>
+            Label the whole group as {eventType}
+          </Button>
+          <span className="text-xs text-ink-muted">Uses the form’s type, certainty and note; members settled or held by others are skipped.</span>
+        </div>
+      ) : null}
     </section>
   );
 }

@@ -1,7 +1,8 @@
-import { Fragment, useCallback, useMemo, useRef, type ReactNode } from 'react';
+import { Fragment, useCallback, useEffect, useMemo, useRef, type ReactNode } from 'react';
 import type uPlot from 'uplot';
 import type { TracesResponse } from '../../../../../shared/schemas/queue';
 import { PlotFrame } from '../../../components/ui/plot-frame';
+import { formatSi, niceTicks, siPrefixFor, siTickLabels } from '../lib/amplitude';
 
 type ChannelTraces = TracesResponse['channels'][number];
 
@@ -25,6 +26,8 @@ export type TracePanelProps = {
   syncKey: string;
   /** Shown right after the lead (vertical) channel, e.g. its spectrogram. */
   afterLead?: ReactNode;
+  /** Per stream id: the engine's signal and noise segments, shaded on vertical (Z) traces. */
+  segments?: Readonly<Record<string, SignalSegments | null>>;
 };
 
 /** Seconds from the window start of an ISO pick time. */
@@ -34,47 +37,143 @@ export function pickSeconds(p: PickMark, windowStartMs: number): number {
   return (whole - windowStartMs) / 1000 + Number(`0.${frac || '0'}`);
 }
 
-function drawMarks(u: uPlot, picks: readonly PickMark[], streamId: string, windowStartMs: number, triggers: ChannelTraces['triggers'] | null, color: string) {
+/** The signal and pre-trigger noise parts the engine's signal spectrum used, s from the window start. */
+export type SignalSegments = { fromS: number; toS: number; noiseFromS: number; noiseToS: number };
+
+/** Token colours of the pick markers: Okabe–Ito reddish purple (P) and vermillion (S), both colour-blind safe. */
+const pickTokens = { P: '--sf-plot-4', S: '--sf-plot-6' } as const;
+
+type MarkOptions = {
+  picks: readonly PickMark[];
+  windowStartMs: number;
+  triggers: ChannelTraces['triggers'] | null;
+  segments: SignalSegments | null;
+};
+
+/**
+ * Draws, inside the plot area: STA/LTA trigger spans (light grey), the signal-spectrum segments
+ * (very light tint with a labelled bar along the bottom: "noise", "signal"), and every pick as a
+ * full-height 2 px line in its phase's colour with the phase letter in a box at the top. Every
+ * channel's panels get every pick (one arrival, one time on all components). The drawn picks are
+ * listed in the root's `data-picks` ("P@20.123 S@25.400", s from the window start) for tests and
+ * assistive checks, as the canvas itself cannot be read.
+ */
+function drawMarks(u: uPlot, o: MarkOptions) {
   const ctx = u.ctx;
   const { top, height, left, width } = u.bbox;
+  const style = getComputedStyle(u.root);
+  const token = (name: string, fallback: string) => style.getPropertyValue(name).trim() || fallback;
+  const ratio = window.devicePixelRatio || 1;
+  const xOf = (t: number) => u.valToPos(t, 'x', true);
   ctx.save();
   ctx.beginPath();
   ctx.rect(left, top, width, height);
   ctx.clip();
-  if (triggers) {
+  if (o.triggers) {
     ctx.fillStyle = 'rgba(127,127,127,0.16)';
-    for (const t of triggers) {
-      const x0 = u.valToPos(t.on, 'x', true);
-      const x1 = u.valToPos(t.off ?? (u.scales.x?.max ?? t.on), 'x', true);
+    for (const t of o.triggers) {
+      const x0 = xOf(t.on);
+      const x1 = xOf(t.off ?? (u.scales.x?.max ?? t.on));
       ctx.fillRect(x0, top, Math.max(1, x1 - x0), height);
     }
   }
-  const ratio = window.devicePixelRatio || 1;
-  ctx.font = `${12 * ratio}px 'IBM Plex Mono', monospace`;
-  for (const p of picks) {
-    if (p.streamId !== streamId) continue;
-    const x = u.valToPos(pickSeconds(p, windowStartMs), 'x', true);
+  ctx.font = `500 ${11 * ratio}px 'IBM Plex Mono', monospace`;
+  ctx.textBaseline = 'bottom';
+  if (o.segments) {
+    const parts = [
+      { from: o.segments.noiseFromS, to: o.segments.noiseToS, name: 'noise', color: token('--sf-plot-5', '#888') },
+      { from: o.segments.fromS, to: o.segments.toS, name: 'signal', color: token('--sf-plot-3', '#888') },
+    ];
+    for (const part of parts) {
+      const x0 = xOf(part.from);
+      const x1 = xOf(part.to);
+      ctx.globalAlpha = 0.1;
+      ctx.fillStyle = part.color;
+      ctx.fillRect(x0, top, Math.max(1, x1 - x0), height);
+      ctx.globalAlpha = 1;
+      ctx.fillRect(x0, top + height - 4 * ratio, Math.max(1, x1 - x0), 4 * ratio);
+      ctx.fillStyle = token('--sf-ink', '#000');
+      ctx.fillText(part.name, x0 + 3 * ratio, top + height - 5 * ratio);
+    }
+  }
+  const drawn: string[] = [];
+  ctx.font = `600 ${12 * ratio}px 'IBM Plex Mono', monospace`;
+  ctx.textBaseline = 'top';
+  for (const p of o.picks) {
+    const t = pickSeconds(p, o.windowStartMs);
+    const x = xOf(t);
+    const color = token(pickTokens[p.phase], '#c0f');
     ctx.strokeStyle = color;
-    ctx.fillStyle = color;
     ctx.lineWidth = 2 * ratio;
-    ctx.setLineDash(p.phase === 'P' ? [] : [6 * ratio, 4 * ratio]);
+    ctx.setLineDash([]);
     ctx.beginPath();
     ctx.moveTo(x, top);
     ctx.lineTo(x, top + height);
     ctx.stroke();
-    ctx.fillText(p.phase, x + 4 * ratio, top + 14 * ratio);
+    const boxW = 14 * ratio;
+    const boxH = 16 * ratio;
+    ctx.fillStyle = color;
+    ctx.fillRect(x - boxW / 2, top, boxW, boxH);
+    ctx.fillStyle = token('--sf-plot-bg', '#fff');
+    ctx.fillText(p.phase, x - 4 * ratio, top + 2 * ratio);
+    drawn.push(`${p.phase}@${t.toFixed(3)}`);
   }
   ctx.restore();
+  u.root.dataset.picks = drawn.join(' ');
+}
+
+/** A trace as drawn: values in `unit`, and its largest |value| in that unit. */
+type Scaled = { values: number[]; unit: string; peak: number };
+
+/**
+ * Physical traces (m/s and the like) below 1 are drawn in the SI-prefixed unit of their peak
+ * (µm/s, nm/s), so ticks read "−2 0 2" with the prefix in the axis label; counts stay as they are
+ * and get prefixed ticks (1.2k). uPlot's tick search gave a lone "0" at about 1e-6.
+ */
+function displayScaled(values: number[], unit: string): Scaled {
+  const peak = values.reduce((m, v) => Math.max(m, Math.abs(v)), 0);
+  const p = siPrefixFor(peak);
+  if (unit === 'counts' || p.exp >= 0) return { values, unit, peak };
+  const k = 10 ** -p.exp;
+  return { values: values.map((v) => v * k), unit: `${p.symbol}${unit}`, peak: peak * k };
+}
+
+/** [−a, a] with a = 1.1 · max(|min|, |max|); [−1, 1] for an all-zero or empty trace. */
+function symmetricRange(min: number | null, max: number | null): uPlot.Range.MinMax {
+  const a = Math.max(Math.abs(min ?? 0), Math.abs(max ?? 0));
+  const half = Number.isFinite(a) && a > 0 ? a * 1.1 : 1;
+  return [-half, half];
+}
+
+/**
+ * Amplitude ticks: SI-prefixed, one prefix per axis (see lib/amplitude.ts), written to the root's
+ * `data-y-ticks` too (the canvas cannot be read by tests).
+ */
+function amplitudeAxis(axis: uPlot.Axis | undefined): uPlot.Axis {
+  return {
+    ...axis,
+    size: 58,
+    // Our own 1-2-5 splits: uPlot's defaults left a lone "0" on traces in m/s (about 1e-6).
+    splits: (u: uPlot, _axis: number, min: number, max: number) => niceTicks(min, max, Math.max(2, Math.floor(u.bbox.height / (window.devicePixelRatio || 1) / 26))),
+    values: (u: uPlot, splits: number[]) => {
+      const labels = siTickLabels(splits);
+      u.root.dataset.yTicks = labels.join(' ');
+      return labels;
+    },
+  };
 }
 
 /**
  * All channels of the item, each as its pre-processed trace and both causal band-pass traces, plus
  * the STA/LTA curve of every channel with its trigger-on/off levels. Every plot shares one cursor
  * (uPlot sync) and one zoom: drag across any plot to zoom all of them (the server then sends full
- * resolution for short spans). Picks are drawn as lines (P solid, S dashed, with their letter);
- * STA/LTA trigger spans are shaded.
+ * resolution for short spans). Every trace is a solid line (each band has its own titled panel);
+ * the y-axes carry SI-prefixed amplitude ticks in the channel's units (counts, or m/s with a
+ * sensitivity). Picks are full-height lines in their phase's colour with the letter on top, on
+ * every channel; STA/LTA trigger spans are shaded grey; on Z traces the signal-spectrum segments
+ * are tinted and labelled.
  */
-export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, onPick, onCursor, syncKey, afterLead }: TracePanelProps) {
+export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, onPick, onCursor, syncKey, afterLead, segments }: TracePanelProps) {
   // Vertical first, then the horizontals N/1 and E/2 (the usual Z, N, E reading order, common practice).
   const rank = (id: string) => ({ Z: 0, N: 1, '1': 1, E: 2, '2': 2 })[id.slice(-1)] ?? 3;
   const ordered = useMemo(() => [...traces.channels].sort((a, b) => rank(a.streamId) - rank(b.streamId) || a.streamId.localeCompare(b.streamId)), [traces.channels]);
@@ -86,7 +185,7 @@ export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, 
       </p>
       {ordered.map((c, i) => (
         <Fragment key={c.streamId}>
-          <ChannelPlots c={c} windowStartMs={windowStartMs} picks={picks} onZoom={onZoom} onPick={onPick} onCursor={onCursor} syncKey={syncKey} />
+          <ChannelPlots c={c} windowStartMs={windowStartMs} picks={picks} onZoom={onZoom} onPick={onPick} onCursor={onCursor} syncKey={syncKey} segment={c.streamId.endsWith('Z') ? (segments?.[c.streamId] ?? null) : null} />
           {i === 0 ? afterLead : null}
         </Fragment>
       ))}
@@ -94,13 +193,22 @@ export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, 
   );
 }
 
-function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncKey }: Omit<TracePanelProps, 'traces' | 'activePhase' | 'afterLead'> & { c: ChannelTraces }) {
+function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncKey, segment }: Omit<TracePanelProps, 'traces' | 'activePhase' | 'afterLead' | 'segments'> & { c: ChannelTraces; segment: SignalSegments | null }) {
   const picksRef = useRef(picks);
   picksRef.current = picks;
+  // Picks change without rebuilding the plots: redraw the existing charts' marks.
+  const charts = useRef(new Set<uPlot>());
+  useEffect(() => {
+    for (const u of charts.current) u.redraw(false, false);
+  }, [picks]);
   const x = useMemo(() => ({ label: 'Time from window start', unit: 's', values: c.times }), [c.times]);
   const configure = useCallback(
-    (withTriggers: boolean) => (o: uPlot.Options): uPlot.Options => ({
+    (withTriggers: boolean, withSegments: boolean, amplitude: boolean) => (o: uPlot.Options): uPlot.Options => ({
       ...o,
+      // Traces: a range symmetric about 0 from the data's largest |x| (+10 %). uPlot's own range
+      // rounding collapsed traces in m/s (about 1e-6) to a lone "0" tick.
+      scales: amplitude ? { ...o.scales, y: { ...o.scales?.y, range: (_u: uPlot, min: number, max: number) => symmetricRange(min, max) } } : o.scales,
+      axes: [o.axes?.[0] ?? {}, amplitudeAxis(o.axes?.[1])],
       cursor: { ...o.cursor, sync: { key: syncKey, setSeries: false } },
       hooks: {
         ...o.hooks,
@@ -121,9 +229,11 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
             onCursor(left === undefined || left < 0 ? null : u.posToVal(left, 'x'));
           },
         ],
-        draw: [(u: uPlot) => drawMarks(u, picksRef.current, c.streamId, windowStartMs, withTriggers ? c.triggers : null, getComputedStyle(u.root).getPropertyValue('--sf-accent').trim() || '#888')],
+        draw: [(u: uPlot) => drawMarks(u, { picks: picksRef.current, windowStartMs, triggers: withTriggers ? c.triggers : null, segments: withSegments ? segment : null })],
+        destroy: [(u: uPlot) => void charts.current.delete(u)],
         ready: [
           (u: uPlot) => {
+            charts.current.add(u);
             let downX = 0;
             u.over.addEventListener('mousedown', (e) => {
               downX = e.clientX;
@@ -137,43 +247,47 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         ],
       },
     }),
-    [syncKey, onZoom, onCursor, onPick, c.streamId, c.triggers, windowStartMs],
+    [syncKey, onZoom, onCursor, onPick, c.streamId, c.triggers, windowStartMs, segment],
   );
-  const plain = useMemo(() => configure(false), [configure]);
-  const withTriggers = useMemo(() => configure(true), [configure]);
+  const plain = useMemo(() => configure(false, false, true), [configure]);
+  const rawConfig = useMemo(() => configure(true, true, true), [configure]);
+  const withTriggers = useMemo(() => configure(true, false, false), [configure]);
   const on = useMemo(() => c.times.map(() => c.staLtaLevels.on), [c.times, c.staLtaLevels.on]);
   const off = useMemo(() => c.times.map(() => c.staLtaLevels.off), [c.times, c.staLtaLevels.off]);
   const f = (v: number) => String(v);
-  const peak = (y: number[]) => y.reduce((m, v) => Math.max(m, Math.abs(v)), 0).toExponential(2).replace('-', '\u2212');
+  const raw = useMemo(() => displayScaled(c.raw, c.units), [c.raw, c.units]);
+  const low = useMemo(() => displayScaled(c.low, c.units), [c.low, c.units]);
+  const high = useMemo(() => displayScaled(c.high, c.units), [c.high, c.units]);
+  const peak = (d: Scaled) => `${formatSi(d.peak)} ${d.unit}`;
   return (
     <section aria-label={`Channel ${c.streamId}`} className="rounded-sm border border-line bg-surface p-2">
       <h3 className="pb-1 font-mono text-sm font-medium">
         {c.streamId} <span className="font-sans font-normal text-ink-muted">· {c.sampleRateHz} Hz · {c.units}</span>
       </h3>
       <PlotFrame
-        title={`${c.streamId} pre-processed trace · peak |x| ${peak(c.raw)} ${c.units}`}
+        title={`${c.streamId} pre-processed trace · peak |x| ${peak(raw)}`}
         description={`Demeaned, detrended and tapered trace of ${c.streamId} in ${c.units}`}
         x={x}
-        y={{ label: 'raw', unit: c.units }}
-        series={[{ label: 'trace (demeaned, detrended)', values: c.raw, styleIndex: 0 }]}
+        y={{ label: 'amplitude', unit: raw.unit, format: formatSi }}
+        series={[{ label: 'trace (demeaned, detrended)', values: raw.values, styleIndex: 0, dash: [] }]}
         height={130}
-        configure={withTriggers}
+        configure={rawConfig}
       />
       <PlotFrame
-        title={`${c.streamId} low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz · peak |x| ${peak(c.low)} ${c.units}`}
+        title={`${c.streamId} low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz · peak |x| ${peak(low)}`}
         description={`Low band ${c.bands.low[0]} to ${c.bands.low[1]} Hz of ${c.streamId}`}
         x={x}
-        y={{ label: 'low', unit: c.units }}
-        series={[{ label: `low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz`, values: c.low, styleIndex: 1 }]}
+        y={{ label: 'low band', unit: low.unit, format: formatSi }}
+        series={[{ label: `low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz`, values: low.values, styleIndex: 1, dash: [] }]}
         height={100}
         configure={plain}
       />
       <PlotFrame
-        title={`${c.streamId} high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz · peak |x| ${peak(c.high)} ${c.units}`}
+        title={`${c.streamId} high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz · peak |x| ${peak(high)}`}
         description={`High band ${c.bands.high[0]} to ${c.bands.high[1]} Hz of ${c.streamId}`}
         x={x}
-        y={{ label: 'high', unit: c.units }}
-        series={[{ label: `high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz`, values: c.high, styleIndex: 2 }]}
+        y={{ label: 'high band', unit: high.unit, format: formatSi }}
+        series={[{ label: `high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz`, values: high.values, styleIndex: 2, dash: [] }]}
         height={100}
         configure={plain}
       />

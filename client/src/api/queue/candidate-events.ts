@@ -1,0 +1,93 @@
+import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { z } from 'zod';
+import type { EventLabelInput } from '../../../../shared/schemas/label';
+import { flagSchema } from '../../../../shared/schemas/flags';
+import { itemStateSchema } from '../../../../shared/schemas/item-states';
+import { apiRequest } from '../../lib/api-client';
+
+/** One member of a candidate event as GET /api/supervisor/candidate-events/:id sends it. */
+export const candidateMemberSchema = z.object({
+  itemId: z.number().int(),
+  station: z.string(),
+  stationId: z.number().int(),
+  /** First trigger time, ISO 8601 UTC with ms. */
+  arrival: z.string(),
+  state: itemStateSchema,
+  flag: flagSchema,
+  score: z.number(),
+  labelType: z.string().nullable(),
+  version: z.number().int(),
+});
+
+/** A candidate event member. */
+export type CandidateMember = z.infer<typeof candidateMemberSchema>;
+
+/** A candidate event with the members the viewer may see (server/services/candidate-events.ts). */
+export const candidateEventSchema = z.object({
+  id: z.number().int(),
+  anchorItemId: z.number().int(),
+  firstArrival: z.string(),
+  lastArrival: z.string(),
+  stationCount: z.number().int(),
+  members: z.array(candidateMemberSchema),
+});
+
+/** A candidate event. */
+export type CandidateEvent = z.infer<typeof candidateEventSchema>;
+
+/** Query key of one candidate event (under 'queue', so the live channel's refetches reach it). */
+export const candidateEventKey = (id: number) => ['queue', 'candidate-event', id] as const;
+
+/** Query options of GET /api/supervisor/candidate-events/:id (policy: queue.view). */
+export function candidateEventOptions(id: number) {
+  return queryOptions({ queryKey: candidateEventKey(id), queryFn: ({ signal }) => apiRequest(candidateEventSchema, `/api/supervisor/candidate-events/${id}`, { signal }), staleTime: 30_000 });
+}
+
+/** One candidate event, or nothing while `id` is null. */
+export function useCandidateEvent(id: number | null) {
+  return useQuery({ ...candidateEventOptions(id ?? 0), enabled: id !== null });
+}
+
+const groupLabelResultSchema = z.object({
+  members: z.array(z.object({ itemId: z.number().int(), result: z.enum(['labelled', 'skipped']), reason: z.string().optional() })),
+});
+
+/** What labelling a group did to each member. */
+export type GroupLabelResult = z.infer<typeof groupLabelResultSchema>;
+
+/**
+ * Labels every member of a candidate event (POST /api/supervisor/candidate-events/:id/label,
+ * policy queue.label); members already settled or claimed by someone else are skipped with a
+ * reason. Every queue query is refetched afterwards (each member's row changed).
+ */
+export function useLabelGroup() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ eventId, label }: { eventId: number; label: EventLabelInput }) =>
+      apiRequest(groupLabelResultSchema, `/api/supervisor/candidate-events/${eventId}/label`, { method: 'POST', body: { label } }),
+    onSettled: () => qc.invalidateQueries({ queryKey: ['queue'] }),
+  });
+}
+
+/** The supervisor's review note of an item (GET /api/supervisor/items/:id/review-note, policy queue.view). */
+export const reviewNoteSchema = z.object({
+  note: z
+    .object({
+      evaluationStatus: z.string().nullable(),
+      comment: z.string().nullable(),
+      returnComment: z.string().nullable(),
+      returnedBy: z.string().nullable(),
+      returnedAt: z.string().nullable(),
+    })
+    .nullable(),
+});
+
+/** An item's review note (null when no supervisor has reviewed or returned it). */
+export function useReviewNote(itemId: number, enabled: boolean) {
+  return useQuery({
+    queryKey: ['queue', 'review-note', itemId],
+    queryFn: ({ signal }) => apiRequest(reviewNoteSchema, `/api/supervisor/items/${itemId}/review-note`, { signal }),
+    enabled,
+    staleTime: 30_000,
+  });
+}
