@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatSi, niceTicks, siPrefixFor, siTickLabels } from '../../../../client/src/features/review/lib/amplitude';
+import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '../../../../client/src/features/review/lib/amplitude';
 
 // Prefix symbols and powers: BIPM, The International System of Units (SI), 9th ed. 2019, table 7.
 describe('SI amplitude labels', () => {
@@ -39,5 +39,16 @@ describe('niceTicks', () => {
   it('spans 0..25 with step 10 at 3 ticks, and refuses an empty range', () => {
     expect(niceTicks(0, 25, 3)).toEqual([0, 10, 20]);
     expect(niceTicks(1, 1, 3)).toEqual([]);
+  });
+});
+
+describe('symmetricRange', () => {
+  // Hand-worked: a = 1.05·2.4 = 2.52, step = niceStep(1.26) = 2, half = ceil(1.26)·2 = 4.
+  it('ends on a tick so a small panel always has ±half and 0', () => {
+    expect(symmetricRange(-2.4, 1)).toEqual([-4, 4]);
+    expect(niceTicks(-4, 4, 4)).toEqual([-4, -2, 0, 2, 4]);
+    // a = 1.05·0.9 = 0.945, step = niceStep(0.4725) = 0.5, half = 2·0.5 = 1.
+    expect(symmetricRange(-0.9, 0.9)).toEqual([-1, 1]);
+    expect(symmetricRange(0, 0)).toEqual([-1, 1]);
   });
 });

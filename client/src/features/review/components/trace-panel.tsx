@@ -2,7 +2,7 @@ import { Fragment, useCallback, useEffect, useMemo, useRef, type ReactNode } fro
 import type uPlot from 'uplot';
 import type { TracesResponse } from '../../../../../shared/schemas/queue';
 import { PlotFrame } from '../../../components/ui/plot-frame';
-import { formatSi, niceTicks, siPrefixFor, siTickLabels } from '../lib/amplitude';
+import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '../lib/amplitude';
 
 type ChannelTraces = TracesResponse['channels'][number];
 
@@ -128,7 +128,7 @@ type Scaled = { values: number[]; unit: string; peak: number };
 /**
  * Physical traces (m/s and the like) below 1 are drawn in the SI-prefixed unit of their peak
  * (µm/s, nm/s), so ticks read "−2 0 2" with the prefix in the axis label; counts stay as they are
- * and get prefixed ticks (1.2k). uPlot's tick search gave a lone "0" at about 1e-6.
+ * and get prefixed ticks (1.2k).
  */
 function displayScaled(values: number[], unit: string): Scaled {
   const peak = values.reduce((m, v) => Math.max(m, Math.abs(v)), 0);
@@ -138,23 +138,17 @@ function displayScaled(values: number[], unit: string): Scaled {
   return { values: values.map((v) => v * k), unit: `${p.symbol}${unit}`, peak: peak * k };
 }
 
-/** [−a, a] with a = 1.1 · max(|min|, |max|); [−1, 1] for an all-zero or empty trace. */
-function symmetricRange(min: number | null, max: number | null): uPlot.Range.MinMax {
-  const a = Math.max(Math.abs(min ?? 0), Math.abs(max ?? 0));
-  const half = Number.isFinite(a) && a > 0 ? a * 1.1 : 1;
-  return [-half, half];
-}
-
 /**
  * Amplitude ticks: SI-prefixed, one prefix per axis (see lib/amplitude.ts), written to the root's
  * `data-y-ticks` too (the canvas cannot be read by tests).
  */
-function amplitudeAxis(axis: uPlot.Axis | undefined): uPlot.Axis {
+function amplitudeAxis(axis: uPlot.Axis | undefined, amplitude: boolean): uPlot.Axis {
   return {
     ...axis,
     size: 58,
-    // Our own 1-2-5 splits: uPlot's defaults left a lone "0" on traces in m/s (about 1e-6).
-    splits: (u: uPlot, _axis: number, min: number, max: number) => niceTicks(min, max, Math.max(2, Math.floor(u.bbox.height / (window.devicePixelRatio || 1) / 26))),
+    // On traces, 1-2-5 splits over the symmetric range (which ends on a tick): uPlot's own search
+    // on a ~70 px plot picked a step just larger than the half-range and left a lone "0".
+    ...(amplitude ? { splits: (_u: uPlot, _axis: number, min: number, max: number) => niceTicks(min, max, 4) } : {}),
     values: (u: uPlot, splits: number[]) => {
       const labels = siTickLabels(splits);
       u.root.dataset.yTicks = labels.join(' ');
@@ -205,10 +199,9 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
   const configure = useCallback(
     (withTriggers: boolean, withSegments: boolean, amplitude: boolean) => (o: uPlot.Options): uPlot.Options => ({
       ...o,
-      // Traces: a range symmetric about 0 from the data's largest |x| (+10 %). uPlot's own range
-      // rounding collapsed traces in m/s (about 1e-6) to a lone "0" tick.
+      // Traces: a range symmetric about 0 that ends on a tick (lib/amplitude.ts symmetricRange).
       scales: amplitude ? { ...o.scales, y: { ...o.scales?.y, range: (_u: uPlot, min: number, max: number) => symmetricRange(min, max) } } : o.scales,
-      axes: [o.axes?.[0] ?? {}, amplitudeAxis(o.axes?.[1])],
+      axes: [o.axes?.[0] ?? {}, amplitudeAxis(o.axes?.[1], amplitude)],
       cursor: { ...o.cursor, sync: { key: syncKey, setSeries: false } },
       hooks: {
         ...o.hooks,

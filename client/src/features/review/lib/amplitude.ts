@@ -75,16 +75,29 @@ export function siTickLabels(ticks: readonly (number | null | undefined)[]): str
  */
 export function niceTicks(min: number, max: number, maxTicks: number): number[] {
   if (!Number.isFinite(min) || !Number.isFinite(max) || max <= min || maxTicks < 1) return [];
-  const rough = (max - min) / Math.max(1, maxTicks);
-  const mag = 10 ** Math.floor(Math.log10(rough));
-  let step = 10 * mag;
-  for (const m of [1, 2, 5, 10]) {
-    if (m * mag >= rough * (1 - 1e-9)) {
-      step = m * mag;
-      break;
-    }
-  }
+  const step = niceStep((max - min) / Math.max(1, maxTicks));
   const out: number[] = [];
   for (let k = Math.ceil(min / step - 1e-9); k * step <= max * (1 + 1e-12) + step * 1e-9; k++) out.push(k === 0 ? 0 : k * step);
   return out;
+}
+
+/** The smallest 1, 2 or 5 × 10ⁿ at least `rough` (> 0). */
+export function niceStep(rough: number): number {
+  const mag = 10 ** Math.floor(Math.log10(rough));
+  for (const m of [1, 2, 5]) if (m * mag >= rough * (1 - 1e-9)) return m * mag;
+  return 10 * mag;
+}
+
+/**
+ * A y range symmetric about 0 that ends on a tick: half-width = the first multiple of
+ * niceStep(a/2) at or above a = 1.05 · max(|min|, |max|), so `niceTicks(−h, h, 4)` gives 3–5 ticks
+ * including ±h and 0 (a small trace panel then always shows a scale, not a lone "0").
+ * [−1, 1] for an all-zero or non-finite range.
+ */
+export function symmetricRange(min: number | null, max: number | null): [number, number] {
+  const a = 1.05 * Math.max(Math.abs(min ?? 0), Math.abs(max ?? 0));
+  if (!Number.isFinite(a) || a === 0) return [-1, 1];
+  const step = niceStep(a / 2);
+  const half = Math.ceil(a / step - 1e-9) * step;
+  return [-half, half];
 }
