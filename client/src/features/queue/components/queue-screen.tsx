@@ -31,7 +31,7 @@ import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui
 const ROW_PX = 44;
 
 /** Fixed column widths, px (the reasons column takes the rest), so the table fits 1280–1440 px screens. */
-const columnPx: Record<string, number | undefined> = { arrival: 56, flag: 124, score: 52, station: 60, windowStart: 104, createdAt: 64, state: 130, group: 84 };
+const columnPx: Record<string, number | undefined> = { flag: 124, score: 52, station: 56, windowStart: 104, createdAt: 60, state: 124, group: 84 };
 
 /** Columns of figures, codes and times: IBM Plex Mono with tabular digits. */
 const monoColumns = new Set(['score', 'station', 'windowStart', 'createdAt']);
@@ -80,17 +80,19 @@ export function QueueScreen() {
   const [groupOpen, setGroupOpen] = useState<number | null>(null);
   const columns = useMemo(
     () => [
-      column.display({
-        id: 'arrival',
-        header: () => <span className="sr-only">Arrived just now</span>,
-        cell: (c) =>
-          liveArrivals.has(c.row.original.id) ? (
-            <span data-arrival="new" className="rounded-xs border border-accent px-1 text-xs font-semibold whitespace-nowrap text-accent-ink" title="Arrived while this page was open; marked until you select it">
-              just in
-            </span>
-          ) : null,
+      column.accessor('flag', {
+        header: 'Flag',
+        cell: (c) => (
+          <span className="flex flex-col items-start gap-0.5 leading-tight">
+            <FlagMarker flag={c.getValue()} className="font-medium" />
+            {liveArrivals.has(c.row.original.id) ? (
+              <span data-arrival="new" className="rounded-xs border border-accent px-1 text-xs font-semibold whitespace-nowrap text-accent-ink" title="Arrived while this page was open; marked until you select it">
+                just in
+              </span>
+            ) : null}
+          </span>
+        ),
       }),
-      column.accessor('flag', { header: 'Flag', cell: (c) => <FlagMarker flag={c.getValue()} className="font-medium" /> }),
       column.accessor('score', { header: () => <span title="Orders the queue; not a magnitude">Score</span>, cell: (c) => c.getValue().toFixed(1) }),
       column.accessor('station', { header: 'Station', cell: (c) => c.getValue().split('.').pop() }),
       column.accessor('windowStart', {
@@ -149,8 +151,8 @@ export function QueueScreen() {
         cell: (c) => {
           const [first = '', ...rest] = c.getValue();
           return (
-            <span className="flex items-center gap-1 text-sm text-ink-muted" title={c.getValue().join('\n')}>
-              <span className="line-clamp-2 min-w-0 leading-tight whitespace-normal">{first}</span>
+            <span className="flex items-center gap-1 text-xs text-ink-muted" title={c.getValue().join('\n')}>
+              <span className="line-clamp-2 min-w-0 leading-snug whitespace-normal">{first}</span>
               {rest.length > 0 ? <span className="shrink-0 rounded-xs border border-line px-1 text-xs">+{rest.length}</span> : null}
             </span>
           );
@@ -286,7 +288,7 @@ export function QueueScreen() {
                 {headerGroups.map((g) => (
                   <tr key={g.id}>
                     {g.headers.map((h) => (
-                      <th key={h.id} scope="col" className={h.column.id === 'flag' ? 'h-8 px-2 text-left text-sm font-semibold whitespace-nowrap text-ink' : 'h-8 overflow-hidden px-2 text-left text-sm font-medium whitespace-nowrap text-ink-muted'}>
+                      <th key={h.id} scope="col" className={h.column.id === 'flag' ? 'h-10 px-2 text-left text-sm leading-tight font-semibold text-ink' : 'h-10 px-2 text-left text-sm leading-tight font-medium text-ink-muted'}>
                         {flexRender(h.column.columnDef.header, h.getContext())}
                       </th>
                     ))}
@@ -346,7 +348,7 @@ export function QueueScreen() {
 function GroupDialog({ eventId, onClose, search }: { eventId: number | null; onClose: () => void; search: string }) {
   const ev = useCandidateEvent(eventId);
   return (
-    <Dialog open={eventId !== null} onClose={onClose} title={`Event group #${eventId ?? ''}`} description="Items whose first triggers at several stations fall within the time their distances allow. Not located; no magnitude." actions={<Button onClick={onClose}>Close</Button>}>
+    <Dialog className="w-[min(42rem,calc(100vw-2rem))]" open={eventId !== null} onClose={onClose} title={`Event group #${eventId ?? ''}`} description="Items whose first triggers at several stations fall within the time their distances allow. Not located; no magnitude." actions={<Button onClick={onClose}>Close</Button>}>
       {ev.isPending ? (
         <Loading label="Loading the group…" />
       ) : ev.isError ? (
@@ -365,12 +367,14 @@ function GroupDialog({ eventId, onClose, search }: { eventId: number | null; onC
           <tbody>
             {ev.data.members.map((m) => (
               <tr key={m.itemId} className="border-t border-line">
-                <th scope="row" className="py-1 pr-3 text-left font-mono font-normal">
+                <th scope="row" className="py-1 pr-3 text-left font-mono font-normal whitespace-nowrap">
                   <Link className="inline-flex h-6 items-center" to={`${paths.queueItem.href}/${m.itemId}${search ? `?${search}` : ''}`} onClick={onClose}>
                     {m.station.split('.').pop()} · item {m.itemId}
                   </Link>
                 </th>
-                <td className="pr-3 font-mono tabular-nums">{utc(m.arrival)}</td>
+                <td className="pr-3 font-mono whitespace-nowrap tabular-nums">
+                  <time dateTime={m.arrival}>{utc(m.arrival)}</time>
+                </td>
                 <td className="pr-3">
                   <FlagMarker flag={m.flag} />
                 </td>

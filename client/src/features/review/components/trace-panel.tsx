@@ -97,7 +97,7 @@ function drawMarks(u: uPlot, o: MarkOptions) {
     }
   }
   const drawn: string[] = [];
-  ctx.font = `600 ${12 * ratio}px 'IBM Plex Mono', monospace`;
+  ctx.font = `700 ${13 * ratio}px 'IBM Plex Mono', monospace`;
   ctx.textBaseline = 'top';
   for (const p of o.picks) {
     const t = pickSeconds(p, o.windowStartMs);
@@ -110,12 +110,14 @@ function drawMarks(u: uPlot, o: MarkOptions) {
     ctx.moveTo(x, top);
     ctx.lineTo(x, top + height);
     ctx.stroke();
-    const boxW = 14 * ratio;
-    const boxH = 16 * ratio;
+    const boxW = 16 * ratio;
+    const boxH = 17 * ratio;
     ctx.fillStyle = color;
     ctx.fillRect(x - boxW / 2, top, boxW, boxH);
     ctx.fillStyle = token('--sf-plot-bg', '#fff');
-    ctx.fillText(p.phase, x - 4 * ratio, top + 2 * ratio);
+    ctx.textAlign = 'center';
+    ctx.fillText(p.phase, x, top + 2 * ratio);
+    ctx.textAlign = 'left';
     drawn.push(`${p.phase}@${t.toFixed(3)}`);
   }
   ctx.restore();
@@ -148,7 +150,8 @@ function amplitudeAxis(axis: uPlot.Axis | undefined, amplitude: boolean): uPlot.
     size: 58,
     // On traces, 1-2-5 splits over the symmetric range (which ends on a tick): uPlot's own search
     // on a ~70 px plot picked a step just larger than the half-range and left a lone "0".
-    ...(amplitude ? { splits: (_u: uPlot, _axis: number, min: number, max: number) => niceTicks(min, max, 4) } : {}),
+    // Panels under 120 px get only −h, 0, h so the labels never overlap.
+    ...(amplitude ? { splits: (u: uPlot, _axis: number, min: number, max: number) => (u.height >= 120 ? niceTicks(min, max, 4) : [min, 0, max]) } : {}),
     values: (u: uPlot, splits: number[]) => {
       const labels = siTickLabels(splits);
       u.root.dataset.yTicks = labels.join(' ');
@@ -261,7 +264,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         title={`${c.streamId} pre-processed trace · peak |x| ${peak(raw)}`}
         description={`Demeaned, detrended and tapered trace of ${c.streamId} in ${c.units}`}
         x={x}
-        y={{ label: 'amplitude', unit: raw.unit, format: formatSi }}
+        y={{ label: raw.unit, format: (v) => `${formatSi(v)} ${raw.unit}` }}
         series={[{ label: 'trace (demeaned, detrended)', values: raw.values, styleIndex: 0, dash: [] }]}
         height={130}
         configure={rawConfig}
@@ -270,7 +273,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         title={`${c.streamId} low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz · peak |x| ${peak(low)}`}
         description={`Low band ${c.bands.low[0]} to ${c.bands.low[1]} Hz of ${c.streamId}`}
         x={x}
-        y={{ label: 'low band', unit: low.unit, format: formatSi }}
+        y={{ label: low.unit, format: (v) => `${formatSi(v)} ${low.unit}` }}
         series={[{ label: `low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz`, values: low.values, styleIndex: 1, dash: [] }]}
         height={100}
         configure={plain}
@@ -279,7 +282,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         title={`${c.streamId} high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz · peak |x| ${peak(high)}`}
         description={`High band ${c.bands.high[0]} to ${c.bands.high[1]} Hz of ${c.streamId}`}
         x={x}
-        y={{ label: 'high band', unit: high.unit, format: formatSi }}
+        y={{ label: high.unit, format: (v) => `${formatSi(v)} ${high.unit}` }}
         series={[{ label: `high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz`, values: high.values, styleIndex: 2, dash: [] }]}
         height={100}
         configure={plain}
