@@ -65,37 +65,61 @@ export function formatUtcTimeText(iso: string): string {
   return full;
 }
 
-/** Props of <UtcTimeInput>. */
+/** Props of <UtcTimeInput>: a required time, or (`optional`) one that may be left empty. */
 export type UtcTimeInputProps = {
   label: string;
-  /** The current time, ISO 8601 UTC. */
-  value: string;
-  /** Called with the parsed ISO time whenever the text is a valid UTC time (not on invalid text). */
-  onChange: (iso: string) => void;
   /** Extra error from the form (e.g. "must be before To"), shown when the text itself is valid. */
   error?: string;
   className?: string;
-};
+} & (
+  | {
+      optional?: false;
+      /** The current time, ISO 8601 UTC. */
+      value: string;
+      /** Called with the parsed ISO time whenever the text is a valid UTC time (not on invalid text). */
+      onChange: (iso: string) => void;
+    }
+  | {
+      /** Empty text is allowed and means "no time" (e.g. an open end of a filter). */
+      optional: true;
+      value: string | undefined;
+      /** Called with the parsed ISO time, or undefined when the field is emptied. */
+      onChange: (iso: string | undefined) => void;
+    }
+);
 
 /**
  * A labelled text field for a UTC time in ISO 8601 (in place of the browser's date picker, which
  * shows the reader's locale and time zone). Plex Mono, placeholder `2026-03-14T00:00Z`; invalid
  * text shows its error under the field (aria-invalid + aria-describedby) and keeps the last valid
- * value upstream. Follows `value` when it changes from outside.
+ * value upstream. Follows `value` when it changes from outside. With `optional`, empty text is
+ * valid and reported as undefined.
  */
-export function UtcTimeInput({ label, value, onChange, error, className }: UtcTimeInputProps) {
+export function UtcTimeInput(props: UtcTimeInputProps) {
+  const { label, value, error, className } = props;
   const id = useId();
-  const [text, setText] = useState(() => formatUtcTimeText(value));
-  const parsed = parseUtcTimeText(text);
+  const [text, setText] = useState(() => (value === undefined ? '' : formatUtcTimeText(value)));
+  const empty = text.trim() === '';
+  const parsed = props.optional && empty ? null : parseUtcTimeText(text);
   useEffect(() => {
     // A new value from outside (a default arriving, a reset): show it unless the text already says so.
     setText((t) => {
+      if (value === undefined) return t.trim() === '' ? t : '';
       const p = parseUtcTimeText(t);
       return p.ok && Date.parse(p.iso) === Date.parse(value) ? t : formatUtcTimeText(value);
     });
   }, [value]);
-  const message = parsed.ok ? error : parsed.message;
+  const message = parsed === null || parsed.ok ? error : parsed.message;
   const errorId = message ? `${id}-error` : undefined;
+  const onText = (next: string) => {
+    setText(next);
+    if (props.optional && next.trim() === '') {
+      props.onChange(undefined);
+      return;
+    }
+    const p = parseUtcTimeText(next);
+    if (p.ok) props.onChange(p.iso);
+  };
   return (
     <div className={cx('flex flex-col gap-1', className)}>
       <label htmlFor={id} className="text-sm">
@@ -113,11 +137,7 @@ export function UtcTimeInput({ label, value, onChange, error, className }: UtcTi
         value={text}
         aria-invalid={message ? true : undefined}
         aria-describedby={errorId}
-        onChange={(e) => {
-          setText(e.target.value);
-          const p = parseUtcTimeText(e.target.value);
-          if (p.ok) onChange(p.iso);
-        }}
+        onChange={(e) => onText(e.target.value)}
       />
       {message ? (
         <p id={errorId} className="flex max-w-64 items-center gap-1 text-sm text-danger">

@@ -26,6 +26,7 @@ import { workingStates } from '../../../api/queue/queue-filters';
 import { useQueueFilters } from '../hooks/use-queue-filters';
 import { formatAge, useNow } from './age';
 import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui/key-help';
+import { UtcTimeInput } from '../../../components/ui/utc-time-input';
 
 /** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
 const ROW_PX = 44;
@@ -491,12 +492,7 @@ function NumberFilter({ label, value, onChange }: { label: string; value: number
 }
 
 function TimeFilter({ label, value, onChange }: { label: string; value: string | undefined; onChange: (v: string | undefined) => void }) {
-  // datetime-local has no zone: the value is read and written as UTC.
-  const local = value ? value.slice(0, 16) : '';
-  return (
-    <label className="flex w-52 flex-col gap-1 text-sm font-medium">
-      {label}
-      <Input type="datetime-local" value={local} onChange={(e) => onChange(e.target.value ? `${e.target.value}:00.000Z` : undefined)} mono />
-    </label>
-  );
+  // UTC ISO 8601 text like every other time in Seisift (the browser's date-time picker shows the
+  // reader's locale); empty leaves this end of the window open.
+  return <UtcTimeInput optional label={label} value={value} onChange={onChange} className="font-medium" />;
 }
