@@ -1,4 +1,5 @@
 import type { QueryClient } from '@tanstack/react-query';
+import { z } from 'zod';
 import type { ChangeMessage } from '../../../../shared/realtime';
 import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '../../../../shared/schemas/queue';
 import { getQueuePage, type QueueFilters, type QueueListData } from './get-queue';
@@ -114,10 +115,40 @@ export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['ki
   if (kind === 'created') liveArrivals.add(row.id);
 }
 
+/** Summary of a candidate_event change (server/services/candidate-events.ts regroupAround). */
+const groupSummarySchema = z.object({ itemIds: z.array(z.number().int()), stationCount: z.number().int() });
+
+/**
+ * Marks the members of candidate event `eventId` in every cached list (their rows' versions do not
+ * move: grouping is not an item change) and refetches open details of those items, so the group
+ * marker and panel appear as soon as the group forms.
+ */
+export function patchGroup(qc: QueryClient, eventId: number, group: z.infer<typeof groupSummarySchema>): void {
+  const members = new Set(group.itemIds);
+  const mark = { id: eventId, stationCount: group.stationCount };
+  for (const [key, data] of qc.getQueriesData<QueueListData>({ queryKey: ['queue', 'list'] })) {
+    if (!data) continue;
+    let changed = false;
+    const pages = data.pages.map((p) => {
+      if (!p.items.some((r) => members.has(r.id))) return p;
+      changed = true;
+      return { ...p, items: p.items.map((r) => (members.has(r.id) ? { ...r, candidateEvent: mark } : r)) };
+    });
+    if (changed) qc.setQueryData<QueueListData>(key, { ...data, pages });
+  }
+  for (const id of members) if (qc.getQueryData(['queue', 'item', id])) void qc.invalidateQueries({ queryKey: ['queue', 'item', id] });
+}
+
 /** Applies a batch of live changes to the cache. */
 export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[]): void {
   let needLists = false;
   for (const c of changes) {
+    if (c.resource === 'candidate_event') {
+      const g = groupSummarySchema.safeParse(c.summary);
+      if (c.kind !== 'deleted' && g.success) patchGroup(qc, c.id, g.data);
+      void qc.invalidateQueries({ queryKey: ['queue', 'candidate-event', c.id] });
+      continue;
+    }
     if (c.resource !== 'item') continue;
     const row = queueRowSchema.safeParse(c.summary);
     if (row.success) patchRow(qc, row.data, c.kind);

@@ -71,4 +71,16 @@ describe('live changes into the query cache', () => {
     expect(qc.getQueryState(queueKeys.item(3))?.isInvalidated).toBe(true);
     expect(qc.getQueryData<QueueListData>(queueKeys.list(f))?.pages[1]?.items[0]?.state).toBe('in review');
   });
+
+  it('a candidate_event change marks its members in place, order kept, without a version step', () => {
+    const qc = seed(null);
+    applyChanges(qc, [
+      { seq: 9, resource: 'candidate_event', id: 12, kind: 'created', version: 1, summary: { anchorItemId: 2, itemIds: [2, 4], stationCount: 2, firstArrival: '2026-03-14T09:00:20.000Z' }, at: '2026-03-14T09:00:30.000Z' },
+    ]);
+    const rows = qc.getQueryData<QueueListData>(queueKeys.list(f))?.pages.flatMap((p) => p.items) ?? [];
+    expect(rows.map((r) => r.id)).toEqual([1, 2, 3, 4]);
+    expect(rows.map((r) => r.candidateEvent?.id ?? null)).toEqual([null, 12, null, 12]);
+    expect(rows.find((r) => r.id === 4)?.candidateEvent?.stationCount).toBe(2);
+    expect(rows.every((r) => r.version === 1)).toBe(true);
+  });
 });
