@@ -230,6 +230,10 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
         const overflow = await page.$eval('[aria-label="Queue items"]', (el) => el.scrollWidth - el.clientWidth);
         expect(overflow, `${width} px`).toBeLessThanOrEqual(1);
         await screenshot(page, `analyst-queue-${width}-${colorScheme}`);
+        if (width === 1440) {
+          const queueA11y = await checkA11y(page);
+          expect(queueA11y, JSON.stringify(queueA11y, null, 1)).toEqual([]);
+        }
         await page.click(`tr[data-item-id="${ids[1]}"] [data-group="${groupId}"]`);
         await page.waitForSelector(`dialog[open] tbody tr:nth-child(3)`);
         expect(await page.locator('dialog[open] tbody tr').count()).toBe(3);
