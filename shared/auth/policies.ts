@@ -63,7 +63,7 @@ export type PolicyTarget = { stationId: number };
 export const policyTable: Record<Action, Partial<Record<Role, 'all' | 'assigned'>>> = {
   'station.view': { operator: 'assigned', analyst: 'all', supervisor: 'all', admin: 'all' },
   'station.create': { supervisor: 'all', admin: 'all' },
-  'station.edit': { operator: 'assigned', admin: 'all' },
+  'station.edit': { operator: 'assigned', supervisor: 'all', admin: 'all' },
   'upload.create': { operator: 'assigned' },
   'token.manage': { operator: 'assigned', admin: 'all' },
   'queue.view': { operator: 'assigned', analyst: 'all', supervisor: 'all' },

@@ -380,10 +380,10 @@ export const routeMatrix: readonly MatrixRow[] = [
   },
   {
     // Applying changes stations: station.edit on each station in the file (station.create for new
-    // ones), so only operators (their own) and admins succeed; the route gate is station.view.
+    // ones), so operators (their own), supervisors and admins succeed; the route gate is station.view.
     method: 'POST',
     path: '/api/stations/import/apply',
-    allow: ['operator', 'admin'],
+    allow: ['operator', 'supervisor', 'admin'],
     build: async (w, as) => {
       const xml = as === 'operator' ? stationXmlKv01() : stationXml();
       const preview = await call(w, 'POST', '/api/stations/import/preview', cookieOf(w, as)).attach('file', xml, 'kv.xml');
@@ -409,7 +409,7 @@ export const routeMatrix: readonly MatrixRow[] = [
   {
     method: 'PATCH',
     path: '/api/stations/:id',
-    allow: ['operator', 'admin'],
+    allow: ['operator', 'supervisor', 'admin'],
     action: 'station.edit',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV02')}`, body: { siteDescription: `matrix edit ${next()}` } }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}`, body: { siteDescription: 'not yours' } }),
@@ -417,7 +417,7 @@ export const routeMatrix: readonly MatrixRow[] = [
   {
     method: 'POST',
     path: '/api/stations/:id/channels',
-    allow: ['operator', 'admin'],
+    allow: ['operator', 'supervisor', 'admin'],
     action: 'station.edit',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV02')}/channels`, body: { location: '10', code: `HN${'ZNE'[next() % 3]}`, sampleRateHz: 200 } }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}/channels`, body: { location: '10', code: 'HNZ', sampleRateHz: 200 } }),
@@ -425,7 +425,7 @@ export const routeMatrix: readonly MatrixRow[] = [
   {
     method: 'DELETE',
     path: '/api/stations/:id/channels/:childId',
-    allow: ['operator', 'admin'],
+    allow: ['operator', 'supervisor', 'admin'],
     action: 'station.edit',
     build: async (w) => {
       const now = new Date();
@@ -448,7 +448,7 @@ export const routeMatrix: readonly MatrixRow[] = [
   {
     method: 'PUT',
     path: '/api/stations/:id/profile',
-    allow: ['operator', 'admin'],
+    allow: ['operator', 'supervisor', 'admin'],
     action: 'station.edit',
     build: async (w) => {
       const res = await call(w, 'GET', `/api/stations/${kv(w, 'KV01')}`, w.cookie.admin);

@@ -40,9 +40,10 @@ describe('policies', () => {
       expect(can(analyst, a), a).toBe(false);
   });
 
-  it('supervisor: every analyst right plus registering stations (issue 5), review, thresholds, export and the audit log', () => {
+  it('supervisor: every analyst right plus registering and editing stations (issue 5), review, thresholds, export and the audit log', () => {
     for (const a of allowedActions(analyst)) expect(can(supervisor, a, { stationId: 7 }), a).toBe(true);
     for (const a of ['station.create', 'review.evaluate', 'thresholds.edit', 'catalogue.export', 'audit.view', 'inbox.view', 'dashboard.view'] as const) expect(can(supervisor, a), a).toBe(true);
+    expect(can(supervisor, 'station.edit', { stationId: 7 })).toBe(true);
     expect(can(supervisor, 'users.manage')).toBe(false);
     expect(can(supervisor, 'mailbox.view')).toBe(false);
   });

@@ -88,22 +88,22 @@ describe('role × route matrix: stations, tokens, import, uploads, OpenAPI', () 
     {
       route: 'PATCH /api/stations/:id',
       run: (w) => call('patch', `/api/stations/${stationId}`, w).send({ siteDescription: `edited ${next()}` }),
-      expect: { anonymous: 401, opMine: 200, opOther: 403, analyst: 403, supervisor: 403, admin: 200 },
+      expect: { anonymous: 401, opMine: 200, opOther: 403, analyst: 403, supervisor: 200, admin: 200 },
     },
     {
       route: 'PUT /api/stations/:id/profile',
       run: (w) => call('put', `/api/stations/${stationId}/profile`, w).send({ thresholds: { eventZ: 3 } }),
-      expect: { anonymous: 401, opMine: 200, opOther: 403, analyst: 403, supervisor: 403, admin: 200 },
+      expect: { anonymous: 401, opMine: 200, opOther: 403, analyst: 403, supervisor: 200, admin: 200 },
     },
     {
       route: 'POST /api/stations/:id/channels',
       run: (w) => call('post', `/api/stations/${stationId}/channels`, w).send({ location: '00', code: 'HHN', sampleRateHz: 100 }),
-      expect: { anonymous: 401, opMine: 201, opOther: 403, analyst: 403, supervisor: 403, admin: 201 },
+      expect: { anonymous: 401, opMine: 201, opOther: 403, analyst: 403, supervisor: 201, admin: 201 },
     },
     {
       route: 'DELETE /api/stations/:id/channels/:channelId',
       run: async (w) => call('delete', `/api/stations/${stationId}/channels/${await newChannel()}`, w),
-      expect: { anonymous: 401, opMine: 204, opOther: 403, analyst: 403, supervisor: 403, admin: 204 },
+      expect: { anonymous: 401, opMine: 204, opOther: 403, analyst: 403, supervisor: 204, admin: 204 },
     },
     { route: 'GET /api/stations/:id/tokens', run: (w) => call('get', `/api/stations/${stationId}/tokens`, w), expect: { anonymous: 401, opMine: 200, opOther: 403, analyst: 403, supervisor: 403, admin: 200 } },
     {

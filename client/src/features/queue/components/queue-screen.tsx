@@ -49,9 +49,9 @@ export const queueKeysHelp: readonly KeyBinding[] = [
 
 const column = createColumnHelper<QueueRow>();
 
-/** Time of day in UTC with milliseconds, and the date, as the trade writes them. */
+/** UTC time as ISO 8601 with milliseconds (2026-03-14T09:26:53.589Z), as the trade writes it. */
 function utc(iso: string): string {
-  return iso.replace('T', ' ').replace('Z', '');
+  return new Date(iso).toISOString();
 }
 
 /**
@@ -105,7 +105,7 @@ export function QueueScreen() {
           </time>
         ),
       }),
-      column.accessor('createdAt', { header: 'Waiting', cell: (c) => <span title={`arrived ${utc(c.getValue())} UTC`}>{formatAge(c.getValue(), now)}</span> }),
+      column.accessor('createdAt', { header: 'Waiting', cell: (c) => <span title={`arrived ${utc(c.getValue())}`}>{formatAge(c.getValue(), now)}</span> }),
       column.accessor('state', {
         header: 'State · holder',
         cell: (c) => {

@@ -268,7 +268,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           <span className="font-mono">{detail.station}</span> <span className="font-normal text-ink-muted">item {detail.id}</span>
         </h1>
         <span className="font-mono text-sm">
-          <time dateTime={detail.windowStart}>{detail.windowStart.replace('T', ' ')}</time> · {durationS.toFixed(1)} s
+          <time dateTime={detail.windowStart}>{new Date(detail.windowStart).toISOString()}</time> · {durationS.toFixed(1)} s
         </span>
         <StateMarker state={detail.state} />
         <FlagMarker flag={detail.flag} size="md" />
@@ -351,7 +351,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
                 {note.data.note.returnedAt ? (
                   <>
                     {' '}
-                    at <time className="font-mono" dateTime={note.data.note.returnedAt}>{note.data.note.returnedAt.replace('T', ' ')}</time>
+                    at <time className="font-mono" dateTime={note.data.note.returnedAt}>{new Date(note.data.note.returnedAt).toISOString()}</time>
                   </>
                 ) : null}
               </p>
