@@ -2,7 +2,8 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { join, resolve, sep } from 'node:path';
-import { BootstrapError } from './mariadb';
+import type { Env } from '../env';
+import { BootstrapError, ensureMariaDbInstalled, provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from './mariadb';
 
 /** Fails with one line when `dir` cannot be created or written. Returns the absolute path. */
 export function ensureWritableDir(dir: string, variable: string): string {
@@ -58,4 +59,22 @@ export function buildClient(): void {
 /** Seconds since `t0` (performance.now()), one decimal. */
 export function secondsSince(t0: number): string {
   return ((performance.now() - t0) / 1000).toFixed(1);
+}
+
+/**
+ * The app's database: DATABASE_URL when set, else the private MariaDB in `<dataDir>/mariadb`
+ * (installed when missing, started or reused, with the `seisift` database and user provisioned).
+ * A server this call started is stopped again when provisioning fails.
+ */
+export async function openAppDatabase(env: Env, dataDir: string): Promise<{ databaseUrl: string; server?: PrivateMariaDb }> {
+  if (env.DATABASE_URL) return { databaseUrl: env.DATABASE_URL };
+  ensureMariaDbInstalled();
+  const server = await startPrivateMariaDb({ dataDir: join(dataDir, 'mariadb'), port: env.SEISIFT_DB_PORT });
+  try {
+    const databaseUrl = await provisionDatabase(server, { database: 'seisift', user: 'seisift', password: env.SEISIFT_DB_PASSWORD });
+    return { databaseUrl, server };
+  } catch (err) {
+    if (server.startedHere) await server.stop();
+    throw err;
+  }
 }

@@ -4,13 +4,12 @@
  * to it. Ctrl-C stops all of them, and the MariaDB when this command started it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { join } from 'node:path';
 import { createDatabaseClient } from '../db/client';
 import { migrateDatabase } from '../db/migrate';
 import { seedDemo } from '../db/seed-demo';
 import { ConfigError, loadEnv } from '../env';
-import { ensurePortFree, ensureWritableDir } from './common';
-import { BootstrapError, ensureMariaDbInstalled, provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from './mariadb';
+import { ensurePortFree, ensureWritableDir, openAppDatabase } from './common';
+import { BootstrapError, type PrivateMariaDb } from './mariadb';
 
 let mariadb: PrivateMariaDb | undefined;
 const children: ChildProcess[] = [];
@@ -27,12 +26,9 @@ try {
   const env = loadEnv({ NODE_ENV: 'development', ...process.env });
   const dataDir = ensureWritableDir(env.SEISIFT_DATA_DIR, 'SEISIFT_DATA_DIR');
   await ensurePortFree(env.HOST, env.PORT, 'PORT');
-  let databaseUrl = env.DATABASE_URL;
-  if (!databaseUrl) {
-    ensureMariaDbInstalled();
-    mariadb = await startPrivateMariaDb({ dataDir: join(dataDir, 'mariadb'), port: env.SEISIFT_DB_PORT });
-    databaseUrl = await provisionDatabase(mariadb, { database: 'seisift', user: 'seisift', password: env.SEISIFT_DB_PASSWORD });
-  }
+  const opened = await openAppDatabase(env, dataDir);
+  mariadb = opened.server;
+  const databaseUrl = opened.databaseUrl;
   const database = createDatabaseClient(databaseUrl);
   await migrateDatabase(database.db);
   if (env.SEISIFT_SEED_DEMO === '1') await seedDemo(database.db, { demoPassword: env.SEISIFT_DEMO_PASSWORD });

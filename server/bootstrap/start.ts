@@ -3,7 +3,6 @@
  * demo, builds the client, serves everything on one port and prints the URL and the demo sign-ins.
  * Ctrl-C / SIGTERM stops the app and the MariaDB it started.
  */
-import { join } from 'node:path';
 import { createDatabaseClient } from '../db/client';
 import { migrateDatabase } from '../db/migrate';
 import { demoUsers, seedDemo } from '../db/seed-demo';
@@ -19,8 +18,8 @@ import { createSessionStore } from '../auth/sessions';
 import { createLogger } from '../logger';
 import { createAppHub, ListenError, startServer } from '../index';
 import { appVersion } from '../version';
-import { buildClient, ensurePortFree, ensureWritableDir, secondsSince } from './common';
-import { BootstrapError, ensureMariaDbInstalled, provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from './mariadb';
+import { buildClient, ensurePortFree, ensureWritableDir, openAppDatabase, secondsSince } from './common';
+import { BootstrapError, type PrivateMariaDb } from './mariadb';
 
 const t0 = performance.now();
 let mariadb: PrivateMariaDb | undefined;
@@ -72,12 +71,9 @@ try {
   const dataDir = ensureWritableDir(env.SEISIFT_DATA_DIR, 'SEISIFT_DATA_DIR');
   await ensurePortFree(env.HOST, env.PORT, 'PORT');
 
-  let databaseUrl = env.DATABASE_URL;
-  if (!databaseUrl) {
-    ensureMariaDbInstalled();
-    mariadb = await startPrivateMariaDb({ dataDir: join(dataDir, 'mariadb'), port: env.SEISIFT_DB_PORT });
-    databaseUrl = await provisionDatabase(mariadb, { database: 'seisift', user: 'seisift', password: env.SEISIFT_DB_PASSWORD });
-  }
+  const opened = await openAppDatabase(env, dataDir);
+  mariadb = opened.server;
+  const databaseUrl = opened.databaseUrl;
 
   const database = createDatabaseClient(databaseUrl);
   cleanups.push(() => database.close());
