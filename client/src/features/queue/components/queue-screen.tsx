@@ -2,7 +2,7 @@ import { useQueryClient } from '@tanstack/react-query';
 import { getCoreRowModel, useReactTable, flexRender, createColumnHelper } from '@tanstack/react-table';
 import { useVirtualizer } from '@tanstack/react-virtual';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react';
-import { Link, useNavigate } from 'react-router';
+import { useNavigate } from 'react-router';
 import { flags } from '../../../../../shared/schemas/flags';
 import { itemStates, type ItemState } from '../../../../../shared/schemas/item-states';
 import { labelFilterValues, type QueueRow } from '../../../../../shared/schemas/queue';
@@ -27,6 +27,7 @@ import { useQueueFilters } from '../hooks/use-queue-filters';
 import { formatAge, useNow } from './age';
 import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui/key-help';
 import { UtcTimeInput } from '../../../components/ui/utc-time-input';
+import { EventGroupMembers } from '../../../components/event-group-members';
 
 /** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
 const ROW_PX = 44;
@@ -355,37 +356,7 @@ function GroupDialog({ eventId, onClose, search }: { eventId: number | null; onC
       ) : ev.isError ? (
         <p className="text-sm">The group could not be loaded: {ev.error.message}</p>
       ) : (
-        <table className="w-full text-sm">
-          <caption className="sr-only">Members of event group {eventId}</caption>
-          <thead>
-            <tr className="text-left text-ink-muted">
-              <th scope="col" className="pr-3 font-medium">Station</th>
-              <th scope="col" className="pr-3 font-medium">First trigger (UTC)</th>
-              <th scope="col" className="pr-3 font-medium">Flag</th>
-              <th scope="col" className="font-medium">State</th>
-            </tr>
-          </thead>
-          <tbody>
-            {ev.data.members.map((m) => (
-              <tr key={m.itemId} className="border-t border-line">
-                <th scope="row" className="py-1 pr-3 text-left font-mono font-normal whitespace-nowrap">
-                  <Link className="inline-flex h-6 items-center" to={`${paths.queueItem.href}/${m.itemId}${search ? `?${search}` : ''}`} onClick={onClose}>
-                    {m.station.split('.').pop()} · item {m.itemId}
-                  </Link>
-                </th>
-                <td className="pr-3 font-mono whitespace-nowrap tabular-nums">
-                  <time dateTime={m.arrival}>{utc(m.arrival)}</time>
-                </td>
-                <td className="pr-3">
-                  <FlagMarker flag={m.flag} />
-                </td>
-                <td>
-                  <StateMarker state={m.state} />
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+        <EventGroupMembers eventId={eventId ?? 0} members={ev.data.members} search={search} onNavigate={onClose} />
       )}
     </Dialog>
   );

@@ -20,6 +20,7 @@ import { useMe, useQueueList } from '../../../api/queue/get-queue';
 import { postKeepAlive, useItemAction, type ItemActionInput } from '../../../api/queue/item-actions';
 import { liveArrivals } from '../../../api/queue/live-patch';
 import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui/key-help';
+import { EventGroupMembers } from '../../../components/event-group-members';
 import { parseFilters } from '../../../api/queue/queue-filters';
 import { analysisViewSchema, useItem, useTraces, type AnalysisView } from '../api/get-item';
 import { LabelForm, useReviewForm, type ReviewFormValues } from './label-form';
@@ -577,41 +578,7 @@ function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, sear
       ) : error || !ev ? (
         <p className="text-sm">The group could not be loaded{error ? `: ${error}` : ''}.</p>
       ) : (
-        <table className="w-full text-sm">
-          <caption className="sr-only">Members of event group {eventId}</caption>
-          <thead>
-            <tr className="text-left text-ink-muted">
-              <th scope="col" className="pr-2 font-medium">Station</th>
-              <th scope="col" className="pr-2 font-medium">First trigger (UTC)</th>
-              <th scope="col" className="pr-2 font-medium">Flag</th>
-              <th scope="col" className="font-medium">State</th>
-            </tr>
-          </thead>
-          <tbody>
-            {ev.members.map((m) => (
-              <tr key={m.itemId} className="border-t border-line" aria-current={m.itemId === currentId ? 'true' : undefined}>
-                <th scope="row" className="py-1 pr-2 text-left font-mono font-normal">
-                  {m.itemId === currentId ? (
-                    <strong className="inline-flex h-6 items-center">{m.station.split('.').pop()} (this)</strong>
-                  ) : (
-                    <Link className="inline-flex h-6 min-w-12 items-center" to={`${paths.queueItem.href}/${m.itemId}${search}`}>
-                      {m.station.split('.').pop()}
-                    </Link>
-                  )}
-                </th>
-                <td className="pr-2 font-mono tabular-nums">
-                  <time dateTime={m.arrival}>{m.arrival.slice(11, 23)}</time>
-                </td>
-                <td className="pr-2">
-                  <FlagMarker flag={m.flag} />
-                </td>
-                <td>
-                  <StateMarker state={m.state} />
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+        <EventGroupMembers eventId={eventId} members={ev.members} currentId={currentId} search={search} />
       )}
       {mayLabel && ev ? (
         <div className="mt-2 flex flex-wrap items-center gap-2">
