@@ -69,19 +69,26 @@ export function createHub(opts: HubOptions): RealtimeHub {
     return chain;
   };
 
-  const send = (client: Client, message: ServerMessage) => {
+  /** Sends one message; `encoded` is its JSON as UTF-8 when the caller already has it. */
+  const send = (client: Client, message: ServerMessage, encoded?: Buffer) => {
     if (client.ws.readyState !== client.ws.OPEN) return;
     if (client.ws.bufferedAmount > maxBuffered) {
       client.ws.terminate();
       return;
     }
-    client.ws.send(JSON.stringify(message));
+    client.ws.send(encoded ?? JSON.stringify(message), { binary: false });
   };
 
-  const sendChanges = (client: Client, changes: ChangeMessage[]) => {
+  /**
+   * Sends the changes this client has not seen. `batch` carries the whole list encoded once, used
+   * whenever the client needs all of it (the usual case), so a broadcast serialises once, not once
+   * per client.
+   */
+  const sendChanges = (client: Client, changes: ChangeMessage[], batch?: { encoded: Buffer }) => {
     const fresh = changes.filter((c) => c.seq > client.cursor);
     if (fresh.length === 0) return;
-    send(client, { type: 'changes', changes: fresh });
+    const message: ServerMessage = { type: 'changes', changes: fresh };
+    send(client, message, batch && fresh.length === changes.length ? batch.encoded : undefined);
     client.cursor = fresh[fresh.length - 1]?.seq ?? client.cursor;
   };
 
@@ -91,7 +98,8 @@ export function createHub(opts: HubOptions): RealtimeHub {
     for (;;) {
       const changes = await changesSince(opts.db, broadcastCursor, 500);
       if (changes.length === 0) return;
-      for (const client of clients) sendChanges(client, changes);
+      const batch = { encoded: Buffer.from(JSON.stringify({ type: 'changes', changes } satisfies ServerMessage)) };
+      for (const client of clients) sendChanges(client, changes, batch);
       broadcastCursor = changes[changes.length - 1]?.seq ?? broadcastCursor;
       if (changes.length < 500) return;
     }
