@@ -2,6 +2,9 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { join, resolve, sep } from 'node:path';
+import { createDatabaseClient, type DatabaseClient } from '../db/client';
+import { migrateDatabase } from '../db/migrate';
+import { seedDemo } from '../db/seed-demo';
 import type { Env } from '../env';
 import { BootstrapError, ensureMariaDbInstalled, provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from './mariadb';
 
@@ -75,6 +78,37 @@ export async function openAppDatabase(env: Env, dataDir: string): Promise<{ data
     return { databaseUrl, server };
   } catch (err) {
     if (server.startedHere) await server.stop();
+    throw err;
+  }
+}
+
+/** What `prepareApp` leaves ready: an open, migrated (and seeded) database. */
+export interface PreparedApp {
+  databaseUrl: string;
+  database: DatabaseClient;
+  /** The private MariaDB, when one is in use. */
+  server?: PrivateMariaDb;
+  /** The rows the demo seed added (empty when all were present), or null when seeding is off. */
+  seeded: string[] | null;
+}
+
+/**
+ * The steps `npm start` and `npm run dev` share before serving: a writable data folder, a free
+ * HTTP port, the app database (private MariaDB or DATABASE_URL), migrations, and the demo seed
+ * when SEISIFT_SEED_DEMO=1. On failure it closes what it opened and stops a MariaDB it started.
+ */
+export async function prepareApp(env: Env): Promise<PreparedApp> {
+  const dataDir = ensureWritableDir(env.SEISIFT_DATA_DIR, 'SEISIFT_DATA_DIR');
+  await ensurePortFree(env.HOST, env.PORT, 'PORT');
+  const { databaseUrl, server } = await openAppDatabase(env, dataDir);
+  const database = createDatabaseClient(databaseUrl);
+  try {
+    await migrateDatabase(database.db);
+    const seeded = env.SEISIFT_SEED_DEMO === '1' ? (await seedDemo(database.db, { demoPassword: env.SEISIFT_DEMO_PASSWORD })).created : null;
+    return { databaseUrl, database, server, seeded };
+  } catch (err) {
+    await database.close().catch(() => {});
+    if (server?.startedHere) await server.stop();
     throw err;
   }
 }

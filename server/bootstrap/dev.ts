@@ -4,11 +4,8 @@
  * to it. Ctrl-C stops all of them, and the MariaDB when this command started it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { createDatabaseClient } from '../db/client';
-import { migrateDatabase } from '../db/migrate';
-import { seedDemo } from '../db/seed-demo';
 import { ConfigError, loadEnv } from '../env';
-import { ensurePortFree, ensureWritableDir, openAppDatabase } from './common';
+import { prepareApp } from './common';
 import { BootstrapError, type PrivateMariaDb } from './mariadb';
 
 let mariadb: PrivateMariaDb | undefined;
@@ -24,14 +21,9 @@ process.on('SIGTERM', () => void shutdown(0));
 
 try {
   const env = loadEnv({ NODE_ENV: 'development', ...process.env });
-  const dataDir = ensureWritableDir(env.SEISIFT_DATA_DIR, 'SEISIFT_DATA_DIR');
-  await ensurePortFree(env.HOST, env.PORT, 'PORT');
-  const opened = await openAppDatabase(env, dataDir);
-  mariadb = opened.server;
-  const databaseUrl = opened.databaseUrl;
-  const database = createDatabaseClient(databaseUrl);
-  await migrateDatabase(database.db);
-  if (env.SEISIFT_SEED_DEMO === '1') await seedDemo(database.db, { demoPassword: env.SEISIFT_DEMO_PASSWORD });
+  const prepared = await prepareApp(env);
+  mariadb = prepared.server;
+  const { database, databaseUrl } = prepared;
   await database.close();
 
   const childEnv = { ...process.env, NODE_ENV: 'development', DATABASE_URL: databaseUrl, PORT: String(env.PORT) };

@@ -3,9 +3,7 @@
  * demo, builds the client, serves everything on one port and prints the URL and the demo sign-ins.
  * Ctrl-C / SIGTERM stops the app and the MariaDB it started.
  */
-import { createDatabaseClient } from '../db/client';
-import { migrateDatabase } from '../db/migrate';
-import { demoUsers, seedDemo } from '../db/seed-demo';
+import { demoUsers } from '../db/seed-demo';
 import type { AppContext } from '../context';
 import { ingestDemo } from '../demo/ingest-demo';
 import { defaultAnalysisPool } from '../services/ingest-upload';
@@ -18,7 +16,7 @@ import { createSessionStore } from '../auth/sessions';
 import { createLogger } from '../logger';
 import { createAppHub, ListenError, startServer } from '../index';
 import { appVersion } from '../version';
-import { buildClient, ensurePortFree, ensureWritableDir, openAppDatabase, secondsSince } from './common';
+import { buildClient, prepareApp, secondsSince } from './common';
 import { BootstrapError, type PrivateMariaDb } from './mariadb';
 
 const t0 = performance.now();
@@ -68,18 +66,12 @@ async function ingestDemoWindows(ctx: AppContext): Promise<void> {
 
 try {
   const env = loadEnv({ NODE_ENV: 'production', ...process.env });
-  const dataDir = ensureWritableDir(env.SEISIFT_DATA_DIR, 'SEISIFT_DATA_DIR');
-  await ensurePortFree(env.HOST, env.PORT, 'PORT');
-
-  const opened = await openAppDatabase(env, dataDir);
-  mariadb = opened.server;
-  const databaseUrl = opened.databaseUrl;
-
-  const database = createDatabaseClient(databaseUrl);
+  const prepared = await prepareApp(env);
+  mariadb = prepared.server;
+  const { database } = prepared;
   cleanups.push(() => database.close());
-  await migrateDatabase(database.db);
-  if (env.SEISIFT_SEED_DEMO === '1') {
-    const { created } = await seedDemo(database.db, { demoPassword: env.SEISIFT_DEMO_PASSWORD });
+  if (prepared.seeded) {
+    const created = prepared.seeded;
     console.log(created.length ? `seisift: demo seeded (${created.length} new rows: ${created.join(', ')})` : 'seisift: demo data already present');
   }
 
