@@ -116,26 +116,42 @@ export function spectralStats(
   fminHz: number,
   excludeBands: ReadonlyArray<{ fmin: number; fmax: number }> = [],
 ): SpectralStats {
+  const { best, bestWeight, weightSum, weightedFreqSum } = peakAndCentroid(freqs, (k, f) =>
+    f < fminHz || inBands(f, excludeBands) ? undefined : (values[k] as number),
+  );
+  return {
+    dominantFrequency: best >= 0 && bestWeight > 0 ? (freqs[best] as number) : null,
+    spectralCentroid: weightSum > 0 ? weightedFreqSum / weightSum : null,
+  };
+}
+
+/** True when `f` (Hz) lies inside any of the closed bands. */
+function inBands(f: number, bands: ReadonlyArray<{ fmin: number; fmax: number }>): boolean {
+  return bands.some((b) => f >= b.fmin && f <= b.fmax);
+}
+
+/**
+ * One pass over frequency bins: the bin with the largest weight and the sums Σw and Σw·f for a
+ * weighted centroid. `weightAt(k, f)` gives bin k's weight, or undefined to leave the bin out.
+ * Shared by the whole-window statistics (weight = PSD) and the signal spectrum (weight = excess power).
+ */
+function peakAndCentroid(freqs: Float64Array, weightAt: (k: number, f: number) => number | undefined) {
   let best = -1;
-  let bestV = -Infinity;
-  let sp = 0;
-  let sfp = 0;
+  let bestWeight = -Infinity;
+  let weightSum = 0;
+  let weightedFreqSum = 0;
   for (let k = 0; k < freqs.length; k++) {
     const f = freqs[k] as number;
-    if (f < fminHz) continue;
-    if (excludeBands.some((b) => f >= b.fmin && f <= b.fmax)) continue;
-    const v = values[k] as number;
-    if (v > bestV) {
-      bestV = v;
+    const w = weightAt(k, f);
+    if (w === undefined) continue;
+    if (w > bestWeight) {
+      bestWeight = w;
       best = k;
     }
-    sp += v;
-    sfp += f * v;
+    weightSum += w;
+    weightedFreqSum += w * f;
   }
-  return {
-    dominantFrequency: best >= 0 && bestV > 0 ? (freqs[best] as number) : null,
-    spectralCentroid: sp > 0 ? sfp / sp : null,
-  };
+  return { best, bestWeight, weightSum, weightedFreqSum };
 }
 
 /** A spectrogram for display. */
@@ -316,25 +332,16 @@ export function snrSpectrum(
   const noi = welchPsd(x.subarray(noiseFrom, noiseTo), sampleRateHz, nperseg);
   const bins = sig.freqs.length;
   const snr = new Float64Array(bins);
-  let best = -1;
-  let bestV = -Infinity;
-  let w = 0;
-  let wf = 0;
   for (let k = 0; k < bins; k++) {
     const nv = noi.values[k] as number;
-    const r = nv > 0 ? (sig.values[k] as number) / nv : NaN;
-    snr[k] = r;
-    const f = sig.freqs[k] as number;
-    if (!(nv > 0) || f < fminHz || f > fmaxHz || !(r >= minSnr)) continue;
-    if (excludeBands.some((b) => f >= b.fmin && f <= b.fmax)) continue;
-    const e = (sig.values[k] as number) - nv;
-    if (e > bestV) {
-      bestV = e;
-      best = k;
-    }
-    w += e;
-    wf += e * f;
+    snr[k] = nv > 0 ? (sig.values[k] as number) / nv : NaN;
   }
+  const { best, weightSum: w, weightedFreqSum: wf } = peakAndCentroid(sig.freqs, (k, f) => {
+    const nv = noi.values[k] as number;
+    const r = snr[k] as number;
+    if (!(nv > 0) || f < fminHz || f > fmaxHz || !(r >= minSnr) || inBands(f, excludeBands)) return undefined;
+    return (sig.values[k] as number) - nv;
+  });
   return {
     freqs: sig.freqs,
     signalPsd: sig.values,
