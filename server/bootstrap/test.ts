@@ -23,7 +23,7 @@ const reportSchema = z.object({
 const t0 = performance.now();
 try {
   ensureMariaDbInstalled();
-  ensureDebianPackages(['chromium', 'libmseed-dev', 'gcc', 'libc6-dev']);
+  ensureDebianPackages(['chromium', 'libmseed-dev', 'gcc', 'libc6-dev', 'python3-scipy']);
   console.log('seisift: building the client for the browser tests…');
   buildClient();
 

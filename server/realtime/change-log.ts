@@ -21,11 +21,13 @@ export interface ChangeInput {
  * sequence order is then commit order, and a reader of `seq > N` never skips a change that commits later.
  */
 export async function recordChange(tx: DbOrTx, change: ChangeInput): Promise<number> {
-  await tx.update(changeCounter).set({ seq: sql`${changeCounter.seq} + 1` }).where(eq(changeCounter.id, 1));
-  const [row] = await tx.select({ seq: changeCounter.seq }).from(changeCounter).where(eq(changeCounter.id, 1));
-  if (!row) throw new Error('change_counter row 1 is missing (migration 0001 inserts it)');
+  // LAST_INSERT_ID(expr) hands the new value back in the statement's own result header
+  // (MariaDB/MySQL manual, LAST_INSERT_ID), so taking the number costs no second round trip.
+  const [header] = await tx.update(changeCounter).set({ seq: sql`LAST_INSERT_ID(${changeCounter.seq} + 1)` }).where(eq(changeCounter.id, 1));
+  if (header.affectedRows !== 1) throw new Error('change_counter row 1 is missing (migration 0001 inserts it)');
+  const seq = header.insertId;
   await tx.insert(changeLog).values({
-    seq: row.seq,
+    seq,
     resource: change.resource,
     resourceId: change.resourceId,
     kind: change.kind,
@@ -33,7 +35,7 @@ export async function recordChange(tx: DbOrTx, change: ChangeInput): Promise<num
     summary: change.summary ?? null,
     createdAt: new Date(),
   });
-  return row.seq;
+  return seq;
 }
 
 /** The last sequence number handed out (0 when nothing has changed yet). */

@@ -372,9 +372,17 @@ export async function regroupAround(deps: CandidateDeps, itemId: number): Promis
  * @returns the candidate event ids touched
  */
 export async function onItemsCreated(deps: CandidateDeps, itemIds: readonly number[]): Promise<number[]> {
-  const added = await recordArrivals(deps.db, itemIds);
+  return regroupArrivals(deps, await recordArrivals(deps.db, itemIds));
+}
+
+/**
+ * Regroups around items whose arrival rows are already stored (ingest writes them in its own
+ * transaction, from the analysis it has in memory).
+ * @returns the candidate event ids touched
+ */
+export async function regroupArrivals(deps: CandidateDeps, itemIds: readonly number[]): Promise<number[]> {
   const touched = new Set<number>();
-  for (const id of added) {
+  for (const id of itemIds) {
     const ev = await regroupAround(deps, id);
     if (ev !== null) touched.add(ev);
   }

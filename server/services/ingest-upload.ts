@@ -19,10 +19,11 @@ import { WaveformParseError, type DecodedStream } from '../formats/types';
 import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
 import type { Logger } from '../logger';
 import { isDatabaseDown } from '../middleware/error-handler';
-import { loadQueueRow } from '../presenters/queue-item';
+import { presentQueueRow } from '../presenters/queue-item';
+import { itemArrivals } from '../db/schema/supervisor';
 import type { AuthUser, IngestPrincipal } from '../middleware/auth';
 import { recordChange, type DbOrTx } from '../realtime/change-log';
-import { onItemsCreated } from './candidate-events';
+import { firstTriggerMs, regroupArrivals } from './candidate-events';
 import { decodeStoredSamples, encodeSamples } from './samples-codec';
 import { stationBaseline } from './station-baseline';
 import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from './station-registry';
@@ -389,7 +390,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
         createdAt: now,
       }));
     if (!up) throw new Error('upload insert returned no id');
-    const created: Array<{ itemId: number; w: AnalysedWindow; windowStart: Date }> = [];
+    const created: Array<{ itemId: number; w: AnalysedWindow; windowStart: Date; hasArrival: boolean }> = [];
     for (const w of analysed) {
       const startUs = Math.min(...w.streams.map((s) => s.startTimeUs));
       const stopUs = Math.max(...w.streams.map(endUs));
@@ -449,7 +450,11 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
         })
         .$returningId();
       if (!item) throw new Error('queue item insert returned no id');
-      created.push({ itemId: item.id, w, windowStart });
+      // The item's first trigger, for candidate-event grouping, from the analysis in hand (the
+      // same rule `recordArrivals` applies to a stored analysis).
+      const arrivalMs = firstTriggerMs(w.analysis);
+      if (arrivalMs !== null) await tx.insert(itemArrivals).values({ itemId: item.id, stationId: w.station.id, arrivalAt: new Date(arrivalMs) });
+      created.push({ itemId: item.id, w, windowStart, hasArrival: arrivalMs !== null });
     }
     await writeAudit(tx, actor, 'upload.create', { type: 'upload', id: up.id }, {
       filename,
@@ -460,29 +465,50 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
       itemIds: created.map((c) => c.itemId),
     });
     // Last writes of the transaction: the change-log rows (they lock the counter until commit).
-    // The summary is the full queue row (server/presenters/queue-item.ts), so open queues insert
-    // it in place without refetching their lists.
-    const rows = new Map<number, QueueRow>();
-    for (const c of created) {
-      const row = await loadQueueRow(tx, eq(queueItems.id, c.itemId));
-      if (row) rows.set(c.itemId, row);
-    }
+    // The summary is the full queue row (server/presenters/queue-item.ts), built from what was
+    // just written (a new item has no claimer, writer, label or candidate event yet), so open
+    // queues insert it in place without refetching their lists.
     for (const c of created) {
       await recordChange(tx, {
         resource: 'item',
         resourceId: c.itemId,
         kind: 'created',
         version: 1,
-        summary: rows.get(c.itemId) ?? { stationId: c.w.station.id, state: 'new', flag: c.w.analysis.flag, score: c.w.analysis.score, windowStart: c.windowStart.toISOString() },
+        summary: presentQueueRow({
+          id: c.itemId,
+          state: 'new',
+          score: c.w.analysis.score,
+          flag: c.w.analysis.flag,
+          reasons: c.w.analysis.reasons,
+          network: c.w.station.network,
+          stationCode: c.w.station.code,
+          stationId: c.w.station.id,
+          windowStart: c.windowStart,
+          createdAt: now,
+          updatedAt: now,
+          version: 1,
+          claimedById: null,
+          claimedByName: null,
+          claimedAt: null,
+          updatedById: null,
+          updatedByName: null,
+          labelType: null,
+          candidateEventId: null,
+          candidateStationCount: null,
+        }),
       });
     }
     if (deps.beforeCommit) await deps.beforeCommit(tx, { filename, uploadId: up.id, itemIds: created.map((c) => c.itemId) });
     return { uploadId: up.id, created };
   });
   deps.notify();
-  // Issue 7: copy the new items' first triggers and group them into candidate events (after the
-  // commit; a failure here is logged and never undoes the upload).
-  await onItemsCreated({ db: deps.db, notify: deps.notify }, result.created.map((c) => c.itemId)).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: candidate-event grouping failed'));
+  // Group the items with a trigger into candidate events, after the commit. A failure here is
+  // logged and never undoes the upload: the arrival row is stored, and the next arrival nearby
+  // regroups its whole neighbourhood, this item included.
+  const withArrival = result.created.filter((c) => c.hasArrival).map((c) => c.itemId);
+  if (withArrival.length > 0) {
+    await regroupArrivals({ db: deps.db, notify: deps.notify }, withArrival).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: candidate-event grouping failed'));
+  }
   return {
     filename,
     status: 'created',

@@ -1,4 +1,5 @@
-import { and, desc, eq } from 'drizzle-orm';
+import { and, desc, eq, sql } from 'drizzle-orm';
+import { unionAll } from 'drizzle-orm/mysql-core';
 import type { BaselineView } from '../../shared/schemas/station';
 import { queueItems } from '../db/schema/queue-items';
 import { windowFeatures } from '../db/schema/window-features';
@@ -37,19 +38,30 @@ export interface StationBaselineResult {
   view: BaselineView;
 }
 
-async function features(db: DbOrTx, stationId: number, mode: 'dismissed' | 'flagged') {
+/** The columns both noise sets read, with which set a row came from. */
+function noiseSelect(db: DbOrTx, stationId: number, mode: 'dismissed' | 'flagged') {
   const where =
     mode === 'dismissed'
       ? and(eq(windowFeatures.stationId, stationId), eq(queueItems.state, 'dismissed'))
       : and(eq(windowFeatures.stationId, stationId), eq(windowFeatures.flag, 'likely noise'));
-  const rows = await db
-    .select({ r: windowFeatures.leadLog10Ratio, p: windowFeatures.leadStaLtaPeak, state: queueItems.state })
+  return db
+    .select({ set: sql<string>`${mode}`.as('noise_set'), r: windowFeatures.leadLog10Ratio, p: windowFeatures.leadStaLtaPeak, state: queueItems.state })
     .from(windowFeatures)
     .innerJoin(queueItems, eq(queueItems.windowId, windowFeatures.windowId))
     .where(where)
     .orderBy(desc(windowFeatures.windowStart))
     .limit(BASELINE_WINDOW_LIMIT);
-  return rows.filter((row) => mode === 'dismissed' || !NOT_NOISE_STATES.includes(row.state)).map((row) => ({ log10Ratio: row.r, staLtaPeak: row.p }));
+}
+
+/**
+ * Both candidate noise sets (case 1 and case 2 above, each its newest BASELINE_WINDOW_LIMIT rows)
+ * in one round trip: `(dismissed … LIMIT n) UNION ALL (flagged … LIMIT n)`.
+ */
+async function noiseSets(db: DbOrTx, stationId: number) {
+  const rows = await unionAll(noiseSelect(db, stationId, 'dismissed'), noiseSelect(db, stationId, 'flagged'));
+  const pick = (set: 'dismissed' | 'flagged') =>
+    rows.filter((row) => row.set === set && (set === 'dismissed' || !NOT_NOISE_STATES.includes(row.state))).map((row) => ({ log10Ratio: row.r, staLtaPeak: row.p }));
+  return { dismissed: pick('dismissed'), flagged: pick('flagged') };
 }
 
 /**
@@ -57,15 +69,12 @@ async function features(db: DbOrTx, stationId: number, mode: 'dismissed' | 'flag
  * @param minWindows the profile's `thresholds.minBaselineWindows`
  */
 export async function stationBaseline(db: DbOrTx, stationId: number, minWindows: number): Promise<StationBaselineResult> {
-  const dismissed = await features(db, stationId, 'dismissed');
+  const { dismissed, flagged } = await noiseSets(db, stationId);
   let source: BaselineView['source'] = 'dismissed';
   let rows = dismissed;
-  if (dismissed.length < minWindows) {
-    const flagged = await features(db, stationId, 'flagged');
-    if (flagged.length > dismissed.length) {
-      rows = flagged;
-      source = 'flagged';
-    }
+  if (dismissed.length < minWindows && flagged.length > dismissed.length) {
+    rows = flagged;
+    source = 'flagged';
   }
   const baseline = rows.length > 0 ? computeBaseline(rows) : null;
   if (!baseline) return { baseline: null, view: { count: 0, source: 'none', log10Ratio: null, staLtaPeak: null, minWindows, inUse: false } };

@@ -323,20 +323,29 @@ export async function revokeToken(db: Database, stationId: number, tokenId: numb
   });
 }
 
+/** How stale an ingest token's recorded last use may get before a request updates it, ms. */
+export const TOKEN_LAST_USED_RESOLUTION_MS = 60_000;
+
 /**
  * The BearerResolver for `authenticate` (server/middleware/auth.ts): hashes the presented token
- * with SHA-256, finds an unrevoked ingest token with that hash and records its last use. Unknown
+ * with SHA-256, finds an unrevoked ingest token with that hash and records its last use (to the
+ * minute: `TOKEN_LAST_USED_RESOLUTION_MS`). Unknown
  * or revoked tokens resolve to null (the middleware answers 401).
  */
 export function ingestTokenResolver(db: Database): (token: string) => Promise<IngestPrincipal | null> {
   return async (token) => {
     if (token.length === 0 || token.length > 200) return null;
     const [row] = await db
-      .select({ id: ingestTokens.id, stationId: ingestTokens.stationId, label: ingestTokens.label })
+      .select({ id: ingestTokens.id, stationId: ingestTokens.stationId, label: ingestTokens.label, lastUsedAt: ingestTokens.lastUsedAt })
       .from(ingestTokens)
       .where(and(eq(ingestTokens.tokenHash, hashToken(token)), isNull(ingestTokens.revokedAt)));
     if (!row) return null;
-    await db.update(ingestTokens).set({ lastUsedAt: new Date() }).where(eq(ingestTokens.id, row.id));
+    // Last use to the minute: a station sending a window every few seconds does not pay for a
+    // committed write on every request.
+    const now = new Date();
+    if (row.lastUsedAt === null || now.getTime() - row.lastUsedAt.getTime() >= TOKEN_LAST_USED_RESOLUTION_MS) {
+      await db.update(ingestTokens).set({ lastUsedAt: now }).where(eq(ingestTokens.id, row.id));
+    }
     return { tokenId: row.id, stationId: row.stationId, label: row.label };
   };
 }
@@ -367,16 +376,18 @@ export async function stationsByKeys(db: DbOrTx, keys: readonly string[]): Promi
     const [net = '', sta = ''] = k.split('.');
     return sql`(${stations.network} = ${net} AND ${stations.code} = ${sta})`;
   });
-  const rows = await db.select().from(stations).where(sql.join(conds, sql` OR `));
-  if (rows.length === 0) return out;
-  const chRows = await db.select().from(channels).where(inArray(channels.stationId, rows.map((r) => r.id)));
-  for (const r of rows) {
-    const chans = new Map<string, RegisteredChannel>();
-    for (const c of chRows.filter((c) => c.stationId === r.id)) {
-      const streamId = `${r.network}.${r.code}.${c.location}.${c.code}`;
-      chans.set(streamId, { streamId, sampleRateHz: c.sampleRateHz, sensitivity: c.sensitivity, sensitivityInputUnits: c.sensitivityInputUnits, response: c.response });
+  // One round trip: each station with its channels (a station without channels comes once, with nulls).
+  const rows = await db.select({ s: stations, c: channels }).from(stations).leftJoin(channels, eq(channels.stationId, stations.id)).where(sql.join(conds, sql` OR `));
+  for (const { s: r, c } of rows) {
+    const key = stationKey(r.network, r.code);
+    let station = out.get(key);
+    if (!station) {
+      station = { id: r.id, network: r.network, code: r.code, profile: storedProfile(r), channels: new Map<string, RegisteredChannel>() };
+      out.set(key, station);
     }
-    out.set(stationKey(r.network, r.code), { id: r.id, network: r.network, code: r.code, profile: storedProfile(r), channels: chans });
+    if (!c) continue;
+    const streamId = `${r.network}.${r.code}.${c.location}.${c.code}`;
+    station.channels.set(streamId, { streamId, sampleRateHz: c.sampleRateHz, sensitivity: c.sensitivity, sensitivityInputUnits: c.sensitivityInputUnits, response: c.response });
   }
   return out;
 }
