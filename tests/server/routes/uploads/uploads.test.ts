@@ -12,12 +12,13 @@ import { auditLog } from '../../../../server/db/schema/audit-log';
 import { changeLog } from '../../../../server/db/schema/change-log';
 import { queueItems } from '../../../../server/db/schema/queue-items';
 import { ingestTokens } from '../../../../server/db/schema/stations';
+import { itemArrivals } from '../../../../server/db/schema/supervisor';
 import { uploads, windowChannels, windows } from '../../../../server/db/schema/uploads';
 import { windowFeatures } from '../../../../server/db/schema/window-features';
 import { encodeMiniSeed3 } from '../../../../server/formats/mseed3-writer';
 import { createAnalysisPool, type AnalysisPool } from '../../../../server/jobs/analysis-pool';
 import { bytesToSamples } from '../../../../server/services/ingest-upload';
-import { createStation, upsertChannel, type Actor } from '../../../../server/services/station-registry';
+import { createStation, TOKEN_LAST_USED_RESOLUTION_MS, upsertChannel, type Actor } from '../../../../server/services/station-registry';
 import { createPerson, type TestPerson } from '../../../setup/queue-fixtures';
 import { createTestContext, type TestContext } from '../../../setup/test-app';
 
@@ -30,6 +31,18 @@ const system: Actor = { userId: null, label: 'test setup', ipAddress: null };
 const origin = 'http://127.0.0.1';
 
 /** Deterministic test input (not a check value: the check is that what we wrote is what is stored). */
+/** Quiet noise (32-bit LCG, Numerical Recipes constants) with a strong 8 Hz burst from 40 s to 44 s at 100 sps: one STA/LTA trigger. */
+function burst(n: number, seed: number): Int32Array {
+  let s = seed >>> 0;
+  const out = new Int32Array(n);
+  for (let i = 0; i < n; i++) {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    const inBurst = i >= 4000 && i < 4400;
+    out[i] = Math.round(50 * (s / 2 ** 32 - 0.5) + (inBurst ? 5000 * Math.sin((2 * Math.PI * 8 * i) / 100) : 0));
+  }
+  return out;
+}
+
 function wave(n: number, seed: number): Int32Array {
   const out = new Int32Array(n);
   for (let i = 0; i < n; i++) out[i] = Math.round(800 * Math.sin((2 * Math.PI * 1.3 * i) / 100 + seed) + 300 * Math.sin((2 * Math.PI * 6.1 * i) / 100));
@@ -62,6 +75,7 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
       features: await n(windowFeatures),
       audit: await n(auditLog),
       changes: await n(changeLog),
+      arrivals: await n(itemArrivals),
     };
   };
 
@@ -247,6 +261,15 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     expect(up?.uploadedByUserId).toBeNull();
     const [used] = await db.select().from(ingestTokens).where(eq(ingestTokens.id, tokenId));
     expect(used?.lastUsedAt).toBeInstanceOf(Date);
+    // Last use is kept to the minute: a second upload at once leaves it, one after a stale mark moves it.
+    expect((await request(app).post('/api/uploads').set('Authorization', `Bearer ${secret}`).attach('files', file(13), 'again.mseed')).status).toBe(201);
+    const [again] = await db.select().from(ingestTokens).where(eq(ingestTokens.id, tokenId));
+    expect(again?.lastUsedAt?.getTime()).toBe(used?.lastUsedAt?.getTime());
+    const stale = new Date(Date.now() - TOKEN_LAST_USED_RESOLUTION_MS - 1000);
+    await db.update(ingestTokens).set({ lastUsedAt: stale }).where(eq(ingestTokens.id, tokenId));
+    expect((await request(app).post('/api/uploads').set('Authorization', `Bearer ${secret}`).attach('files', file(14), 'later.mseed')).status).toBe(201);
+    const [later] = await db.select().from(ingestTokens).where(eq(ingestTokens.id, tokenId));
+    expect(later?.lastUsedAt?.getTime()).toBeGreaterThan(stale.getTime() + TOKEN_LAST_USED_RESOLUTION_MS);
 
     const other = await request(app).post('/api/uploads').set('Authorization', `Bearer ${secret}`).attach('files', file(11, 'KV02'), 'kv02.mseed');
     expect(other.status).toBe(403);
@@ -294,7 +317,7 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     });
     const before = await rows();
     const bytes = encodeMiniSeed3(
-      { network: 'XX', station: 'KV01', location: '00', channel: 'HHZ', sampleRateHz: 100, startTimeUs: Date.UTC(2026, 2, 14, 13, 0, 0) * 1000, samples: wave(5000, 7) },
+      { network: 'XX', station: 'KV01', location: '00', channel: 'HHZ', sampleRateHz: 100, startTimeUs: Date.UTC(2026, 2, 14, 13, 0, 0) * 1000, samples: burst(6000, 7) },
       { encoding: 'steim2' },
     );
     const res = await post(operator, failing).attach('files', Buffer.from(bytes), 'doomed.mseed');
@@ -306,5 +329,12 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     // And the same file goes through afterwards (no half-written upload blocks it as a duplicate).
     const again = await post(operator).attach('files', Buffer.from(bytes), 'doomed.mseed');
     expect(again.status).toBe(201);
+    // The window triggers, so the same transaction also wrote its arrival for candidate events
+    // (the rolled-back attempt above left none).
+    const itemId = z.number().parse(again.body.files[0].itemIds[0]);
+    const [arrival] = await ctx.database.db.select().from(itemArrivals).where(eq(itemArrivals.itemId, itemId));
+    expect(arrival?.arrivalAt.getTime()).toBeGreaterThan(Date.UTC(2026, 2, 14, 13, 0, 39));
+    expect(arrival?.arrivalAt.getTime()).toBeLessThan(Date.UTC(2026, 2, 14, 13, 0, 45));
+    expect((await rows()).arrivals).toBe(before.arrivals + 1);
   });
 });
