@@ -380,6 +380,10 @@ async function main(): Promise<number> {
     log(machineLine());
     log(`uploads answered 201 in the measured ${SECONDS} s: ${measured.length}  (not 201 overall: ${failedUploads})`);
     log(`windows per second:            ${f(windowsPerS)}   target ≥ ${TARGETS.windowsPerS}  ${windowsPerS >= TARGETS.windowsPerS ? 'ok' : 'MISSED'}`);
+    // Throughput in each 10 s of the measured span: a flat series says per-window cost does not
+    // grow with the tables (a query that scans a station's history would show as a falling one).
+    const slices = Array.from({ length: Math.ceil(SECONDS / 10) }, (_, k) => measured.filter((s) => s.answeredAt >= warmEnd + k * 10_000 && s.answeredAt < warmEnd + (k + 1) * 10_000).length / 10);
+    log(`windows per second by 10 s:    ${slices.map((x) => f(x)).join('  ')}`);
     log(`upload → 201 (ms):             p50 ${f(percentile(toAnswer, 50))}  p95 ${f(percentile(toAnswer, 95))}  p99 ${f(percentile(toAnswer, 99))}`);
     const wsP95 = percentile(toAll, 95);
     log(`upload → all ${WS_CLIENTS} clients (ms):  p50 ${f(percentile(toAll, 50))}  p95 ${f(wsP95)}  p99 ${f(percentile(toAll, 99))}   target p95 ≤ ${TARGETS.wsP95Ms}  ${wsP95 <= TARGETS.wsP95Ms ? 'ok' : 'MISSED'}`);

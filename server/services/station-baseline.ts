@@ -38,18 +38,22 @@ export interface StationBaselineResult {
   view: BaselineView;
 }
 
-/** The columns both noise sets read, with which set a row came from. */
-function noiseSelect(db: DbOrTx, stationId: number, mode: 'dismissed' | 'flagged') {
-  const where =
+/** The columns both noise sets read, with which set a row came from (exported for the EXPLAIN check). */
+export function noiseSelect(db: DbOrTx, stationId: number, mode: 'dismissed' | 'flagged') {
+  // Each set is read newest first along an index that holds its filter, so the cost is the limit,
+  // not the station's history: dismissed items by queue_items (station_id, state, window_start, …)
+  // (migration 0008), engine-flagged noise by window_features (station_id, flag, window_start)
+  // (migration 0009). Both tables carry the same window start.
+  const [where, newest] =
     mode === 'dismissed'
-      ? and(eq(windowFeatures.stationId, stationId), eq(queueItems.state, 'dismissed'))
-      : and(eq(windowFeatures.stationId, stationId), eq(windowFeatures.flag, 'likely noise'));
+      ? [and(eq(queueItems.stationId, stationId), eq(queueItems.state, 'dismissed')), desc(queueItems.windowStart)]
+      : [and(eq(windowFeatures.stationId, stationId), eq(windowFeatures.flag, 'likely noise')), desc(windowFeatures.windowStart)];
   return db
     .select({ set: sql<string>`${mode}`.as('noise_set'), r: windowFeatures.leadLog10Ratio, p: windowFeatures.leadStaLtaPeak, state: queueItems.state })
     .from(windowFeatures)
     .innerJoin(queueItems, eq(queueItems.windowId, windowFeatures.windowId))
     .where(where)
-    .orderBy(desc(windowFeatures.windowStart))
+    .orderBy(newest)
     .limit(BASELINE_WINDOW_LIMIT);
 }
 

@@ -35,5 +35,9 @@ export const windowFeatures = mysqlTable(
     flag: varchar('flag', { length: 20 }).notNull(),
     createdAt: timeColumn('created_at').notNull(),
   },
-  (t) => [index('window_features_station_start_idx').on(t.stationId, t.windowStart)],
+  (t) => [
+    index('window_features_station_start_idx').on(t.stationId, t.windowStart),
+    // The station baseline's engine-flagged noise set, newest first (server/services/station-baseline.ts).
+    index('window_features_station_flag_start_idx').on(t.stationId, t.flag, t.windowStart),
+  ],
 );

@@ -1,8 +1,9 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { z } from 'zod';
 import { queueItems } from '../../../server/db/schema/queue-items';
 import { windowFeatures } from '../../../server/db/schema/window-features';
-import { stationBaseline } from '../../../server/services/station-baseline';
+import { noiseSelect, stationBaseline } from '../../../server/services/station-baseline';
 import { createItem, ensureStation } from '../../setup/queue-fixtures';
 import { createTestContext, type TestContext } from '../../setup/test-app';
 import type { ItemState } from '../../../shared/schemas/item-states';
@@ -65,5 +66,25 @@ describe('station noise baseline (real MariaDB)', () => {
     expect(r.baseline?.staLtaPeak.median).toBeCloseTo(2, 12);
     expect(r.baseline?.staLtaPeak.mad).toBeCloseTo(0.5, 12);
     expect(r.view.inUse).toBe(true);
+  });
+
+  it("reads each noise set along an index, newest first, however long the station's history", async () => {
+    // A station with a long history and no dismissal: 400 windows the engine did not call noise.
+    const db = ctx.database.db;
+    const kv06 = await ensureStation(db, 'KV06');
+    for (let i = 0; i < 400; i++) await window('KV06', 100 + i, 'new', i % 10 === 0 ? 'likely noise' : 'needs eyes', 0.1, 1);
+    const plans: Record<string, Array<{ table: string; key: string | null; Extra: string | null }>> = {};
+    for (const mode of ['dismissed', 'flagged'] as const) {
+      const { sql: text, params } = noiseSelect(db, kv06, mode).toSQL();
+      const [rows] = await ctx.database.pool.query(`EXPLAIN ${text}`, params);
+      plans[mode] = z.array(z.object({ table: z.string(), key: z.string().nullable(), Extra: z.string().nullable() }).loose()).parse(rows);
+    }
+    // MariaDB EXPLAIN: the first row is the table the join starts from; no filesort means the
+    // index order is used and the LIMIT stops the scan (MariaDB manual, EXPLAIN).
+    expect(plans.dismissed?.[0]).toMatchObject({ table: 'queue_items', key: 'queue_items_station_window_cover_idx' });
+    expect(plans.flagged?.[0]).toMatchObject({ table: 'window_features', key: 'window_features_station_flag_start_idx' });
+    for (const plan of Object.values(plans)) expect(plan[0]?.Extra ?? '').not.toContain('filesort');
+    const r = await stationBaseline(db, kv06, 20);
+    expect(r.view).toMatchObject({ source: 'flagged', count: 40 });
   });
 });

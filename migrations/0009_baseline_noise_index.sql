@@ -1,0 +1,1 @@
+CREATE INDEX `window_features_station_flag_start_idx` ON `window_features` (`station_id`,`flag`,`window_start`);
