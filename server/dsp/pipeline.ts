@@ -125,6 +125,14 @@ export class AnalysisError extends Error {
 const MIN_SAMPLES = 16;
 
 /**
+ * Butterworth designs by order, edges, type and rate, kept across windows (a network has a few
+ * profiles and rates, so a few entries; emptied when it reaches DESIGN_CACHE_SIZE). The sections
+ * are only read by the filters, never changed.
+ */
+const designCache = new Map<string, Sos>();
+const DESIGN_CACHE_SIZE = 64;
+
+/**
  * Analyse one window: per channel QC → pre-process (demean, linear detrend, Tukey taper) → optional
  * sensitivity → band-reject → low/high Butterworth band-passes (causal) → band energies and ratio →
  * STA/LTA on the high band → SNR → Welch PSD, dominant frequency, centroid → with a trigger, the
@@ -140,13 +148,13 @@ export function analyzeWindow(streams: readonly DecodedStream[], profile: Proces
   if (stations.length > 1) {
     throw new AnalysisError(`a window holds one station's channels; got ${stations.length} stations (${stations.join(', ')})`);
   }
-  const designs = new Map<string, Sos>();
   const design = (order: number, edges: [number, number], type: 'bandpass' | 'bandstop', fs: number): Sos => {
     const key = `${order}|${edges[0]}|${edges[1]}|${type}|${fs}`;
-    let sos = designs.get(key);
+    let sos = designCache.get(key);
     if (!sos) {
       sos = butterworthSos(order, edges, type, fs);
-      designs.set(key, sos);
+      if (designCache.size >= DESIGN_CACHE_SIZE) designCache.clear();
+      designCache.set(key, sos);
     }
     return sos;
   };

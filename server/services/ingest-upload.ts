@@ -251,10 +251,25 @@ export function noiseLevel(ch: ChannelResult): { db: number; units: string } | n
   return { db: med, units: ch.noiseModels ? 'dB (m/s²)²/Hz' : 'dB counts²/Hz' };
 }
 
+/** One channel of a window as it is stored (samples already encoded: the decoded ones go to the worker). */
+interface StoredChannel {
+  id: string;
+  sampleRateHz: number;
+  startTimeUs: number;
+  endUs: number;
+  sampleCount: number;
+  samples: Buffer;
+}
+
 interface AnalysedWindow {
   station: RegisteredStation;
-  streams: DecodedStream[];
+  streams: StoredChannel[];
   analysis: AnalysisResult;
+}
+
+/** `samples` when it spans its whole buffer (so the buffer can be transferred alone), else a copy of it. */
+function ownBuffer(samples: Float64Array): Float64Array {
+  return samples.byteOffset === 0 && samples.byteLength === samples.buffer.byteLength ? samples : Float64Array.from(samples);
 }
 
 const endUs = (s: DecodedStream) => s.startTimeUs + Math.round((s.samples.length / s.sampleRateHz) * 1e6);
@@ -358,15 +373,19 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   for (const [key, list] of groups) {
     const station = registry.get(key) as RegisteredStation;
     const { baseline } = await stationBaseline(deps.db, station.id, station.profile.thresholds.minBaselineWindows);
-    const copies = list.map((s) => ({ ...s, samples: Float64Array.from(s.samples), discontinuities: [...s.discontinuities] }));
+    // Encode what is stored first; the decoded samples then go to the worker without a copy (their
+    // buffers are transferred, and detached here).
+    const stored: StoredChannel[] = list.map((s) => ({ id: s.id, sampleRateHz: s.sampleRateHz, startTimeUs: s.startTimeUs, endUs: endUs(s), sampleCount: s.samples.length, samples: encodeSamples(s.samples) }));
+    const options = { ...analysisOptionsFor(station, list), baseline };
+    const toWorker = list.map((s) => ({ ...s, samples: ownBuffer(s.samples), discontinuities: [...s.discontinuities] }));
     let analysis: AnalysisResult;
     try {
-      analysis = await deps.pool.run(copies, station.profile, { ...analysisOptionsFor(station, list), baseline });
+      analysis = await deps.pool.run(toWorker, station.profile, options);
     } catch (err) {
       const msg = err instanceof Error ? err.message : String(err);
       throw new FileRefused(422, 'unprocessable', `${filename}: station ${key}: analysis refused: ${msg}`);
     }
-    analysed.push({ station, streams: list, analysis });
+    analysed.push({ station, streams: stored, analysis });
   }
 
   const actor = actorOf(caller);
@@ -393,7 +412,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
     const created: Array<{ itemId: number; w: AnalysedWindow; windowStart: Date; hasArrival: boolean }> = [];
     for (const w of analysed) {
       const startUs = Math.min(...w.streams.map((s) => s.startTimeUs));
-      const stopUs = Math.max(...w.streams.map(endUs));
+      const stopUs = Math.max(...w.streams.map((s) => s.endUs));
       const windowStart = new Date(Math.floor(startUs / 1000));
       const [win] = await insertBinary(tx, tx
         .insert(windows)
@@ -414,8 +433,8 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
           streamId: s.id,
           sampleRateHz: s.sampleRateHz,
           startTimeUs: s.startTimeUs,
-          sampleCount: s.samples.length,
-          samples: encodeSamples(s.samples),
+          sampleCount: s.sampleCount,
+          samples: s.samples,
           qc: w.analysis.channels.find((c) => c.id === s.id)?.qc ?? null,
         })),
       ));
