@@ -68,6 +68,15 @@ export function encodeSamples(samples: Float64Array, opts: EncodeSamplesOptions 
   if (level !== false && (!Number.isInteger(level) || level < 1 || level > 9)) throw new RangeError(`deflate level must be a whole number from 1 to 9, got ${level}`);
   const asInt = fitsInt32(samples);
   const width = asInt ? 4 : 8;
+  if (level === false && LITTLE_ENDIAN) {
+    // The common case (no DEFLATE): the samples are converted straight into the blob, after its
+    // header, with no intermediate array. A fresh ArrayBuffer (not Buffer's shared pool), so the
+    // typed view at byte 8 is aligned.
+    const out = Buffer.from(new ArrayBuffer(SAMPLES_HEADER_BYTES + samples.length * width));
+    (asInt ? new Int32Array(out.buffer, SAMPLES_HEADER_BYTES, samples.length) : new Float64Array(out.buffer, SAMPLES_HEADER_BYTES, samples.length)).set(samples);
+    writeHeader(out, asInt, false);
+    return out;
+  }
   let raw: Buffer;
   if (LITTLE_ENDIAN) {
     // The typed array's own bytes are already little-endian: one bulk conversion, no per-sample call.
@@ -80,16 +89,21 @@ export function encodeSamples(samples: Float64Array, opts: EncodeSamplesOptions 
   }
   const payload = level === false ? raw : deflateRawSync(raw, { level, strategy: zlibConstants.Z_DEFAULT_STRATEGY });
   const out = Buffer.allocUnsafe(SAMPLES_HEADER_BYTES + payload.length);
+  writeHeader(out, asInt, level !== false);
+  payload.copy(out, SAMPLES_HEADER_BYTES);
+  return out;
+}
+
+/** The 8-byte tagged header at the start of `out` (see the layout above). */
+function writeHeader(out: Buffer, asInt: boolean, deflated: boolean): void {
   out[0] = MAGIC_0;
   out[1] = MAGIC_1;
   out[2] = asInt ? SampleEncoding.int32 : SampleEncoding.float64;
-  out[3] = level === false ? SampleCompression.none : SampleCompression.deflate;
+  out[3] = deflated ? SampleCompression.deflate : SampleCompression.none;
   out[4] = 0;
   out[5] = 0;
   out[6] = TAIL_6;
   out[7] = TAIL_7;
-  payload.copy(out, SAMPLES_HEADER_BYTES);
-  return out;
 }
 
 /** Whether `blob` starts with the tagged header (else it is a legacy float64 blob). */
