@@ -14,9 +14,13 @@
  *   with their station's token, back to back, for BENCH_INGEST_SECONDS (default 60) after a 5 s
  *   warm-up that is not counted.
  *
- * Prints: windows per second over the measured span; latency p50/p95/p99 from sending an upload
- * to its 201, and from sending it to its change reaching every one of the 20 clients; changes
- * that never reached a client; the server's peak RSS. Targets (issue 9, 2-core machine):
+ *   Each uploader is a keep-alive node:http client sending a prebuilt multipart body.
+ *
+ * Prints: windows per second over the measured span and per 10 s of it; latency p50/p95/p99 from
+ * sending an upload to its 201, and from sending it to its change reaching every one of the 20
+ * clients; changes that never reached a client; the CPU each process (server, MariaDB, this
+ * benchmark) used per window; a machine-speed reference (`analyzeWindow` median in this process,
+ * before and after the load); the server's peak RSS. Targets (issue 9, 2-core machine):
  * ≥ 100 windows/s, p95 upload→websocket ≤ 250 ms, RSS < 500 MB. Exits 1 when one is missed.
  * Before the load, the same ingest service runs 30 windows one at a time in this process and
  * prints where the time goes (decode, analysis, database). BENCH_INNODB_FLUSH=2 (diagnosis only)
