@@ -578,7 +578,7 @@ function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, sear
       ) : error || !ev ? (
         <p className="text-sm">The group could not be loaded{error ? `: ${error}` : ''}.</p>
       ) : (
-        <EventGroupMembers eventId={eventId} members={ev.members} currentId={currentId} search={search} />
+        <EventGroupMembers eventId={eventId} members={ev.members} currentId={currentId} search={search} layout="narrow" />
       )}
       {mayLabel && ev ? (
         <div className="mt-2 flex flex-wrap items-center gap-2">

@@ -1,5 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
+import { Link } from 'react-router';
 import { quakemlEventTypes } from '../../../../../shared/schemas/label';
 import { evaluationStatuses, reviewStatuses, type ReviewRow } from '../../../../../shared/schemas/supervisor';
 import { Badge } from '../../../components/ui/badge';
@@ -12,6 +13,7 @@ import { Select } from '../../../components/ui/select';
 import { Loading } from '../../../components/ui/skeleton';
 import { Table, TableScroll, TBody, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
+import { paths } from '../../../config/paths';
 import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuery, setStatus, type ReviewFilters } from '../api/supervisor-api';
 import { usePeriod } from '../hooks/use-period';
 import { useSupervisorLive } from '../hooks/use-supervisor-live';
@@ -140,7 +142,7 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
                 <FlagMarker flag={r.flag} />
               </td>
               <td className="text-sm">{r.analyst?.displayName ?? '—'}</td>
-              <td className="text-sm">{r.candidateEventId ? `candidate ${r.candidateEventId}` : '—'}</td>
+              <td className="text-sm">{r.candidateEventId ? `group #${r.candidateEventId}` : '—'}</td>
               <td>
                 <Badge tone={r.evaluationStatus === 'rejected' ? 'danger' : r.evaluationStatus === 'preliminary' ? 'neutral' : 'ok'}>{r.evaluationStatus}</Badge>
                 {r.reviewedBy ? <span className="block text-xs text-ink-muted">by {r.reviewedBy.displayName}</span> : null}
@@ -195,19 +197,19 @@ function CandidateEvents({ from, to }: { from: string; to: string }) {
     onSuccess: () => void qc.invalidateQueries({ queryKey: ['supervisor'] }),
   });
   return (
-    <Section title="Candidate events (several stations, one source?)">
+    <Section title="Event groups (candidate events: several stations, one source?)">
       <p className="mb-2 text-sm text-ink-muted">
         Items from at least 3 stations whose first triggers lie within the inter-station distance at 3 km/s plus 2 s. Labelling a group labels each member that is still waiting; each stays correctable on its own.
       </p>
       <ErrorLine error={q.error ?? label.error} />
       {(q.data?.events.length ?? 0) === 0 ? (
-        <p className="text-sm">No candidate events in this period.</p>
+        <p className="text-sm">No event groups in this period.</p>
       ) : (
         <ul className="flex flex-col gap-2">
           {q.data?.events.map((ev) => (
-            <li key={ev.id} className="rounded-sm border border-line bg-surface p-2" aria-label={`Candidate event ${ev.id}`}>
+            <li key={ev.id} className="rounded-sm border border-line bg-surface p-2" aria-label={`Event group ${ev.id}`}>
               <div className="flex flex-wrap items-baseline gap-3">
-                <strong>Candidate {ev.id}</strong>
+                <strong>Event group #{ev.id}</strong>
                 <span className="font-mono text-sm">first trigger {ev.firstArrival}</span>
                 <span className="text-sm">{ev.stationCount} stations</span>
                 <label className="ml-auto text-sm">
@@ -225,9 +227,9 @@ function CandidateEvents({ from, to }: { from: string; to: string }) {
               <ul className="mt-1 text-sm">
                 {ev.members.map((m) => (
                   <li key={m.itemId} className="flex gap-3">
-                    <a className="underline" href={`/queue/items/${m.itemId}`}>
+                    <Link className="underline" to={`${paths.queueItem.href}/${m.itemId}`}>
                       {m.station}
-                    </a>
+                    </Link>
                     <span className="font-mono">{m.arrival}</span>
                     <span>{m.state}</span>
                     <span>{m.labelType ?? 'no label'}</span>
