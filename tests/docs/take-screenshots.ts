@@ -127,8 +127,8 @@ async function takeScreenshots(): Promise<void> {
       await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Account' }).waitFor({ timeout: 15_000 });
     };
     const setPeriod = async (): Promise<void> => {
-      await page.getByLabel('From (UTC day)').fill(demoDay);
-      await page.getByLabel('To (UTC day, exclusive)').fill(nextDay);
+      await page.getByLabel('From (UTC)').fill(`${demoDay}T00:00Z`);
+      await page.getByLabel('To (UTC, exclusive)').fill(`${nextDay}T00:00Z`);
       // No focus ring in the picture.
       await page.evaluate(() => (document.activeElement instanceof HTMLElement ? document.activeElement.blur() : undefined));
     };

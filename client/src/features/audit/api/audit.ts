@@ -4,6 +4,7 @@ import { auditRowSchema } from '../../../../../shared/auth/schemas';
 import { apiRequest } from '../../../lib/api-client';
 
 /** Filters of the audit page; empty strings mean "any". */
+/** The audit page's filters; `from` and `to` are ISO 8601 UTC times (both ends included) or ''. */
 export type AuditFilters = { action: string; actor: string; targetType: string; from: string; to: string };
 
 /** Rows per audit page. */
@@ -24,8 +25,8 @@ export function useAuditPage(filters: AuditFilters, offset: number) {
           action: filters.action || undefined,
           actor: filters.actor || undefined,
           targetType: filters.targetType || undefined,
-          from: filters.from ? new Date(`${filters.from}T00:00:00Z`).toISOString() : undefined,
-          to: filters.to ? new Date(`${filters.to}T23:59:59.999Z`).toISOString() : undefined,
+          from: filters.from || undefined,
+          to: filters.to || undefined,
         },
       }),
   });

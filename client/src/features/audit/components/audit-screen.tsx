@@ -6,6 +6,7 @@ import { Input } from '../../../components/ui/input';
 import { Select } from '../../../components/ui/select';
 import { Loading } from '../../../components/ui/skeleton';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
+import { UtcTimeInput } from '../../../components/ui/utc-time-input';
 import { auditPageSize, useAuditPage, type AuditFilters } from '../api/audit';
 
 /** Action groups offered in the filter; a prefix ending in "." matches the whole group. */
@@ -69,12 +70,8 @@ export function AuditScreen() {
         <FormField label="On what" className="w-40">
           {(p) => <Input {...p} placeholder="user, station…" value={draft.targetType} onChange={set('targetType')} />}
         </FormField>
-        <FormField label="From (UTC day)" className="w-40">
-          {(p) => <Input {...p} type="date" mono value={draft.from} onChange={set('from')} />}
-        </FormField>
-        <FormField label="To (UTC day)" className="w-40">
-          {(p) => <Input {...p} type="date" mono value={draft.to} onChange={set('to')} />}
-        </FormField>
+        <UtcTimeInput optional label="From (UTC)" className="w-56" value={draft.from || undefined} onChange={(iso) => setDraft({ ...draft, from: iso ?? '' })} />
+        <UtcTimeInput optional label="To (UTC, included)" className="w-56" value={draft.to || undefined} onChange={(iso) => setDraft({ ...draft, to: iso ?? '' })} />
         <Button type="submit" variant="primary">
           Apply
         </Button>

@@ -1,5 +1,6 @@
 import { Fragment, useCallback, useEffect, useMemo, useRef, type ReactNode } from 'react';
 import type uPlot from 'uplot';
+import { sortChannels } from '../../../../../shared/channel-order';
 import type { TracesResponse } from '../../../../../shared/schemas/queue';
 import { PlotFrame } from '../../../components/ui/plot-frame';
 import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '../lib/amplitude';
@@ -172,8 +173,8 @@ function amplitudeAxis(axis: uPlot.Axis | undefined, amplitude: boolean): uPlot.
  */
 export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, onPick, onCursor, syncKey, afterLead, segments }: TracePanelProps) {
   // Vertical first, then the horizontals N/1 and E/2 (the usual Z, N, E reading order, common practice).
-  const rank = (id: string) => ({ Z: 0, N: 1, '1': 1, E: 2, '2': 2 })[id.slice(-1)] ?? 3;
-  const ordered = useMemo(() => [...traces.channels].sort((a, b) => rank(a.streamId) - rank(b.streamId) || a.streamId.localeCompare(b.streamId)), [traces.channels]);
+  // The same channel order as everywhere else (shared/channel-order.ts: by location, then Z, N/1, E/2).
+  const ordered = useMemo(() => sortChannels(traces.channels, (c) => c.streamId), [traces.channels]);
   return (
     <div className="flex flex-col gap-2" data-testid="trace-panel">
       <p className="text-sm text-ink-muted">
