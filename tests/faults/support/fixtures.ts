@@ -2,13 +2,13 @@ import { createHash, randomBytes } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import type { Pool } from 'mysql2/promise';
 import { z } from 'zod';
-import { defaultProcessingProfile } from '../../../shared/schemas/processing-profile';
 import type { Role } from '../../../shared/auth/roles';
 import { hashPassword } from '../../../server/auth/password';
 import { createSessionStore, sessionCookieName } from '../../../server/auth/sessions';
 import type { Database } from '../../../server/db/client';
-import { channels, ingestTokens, stations } from '../../../server/db/schema/stations';
+import { channels, ingestTokens } from '../../../server/db/schema/stations';
 import { userRoles, users } from '../../../server/db/schema/users';
+import { ensureStation } from '../../setup/queue-fixtures';
 
 /**
  * Rows the fault, hostile-input and benchmark runs need, written straight to the database (the
@@ -36,23 +36,12 @@ export async function seedPerson(db: Database, opts: { roles: Role[]; password?:
   return { id, email, sessionId: session.id, cookie: `${sessionCookieName}=${session.id}` };
 }
 
-/** Registers XX.<code> with HHZ/HHN/HHE channels at `rateHz` (location 00); returns its id. */
+/** Registers XX.<code> (tests/setup/queue-fixtures.ts `ensureStation`) with HHZ/HHN/HHE channels at `rateHz` (location 00) when it has none; returns its id. */
 export async function seedStation(db: Database, code: string, rateHz = 100): Promise<number> {
-  const [found] = await db.select({ id: stations.id }).from(stations).where(eq(stations.code, code));
-  if (found) return found.id;
+  const stationId = await ensureStation(db, code);
+  const [hasChannel] = await db.select({ id: channels.id }).from(channels).where(eq(channels.stationId, stationId)).limit(1);
+  if (hasChannel) return stationId;
   const now = new Date();
-  const [res] = await db.insert(stations).values({
-    network: 'XX',
-    code,
-    name: `Kestrel Valley ${code}`,
-    latitude: 46.5,
-    longitude: 8.1,
-    elevationM: 900,
-    profile: defaultProcessingProfile,
-    createdAt: now,
-    updatedAt: now,
-  });
-  const stationId = res.insertId;
   for (const cha of ['HHZ', 'HHN', 'HHE']) {
     await db.insert(channels).values({ stationId, location: '00', code: cha, sampleRateHz: rateHz, sensitivity: null, createdAt: now, updatedAt: now });
   }
