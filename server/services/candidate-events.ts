@@ -367,8 +367,9 @@ export async function regroupAround(deps: CandidateDeps, itemId: number): Promis
 }
 
 /**
- * What ingest calls after its commit for the items it created: copies their arrivals and regroups
- * around each. Safe to call twice for the same items.
+ * For items stored without an arrival row (catch-up, tests): copies their arrivals out of the
+ * stored analysis and regroups around each. Ingest writes the arrival in its own transaction and
+ * calls `regroupArrivals` after the commit. Safe to call twice for the same items.
  * @returns the candidate event ids touched
  */
 export async function onItemsCreated(deps: CandidateDeps, itemIds: readonly number[]): Promise<number[]> {
@@ -395,7 +396,8 @@ const processedUpTo = new WeakMap<Database, number>();
 /**
  * Catches up on items this process has not looked at yet (ids above a high-water mark that starts
  * at the newest item with an arrival row), at most `limit` per call in id order, so groups stand
- * even where ingest did not call `onItemsCreated`. Each item's analysis is read once per process.
+ * even for items stored without one (rows written before ingest stored arrivals itself, or by
+ * other writers). Each item's analysis is read once per process.
  * @returns the number of items looked at
  */
 export async function catchUpArrivals(deps: CandidateDeps, limit = 500): Promise<number> {

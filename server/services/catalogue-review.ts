@@ -77,7 +77,7 @@ type ReviewRecord = Awaited<ReturnType<ReturnType<typeof selectReview>['where']>
 function present(r: ReviewRecord): ReviewRow & { parsedLabel: StoredLabel | null } {
   const parsed = storedLabelSchema.safeParse(r.label);
   const label = parsed.success ? parsed.data : null;
-  // The first trigger comes from item_arrivals (filled by ingest's hook or catchUpArrivals), so the
+  // The first trigger comes from item_arrivals (written by ingest's transaction, or catchUpArrivals), so the
   // analysis JSON is never read for a list.
   const trig = r.arrivalAt ? r.arrivalAt.getTime() : null;
   const t = eventTime(label, trig, r.windowStart);

@@ -4,7 +4,6 @@ import { z } from 'zod';
 import { can } from '../../shared/auth/policies';
 import { flagSchema } from '../../shared/schemas/flags';
 import { channelResponseSchema } from '../../shared/schemas/station';
-import type { QueueRow } from '../../shared/schemas/queue';
 import type { UploadOutcome } from '../../shared/schemas/upload';
 import type { Database } from '../db/client';
 import { ConfigError, envSchema } from '../env';

@@ -72,8 +72,8 @@ function indexHint(timeRanged: boolean, matches: number, p: Part, sort: QueueQue
     // A score range alone, on a part that is just a state: MariaDB 10.11.18 was seen to read the
     // (state, score, …) cover index by `state = ?` only (type ref, every entry of the state: 552 000
     // for `new` in bench:queue, 250 ms) instead of as a range on (state, score). Forcing the
-    // (state, score, id) index makes it a range in index order that the LIMIT stops (0.6 ms).
-    if (scoreRanged && sort === 'score' && p.stationId === null && p.flag === null && p.label === null) return { forceIndex: ['queue_items_state_score_id_idx'] };
+    // (state, score[, id]) index makes it a range in index order that the LIMIT stops (0.6 ms).
+    if (scoreRanged && sort === 'score' && p.stationId === null && p.flag === null && p.label === null) return { forceIndex: ['queue_items_state_score_idx'] };
     return undefined;
   }
   if (matches <= FEW_IN_RANGE) return { forceIndex: ['queue_items_state_window_cover_idx', 'queue_items_station_window_cover_idx'] };

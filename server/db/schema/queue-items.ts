@@ -41,12 +41,12 @@ export const queueItems = mysqlTable(
     index('queue_items_station_created_idx').on(t.stationId, t.createdAt),
     index('queue_items_window_start_idx').on(t.windowStart),
     // Issue 6: keyset pages of the queue list (score or age order, id as tie-breaker) under the
-    // usual filters, and the label filter.
-    index('queue_items_state_score_id_idx').on(t.state, t.score, t.id),
-    index('queue_items_state_created_id_idx').on(t.state, t.createdAt, t.id),
+    // usual filters. InnoDB ends every secondary index with the primary key, so the two indexes
+    // above already order by (state, score, id) and (state, created_at, id); their explicit twins
+    // and a (label_type, state) prefix of the label index below were dropped in migration 0010
+    // (every insert paid for them).
     index('queue_items_station_state_score_idx').on(t.stationId, t.state, t.score),
     index('queue_items_flag_state_score_idx').on(t.flag, t.state, t.score),
-    index('queue_items_label_type_idx').on(t.labelType, t.state),
     index('queue_items_state_claimed_idx').on(t.state, t.claimedAt),
     // Issue 9 (a million items): the label filter in score order, and exact per-state counts
     // under a score or time range read from the index alone (covering: every filter column).
