@@ -244,7 +244,7 @@ export function QueueScreen() {
   const padBottom = virtual.getTotalSize() - (items[items.length - 1]?.end ?? 0);
 
   return (
-    <div className="flex h-full min-h-0 flex-col gap-3 p-4">
+    <div className="flex h-full min-h-0 flex-col gap-3">
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">Review queue</h1>
         <p className="text-sm text-ink-muted">

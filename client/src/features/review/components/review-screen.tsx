@@ -260,7 +260,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const holder = detail.claimedBy && detail.state === 'in review' ? (detail.claimedBy.id === me?.id ? 'you' : detail.claimedBy.displayName) : null;
 
   return (
-    <div className="flex flex-col gap-3 p-4" data-item-id={detail.id} data-version={detail.version}>
+    <div className="flex flex-col gap-3" data-item-id={detail.id} data-version={detail.version}>
       <header className="flex flex-wrap items-center gap-x-4 gap-y-2">
         <Link to={`${paths.queue.href}${location.search}`} className="text-sm">
           ← Queue <Kbd>Esc</Kbd>

@@ -11,7 +11,7 @@ export const noLocationText = 'Seisift does not yet locate events or compute mag
  */
 export function SupervisorPage({ title, summary, live, children, actions }: { title: string; summary: ReactNode; live?: LiveState; children: ReactNode; actions?: ReactNode }) {
   return (
-    <div className="flex flex-col gap-4 p-4">
+    <div className="flex flex-col gap-4">
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">{title}</h1>
         <p className="text-sm text-ink-muted">{summary}</p>
