@@ -9,6 +9,7 @@ import { sosfilt } from '../dsp/sosfilt';
 import type { DecodedStream } from '../formats/types';
 import { createAnalysisPool } from '../jobs/analysis-pool';
 import { defaultProcessingProfile } from '../../shared/schemas/processing-profile';
+import { median, timeRuns } from './timing';
 
 /**
  * `npm run bench:engine`: speed of the triage engine, printed.
@@ -57,22 +58,6 @@ function makeWindow(fs: number, seconds: number, seed: number): DecodedStream[] 
       format: 'mseed2' as const,
     };
   });
-}
-
-function median(v: number[]): number {
-  const s = [...v].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? (s[m] as number) : ((s[m - 1] as number) + (s[m] as number)) / 2;
-}
-
-function timeRuns(runs: number, fn: () => void): number[] {
-  const out: number[] = [];
-  for (let i = 0; i < runs; i++) {
-    const t0 = process.hrtime.bigint();
-    fn();
-    out.push(Number(process.hrtime.bigint() - t0) / 1e6);
-  }
-  return out;
 }
 
 const f2 = (v: number): string => v.toFixed(2);

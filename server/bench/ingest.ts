@@ -52,6 +52,7 @@ import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
 import { createLogger } from '../logger';
 import { ingestFile } from '../services/ingest-upload';
 import { stationsByKeys } from '../services/station-registry';
+import { median, percentile, timeRuns } from './timing';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);
@@ -133,11 +134,6 @@ function cpuSeconds(pid: number): number {
   }
 }
 
-function percentile(sorted: number[], p: number): number {
-  if (sorted.length === 0) return NaN;
-  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))] ?? NaN;
-}
-
 /**
  * The machine's speed now, as a reference for comparing runs (this machine is shared, and the same
  * code has measured up to a third slower at busy times): the median of 30 `analyzeWindow` runs on
@@ -146,14 +142,9 @@ function percentile(sorted: number[], p: number): number {
  */
 function referenceMs(file: Uint8Array): number {
   const streams = decodeWaveform(file);
-  const times: number[] = [];
-  for (let i = 0; i < 33; i++) {
-    const t = performance.now();
-    analyzeWindow(streams, defaultProcessingProfile);
-    if (i >= 3) times.push(performance.now() - t);
-  }
-  times.sort((a, b) => a - b);
-  return percentile(times, 50);
+  const run = () => void analyzeWindow(streams, defaultProcessingProfile);
+  timeRuns(3, run); // warm-up
+  return median(timeRuns(30, run));
 }
 
 /** Top self-time functions of a V8 .cpuprofile (nodes with hitCount; samples are equally spaced). */
@@ -444,10 +435,11 @@ async function main(): Promise<number> {
     log(`upload → all ${WS_CLIENTS} clients (ms):  p50 ${f(percentile(toAll, 50))}  p95 ${f(wsP95)}  p99 ${f(percentile(toAll, 99))}   target p95 ≤ ${TARGETS.wsP95Ms}  ${wsP95 <= TARGETS.wsP95Ms ? 'ok' : 'MISSED'}`);
     log(`changes that never reached a client: ${missing}`);
     for (const t of cpuTimers) clearTimeout(t);
-    if (cpuStart && cpuEnd && measured.length > 0) {
-      const spanS = (cpuEnd.at - cpuStart.at) / 1000;
+    const [from, to] = [cpuStart, cpuEnd];
+    if (from && to && measured.length > 0) {
+      const spanS = (to.at - from.at) / 1000;
       const parts = (['server', 'mariadb', 'bench'] as const).map((k) => {
-        const used = (cpuEnd as ReturnType<typeof cpuAt>)[k] - (cpuStart as ReturnType<typeof cpuAt>)[k];
+        const used = to[k] - from[k];
         return `${k} ${f(used / spanS)} cores (${f((1000 * used) / measured.length)} ms/window)`;
       });
       log(`CPU over the measured span:    ${parts.join(', ')}`);

@@ -37,6 +37,7 @@ import { createAppHub, startServer, type RunningServer } from '../index';
 import { createLogger } from '../logger';
 import { listQueue } from '../services/queue-query';
 import { appVersion } from '../version';
+import { percentile } from './timing';
 
 const ITEMS = Number(process.env.BENCH_QUEUE_ITEMS ?? 1_000_000);
 const REPEATS = Number(process.env.BENCH_QUEUE_REPEATS ?? 60);
@@ -170,12 +171,6 @@ async function bulkLoad(pool: mysql.Pool): Promise<string> {
   } finally {
     conn.release();
   }
-}
-
-function percentile(sorted: number[], p: number): number {
-  if (sorted.length === 0) return NaN;
-  const i = Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1));
-  return sorted[i] ?? NaN;
 }
 
 const explainRow = z.object({ id: z.unknown(), select_type: z.unknown(), table: z.string().nullable(), type: z.string().nullable(), key: z.string().nullable(), rows: z.unknown().transform((v) => (v === null || v === undefined ? null : Number(v))), Extra: z.string().nullable() }).passthrough();
