@@ -59,21 +59,27 @@ const MAX_PARTS = 64;
  */
 const FEW_IN_RANGE = 20_000;
 
+/** Which ranges a query has: a time range (`from`/`to`) and a score range (`scoreMin`/`scoreMax`). */
+function rangesOf(q: QueueQuery): { time: boolean; score: boolean } {
+  return { time: q.from !== undefined || q.to !== undefined, score: q.scoreMin !== undefined || q.scoreMax !== undefined };
+}
+
 /**
- * Index hints for a page part under a time range (none without one). MariaDB otherwise walks the
- * score or age index and looks up every row to test window_start.
+ * Index hints for a page part under a time or score range (none without one). Under a time range
+ * MariaDB otherwise walks the score or age index and looks up every row to test window_start:
  * - few matches (≤ FEW_IN_RANGE): read the range through a (…, state, window_start, …) index, from
  *   the index alone, and sort what it finds;
  * - many, in score order without a station: walk (state, score, …, window_start), which covers
  *   the test, so no row is looked up.
+ * Under a score range alone, see the comment inside.
  */
-function indexHint(timeRanged: boolean, matches: number, p: Part, sort: QueueQuery['sort'], scoreRanged: boolean): { forceIndex: string[] } | undefined {
-  if (!timeRanged) {
+function indexHint(ranges: { time: boolean; score: boolean }, matches: number, p: Part, sort: QueueQuery['sort']): { forceIndex: string[] } | undefined {
+  if (!ranges.time) {
     // A score range alone, on a part that is just a state: MariaDB 10.11.18 was seen to read the
     // (state, score, …) cover index by `state = ?` only (type ref, every entry of the state: 552 000
     // for `new` in bench:queue, 250 ms) instead of as a range on (state, score). Forcing the
     // (state, score[, id]) index makes it a range in index order that the LIMIT stops (0.6 ms).
-    if (scoreRanged && sort === 'score' && p.stationId === null && p.flag === null && p.label === null) return { forceIndex: ['queue_items_state_score_idx'] };
+    if (ranges.score && sort === 'score' && p.stationId === null && p.flag === null && p.label === null) return { forceIndex: ['queue_items_state_score_idx'] };
     return undefined;
   }
   if (matches <= FEW_IN_RANGE) return { forceIndex: ['queue_items_state_window_cover_idx', 'queue_items_station_window_cover_idx'] };
@@ -197,7 +203,7 @@ export async function listQueue(db: Database, q: QueueQuery, scope: 'all' | read
   // few matches under a time range is read by that range (the index on (state, window_start, …))
   // and sorted, where walking the score or age index would pass over most of the state's rows.
   const counts = await countByState(db, q, stationIds);
-  const timeRanged = q.from !== undefined || q.to !== undefined;
+  const ranges = rangesOf(q);
   const { parts, shared } = pagePlan(
     states.filter((st) => counts[st] > 0),
     stationIds,
@@ -206,7 +212,7 @@ export async function listQueue(db: Database, q: QueueQuery, scope: 'all' | read
   // All parts in ONE statement (`(…) UNION ALL (…)`, each part keeping its own ORDER BY … LIMIT),
   // so a page costs one round trip however many parts it has.
   const statements = parts.map((p) => {
-    const hint = indexHint(timeRanged, counts[p.state], p, q.sort, q.scoreMin !== undefined || q.scoreMax !== undefined);
+    const hint = indexHint(ranges, counts[p.state], p, q.sort);
     const key = q.sort === 'score' ? queueItems.score : queueItems.createdAt;
     const part = db
       .select({ id: queueItems.id, k: sql`${key}`.as('k') })
@@ -237,8 +243,8 @@ async function countByState(db: Database, q: QueueQuery, stationIds: readonly nu
   const counts = emptyCounts();
   const labels = q.label && q.label.length > 0 ? q.label : null;
   const flags = q.flag && q.flag.length > 0 ? q.flag : null;
-  const ranged = q.scoreMin !== undefined || q.scoreMax !== undefined || q.from !== undefined || q.to !== undefined;
-  if (!ranged) {
+  const ranges = rangesOf(q);
+  if (!ranges.time && !ranges.score) {
     const c: SQL[] = [];
     if (stationIds !== 'all') c.push(inArray(queueCounts.stationId, [...stationIds]));
     if (flags) c.push(inArray(queueCounts.flag, flags));
@@ -265,8 +271,7 @@ async function countByState(db: Database, q: QueueQuery, stationIds: readonly nu
   // one UNION ALL statement: one round trip. With a score range and no time range the
   // (state, score, station, flag, label, window_start) index is forced: it covers every filter,
   // and without the hint MariaDB 10.11.18 read it by `state = ?` alone (see `indexHint`).
-  const timeRanged = q.from !== undefined || q.to !== undefined;
-  const hint = !timeRanged ? { forceIndex: ['queue_items_state_score_cover_idx'] } : undefined;
+  const hint = !ranges.time ? { forceIndex: ['queue_items_state_score_cover_idx'] } : undefined;
   const parts = itemStates.map((state) => sql`${db.select({ state: sql`${state}`.as('st'), n: count().as('n') }).from(queueItems, hint).where(and(eq(queueItems.state, state), ...c))}`);
   const [raw] = await db.execute(sql.join(parts, sql` UNION ALL `));
   for (const r of countRowsSchema.parse(raw)) {
