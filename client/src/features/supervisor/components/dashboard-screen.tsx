@@ -78,7 +78,7 @@ export function DashboardScreen() {
               <TBody>
                 {d.workload.length === 0 ? (
                   <Tr>
-                    <td colSpan={2}>No triage in this period.</td>
+                    <Td colSpan={2}>No triage in this period.</Td>
                   </Tr>
                 ) : (
                   d.workload.map((w) => (

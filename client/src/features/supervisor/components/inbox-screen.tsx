@@ -4,7 +4,7 @@ import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, Th, THead, Tr } from '../../../components/ui/table';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { inboxAction, inboxQuery, type InboxEntry } from '../api/supervisor-api';
 import { useSupervisorLive } from '../hooks/use-supervisor-live';
@@ -60,18 +60,18 @@ export function InboxScreen() {
             <TBody>
               {inbox.data?.entries.map((e) => (
                 <Tr key={e.id} data-testid={`inbox-entry-${e.id}`} className={e.readAt ? undefined : 'font-semibold'}>
-                  <td className="font-mono text-sm whitespace-nowrap">{e.createdAt}</td>
-                  <td>
+                  <Td className="font-mono text-sm whitespace-nowrap">{e.createdAt}</Td>
+                  <Td>
                     <a className="underline" href={`/queue/items/${e.itemId}`} onClick={() => !e.readAt && act.mutate({ id: e.id, action: 'read' })}>
                       <SubjectText subject={e.subject} />
                     </a>
                     <div className="text-sm text-ink-muted">escalated by {e.escalatedBy ?? 'someone'}</div>
-                  </td>
-                  <td className="max-w-[28rem] text-sm">{e.reason}</td>
-                  <td>
+                  </Td>
+                  <Td className="max-w-[28rem] text-sm">{e.reason}</Td>
+                  <Td>
                     <EntryStatus entry={e} />
-                  </td>
-                  <td>
+                  </Td>
+                  <Td>
                     {e.resolution ? null : returning === e.id ? (
                       <form
                         className="flex flex-col gap-1"
@@ -108,7 +108,7 @@ export function InboxScreen() {
                         </Button>
                       </div>
                     )}
-                  </td>
+                  </Td>
                 </Tr>
               ))}
             </TBody>

@@ -11,7 +11,7 @@ import { Input } from '../../../components/ui/input';
 import { UtcTimeInput } from '../../../components/ui/utc-time-input';
 import { Select } from '../../../components/ui/select';
 import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, Th, THead, Tr } from '../../../components/ui/table';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { paths } from '../../../config/paths';
 import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuery, setStatus, type ReviewFilters } from '../api/supervisor-api';
@@ -125,29 +125,29 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
         <TBody>
           {rows.map((r) => (
             <Tr key={r.itemId} data-testid={`review-row-${r.itemId}`}>
-              <td className="font-mono text-sm whitespace-nowrap">
+              <Td className="font-mono text-sm whitespace-nowrap">
                 {/* ISO 8601 with milliseconds on screen; the export keeps the microseconds. */}
                 {r.eventTime.replace(/(\.\d{3})\d*Z$/, '$1Z')}
                 <span className="block font-sans text-xs text-ink-muted">{r.eventTimeBasis}</span>
-              </td>
-              <td>
+              </Td>
+              <Td>
                 <a className="underline" href={`/queue/items/${r.itemId}`}>
                   {r.station}
                 </a>
-              </td>
-              <td>
+              </Td>
+              <Td>
                 {r.eventType} <span className="text-sm text-ink-muted">({r.certainty}, {r.picks} picks)</span>
-              </td>
-              <td>
+              </Td>
+              <Td>
                 <FlagMarker flag={r.flag} />
-              </td>
-              <td className="text-sm">{r.analyst?.displayName ?? '—'}</td>
-              <td className="text-sm">{r.candidateEventId ? `group #${r.candidateEventId}` : '—'}</td>
-              <td>
+              </Td>
+              <Td className="text-sm">{r.analyst?.displayName ?? '—'}</Td>
+              <Td className="text-sm">{r.candidateEventId ? `group #${r.candidateEventId}` : '—'}</Td>
+              <Td>
                 <Badge tone={r.evaluationStatus === 'rejected' ? 'danger' : r.evaluationStatus === 'preliminary' ? 'neutral' : 'ok'}>{r.evaluationStatus}</Badge>
                 {r.reviewedBy ? <span className="block text-xs text-ink-muted">by {r.reviewedBy.displayName}</span> : null}
-              </td>
-              <td>
+              </Td>
+              <Td>
                 {open === r.itemId ? (
                   <form className="flex flex-col gap-1" onSubmit={(e) => e.preventDefault()} aria-label={`Review item ${r.itemId}`}>
                     <label className="text-sm">
@@ -179,7 +179,7 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
                     Review…
                   </Button>
                 )}
-              </td>
+              </Td>
             </Tr>
           ))}
         </TBody>

@@ -7,7 +7,7 @@ import { UtcTimeInput } from '../../../components/ui/utc-time-input';
 import { PlotFrame } from '../../../components/ui/plot-frame';
 import { Select } from '../../../components/ui/select';
 import { Loading } from '../../../components/ui/skeleton';
-import { Table, TBody, Th, THead, Tr } from '../../../components/ui/table';
+import { Table, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
 import { TriageCaution } from '../../../components/ui/triage-caution';
 import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '../api/supervisor-api';
 import { usePeriod } from '../hooks/use-period';
@@ -179,12 +179,12 @@ function EvalRow({ name, e }: { name: string; e: Evaluation }) {
       <Th scope="row" className="font-normal text-ink">
         {name}
       </Th>
-      <td className="font-mono">{e.tp}</td>
-      <td className="font-mono">{e.fp}</td>
-      <td className="font-mono">{e.fn}</td>
-      <td className="font-mono">{e.tn}</td>
-      <td className="font-mono">{pct(e.precision)}</td>
-      <td className="font-mono">{pct(e.recall)}</td>
+      <Td className="font-mono">{e.tp}</Td>
+      <Td className="font-mono">{e.fp}</Td>
+      <Td className="font-mono">{e.fn}</Td>
+      <Td className="font-mono">{e.tn}</Td>
+      <Td className="font-mono">{pct(e.precision)}</Td>
+      <Td className="font-mono">{pct(e.recall)}</Td>
     </Tr>
   );
 }
