@@ -3,12 +3,13 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
-import { preprocessTrace } from './preprocess';
+import { detrendLinear, preprocessTrace } from './preprocess';
 import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
 import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
-import { classicStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from './sta-lta';
+import { aicOnsetIndex } from './aic-picker';
+import { delayedStaLta, detectTriggers, peakOf, snrAroundTrigger } from './sta-lta';
 import { bandEnergy, sosfiltInPlace, sosfiltZeroPhase } from './sosfilt';
 
 /**
@@ -80,7 +81,10 @@ export interface ChannelResult {
     method: 'classic' | 'recursive';
     peak: number;
     peakTime: number;
-    triggers: Array<{ on: number; off: number | null }>;
+    /** On and off (s from the first sample), the AIC onset (s; ≤ on) and the peak of each trigger. */
+    triggers: Array<{ on: number; off: number | null; onset: number; peak: number }>;
+    /** Index of the channel's strongest trigger (the one `snr` and `signalSpectrum` describe), or null. */
+    main: number | null;
   };
   snr: number | null;
   /**
@@ -178,7 +182,7 @@ function analyzeChannel(
       throw new AnalysisError(`${s.id}: sample ${i} (${(i / fs).toFixed(3)} s) is ${s.samples[i]}, not a finite number`);
     }
   }
-  const ltaSamples = Math.round(profile.staLta.ltaS * fs);
+  const ltaSamples = Math.round((profile.staLta.startS + profile.staLta.minLtaS + profile.staLta.staS) * fs);
   const qc = qualityChecks(s.samples, fs, s.discontinuities, {
     fullScaleCounts: profile.qc.fullScaleCounts,
     flatTopSamples: profile.qc.flatTopSamples,
@@ -226,15 +230,40 @@ function analyzeChannel(
   const ratio = eLow > 0 ? eHigh / eLow : null;
   const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
 
+  // The trigger reads its own copy of the high band: the demeaned, detrended trace WITHOUT the
+  // window taper (which would hide a P in the first 5 % of the window) but with a short cosine ramp
+  // over the first `startS` seconds (so the causal filter starts without a step), band-rejected like
+  // the rest. The characteristic function starts after the ramp (see `delayedStaLta`).
   const sl = profile.staLta;
-  const cf = n >= ltaSamples
-    ? sl.method === 'classic'
-      ? classicStaLta(highY, fs, sl.staS, sl.ltaS)
-      : recursiveStaLta(highY, fs, sl.staS, sl.ltaS)
-    : new Float64Array(n);
+  const startIndex = Math.min(n, Math.round(sl.startS * fs));
+  const trigBase = detrendLinear(s.samples);
+  for (let i = 0; i < startIndex; i++) trigBase[i] = (trigBase[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / startIndex));
+  if (flatSensitivity !== 1) for (let i = 0; i < n; i++) trigBase[i] = (trigBase[i] as number) / flatSensitivity;
+  for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), trigBase);
+  const trigY = trigBase.slice();
+  sosfiltInPlace(highSos, trigY);
+  const cf = delayedStaLta(trigY, fs, sl.staS, sl.ltaS, sl.method, { startIndex, minLtaSamples: Math.max(1, Math.round(sl.minLtaS * fs)) });
   const trig = detectTriggers(cf, fs, sl.on, sl.off);
   const pk = peakOf(cf, fs);
-  const snr = snrAroundTrigger(highY, fs, trig[0]?.onIndex ?? null, profile.snr.signalS, profile.snr.noiseS);
+  // Onset of each trigger by AIC on the trigger's band (Maeda 1985): from up to `onsetSearchS` before
+  // the trigger to `onsetAfterS` after it, never before the ramp's end nor after the trigger itself.
+  const onsets = trig.map((t) => {
+    const from = Math.max(startIndex, t.onIndex - Math.round(sl.onsetSearchS * fs));
+    const to = Math.min(n, t.onIndex + Math.round(sl.onsetAfterS * fs));
+    const k = aicOnsetIndex(trigY, from, to);
+    return k === null ? t.onIndex : Math.min(k, t.onIndex);
+  });
+  // Each trigger's own peak; the channel's main trigger is its strongest (the one its features describe).
+  const trigPeaks = trig.map((t) => {
+    let m = 0;
+    for (let i = t.onIndex; i < (t.offIndex ?? n); i++) if ((cf[i] as number) > m) m = cf[i] as number;
+    return m;
+  });
+  let mainIdx = -1;
+  for (let i = 0; i < trig.length; i++) if (mainIdx < 0 || (trigPeaks[i] as number) > (trigPeaks[mainIdx] as number)) mainIdx = i;
+  const first = mainIdx >= 0 ? trig[mainIdx] : undefined;
+  const firstOnset = mainIdx >= 0 ? (onsets[mainIdx] as number) : null;
+  const snr = snrAroundTrigger(trigY, fs, firstOnset, profile.snr.signalS, Math.min(profile.snr.noiseS, firstOnset === null ? 0 : (firstOnset - startIndex) / fs));
 
   // PSD: with a full response, compute in counts and correct per frequency; otherwise on the scaled trace.
   const paz = typeof response === 'object' ? response : null;
@@ -261,26 +290,27 @@ function analyzeChannel(
   }
   const stats = spectralStats(psd.freqs, statsValues, profile.psd.fminStats, excluded);
 
-  // Signal spectrum: the first trigger's part of the pre-processed, band-rejected trace against the
-  // noise before it. Units cancel in the ratio (so does a flat sensitivity or a response).
+  // Signal spectrum: from the first trigger's onset, on the trigger's (untapered, band-rejected)
+  // trace, against the noise before it. Units cancel in the ratio (so does a flat sensitivity).
   let signalSpectrum: SignalSpectrumFeatures | null = null;
   let signalSpectrumNote: string | null = null;
-  const first = trig[0];
-  if (first) {
-    const planned = planSignalSegments(n, fs, first, {
+  if (first && firstOnset !== null) {
+    const planned = planSignalSegments(n, fs, { onIndex: firstOnset, offIndex: first.offIndex }, {
       ...profile.signalSpectrum,
-      guardSamples: Math.round(sl.staS * fs),
-      taperSamples: Math.floor((profile.preprocess.taperAlpha * (n - 1)) / 2) + 1,
+      guardSamples: Math.round(profile.signalSpectrum.guardS * fs),
+      taperSamples: startIndex,
       maxNperseg: profile.psd.nperseg,
     });
     if ('note' in planned) signalSpectrumNote = planned.note;
     else {
       const p = planned.plan;
-      const sp = snrSpectrum(profile.bandReject.length > 0 ? rejectedCopy : pre, fs, p, profile.psd.fminStats, 0.45 * fs, excluded, profile.signalSpectrum.minSnr);
+      const sp = snrSpectrum(trigBase, fs, p, profile.psd.fminStats, 0.45 * fs, excluded, profile.signalSpectrum.minSnr, [high.fmin, high.fmax]);
       signalSpectrum = {
         peakFrequency: sp.peakFrequency,
         peakSnr: sp.peakSnr,
         centroid: sp.centroid,
+        inBandSnr: sp.inBandSnr,
+        inBandShare: sp.inBandShare,
         fromS: p.signalFrom / fs,
         toS: p.signalTo / fs,
         noiseFromS: p.noiseFrom / fs,
@@ -318,7 +348,13 @@ function analyzeChannel(
     bandReject,
     ratio,
     log10Ratio,
-    staLta: { method: sl.method, peak: pk.peak, peakTime: pk.peakTime, triggers: trig.map((t) => ({ on: t.on, off: t.off })) },
+    staLta: {
+      method: sl.method,
+      peak: pk.peak,
+      peakTime: pk.peakTime,
+      triggers: trig.map((t, i) => ({ on: t.on, off: t.off, onset: (onsets[i] ?? t.onIndex) / fs, peak: trigPeaks[i] ?? 0 })),
+      main: mainIdx >= 0 ? mainIdx : null,
+    },
     snr,
     psd: {
       freqs: Array.from(psd.freqs),
