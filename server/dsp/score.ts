@@ -52,8 +52,8 @@ export interface StationBaseline {
  * has enough noise windows.
  */
 export const NETWORK_DEFAULT_BASELINE: StationBaseline = {
-  log10Ratio: { median: 0, mad: 0.3 },
-  staLtaPeak: { median: 3, mad: 0.7 },
+  log10Ratio: { median: 0.65, mad: 0.43 },
+  staLtaPeak: { median: 2.9, mad: 0.7 },
   count: 0,
 };
 
@@ -105,7 +105,7 @@ export interface ChannelFeatures {
   /** Why there is no signal spectrum although there is a trigger. */
   signalSpectrumNote?: string | null;
   bands: { high: { fmin: number; fmax: number } };
-  qc: ReadonlyArray<{ severity: 'info' | 'warning' | 'error'; message: string; code: string }>;
+  qc: ReadonlyArray<{ severity: 'info' | 'warning' | 'error'; message: string; code: string; time?: number | undefined }>;
 }
 
 /** The window's detection: the arrival the flag and the event groups read. */
@@ -137,6 +137,9 @@ export interface WindowScore {
 }
 
 const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
+/** QC codes that can set off a trigger by themselves, and how near the onset they count, s. */
+const DATA_PROBLEMS = new Set(['gap', 'overlap', 'flat-segment', 'dc-step', 'spikes']);
+const DATA_PROBLEM_S = 3;
 const ROBUST_SIGMA = 1.4826;
 
 /** Robust z = (x − median)/(1.4826·max(MAD, floor)). */
@@ -258,11 +261,17 @@ export function scoreWindow(
   const nothingStandsOut = sig !== null && inBandSnr !== null && inBandSnr < sig.minSnr && (sig.peakFrequency === null);
   const qcErrors = lead.qc.filter((q) => q.severity === 'error');
   const strong = main !== null && zp >= th.eventZ;
+  // A trigger at a data problem (a gap or overlap where records were joined, a dropout, a DC step, a
+  // spike) on any channel, within DATA_PROBLEM_S of the onset, is not evidence of ground motion.
+  const atProblem = main === null
+    ? []
+    : channels.flatMap((c) => c.qc.filter((q) => DATA_PROBLEMS.has(q.code) && q.time !== undefined && Math.abs(q.time - main.onset) <= DATA_PROBLEM_S).map((q) => `${c.id}: ${q.message}`));
 
   let flag: WindowScore['flag'];
-  if (qcErrors.length > 0) {
+  if (qcErrors.length > 0 || atProblem.length > 0) {
     flag = 'needs eyes';
     for (const q of qcErrors) reasons.push(`quality problem on ${lead.id}: ${q.message}`);
+    for (const m of atProblem) reasons.push(`the trigger sits at a data problem, not necessarily ground motion — ${m}`);
   } else if (strong && inBand) {
     flag = 'likely event';
   } else if (zp < th.noiseZ || (!strong && nothingStandsOut)) {
