@@ -201,8 +201,8 @@ function analyzeChannel(
   const pre = preprocessTrace(s.samples, profile.preprocess.taperAlpha);
   if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
 
-  const low = validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
   const fitted = highBandForRate(profile.bands.high, fs);
+  const low = validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
   if (fitted.warning) warnings.push(fitted.warning);
   const high = validateBand('high', fitted.band, fs, profile.bands.nyquistPolicy);
   if (low.warning) warnings.push(low.warning);

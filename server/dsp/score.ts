@@ -213,11 +213,14 @@ export function scoreWindow(
 
   // 1. The deciding channel: the strongest main trigger; the vertical on a tie or when none triggered.
   const vi = leadChannelIndex(channels.map((c) => c.id));
-  let di = vi;
+  let di = -1;
   for (let i = 0; i < channels.length; i++) {
-    const p = (channels[i] as ChannelFeatures).staLta.peak;
-    if (p > (channels[di] as ChannelFeatures).staLta.peak) di = i;
+    const c = channels[i] as ChannelFeatures;
+    if (c.staLta.triggers.length === 0) continue;
+    if (di < 0 || c.staLta.peak > (channels[di] as ChannelFeatures).staLta.peak || (c.staLta.peak === (channels[di] as ChannelFeatures).staLta.peak && i === vi)) di = i;
   }
+  if (di < 0) di = vi;
+  const anyTrigger = channels.some((c) => c.staLta.triggers.length > 0);
   const lead = channels[di] as ChannelFeatures;
   const main = mainTrigger(lead);
   const reasons: string[] = [];
@@ -274,16 +277,18 @@ export function scoreWindow(
     for (const m of atProblem) reasons.push(`the trigger sits at a data problem, not necessarily ground motion — ${m}`);
   } else if (strong && inBand) {
     flag = 'likely event';
-  } else if (zp < th.noiseZ || (!strong && nothingStandsOut)) {
+  } else if (!anyTrigger || zp < th.noiseZ || (!strong && nothingStandsOut)) {
     flag = 'likely noise';
     if (main) reasons.push(zp < th.noiseZ ? 'the trigger is no stronger than this station\'s ordinary noise' : 'the triggered part stands out from the noise before it in no frequency bin');
   } else {
     flag = 'needs eyes';
     if (strong && !inBand) {
       reasons.push(
-        inBandKnown
-          ? `the trigger is strong but the high band ${hb.fmin}–${hb.fmax} Hz hardly rose (${fmtDb(inBandSnr ?? (lead.snr ?? 0) ** 2)}, ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins): energy may be leaking in from outside the band`
-          : 'the trigger is strong but there is too little data around it to check the band: look at this window and the next',
+        !inBandKnown
+          ? 'the trigger is strong but there is too little data around it to check the band: look at this window and the next'
+          : inBandSnr !== null && inBandSnr >= th.minInBandSnr
+            ? `the high band rose by ${fmtDb(inBandSnr)} but only in ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins: a narrow-band signal (machinery, a resonance) rather than an earthquake's broad spectrum`
+            : `the trigger is strong but the high band ${hb.fmin}–${hb.fmax} Hz hardly rose (${fmtDb(inBandSnr ?? (lead.snr ?? 0) ** 2)}, ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins): energy may be leaking in from outside the band`
       );
     } else reasons.push('evidence between ordinary noise and an event');
   }

@@ -168,14 +168,21 @@ describe('analyzeWindow: output contract, flags and errors', () => {
     expect(res.reasons.join(' | ')).toMatch(/the trigger is strong but the high band 2–10 Hz hardly rose .*: energy may be leaking in from outside the band/);
   });
 
-  it('a band at or above 0.45·fs is refused naming the band and fs, or capped with a warning when the profile says so', () => {
+  it('a band a station set at or above 0.45·fs is refused naming the band and fs, or capped when the profile says so; the default band is fitted to a 20 sps channel (brief: 2–8 Hz at 20 sps); 1 sps is refused', () => {
     const x = makeSignal(noiseSpec(5, 20, 2400));
-    expect(() => analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], defaultProcessingProfile)).toThrow(BandError);
-    expect(() => analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], defaultProcessingProfile)).toThrow(/high band 2–10 Hz reaches 0\.45·fs = 9 Hz at a sample rate of 20 Hz/);
-    const capped = processingProfileSchema.parse({ bands: { nyquistPolicy: 'cap' } });
+    const own = processingProfileSchema.parse({ bands: { high: { fmin: 2, fmax: 9.5 } } });
+    expect(() => analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], own)).toThrow(BandError);
+    expect(() => analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], own)).toThrow(/high band 2–9\.5 Hz reaches 0\.45·fs = 9 Hz at a sample rate of 20 Hz/);
+    const capped = processingProfileSchema.parse({ bands: { high: { fmin: 2, fmax: 9.5 }, nyquistPolicy: 'cap' } });
     const res = analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], capped);
     expect(res.channels[0]?.bands.high.fmax).toBe(9);
     expect(res.channels[0]?.warnings.join(' ')).toMatch(/upper edge lowered to 9 Hz/);
+    const fitted = analyzeWindow([stream('XX.KV05.00.BHZ', x, 20)], defaultProcessingProfile);
+    expect(fitted.channels[0]?.bands.high).toMatchObject({ fmin: 2, fmax: 8 });
+    expect(fitted.channels[0]?.warnings.join(' ')).toMatch(/default high band fitted to 20 sps: 2–8 Hz/);
+    const at40 = analyzeWindow([stream('XX.KV05.00.SHZ', makeSignal(noiseSpec(6, 40, 4800)), 40)], defaultProcessingProfile);
+    expect(at40.channels[0]?.bands.high).toMatchObject({ fmin: 2, fmax: 10 });
+    expect(() => analyzeWindow([stream('XX.KV05.00.LHZ', makeSignal(noiseSpec(7, 1, 600)), 1)], defaultProcessingProfile)).toThrow(/long-period channel \(1 sps or slower\)/);
   });
 
   it('with a sensitivity: energies in (m/s)²·s (÷S²), acceleration PSD in dB against the noise models; a flat PAZ equals the scalar', () => {

@@ -239,7 +239,7 @@ describe('processing profile: the signal-spectrum knobs are backward compatible'
     const p = processingProfileSchema.parse(stored);
     expect(p.thresholds).toEqual({ eventZ: 3.5, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5, signalPeakTolerance: 0.2, minInBandSnr: 4, minInBandShare: 0.5 });
     expect(p.signalSpectrum).toEqual({ minS: 2, maxS: 20, noiseMinS: 1.5, noiseMaxS: 30, guardS: 0.25, segmentS: 2.56, minSnr: 2 });
-    expect(p.staLta).toEqual({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5, startS: 0.75, minLtaS: 1.25, onsetSearchS: 2.5, onsetAfterS: 0.5 });
+    expect(p.staLta).toEqual({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5, startS: 0.75, minLtaS: 1.25, onsetSearchS: 2.5, onsetAfterS: 0.5, onsetWindowS: 0.5 });
     // a stored signalSpectrum section from before guardS keeps its own values
     const withOld = processingProfileSchema.parse({ ...stored, signalSpectrum: { minS: 2, maxS: 20, noiseMinS: 5, noiseMaxS: 30, segmentS: 2.56, minSnr: 2 } });
     expect(withOld.signalSpectrum).toEqual({ minS: 2, maxS: 20, noiseMinS: 5, noiseMaxS: 30, guardS: 0.25, segmentS: 2.56, minSnr: 2 });

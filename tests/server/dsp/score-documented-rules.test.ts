@@ -5,12 +5,10 @@ import { defaultProcessingProfile } from '../../../shared/schemas/processing-pro
 import { makeSignal, stream, type SignalSpec } from './fixture-signal';
 
 /**
- * Engine behaviour that contradicts the engine's own documentation (server/dsp/score.ts module and
- * type comments), found while rewriting the tests for the delayed-LTA trigger. Each test states what
- * the documentation says and is marked `it.fails` so the suite stays green while the defect is open:
- * when the engine is fixed the test starts passing, `it.fails` then reports it, and the marker is removed.
+ * The score's documented rules (server/dsp/score.ts module and type comments) on cases found while
+ * rewriting the tests for the delayed-LTA trigger, where the first version of the code did otherwise.
  */
-describe('known defects (it.fails: remove the marker when fixed)', () => {
+describe('the score keeps its documented rules', () => {
   const baseline = { log10Ratio: { median: 0.2, mad: 0.1 }, staLtaPeak: { median: 2, mad: 0.3 }, count: 40 };
   const quiet = (id: string, peak: number): ChannelFeatures => ({
     id,
@@ -27,7 +25,7 @@ describe('known defects (it.fails: remove the marker when fixed)', () => {
   // says "the vertical on a tie or when none triggered". The code takes the highest STA/LTA peak over
   // all channels whether or not anything triggered, so a horizontal whose sub-threshold noise peak is
   // higher decides (and its higher peak sets z).
-  it.fails('with no trigger on any channel the vertical decides', () => {
+  it('with no trigger on any channel the vertical decides', () => {
     const r = scoreWindow([quiet('XX.KV03.00.HHZ', 2.0), quiet('XX.KV03.00.HHN', 3.0)], baseline, defaultProcessingProfile);
     expect(r.leadChannel).toBe('XX.KV03.00.HHZ');
   });
@@ -37,7 +35,7 @@ describe('known defects (it.fails: remove the marker when fixed)', () => {
   // windows (seed 999) has no trigger at all, but its highest STA/LTA, 2.8 at 3.5 s — inside the
   // first seconds where the expanding LTA holds only 1.25–2.75 s — is +2.2 MAD: "needs eyes",
   // "evidence between ordinary noise and an event", for a window where nothing triggered.
-  it.fails('a noise window with no trigger is likely noise against a baseline of the same noise', () => {
+  it('a noise window with no trigger is likely noise against a baseline of the same noise', () => {
     const fs = 100;
     const noiseSpec = (seed: number): SignalSpec => ({ n: 12000, fs, sines: [[0.5, 0.25, 0.3]], noise: 1, seed });
     const noise = Array.from({ length: 25 }, (_, i) => analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal(noiseSpec(100 + i)), fs)], defaultProcessingProfile).channels[0]);
@@ -52,7 +50,7 @@ describe('known defects (it.fails: remove the marker when fixed)', () => {
   // (fixtures/dsp/signal-spectrum.json case 1: inBandSnr 567, numpy/scipy) but fills only 35 % of
   // the band's bins (a narrow-band arrival), so it is refused by minInBandShare 0.5 — and the
   // reason then reads "the high band 2–10 Hz hardly rose (27.5 dB, 35 % of its bins)".
-  it.fails('a 27.5 dB rise in the band is not described as "hardly rose"', () => {
+  it('a 27.5 dB rise in the band is not described as "hardly rose"', () => {
     const fs = 100;
     const res = analyzeWindow([stream('XX.KV03.00.HHZ', makeSignal({ n: 12000, fs, sines: [[30, 0.2, 0]], bursts: [[60, 6, 5, 5]], noise: 1, seed: 71 }), fs)], defaultProcessingProfile);
     expect(res.channels[0]?.signalSpectrum?.inBandSnr as number).toBeGreaterThan(100);
