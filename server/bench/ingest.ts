@@ -50,8 +50,8 @@ import { decodeWaveform } from '../formats/decode';
 import { encodeMiniSeed2 } from '../formats/mseed2-writer';
 import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
 import { createLogger } from '../logger';
-import { ingestFile } from '../services/ingest-upload';
-import { stationsByKeys } from '../services/station-registry';
+import { ingestFile } from '../features/ingest/ingest-upload';
+import { stationsByKeys } from '../features/stations/station-registry';
 import { median, percentile, timeRuns } from './timing';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);

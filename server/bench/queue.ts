@@ -35,7 +35,7 @@ import { setUpMail } from '../email/setup';
 import { loadEnv } from '../env';
 import { createAppHub, startServer, type RunningServer } from '../index';
 import { createLogger } from '../logger';
-import { listQueue } from '../services/queue-query';
+import { listQueue } from '../features/queue/queue-query';
 import { appVersion } from '../version';
 import { percentile } from './timing';
 

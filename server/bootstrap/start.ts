@@ -6,8 +6,8 @@
 import { demoUsers } from '../db/seed-demo';
 import type { AppContext } from '../context';
 import { ingestDemo } from '../demo/ingest-demo';
-import { defaultAnalysisPool } from '../services/ingest-upload';
-import { escalationListener } from '../services/escalations';
+import { defaultAnalysisPool } from '../features/ingest/ingest-upload';
+import { escalationListener } from '../features/supervision/escalations';
 import { publicBaseUrl } from '../email/links';
 import { ConfigError, loadEnv } from '../env';
 import { FakeSmtpError } from '../email/fake-smtp';

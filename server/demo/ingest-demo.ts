@@ -18,9 +18,9 @@ import { uploads } from '../db/schema/uploads';
 import { users } from '../db/schema/users';
 import type { AnalysisPool } from '../jobs/analysis-pool';
 import type { Logger } from '../logger';
-import { ingestFile, sha256Hex, type IngestCaller } from '../services/ingest-upload';
-import { claimItem, dismissItem, escalateItem, labelItem, type EscalationListener, type QueuePerson } from '../services/queue-transitions';
-import { createToken, type Actor } from '../services/station-registry';
+import { ingestFile, sha256Hex, type IngestCaller } from '../features/ingest/ingest-upload';
+import { claimItem, dismissItem, escalateItem, labelItem, type EscalationListener, type QueuePerson } from '../features/queue/queue-transitions';
+import { createToken, type Actor } from '../features/stations/station-registry';
 import { DEMO_WAVEFORMS_DIR } from './generate-waveforms';
 
 /** Label of the per-station ingest tokens the demo seed uploads with. */

@@ -1,5 +1,5 @@
 import type { AppContext } from '../context';
-import { lapseIdleClaims } from '../services/queue-transitions';
+import { lapseIdleClaims } from '../features/queue/queue-transitions';
 
 /** A running background job. */
 export interface RunningJob {

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { queueItemDetailSchema } from '../../shared/schemas/queue';
 import { uploadResponseSchema } from '../../shared/schemas/upload';
-import { createStation, upsertChannel, type Actor } from '../../server/services/station-registry';
+import { createStation, upsertChannel, type Actor } from '../../server/features/stations/station-registry';
 import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
 import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
 import { createItem, createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';

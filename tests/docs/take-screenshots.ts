@@ -24,7 +24,7 @@ import { ingestDemo, readDemoManifest } from '../../server/demo/ingest-demo';
 import { publicBaseUrl } from '../../server/email/links';
 import { startServer } from '../../server/index';
 import { createAnalysisPool } from '../../server/jobs/analysis-pool';
-import { escalationListener } from '../../server/services/escalations';
+import { escalationListener } from '../../server/features/supervision/escalations';
 import { setup as startThrowAwayMariaDb, teardown as stopThrowAwayMariaDb } from '../setup/global-setup';
 import { launchBrowser } from '../setup/browser';
 import { createTestContext } from '../setup/test-app';

@@ -9,8 +9,8 @@ import { ingestDemo, readDemoManifest, type DemoIngestReport } from '../../../se
 import { stations } from '../../../server/db/schema/stations';
 import { inboxEntries } from '../../../server/db/schema/supervisor';
 import { createAnalysisPool, type AnalysisPool } from '../../../server/jobs/analysis-pool';
-import { catchUpArrivals, listCandidateEvents } from '../../../server/services/candidate-events';
-import { escalationListener } from '../../../server/services/escalations';
+import { catchUpArrivals, listCandidateEvents } from '../../../server/features/events/candidate-events';
+import { escalationListener } from '../../../server/features/supervision/escalations';
 import { processingProfileSchema } from '../../../shared/schemas/processing-profile';
 import { createTestContext, type TestContext } from '../../setup/test-app';
 

@@ -12,7 +12,7 @@ import { readDemoManifest } from '../../../server/demo/ingest-demo';
 import { REPLAY_TOKEN_LABEL, ReplayError, parseReplayArgs, replayDemo, shiftWindowFile } from '../../../server/demo/replay';
 import { decodeWaveform } from '../../../server/formats/decode';
 import { startServer, type RunningServer } from '../../../server/index';
-import { createToken } from '../../../server/services/station-registry';
+import { createToken } from '../../../server/features/stations/station-registry';
 import { createTestContext, type TestContext } from '../../setup/test-app';
 
 const sha = (b: Uint8Array): string => createHash('sha256').update(b).digest('hex');
