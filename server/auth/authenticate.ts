@@ -1,11 +1,11 @@
 import { eq } from 'drizzle-orm';
 import type { NextFunction, Request, RequestHandler, Response } from 'express';
-import type { Role } from '../../shared/auth/roles';
+import type { Role } from '@shared/auth/roles';
 import type { SessionInfo, SessionStore } from './sessions';
-import type { Database } from '../db/client';
-import { stationAssignments } from '../db/schema/stations';
-import { userRoles, users } from '../db/schema/users';
-import { unauthorized } from '../errors';
+import type { Database } from '@server/db/client';
+import { stationAssignments } from '@server/db/schema/stations';
+import { userRoles, users } from '@server/db/schema/users';
+import { unauthorized } from '@server/errors';
 
 /** A signed-in person, as handlers and the policy module see them. */
 export type AuthUser = {

@@ -1,5 +1,5 @@
 import type { Request, RequestHandler } from 'express';
-import { AppError } from '../errors';
+import { AppError } from '@server/errors';
 
 const safeMethods = new Set(['GET', 'HEAD', 'OPTIONS']);
 

@@ -1,4 +1,4 @@
-import type { AppContext } from '../context';
+import type { AppContext } from '@server/context';
 import { createAuthLimiters, type AuthLimiters } from './rate-limit';
 import { createSessionStore, type SessionStore } from './sessions';
 

@@ -1,5 +1,5 @@
 import { RateLimiterMemory, RateLimiterRes } from 'rate-limiter-flexible';
-import { tooManyRequests } from '../errors';
+import { tooManyRequests } from '@server/errors';
 
 /** Limits for one kind of attempt: `points` attempts per `durationS` seconds per key. */
 export type AttemptLimit = { points: number; durationS: number };

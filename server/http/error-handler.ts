@@ -1,8 +1,8 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { MulterError } from 'multer';
-import type { ApiErrorBody } from '../../shared/api-error';
-import { AppError } from '../errors';
-import type { Logger } from '../logger';
+import type { ApiErrorBody } from '@shared/api-error';
+import { AppError } from '@server/errors';
+import type { Logger } from '@server/logger';
 
 /** Error codes (mysql2, MariaDB, Node sockets) that mean "the database cannot be reached right now". */
 const DATABASE_DOWN_CODES = new Set([

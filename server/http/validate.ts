@@ -1,5 +1,5 @@
 import type { z } from 'zod';
-import { badRequest } from '../errors';
+import { badRequest } from '@server/errors';
 
 /**
  * Parses `value` with `schema`; on failure throws 400 `validation_failed` whose message names the

@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import type { AppContext } from '../context';
+import type { AppContext } from '@server/context';
 import { buildOpenApiDocument } from './document';
 
 /** GET /api/openapi.json: the generated OpenAPI 3 document (public, cached per process). */

@@ -3,12 +3,12 @@ import { XMLParser } from 'fast-xml-parser';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { queueItemDetailSchema } from '../../shared/schemas/queue';
-import { seedDemo } from '../../server/db/seed-demo';
-import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { syntheticStreams } from '../setup/queue-fixtures';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { queueItemDetailSchema } from '@shared/schemas/queue';
+import { seedDemo } from '@server/db/seed-demo';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { syntheticStreams } from '@tests/setup/queue-fixtures';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /*
  * The whole story in one real browser (Debian chromium via playwright-core) against a real server

@@ -1,8 +1,8 @@
-import type { SessionStore } from '../../auth/sessions';
-import type { Database } from '../../db/client';
-import type { Mailer } from '../../email/mailer';
-import type { Env } from '../../env';
-import type { Logger } from '../../logger';
+import type { SessionStore } from '@server/auth/sessions';
+import type { Database } from '@server/db/client';
+import type { Mailer } from '@server/email/mailer';
+import type { Env } from '@server/env';
+import type { Logger } from '@server/logger';
 
 /** What the account services need. */
 export type AccountDeps = { db: Database; sessions: SessionStore; mailer: Mailer; env: Env; logger: Logger };

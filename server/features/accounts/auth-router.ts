@@ -1,10 +1,10 @@
 import { Router } from 'express';
-import { acceptInvitationSchema, forgotPasswordSchema, resetPasswordSchema, signInSchema, tokenCheckSchema, type Me } from '../../../shared/auth/schemas';
-import type { AuthKit } from '../../auth/kit';
-import type { AppContext } from '../../context';
-import { currentSession, currentUser, optionalUser, requireUser, type AuthUser } from '../../auth/authenticate';
-import { parseInput } from '../../http/validate';
-import { recordAudit } from '../audit/audit';
+import { acceptInvitationSchema, forgotPasswordSchema, resetPasswordSchema, signInSchema, tokenCheckSchema, type Me } from '@shared/auth/schemas';
+import type { AuthKit } from '@server/auth/kit';
+import type { AppContext } from '@server/context';
+import { currentSession, currentUser, optionalUser, requireUser, type AuthUser } from '@server/auth/authenticate';
+import { parseInput } from '@server/http/validate';
+import { recordAudit } from '@server/features/audit/audit';
 import { acceptInvitation, inspectInvitation } from './invitations';
 import { inspectPasswordReset, requestPasswordReset, resetPassword } from './password-resets';
 import { signIn } from './sign-in';

@@ -1,20 +1,20 @@
 import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
 import type { z } from 'zod';
-import type { Role } from '../../../shared/auth/roles';
-import type { createInvitationSchema, InvitationRow } from '../../../shared/auth/schemas';
-import { hashPassword } from '../../auth/password';
-import type { SessionInfo } from '../../auth/sessions';
-import { generateOneTimeToken, generateUserId, hashOneTimeToken } from '../../auth/tokens';
-import type { Database } from '../../db/client';
-import { invitations } from '../../db/schema/invitations';
-import { stationAssignments, stations } from '../../db/schema/stations';
-import { userRoles, users } from '../../db/schema/users';
-import { invitationLink } from '../../email/links';
-import { invitationMail } from '../../email/templates/invitation';
-import { AppError, badRequest, conflict, notFound } from '../../errors';
-import type { AuthUser } from '../../auth/authenticate';
+import type { Role } from '@shared/auth/roles';
+import type { createInvitationSchema, InvitationRow } from '@shared/auth/schemas';
+import { hashPassword } from '@server/auth/password';
+import type { SessionInfo } from '@server/auth/sessions';
+import { generateOneTimeToken, generateUserId, hashOneTimeToken } from '@server/auth/tokens';
+import type { Database } from '@server/db/client';
+import { invitations } from '@server/db/schema/invitations';
+import { stationAssignments, stations } from '@server/db/schema/stations';
+import { userRoles, users } from '@server/db/schema/users';
+import { invitationLink } from '@server/email/links';
+import { invitationMail } from '@server/email/templates/invitation';
+import { AppError, badRequest, conflict, notFound } from '@server/errors';
+import type { AuthUser } from '@server/auth/authenticate';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
-import { recordAudit } from '../audit/audit';
+import { recordAudit } from '@server/features/audit/audit';
 import { tokenExpired, tokenRevoked, tokenUnknown, tokenUsed } from './one-time-tokens';
 
 /** How long an invitation link works: 72 h (issue 3). */

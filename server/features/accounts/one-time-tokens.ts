@@ -1,4 +1,4 @@
-import { AppError } from '../../errors';
+import { AppError } from '@server/errors';
 
 /** 404 for a link token that matches nothing (mistyped or never issued). */
 export const tokenUnknown = (what: string) => new AppError(404, 'token_unknown', `This ${what} link is not known; ask for a new one`);

@@ -1,15 +1,15 @@
 import { and, eq, isNull } from 'drizzle-orm';
-import { hashPassword } from '../../auth/password';
-import type { SessionInfo } from '../../auth/sessions';
-import { generateOneTimeToken, hashOneTimeToken } from '../../auth/tokens';
-import type { Database } from '../../db/client';
-import { passwordResetTokens } from '../../db/schema/password-reset-tokens';
-import { users } from '../../db/schema/users';
-import { resetLink } from '../../email/links';
-import { passwordResetMail } from '../../email/templates/password-reset';
-import type { AuthLimiters } from '../../auth/rate-limit';
+import { hashPassword } from '@server/auth/password';
+import type { SessionInfo } from '@server/auth/sessions';
+import { generateOneTimeToken, hashOneTimeToken } from '@server/auth/tokens';
+import type { Database } from '@server/db/client';
+import { passwordResetTokens } from '@server/db/schema/password-reset-tokens';
+import { users } from '@server/db/schema/users';
+import { resetLink } from '@server/email/links';
+import { passwordResetMail } from '@server/email/templates/password-reset';
+import type { AuthLimiters } from '@server/auth/rate-limit';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
-import { recordAudit } from '../audit/audit';
+import { recordAudit } from '@server/features/audit/audit';
 import { tokenExpired, tokenUnknown, tokenUsed } from './one-time-tokens';
 
 /** How long a reset link works: 1 h (issue 3). */

@@ -1,9 +1,9 @@
 import type { Request, Response } from 'express';
-import type { SessionInfo, SessionStore } from '../../auth/sessions';
-import type { AppContext } from '../../context';
-import { clientAddress, isSecureRequest } from '../../auth/authenticate';
+import type { SessionInfo, SessionStore } from '@server/auth/sessions';
+import type { AppContext } from '@server/context';
+import { clientAddress, isSecureRequest } from '@server/auth/authenticate';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
-import type { AuthKit } from '../../auth/kit';
+import type { AuthKit } from '@server/auth/kit';
 
 /** Client address and user agent of a request, for sessions and audit rows. */
 export function requestMeta(req: Request): RequestMeta {

@@ -1,11 +1,11 @@
 import { eq } from 'drizzle-orm';
-import { hashPassword, verifyPassword } from '../../auth/password';
-import type { SessionInfo } from '../../auth/sessions';
-import { users } from '../../db/schema/users';
-import { AppError } from '../../errors';
-import type { AuthLimiters } from '../../auth/rate-limit';
+import { hashPassword, verifyPassword } from '@server/auth/password';
+import type { SessionInfo } from '@server/auth/sessions';
+import { users } from '@server/db/schema/users';
+import { AppError } from '@server/errors';
+import type { AuthLimiters } from '@server/auth/rate-limit';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
-import { recordAudit } from '../audit/audit';
+import { recordAudit } from '@server/features/audit/audit';
 
 /** The one answer for an unknown e-mail, a wrong password or a deactivated account. */
 export const signInRefused = () => new AppError(401, 'sign_in_failed', 'E-mail or password is not right');

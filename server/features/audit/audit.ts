@@ -1,8 +1,8 @@
 import { and, count, desc, eq, gte, like, lte, or, type SQL } from 'drizzle-orm';
 import type { z } from 'zod';
-import type { AuditRow, auditQuerySchema } from '../../../shared/auth/schemas';
-import type { Database } from '../../db/client';
-import { auditLog } from '../../db/schema/audit-log';
+import type { AuditRow, auditQuerySchema } from '@shared/auth/schemas';
+import type { Database } from '@server/db/client';
+import { auditLog } from '@server/db/schema/audit-log';
 
 /** A transaction handle, as `db.transaction(async (tx) => …)` passes it. */
 export type Transaction = Parameters<Parameters<Database['transaction']>[0]>[0];

@@ -1,8 +1,8 @@
 import { Router } from 'express';
-import { auditQuerySchema } from '../../../shared/auth/schemas';
-import type { AppContext } from '../../context';
-import { parseInput } from '../../http/validate';
-import { requirePermission } from '../../policies/authorize';
+import { auditQuerySchema } from '@shared/auth/schemas';
+import type { AppContext } from '@server/context';
+import { parseInput } from '@server/http/validate';
+import { requirePermission } from '@server/policies/authorize';
 import { listAudit } from './audit';
 
 /** /api/audit: the audit log for supervisors and admins (audit.view). */

@@ -1,15 +1,15 @@
 import { and, asc, desc, eq, gt, gte, inArray, lt, lte, max, sql } from 'drizzle-orm';
 import { z } from 'zod';
-import type { EventLabel } from '../../../shared/schemas/label';
-import { defaultGroupingSettings, type GroupingSettings } from '../../../shared/schemas/supervisor';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
-import { stations } from '../../db/schema/stations';
-import { candidateEvents, itemArrivals } from '../../db/schema/supervisor';
-import { windows } from '../../db/schema/uploads';
-import { AppError, notFound } from '../../errors';
-import { recordChange, type DbOrTx } from '../../realtime/change-log';
-import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from '../queue/queue-transitions';
+import type { EventLabel } from '@shared/schemas/label';
+import { defaultGroupingSettings, type GroupingSettings } from '@shared/schemas/supervisor';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { candidateEvents, itemArrivals } from '@server/db/schema/supervisor';
+import { windows } from '@server/db/schema/uploads';
+import { AppError, notFound } from '@server/errors';
+import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from '@server/features/queue/queue-transitions';
 
 /**
  * Candidate events: items from at least `minStations` distinct stations whose first triggers fall

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { Router } from 'express';
-import type { AppContext } from '../../context';
+import type { AppContext } from '@server/context';
 
 /** GET /api/health: the database state and the app version. 200 when ok, 503 when the database is down. */
 export function healthRouter(ctx: AppContext): Router {

@@ -1,12 +1,12 @@
 import { Router, type NextFunction, type Request, type Response } from 'express';
 import multer from 'multer';
-import { can } from '../../../shared/auth/policies';
-import { uploadFieldsSchema } from '../../../shared/schemas/upload';
-import type { AppContext } from '../../context';
-import { badRequest, forbidden, tooLarge, unauthorized, type AppError } from '../../errors';
-import type { AnalysisPool } from '../../jobs/analysis-pool';
-import { clientAddress, getRequestAuth } from '../../auth/authenticate';
-import { parseInput } from '../../http/validate';
+import { can } from '@shared/auth/policies';
+import { uploadFieldsSchema } from '@shared/schemas/upload';
+import type { AppContext } from '@server/context';
+import { badRequest, forbidden, tooLarge, unauthorized, type AppError } from '@server/errors';
+import type { AnalysisPool } from '@server/jobs/analysis-pool';
+import { clientAddress, getRequestAuth } from '@server/auth/authenticate';
+import { parseInput } from '@server/http/validate';
 import { defaultAnalysisPool, ingestFiles, type IngestCaller, type IngestDeps } from './ingest-upload';
 
 const mb = (bytes: number) => `${Math.round((bytes / 1024 / 1024) * 100) / 100} MB`;

@@ -1,13 +1,13 @@
 import { eq, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/mysql-core';
-import { flagSchema } from '../../../shared/schemas/flags';
-import { itemStateSchema } from '../../../shared/schemas/item-states';
-import type { QueueRow } from '../../../shared/schemas/queue';
-import type { DbOrTx } from '../../realtime/change-log';
-import { queueItems } from '../../db/schema/queue-items';
-import { stations } from '../../db/schema/stations';
-import { candidateEvents, itemArrivals } from '../../db/schema/supervisor';
-import { users } from '../../db/schema/users';
+import { flagSchema } from '@shared/schemas/flags';
+import { itemStateSchema } from '@shared/schemas/item-states';
+import type { QueueRow } from '@shared/schemas/queue';
+import type { DbOrTx } from '@server/realtime/change-log';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { candidateEvents, itemArrivals } from '@server/db/schema/supervisor';
+import { users } from '@server/db/schema/users';
 
 const claimer = alias(users, 'claimer');
 const updater = alias(users, 'updater');

@@ -1,11 +1,11 @@
 import { asc, eq } from 'drizzle-orm';
-import { storedLabelSchema } from '../../../shared/schemas/label';
-import type { QueueItemDetail } from '../../../shared/schemas/queue';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
-import { channels } from '../../db/schema/stations';
-import { windowChannels, windows } from '../../db/schema/uploads';
-import { notFound } from '../../errors';
+import { storedLabelSchema } from '@shared/schemas/label';
+import type { QueueItemDetail } from '@shared/schemas/queue';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { channels } from '@server/db/schema/stations';
+import { windowChannels, windows } from '@server/db/schema/uploads';
+import { notFound } from '@server/errors';
 import { loadQueueRow } from './presenters';
 
 /**

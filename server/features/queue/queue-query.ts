@@ -1,12 +1,12 @@
 import { and, asc, count, desc, eq, gt, gte, inArray, isNull, lt, lte, or, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
-import { itemStates, itemStateSchema, type ItemState } from '../../../shared/schemas/item-states';
-import { compareQueueRows, type QueuePage, type QueueQuery, type QueueRow, type StateCounts } from '../../../shared/schemas/queue';
-import type { Database } from '../../db/client';
-import { queueCounts } from '../../db/schema/queue-counts';
-import { queueItems } from '../../db/schema/queue-items';
-import { stations } from '../../db/schema/stations';
-import { badRequest } from '../../errors';
+import { itemStates, itemStateSchema, type ItemState } from '@shared/schemas/item-states';
+import { compareQueueRows, type QueuePage, type QueueQuery, type QueueRow, type StateCounts } from '@shared/schemas/queue';
+import type { Database } from '@server/db/client';
+import { queueCounts } from '@server/db/schema/queue-counts';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { badRequest } from '@server/errors';
 import { presentQueueRow, selectQueueRows } from './presenters';
 
 /**

@@ -1,18 +1,18 @@
 import { and, asc, eq } from 'drizzle-orm';
-import { processingProfileSchema, type ProcessingProfile } from '../../../shared/schemas/processing-profile';
-import type { TracesQuery, TracesResponse } from '../../../shared/schemas/queue';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
-import { channels, stations } from '../../db/schema/stations';
-import { windowChannels } from '../../db/schema/uploads';
-import { decodeStoredSamples } from '../../db/samples-codec';
-import { validateBand } from '../../dsp/bands';
-import { butterworthSos } from '../../dsp/butterworth';
-import { preprocessTrace } from '../../dsp/preprocess';
-import { sosfiltInPlace } from '../../dsp/sosfilt';
-import { spectrogram } from '../../dsp/spectrum';
-import { classicStaLta, detectTriggers, recursiveStaLta } from '../../dsp/sta-lta';
-import { badRequest, notFound } from '../../errors';
+import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
+import type { TracesQuery, TracesResponse } from '@shared/schemas/queue';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { channels, stations } from '@server/db/schema/stations';
+import { windowChannels } from '@server/db/schema/uploads';
+import { decodeStoredSamples } from '@server/db/samples-codec';
+import { validateBand } from '@server/dsp/bands';
+import { butterworthSos } from '@server/dsp/butterworth';
+import { preprocessTrace } from '@server/dsp/preprocess';
+import { sosfiltInPlace } from '@server/dsp/sosfilt';
+import { spectrogram } from '@server/dsp/spectrum';
+import { classicStaLta, detectTriggers, recursiveStaLta } from '@server/dsp/sta-lta';
+import { badRequest, notFound } from '@server/errors';
 
 /**
  * Display traces of a queue item: for each channel of its window the pre-processed trace, both

@@ -1,13 +1,13 @@
 import { Router, type Request } from 'express';
 import multer from 'multer';
 import { z } from 'zod';
-import { processingProfileSchema } from '../../../shared/schemas/processing-profile';
-import { channelInputSchema, idParamSchema, stationCreateSchema, stationUpdateSchema, tokenCreateSchema } from '../../../shared/schemas/station';
-import type { AppContext } from '../../context';
-import { badRequest, notFound, tooLarge } from '../../errors';
-import { clientAddress, currentUser, type AuthUser } from '../../auth/authenticate';
-import { parseInput } from '../../http/validate';
-import { authorize, authorizedStations, requirePermission } from '../../policies/authorize';
+import { processingProfileSchema } from '@shared/schemas/processing-profile';
+import { channelInputSchema, idParamSchema, stationCreateSchema, stationUpdateSchema, tokenCreateSchema } from '@shared/schemas/station';
+import type { AppContext } from '@server/context';
+import { badRequest, notFound, tooLarge } from '@server/errors';
+import { clientAddress, currentUser, type AuthUser } from '@server/auth/authenticate';
+import { parseInput } from '@server/http/validate';
+import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
 import { stationHealth } from './station-health';
 import { stationBaseline } from './station-baseline';
 import {

@@ -1,10 +1,10 @@
 import { and, desc, eq, sql } from 'drizzle-orm';
 import { unionAll } from 'drizzle-orm/mysql-core';
-import type { BaselineView } from '../../../shared/schemas/station';
-import { queueItems } from '../../db/schema/queue-items';
-import { windowFeatures } from '../../db/schema/window-features';
-import { computeBaseline, type StationBaseline } from '../../dsp/score';
-import type { DbOrTx } from '../../realtime/change-log';
+import type { BaselineView } from '@shared/schemas/station';
+import { queueItems } from '@server/db/schema/queue-items';
+import { windowFeatures } from '@server/db/schema/window-features';
+import { computeBaseline, type StationBaseline } from '@server/dsp/score';
+import type { DbOrTx } from '@server/realtime/change-log';
 
 /**
  * A station's noise baseline: robust statistics (median, MAD) of the lead channel's log10 band

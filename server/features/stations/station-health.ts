@@ -1,11 +1,11 @@
 import { and, desc, eq, gte, inArray } from 'drizzle-orm';
 import { z } from 'zod';
-import type { BaselineView } from '../../../shared/schemas/station';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
-import { windowChannels, windows } from '../../db/schema/uploads';
-import { windowFeatures } from '../../db/schema/window-features';
-import { nhnmDb, nlnmDb } from '../../dsp/noise-models';
+import type { BaselineView } from '@shared/schemas/station';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { windowChannels, windows } from '@server/db/schema/uploads';
+import { windowFeatures } from '@server/db/schema/window-features';
+import { nhnmDb, nlnmDb } from '@server/dsp/noise-models';
 import { stationBaseline } from './station-baseline';
 
 /**

@@ -1,6 +1,6 @@
 import { createHash, randomBytes } from 'node:crypto';
 import { and, count, desc, eq, inArray, isNull, max, sql } from 'drizzle-orm';
-import { processingProfileSchema, type ProcessingProfile } from '../../../shared/schemas/processing-profile';
+import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import {
   profileNyquistIssues,
   stationCreateSchema,
@@ -12,16 +12,16 @@ import {
   type StationSummary,
   type TokenCreated,
   type TokenView,
-} from '../../../shared/schemas/station';
+} from '@shared/schemas/station';
 import type { z } from 'zod';
-import type { Database } from '../../db/client';
-import { auditLog } from '../../db/schema/audit-log';
-import { channels, ingestTokens, stationAssignments, stations } from '../../db/schema/stations';
-import { users } from '../../db/schema/users';
-import { windows } from '../../db/schema/uploads';
-import { AppError, badRequest, conflict, notFound } from '../../errors';
-import type { IngestPrincipal } from '../../auth/authenticate';
-import type { DbOrTx } from '../../realtime/change-log';
+import type { Database } from '@server/db/client';
+import { auditLog } from '@server/db/schema/audit-log';
+import { channels, ingestTokens, stationAssignments, stations } from '@server/db/schema/stations';
+import { users } from '@server/db/schema/users';
+import { windows } from '@server/db/schema/uploads';
+import { AppError, badRequest, conflict, notFound } from '@server/errors';
+import type { IngestPrincipal } from '@server/auth/authenticate';
+import type { DbOrTx } from '@server/realtime/change-log';
 
 /**
  * The station registry: stations, channels, processing profiles and per-station ingest tokens.

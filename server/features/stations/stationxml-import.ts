@@ -1,14 +1,14 @@
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { z } from 'zod';
-import { can, type PolicyActor } from '../../../shared/auth/policies';
-import { channelCodeSchema, locationCodeSchema, networkCodeSchema, profileNyquistIssues, stationCodeSchema } from '../../../shared/schemas/station';
-import { processingProfileSchema } from '../../../shared/schemas/processing-profile';
-import type { Database } from '../../db/client';
-import { channels, stationAssignments, stations } from '../../db/schema/stations';
-import type { PolesZerosResponse } from '../../dsp/response';
-import { conflict, forbidden, unprocessable } from '../../errors';
-import { parseStationXml, StationXmlParseError, type PolesZeros, type StationXmlChannel } from '../../formats/stationxml';
+import { can, type PolicyActor } from '@shared/auth/policies';
+import { channelCodeSchema, locationCodeSchema, networkCodeSchema, profileNyquistIssues, stationCodeSchema } from '@shared/schemas/station';
+import { processingProfileSchema } from '@shared/schemas/processing-profile';
+import type { Database } from '@server/db/client';
+import { channels, stationAssignments, stations } from '@server/db/schema/stations';
+import type { PolesZerosResponse } from '@server/dsp/response';
+import { conflict, forbidden, unprocessable } from '@server/errors';
+import { parseStationXml, StationXmlParseError, type PolesZeros, type StationXmlChannel } from '@server/formats/stationxml';
 import { storedProfile, writeAudit, type Actor } from './station-registry';
 
 /**

@@ -1,16 +1,16 @@
 import { and, asc, desc, eq, gte, inArray, isNotNull, lt, ne, or, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/mysql-core';
-import { storedLabelSchema, type StoredLabel } from '../../../shared/schemas/label';
-import type { EvaluationStatus, ReviewQuery, ReviewRow } from '../../../shared/schemas/supervisor';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
-import { stations } from '../../db/schema/stations';
-import { itemArrivals, itemReviews } from '../../db/schema/supervisor';
-import { users } from '../../db/schema/users';
-import { conflict, notFound } from '../../errors';
-import { loadQueueRow } from '../queue/presenters';
-import { recordChange } from '../../realtime/change-log';
-import { recordAudit } from '../audit/audit';
+import { storedLabelSchema, type StoredLabel } from '@shared/schemas/label';
+import type { EvaluationStatus, ReviewQuery, ReviewRow } from '@shared/schemas/supervisor';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { itemArrivals, itemReviews } from '@server/db/schema/supervisor';
+import { users } from '@server/db/schema/users';
+import { conflict, notFound } from '@server/errors';
+import { loadQueueRow } from '@server/features/queue/presenters';
+import { recordChange } from '@server/realtime/change-log';
+import { recordAudit } from '@server/features/audit/audit';
 import type { InboxActor, InboxDeps } from './inbox';
 import type { CatalogueEvent, CataloguePick } from './quakeml-export';
 

@@ -1,10 +1,10 @@
 import { and, eq, gte, inArray, lt, sql } from 'drizzle-orm';
-import type { Database } from '../../db/client';
-import { auditLog } from '../../db/schema/audit-log';
-import { queueItems } from '../../db/schema/queue-items';
-import { stations } from '../../db/schema/stations';
-import { itemReviews } from '../../db/schema/supervisor';
-import { users } from '../../db/schema/users';
+import type { Database } from '@server/db/client';
+import { auditLog } from '@server/db/schema/audit-log';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { itemReviews } from '@server/db/schema/supervisor';
+import { users } from '@server/db/schema/users';
 import { truthOf } from './thresholds';
 
 /**

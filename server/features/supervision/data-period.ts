@@ -1,7 +1,7 @@
 import { and, eq, inArray, isNotNull, ne, sql, type SQL } from 'drizzle-orm';
-import type { LatestWindows } from '../../../shared/schemas/data-period';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
+import type { LatestWindows } from '@shared/schemas/data-period';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
 
 /**
  * The window start of the latest queue item and of the latest labelled event (the rows the review

@@ -1,14 +1,14 @@
 import { eq, inArray } from 'drizzle-orm';
-import type { Escalation } from '../../../shared/schemas/label';
-import type { QueueRow } from '../../../shared/schemas/queue';
-import type { Database } from '../../db/client';
-import { inboxEntries } from '../../db/schema/supervisor';
-import { windows } from '../../db/schema/uploads';
-import { queueItems } from '../../db/schema/queue-items';
-import type { Mailer } from '../../email/mailer';
-import type { Logger } from '../../logger';
+import type { Escalation } from '@shared/schemas/label';
+import type { QueueRow } from '@shared/schemas/queue';
+import type { Database } from '@server/db/client';
+import { inboxEntries } from '@server/db/schema/supervisor';
+import { windows } from '@server/db/schema/uploads';
+import { queueItems } from '@server/db/schema/queue-items';
+import type { Mailer } from '@server/email/mailer';
+import type { Logger } from '@server/logger';
 import { activeSupervisors, recordInboxChange } from './inbox';
-import type { EscalationListener, QueuePerson } from '../queue/queue-transitions';
+import type { EscalationListener, QueuePerson } from '@server/features/queue/queue-transitions';
 
 /**
  * What happens after an analyst escalates an item (hooked into the queue's escalate service as an

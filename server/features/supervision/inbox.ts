@@ -1,13 +1,13 @@
 import { and, count, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
-import { stations } from '../../db/schema/stations';
-import { inboxEntries, itemReviews } from '../../db/schema/supervisor';
-import { users } from '../../db/schema/users';
-import { conflict, notFound } from '../../errors';
-import { loadQueueRow } from '../queue/presenters';
-import { recordChange, type DbOrTx } from '../../realtime/change-log';
-import { recordAudit } from '../audit/audit';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { inboxEntries, itemReviews } from '@server/db/schema/supervisor';
+import { users } from '@server/db/schema/users';
+import { conflict, notFound } from '@server/errors';
+import { loadQueueRow } from '@server/features/queue/presenters';
+import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { recordAudit } from '@server/features/audit/audit';
 
 /**
  * The supervisors' escalation inbox. Each escalation gives every supervisor an entry; a supervisor

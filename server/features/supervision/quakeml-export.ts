@@ -1,4 +1,4 @@
-import type { EvaluationStatus } from '../../../shared/schemas/supervisor';
+import type { EvaluationStatus } from '@shared/schemas/supervisor';
 
 /**
  * The reviewed catalogue as QuakeML 1.2 (pure builder).

@@ -1,8 +1,8 @@
 import { eq } from 'drizzle-orm';
 import { Router, type Request } from 'express';
 import { z } from 'zod';
-import { latestWindowsQuerySchema } from '../../../shared/schemas/data-period';
-import { eventLabelSchema } from '../../../shared/schemas/label';
+import { latestWindowsQuerySchema } from '@shared/schemas/data-period';
+import { eventLabelSchema } from '@shared/schemas/label';
 import {
   applyThresholdsBodySchema,
   dashboardQuerySchema,
@@ -14,14 +14,14 @@ import {
   reviewQuerySchema,
   setStatusBodySchema,
   thresholdValuesSchema,
-} from '../../../shared/schemas/supervisor';
-import type { AppContext } from '../../context';
-import { queueItems } from '../../db/schema/queue-items';
-import { clientAddress, currentUser, requireUser, type AuthUser } from '../../auth/authenticate';
-import { parseInput } from '../../http/validate';
-import { authorize, authorizedStations, requirePermission } from '../../policies/authorize';
-import { recordAudit } from '../audit/audit';
-import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '../events/candidate-events';
+} from '@shared/schemas/supervisor';
+import type { AppContext } from '@server/context';
+import { queueItems } from '@server/db/schema/queue-items';
+import { clientAddress, currentUser, requireUser, type AuthUser } from '@server/auth/authenticate';
+import { parseInput } from '@server/http/validate';
+import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
+import { recordAudit } from '@server/features/audit/audit';
+import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
 import { buildCatalogueCsv } from './catalogue-csv';
 import { listReview, loadCatalogue, reviewNote, setEvaluationStatus } from './catalogue-review';
 import { dashboard } from './dashboard';
@@ -29,7 +29,7 @@ import { latestWindows } from './data-period';
 import { acknowledge, confirmFromInbox, listInbox, markRead, returnFromInbox, settleItem } from './inbox';
 import { buildQuakeml } from './quakeml-export';
 import { applyThresholds, rescorePeriod, thresholdReport } from './thresholds';
-import { notFound } from '../../errors';
+import { notFound } from '@server/errors';
 
 const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be an id (a whole number)').transform(Number) });
 const stationParams = z.object({ stationId: z.string().regex(/^\d{1,15}$/, 'must be a station id (a whole number)').transform(Number) });

@@ -1,19 +1,19 @@
 import { and, asc, count, desc, eq, gte, inArray, lt, sql } from 'drizzle-orm';
 import { z } from 'zod';
-import { storedLabelSchema } from '../../../shared/schemas/label';
-import { processingProfileSchema, type ProcessingProfile } from '../../../shared/schemas/processing-profile';
-import type { Database } from '../../db/client';
-import { queueItems } from '../../db/schema/queue-items';
-import { stations } from '../../db/schema/stations';
-import { itemReviews } from '../../db/schema/supervisor';
-import { windows } from '../../db/schema/uploads';
-import { notFound, tooLarge, unprocessable } from '../../errors';
-import { loadQueueRow } from '../queue/presenters';
-import { recordChange, type DbOrTx } from '../../realtime/change-log';
-import { recordAudit } from '../audit/audit';
-import { stationBaseline } from '../stations/station-baseline';
-import type { Evaluation, ThresholdValues } from '../../../shared/schemas/supervisor';
-import { scoreWindow, type ChannelFeatures, type StationBaseline } from '../../dsp/score';
+import { storedLabelSchema } from '@shared/schemas/label';
+import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { itemReviews } from '@server/db/schema/supervisor';
+import { windows } from '@server/db/schema/uploads';
+import { notFound, tooLarge, unprocessable } from '@server/errors';
+import { loadQueueRow } from '@server/features/queue/presenters';
+import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { recordAudit } from '@server/features/audit/audit';
+import { stationBaseline } from '@server/features/stations/station-baseline';
+import type { Evaluation, ThresholdValues } from '@shared/schemas/supervisor';
+import { scoreWindow, type ChannelFeatures, type StationBaseline } from '@server/dsp/score';
 
 /**
  * Thresholds from labelled history (pure part).

@@ -4,11 +4,11 @@
  * Real MariaDB, the demo scenario (operator@ holds KV01–KV03), the fake SMTP server.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { policyTable } from '../../../shared/auth/policies';
-import { roles } from '../../../shared/auth/roles';
+import { policyTable } from '@shared/auth/policies';
+import { roles } from '@shared/auth/roles';
 import { routeMatrix, type MatrixRequest, type MatrixRow } from './route-matrix';
-import { mountedApiRoutes } from '../support/mounted-routes';
-import { call, createWorld, type Principal, type World } from '../support/world';
+import { mountedApiRoutes } from '@tests/server/support/mounted-routes';
+import { call, createWorld, type Principal, type World } from '@tests/server/support/world';
 
 const principals: readonly Principal[] = ['anonymous', ...roles];
 const key = (r: { method: string; path: string }) => `${r.method} ${r.path}`;

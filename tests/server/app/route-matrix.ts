@@ -17,20 +17,20 @@
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { and, eq } from 'drizzle-orm';
-import type { Action } from '../../../shared/auth/policies';
-import type { Role } from '../../../shared/auth/roles';
-import { generateOneTimeToken, hashOneTimeToken } from '../../../server/auth/tokens';
-import { invitations } from '../../../server/db/schema/invitations';
-import { mailMessages } from '../../../server/db/schema/mail-messages';
-import { passwordResetTokens } from '../../../server/db/schema/password-reset-tokens';
-import { queueItems } from '../../../server/db/schema/queue-items';
-import { channels } from '../../../server/db/schema/stations';
-import { inboxEntries } from '../../../server/db/schema/supervisor';
-import { windows } from '../../../server/db/schema/uploads';
-import { users } from '../../../server/db/schema/users';
-import { onItemsCreated } from '../../../server/features/events/candidate-events';
-import { createItem } from '../../setup/queue-fixtures';
-import { call, demoPassword, type Principal, type World } from '../support/world';
+import type { Action } from '@shared/auth/policies';
+import type { Role } from '@shared/auth/roles';
+import { generateOneTimeToken, hashOneTimeToken } from '@server/auth/tokens';
+import { invitations } from '@server/db/schema/invitations';
+import { mailMessages } from '@server/db/schema/mail-messages';
+import { passwordResetTokens } from '@server/db/schema/password-reset-tokens';
+import { queueItems } from '@server/db/schema/queue-items';
+import { channels } from '@server/db/schema/stations';
+import { inboxEntries } from '@server/db/schema/supervisor';
+import { windows } from '@server/db/schema/uploads';
+import { users } from '@server/db/schema/users';
+import { onItemsCreated } from '@server/features/events/candidate-events';
+import { createItem } from '@tests/setup/queue-fixtures';
+import { call, demoPassword, type Principal, type World } from '@tests/server/support/world';
 
 /** A concrete request of a matrix row. */
 export type MatrixRequest = {

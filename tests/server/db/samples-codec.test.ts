@@ -1,7 +1,7 @@
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import { decodeStoredSamples, encodeSamples, fitsInt32, isTaggedSamples, SAMPLES_HEADER_BYTES } from '../../../server/db/samples-codec';
-import { samplesToBytes } from '../../../server/features/ingest/ingest-upload';
+import { decodeStoredSamples, encodeSamples, fitsInt32, isTaggedSamples, SAMPLES_HEADER_BYTES } from '@server/db/samples-codec';
+import { samplesToBytes } from '@server/features/ingest/ingest-upload';
 
 describe('stored samples codec', () => {
   it('counts become a tagged int32 blob: header bytes, then two’s-complement little-endian int32 (IEEE/ISO C int32_t, LE)', () => {

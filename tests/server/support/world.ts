@@ -6,16 +6,16 @@
 import { desc, eq } from 'drizzle-orm';
 import type { Express } from 'express';
 import request from 'supertest';
-import type { Role } from '../../../shared/auth/roles';
-import { createApp } from '../../../server/app';
-import { hashPassword } from '../../../server/auth/password';
-import { createSessionStore, sessionCookieName, type SessionStore } from '../../../server/auth/sessions';
-import { generateUserId } from '../../../server/auth/tokens';
-import { mailMessages } from '../../../server/db/schema/mail-messages';
-import { stationAssignments, stations } from '../../../server/db/schema/stations';
-import { userRoles, users } from '../../../server/db/schema/users';
-import { demoUsers, seedDemo } from '../../../server/db/seed-demo';
-import { createTestContext, type TestContext } from '../../setup/test-app';
+import type { Role } from '@shared/auth/roles';
+import { createApp } from '@server/app';
+import { hashPassword } from '@server/auth/password';
+import { createSessionStore, sessionCookieName, type SessionStore } from '@server/auth/sessions';
+import { generateUserId } from '@server/auth/tokens';
+import { mailMessages } from '@server/db/schema/mail-messages';
+import { stationAssignments, stations } from '@server/db/schema/stations';
+import { userRoles, users } from '@server/db/schema/users';
+import { demoUsers, seedDemo } from '@server/db/seed-demo';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 /** The demo password the test context seeds (SEISIFT_DEMO_PASSWORD in createTestContext). */
 export const demoPassword = 'kestrel-demo-pass';

@@ -1,7 +1,7 @@
 import type { QueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import type { ChangeMessage } from '../../../../shared/realtime';
-import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '../../../../shared/schemas/queue';
+import type { ChangeMessage } from '@shared/realtime';
+import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '@shared/schemas/queue';
 import { getQueuePage, type QueueFilters, type QueueListData } from './get-queue';
 
 /**

@@ -3,8 +3,8 @@
  * on the next request, the users list, audit filters and paging, 400s naming the field.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { recordAudit } from '../../../../server/features/audit/audit';
-import { call, createWorld, type World } from '../../support/world';
+import { recordAudit } from '@server/features/audit/audit';
+import { call, createWorld, type World } from '@tests/server/support/world';
 
 describe('admin and audit API', () => {
   let w: World;

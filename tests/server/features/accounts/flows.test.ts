@@ -6,11 +6,11 @@
 import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditLog } from '../../../../server/db/schema/audit-log';
-import { invitations } from '../../../../server/db/schema/invitations';
-import { passwordResetTokens } from '../../../../server/db/schema/password-reset-tokens';
-import { sessions } from '../../../../server/db/schema/sessions';
-import { call, createWorld, demoPassword, latestMailTo, sessionCookieFrom, tokenFromMail, type World } from '../../support/world';
+import { auditLog } from '@server/db/schema/audit-log';
+import { invitations } from '@server/db/schema/invitations';
+import { passwordResetTokens } from '@server/db/schema/password-reset-tokens';
+import { sessions } from '@server/db/schema/sessions';
+import { call, createWorld, demoPassword, latestMailTo, sessionCookieFrom, tokenFromMail, type World } from '@tests/server/support/world';
 
 const sha256 = (s: string) => createHash('sha256').update(s).digest('hex');
 

@@ -9,7 +9,7 @@ import {
   isCandidateEvent,
   maxAllowedLagS,
   type Arrival,
-} from '../../../../server/features/events/candidate-events';
+} from '@server/features/events/candidate-events';
 
 // Hand-worked: one degree of arc on a sphere of radius 6371 km is 6371·π/180 = 111.19492664 km;
 // a quarter meridian is 6371·π/2 = 10007.543398 km (geometry of the sphere; R = 6371 km is common practice).

@@ -1,7 +1,7 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createApp } from '../../../../server/app';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
+import { createApp } from '@server/app';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 describe('GET /api/health (real MariaDB)', () => {
   let ctx: TestContext;

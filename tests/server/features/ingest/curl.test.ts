@@ -4,11 +4,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { uploadResponseSchema } from '../../../../shared/schemas/upload';
-import { startServer, type RunningServer } from '../../../../server/index';
-import { encodeMiniSeed2 } from '../../../../server/formats/mseed2-writer';
-import { createStation, createToken, upsertChannel, type Actor } from '../../../../server/features/stations/station-registry';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
+import { uploadResponseSchema } from '@shared/schemas/upload';
+import { startServer, type RunningServer } from '@server/index';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { createStation, createToken, upsertChannel, type Actor } from '@server/features/stations/station-registry';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 const run = promisify(execFile);
 

@@ -1,18 +1,18 @@
 import { count, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { queueItems } from '../../../../server/db/schema/queue-items';
-import { uploads } from '../../../../server/db/schema/uploads';
-import type { ChannelResult } from '../../../../server/dsp/pipeline';
-import { pazMagnitude } from '../../../../server/dsp/response';
-import { encodeMiniSeed3 } from '../../../../server/formats/mseed3-writer';
-import { createAnalysisPool, type AnalysisPool } from '../../../../server/jobs/analysis-pool';
-import { createLogger } from '../../../../server/logger';
-import { analysisOptionsFor, bytesToSamples, ingestFile, noiseLevel, overallStatus, samplesToBytes, type IngestDeps } from '../../../../server/features/ingest/ingest-upload';
-import { stationHealth } from '../../../../server/features/stations/station-health';
-import { createStation, stationsByKeys, upsertChannel, type Actor } from '../../../../server/features/stations/station-registry';
-import { responseFromStationXml } from '../../../../server/features/stations/stationxml-import';
-import { createPerson } from '../../../setup/queue-fixtures';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
+import { queueItems } from '@server/db/schema/queue-items';
+import { uploads } from '@server/db/schema/uploads';
+import type { ChannelResult } from '@server/dsp/pipeline';
+import { pazMagnitude } from '@server/dsp/response';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
+import { createLogger } from '@server/logger';
+import { analysisOptionsFor, bytesToSamples, ingestFile, noiseLevel, overallStatus, samplesToBytes, type IngestDeps } from '@server/features/ingest/ingest-upload';
+import { stationHealth } from '@server/features/stations/station-health';
+import { createStation, stationsByKeys, upsertChannel, type Actor } from '@server/features/stations/station-registry';
+import { responseFromStationXml } from '@server/features/stations/stationxml-import';
+import { createPerson } from '@tests/setup/queue-fixtures';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 const system: Actor = { userId: null, label: 'test', ipAddress: null };
 

@@ -1,11 +1,11 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WebSocket } from 'ws';
-import { serverMessageSchema, type ServerMessage } from '../../../../shared/realtime';
-import { startServer, type RunningServer } from '../../../../server/index';
-import { encodeMiniSeed3 } from '../../../../server/formats/mseed3-writer';
-import { createStation, upsertChannel, type Actor } from '../../../../server/features/stations/station-registry';
-import { createPerson, type TestPerson } from '../../../setup/queue-fixtures';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
+import { serverMessageSchema, type ServerMessage } from '@shared/realtime';
+import { startServer, type RunningServer } from '@server/index';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
+import { createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 /**
  * The upload → live queue path over a real http server: a signed-in analyst's websocket receives the

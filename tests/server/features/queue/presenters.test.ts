@@ -2,15 +2,15 @@ import { eq } from 'drizzle-orm';
 import type { Express } from 'express';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createApp } from '../../../../server/app';
-import { queueItems } from '../../../../server/db/schema/queue-items';
-import { stations } from '../../../../server/db/schema/stations';
-import { windows } from '../../../../server/db/schema/uploads';
-import { loadQueueRow } from '../../../../server/features/queue/presenters';
-import { getCandidateEvent, onItemsCreated } from '../../../../server/features/events/candidate-events';
-import { queuePageSchema } from '../../../../shared/schemas/queue';
-import { createItem, createPerson, ensureStation, type TestPerson } from '../../../setup/queue-fixtures';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
+import { createApp } from '@server/app';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stations } from '@server/db/schema/stations';
+import { windows } from '@server/db/schema/uploads';
+import { loadQueueRow } from '@server/features/queue/presenters';
+import { getCandidateEvent, onItemsCreated } from '@server/features/events/candidate-events';
+import { queuePageSchema } from '@shared/schemas/queue';
+import { createItem, createPerson, ensureStation, type TestPerson } from '@tests/setup/queue-fixtures';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 /*
  * Queue rows name the candidate event their item belongs to (issue 7: "The queue and review

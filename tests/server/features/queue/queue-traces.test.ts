@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { bucketFor, decodeSamples, minMaxDecimate } from '../../../../server/features/queue/queue-traces';
+import { bucketFor, decodeSamples, minMaxDecimate } from '@server/features/queue/queue-traces';
 
 describe('display decimation (min/max per bucket)', () => {
   it('hand-worked: each bucket gives its min and max in time order, one point when they coincide', () => {

@@ -1,10 +1,10 @@
 import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditLog } from '../../../../server/db/schema/audit-log';
-import { queueItems } from '../../../../server/db/schema/queue-items';
-import { claimItem, keepClaimAlive, lapseIdleClaims, releaseItem } from '../../../../server/features/queue/queue-transitions';
-import { createTestDatabase, type TestDatabase } from '../../../setup/test-db';
-import { createItem, createPerson, type TestPerson } from '../../../setup/queue-fixtures';
+import { auditLog } from '@server/db/schema/audit-log';
+import { queueItems } from '@server/db/schema/queue-items';
+import { claimItem, keepClaimAlive, lapseIdleClaims, releaseItem } from '@server/features/queue/queue-transitions';
+import { createTestDatabase, type TestDatabase } from '@tests/setup/test-db';
+import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 
 describe('queue transitions: claim lapse (real MariaDB)', () => {
   let database: TestDatabase;

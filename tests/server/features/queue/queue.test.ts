@@ -2,15 +2,15 @@ import { and, eq } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Express } from 'express';
-import { queuePageSchema, queueQuerySchema, queueRowMatches, queueRowSchema, queueItemDetailSchema, tracesResponseSchema, type QueueRow } from '../../../../shared/schemas/queue';
-import { createApp } from '../../../../server/app';
-import { auditLog } from '../../../../server/db/schema/audit-log';
-import { changeLog } from '../../../../server/db/schema/change-log';
-import { queueItems } from '../../../../server/db/schema/queue-items';
-import { defaultProcessingProfile } from '../../../../shared/schemas/processing-profile';
-import { preprocessTrace } from '../../../../server/dsp/preprocess';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
-import { createItem, createPerson, ensureStation, syntheticStreams, type TestPerson } from '../../../setup/queue-fixtures';
+import { queuePageSchema, queueQuerySchema, queueRowMatches, queueRowSchema, queueItemDetailSchema, tracesResponseSchema, type QueueRow } from '@shared/schemas/queue';
+import { createApp } from '@server/app';
+import { auditLog } from '@server/db/schema/audit-log';
+import { changeLog } from '@server/db/schema/change-log';
+import { queueItems } from '@server/db/schema/queue-items';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
+import { preprocessTrace } from '@server/dsp/preprocess';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { createItem, createPerson, ensureStation, syntheticStreams, type TestPerson } from '@tests/setup/queue-fixtures';
 
 const origin = 'http://127.0.0.1';
 

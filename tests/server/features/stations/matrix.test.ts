@@ -3,12 +3,12 @@ import type { Express } from 'express';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { createApp } from '../../../../server/app';
-import { encodeMiniSeed3 } from '../../../../server/formats/mseed3-writer';
-import { createAnalysisPool, type AnalysisPool } from '../../../../server/jobs/analysis-pool';
-import { createStation, createToken, upsertChannel, type Actor } from '../../../../server/features/stations/station-registry';
-import { createPerson, type TestPerson } from '../../../setup/queue-fixtures';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
+import { createApp } from '@server/app';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
+import { createStation, createToken, upsertChannel, type Actor } from '@server/features/stations/station-registry';
+import { createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 /**
  * Role × route matrix for every station, token, import, upload and OpenAPI route: the status each
@@ -43,7 +43,7 @@ describe('role × route matrix: stations, tokens, import, uploads, OpenAPI', () 
     people.supervisor = await createPerson(db, { roles: ['supervisor'] });
     people.admin = await createPerson(db, { roles: ['admin'] });
     // The import rows apply an already-applied document (nothing changes), so only access is tested.
-    const { previewStationXml, applyStationXml } = await import('../../../../server/features/stations/stationxml-import');
+    const { previewStationXml, applyStationXml } = await import('@server/features/stations/stationxml-import');
     const { preview } = await previewStationXml(db, xml, null);
     await applyStationXml(db, xml, preview.previewHash, { roles: ['admin'], stationIds: [], isOperator: false }, system);
   });

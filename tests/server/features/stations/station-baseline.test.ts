@@ -1,13 +1,13 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { queueItems } from '../../../../server/db/schema/queue-items';
-import { windowFeatures } from '../../../../server/db/schema/window-features';
-import { noiseSelect, stationBaseline } from '../../../../server/features/stations/station-baseline';
-import { createItem, ensureStation } from '../../../setup/queue-fixtures';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
-import type { ItemState } from '../../../../shared/schemas/item-states';
-import type { Flag } from '../../../../shared/schemas/flags';
+import { queueItems } from '@server/db/schema/queue-items';
+import { windowFeatures } from '@server/db/schema/window-features';
+import { noiseSelect, stationBaseline } from '@server/features/stations/station-baseline';
+import { createItem, ensureStation } from '@tests/setup/queue-fixtures';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import type { ItemState } from '@shared/schemas/item-states';
+import type { Flag } from '@shared/schemas/flags';
 
 describe('station noise baseline (real MariaDB)', () => {
   let ctx: TestContext;

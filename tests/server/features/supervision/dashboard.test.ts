@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { dashboard, medianOf } from '../../../../server/features/supervision/dashboard';
-import { claimItem, dismissItem, labelItem } from '../../../../server/features/queue/queue-transitions';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
-import { createItem, createPerson } from '../../../setup/queue-fixtures';
+import { dashboard, medianOf } from '@server/features/supervision/dashboard';
+import { claimItem, dismissItem, labelItem } from '@server/features/queue/queue-transitions';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { createItem, createPerson } from '@tests/setup/queue-fixtures';
 
 // Hand-worked medians (definition: the middle value of the sorted list, or the mean of the two
 // middle values for an even count — common practice).

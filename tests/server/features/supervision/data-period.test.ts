@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { latestWindows } from '../../../../server/features/supervision/data-period';
-import { createItem, ensureStation } from '../../../setup/queue-fixtures';
-import { createTestContext, type TestContext } from '../../../setup/test-app';
+import { latestWindows } from '@server/features/supervision/data-period';
+import { createItem, ensureStation } from '@tests/setup/queue-fixtures';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 /**
  * latestWindows against the real MariaDB: the latest window start over all items and over the

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { escalationSubject, itemLink } from '../../../../server/features/supervision/escalations';
+import { escalationSubject, itemLink } from '@server/features/supervision/escalations';
 
 describe('escalation e-mail parts', () => {
   it('puts stream, window time and flag in the subject', () => {

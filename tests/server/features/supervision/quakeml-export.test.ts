@@ -1,8 +1,8 @@
 import { execFileSync } from 'node:child_process';
 import { XMLParser, XMLValidator } from 'fast-xml-parser';
 import { describe, expect, it } from 'vitest';
-import { buildCatalogueCsv, catalogueCsvColumns, csvField } from '../../../../server/features/supervision/catalogue-csv';
-import { buildQuakeml, waveformId, xmlEscape, type CatalogueEvent } from '../../../../server/features/supervision/quakeml-export';
+import { buildCatalogueCsv, catalogueCsvColumns, csvField } from '@server/features/supervision/catalogue-csv';
+import { buildQuakeml, waveformId, xmlEscape, type CatalogueEvent } from '@server/features/supervision/quakeml-export';
 
 const events: CatalogueEvent[] = [
   {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { defaultProcessingProfile } from '../../../../shared/schemas/processing-profile';
-import type { ChannelFeatures } from '../../../../server/dsp/score';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
+import type { ChannelFeatures } from '@server/dsp/score';
 import {
   confusion,
   evaluateThresholds,
@@ -12,7 +12,7 @@ import {
   truthOf,
   type LabelledEvidence,
   type Truth,
-} from '../../../../server/features/supervision/thresholds';
+} from '@server/features/supervision/thresholds';
 
 const profile = defaultProcessingProfile;
 const base = { eventZ: 3, noiseZ: 2, centroidMaxFactor: 1.5 };

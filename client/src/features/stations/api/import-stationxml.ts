@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import { apiErrorBodySchema } from '../../../../../shared/api-error';
+import { apiErrorBodySchema } from '@shared/api-error';
 import { StationApiError } from './stations';
 
 const diffSchema = z.object({ field: z.string(), from: z.unknown(), to: z.unknown() });
