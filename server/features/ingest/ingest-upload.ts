@@ -483,7 +483,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
       itemIds: created.map((c) => c.itemId),
     });
     // Last writes of the transaction: the change-log rows (they lock the counter until commit).
-    // The summary is the full queue row (server/presenters/queue-item.ts), built from what was
+    // The summary is the full queue row (server/features/queue/presenters.ts), built from what was
     // just written (a new item has no claimer, writer, label or candidate event yet), so open
     // queues insert it in place without refetching their lists.
     for (const c of created) {

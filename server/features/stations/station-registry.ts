@@ -327,7 +327,7 @@ export async function revokeToken(db: Database, stationId: number, tokenId: numb
 export const TOKEN_LAST_USED_RESOLUTION_MS = 60_000;
 
 /**
- * The BearerResolver for `authenticate` (server/middleware/auth.ts): hashes the presented token
+ * The BearerResolver for `authenticate` (server/auth/authenticate.ts): hashes the presented token
  * with SHA-256, finds an unrevoked ingest token with that hash and records its last use (to the
  * minute: `TOKEN_LAST_USED_RESOLUTION_MS`). Unknown
  * or revoked tokens resolve to null (the middleware answers 401).

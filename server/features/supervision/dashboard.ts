@@ -15,7 +15,7 @@ import { truthOf } from './thresholds';
  *   escalation (audit rows `queue.labelled|dismissed|escalated`), minutes, by the day of the triage;
  * - analyst workload: triage actions per analyst over the period;
  * - false-alarm rate per day: of the items flagged `likely event` that arrived that day and now have
- *   a ground truth (server/services/thresholds.ts `truthOf`), the share that turned out noise.
+ *   a ground truth (server/features/supervision/thresholds.ts `truthOf`), the share that turned out noise.
  */
 
 /** The dashboard's numbers. */

@@ -46,7 +46,7 @@ describe('route matrix', () => {
     expect(new Set(rows).size, 'duplicate rows').toBe(rows.length);
     const missing = mounted.filter((r) => !rows.includes(r));
     const stale = rows.filter((r) => !mounted.includes(r));
-    expect(missing, 'routes without a matrix row: add them to tests/server/routes/route-matrix.ts').toEqual([]);
+    expect(missing, 'routes without a matrix row: add them to tests/server/app/route-matrix.ts').toEqual([]);
     expect(stale, 'matrix rows for routes that are not mounted').toEqual([]);
     expect(mounted.length).toBeGreaterThan(20);
   });

@@ -22,7 +22,7 @@ export const candidateMemberSchema = z.object({
 /** A candidate event member. */
 export type CandidateMember = z.infer<typeof candidateMemberSchema>;
 
-/** A candidate event with the members the viewer may see (server/services/candidate-events.ts). */
+/** A candidate event with the members the viewer may see (server/features/events/candidate-events.ts). */
 export const candidateEventSchema = z.object({
   id: z.number().int(),
   anchorItemId: z.number().int(),

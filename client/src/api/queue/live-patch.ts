@@ -115,7 +115,7 @@ export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['ki
   if (kind === 'created') liveArrivals.add(row.id);
 }
 
-/** Summary of a candidate_event change (server/services/candidate-events.ts regroupAround). */
+/** Summary of a candidate_event change (server/features/events/candidate-events.ts regroupAround). */
 const groupSummarySchema = z.object({ itemIds: z.array(z.number().int()), stationCount: z.number().int() });
 
 /**

@@ -14,7 +14,7 @@ import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 /*
  * Queue rows name the candidate event their item belongs to (issue 7: "The queue and review
- * screens show the group"). Geometry as in tests/server/routes/supervisor/supervisor.test.ts:
+ * screens show the group"). Geometry as in tests/server/features/supervision/supervisor.test.ts:
  * stations on a meridian 0.1° apart (11.119 km, hand-worked 6371·π/1800 km per 0.1°); allowed lag
  * between neighbours 11.119/3 + 2 = 5.706 s. Arrivals KV11 0 s, KV12 3 s, KV13 7 s form one event
  * of 3 stations; KV14 at 30 s (23 s after KV13) stays alone.

@@ -66,7 +66,7 @@ export const stationQuery = (id: number) =>
     queryFn: () => stationFetch(z.object({ station: stationDetailClientSchema, baseline: baselineViewSchema }), `/api/stations/${id}`),
   });
 
-/** The health answer (server/services/station-health.ts StationHealth). */
+/** The health answer (server/features/stations/station-health.ts StationHealth). */
 export const stationHealthSchema = z.object({
   psd: z.array(
     z.object({
