@@ -4,12 +4,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { PLACEHOLDER_STREAM_ID, runAnalyzeCli } from '../../../server/cli/analyze';
-import { analyzeWindow } from '../../../server/dsp/pipeline';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { encodeMiniSeed2 } from '../../../server/formats/mseed2-writer';
-import { defaultProcessingProfile } from '../../../shared/schemas/processing-profile';
-import { makeSignal } from '../dsp/fixture-signal';
+import { PLACEHOLDER_STREAM_ID, runAnalyzeCli } from '@server/cli/analyze';
+import { analyzeWindow } from '@server/dsp/pipeline';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
+import { makeSignal } from '@tests/server/dsp/fixture-signal';
 
 const dir = mkdtempSync(join(tmpdir(), 'seisift-cli-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { nhnmDb, nlnmDb, noiseModelBreakpoints, noiseModelPosition } from '../../../server/dsp/noise-models';
+import { nhnmDb, nlnmDb, noiseModelBreakpoints, noiseModelPosition } from '@server/dsp/noise-models';
 
 describe('Peterson (1993) NLNM / NHNM (USGS OFR 93-322; values from memory of the published tables)', () => {
   it('known values at a few periods (from memory)', () => {

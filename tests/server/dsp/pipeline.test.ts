@@ -1,10 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { BandError } from '../../../server/dsp/bands';
-import { analyzeWindow, AnalysisError } from '../../../server/dsp/pipeline';
-import { computeBaseline, scoreWindow } from '../../../server/dsp/score';
-import { responseMagnitude } from '../../../server/dsp/response';
-import { defaultProcessingProfile, processingProfileSchema } from '../../../shared/schemas/processing-profile';
+import { BandError } from '@server/dsp/bands';
+import { analyzeWindow, AnalysisError } from '@server/dsp/pipeline';
+import { computeBaseline, scoreWindow } from '@server/dsp/score';
+import { responseMagnitude } from '@server/dsp/response';
+import { defaultProcessingProfile, processingProfileSchema } from '@shared/schemas/processing-profile';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema, stream, type SignalSpec } from './fixture-signal';
 
 /** One channel through the engine's chain, as make-scipy-fixtures.py's `engine_channel` re-implements it. */

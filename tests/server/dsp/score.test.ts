@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { computeBaseline, leadChannelIndex, NETWORK_DEFAULT_BASELINE, robustStat, robustZ, scoreWindow, type ChannelFeatures, type SignalSpectrumFeatures } from '../../../server/dsp/score';
-import { defaultProcessingProfile, processingProfileSchema } from '../../../shared/schemas/processing-profile';
+import { computeBaseline, leadChannelIndex, NETWORK_DEFAULT_BASELINE, robustStat, robustZ, scoreWindow, type ChannelFeatures, type SignalSpectrumFeatures } from '@server/dsp/score';
+import { defaultProcessingProfile, processingProfileSchema } from '@shared/schemas/processing-profile';
 
 const baseline = { log10Ratio: { median: 0.2, mad: 0.1 }, staLtaPeak: { median: 2, mad: 0.3 }, count: 40 };
 

@@ -1,8 +1,8 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { hannPeriodic, largestPowerOfTwoAtMost, planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd } from '../../../server/dsp/spectrum';
-import { detrendLinear } from '../../../server/dsp/preprocess';
+import { hannPeriodic, largestPowerOfTwoAtMost, planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd } from '@server/dsp/spectrum';
+import { detrendLinear } from '@server/dsp/preprocess';
 import { lcgUniform, makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 const fixture = readFixture(

@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { butterworthSos } from '../../../server/dsp/butterworth';
-import { sosfilt } from '../../../server/dsp/sosfilt';
-import { classicStaLta, delayedStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from '../../../server/dsp/sta-lta';
+import { butterworthSos } from '@server/dsp/butterworth';
+import { sosfilt } from '@server/dsp/sosfilt';
+import { classicStaLta, delayedStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from '@server/dsp/sta-lta';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 const trig = z.array(z.tuple([z.number(), z.number().nullable()]));

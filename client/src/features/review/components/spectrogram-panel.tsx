@@ -1,6 +1,6 @@
 import { useEffect, useMemo, useRef } from 'react';
-import type { TracesResponse } from '../../../../../shared/schemas/queue';
-import { colormapGradient, colormapTable } from '../lib/colormap';
+import type { TracesResponse } from '@shared/schemas/queue';
+import { colormapGradient, colormapTable } from '@client/features/review/lib/colormap';
 
 type Sg = NonNullable<TracesResponse['channels'][number]['spectrogram']>;
 

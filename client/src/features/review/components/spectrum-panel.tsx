@@ -1,7 +1,7 @@
 import { useCallback, useMemo } from 'react';
 import type uPlot from 'uplot';
-import { PlotFrame } from '../../../components/ui/plot-frame';
-import type { AnalysisView } from '../api/get-item';
+import { PlotFrame } from '@client/components/ui/plot-frame';
+import type { AnalysisView } from '@client/features/review/api/get-item';
 
 type Channel = AnalysisView['channels'][number];
 
