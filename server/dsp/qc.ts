@@ -1,16 +1,18 @@
-import type { StreamDiscontinuity } from '../formats/types';
+import type { DecodeNote, StreamDiscontinuity } from '../formats/types';
 
 /**
  * Data-quality checks of one channel, in words a technician understands.
  *
  * Gaps are reported, never filled: the decoders concatenate the records' samples as they came, so a
- * gapped stream is analysed as if continuous (the spectrum and STA/LTA see the records joined) and
- * the gap finding says so. No sample is fabricated.
+ * gapped stream would be analysed as if continuous (the spectrum and STA/LTA see the records joined)
+ * and the gap finding says so. No sample is fabricated. Uploads never get here with a gap or a true
+ * overlap: the ingest refuses such windows (server/formats/placement.ts); the command-line analysis
+ * still accepts them with these findings.
  */
 
 /** One quality finding. */
 export interface QcFinding {
-  /** Stable code for programs: gap, overlap, clipped, flat-top, flat-line, spikes, dc-offset, sample-rate, short-window. */
+  /** Stable code for programs: gap, overlap, clipped, flat-top, flat-line, spikes, dc-offset, sample-rate, short-window, duplicate-record, duplicate-samples, empty-record. */
   code: QcCode;
   severity: 'info' | 'warning' | 'error';
   /** What was found, for a person. */
@@ -33,7 +35,8 @@ export type QcCode =
   | 'spikes'
   | 'dc-offset'
   | 'sample-rate'
-  | 'short-window';
+  | 'short-window'
+  | DecodeNote['code'];
 
 /** Parameters of the checks (the profile's `qc` part, plus the LTA length for the short-window check). */
 export interface QcOptions {
@@ -47,6 +50,8 @@ export interface QcOptions {
   expectedSampleRateHz?: number | undefined;
   /** Samples needed for a full STA/LTA (the LTA window). */
   minSamples?: number;
+  /** What the decoder dropped or noticed while placing the samples (repeated records, empty records). */
+  decodeNotes?: readonly DecodeNote[] | undefined;
 }
 
 const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toString();
@@ -66,7 +71,9 @@ const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toS
  *   stand alone (4× the residuals 2–10 samples away), so a strong high-frequency signal is not a spike;
  * - dc-offset: |mean| > 5 × the standard deviation (info), or > 10 % of full scale when given (warning);
  * - sample-rate: differs from the registry's by more than 0.1 % (error);
- * - short-window: fewer samples than the LTA window (warning: no STA/LTA ratio).
+ * - short-window: fewer samples than the LTA window (warning: no STA/LTA ratio);
+ * - duplicate-record / duplicate-samples / empty-record: the decoder's notes (info): repeated
+ *   samples it dropped so the rest sit at their times, data records that claim 0 samples.
  */
 export function qualityChecks(
   samples: Float64Array,
@@ -88,6 +95,9 @@ export function qualityChecks(
       sampleIndex: d.sampleIndex,
       time: t(d.sampleIndex),
     });
+  }
+  for (const note of opts.decodeNotes ?? []) {
+    out.push({ code: note.code, severity: 'info', message: note.message, sampleIndex: note.sampleIndex, time: t(note.sampleIndex), count: note.count });
   }
   if (opts.expectedSampleRateHz !== undefined && Math.abs(sampleRateHz - opts.expectedSampleRateHz) > 1e-3 * opts.expectedSampleRateHz) {
     out.push({

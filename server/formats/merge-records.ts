@@ -1,4 +1,5 @@
-import { WaveformParseError, type DecodedStream, type StreamDiscontinuity } from './types';
+import { formatIsoTimeUs } from './iso-time';
+import { WaveformParseError, type DecodeNote, type DecodedStream, type StreamDiscontinuity } from './types';
 
 /** One decoded data record, before records are merged into streams. */
 export interface DecodedRecord {
@@ -20,27 +21,52 @@ export interface DecodedRecord {
   extraHeaders?: unknown;
 }
 
+/** Encodings that carry a sampled time series: a record in one of them with 0 samples is "empty". */
+const SAMPLE_ENCODINGS = new Set(['int16', 'int32', 'float32', 'float64', 'steim1', 'steim2']);
+
+const fmt = (v: number): string => Number(v.toPrecision(6)).toString();
+const recordName = (r: DecodedRecord): string => `record ${r.recordIndex + 1} at byte ${r.offset}`;
+
 /**
  * Merges data records into one stream per `NET.STA.LOC.CHA`, in order of first appearance in the
- * file; each stream's records are sorted by start time (stable, so equal times keep file order).
+ * file, placing every sample at its time on the stream's grid `start + i / rate`.
  *
- * A record whose start differs from the previous record's end (start + n / rate) by more than half
- * a sample interval starts a discontinuity: a gap if later, an overlap if earlier (tolerance of
- * half a sample is common practice). Overlapping samples are kept as they come, in time order of
- * record starts, and reported; nothing is dropped or interpolated.
+ * Each stream's records are sorted by start time (stable, so equal times keep file order) and
+ * compared with where the grid expects them (tolerance: half a sample interval, libmseed's default,
+ * common practice):
+ * - on time: the samples follow;
+ * - later: a gap, kept as a discontinuity (nothing is filled in); data records of the stream that
+ *   claim 0 samples and start inside the gap are named in its `detail` (they are why it is there);
+ * - earlier (an overlap): the overlapping samples are compared with those already placed at the
+ *   same times. All identical (a repeated record, or a record re-sent from a little earlier): the
+ *   repeats are dropped and a `duplicate-record` / `duplicate-samples` note says so; any value
+ *   different: a true overlap, kept as a discontinuity naming the first differing sample.
+ * After a discontinuity the grid restarts at the record's own start. A stream with discontinuities
+ * cannot be stored as one start time and rate: `placementProblems` (placement.ts) names them.
  *
- * Records carrying no samples are skipped. The data-quality indicator is not part of the stream id.
- * A stream whose records use several encodings gets them joined with `+` (e.g. `steim2+int32`);
- * its extra headers are those of its earliest record.
+ * Records carrying no samples are not placed. Data records (a sample encoding and a positive rate)
+ * that claim 0 samples are reported: inside a gap in its detail, elsewhere as an `empty-record`
+ * note. Text and other records without a sampled series (e.g. a LOG channel) are skipped silently.
+ * The data-quality indicator is not part of the stream id. A stream whose records use several
+ * encodings gets them joined with `+` (e.g. `steim2+int32`); its extra headers are those of its
+ * earliest record.
  *
  * @throws WaveformParseError when one stream changes sample rate (relative difference > 1e-4, the
  *   tolerance libmseed uses by default) or has a non-positive rate while carrying samples
  */
 export function mergeRecords(records: DecodedRecord[], format: DecodedStream['format']): DecodedStream[] {
   const groups = new Map<string, DecodedRecord[]>();
+  const empties = new Map<string, DecodedRecord[]>();
   for (const r of records) {
-    if (r.samples.length === 0) continue;
     const id = `${r.network}.${r.station}.${r.location}.${r.channel}`;
+    if (r.samples.length === 0) {
+      if (r.sampleRateHz > 0 && Number.isFinite(r.sampleRateHz) && SAMPLE_ENCODINGS.has(r.encoding)) {
+        const list = empties.get(id);
+        if (list) list.push(r);
+        else empties.set(id, [r]);
+      }
+      continue;
+    }
     if (!(r.sampleRateHz > 0) || !Number.isFinite(r.sampleRateHz)) {
       throw new WaveformParseError(
         `record ${r.recordIndex + 1} (${id}) carries ${r.samples.length} samples but its sample rate is ${r.sampleRateHz}`,
@@ -56,53 +82,137 @@ export function mergeRecords(records: DecodedRecord[], format: DecodedStream['fo
     list.sort((a, b) => a.startTimeUs - b.startTimeUs);
     const first = list[0];
     if (!first) continue;
-    let total = 0;
-    for (const r of list) total += r.samples.length;
-    const samples = new Float64Array(total);
-    const discontinuities: StreamDiscontinuity[] = [];
-    let index = 0;
-    let prev: DecodedRecord | undefined;
-    const encodings = new Set<string>();
-    for (const r of list) {
-      if (Math.abs(1 - r.sampleRateHz / first.sampleRateHz) > 1e-4) {
-        throw new WaveformParseError(
-          `stream ${id} changes sample rate from ${first.sampleRateHz} Hz to ${r.sampleRateHz} Hz at record ${r.recordIndex + 1}`,
-          r.offset,
-        );
-      }
-      if (prev) {
-        const expected = prev.startTimeUs + (prev.samples.length * 1e6) / prev.sampleRateHz;
-        const halfSampleUs = 0.5e6 / first.sampleRateHz;
-        if (Math.abs(r.startTimeUs - expected) > halfSampleUs) {
-          const expectedTimeUs = Math.round(expected);
-          discontinuities.push({
-            expectedTimeUs,
-            actualTimeUs: r.startTimeUs,
-            durationS: (r.startTimeUs - expectedTimeUs) / 1e6,
-            sampleIndex: index,
-          });
-        }
-      }
-      samples.set(r.samples, index);
-      index += r.samples.length;
-      encodings.add(r.encoding);
-      prev = r;
-    }
-    const stream: DecodedStream = {
-      id,
-      network: first.network,
-      station: first.station,
-      location: first.location,
-      channel: first.channel,
-      sampleRateHz: first.sampleRateHz,
-      startTimeUs: first.startTimeUs,
-      samples,
-      discontinuities,
-      encoding: [...encodings].join('+'),
-      format,
-    };
+    const stream = placeRecords(id, list, empties.get(id) ?? [], format);
     if (first.extraHeaders !== undefined) stream.extraHeaders = first.extraHeaders;
     streams.push(stream);
   }
   return streams;
+}
+
+/** Places one stream's records (sorted by start, at least one) on its sample grid; see mergeRecords. */
+function placeRecords(id: string, list: DecodedRecord[], empties: DecodedRecord[], format: DecodedStream['format']): DecodedStream {
+  const first = list[0] as DecodedRecord;
+  const rate = first.sampleRateHz;
+  const periodUs = 1e6 / rate;
+  let total = 0;
+  for (const r of list) total += r.samples.length;
+  const samples = new Float64Array(total);
+  const discontinuities: StreamDiscontinuity[] = [];
+  const notes: DecodeNote[] = [];
+  const encodings = new Set<string>();
+  // Grid pieces: sample `index` sits at `startUs + (index - fromIndex) · period` from `fromIndex` on.
+  const pieces: { startUs: number; fromIndex: number }[] = [{ startUs: first.startTimeUs, fromIndex: 0 }];
+  const usedEmpties = new Set<DecodedRecord>();
+  let placed = 0;
+  const place = (from: Float64Array): void => {
+    samples.set(from, placed);
+    placed += from.length;
+  };
+  for (const r of list) {
+    if (Math.abs(1 - r.sampleRateHz / rate) > 1e-4) {
+      throw new WaveformParseError(
+        `stream ${id} changes sample rate from ${rate} Hz to ${r.sampleRateHz} Hz at record ${r.recordIndex + 1}`,
+        r.offset,
+      );
+    }
+    encodings.add(r.encoding);
+    if (placed === 0) {
+      place(r.samples);
+      continue;
+    }
+    const piece = pieces[pieces.length - 1] as { startUs: number; fromIndex: number };
+    const expectedUs = piece.startUs + (placed - piece.fromIndex) * periodUs;
+    const lead = (r.startTimeUs - expectedUs) / periodUs; // in samples: > 0 late, < 0 early
+    if (Math.abs(lead) <= 0.5) {
+      place(r.samples);
+      continue;
+    }
+    if (lead < 0) {
+      // The record begins at sample `at` of what is placed: compare the overlapping samples.
+      const at = placed + Math.round(lead);
+      const overlap = Math.min(placed - at, r.samples.length);
+      let differs = -1;
+      if (at >= piece.fromIndex) {
+        for (let j = 0; j < overlap; j++) {
+          if (samples[at + j] !== r.samples[j]) {
+            differs = j;
+            break;
+          }
+        }
+      }
+      if (at >= piece.fromIndex && differs < 0) {
+        const timeUs = piece.startUs + (at - piece.fromIndex) * periodUs;
+        if (overlap === r.samples.length) {
+          notes.push({
+            code: 'duplicate-record',
+            message: `${recordName(r)} repeats ${overlap} samples already placed from ${formatIsoTimeUs(Math.round(timeUs))} with identical values: dropped`,
+            sampleIndex: at,
+            count: overlap,
+          });
+        } else {
+          notes.push({
+            code: 'duplicate-samples',
+            message: `${recordName(r)} begins ${fmt(overlap / rate)} s (${overlap} samples) before the end of the samples already placed, with identical values there: those ${overlap} dropped, the rest placed after them`,
+            sampleIndex: at,
+            count: overlap,
+          });
+          place(r.samples.subarray(overlap));
+        }
+        continue;
+      }
+      const expectedTimeUs = Math.round(expectedUs);
+      const where =
+        differs >= 0
+          ? `; at ${formatIsoTimeUs(Math.round(piece.startUs + (at + differs - piece.fromIndex) * periodUs))} it holds ${r.samples[differs]} where ${samples[at + differs]} was already placed`
+          : '; it reaches back past an earlier discontinuity';
+      discontinuities.push({
+        expectedTimeUs,
+        actualTimeUs: r.startTimeUs,
+        durationS: (r.startTimeUs - expectedTimeUs) / 1e6,
+        sampleIndex: placed,
+        detail: `overlap of ${fmt((expectedTimeUs - r.startTimeUs) / 1e6)} s: ${recordName(r)} starts at ${formatIsoTimeUs(r.startTimeUs)}, before the end of the samples already placed (${formatIsoTimeUs(expectedTimeUs)}), with different values${where}`,
+      });
+    } else {
+      const expectedTimeUs = Math.round(expectedUs);
+      const inGap = empties.filter((e) => e.startTimeUs >= expectedUs - periodUs / 2 && e.startTimeUs < r.startTimeUs - periodUs / 2);
+      for (const e of inGap) usedEmpties.add(e);
+      const why = inGap.map((e) => `; ${recordName(e)} starts in it and claims 0 samples`).join('');
+      discontinuities.push({
+        expectedTimeUs,
+        actualTimeUs: r.startTimeUs,
+        durationS: (r.startTimeUs - expectedTimeUs) / 1e6,
+        sampleIndex: placed,
+        detail: `gap of ${fmt((r.startTimeUs - expectedTimeUs) / 1e6)} s from ${formatIsoTimeUs(expectedTimeUs)} to ${formatIsoTimeUs(r.startTimeUs)}, before ${recordName(r)}${why}`,
+      });
+    }
+    pieces.push({ startUs: r.startTimeUs, fromIndex: placed });
+    place(r.samples);
+  }
+  for (const e of empties) {
+    if (usedEmpties.has(e)) continue;
+    let piece = pieces[0] as { startUs: number; fromIndex: number };
+    for (const p of pieces) if (p.startUs <= e.startTimeUs) piece = p;
+    const index = Math.max(0, Math.min(placed, piece.fromIndex + Math.round((e.startTimeUs - piece.startUs) / periodUs)));
+    notes.push({
+      code: 'empty-record',
+      message: `${recordName(e)} claims 0 samples at ${formatIsoTimeUs(e.startTimeUs)}: nothing placed from it`,
+      sampleIndex: index,
+      count: 0,
+    });
+  }
+  notes.sort((a, b) => a.sampleIndex - b.sampleIndex);
+  return {
+    id,
+    network: first.network,
+    station: first.station,
+    location: first.location,
+    channel: first.channel,
+    sampleRateHz: rate,
+    startTimeUs: first.startTimeUs,
+    samples: placed === total ? samples : samples.slice(0, placed),
+    discontinuities,
+    ...(notes.length > 0 ? { notes } : {}),
+    encoding: [...encodings].join('+'),
+    format,
+  };
 }

@@ -28,8 +28,8 @@ describe('decodeWaveform format sniffing and refusals', () => {
 
   it('refuses empty, unknown and binary garbage with a clear message', () => {
     expectParseError(new Uint8Array(0), /empty file/u);
-    expectParseError(Uint8Array.of(0x89, 0x50, 0x4e, 0x47, 0, 1, 2, 3), /unrecognised format.*89 50 4e 47/u);
-    expectParseError(new TextEncoder().encode('hello'), /CSV/u);
+    expectParseError(Uint8Array.of(0x89, 0x50, 0x4e, 0x47, 0, 1, 2, 3), /unrecognised binary format.*89 50 4e 47/u);
+    expectParseError(new TextEncoder().encode('hello'), /^this is plain text, not a CSV waveform.*begins "hello"/u);
     expectParseError(Uint8Array.of(0x4d, 0x53, 3), /truncated/u);
   });
 
