@@ -58,8 +58,11 @@ function looksLikeSeedControlHeader(bytes: Uint8Array): boolean {
   return 'VAST'.includes(String.fromCharCode(bytes[6] ?? 0)) && (bytes[7] === 0x20 || bytes[7] === 0x2a);
 }
 
-/** The bytes as text when they are UTF-8 without control characters other than tab, CR, LF. */
-function asText(bytes: Uint8Array): string | undefined {
+/**
+ * The bytes as UTF-8 text, or undefined when they are not UTF-8; `control` is the first control
+ * character other than tab, CR, LF (with its byte offset), which a CSV file must not hold.
+ */
+function asText(bytes: Uint8Array): { text: string; control?: { code: number; at: number } } | undefined {
   let text: string;
   try {
     text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
@@ -67,8 +70,18 @@ function asText(bytes: Uint8Array): string | undefined {
     return undefined;
   }
   // eslint-disable-next-line no-control-regex
-  if (/[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/u.test(text)) return undefined;
-  return text;
+  const m = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/u.exec(text);
+  if (!m) return { text };
+  const code = m[0].charCodeAt(0);
+  return { text, control: { code, at: new TextEncoder().encode(text.slice(0, m.index)).byteLength } };
+}
+
+/** True when at least 95 % of the first 4096 bytes are printable ASCII, tab, CR, LF or UTF-8 (≥ 0x80). */
+function mostlyPrintable(bytes: Uint8Array): boolean {
+  const head = bytes.subarray(0, 4096);
+  let ok = 0;
+  for (const b of head) if ((b >= 0x20 && b !== 0x7f) || b === 0x09 || b === 0x0a || b === 0x0d) ok++;
+  return ok >= 0.95 * head.byteLength;
 }
 
 /** Hex of the first `n` bytes, e.g. `50 4b 03 04`. */
@@ -94,7 +107,14 @@ export function sniffFile(bytes: Uint8Array): FileKind {
   }
   if (bytes.every((b) => b === 0)) return { kind: 'refused', message: `the file holds only zero bytes (${bytes.byteLength} bytes)` };
   const text = asText(bytes);
-  if (text !== undefined) return { kind: 'text', text };
+  if (text?.control && mostlyPrintable(bytes)) {
+    const { code, at } = text.control;
+    return {
+      kind: 'refused',
+      message: `this is text with a control character (byte ${code.toString(16).padStart(2, '0')} hex at byte ${at}), not a clean CSV file: only tab, CR and LF may appear besides printable text`,
+    };
+  }
+  if (text !== undefined && !text.control) return { kind: 'text', text: text.text };
   return {
     kind: 'refused',
     message: `unrecognised binary format: not MiniSEED 2, MiniSEED 3 or CSV text, nor an archive, image or document Seisift can name (first bytes ${firstBytesHex(bytes)})`,
