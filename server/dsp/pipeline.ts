@@ -191,6 +191,7 @@ function analyzeChannel(
     spikeK: profile.qc.spikeK,
     expectedSampleRateHz: opts.expectedSampleRateHz?.[s.id] ?? profile.qc.expectedSampleRateHz,
     minSamples: ltaSamples,
+    decodeNotes: s.notes,
   });
   const warnings: string[] = [];
   const response = opts.sensitivity?.[s.id];

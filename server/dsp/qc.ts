@@ -1,16 +1,18 @@
-import type { StreamDiscontinuity } from '../formats/types';
+import type { DecodeNote, StreamDiscontinuity } from '../formats/types';
 
 /**
  * Data-quality checks of one channel, in words a technician understands.
  *
  * Gaps are reported, never filled: the decoders concatenate the records' samples as they came, so a
- * gapped stream is analysed as if continuous (the spectrum and STA/LTA see the records joined) and
- * the gap finding says so. No sample is fabricated.
+ * gapped stream would be analysed as if continuous (the spectrum and STA/LTA see the records joined)
+ * and the gap finding says so. No sample is fabricated. Uploads never get here with a gap or a true
+ * overlap: the ingest refuses such windows (server/formats/placement.ts); the command-line analysis
+ * still accepts them with these findings.
  */
 
 /** One quality finding. */
 export interface QcFinding {
-  /** Stable code for programs: gap, overlap, clipped, flat-top, flat-line, spikes, dc-offset, sample-rate, short-window. */
+  /** Stable code for programs: gap, overlap, clipped, flat-top, flat-line, spikes, dc-offset, sample-rate, short-window, duplicate-record, duplicate-samples, empty-record. */
   code: QcCode;
   severity: 'info' | 'warning' | 'error';
   /** What was found, for a person. */
@@ -35,7 +37,8 @@ export type QcCode =
   | 'sample-rate'
   | 'short-window'
   | 'flat-segment'
-  | 'dc-step';
+  | 'dc-step'
+  | DecodeNote['code'];
 
 /** Parameters of the checks (the profile's `qc` part, plus the LTA length for the short-window check). */
 export interface QcOptions {
@@ -51,6 +54,8 @@ export interface QcOptions {
   minSamples?: number;
   /** A run of identical samples at least this long is a flat segment (dropout, padding), s; default 0.5. */
   flatSegmentS?: number;
+  /** What the decoder dropped or noticed while placing the samples (repeated records, empty records). */
+  decodeNotes?: readonly DecodeNote[] | undefined;
 }
 
 const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toString();
@@ -76,6 +81,9 @@ const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toS
  * - dc-step: the level jumps and stays (1 s block medians: a change of more than 10 robust σ of the
  *   block-to-block changes between two 3 s stretches that are each steady within a third of the
  *   step; warning) — a mass re-centring, a calibration pulse, a digitiser fault, not an arrival.
+ * - short-window: fewer samples than the LTA window (warning: no STA/LTA ratio);
+ * - duplicate-record / duplicate-samples / empty-record: the decoder's notes (info): repeated
+ *   samples it dropped so the rest sit at their times, data records that claim 0 samples.
  */
 export function qualityChecks(
   samples: Float64Array,
@@ -97,6 +105,9 @@ export function qualityChecks(
       sampleIndex: d.sampleIndex,
       time: t(d.sampleIndex),
     });
+  }
+  for (const note of opts.decodeNotes ?? []) {
+    out.push({ code: note.code, severity: 'info', message: note.message, sampleIndex: note.sampleIndex, time: t(note.sampleIndex), count: note.count });
   }
   if (opts.expectedSampleRateHz !== undefined && Math.abs(sampleRateHz - opts.expectedSampleRateHz) > 1e-3 * opts.expectedSampleRateHz) {
     out.push({

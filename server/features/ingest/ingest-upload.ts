@@ -69,6 +69,8 @@ export interface IngestDeps {
 export interface IngestOptions {
   /** Stream id for CSV files. */
   streamId?: string;
+  /** Time of t = 0 for CSV files with relative times, µs since epoch (wins over a `# start=` line). */
+  startTimeUs?: number;
 }
 
 let sharedPool: AnalysisPool | undefined;
@@ -342,7 +344,8 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
 
   let streams: DecodedStream[];
   try {
-    streams = decodeWaveform(file.bytes, { filename, ...(opts.streamId ? { streamId: opts.streamId } : {}) });
+    // Stored as start + index / rate per channel: a gap or a true overlap is refused (exactPlacement).
+    streams = decodeWaveform(file.bytes, { filename, exactPlacement: true, ...(opts.streamId ? { streamId: opts.streamId } : {}), ...(opts.startTimeUs !== undefined ? { startTimeUs: opts.startTimeUs } : {}) });
   } catch (err) {
     if (err instanceof WaveformParseError) throw new FileRefused(422, 'unprocessable', err.message);
     throw err;
