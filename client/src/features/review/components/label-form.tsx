@@ -27,11 +27,14 @@ export type ReviewFormInput = z.input<typeof reviewFormSchema>;
 /** Form values after validation. */
 export type ReviewFormValues = z.output<typeof reviewFormSchema>;
 
+/** The form's values before anything is entered (also what "unsaved work" is measured against). */
+export const reviewFormDefaults = { eventType: 'earthquake', certainty: 'suspected', distanceClass: null, picks: [], note: '', noiseReason: 'unknown noise' } as const satisfies ReviewFormValues;
+
 /** The form's hook (react-hook-form with the shared zod schema). */
 export function useReviewForm(initial?: Partial<ReviewFormInput>): UseFormReturn<ReviewFormInput, unknown, ReviewFormValues> {
   return useForm<ReviewFormInput, unknown, ReviewFormValues>({
     resolver: zodResolver(reviewFormSchema),
-    defaultValues: { eventType: 'earthquake', certainty: 'suspected', distanceClass: null, picks: [], note: '', noiseReason: 'unknown noise', ...initial },
+    defaultValues: { ...reviewFormDefaults, picks: [], ...initial },
   });
 }
 
@@ -115,7 +118,7 @@ export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFor
           <p className="pb-1 text-sm font-medium">Picks</p>
           {picks.fields.length === 0 ? (
             <p className="text-sm text-ink-muted">
-              None. Press <Kbd>P</Kbd> or <Kbd>S</Kbd> to place one at the cursor (or at the first trigger), or click a trace.
+              None. Point at a trace and press <Kbd>P</Kbd> or <Kbd>S</Kbd> to place one there, on that channel (P alone, off the traces, goes to the first trigger), or click a trace.
             </p>
           ) : (
             <ul className="flex flex-col gap-1">

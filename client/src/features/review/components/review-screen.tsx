@@ -23,10 +23,11 @@ import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui
 import { EventGroupMembers } from '../../../components/event-group-members';
 import { parseFilters } from '../../../api/queue/queue-filters';
 import { analysisViewSchema, useItem, useTraces, type AnalysisView } from '../api/get-item';
-import { LabelForm, useReviewForm, type ReviewFormValues } from './label-form';
+import { clearDraft, describeUnsaved, readDraft, unsavedWork, writeDraft, type DraftStorage, type ReviewDraft } from '../lib/review-draft';
+import { LabelForm, reviewFormDefaults, useReviewForm, type ReviewFormValues } from './label-form';
 import { SpectrogramPanel } from './spectrogram-panel';
 import { SpectrumPanel } from './spectrum-panel';
-import { TracePanel, pickSeconds, type SignalSegments } from './trace-panel';
+import { TracePanel, pickSeconds, type SignalSegments, type TraceCursor } from './trace-panel';
 
 /** The review screen's keys. */
 export const reviewKeysHelp: readonly KeyBinding[] = [
@@ -38,10 +39,10 @@ export const reviewKeysHelp: readonly KeyBinding[] = [
   { keys: ['Enter'], does: 'Label with the form’s values (inside the form)' },
   { keys: ['D'], does: 'Dismiss as noise with the form’s noise reason, then next item' },
   { keys: ['E'], does: 'Escalate to the supervisors (asks for a reason)' },
-  { keys: ['P', 'S'], does: 'Place a P or S pick at the cursor (else at the first trigger); also sets the phase a click places' },
+  { keys: ['P', 'S'], does: 'Place a P or S pick at the mouse, on the channel under it; also sets the phase a click places. Off the traces, P goes to the vertical’s first trigger and S waits for the mouse' },
   { keys: ['+', '−'], does: 'Zoom in / out around the cursor or the middle' },
   { keys: ['0'], does: 'Show the whole window' },
-  { keys: ['Esc'], does: 'Back to the queue' },
+  { keys: ['Esc'], does: 'Back to the queue (asks first when picks or a note are not saved)' },
   { keys: ['?'], does: 'Show these keys' },
 ];
 
@@ -51,6 +52,15 @@ function isoAt(startMs: number, seconds: number): string {
   const ms = Math.floor(totalUs / 1000);
   const us = totalUs - ms * 1000;
   return `${new Date(ms).toISOString().slice(0, 23)}${String(us).padStart(3, '0')}Z`;
+}
+
+/** The tab's sessionStorage, or null where there is none (drafts are then not kept). */
+function draftStorage(): DraftStorage | null {
+  try {
+    return typeof window !== 'undefined' ? window.sessionStorage : null;
+  } catch {
+    return null;
+  }
 }
 
 const fmt = (v: number | null | undefined, digits = 2) => (v === null || v === undefined ? '—' : Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(2) : v.toFixed(digits));
@@ -76,9 +86,12 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const [escalating, setEscalating] = useState(false);
   const [reason, setReason] = useState('');
   const [spectrumChannel, setSpectrumChannel] = useState<string | null>(null);
-  const cursorS = useRef<number | null>(null);
+  const [leaving, setLeaving] = useState(false);
+  const [restoredDraft, setRestoredDraft] = useState<ReviewDraft | null>(null);
+  const cursor = useRef<TraceCursor | null>(null);
   const form = useReviewForm();
   const picks = form.watch('picks') ?? [];
+  const draftsReady = useRef(false);
 
   useEffect(() => liveArrivals.seen(itemId), [itemId]);
   const group = useCandidateEvent(item.data?.candidateEvent?.id ?? null);
@@ -95,6 +108,40 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const durationS = detail ? (Date.parse(detail.windowEnd) - windowStartMs) / 1000 : 0;
   const mine = detail?.state === 'in review' && detail.claimedBy?.id === me?.id;
   const claimable = detail?.state === 'new' || detail?.state === 'returned';
+  const writable = mine || claimable;
+
+  // Unsaved work survives leaving the item: a draft of the form is kept in this tab and put back
+  // when the item is opened again while it can still be labelled (lib/review-draft.ts).
+  const meId = me?.id;
+  useEffect(() => {
+    const storage = draftStorage();
+    if (draftsReady.current || meId === undefined || !detail || !writable || !storage) return;
+    draftsReady.current = true;
+    const draft = readDraft(storage, meId, itemId);
+    if (!draft || form.formState.isDirty) return;
+    form.reset(draft.values, { keepDefaultValues: true });
+    setRestoredDraft(draft);
+  }, [meId, detail, writable, itemId, form]);
+  useEffect(() => {
+    const storage = draftStorage();
+    if (meId === undefined || !storage) return;
+    const sub = form.watch((values) => {
+      if (!draftsReady.current) return;
+      writeDraft(storage, meId, itemId, values, reviewFormDefaults, new Date().toISOString());
+    });
+    return () => sub.unsubscribe();
+  }, [form, meId, itemId]);
+  const dropDraft = useCallback(() => {
+    const storage = draftStorage();
+    if (storage && meId !== undefined) clearDraft(storage, meId, itemId);
+    setRestoredDraft(null);
+  }, [meId, itemId]);
+  const discardDraft = () => {
+    draftsReady.current = false;
+    form.reset(reviewFormDefaults);
+    dropDraft();
+    draftsReady.current = true;
+  };
 
   // Keep a claim alive while this screen is open (the server lets idle claims lapse).
   useEffect(() => {
@@ -151,17 +198,19 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     async (v: ReviewFormValues) => {
       const version = await ensureClaim();
       if (version === null || !detail) return;
-      await run({ action: 'label', id: detail.id, version, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } }, `labelled ${v.eventType}`, true);
+      const row = await run({ action: 'label', id: detail.id, version, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } }, `labelled ${v.eventType}`, true);
+      if (row) dropDraft();
     },
-    [ensureClaim, run, detail],
+    [ensureClaim, run, detail, dropDraft],
   );
   const dismiss = useCallback(
     async (v: ReviewFormValues) => {
       const version = await ensureClaim();
       if (version === null || !detail) return;
-      await run({ action: 'dismiss', id: detail.id, version, noiseReason: v.noiseReason, note: v.note }, `dismissed (${v.noiseReason})`, true);
+      const row = await run({ action: 'dismiss', id: detail.id, version, noiseReason: v.noiseReason, note: v.note }, `dismissed (${v.noiseReason})`, true);
+      if (row) dropDraft();
     },
-    [ensureClaim, run, detail],
+    [ensureClaim, run, detail, dropDraft],
   );
   const labelWholeGroup = async (v: ReviewFormValues) => {
     const ev = group.data;
@@ -184,6 +233,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     if (version === null || !detail) return;
     const row = await run({ action: 'escalate', id: detail.id, version, reason }, 'escalated to the supervisors', true);
     if (row) {
+      dropDraft();
       setEscalating(false);
       setReason('');
     }
@@ -200,14 +250,34 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   );
   const onPick = useCallback((streamId: string, t: number) => placePick(streamId, t, phase), [placePick, phase]);
   const onZoom = useCallback((from: number, to: number) => setView({ from, to }), []);
-  const onCursor = useCallback((t: number | null) => {
-    cursorS.current = t;
+  const onCursor = useCallback((at: TraceCursor | null) => {
+    cursor.current = at;
   }, []);
+  /** What leaving now would lose (drives the Esc warning). */
+  const unsaved = () => unsavedWork(form.getValues(), reviewFormDefaults);
+  /**
+   * P or S from the keyboard: at the mouse, on the channel under it. With the mouse off the traces,
+   * P goes to the vertical's first STA/LTA trigger (where a P onset usually is) and S is not placed:
+   * the trigger says nothing about the S arrival, so a guess there would sit on the P.
+   */
+  const keyPick = (which: 'P' | 'S') => {
+    setPhase(which);
+    const at = cursor.current;
+    if (at) return placePick(at.streamId, at.timeS, which);
+    const firstTrigger = leadTraces?.triggers[0]?.on;
+    if (which === 'P' && leadTraces && firstTrigger !== undefined) return placePick(leadTraces.streamId, firstTrigger, 'P');
+    toast.notify({
+      tone: 'warn',
+      title: `Point at a trace to place ${which === 'S' ? 'an S' : 'a P'} pick`,
+      body: which === 'S' ? 'S goes where the mouse is, on the channel under it; clicking a trace places one too.' : 'No STA/LTA trigger on the vertical to place P at.',
+      durationMs: 4000,
+    });
+  };
 
   const zoom = (factor: number) => {
     const from = view?.from ?? 0;
     const to = view?.to ?? durationS;
-    const centre = cursorS.current ?? (from + to) / 2;
+    const centre = cursor.current?.timeS ?? (from + to) / 2;
     const half = Math.min(durationS / 2, ((to - from) * factor) / 2);
     if (half * 2 >= durationS - 1e-6) return setView(null);
     const f = Math.max(0, Math.min(durationS - 2 * half, centre - half));
@@ -216,7 +286,8 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
 
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
-      if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !detail) return;
+      // Keys belong to an open dialog (Esc there closes it, it must not also leave the item).
+      if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !detail || document.querySelector('dialog[open]')) return;
       const k = e.key;
       const n = Number(k);
       if (k === 'j') go(neighbour(1)?.id);
@@ -233,15 +304,14 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         }
       } else if (k === 'd') void form.handleSubmit(dismiss)();
       else if (k === 'e') setEscalating(true);
-      else if (k === 'p' || k === 's') {
-        const which = k === 'p' ? 'P' : 'S';
-        setPhase(which);
-        const t = cursorS.current ?? leadTraces?.triggers[0]?.on ?? null;
-        if (t !== null && leadTraces) placePick(leadTraces.streamId, t, which);
-      } else if (k === '+' || k === '=') zoom(0.5);
+      else if (k === 'p' || k === 's') keyPick(k === 'p' ? 'P' : 'S');
+      else if (k === '+' || k === '=') zoom(0.5);
       else if (k === '-' || k === '_') zoom(2);
       else if (k === '0') setView(null);
-      else if (k === 'Escape') go(undefined);
+      else if (k === 'Escape') {
+        if (unsaved().any) setLeaving(true);
+        else go(undefined);
+      }
       else if (k === '?') setHelp(true);
       else return;
       e.preventDefault();
@@ -316,7 +386,8 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         </span>
       </div>
       <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_26rem]">
-        <main className="flex min-w-0 flex-col gap-3" aria-label="Waveforms">
+        {/* The app shell's <main> holds the whole screen: one main landmark per page. */}
+        <section className="flex min-w-0 flex-col gap-3" aria-label="Waveforms">
           {traces.data ? (
             <TracePanel
               traces={traces.data}
@@ -332,7 +403,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
                 leadTraces?.spectrogram ? (
                   <section aria-label="Spectrogram" className="rounded-sm border border-line bg-surface p-2">
                     <h2 className="pb-1 text-md font-semibold">Spectrogram · {leadTraces.streamId}</h2>
-                    <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} fromS={view?.from ?? 0} toS={view?.to ?? durationS} />
+                    <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} times={leadTraces.times} syncKey={`item-${detail.id}`} onZoom={onZoom} />
                   </section>
                 ) : null
               }
@@ -342,8 +413,19 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           ) : (
             <Loading label="Loading traces…" />
           )}
-        </main>
+        </section>
         <aside className="flex flex-col gap-3" aria-label="Assessment">
+          {restoredDraft && writable ? (
+            <section aria-label="Unsaved draft" className="flex flex-wrap items-center gap-2 rounded-sm border-[1.5px] border-warn bg-surface p-3 text-sm" data-testid="draft-restored" role="status">
+              <p className="min-w-0 flex-1">
+                <strong>Draft put back:</strong> {describeUnsaved(unsavedWork(restoredDraft.values, reviewFormDefaults))} not yet saved, kept in this tab since{' '}
+                <time className="font-mono" dateTime={restoredDraft.savedAt}>{restoredDraft.savedAt.slice(11, 19)}Z</time>.
+              </p>
+              <Button size="sm" variant="quiet" onClick={discardDraft}>
+                Discard draft
+              </Button>
+            </section>
+          ) : null}
           {note.data?.note?.returnComment && (detail.state === 'returned' || detail.state === 'in review') ? (
             <section aria-label="Returned by a supervisor" className="rounded-sm border-[1.5px] p-3" style={{ borderColor: 'var(--sf-state-returned)' }} data-testid="return-note">
               <h2 className="pb-1 text-md font-semibold">Returned to the queue</h2>
@@ -385,7 +467,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           </section>
           <section className="rounded-sm border border-line bg-surface p-3">
             <h2 className="pb-1 text-md font-semibold">Label</h2>
-            <LabelForm form={form} canWrite={mine || claimable} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
+            <LabelForm form={form} canWrite={writable} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
           </section>
           {analysis ? <Metrics analysis={analysis} /> : null}
           {specChannel ? (
@@ -407,6 +489,36 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         </aside>
       </div>
       <KeyHelp open={help} onClose={() => setHelp(false)} title="Review keys" bindings={reviewKeysHelp} />
+      <Dialog
+        open={leaving}
+        onClose={() => setLeaving(false)}
+        title={`Leave item ${detail.id} without saving?`}
+        description={`${describeUnsaved(unsaved())} on this item ${unsaved().picks + (unsaved().note ? 1 : 0) > 1 ? 'are' : 'is'} not saved. A draft stays in this tab and comes back when you open the item again.`}
+        actions={
+          <>
+            <Button onClick={() => setLeaving(false)}>Stay</Button>
+            <Button
+              variant="danger"
+              onClick={() => {
+                discardDraft();
+                setLeaving(false);
+                go(undefined);
+              }}
+            >
+              Discard and leave
+            </Button>
+            <Button
+              variant="primary"
+              onClick={() => {
+                setLeaving(false);
+                go(undefined);
+              }}
+            >
+              Leave, keep draft
+            </Button>
+          </>
+        }
+      />
       <Dialog
         open={escalating}
         onClose={() => setEscalating(false)}

@@ -5,6 +5,7 @@ import type { BaselineView } from '../../../../../shared/schemas/station';
 import { Badge } from '../../../components/ui/badge';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { FlagMarker } from '../../../components/ui/flag-marker';
+import { noiseModelSeries } from '../../../components/ui/noise-model-series';
 import { PlotFrame } from '../../../components/ui/plot-frame';
 import { StateMarker } from '../../../components/ui/state-marker';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
@@ -29,8 +30,8 @@ export function PsdPlots({ health }: { health: StationHealthView }) {
         const series = c.physical
           ? [
               { label: c.streamId, values: c.db, styleIndex: 0 },
-              { label: 'NHNM (Peterson 1993)', values: c.nhnm, styleIndex: 1 },
-              { label: 'NLNM (Peterson 1993)', values: c.nlnm, styleIndex: 2 },
+              // The same look as on the review spectrum (one helper for both).
+              ...noiseModelSeries(c.nlnm, c.nhnm),
             ]
           : [{ label: `${c.streamId} (counts)`, values: c.db, styleIndex: 0 }];
         return (
