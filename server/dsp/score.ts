@@ -109,7 +109,8 @@ export interface WindowScore {
   zStaLtaPeak: number | null;
 }
 
-const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
+/** The smallest MAD the robust z divides by (log10 ratio, STA/LTA ratio): a baseline of identical windows would otherwise divide by 0. */
+export const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
 const ROBUST_SIGMA = 1.4826;
 
 /** Robust z = (x − median)/(1.4826·max(MAD, floor)). */

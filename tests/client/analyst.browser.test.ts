@@ -256,9 +256,15 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
       }
     }
 
-    // Label the whole group from the review screen: every member is labelled by Ana.
+    // Label the whole group from the review screen: the button asks first (nothing is labelled
+    // yet), says only the type is copied, and on confirmation every member is labelled by Ana.
     const page = await openAs(ana, `/queue/items/${ids[0]}`);
     await page.getByRole('button', { name: /Label the whole group as earthquake/ }).click();
+    await page.waitForSelector('dialog[open]:has-text("Only the event type is copied")');
+    expect(await page.locator('[data-testid="group-label-plan"] li').count()).toBe(3);
+    await screenshot(page, 'analyst-review-group-confirm');
+    for (const id of ids) expect(queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body).state, `item ${id} before confirming`).toBe('new');
+    await page.getByRole('button', { name: 'Label 3 items as earthquake' }).click();
     for (const id of ids) {
       let d = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body);
       for (let i = 0; i < 50 && d.state !== 'labelled'; i++) {
@@ -267,6 +273,8 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
       }
       expect(d.state, `item ${id}`).toBe('labelled');
       expect(d.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
+      // The others get the type only, never this item's note (the form's note is empty here; the server test checks a filled one).
+      if (id !== ids[0]) expect((d.label as { note?: string }).note ?? '').toMatch(/^Type set for the whole event group/);
     }
 
     // A supervisor returns one member with a comment: the analyst sees it on the review screen and

@@ -6,7 +6,7 @@ import { uploadResponseSchema } from '../../shared/schemas/upload';
 import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
 import { createStation, upsertChannel, type Actor } from '../../server/services/station-registry';
 import { launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';
+import { createItem, createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';
 import { startTestServer, type TestServer } from '../setup/test-server';
 
 /**
@@ -19,6 +19,8 @@ import { startTestServer, type TestServer } from '../setup/test-server';
 describe('review screen (chromium, real server)', () => {
   let server: TestServer;
   let ana: TestPerson;
+  let operator: TestPerson;
+  let waitingId: number;
   let stationId: number;
   let itemId: number;
   let windowStartMs: number;
@@ -63,7 +65,8 @@ describe('review screen (chromium, real server)', () => {
       await upsertChannel(db, stationId, { location: '00', code: cha, sampleRateHz: 100, sensitivity: 1.5e9, sensitivityFrequencyHz: 1, sensitivityInputUnits: 'm/s' }, system);
     }
     ana = await createPerson(db, { roles: ['analyst'], displayName: 'Ana Kestrel' });
-    const operator = await createPerson(db, { roles: ['operator'], stationIds: [stationId] });
+    operator = await createPerson(db, { roles: ['operator'], stationIds: [stationId] });
+    waitingId = await createItem(db, { station: 'KV01', withSamples: true, burstAtS: 40, score: 50 });
     // A synthetic KV01 window with a 5 Hz burst at 50 s on the vertical (test input, not check values).
     const streams = syntheticStreams('KV01', Date.UTC(2026, 2, 14, 10, 11, 53) * 1000, { durationS: 120, burstAtS: 50 });
     const file = Buffer.concat(streams.map((st) => Buffer.from(encodeMiniSeed2({ ...st, samples: Int32Array.from(st.samples) }, { encoding: 'steim2', recordLength: 512 }))));
@@ -241,5 +244,23 @@ describe('review screen (chromium, real server)', () => {
     expect(Object.keys(onReview).sort()).toEqual(['NHNM', 'NLNM']);
     expect(onStation).toEqual(onReview);
     expect(onReview.NLNM).not.toBe(onReview.NHNM);
+  }, 60_000);
+
+  it('an operator sees the item without an enabled Claim button, and C does not claim', async () => {
+    const page = await openAs(operator, `/queue/items/${waitingId}`);
+    await page.waitForSelector('[data-testid="trace-panel"] .u-over');
+    await page.waitForSelector('[data-testid="view-only"]');
+    const claimButtons = page.getByRole('button', { name: /^Claim/ });
+    const enabled = await claimButtons.evaluateAll((els) => els.filter((b) => !(b as HTMLButtonElement).disabled).length);
+    expect(enabled).toBe(0);
+    for (const name of [/^Dismiss/, /^Escalate/, /^Label/]) {
+      const live = await page.getByRole('button', { name }).evaluateAll((els) => els.filter((b) => !(b as HTMLButtonElement).disabled && !b.closest('fieldset[disabled]')).length);
+      expect(live, String(name)).toBe(0);
+    }
+    await page.keyboard.press('c');
+    await page.waitForSelector('text=View only');
+    await screenshot(page, 'review-operator-view-only');
+    const detail = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${waitingId}`).set('Cookie', operator.cookie)).body);
+    expect(detail.state).toBe('new');
   }, 60_000);
 });

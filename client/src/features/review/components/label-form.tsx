@@ -43,6 +43,8 @@ export type LabelFormProps = {
   form: UseFormReturn<ReviewFormInput, unknown, ReviewFormValues>;
   /** Whether the analyst holds the claim (else the form is read-only with a hint). */
   canWrite: boolean;
+  /** The viewer's role may not label at all (an operator): the hint says so instead of "claim it". */
+  viewOnly?: boolean;
   busy: boolean;
   onLabel: (v: ReviewFormValues) => void;
   onDismiss: (v: ReviewFormValues) => void;
@@ -53,7 +55,7 @@ export type LabelFormProps = {
  * number keys 1–6 outside the form pick a common type and label at once; D dismisses with the
  * noise reason chosen here. Picks are placed on the traces and edited here (onset, polarity).
  */
-export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFormProps) {
+export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onDismiss }: LabelFormProps) {
   const { register, handleSubmit, control, formState } = form;
   const picks = useFieldArray({ control, name: 'picks' });
   // Picks are placed from outside the form (keys, clicks) with setValue: read their values, not the field array's snapshots.
@@ -165,7 +167,11 @@ export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFor
           </Button>
         </div>
       </fieldset>
-      {!canWrite ? <p className="text-sm text-ink-muted">Claim the item (<Kbd>C</Kbd>) to label it.</p> : null}
+      {viewOnly ? (
+        <p className="text-sm text-ink-muted">Analysts and supervisors label items; your role can look at them.</p>
+      ) : !canWrite ? (
+        <p className="text-sm text-ink-muted">Claim the item (<Kbd>C</Kbd>) to label it.</p>
+      ) : null}
     </form>
   );
 }

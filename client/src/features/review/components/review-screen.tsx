@@ -87,6 +87,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const [reason, setReason] = useState('');
   const [spectrumChannel, setSpectrumChannel] = useState<string | null>(null);
   const [leaving, setLeaving] = useState(false);
+  const [groupConfirm, setGroupConfirm] = useState(false);
   const [restoredDraft, setRestoredDraft] = useState<ReviewDraft | null>(null);
   const cursor = useRef<TraceCursor | null>(null);
   const form = useReviewForm();
@@ -97,7 +98,11 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const group = useCandidateEvent(item.data?.candidateEvent?.id ?? null);
   const labelGroup = useLabelGroup();
   const note = useReviewNote(itemId, item.data !== undefined && (item.data.state === 'returned' || item.data.state === 'confirmed' || item.data.state === 'in review' || item.data.state === 'labelled'));
-  const mayLabelGroup = me ? can({ roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] }, 'queue.label') : false;
+  // The policy module decides which controls show (the server checks every request anyway).
+  // Operators may view their stations' items but not work them: no claim, label, dismiss or escalate.
+  const actor = me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null;
+  const mayWork = can(actor, 'queue.claim') && can(actor, 'queue.label');
+  const mayLabelGroup = can(actor, 'queue.label');
 
   const detail = item.data;
   const analysis = useMemo(() => {
@@ -107,7 +112,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const windowStartMs = detail ? Date.parse(detail.windowStart) : 0;
   const durationS = detail ? (Date.parse(detail.windowEnd) - windowStartMs) / 1000 : 0;
   const mine = detail?.state === 'in review' && detail.claimedBy?.id === me?.id;
-  const claimable = detail?.state === 'new' || detail?.state === 'returned';
+  const claimable = mayWork && (detail?.state === 'new' || detail?.state === 'returned');
   const writable = mine || claimable;
 
   // Unsaved work survives leaving the item: a draft of the form is kept in this tab and put back
@@ -212,11 +217,15 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     },
     [ensureClaim, run, detail, dropDraft],
   );
+  /** After the confirmation: every member gets the type only, this item (when it can be written) its whole form. */
   const labelWholeGroup = async (v: ReviewFormValues) => {
     const ev = group.data;
+    setGroupConfirm(false);
     if (!ev) return;
     try {
-      const res = await labelGroup.mutateAsync({ eventId: ev.id, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } });
+      const current = writable ? { itemId: itemId, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } } : undefined;
+      const res = await labelGroup.mutateAsync({ eventId: ev.id, body: { eventType: v.eventType, current } });
+      if (res.members.some((m) => m.itemId === itemId && m.result === 'labelled')) dropDraft();
       const done = res.members.filter((m) => m.result === 'labelled').length;
       const skipped = res.members.filter((m) => m.result === 'skipped');
       toast.notify({
@@ -290,6 +299,11 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
       if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !detail || document.querySelector('dialog[open]')) return;
       const k = e.key;
       const n = Number(k);
+      if (!mayWork && /^[crdeps1-9]$/.test(k)) {
+        toast.notify({ tone: 'info', title: 'View only', body: 'Your role can look at this item but not claim, label, dismiss or escalate it.', durationMs: 3000 });
+        e.preventDefault();
+        return;
+      }
       if (k === 'j') go(neighbour(1)?.id);
       else if (k === 'k') go(neighbour(-1)?.id);
       else if (k === 'c') {
@@ -359,18 +373,26 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         </span>
       </header>
       <div className="flex flex-wrap items-center gap-2" role="toolbar" aria-label="Item actions">
-        <Button size="sm" variant={claimable ? 'primary' : 'secondary'} shortcut="C" disabled={!claimable || action.isPending} onClick={() => void run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false)}>
-          Claim
-        </Button>
-        <Button size="sm" shortcut="R" disabled={!mine || action.isPending} onClick={() => void run({ action: 'release', id: detail.id, version: detail.version }, 'released', false)}>
-          Release
-        </Button>
-        <Button size="sm" shortcut="D" disabled={(!mine && !claimable) || action.isPending} onClick={() => void form.handleSubmit(dismiss)()}>
-          Dismiss
-        </Button>
-        <Button size="sm" shortcut="E" disabled={(!mine && !claimable) || action.isPending} onClick={() => setEscalating(true)}>
-          Escalate
-        </Button>
+        {mayWork ? (
+          <>
+            <Button size="sm" variant={claimable ? 'primary' : 'secondary'} shortcut="C" disabled={!claimable || action.isPending} onClick={() => void run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false)}>
+              Claim
+            </Button>
+            <Button size="sm" shortcut="R" disabled={!mine || action.isPending} onClick={() => void run({ action: 'release', id: detail.id, version: detail.version }, 'released', false)}>
+              Release
+            </Button>
+            <Button size="sm" shortcut="D" disabled={(!mine && !claimable) || action.isPending} onClick={() => void form.handleSubmit(dismiss)()}>
+              Dismiss
+            </Button>
+            <Button size="sm" shortcut="E" disabled={(!mine && !claimable) || action.isPending} onClick={() => setEscalating(true)}>
+              Escalate
+            </Button>
+          </>
+        ) : (
+          <span className="text-sm text-ink-muted" data-testid="view-only">
+            View only: your role does not work the queue.
+          </span>
+        )}
         <span className="mx-2 h-5 border-l border-line" aria-hidden="true" />
         <Button size="sm" variant="quiet" shortcut="K" disabled={!prev} onClick={() => go(prev?.id)}>
           Previous
@@ -453,7 +475,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
               mayLabel={mayLabelGroup}
               eventType={form.watch('eventType')}
               busy={labelGroup.isPending}
-              onLabel={() => void form.handleSubmit(labelWholeGroup)()}
+              onLabel={() => setGroupConfirm(true)}
             />
           ) : null}
           <section className="rounded-sm border border-line bg-surface p-3">
@@ -467,7 +489,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           </section>
           <section className="rounded-sm border border-line bg-surface p-3">
             <h2 className="pb-1 text-md font-semibold">Label</h2>
-            <LabelForm form={form} canWrite={writable} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
+            <LabelForm form={form} canWrite={writable} viewOnly={me !== undefined && !mayWork} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
           </section>
           {analysis ? <Metrics analysis={analysis} /> : null}
           {specChannel ? (
@@ -488,6 +510,18 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           ) : null}
         </aside>
       </div>
+      {group.data ? (
+        <GroupLabelDialog
+          open={groupConfirm}
+          ev={group.data}
+          currentId={detail.id}
+          currentWritable={writable}
+          eventType={form.watch('eventType')}
+          busy={labelGroup.isPending}
+          onCancel={() => setGroupConfirm(false)}
+          onConfirm={() => void form.handleSubmit(labelWholeGroup)()}
+        />
+      ) : null}
       <KeyHelp open={help} onClose={() => setHelp(false)} title="Review keys" bindings={reviewKeysHelp} />
       <Dialog
         open={leaving}
@@ -676,7 +710,7 @@ type GroupPanelProps = {
 /**
  * The candidate event this item belongs to (issue 7): every member with station, first trigger,
  * flag and state, each a link to its own review; "Label the whole group" for those the policy
- * lets label (queue.label), with the form's values.
+ * lets label (queue.label), which asks first (GroupLabelDialog).
  */
 function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, search, mayLabel, eventType, busy, onLabel }: GroupPanelProps) {
   return (
@@ -697,9 +731,64 @@ function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, sear
           <Button size="sm" disabled={busy} onClick={onLabel}>
             Label the whole group as {eventType}
           </Button>
-          <span className="text-xs text-ink-muted">Uses the form’s type, certainty and note; members settled or held by others are skipped.</span>
+          <span className="text-xs text-ink-muted">Asks first. The others get the type only; this item gets your whole form.</span>
         </div>
       ) : null}
     </section>
+  );
+}
+
+/** Props of <GroupLabelDialog>. */
+type GroupLabelDialogProps = {
+  open: boolean;
+  ev: CandidateEvent;
+  currentId: number;
+  /** Whether this item can take the form's label (waiting, or claimed by the viewer). */
+  currentWritable: boolean;
+  eventType: string;
+  busy: boolean;
+  onCancel: () => void;
+  onConfirm: () => void;
+};
+
+/**
+ * The confirmation before labelling a whole event group: which members get the type, which are
+ * already settled (skipped), and that only the type is copied — certainty "suspected", no picks,
+ * no note — since nobody has looked at the other members' traces; this item gets the whole form.
+ */
+function GroupLabelDialog({ open, ev, currentId, currentWritable, eventType, busy, onCancel, onConfirm }: GroupLabelDialogProps) {
+  const waiting = ev.members.filter((m) => m.state === 'new' || m.state === 'returned' || m.state === 'in review');
+  const settled = ev.members.filter((m) => !waiting.includes(m));
+  const others = waiting.filter((m) => m.itemId !== currentId);
+  return (
+    <Dialog
+      open={open}
+      onClose={onCancel}
+      title={`Label event group #${ev.id} as ${eventType}?`}
+      description="Only the event type is copied to the other members: they keep certainty “suspected”, get no picks and no note of yours."
+      actions={
+        <>
+          <Button onClick={onCancel}>Cancel</Button>
+          <Button variant="primary" disabled={busy || waiting.length === 0} onClick={onConfirm}>
+            Label {waiting.length} {waiting.length === 1 ? 'item' : 'items'} as {eventType}
+          </Button>
+        </>
+      }
+    >
+      <ul className="flex flex-col gap-1 text-sm" data-testid="group-label-plan">
+        {waiting.map((m) => (
+          <li key={m.itemId}>
+            <span className="font-mono">{m.station}</span> item {m.itemId}:{' '}
+            {m.itemId === currentId && currentWritable ? <strong>this item, with your whole form (picks, certainty, note)</strong> : m.state === 'in review' ? 'the type only, if the claim is yours' : 'the type only'}
+          </li>
+        ))}
+        {settled.map((m) => (
+          <li key={m.itemId} className="text-ink-muted">
+            <span className="font-mono">{m.station}</span> item {m.itemId}: skipped, already {m.state}
+          </li>
+        ))}
+      </ul>
+      {others.length > 0 ? <p className="mt-2 text-sm text-ink-muted">Open each member later to place its picks; every label stays correctable on its own.</p> : null}
+    </Dialog>
   );
 }
