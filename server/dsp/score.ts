@@ -136,7 +136,8 @@ export interface WindowScore {
   detection: Detection | null;
 }
 
-const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
+/** The smallest MAD the robust z divides by (log10 ratio, STA/LTA ratio): a baseline of identical windows would otherwise divide by 0. */
+export const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
 /** QC codes that can set off a trigger by themselves, and how near the onset they count, s. */
 const DATA_PROBLEMS = new Set(['gap', 'overlap', 'flat-segment', 'dc-step', 'spikes']);
 const DATA_PROBLEM_S = 3;

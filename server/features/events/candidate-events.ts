@@ -1,13 +1,13 @@
 import { and, asc, desc, eq, gt, gte, inArray, lt, lte, max, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { EventLabel } from '@shared/schemas/label';
-import { defaultGroupingSettings, type GroupingSettings } from '@shared/schemas/supervisor';
+import { defaultGroupingSettings, type GroupingSettings, type GroupLabelBody } from '@shared/schemas/supervisor';
 import type { Database } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { candidateEvents, itemArrivals } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
-import { AppError, notFound } from '@server/errors';
+import { AppError, badRequest, notFound } from '@server/errors';
 import { recordChange, type DbOrTx } from '@server/realtime/change-log';
 import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from '@server/features/queue/queue-transitions';
 
@@ -513,22 +513,42 @@ export interface GroupLabelOutcome {
 }
 
 /**
- * Labels every member of a candidate event through the queue's own transitions (claim, then label),
- * each member with the picks on its own station's streams. Members already settled or claimed by
- * someone else are skipped and say why; each member stays individually correctable.
+ * The label a member gets from "label the whole group": the event type only. The certainty stays at
+ * "suspected", there are no picks, and the note says where the type came from instead of copying
+ * the analyst's note: nobody has looked at this member's traces yet.
+ */
+export function groupMemberLabel(eventId: number, eventType: EventLabel['eventType'], fromItemId: number | null): EventLabel {
+  return {
+    eventType,
+    certainty: 'suspected',
+    distanceClass: null,
+    picks: [],
+    note: `Type set for the whole event group #${eventId}${fromItemId === null ? '' : ` from item ${fromItemId}`}; this item's traces not yet reviewed on their own.`,
+  };
+}
+
+/**
+ * Labels every member of a candidate event through the queue's own transitions (claim, then label).
+ * `current` (the member the analyst is on) gets its whole label; every other member gets the event
+ * type only (groupMemberLabel). Members already settled or claimed by someone else are skipped and
+ * say why; each member stays individually correctable.
+ * @throws 404 when there is no such event; 400 when `current` names an item outside it
  */
 export async function labelCandidateEvent(
   deps: QueueServiceDeps,
   actor: QueuePerson,
   eventId: number,
-  label: EventLabel,
+  body: GroupLabelBody,
 ): Promise<GroupLabelOutcome[]> {
   const ev = await getCandidateEvent(deps.db, eventId);
   if (!ev) throw notFound(`Candidate event ${eventId}`);
+  const current = body.current ?? null;
+  if (current && !ev.members.some((m) => m.itemId === current.itemId)) {
+    throw badRequest(`current.itemId: item ${current.itemId} is not a member of event group #${eventId}`, { issues: [{ path: 'current.itemId', message: 'not a member of this event group' }] });
+  }
   const out: GroupLabelOutcome[] = [];
   for (const m of ev.members) {
-    const ownPicks = label.picks.filter((p) => p.streamId.startsWith(`${m.station}.`));
-    const memberLabel: EventLabel = { ...label, picks: ownPicks };
+    const memberLabel = current && m.itemId === current.itemId ? current.label : groupMemberLabel(eventId, body.eventType, current?.itemId ?? null);
     try {
       let version = m.version;
       if (m.state === 'new' || m.state === 'returned') version = (await claimItem(deps, actor, m.itemId, version)).version;
