@@ -60,6 +60,18 @@ export function woodAndersonResponse(frequencyHz: number, input: GroundMotion): 
   return { re: (nr * dr + ni * di) / den, im: (ni * dr - nr * di) / den };
 }
 
+const plans = new Map<number, FFT>();
+
+/** One fft.js plan per size, built once (its twiddle tables are the costly part). */
+function planFor(size: number): FFT {
+  let plan = plans.get(size);
+  if (!plan) {
+    plan = new FFT(size);
+    plans.set(size, plan);
+  }
+  return plan;
+}
+
 /** Seconds of decay padded after the trace: e^(−hω₀·5 s) ≈ 10⁻¹² of the response is left. */
 const TAIL_S = 5;
 
@@ -88,23 +100,39 @@ export function simulateWoodAnderson(trace: Float64Array, sampleRateHz: number, 
   mean /= n;
   let size = 4;
   while (size < n + Math.ceil(TAIL_S * sampleRateHz)) size *= 2;
-  const fft = new FFT(size);
+  const fft = planFor(size);
   const x = new Float64Array(size);
   for (let i = 0; i < n; i++) x[i] = (trace[i] as number) - mean;
   const spec = new Float64Array(2 * size);
   fft.realTransform(spec, x);
   fft.completeSpectrum(spec);
-  for (let k = 0; k <= size / 2; k++) {
-    const hk = woodAndersonResponse((k * sampleRateHz) / size, input);
-    const mul = (bin: number, conj: boolean): void => {
-      const re = spec[2 * bin] as number;
-      const im = spec[2 * bin + 1] as number;
-      const hi = conj ? -hk.im : hk.im;
-      spec[2 * bin] = re * hk.re - im * hi;
-      spec[2 * bin + 1] = re * hi + im * hk.re;
-    };
-    mul(k, false);
-    if (k > 0 && k < size / 2) mul(size - k, true);
+  // Inline H(f_k) (see woodAndersonResponse): no allocation per bin.
+  const w0 = (2 * Math.PI) / WOOD_ANDERSON.naturalPeriodS;
+  const twoHw0 = 2 * WOOD_ANDERSON.damping * w0;
+  const g = WOOD_ANDERSON.staticMagnification;
+  const dw = (2 * Math.PI * sampleRateHz) / size;
+  const half = size / 2;
+  for (let k = 0; k <= half; k++) {
+    const w = k * dw;
+    const dr = w0 * w0 - w * w;
+    const di = twoHw0 * w;
+    const den = dr * dr + di * di;
+    const nr = input === 'displacement' ? -g * w * w : 0;
+    const ni = input === 'displacement' ? 0 : g * w;
+    const hr = (nr * dr + ni * di) / den;
+    const hi = (ni * dr - nr * di) / den;
+    let re = spec[2 * k] as number;
+    let im = spec[2 * k + 1] as number;
+    spec[2 * k] = re * hr - im * hi;
+    spec[2 * k + 1] = re * hi + im * hr;
+    if (k > 0 && k < half) {
+      // Negative frequency −f_k: H(−f) = conj H(f).
+      const m = size - k;
+      re = spec[2 * m] as number;
+      im = spec[2 * m + 1] as number;
+      spec[2 * m] = re * hr + im * hi;
+      spec[2 * m + 1] = im * hr - re * hi;
+    }
   }
   const back = new Float64Array(2 * size);
   fft.inverseTransform(back, spec);
