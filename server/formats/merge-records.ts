@@ -328,7 +328,8 @@ function placeRecords(id: string, list: DecodedRecord[], empties: DecodedRecord[
     channel: head.channel,
     sampleRateHz: rate,
     startTimeUs: head.startTimeUs,
-    samples: placed === total ? samples : samples.slice(0, placed),
+    // A view, not a copy: copying a large stream only to drop repeats cost more than the repeats.
+    samples: placed === total ? samples : samples.subarray(0, placed),
     discontinuities,
     ...(notes.length > 0 ? { notes } : {}),
     encoding: [...encodings].join('+'),
