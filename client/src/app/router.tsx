@@ -1,9 +1,9 @@
 import { createBrowserRouter, matchRoutes, Outlet, useNavigate, type RouteObject } from 'react-router';
-import { AppShell } from '../components/layouts/app-shell';
-import { Loading } from '../components/ui/skeleton';
-import { authPagePaths } from '../../../shared/auth/links';
-import { paths } from '../config/paths';
-import { useSignOut } from '../features/auth/api/session';
+import { AppShell } from '@client/components/layouts/app-shell';
+import { Loading } from '@client/components/ui/skeleton';
+import { authPagePaths } from '@shared/auth/links';
+import { paths } from '@client/config/paths';
+import { useSignOut } from '@client/features/auth/api/session';
 import { LiveUpdatesProvider, useLiveConnection } from './live-updates';
 import { HomeRoute } from './routes/home';
 import { NotFoundRoute } from './routes/not-found';
@@ -60,7 +60,7 @@ export const routes: RouteObject[] = [
     errorElement: <RouteError />,
     hydrateFallbackElement: <Loading label="Loading Seisift…" className="m-6" />,
     lazy: async () => {
-      const pages = await import('../features/auth/components/auth-pages');
+      const pages = await import('@client/features/auth/components/auth-pages');
       return { Component: pages[name] };
     },
   })),

@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { nhnmDb, nlnmDb, noiseModelBreakpoints, noiseModelPosition } from '../../../server/dsp/noise-models';
+import { nhnmDb, nlnmDb, noiseModelBreakpoints, noiseModelPosition } from '@server/dsp/noise-models';
 
 /**
  * The published copy the table is checked against: Peterson's models as tabulated by ObsPy

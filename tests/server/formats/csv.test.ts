@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { decodeCsv } from '../../../server/formats/csv';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { WaveformParseError } from '../../../server/formats/types';
+import { decodeCsv } from '@server/formats/csv';
+import { decodeWaveform } from '@server/formats/decode';
+import { WaveformParseError } from '@server/formats/types';
 
 const T0 = Date.UTC(2026, 2, 14, 9, 26, 53, 589) * 1000;
 

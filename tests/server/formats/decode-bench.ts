@@ -11,10 +11,10 @@
  *   record (refused once a stream falls into more than MAX_RUNS_PER_STREAM pieces).
  * Every decode is the upload's: decodeWaveform with exactPlacement.
  */
-import { decodeWaveform } from '../../../server/formats/decode';
-import { MAX_RUNS_PER_STREAM } from '../../../server/formats/merge-records';
-import { encodeMiniSeed2 } from '../../../server/formats/mseed2-writer';
-import { encodeMiniSeed3 } from '../../../server/formats/mseed3-writer';
+import { decodeWaveform } from '@server/formats/decode';
+import { MAX_RUNS_PER_STREAM } from '@server/formats/merge-records';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
 
 function walk(n: number, seed: number): Int32Array {
   const x = new Int32Array(n);

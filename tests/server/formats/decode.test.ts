@@ -1,9 +1,9 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { encodeMiniSeed2 } from '../../../server/formats/mseed2-writer';
-import { WaveformParseError } from '../../../server/formats/types';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { WaveformParseError } from '@server/formats/types';
 
 const FIXTURES = join(import.meta.dirname, '../../fixtures/mseed');
 

@@ -1,9 +1,9 @@
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { decodeMiniSeed2, nominalRate } from '../../../server/formats/mseed2';
-import { WaveformParseError, type DecodedStream } from '../../../server/formats/types';
+import { decodeWaveform } from '@server/formats/decode';
+import { decodeMiniSeed2, nominalRate } from '@server/formats/mseed2';
+import { WaveformParseError, type DecodedStream } from '@server/formats/types';
 import { libmseedDumpSchema, type LibmseedDump } from './libmseed-json';
 
 const FIXTURES = join(import.meta.dirname, '../../fixtures/mseed');

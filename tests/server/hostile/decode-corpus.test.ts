@@ -1,8 +1,8 @@
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { WaveformParseError } from '../../../server/formats/types';
-import { expectedReason, makeHostileCorpus, makeRepairableCorpus } from '../../fixtures/hostile/make-corpus';
+import { decodeWaveform } from '@server/formats/decode';
+import { WaveformParseError } from '@server/formats/types';
+import { expectedReason, makeHostileCorpus, makeRepairableCorpus } from '@tests/fixtures/hostile/make-corpus';
 
 /**
  * The hostile corpus (tests/fixtures/hostile/make-corpus.ts) through decodeWaveform: every file the

@@ -1,14 +1,14 @@
 import { request as httpRequest } from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startServer, type RunningServer } from '../../../server/index';
-import { createTestContext, type TestContext } from '../../setup/test-app';
-import { ingestRowCounts, seedIngestToken, seedStation } from '../../faults/support/fixtures';
+import { startServer, type RunningServer } from '@server/index';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { ingestRowCounts, seedIngestToken, seedStation } from '@tests/faults/support/fixtures';
 import { eq } from 'drizzle-orm';
-import { windowChannels, windows } from '../../../server/db/schema/uploads';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { decodeStoredSamples } from '../../../server/services/samples-codec';
-import { expectedReason, makeHostileCorpus, makeRepairableCorpus } from '../../fixtures/hostile/make-corpus';
-import { makeWindowFile } from '../../faults/support/windows';
+import { decodeStoredSamples } from '@server/db/samples-codec';
+import { windowChannels, windows } from '@server/db/schema/uploads';
+import { decodeWaveform } from '@server/formats/decode';
+import { expectedReason, makeHostileCorpus, makeRepairableCorpus } from '@tests/fixtures/hostile/make-corpus';
+import { makeWindowFile } from '@tests/faults/support/windows';
 
 /**
  * The hostile corpus through POST /api/uploads of a real server (HTTP on loopback, a station

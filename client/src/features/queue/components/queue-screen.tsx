@@ -3,31 +3,33 @@ import { getCoreRowModel, useReactTable, flexRender, createColumnHelper } from '
 import { useVirtualizer } from '@tanstack/react-virtual';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react';
 import { useNavigate } from 'react-router';
-import { flags } from '../../../../../shared/schemas/flags';
-import { itemStates, type ItemState } from '../../../../../shared/schemas/item-states';
-import { labelFilterValues, type QueueRow } from '../../../../../shared/schemas/queue';
-import { Button } from '../../../components/ui/button';
-import { Dialog } from '../../../components/ui/dialog';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { FlagMarker } from '../../../components/ui/flag-marker';
-import { Input } from '../../../components/ui/input';
-import { Kbd } from '../../../components/ui/kbd';
-import { Select } from '../../../components/ui/select';
-import { Loading } from '../../../components/ui/skeleton';
-import { StateMarker } from '../../../components/ui/state-marker';
-import { useToast } from '../../../components/ui/toast';
-import { TriageCaution } from '../../../components/ui/triage-caution';
-import { paths } from '../../../config/paths';
-import { useCandidateEvent } from '../../../api/queue/candidate-events';
-import { useMe, useQueueList, type QueueFilters } from '../../../api/queue/get-queue';
-import { useItemAction } from '../../../api/queue/item-actions';
-import { liveArrivals } from '../../../api/queue/live-patch';
-import { workingStates } from '../../../api/queue/queue-filters';
-import { useQueueFilters } from '../hooks/use-queue-filters';
+import { can } from '@shared/auth/policies';
+import { roleSchema, type Role } from '@shared/auth/roles';
+import { flags } from '@shared/schemas/flags';
+import { itemStates, type ItemState } from '@shared/schemas/item-states';
+import { labelFilterValues, type QueueRow } from '@shared/schemas/queue';
+import { Button } from '@client/components/ui/button';
+import { Dialog } from '@client/components/ui/dialog';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { FlagMarker } from '@client/components/ui/flag-marker';
+import { Input } from '@client/components/ui/input';
+import { Kbd } from '@client/components/ui/kbd';
+import { Select } from '@client/components/ui/select';
+import { Loading } from '@client/components/ui/skeleton';
+import { StateMarker } from '@client/components/ui/state-marker';
+import { useToast } from '@client/components/ui/toast';
+import { TriageCaution } from '@client/components/ui/triage-caution';
+import { paths } from '@client/config/paths';
+import { useCandidateEvent } from '@client/api/queue/candidate-events';
+import { useMe, useQueueList, type QueueFilters } from '@client/api/queue/get-queue';
+import { useItemAction } from '@client/api/queue/item-actions';
+import { liveArrivals } from '@client/api/queue/live-patch';
+import { workingStates } from '@client/api/queue/queue-filters';
+import { useQueueFilters } from '@client/features/queue/hooks/use-queue-filters';
 import { formatAge, useNow } from './age';
-import { isTypingTarget, KeyHelp, type KeyBinding } from '../../../components/ui/key-help';
-import { UtcTimeInput } from '../../../components/ui/utc-time-input';
-import { EventGroupMembers } from '../../../components/event-group-members';
+import { isTypingTarget, KeyHelp, type KeyBinding } from '@client/components/ui/key-help';
+import { UtcTimeInput } from '@client/components/ui/utc-time-input';
+import { EventGroupMembers } from '@client/components/event-group-members';
 
 /** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
 const ROW_PX = 44;
@@ -64,6 +66,7 @@ export function QueueScreen() {
   const { filters, setFilters, setStateParam, search } = useQueueFilters();
   const list = useQueueList(filters);
   const me = useMe();
+  const mayClaim = can(me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null, 'queue.claim');
   const navigate = useNavigate();
   const toast = useToast();
   const action = useItemAction();
@@ -226,7 +229,11 @@ export function QueueScreen() {
       if (e.key === 'j' || e.key === 'ArrowDown') select(selectedIndex + 1);
       else if (e.key === 'k' || e.key === 'ArrowUp') select(selectedIndex <= 0 ? 0 : selectedIndex - 1);
       else if ((e.key === 'Enter' || e.key === 'o') && current) open(current);
-      else if (e.key === 'c' && current) claim(current);
+      else if (e.key === 'c' && current) {
+        // Only roles that work the queue claim (the policy module; the server refuses the rest too).
+        if (mayClaim) claim(current);
+        else open(current);
+      }
       else if (e.key === 'g') {
         scrollRef.current?.scrollTo({ top: 0 });
         select(0);
@@ -236,7 +243,7 @@ export function QueueScreen() {
     };
     window.addEventListener('keydown', onKey);
     return () => window.removeEventListener('keydown', onKey);
-  }, [rows, selectedIndex, select, open, claim]);
+  }, [rows, selectedIndex, select, open, claim, mayClaim]);
 
   const headerGroups = table.getHeaderGroups();
   const items = virtual.getVirtualItems();
