@@ -1,5 +1,5 @@
-import type { AppContext } from '../context';
-import { createAuthLimiters, type AuthLimiters } from '../middleware/rate-limit';
+import type { AppContext } from '@server/context';
+import { createAuthLimiters, type AuthLimiters } from './rate-limit';
 import { createSessionStore, type SessionStore } from './sessions';
 
 /** What the auth routes and middleware share within one app: the session store and the limiters. */

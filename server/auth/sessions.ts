@@ -6,9 +6,9 @@
 import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
 import { eq } from 'drizzle-orm';
 import { Lucia, TimeSpan } from 'lucia';
-import type { Database } from '../db/client';
-import { sessions } from '../db/schema/sessions';
-import { users } from '../db/schema/users';
+import type { Database } from '@server/db/client';
+import { sessions } from '@server/db/schema/sessions';
+import { users } from '@server/db/schema/users';
 
 /** Name of the session cookie. */
 export const sessionCookieName = 'seisift_session';

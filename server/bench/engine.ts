@@ -3,12 +3,12 @@ import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import Fili from 'fili';
 import { z } from 'zod';
-import { butterworthSos } from '../dsp/butterworth';
-import { analyzeWindow } from '../dsp/pipeline';
-import { sosfilt } from '../dsp/sosfilt';
-import type { DecodedStream } from '../formats/types';
-import { createAnalysisPool } from '../jobs/analysis-pool';
-import { defaultProcessingProfile } from '../../shared/schemas/processing-profile';
+import { butterworthSos } from '@server/dsp/butterworth';
+import { analyzeWindow } from '@server/dsp/pipeline';
+import { sosfilt } from '@server/dsp/sosfilt';
+import type { DecodedStream } from '@server/formats/types';
+import { createAnalysisPool } from '@server/jobs/analysis-pool';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { median, timeRuns } from './timing';
 
 /**

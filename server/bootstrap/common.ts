@@ -2,10 +2,10 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { join, resolve, sep } from 'node:path';
-import { createDatabaseClient, type DatabaseClient } from '../db/client';
-import { migrateDatabase } from '../db/migrate';
-import { seedDemo } from '../db/seed-demo';
-import type { Env } from '../env';
+import { createDatabaseClient, type DatabaseClient } from '@server/db/client';
+import { migrateDatabase } from '@server/db/migrate';
+import { seedDemo } from '@server/db/seed-demo';
+import type { Env } from '@server/env';
 import { BootstrapError, ensureMariaDbInstalled, provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from './mariadb';
 
 /** Fails with one line when `dir` cannot be created or written. Returns the absolute path. */

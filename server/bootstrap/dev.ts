@@ -4,7 +4,7 @@
  * to it. Ctrl-C stops all of them, and the MariaDB when this command started it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { ConfigError, loadEnv } from '../env';
+import { ConfigError, loadEnv } from '@server/env';
 import { prepareApp } from './common';
 import { BootstrapError, type PrivateMariaDb } from './mariadb';
 

@@ -3,19 +3,19 @@
  * demo, builds the client, serves everything on one port and prints the URL and the demo sign-ins.
  * Ctrl-C / SIGTERM stops the app and the MariaDB it started.
  */
-import { demoUsers } from '../db/seed-demo';
-import type { AppContext } from '../context';
-import { ingestDemo } from '../demo/ingest-demo';
-import { defaultAnalysisPool } from '../services/ingest-upload';
-import { escalationListener } from '../services/escalations';
-import { publicBaseUrl } from '../email/links';
-import { ConfigError, loadEnv } from '../env';
-import { FakeSmtpError } from '../email/fake-smtp';
-import { setUpMail } from '../email/setup';
-import { createSessionStore } from '../auth/sessions';
-import { createLogger } from '../logger';
-import { createAppHub, ListenError, startServer } from '../index';
-import { appVersion } from '../version';
+import { demoUsers } from '@server/db/seed-demo';
+import type { AppContext } from '@server/context';
+import { ingestDemo } from '@server/demo/ingest-demo';
+import { defaultAnalysisPool } from '@server/features/ingest/ingest-upload';
+import { escalationListener } from '@server/features/supervision/escalations';
+import { publicBaseUrl } from '@server/email/links';
+import { ConfigError, loadEnv } from '@server/env';
+import { FakeSmtpError } from '@server/email/fake-smtp';
+import { setUpMail } from '@server/email/setup';
+import { createSessionStore } from '@server/auth/sessions';
+import { createLogger } from '@server/logger';
+import { createAppHub, ListenError, startServer } from '@server/index';
+import { appVersion } from '@server/version';
 import { buildClient, prepareApp, secondsSince } from './common';
 import { BootstrapError, type PrivateMariaDb } from './mariadb';
 

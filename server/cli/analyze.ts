@@ -3,10 +3,10 @@ import { basename } from 'node:path';
 import { parseArgs } from 'node:util';
 import { pathToFileURL } from 'node:url';
 import { z } from 'zod';
-import { decodeWaveform } from '../formats/decode';
-import { WaveformParseError, type DecodedStream } from '../formats/types';
-import { analyzeWindow, type AnalysisResult } from '../dsp/pipeline';
-import { processingProfileSchema, type ProcessingProfile } from '../../shared/schemas/processing-profile';
+import { decodeWaveform } from '@server/formats/decode';
+import { WaveformParseError, type DecodedStream } from '@server/formats/types';
+import { analyzeWindow, type AnalysisResult } from '@server/dsp/pipeline';
+import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 
 /**
  * `npm run analyze -- FILE [--profile profile.json] [--sensitivity N] [--stream NET.STA.LOC.CHA] [--json]`

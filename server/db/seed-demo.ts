@@ -1,8 +1,8 @@
 import { and, eq } from 'drizzle-orm';
 import { randomBytes } from 'node:crypto';
-import type { Role } from '../../shared/auth/roles';
-import { processingProfileSchema } from '../../shared/schemas/processing-profile';
-import { hashPassword } from '../auth/password';
+import type { Role } from '@shared/auth/roles';
+import { processingProfileSchema } from '@shared/schemas/processing-profile';
+import { hashPassword } from '@server/auth/password';
 import type { Database } from './client';
 import { channels, stationAssignments, stations } from './schema/stations';
 import { userRoles, users } from './schema/users';

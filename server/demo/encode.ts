@@ -3,8 +3,8 @@
  * big-endian (common practice for real-time telemetry), one file per station window holding its
  * channels one after the other; and the single-channel CSV an operator exports by hand.
  */
-import { encodeMiniSeed2 } from '../formats/mseed2-writer';
-import { formatIsoTimeUs } from '../formats/iso-time';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { formatIsoTimeUs } from '@server/formats/iso-time';
 
 /** A contiguous run of samples of one channel. */
 export interface CountsPiece {

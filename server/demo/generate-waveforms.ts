@@ -8,8 +8,8 @@
 import { mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { demoStations } from '../db/seed-demo';
-import { formatIsoTimeUs } from '../formats/iso-time';
+import { demoStations } from '@server/db/seed-demo';
+import { formatIsoTimeUs } from '@server/formats/iso-time';
 import { encodeDemoCsv, encodeDemoMiniSeed, type CountsPiece } from './encode';
 import {
   DEMO_DAY,

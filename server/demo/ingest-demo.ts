@@ -10,17 +10,17 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { and, eq, inArray, isNull } from 'drizzle-orm';
 import { z } from 'zod';
-import { eventLabelSchema, type EventLabelInput, type NoiseReason } from '../../shared/schemas/label';
-import type { Database } from '../db/client';
-import { queueItems } from '../db/schema/queue-items';
-import { ingestTokens, stations } from '../db/schema/stations';
-import { uploads } from '../db/schema/uploads';
-import { users } from '../db/schema/users';
-import type { AnalysisPool } from '../jobs/analysis-pool';
-import type { Logger } from '../logger';
-import { ingestFile, sha256Hex, type IngestCaller } from '../services/ingest-upload';
-import { claimItem, dismissItem, escalateItem, labelItem, type EscalationListener, type QueuePerson } from '../services/queue-transitions';
-import { createToken, type Actor } from '../services/station-registry';
+import { eventLabelSchema, type EventLabelInput, type NoiseReason } from '@shared/schemas/label';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { ingestTokens, stations } from '@server/db/schema/stations';
+import { uploads } from '@server/db/schema/uploads';
+import { users } from '@server/db/schema/users';
+import type { AnalysisPool } from '@server/jobs/analysis-pool';
+import type { Logger } from '@server/logger';
+import { ingestFile, sha256Hex, type IngestCaller } from '@server/features/ingest/ingest-upload';
+import { claimItem, dismissItem, escalateItem, labelItem, type EscalationListener, type QueuePerson } from '@server/features/queue/queue-transitions';
+import { createToken, type Actor } from '@server/features/stations/station-registry';
 import { DEMO_WAVEFORMS_DIR } from './generate-waveforms';
 
 /** Label of the per-station ingest tokens the demo seed uploads with. */

@@ -3,7 +3,7 @@
  * the demo events are, and which windows the demo day holds. Everything here is made up for the
  * demo; nothing is a check value.
  */
-import { demoNetwork, demoStations } from '../db/seed-demo';
+import { demoNetwork, demoStations } from '@server/db/seed-demo';
 
 /** Sample rate of every demo channel, Hz. */
 export const DEMO_SAMPLE_RATE_HZ = 100;

@@ -4,7 +4,7 @@
  * at 100 sps, each with its InstrumentSensitivity (1.5e9 counts per m/s at 1 Hz), a poles-and-zeros
  * stage of an invented broadband velocity sensor and a digitiser gain stage. Invented metadata.
  */
-import { pazMagnitude } from '../dsp/response';
+import { pazMagnitude } from '@server/dsp/response';
 import { DEMO_CHANNELS, DEMO_NETWORK, DEMO_SAMPLE_RATE_HZ, DEMO_SENSITIVITY, type DemoStation } from './scenario';
 
 /** Sensor gain of the invented sensor, V per m/s (flat band). */

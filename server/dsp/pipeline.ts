@@ -1,6 +1,6 @@
 import type { DecodedStream } from '../formats/types';
 import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
-import { validateBand } from './bands';
+import { highBandForRate, validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
 import { preprocessTrace } from './preprocess';
@@ -8,7 +8,8 @@ import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
 import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
-import { classicStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from './sta-lta';
+import { peakOf, snrAroundTrigger } from './sta-lta';
+import { triggerChain } from './trigger';
 import { bandEnergy, sosfiltInPlace, sosfiltZeroPhase } from './sosfilt';
 
 /**
@@ -80,9 +81,14 @@ export interface ChannelResult {
     method: 'classic' | 'recursive';
     peak: number;
     peakTime: number;
-    triggers: Array<{ on: number; off: number | null }>;
+    /** On and off (s from the first sample), the AIC onset (s; ≤ on) and the peak of each trigger. */
+    triggers: Array<{ on: number; off: number | null; onset: number; peak: number }>;
+    /** Index of the channel's strongest trigger (the one `snr` and `signalSpectrum` describe), or null. */
+    main: number | null;
   };
   snr: number | null;
+  /** High-band RMS over the first staLta.onsetWindowS after the main onset ÷ the noise before it (amplitude); null without a trigger. */
+  onsetSnr: number | null;
   /**
    * Welch PSD of the pre-processed trace. `values` is null only where a poles-and-zeros response is 0
    * (e.g. the 0 Hz bin of a velocity sensor), so the PSD cannot be corrected there.
@@ -178,13 +184,14 @@ function analyzeChannel(
       throw new AnalysisError(`${s.id}: sample ${i} (${(i / fs).toFixed(3)} s) is ${s.samples[i]}, not a finite number`);
     }
   }
-  const ltaSamples = Math.round(profile.staLta.ltaS * fs);
+  const ltaSamples = Math.round((profile.staLta.startS + profile.staLta.minLtaS + profile.staLta.staS) * fs);
   const qc = qualityChecks(s.samples, fs, s.discontinuities, {
     fullScaleCounts: profile.qc.fullScaleCounts,
     flatTopSamples: profile.qc.flatTopSamples,
     spikeK: profile.qc.spikeK,
     expectedSampleRateHz: opts.expectedSampleRateHz?.[s.id] ?? profile.qc.expectedSampleRateHz,
     minSamples: ltaSamples,
+    decodeNotes: s.notes,
   });
   const warnings: string[] = [];
   const response = opts.sensitivity?.[s.id];
@@ -195,8 +202,10 @@ function analyzeChannel(
   const pre = preprocessTrace(s.samples, profile.preprocess.taperAlpha);
   if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
 
+  const fitted = highBandForRate(profile.bands.high, fs);
   const low = validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
-  const high = validateBand('high', profile.bands.high, fs, profile.bands.nyquistPolicy);
+  if (fitted.warning) warnings.push(fitted.warning);
+  const high = validateBand('high', fitted.band, fs, profile.bands.nyquistPolicy);
   if (low.warning) warnings.push(low.warning);
   if (high.warning) warnings.push(high.warning);
 
@@ -226,15 +235,24 @@ function analyzeChannel(
   const ratio = eLow > 0 ? eHigh / eLow : null;
   const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
 
+  // The trigger reads its own chain (untapered, ramped, band-rejected high band; see triggerChain).
   const sl = profile.staLta;
-  const cf = n >= ltaSamples
-    ? sl.method === 'classic'
-      ? classicStaLta(highY, fs, sl.staS, sl.ltaS)
-      : recursiveStaLta(highY, fs, sl.staS, sl.ltaS)
-    : new Float64Array(n);
-  const trig = detectTriggers(cf, fs, sl.on, sl.off);
+  const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity);
+  const { startIndex, cf, highY: trigY, base: trigBase } = chain;
+  const trig = chain.triggers;
   const pk = peakOf(cf, fs);
-  const snr = snrAroundTrigger(highY, fs, trig[0]?.onIndex ?? null, profile.snr.signalS, profile.snr.noiseS);
+  const onsets = trig.map((t) => t.onsetIndex);
+  const trigPeaks = trig.map((t) => t.peak);
+  // The channel's main trigger is its strongest (the one its features describe).
+  let mainIdx = -1;
+  for (let i = 0; i < trig.length; i++) if (mainIdx < 0 || (trigPeaks[i] as number) > (trigPeaks[mainIdx] as number)) mainIdx = i;
+  const first = mainIdx >= 0 ? trig[mainIdx] : undefined;
+  const firstOnset = mainIdx >= 0 ? (onsets[mainIdx] as number) : null;
+  // How sudden the onset is: the high band's RMS over the first `onsetWindowS` after the onset
+  // against the noise before it (an amplitude ratio). Impulsive arrivals jump at once; traffic,
+  // wind and other emergent noise climb over seconds.
+  const onsetSnr = snrAroundTrigger(trigY, fs, firstOnset, sl.onsetWindowS, Math.min(profile.snr.noiseS, firstOnset === null ? 0 : (firstOnset - startIndex) / fs));
+  const snr = snrAroundTrigger(trigY, fs, firstOnset, profile.snr.signalS, Math.min(profile.snr.noiseS, firstOnset === null ? 0 : (firstOnset - startIndex) / fs));
 
   // PSD: with a full response, compute in counts and correct per frequency; otherwise on the scaled trace.
   const paz = typeof response === 'object' ? response : null;
@@ -261,26 +279,27 @@ function analyzeChannel(
   }
   const stats = spectralStats(psd.freqs, statsValues, profile.psd.fminStats, excluded);
 
-  // Signal spectrum: the first trigger's part of the pre-processed, band-rejected trace against the
-  // noise before it. Units cancel in the ratio (so does a flat sensitivity or a response).
+  // Signal spectrum: from the first trigger's onset, on the trigger's (untapered, band-rejected)
+  // trace, against the noise before it. Units cancel in the ratio (so does a flat sensitivity).
   let signalSpectrum: SignalSpectrumFeatures | null = null;
   let signalSpectrumNote: string | null = null;
-  const first = trig[0];
-  if (first) {
-    const planned = planSignalSegments(n, fs, first, {
+  if (first && firstOnset !== null) {
+    const planned = planSignalSegments(n, fs, { onIndex: firstOnset, offIndex: first.offIndex }, {
       ...profile.signalSpectrum,
-      guardSamples: Math.round(sl.staS * fs),
-      taperSamples: Math.floor((profile.preprocess.taperAlpha * (n - 1)) / 2) + 1,
+      guardSamples: Math.round(profile.signalSpectrum.guardS * fs),
+      taperSamples: startIndex,
       maxNperseg: profile.psd.nperseg,
     });
     if ('note' in planned) signalSpectrumNote = planned.note;
     else {
       const p = planned.plan;
-      const sp = snrSpectrum(profile.bandReject.length > 0 ? rejectedCopy : pre, fs, p, profile.psd.fminStats, 0.45 * fs, excluded, profile.signalSpectrum.minSnr);
+      const sp = snrSpectrum(trigBase, fs, p, profile.psd.fminStats, 0.45 * fs, excluded, profile.signalSpectrum.minSnr, [high.fmin, high.fmax]);
       signalSpectrum = {
         peakFrequency: sp.peakFrequency,
         peakSnr: sp.peakSnr,
         centroid: sp.centroid,
+        inBandSnr: sp.inBandSnr,
+        inBandShare: sp.inBandShare,
         fromS: p.signalFrom / fs,
         toS: p.signalTo / fs,
         noiseFromS: p.noiseFrom / fs,
@@ -318,8 +337,15 @@ function analyzeChannel(
     bandReject,
     ratio,
     log10Ratio,
-    staLta: { method: sl.method, peak: pk.peak, peakTime: pk.peakTime, triggers: trig.map((t) => ({ on: t.on, off: t.off })) },
+    staLta: {
+      method: sl.method,
+      peak: pk.peak,
+      peakTime: pk.peakTime,
+      triggers: trig.map((t, i) => ({ on: t.on, off: t.off, onset: (onsets[i] ?? t.onIndex) / fs, peak: trigPeaks[i] ?? 0 })),
+      main: mainIdx >= 0 ? mainIdx : null,
+    },
     snr,
+    onsetSnr,
     psd: {
       freqs: Array.from(psd.freqs),
       values: Array.from(psdValues, (v) => (Number.isFinite(v) ? v : null)),

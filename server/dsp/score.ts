@@ -3,32 +3,29 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 /**
  * Scoring of one window against a station's own noise baseline.
  *
- * Rule (documented for the README):
- * 1. The lead channel is the vertical (channel code ending in Z); without one, the first channel.
- * 2. Robust z-scores against the baseline: z = (x − median)/(1.4826·MAD) — the MAD scaled by 1.4826
- *    to estimate σ for normally distributed noise (common practice). A MAD below a floor (0.05 for
- *    log10 ratio, 0.1 for the STA/LTA peak) is raised to it, so a very quiet history cannot turn a
- *    tiny change into a huge z.
- * 3. Evidence: `ratioHigh` when z(log10 ratio) ≥ eventZ; `staHigh` when the STA/LTA peak passed
- *    the trigger-on level and z(peak) ≥ eventZ; each is "ordinary" below noiseZ.
- * 4. Where the spectrum peaks. Causal filtering lets loud energy outside the band (a 15–25 Hz
- *    machinery burst) leak into it, so a high ratio with the spectrum peaking elsewhere is never a
- *    likely event on its own.
- *    a. With a trigger and a signal spectrum (the triggered part's PSD over the pre-trigger noise's,
- *       see `snrSpectrum`): the signal peak frequency must lie in the high band widened by
- *       `signalPeakTolerance` (fmin/(1 + t) … fmax·(1 + t)), there must be such a peak (some bin
- *       with the signal ≥ minSnr × the noise), and the excess-weighted centroid must not lie above `centroidMaxFactor` ×
- *       the band's upper edge. A stationary microseism or machinery line is in both parts and drops
- *       out of the ratio; a leaking 20 Hz burst has its excess at 20 Hz.
- *    b. Otherwise (no trigger, or too little noise before it): the whole-window rule — the dominant
- *       frequency inside the high band and the centroid at most `centroidMaxFactor` (1.5) × the
- *       upper edge (a margin, because a white instrument-noise floor up to fs/2 pulls a real
- *       arrival's centroid above the band).
- * 5. Flag: `likely event` when ratioHigh and staHigh and the spectrum peaks in the high band (4a or 4b);
- *    `likely noise` when both z are below noiseZ and there is no trigger; `needs eyes` otherwise,
- *    and always when the lead channel has a QC error (dead, clipped, wrong rate).
- * 6. Score = ½·clamp(z ratio) + ½·clamp(z peak), each clamped to [−10, 50], halved when the spectrum
- *    peaks outside the high band (when positive); rounded to 0.1. It orders the queue; it is not a magnitude.
+ * Rule (server/dsp/README.md has it in full):
+ * 1. Every channel has its own triggers (delayed-LTA STA/LTA on its high band, `delayedStaLta`), each
+ *    with a peak and an AIC onset; a channel's main trigger is its strongest. The DECIDING channel is
+ *    the one whose main trigger peaks highest (the vertical on a tie): a quiet vertical does not hide
+ *    a clear S on a horizontal, and the reasons name the channel.
+ * 2. Robust z = (x − median)/(1.4826·MAD) of the deciding channel's STA/LTA peak against the
+ *    station's noise windows (1.4826 makes the MAD estimate σ for normal noise, common practice); a
+ *    MAD below a floor is raised to it. Without `minBaselineWindows` noise windows, the network
+ *    default applies — measured on real noise (see NETWORK_DEFAULT_BASELINE).
+ * 3. The triggered part must be energy IN the high band: the Welch PSD of the part from the main
+ *    trigger's onset against the noise before it, summed over the high band, must reach
+ *    `minInBandSnr` (power) with at least `minInBandShare` of the band's bins at `minSnr` or more.
+ *    A loud burst above the band that leaks through the causal filter's skirt has no excess inside
+ *    the band and fails; a local earthquake peaking at 17 Hz or a large one at 1 Hz passes, as long as
+ *    the band itself rose. Where the spectrum peaks is reported, not required.
+ * 4. Flag: `likely event` when z(peak) ≥ eventZ and rule 3 holds and the deciding channel has no QC
+ *    error; `likely noise` when z(peak) < noiseZ (no trigger, or only one as weak as this station's
+ *    noise) or when the only triggers are nowhere `minSnr` × the noise in the band; `needs eyes`
+ *    otherwise, with the reason.
+ * 5. The detection: the earliest onset among the channels' main triggers that are at least
+ *    `eventZ` strong — the time the window's arrival is taken from (event groups, the analyst's view).
+ * 6. Score = ½·clamp(z peak) + ½·clamp(z log10 ratio of the whole window), each in [−10, 50], halved
+ *    when rule 3 fails; rounded to 0.1. It orders the queue; it is not a magnitude or a hazard level.
  */
 
 /** Median and MAD (unscaled) of one feature over a station's noise windows. */
@@ -47,14 +44,16 @@ export interface StationBaseline {
 
 /**
  * Network default baseline, used while a station has fewer than `minBaselineWindows` noise windows.
- * These are our own wide starting values (not from a source): noise windows tend to have comparable
- * energy in 0.5–2 Hz and 2–10 Hz (log10 ratio near 0, spread ±0.3), and a classic 1 s / 30 s
- * STA/LTA on noise peaks near 2 (spread 0.5), below the 3.5 trigger level. A station's own history
- * replaces them as soon as it has enough labelled noise.
+ * Measured, not guessed: the median and MAD of each feature over real noise — the 29.5 s before the
+ * analyst's P in the development part of tests/fixtures/real-windows (NCEDC recordings, 100 sps,
+ * broadband, short-period and strong-motion channels, in counts), with the default profile; the STA/LTA
+ * peak is the window's highest over its channels. `npm run eval:detection -- --baseline` prints
+ * the figures again beside the demo network's own noise. A station's history replaces it as soon as it
+ * has enough noise windows.
  */
 export const NETWORK_DEFAULT_BASELINE: StationBaseline = {
-  log10Ratio: { median: 0, mad: 0.3 },
-  staLtaPeak: { median: 2, mad: 0.5 },
+  log10Ratio: { median: 0.65, mad: 0.43 },
+  staLtaPeak: { median: 2.9, mad: 0.7 },
   count: 0,
 };
 
@@ -69,6 +68,9 @@ export interface SignalSpectrumFeatures {
   peakSnr: number | null;
   /** Excess-weighted centroid over the same bins, Hz. */
   centroid: number | null;
+  /** Over the high band: Σ signal PSD ÷ Σ noise PSD (power), and the share of its bins ≥ minSnr (absent in older analyses). */
+  inBandSnr?: number | null;
+  inBandShare?: number | null;
   /** The ratio a bin needed to be counted. */
   minSnr: number;
   /** Signal and noise parts, s from the first sample. */
@@ -85,7 +87,17 @@ export interface ChannelFeatures {
   id: string;
   log10Ratio: number | null;
   ratio: number | null;
-  staLta: { peak: number; peakTime: number; triggers: ReadonlyArray<{ on: number; off: number | null }> };
+  /** ISO 8601 time of the first sample (to compare onsets across channels); absent: same start assumed. */
+  startTime?: string;
+  staLta: {
+    peak: number;
+    peakTime: number;
+    triggers: ReadonlyArray<{ on: number; off: number | null; onset?: number; peak?: number }>;
+    /** Index of the channel's strongest trigger (absent in older analyses: the first). */
+    main?: number | null;
+  };
+  /** High-band amplitude SNR around the main trigger's onset. */
+  snr?: number | null;
   dominantFrequency: number | null;
   spectralCentroid: number | null;
   /** Absent (older stored analyses) or null: the whole-window rule decides where the spectrum peaks. */
@@ -93,7 +105,20 @@ export interface ChannelFeatures {
   /** Why there is no signal spectrum although there is a trigger. */
   signalSpectrumNote?: string | null;
   bands: { high: { fmin: number; fmax: number } };
-  qc: ReadonlyArray<{ severity: 'info' | 'warning' | 'error'; message: string; code: string }>;
+  qc: ReadonlyArray<{ severity: 'info' | 'warning' | 'error'; message: string; code: string; time?: number | undefined }>;
+}
+
+/** The window's detection: the arrival the flag and the event groups read. */
+export interface Detection {
+  /** The channel whose main trigger gives the onset. */
+  channel: string;
+  /** AIC onset and trigger-on, s from that channel's first sample. */
+  onset: number;
+  on: number;
+  /** The deciding channel's main-trigger peak (the window's highest). */
+  peak: number;
+  /** The deciding channel (may differ from `channel`: P on the vertical, S strongest on a horizontal). */
+  decidedBy: string;
 }
 
 /** The result of scoring. */
@@ -101,16 +126,21 @@ export interface WindowScore {
   score: number;
   flag: 'likely event' | 'likely noise' | 'needs eyes';
   reasons: string[];
-  /** Id of the channel that led the score. */
+  /** Id of the channel that decided the score (the strongest trigger; the vertical on a tie or with none). */
   leadChannel: string;
   /** Which baseline was used. */
   baseline: 'station' | 'network default';
   zLog10Ratio: number | null;
   zStaLtaPeak: number | null;
+  /** The window's detection (null without a trigger strong enough). */
+  detection: Detection | null;
 }
 
 /** The smallest MAD the robust z divides by (log10 ratio, STA/LTA ratio): a baseline of identical windows would otherwise divide by 0. */
 export const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
+/** QC codes that can set off a trigger by themselves, and how near the onset they count, s. */
+const DATA_PROBLEMS = new Set(['gap', 'overlap', 'flat-segment', 'dc-step', 'spikes']);
+const DATA_PROBLEM_S = 3;
 const ROBUST_SIGMA = 1.4826;
 
 /** Robust z = (x − median)/(1.4826·max(MAD, floor)). */
@@ -142,19 +172,30 @@ function median(values: readonly number[]): number {
 const f1 = (v: number): string => (Math.round(v * 10) / 10).toFixed(1);
 const signed = (v: number): string => (v >= 0 ? `+${f1(v)}` : `−${f1(-v)}`);
 const clamp = (v: number): number => Math.min(50, Math.max(-10, v));
+const isVertical = (id: string): boolean => /Z$/i.test(id.split('.').pop() ?? '');
 
 /** Pick the lead channel: the first whose channel code ends in Z, else the first. */
 export function leadChannelIndex(ids: readonly string[]): number {
-  const i = ids.findIndex((id) => /Z$/i.test(id.split('.').pop() ?? ''));
+  const i = ids.findIndex(isVertical);
   return i >= 0 ? i : 0;
 }
 
-/** The signal-spectrum knobs' defaults (the profile schema's), for callers that pass older thresholds. */
-const SIGNAL_DEFAULTS = { signalPeakTolerance: 0.2 } as const;
+/** The score knobs' defaults (the profile schema's), for callers that pass older thresholds. */
+const SCORE_DEFAULTS = { signalPeakTolerance: 0.2, minInBandSnr: 4, minInBandShare: 0.5 } as const;
 
-/** The thresholds the score reads; the signal-spectrum knobs may be absent (their defaults apply). */
-export type ScoreThresholds = Omit<ProcessingProfile['thresholds'], keyof typeof SIGNAL_DEFAULTS> &
-  Partial<Pick<ProcessingProfile['thresholds'], keyof typeof SIGNAL_DEFAULTS>>;
+/** The thresholds the score reads; the newer knobs may be absent (their defaults apply). */
+export type ScoreThresholds = Omit<ProcessingProfile['thresholds'], keyof typeof SCORE_DEFAULTS> &
+  Partial<Pick<ProcessingProfile['thresholds'], keyof typeof SCORE_DEFAULTS>>;
+
+/** A channel's main trigger (its strongest; older analyses: the first), or null. */
+function mainTrigger(c: ChannelFeatures): { on: number; off: number | null; onset: number; peak: number } | null {
+  const t = c.staLta.triggers;
+  if (t.length === 0) return null;
+  const i = c.staLta.main ?? 0;
+  const m = t[i] ?? t[0];
+  if (!m) return null;
+  return { on: m.on, off: m.off, onset: m.onset ?? m.on, peak: m.peak ?? c.staLta.peak };
+}
 
 /**
  * Score a window: a pure function of the channels' features, the station's baseline (or null) and the
@@ -166,94 +207,118 @@ export function scoreWindow(
   profile: { thresholds: ScoreThresholds; staLta: ProcessingProfile['staLta'] },
 ): WindowScore {
   if (channels.length === 0) throw new RangeError('a window needs at least one channel to score');
-  const th = { ...SIGNAL_DEFAULTS, ...profile.thresholds };
+  const th = { ...SCORE_DEFAULTS, ...profile.thresholds };
   const useStation = baseline !== null && baseline.count >= th.minBaselineWindows;
   const base = useStation ? baseline : NETWORK_DEFAULT_BASELINE;
   const baseWords = useStation ? "this station's noise" : `the network default (station has ${baseline?.count ?? 0} of ${th.minBaselineWindows} noise windows)`;
-  const li = leadChannelIndex(channels.map((c) => c.id));
-  const lead = channels[li] as ChannelFeatures;
+
+  // 1. The deciding channel: the strongest main trigger; the vertical on a tie or when none triggered.
+  const vi = leadChannelIndex(channels.map((c) => c.id));
+  let di = -1;
+  for (let i = 0; i < channels.length; i++) {
+    const c = channels[i] as ChannelFeatures;
+    if (c.staLta.triggers.length === 0) continue;
+    if (di < 0 || c.staLta.peak > (channels[di] as ChannelFeatures).staLta.peak || (c.staLta.peak === (channels[di] as ChannelFeatures).staLta.peak && i === vi)) di = i;
+  }
+  if (di < 0) di = vi;
+  const anyTrigger = channels.some((c) => c.staLta.triggers.length > 0);
+  const lead = channels[di] as ChannelFeatures;
+  const main = mainTrigger(lead);
   const reasons: string[] = [];
-  if (!/Z$/i.test(lead.id)) reasons.push(`no vertical component: ${lead.id} leads the score`);
+  if (!channels.some((c) => isVertical(c.id))) reasons.push(`no vertical component: ${lead.id} decides`);
+  else if (di !== vi) reasons.push(`${lead.id} decides: its STA/LTA peak is the window's highest (the vertical ${(channels[vi] as ChannelFeatures).id} peaks at ${f1((channels[vi] as ChannelFeatures).staLta.peak)})`);
 
   const zr = lead.log10Ratio === null ? null : robustZ(lead.log10Ratio, base.log10Ratio, MAD_FLOOR.log10Ratio);
   const zp = robustZ(lead.staLta.peak, base.staLtaPeak, MAD_FLOOR.staLtaPeak);
-  const triggered = lead.staLta.triggers.length > 0;
-  if (zr === null || lead.ratio === null) reasons.push(`${lead.id}: no band ratio (the low band has no energy)`);
-  else reasons.push(`high/low ratio ${f1(lead.ratio)}, ${zr >= 0 ? `+${f1(zr)} MAD above` : `${f1(-zr)} MAD below`} ${baseWords}`);
   reasons.push(
-    triggered
-      ? `STA/LTA peak ${f1(lead.staLta.peak)} at ${f1(lead.staLta.peakTime)} s (${signed(zp)} MAD), ${lead.staLta.triggers.length} trigger(s) above ${profile.staLta.on}`
-      : `STA/LTA peak ${f1(lead.staLta.peak)} at ${f1(lead.staLta.peakTime)} s: no trigger above ${profile.staLta.on}`,
+    main
+      ? `STA/LTA peak ${f1(main.peak)} on ${lead.id}, onset at ${f1(main.onset)} s (${signed(zp)} MAD against ${baseWords}), ${lead.staLta.triggers.length} trigger(s) above ${profile.staLta.on}`
+      : `STA/LTA peak ${f1(lead.staLta.peak)} at ${f1(lead.staLta.peakTime)} s on ${lead.id}: no trigger above ${profile.staLta.on} (${signed(zp)} MAD against ${baseWords})`,
   );
+  if (zr === null || lead.ratio === null) reasons.push(`${lead.id}: no band ratio (the low band has no energy)`);
+  else reasons.push(`whole-window high/low ratio ${f1(lead.ratio)}, ${zr >= 0 ? `+${f1(zr)} MAD above` : `${f1(-zr)} MAD below`} ${baseWords}`);
 
+  // 3. Energy in the band: the triggered part's PSD over the noise before it, summed over the high band.
   const hb = lead.bands.high;
-  const dominantInBand = lead.dominantFrequency !== null && lead.dominantFrequency >= hb.fmin && lead.dominantFrequency <= hb.fmax;
-  const centroidOk = lead.spectralCentroid !== null && lead.spectralCentroid <= th.centroidMaxFactor * hb.fmax;
-  // With a trigger, where the triggered part rises above the noise before it decides (rule 4a).
-  const sig = triggered ? (lead.signalSpectrum ?? null) : null;
-  const tolLo = hb.fmin / (1 + th.signalPeakTolerance);
-  const tolHi = hb.fmax * (1 + th.signalPeakTolerance);
-  const sigStrong = sig !== null && sig.peakFrequency !== null;
-  const sigPeakIn = sig !== null && sig.peakFrequency !== null && sig.peakFrequency >= tolLo && sig.peakFrequency <= tolHi;
-  const sigCentroidOk = sig !== null && sig.centroid !== null && sig.centroid <= th.centroidMaxFactor * hb.fmax;
-  const spectrumInBand = sig !== null ? sigPeakIn && sigStrong && sigCentroidOk : dominantInBand && centroidOk;
-  const sigWords = sig === null
-    ? ''
-    : sig.peakFrequency === null
-      ? `the triggered part (${f1(sig.fromS)}–${f1(sig.toS)} s) is nowhere ${sig.minSnr} × the pre-trigger noise (${f1(sig.noiseFromS)}–${f1(sig.noiseToS)} s)`
-      : `signal peaks at ${fmtHz(sig.peakFrequency)} over the pre-trigger noise (${fmtDb(sig.peakSnr)} above it there, centroid of the excess ${fmtHz(sig.centroid)}; signal ${f1(sig.fromS)}–${f1(sig.toS)} s against noise ${f1(sig.noiseFromS)}–${f1(sig.noiseToS)} s)`;
-  if (sig !== null) reasons.push(sigWords);
-  else if (triggered && lead.signalSpectrumNote) reasons.push(`no signal spectrum: ${lead.signalSpectrumNote}; the whole-window spectrum decides`);
-  const ratioHigh = zr !== null && zr >= th.eventZ;
-  const staHigh = triggered && zp >= th.eventZ;
-  const quiet = (zr === null || zr < th.noiseZ) && zp < th.noiseZ && !triggered;
+  const sig = main ? (lead.signalSpectrum ?? null) : null;
+  const inBandSnr = sig?.inBandSnr ?? null;
+  const inBandShare = sig?.inBandShare ?? null;
+  let inBand: boolean;
+  let inBandKnown = true;
+  if (sig && inBandSnr !== null && inBandShare !== null) {
+    inBand = inBandSnr >= th.minInBandSnr && inBandShare >= th.minInBandShare;
+    reasons.push(
+      `the triggered part (${f1(sig.fromS)}–${f1(sig.toS)} s) in ${hb.fmin}–${hb.fmax} Hz: ${fmtDb(inBandSnr)} over the noise before it (${f1(sig.noiseFromS)}–${f1(sig.noiseToS)} s), ${Math.round(inBandShare * 100)} % of the band's bins ${sig.minSnr} × the noise or more` +
+        (sig.peakFrequency === null ? '' : `; its excess peaks at ${fmtHz(sig.peakFrequency)} (centroid ${fmtHz(sig.centroid)})`),
+    );
+  } else if (main && lead.snr !== null && lead.snr !== undefined) {
+    // No signal spectrum (parts too short, e.g. a trigger in the window's last seconds): too little
+    // to call it an event; the amplitude SNR is reported and the window needs eyes.
+    inBand = false;
+    inBandKnown = false;
+    reasons.push(`no signal spectrum (${lead.signalSpectrumNote ?? 'not computed'}); high-band SNR ${f1(lead.snr)} (amplitude) around the onset`);
+  } else {
+    inBand = false;
+    inBandKnown = main !== null;
+    if (main && lead.signalSpectrumNote) reasons.push(`no signal spectrum: ${lead.signalSpectrumNote}`);
+  }
+  const nothingStandsOut = sig !== null && inBandSnr !== null && inBandSnr < sig.minSnr && (sig.peakFrequency === null);
   const qcErrors = lead.qc.filter((q) => q.severity === 'error');
+  const strong = main !== null && zp >= th.eventZ;
+  // A trigger at a data problem (a gap or overlap where records were joined, a dropout, a DC step, a
+  // spike) on any channel, within DATA_PROBLEM_S of the onset, is not evidence of ground motion.
+  const atProblem = main === null
+    ? []
+    : channels.flatMap((c) => c.qc.filter((q) => DATA_PROBLEMS.has(q.code) && q.time !== undefined && Math.abs(q.time - main.onset) <= DATA_PROBLEM_S).map((q) => `${c.id}: ${q.message}`));
 
   let flag: WindowScore['flag'];
-  if (qcErrors.length > 0) {
+  if (qcErrors.length > 0 || atProblem.length > 0) {
     flag = 'needs eyes';
     for (const q of qcErrors) reasons.push(`quality problem on ${lead.id}: ${q.message}`);
-  } else if (ratioHigh && staHigh && spectrumInBand) {
+    for (const m of atProblem) reasons.push(`the trigger sits at a data problem, not necessarily ground motion — ${m}`);
+  } else if (strong && inBand) {
     flag = 'likely event';
-  } else if (quiet) {
+  } else if (!anyTrigger || zp < th.noiseZ || (!strong && nothingStandsOut)) {
     flag = 'likely noise';
+    if (main) reasons.push(zp < th.noiseZ ? 'the trigger is no stronger than this station\'s ordinary noise' : 'the triggered part stands out from the noise before it in no frequency bin');
   } else {
     flag = 'needs eyes';
-    if ((ratioHigh || staHigh) && !spectrumInBand && sig !== null) {
+    if (strong && !inBand) {
       reasons.push(
-        !sigStrong
-          ? 'the triggered part does not stand out from the pre-trigger noise in any frequency bin: not an event on the ratio alone'
-          : !sigPeakIn
-          ? `signal spectrum peaks outside the high band ${hb.fmin}–${hb.fmax} Hz (at ${fmtHz(sig.peakFrequency)}, accepted ${f1(tolLo)}–${f1(tolHi)} Hz): energy may be leaking in from outside the band, not an event on the ratio alone`
-            : `the centroid of the signal's excess over the noise, ${fmtHz(sig.centroid)}, lies above ${th.centroidMaxFactor} × the high band's ${hb.fmax} Hz edge: much of the excess is above the band, not an event on the ratio alone`,
+        !inBandKnown
+          ? 'the trigger is strong but there is too little data around it to check the band: look at this window and the next'
+          : inBandSnr !== null && inBandSnr >= th.minInBandSnr
+            ? `the high band rose by ${fmtDb(inBandSnr)} but only in ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins: a narrow-band signal (machinery, a resonance) rather than an earthquake's broad spectrum`
+            : `the trigger is strong but the high band ${hb.fmin}–${hb.fmax} Hz hardly rose (${fmtDb(inBandSnr ?? (lead.snr ?? 0) ** 2)}, ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins): energy may be leaking in from outside the band`
       );
-    } else if ((ratioHigh || staHigh) && !spectrumInBand) {
-      reasons.push(
-        dominantInBand
-          ? `spectral centroid ${fmtHz(lead.spectralCentroid)} lies above ${th.centroidMaxFactor} × the high band's ${hb.fmax} Hz edge (dominant ${fmtHz(lead.dominantFrequency)}): much of the energy is above the band, not an event on the ratio alone`
-          : `spectrum peaks outside the high band ${hb.fmin}–${hb.fmax} Hz (dominant ${fmtHz(lead.dominantFrequency)}, centroid ${fmtHz(lead.spectralCentroid)}): energy may be leaking in from outside the band, not an event on the ratio alone`,
-      );
-    } else if (ratioHigh !== staHigh) {
-      reasons.push(ratioHigh ? 'high ratio without a matching STA/LTA onset' : 'STA/LTA onset without a raised band ratio');
-    } else {
-      reasons.push('evidence between ordinary noise and an event');
-    }
+    } else reasons.push('evidence between ordinary noise and an event');
   }
-  if (spectrumInBand && flag !== 'needs eyes' && sig === null) {
-    reasons.push(`spectrum peaks at ${fmtHz(lead.dominantFrequency)} (centroid ${fmtHz(lead.spectralCentroid)}), in the high band ${hb.fmin}–${hb.fmax} Hz`);
-  }
+  // Beside it: every other channel, in words.
   for (let i = 0; i < channels.length; i++) {
-    if (i === li) continue;
+    if (i === di) continue;
     const ch = channels[i] as ChannelFeatures;
-    const z = ch.log10Ratio === null ? null : robustZ(ch.log10Ratio, base.log10Ratio, MAD_FLOOR.log10Ratio);
-    reasons.push(
-      `beside it, ${ch.id}: ratio ${ch.ratio === null ? 'n/a' : f1(ch.ratio)}${z === null ? '' : ` (${signed(z)} MAD)`}, STA/LTA peak ${f1(ch.staLta.peak)}, ${ch.staLta.triggers.length} trigger(s)`,
-    );
+    const m = mainTrigger(ch);
+    reasons.push(`beside it, ${ch.id}: STA/LTA peak ${f1(ch.staLta.peak)}${m ? ` (onset ${f1(m.onset)} s)` : ''}, ${ch.staLta.triggers.length} trigger(s), ratio ${ch.ratio === null ? 'n/a' : f1(ch.ratio)}`);
   }
-  let score = 0.5 * clamp(zr ?? 0) + 0.5 * clamp(zp);
-  if (!spectrumInBand && score > 0) score /= 2;
+
+  // 5. The detection: the earliest onset among the channels' main triggers that are eventZ strong
+  //    (P on the vertical comes before S on the horizontals), else the deciding channel's.
+  let detection: Detection | null = null;
+  if (main) {
+    let best = { channel: lead.id, onset: main.onset, on: main.on };
+    for (const ch of channels) {
+      const m = mainTrigger(ch);
+      if (!m || robustZ(m.peak, base.staLtaPeak, MAD_FLOOR.staLtaPeak) < th.eventZ) continue;
+      const tOnset = Date.parse(ch.startTime ?? '') / 1000 + m.onset;
+      const bOnset = Date.parse(channels.find((c) => c.id === best.channel)?.startTime ?? '') / 1000 + best.onset;
+      if (Number.isFinite(tOnset) && Number.isFinite(bOnset) ? tOnset < bOnset : m.onset < best.onset) best = { channel: ch.id, onset: m.onset, on: m.on };
+    }
+    detection = { ...best, peak: main.peak, decidedBy: lead.id };
+  }
+  let score = 0.5 * clamp(zp) + 0.5 * clamp(zr ?? 0);
+  if (!inBand && score > 0) score /= 2;
   score = Math.round(score * 10) / 10;
-  return { score, flag, reasons, leadChannel: lead.id, baseline: useStation ? 'station' : 'network default', zLog10Ratio: zr, zStaLtaPeak: zp };
+  return { score, flag, reasons, leadChannel: lead.id, baseline: useStation ? 'station' : 'network default', zLog10Ratio: zr, zStaLtaPeak: zp, detection };
 }
 
 /** A power ratio in dB (10·log10). */

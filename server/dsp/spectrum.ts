@@ -271,7 +271,7 @@ export function planSignalSegments(
   const noiseTo = on - opts.guardSamples;
   const noiseFrom = Math.max(opts.taperSamples, noiseTo - Math.round(opts.noiseMaxS * fs));
   if (noiseTo - noiseFrom < Math.round(opts.noiseMinS * fs)) {
-    return { note: `only ${s(Math.max(0, noiseTo - noiseFrom))} of untapered noise before the trigger at ${s(on)} (at least ${opts.noiseMinS} s needed)` };
+    return { note: `only ${s(Math.max(0, noiseTo - noiseFrom))} of usable noise before the onset at ${s(on)} (at least ${opts.noiseMinS} s needed)` };
   }
   const nperseg = largestPowerOfTwoAtMost(Math.min(opts.maxNperseg, Math.floor(opts.segmentS * fs), signalTo - signalFrom, noiseTo - noiseFrom));
   if (nperseg < 16) return { note: `the signal and noise parts allow only ${nperseg}-sample spectra (at least 16 needed)` };
@@ -298,6 +298,12 @@ export interface SnrSpectrum {
   peakSnr: number | null;
   /** Σ f·(P_signal − P_noise) ÷ Σ (P_signal − P_noise) over the counted bins, Hz; null when none. */
   centroid: number | null;
+  /**
+   * Over the bins inside `inBand` (and outside the excluded bands): Σ P_signal ÷ Σ P_noise, a power
+   * ratio (null without such bins or with no noise there), and the share of those bins with R ≥ minSnr.
+   */
+  inBandSnr: number | null;
+  inBandShare: number | null;
 }
 
 /**
@@ -323,6 +329,7 @@ export function snrSpectrum(
   fmaxHz: number,
   excludeBands: ReadonlyArray<{ fmin: number; fmax: number }> = [],
   minSnr = 2,
+  inBand: readonly [number, number] | null = null,
 ): SnrSpectrum {
   const { signalFrom, signalTo, noiseFrom, noiseTo, nperseg } = plan;
   const inside = (a: number, b: number): boolean => Number.isInteger(a) && Number.isInteger(b) && a >= 0 && b <= x.length && b - a >= nperseg;
@@ -342,7 +349,23 @@ export function snrSpectrum(
     if (!(nv > 0) || f < fminHz || f > fmaxHz || !(r >= minSnr) || inBands(f, excludeBands)) return undefined;
     return (sig.values[k] as number) - nv;
   });
+  let sSum = 0;
+  let nSum = 0;
+  let binsIn = 0;
+  let binsUp = 0;
+  if (inBand) {
+    for (let k = 0; k < bins; k++) {
+      const f = sig.freqs[k] as number;
+      if (f < inBand[0] || f > inBand[1] || inBands(f, excludeBands)) continue;
+      sSum += sig.values[k] as number;
+      nSum += noi.values[k] as number;
+      binsIn++;
+      if ((snr[k] as number) >= minSnr) binsUp++;
+    }
+  }
   return {
+    inBandSnr: binsIn > 0 && nSum > 0 ? sSum / nSum : null,
+    inBandShare: binsIn > 0 ? binsUp / binsIn : null,
     freqs: sig.freqs,
     signalPsd: sig.values,
     noisePsd: noi.values,

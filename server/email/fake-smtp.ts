@@ -1,6 +1,6 @@
 import { SMTPServer } from 'smtp-server';
-import type { Database } from '../db/client';
-import { mailMessages } from '../db/schema/mail-messages';
+import type { Database } from '@server/db/client';
+import { mailMessages } from '@server/db/schema/mail-messages';
 import { parseMessage } from './parse-message';
 
 /** A running local fake SMTP server. */

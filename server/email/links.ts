@@ -1,5 +1,5 @@
-import { authPagePaths } from '../../shared/auth/links';
-import type { Env } from '../env';
+import { authPagePaths } from '@shared/auth/links';
+import type { Env } from '@server/env';
 
 /**
  * The base URL of links in e-mail: SEISIFT_PUBLIC_URL, else http://HOST:PORT (with a wildcard

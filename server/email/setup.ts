@@ -1,5 +1,5 @@
-import type { Database } from '../db/client';
-import type { Env } from '../env';
+import type { Database } from '@server/db/client';
+import type { Env } from '@server/env';
 import { startFakeSmtp, type FakeSmtpServer } from './fake-smtp';
 import { createMailer, type Mailer } from './mailer';
 

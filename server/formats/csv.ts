@@ -6,6 +6,11 @@ import { WaveformParseError, type DecodedStream } from './types';
 export interface CsvOptions {
   /** Stream id given with the upload; wins over a `# stream=` comment. */
   streamId?: string;
+  /**
+   * Time of t = 0 given with the upload, µs since epoch; wins over a `# start=` comment. Used for
+   * times in seconds only (ISO-8601 times carry their own date).
+   */
+  startTimeUs?: number;
 }
 
 /** Relative times at or above this many seconds are read as Unix epoch seconds (1e8 s = 1973-03-03). */
@@ -35,7 +40,10 @@ const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/u;
  *   3 decimals at 400 Hz pass, and a single missing sample always fails. Failures are refused
  *   naming the row: CSV has no record structure to report gaps by.
  * - Separators: `,` (also `;` or a tab, the same throughout the file); surrounding spaces are
- *   ignored; CR LF line ends accepted.
+ *   ignored; CR LF line ends accepted. Cells may be quoted as RFC 4180 describes (`"0.01","12"`,
+ *   a quote inside doubled: `""`); a quoted cell may hold the separator; it may not span lines.
+ * - A start time given with the upload (`startTimeUs`) wins over `# start=`, as the upload's stream
+ *   id wins over `# stream=`.
  *
  * @throws WaveformParseError naming the line (1-based) and column for every malformed cell, a
  *   missing stream id or start time, fewer than 2 samples, or non-uniform spacing
@@ -69,10 +77,8 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
       }
       continue;
     }
-    if (separator === undefined) {
-      separator = line.includes(',') ? ',' : line.includes(';') ? ';' : line.includes('\t') ? '\t' : ',';
-    }
-    const cells = line.split(separator).map((c) => c.trim());
+    separator ??= detectSeparator(line);
+    const cells = splitCells(line, separator, lineNo);
     if (rows.length === 0 && !headerSeen && !isTimeCell(cells[0] ?? '')) {
       headerSeen = true;
       if (cells.length !== 2) {
@@ -146,13 +152,14 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
     }
   }
 
+  if (opts.startTimeUs !== undefined) startUs = opts.startTimeUs;
   let startTimeUs: number;
   if (iso) startTimeUs = firstUs;
   else if (startUs !== undefined) startTimeUs = startUs + Math.round(firstRel * 1e6);
   else if (firstRel >= CSV_EPOCH_SECONDS_THRESHOLD) startTimeUs = Math.round(firstRel * 1e6);
   else {
     throw new WaveformParseError(
-      'CSV: times are relative seconds but no start time is given; add a comment line "# start=2026-03-14T09:26:53.589Z" or use ISO-8601 times',
+      'CSV: times are relative seconds but no start time is given; give the start time with the upload, add a comment line "# start=2026-03-14T09:26:53.589Z", or use ISO-8601 times',
     );
   }
 
@@ -167,6 +174,81 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
     encoding: 'csv',
     format: 'csv',
   };
+}
+
+/** The separator of a data line: `,` when one stands outside quotes, else `;`, else a tab (else `,`). */
+function detectSeparator(line: string): string {
+  const outside = line.replace(/"(?:[^"]|"")*"/gu, '');
+  return outside.includes(',') ? ',' : outside.includes(';') ? ';' : outside.includes('\t') ? '\t' : ',';
+}
+
+/**
+ * Splits one line into trimmed cells at `separator`, honouring RFC 4180 quotes: a cell that starts
+ * with `"` (after spaces) runs to the matching `"`, `""` inside stands for one quote.
+ * @throws WaveformParseError naming the line and column of an unclosed quote or of text after one
+ */
+export function splitCells(line: string, separator: string, lineNo: number): string[] {
+  const cells: string[] = [];
+  let i = 0;
+  for (;;) {
+    while (line[i] === ' ') i++;
+    let cell: string;
+    if (line[i] === '"') {
+      const column = cells.length + 1;
+      let value = '';
+      i++;
+      for (;;) {
+        const q = line.indexOf('"', i);
+        if (q < 0) throw new WaveformParseError(`CSV line ${lineNo}, column ${column}: a quote opens here but is not closed on this line`);
+        value += line.slice(i, q);
+        if (line[q + 1] === '"') {
+          value += '"';
+          i = q + 2;
+          continue;
+        }
+        i = q + 1;
+        break;
+      }
+      while (line[i] === ' ' || line[i] === '\t') i++;
+      if (i < line.length && !line.startsWith(separator, i)) {
+        throw new WaveformParseError(`CSV line ${lineNo}, column ${column}: text follows the closing quote`);
+      }
+      cell = value.trim();
+    } else {
+      const next = line.indexOf(separator, i);
+      cell = (next < 0 ? line.slice(i) : line.slice(i, next)).trim();
+      i = next < 0 ? line.length : next;
+    }
+    cells.push(cell);
+    if (i >= line.length) return cells;
+    i += separator.length; // past the separator
+    if (i >= line.length) {
+      cells.push('');
+      return cells;
+    }
+  }
+}
+
+/**
+ * True when some line of the text (among the first 1000 non-comment lines) reads as a CSV data
+ * row: at least two cells, the first a number or an ISO-8601 time, the second a number. Text
+ * without one is not a CSV waveform at all (decodeWaveform then says "plain text").
+ */
+export function looksLikeCsvData(text: string): boolean {
+  let seen = 0;
+  for (const raw of text.replace(/^\uFEFF/u, '').split(/\r?\n/u)) {
+    const line = raw.trim();
+    if (line === '' || line.startsWith('#')) continue;
+    if (++seen > 1000) break;
+    let cells: string[];
+    try {
+      cells = splitCells(line, detectSeparator(line), 0);
+    } catch {
+      continue;
+    }
+    if (cells.length >= 2 && isTimeCell(cells[0] ?? '') && NUMBER.test(cells[1] ?? '')) return true;
+  }
+  return false;
 }
 
 /** True when a cell is a number or an ISO-8601 time (so a data row, not a header). */

@@ -2,6 +2,7 @@ import { ByteReader } from './byte-reader';
 import { mergeRecords, type DecodedRecord } from './merge-records';
 import { seedTimeToUs } from './seed-time';
 import { decodeSteim } from './steim';
+import { headerCode } from './stream-id';
 import { WaveformParseError, type DecodedStream } from './types';
 
 /** SEED data encoding codes (SEED manual 2.4, blockette 1000 field 3) that Seisift decodes. */
@@ -87,8 +88,12 @@ export function looksLikeMiniSeed2(bytes: Uint8Array): boolean {
  * - sample rate from factor F and multiplier M (SEED manual 2.4, field 10/11): F>0,M>0: F·M;
  *   F>0,M<0: −F/M; F<0,M>0: −M/F; F<0,M<0: 1/(F·M);
  * - Steim-1/2 records are checked against their reverse integration constant;
+ * - codes: spaces removed, then printable ASCII letters and digits, network, station and channel
+ *   not empty (stream-id.ts `headerCode`, the same rule as for MiniSEED 3);
  * - text records (encoding 0, e.g. a LOG channel) and records without samples are skipped; a file
- *   with no samples at all is refused by decodeWaveform.
+ *   with no samples at all is refused by decodeWaveform;
+ * - zero bytes after the last record, or between records, are padding and skipped (libmseed skips
+ *   them too); any other byte where a record should start is refused.
  *
  * @param bytes the whole file
  * @returns one stream per NET.STA.LOC.CHA, in order of first appearance
@@ -100,6 +105,11 @@ export function decodeMiniSeed2(bytes: Uint8Array): DecodedStream[] {
   let offset = 0;
   let index = 0;
   while (offset < bytes.byteLength) {
+    const padded = index > 0 && !looksLikeMiniSeed2(bytes.subarray(offset)) ? skipZeroPadding(bytes, offset, looksLikeMiniSeed2) : undefined;
+    if (padded !== undefined) {
+      offset = padded;
+      continue;
+    }
     const where = `MiniSEED 2 record ${index + 1} at byte ${offset}`;
     const remaining = bytes.subarray(offset);
     if (remaining.byteLength < FIXED_HEADER_LENGTH) {
@@ -240,10 +250,10 @@ function parseHeader(r: ByteReader, where: string): ParsedHeader {
     seedTimeToUs(year, day, hour, minute, second, fract * 100, where) + correctionUs + microseconds;
 
   return {
-    station: r.ascii(8, 5, 'station code').trim(),
-    location: r.ascii(13, 2, 'location code').trim(),
-    channel: r.ascii(15, 3, 'channel code').trim(),
-    network: r.ascii(18, 2, 'network code').trim(),
+    station: headerCode(latin1(r.slice(8, 5, 'station code')), 'station', where),
+    location: headerCode(latin1(r.slice(13, 2, 'location code')), 'location', where),
+    channel: headerCode(latin1(r.slice(15, 3, 'channel code')), 'channel', where),
+    network: headerCode(latin1(r.slice(18, 2, 'network code')), 'network', where),
     quality: String.fromCharCode(r.u8(6, 'quality')),
     startTimeUs,
     sampleCount,
@@ -254,6 +264,28 @@ function parseHeader(r: ByteReader, where: string): ParsedHeader {
     recordLength,
     frameCount,
   };
+}
+
+/** Bytes as a string of one character per byte (latin-1), for headerCode. */
+export function latin1(bytes: Uint8Array): string {
+  let s = '';
+  for (const b of bytes) s += String.fromCharCode(b);
+  return s;
+}
+
+/**
+ * Offset of the next record after zero padding that starts at `offset`: the bytes from `offset`
+ * are all zero up to a position where `isRecord` holds (a record header may itself begin with
+ * NULs), or up to the end of the file (then `bytes.byteLength`). Undefined when `offset` does not
+ * start zero padding, or a non-zero byte comes before any record.
+ */
+export function skipZeroPadding(bytes: Uint8Array, offset: number, isRecord: (rest: Uint8Array) => boolean): number | undefined {
+  if (bytes[offset] !== 0) return undefined;
+  let end = offset;
+  while (end < bytes.byteLength && bytes[end] === 0) end++;
+  if (end === bytes.byteLength) return end;
+  for (let p = offset + 1; p <= end; p++) if (isRecord(bytes.subarray(p))) return p;
+  return undefined;
 }
 
 /**

@@ -1,8 +1,9 @@
 import { ByteReader } from './byte-reader';
 import { crc32c } from './crc32c';
 import { mergeRecords, type DecodedRecord } from './merge-records';
-import { decodeSamples, SEED_ENCODINGS } from './mseed2';
+import { decodeSamples, latin1, SEED_ENCODINGS, skipZeroPadding } from './mseed2';
 import { seedTimeToUs } from './seed-time';
+import { headerCode } from './stream-id';
 import { WaveformParseError, type DecodedStream } from './types';
 
 /** Fixed header length of a miniSEED 3 record, bytes (FDSN miniSEED 3 specification, 2022). */
@@ -16,25 +17,34 @@ export function looksLikeMiniSeed3(bytes: Uint8Array): boolean {
 /**
  * Maps an FDSN source identifier (FDSN Source Identifiers specification, v1.0) to SEED codes:
  * `FDSN:NET_STA_LOC_BAND_SOURCE_SUBSOURCE` → network, station, location, and channel =
- * band + source + subsource concatenated (`FDSN:XX_KV01_00_H_H_Z` → `XX.KV01.00.HHZ`).
+ * band + source + subsource concatenated (`FDSN:XX_KV01_00_H_H_Z` → `XX.KV01.00.HHZ`). Each code
+ * is checked by the same rule as MiniSEED 2 header codes (stream-id.ts `headerCode`): printable
+ * ASCII letters and digits, network, station and channel not empty.
  *
- * @throws WaveformParseError when the id does not start with `FDSN:` or does not have 6 parts
+ * @param sid the identifier's bytes, one character per byte (latin-1)
+ * @throws WaveformParseError when the id does not start with `FDSN:`, does not have 6 parts, or a
+ *   code breaks the rule (naming the field and its bytes)
  */
 export function parseSourceId(sid: string, where: string): { network: string; station: string; location: string; channel: string } {
   if (!sid.startsWith('FDSN:')) {
-    throw new WaveformParseError(`${where}: source identifier '${sid}' is not an FDSN source identifier (FDSN:NET_STA_LOC_B_S_SS)`);
+    throw new WaveformParseError(`${where}: source identifier '${printable(sid)}' is not an FDSN source identifier (FDSN:NET_STA_LOC_B_S_SS)`);
   }
   const parts = sid.slice(5).split('_');
   if (parts.length !== 6) {
     throw new WaveformParseError(
-      `${where}: source identifier '${sid}' has ${parts.length} '_'-separated parts; FDSN:NET_STA_LOC_B_S_SS has 6`,
+      `${where}: source identifier '${printable(sid)}' has ${parts.length} '_'-separated parts; FDSN:NET_STA_LOC_B_S_SS has 6`,
     );
   }
   const [network = '', station = '', location = '', band = '', source = '', subsource = ''] = parts;
-  if (network === '' || station === '' || source === '') {
-    throw new WaveformParseError(`${where}: source identifier '${sid}' lacks a network, station or source code`);
+  if (source === '') {
+    throw new WaveformParseError(`${where}: source identifier '${printable(sid)}' lacks a source code (the middle letter of the channel)`);
   }
-  return { network, station, location, channel: `${band}${source}${subsource}` };
+  return {
+    network: headerCode(network, 'network', where),
+    station: headerCode(station, 'station', where),
+    location: headerCode(location, 'location', where),
+    channel: headerCode(`${band}${source}${subsource}`, 'channel', where),
+  };
 }
 
 /**
@@ -64,6 +74,11 @@ export function decodeMiniSeed3(bytes: Uint8Array): DecodedStream[] {
   let offset = 0;
   let index = 0;
   while (offset < bytes.byteLength) {
+    const padded = index > 0 && !looksLikeMiniSeed3(bytes.subarray(offset)) ? skipZeroPadding(bytes, offset, looksLikeMiniSeed3) : undefined;
+    if (padded !== undefined) {
+      offset = padded;
+      continue;
+    }
     const where = `miniSEED 3 record ${index + 1} at byte ${offset}`;
     const remaining = bytes.subarray(offset);
     if (!looksLikeMiniSeed3(remaining)) {
@@ -113,7 +128,7 @@ export function decodeMiniSeed3(bytes: Uint8Array): DecodedStream[] {
       throw new WaveformParseError(`${where}: sample rate/period ${rateOrPeriod} is not a finite number`, offset);
     }
     const sampleRateHz = rateOrPeriod > 0 ? rateOrPeriod : rateOrPeriod < 0 ? -1 / rateOrPeriod : 0;
-    const sid = r.ascii(MS3_FIXED_HEADER_LENGTH, sidLength, 'source identifier');
+    const sid = latin1(r.slice(MS3_FIXED_HEADER_LENGTH, sidLength, 'source identifier'));
     const ids = parseSourceId(sid, where);
     let extraHeaders: unknown;
     if (extraLength > 0) {
@@ -160,6 +175,12 @@ export function decodeMiniSeed3(bytes: Uint8Array): DecodedStream[] {
     index++;
   }
   return mergeRecords(records, 'mseed3');
+}
+
+/** `s` for a message: at most 80 characters, bytes outside printable ASCII as \xNN. */
+function printable(s: string): string {
+  const cut = s.length > 80 ? `${s.slice(0, 80)}…` : s;
+  return cut.replace(/[^\x20-\x7e…]/gu, (c) => `\\x${c.charCodeAt(0).toString(16).toUpperCase().padStart(2, '0')}`);
 }
 
 function hex(n: number): string {

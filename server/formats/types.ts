@@ -14,6 +14,32 @@ export interface StreamDiscontinuity {
   durationS: number;
   /** Index in `samples` where the next record's data begins. */
   sampleIndex: number;
+  /**
+   * For a person: what the discontinuity is and which record starts it (1-based, with its byte
+   * offset), naming records that claim 0 samples inside a gap and the first differing sample of an
+   * overlap. Set by the MiniSEED decoders; absent for hand-built streams.
+   */
+  detail?: string;
+}
+
+/**
+ * Something the decoder did to place samples exactly at their times, or noticed while doing it,
+ * that the window's QC findings should say.
+ * - `duplicate-record`: a record whose samples all repeat samples already placed at the same times
+ *   (identical values) was dropped;
+ * - `duplicate-samples`: a record began inside samples already placed with identical values there:
+ *   those repeated samples were dropped, the rest placed after them;
+ * - `empty-record`: a data record claims 0 samples (nothing placed from it; its time lies where
+ *   samples are present, so nothing is missing because of it).
+ */
+export interface DecodeNote {
+  code: 'duplicate-record' | 'duplicate-samples' | 'empty-record';
+  /** What was found and done, naming the record (1-based) and its byte offset. */
+  message: string;
+  /** Index in `samples` of the sample at the record's start time (after placement). */
+  sampleIndex: number;
+  /** Samples dropped (0 for `empty-record`). */
+  count: number;
 }
 
 /** One continuous-or-gapped stream after merging all its records, in time order. */
@@ -30,8 +56,14 @@ export interface DecodedStream {
   startTimeUs: number;
   /** Samples in the file's units (counts for integer/Steim data), concatenated across records. */
   samples: Float64Array;
-  /** Gaps and overlaps between records (empty when continuous). */
+  /**
+   * Gaps and overlaps between records that remain in `samples` (empty when continuous): the samples
+   * after one do NOT sit at `startTimeUs + index / sampleRateHz`, see `placementProblems`.
+   * Repeated samples with identical values are not discontinuities: they are dropped (see `notes`).
+   */
   discontinuities: StreamDiscontinuity[];
+  /** What the decoder dropped or noticed while placing the samples (MiniSEED only). */
+  notes?: DecodeNote[];
   /** Source encoding name, e.g. `steim2`, `int32`, `float32`, `csv`. */
   encoding: string;
   /** `mseed2`, `mseed3` or `csv`. */

@@ -1,8 +1,8 @@
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
-import type { DecodedStream } from '../formats/types';
-import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
-import type { AnalysisResult, AnalyzeOptions } from '../dsp/pipeline';
+import type { DecodedStream } from '@server/formats/types';
+import type { ProcessingProfile } from '@shared/schemas/processing-profile';
+import type { AnalysisResult, AnalyzeOptions } from '@server/dsp/pipeline';
 import type { AnalysisTask } from './analysis-worker';
 
 /** A pool of worker threads running `analyzeWindow`, so the server's event loop never blocks on it. */

@@ -1,6 +1,6 @@
-import type { DecodedStream } from '../formats/types';
-import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
-import { analyzeWindow, type AnalysisResult, type AnalyzeOptions } from '../dsp/pipeline';
+import type { DecodedStream } from '@server/formats/types';
+import type { ProcessingProfile } from '@shared/schemas/processing-profile';
+import { analyzeWindow, type AnalysisResult, type AnalyzeOptions } from '@server/dsp/pipeline';
 
 /** One task for the analysis worker: the arguments of `analyzeWindow`, sent by the pool. */
 export interface AnalysisTask {

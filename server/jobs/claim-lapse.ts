@@ -1,5 +1,5 @@
-import type { AppContext } from '../context';
-import { lapseIdleClaims } from '../services/queue-transitions';
+import type { AppContext } from '@server/context';
+import { lapseIdleClaims } from '@server/features/queue/queue-transitions';
 
 /** A running background job. */
 export interface RunningJob {

@@ -1,7 +1,7 @@
 import type { Request, RequestHandler } from 'express';
-import { can, stationScope, type Action, type PolicyTarget } from '../../shared/auth/policies';
-import { forbidden, unauthorized } from '../errors';
-import { currentUser, optionalUser, type AuthUser } from '../middleware/auth';
+import { can, stationScope, type Action, type PolicyTarget } from '@shared/auth/policies';
+import { forbidden, unauthorized } from '@server/errors';
+import { currentUser, optionalUser, type AuthUser } from '@server/auth/authenticate';
 
 const actionWords: Record<Action, string> = {
   'station.view': 'view this station',

@@ -1,9 +1,9 @@
 import type { IncomingMessage, Server } from 'node:http';
 import type { Duplex } from 'node:stream';
 import { WebSocketServer, type WebSocket } from 'ws';
-import { wsPolicyViolation, type ChangeMessage, type ServerMessage } from '../../shared/realtime';
-import type { Database } from '../db/client';
-import type { Logger } from '../logger';
+import { wsPolicyViolation, type ChangeMessage, type ServerMessage } from '@shared/realtime';
+import type { Database } from '@server/db/client';
+import type { Logger } from '@server/logger';
 import { changesSince, latestSeq, oldestKeptSeq } from './change-log';
 
 /** Who is on the other end of a socket. */

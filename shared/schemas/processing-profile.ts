@@ -78,10 +78,21 @@ export const processingProfileSchema = z.object({
       ltaS: z.number().positive().default(30),
       on: z.number().positive().default(3.5),
       off: z.number().positive().default(1.5),
+      /** The trigger ignores this much of the window's start (a cosine ramp, then the filter settles), s. */
+      startS: z.number().min(0).max(10).default(0.75),
+      /** The LTA must hold at least this much noise before a ratio is given, s (an expanding LTA until ltaS). */
+      minLtaS: z.number().positive().max(60).default(1.25),
+      /** The AIC onset is searched from this long before a trigger … */
+      onsetSearchS: z.number().positive().max(10).default(2.5),
+      /** … to this long after it, s. */
+      onsetAfterS: z.number().min(0).max(5).default(0.5),
+      /** Window after the onset over which its suddenness (onsetSnr) is measured, s. */
+      onsetWindowS: z.number().positive().max(5).default(0.5),
     })
     .refine((s) => s.staS < s.ltaS, { message: 'the STA window must be shorter than the LTA window' })
     .refine((s) => s.off < s.on, { message: 'the trigger-off level must be below the trigger-on level' })
-    .default({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5 }),
+    .refine((s) => s.minLtaS <= s.ltaS, { message: 'minLtaS must not exceed the LTA window' })
+    .default({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5, startS: 0.75, minLtaS: 1.25, onsetSearchS: 2.5, onsetAfterS: 0.5, onsetWindowS: 0.5 }),
   snr: z
     .object({
       /** Length of the signal window after the first trigger-on, s. */
@@ -124,8 +135,15 @@ export const processingProfileSchema = z.object({
        * nowhere signalSpectrum.minSnr × the noise — refuses "likely event" too.)
        */
       signalPeakTolerance: z.number().min(0).max(2).default(0.2),
+      /**
+       * "Likely event" needs the triggered part's high-band power (Σ PSD over the band, from the
+       * onset) to reach this multiple of the noise before it …
+       */
+      minInBandSnr: z.number().min(1).default(4),
+      /** … with at least this share of the band's bins at signalSpectrum.minSnr × the noise or more. */
+      minInBandShare: z.number().min(0).max(1).default(0.5),
     })
-    .default({ eventZ: 3, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5, signalPeakTolerance: 0.2 }),
+    .default({ eventZ: 3, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5, signalPeakTolerance: 0.2, minInBandSnr: 4, minInBandShare: 0.5 }),
   /**
    * The signal spectrum the score reads when there is a trigger: Welch PSD of the triggered part over
    * that of the pre-trigger noise (see server/dsp/README.md). Absent in older profiles: defaults.
@@ -136,7 +154,9 @@ export const processingProfileSchema = z.object({
       minS: z.number().positive().default(2),
       maxS: z.number().positive().default(20),
       /** Pre-trigger noise part: at most noiseMaxS, at least noiseMinS (else the whole-window rule), s. */
-      noiseMinS: z.number().positive().default(5),
+      noiseMinS: z.number().positive().default(1.5),
+      /** Gap left between the noise part and the onset, s. */
+      guardS: z.number().min(0).default(0.25),
       noiseMaxS: z.number().positive().default(30),
       /** Welch segment length wanted for both parts, s (rounded down to a power of two of samples, ≤ psd.nperseg). */
       segmentS: z.number().positive().default(2.56),
@@ -145,7 +165,7 @@ export const processingProfileSchema = z.object({
     })
     .refine((s) => s.minS <= s.maxS, { message: 'signalSpectrum.minS must not exceed maxS' })
     .refine((s) => s.noiseMinS <= s.noiseMaxS, { message: 'signalSpectrum.noiseMinS must not exceed noiseMaxS' })
-    .default({ minS: 2, maxS: 20, noiseMinS: 5, noiseMaxS: 30, segmentS: 2.56, minSnr: 2 }),
+    .default({ minS: 2, maxS: 20, noiseMinS: 1.5, noiseMaxS: 30, guardS: 0.25, segmentS: 2.56, minSnr: 2 }),
 });
 
 /** A parsed processing profile (all defaults filled in). */

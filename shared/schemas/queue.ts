@@ -4,7 +4,7 @@ import { itemStateSchema, type ItemState } from './item-states';
 import { dismissalSchema, escalationSchema, eventLabelSchema, quakemlEventTypes, storedLabelSchema } from './label';
 
 /**
- * The review queue's wire formats, shared by the API (server/routes/queue) and the client
+ * The review queue's wire formats, shared by the API (server/features/queue) and the client
  * (client/src/features/queue, client/src/features/review).
  */
 

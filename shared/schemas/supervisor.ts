@@ -5,11 +5,11 @@ import { eventLabelSchema, quakemlEventTypes } from './label';
 
 /**
  * Wire formats of the network supervisor's side (issue 7): candidate events, thresholds, review,
- * inbox, dashboard and the catalogue export. Shared by server/routes/supervisor and
+ * inbox, dashboard and the catalogue export. Shared by server/features/supervision and
  * client/src/features/supervisor so both validate the same way.
  */
 
-/** Settings of the candidate-event grouping (see server/services/candidate-events.ts). */
+/** Settings of the candidate-event grouping (see server/features/events/candidate-events.ts). */
 export const groupingSettingsSchema = z.object({
   /** Distinct stations needed for a candidate event. */
   minStations: z.number().int().min(2, 'minStations must be at least 2').default(3),

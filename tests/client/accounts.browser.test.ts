@@ -7,11 +7,11 @@
  */
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { isRouted } from '../../client/src/app/router';
-import { navFor } from '../../client/src/config/paths';
-import { demoUsers, seedDemo } from '../../server/db/seed-demo';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { isRouted } from '@client/app/router';
+import { navFor } from '@client/config/paths';
+import { demoUsers, seedDemo } from '@server/db/seed-demo';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 const demoPassword = 'kestrel-demo-pass';
 let server: TestServer;

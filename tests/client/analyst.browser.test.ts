@@ -1,13 +1,13 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { queueItemDetailSchema } from '../../shared/schemas/queue';
-import { uploadResponseSchema } from '../../shared/schemas/upload';
-import { createStation, upsertChannel, type Actor } from '../../server/services/station-registry';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
-import { createItem, createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { queueItemDetailSchema } from '@shared/schemas/queue';
+import { uploadResponseSchema } from '@shared/schemas/upload';
+import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { createItem, createPerson, syntheticStreams, type TestPerson } from '@tests/setup/queue-fixtures';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /**
  * Two duty analysts in two browsers against the real server: an operator's upload reaches both

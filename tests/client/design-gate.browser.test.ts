@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { build, preview, type PreviewServer } from 'vite';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
 
 /*
  * A production build (import.meta.env.DEV false, no VITE_SEISIFT_DEV_PAGES) with nobody signed

@@ -1,8 +1,8 @@
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { seedDemo } from '../../server/db/seed-demo';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { seedDemo } from '@server/db/seed-demo';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /*
  * The /design page in a real browser (Debian chromium via playwright-core), reached as an admin

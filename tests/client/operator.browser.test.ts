@@ -2,12 +2,12 @@ import { fileURLToPath } from 'node:url';
 import { and, eq } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { stations } from '../../server/db/schema/stations';
-import { seedDemo } from '../../server/db/seed-demo';
-import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
-import { encodeMiniSeed3 } from '../../server/formats/mseed3-writer';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { stations } from '@server/db/schema/stations';
+import { seedDemo } from '@server/db/seed-demo';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /*
  * The station operator's path in a real browser (Debian chromium, playwright-core) against a real

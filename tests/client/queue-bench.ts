@@ -11,13 +11,13 @@
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { sql } from 'drizzle-orm';
-import { freePort } from '../../server/bootstrap/common';
-import { provisionDatabase, startPrivateMariaDb } from '../../server/bootstrap/mariadb';
-import { queueItems } from '../../server/db/schema/queue-items';
-import { uploads, windows } from '../../server/db/schema/uploads';
-import { launchBrowser } from '../setup/browser';
-import { createPerson, ensureStation } from '../setup/queue-fixtures';
-import { startTestServer } from '../setup/test-server';
+import { freePort } from '@server/bootstrap/common';
+import { provisionDatabase, startPrivateMariaDb } from '@server/bootstrap/mariadb';
+import { queueItems } from '@server/db/schema/queue-items';
+import { uploads, windows } from '@server/db/schema/uploads';
+import { launchBrowser } from '@tests/setup/browser';
+import { createPerson, ensureStation } from '@tests/setup/queue-fixtures';
+import { startTestServer } from '@tests/setup/test-server';
 
 const N = Number(process.env.BENCH_ROWS ?? 10_000);
 const quantile = (xs: number[], q: number) => {

@@ -4,7 +4,7 @@ import type { Page } from 'playwright-core';
 import { queueItemDetailSchema } from '../../shared/schemas/queue';
 import { uploadResponseSchema } from '../../shared/schemas/upload';
 import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
-import { createStation, upsertChannel, type Actor } from '../../server/services/station-registry';
+import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
 import { launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
 import { createItem, createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';
 import { startTestServer, type TestServer } from '../setup/test-server';

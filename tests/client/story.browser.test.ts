@@ -3,12 +3,12 @@ import { XMLParser } from 'fast-xml-parser';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { queueItemDetailSchema } from '../../shared/schemas/queue';
-import { seedDemo } from '../../server/db/seed-demo';
-import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { syntheticStreams } from '../setup/queue-fixtures';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { queueItemDetailSchema } from '@shared/schemas/queue';
+import { seedDemo } from '@server/db/seed-demo';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { syntheticStreams } from '@tests/setup/queue-fixtures';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /*
  * The whole story in one real browser (Debian chromium via playwright-core) against a real server
@@ -195,7 +195,7 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     const [csvDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download CSV' }).click()]);
     const csv = (await readFile(await csvDownload.path(), 'utf8')).trim().split(/\r?\n/);
     expect(csv.length).toBeGreaterThanOrEqual(2);
-    // Header and first columns: event_id,event_time,event_time_basis,event_type,type_certainty,evaluation_status (server/services/catalogue-csv.ts).
+    // Header and first columns: event_id,event_time,event_time_basis,event_type,type_certainty,evaluation_status (server/features/supervision/catalogue-csv.ts).
     expect(csv[0]).toMatch(/^event_id,event_time,event_time_basis,event_type,type_certainty,evaluation_status,stations,/);
     const line = csv.find((l) => l.startsWith(`smi:seisift.local/event/item/${kv01Item},`));
     expect(line, csv.join('\n')).toBeDefined();

@@ -2,10 +2,10 @@ import { readFile } from 'node:fs/promises';
 import { XMLParser } from 'fast-xml-parser';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { sessionCookieName } from '../../server/auth/sessions';
-import { launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { createItem, createPerson, type TestPerson } from '../setup/queue-fixtures';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { sessionCookieName } from '@server/auth/sessions';
+import { launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /*
  * A supervisor in a real browser (Debian chromium via playwright-core) against a real server over

@@ -1,10 +1,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WebSocket } from 'ws';
-import { wsPolicyViolation, type ChangeMessage } from '../../shared/realtime';
-import { adaptSocket, backoffDelayMs, createLiveClient, type LiveState, type SocketLike } from '../../client/src/lib/ws-client';
-import { startServer, type RunningServer } from '../../server/index';
-import { createTestContext, type TestContext } from '../setup/test-app';
-import { createItem, createPerson, type TestPerson } from '../setup/queue-fixtures';
+import { wsPolicyViolation, type ChangeMessage } from '@shared/realtime';
+import { adaptSocket, backoffDelayMs, createLiveClient, type LiveState, type SocketLike } from '@client/lib/ws-client';
+import { startServer, type RunningServer } from '@server/index';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 
 async function until(check: () => boolean, ms = 5000): Promise<void> {
   const end = Date.now() + ms;

@@ -4,10 +4,10 @@
  * DATABASE_URL, HOST and PORT in the environment. Mail goes to a local fake SMTP server on a free
  * port. Prints `seisift-fault-server listening <url> pid <pid>` once it accepts connections.
  */
-import { createDatabaseClient } from '../../server/db/client';
-import { setUpMail } from '../../server/email/setup';
-import { ConfigError, loadEnv } from '../../server/env';
-import { createContext, startServer } from '../../server/index';
+import { createDatabaseClient } from '@server/db/client';
+import { setUpMail } from '@server/email/setup';
+import { ConfigError, loadEnv } from '@server/env';
+import { createContext, startServer } from '@server/index';
 
 try {
   const env = loadEnv();

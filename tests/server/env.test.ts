@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { ConfigError, loadEnv } from '../../server/env';
+import { ConfigError, loadEnv } from '@server/env';
 
 describe('loadEnv', () => {
   it('applies the defaults (port 3000, private MariaDB on 3407, not 3306)', () => {

@@ -5,8 +5,8 @@
  */
 import { existsSync, mkdtempSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
-import { freePort } from '../../server/bootstrap/common';
-import { provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from '../../server/bootstrap/mariadb';
+import { freePort } from '@server/bootstrap/common';
+import { provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from '@server/bootstrap/mariadb';
 
 let server: PrivateMariaDb | undefined;
 

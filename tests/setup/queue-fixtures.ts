@@ -1,19 +1,19 @@
 import { createHash, randomBytes } from 'node:crypto';
 import { eq } from 'drizzle-orm';
-import type { Role } from '../../shared/auth/roles';
-import { defaultProcessingProfile } from '../../shared/schemas/processing-profile';
-import type { ItemState } from '../../shared/schemas/item-states';
-import type { Flag } from '../../shared/schemas/flags';
-import { createSessionStore, sessionCookieName } from '../../server/auth/sessions';
-import type { Database } from '../../server/db/client';
-import { queueItems } from '../../server/db/schema/queue-items';
-import { stationAssignments, stations } from '../../server/db/schema/stations';
-import { uploads, windowChannels, windows } from '../../server/db/schema/uploads';
-import { userRoles, users } from '../../server/db/schema/users';
-import type { DecodedStream } from '../../server/formats/types';
-import { analyzeWindow } from '../../server/dsp/pipeline';
-import { recordChange } from '../../server/realtime/change-log';
-import { presentQueueRow, selectQueueRows } from '../../server/presenters/queue-item';
+import type { Role } from '@shared/auth/roles';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
+import type { ItemState } from '@shared/schemas/item-states';
+import type { Flag } from '@shared/schemas/flags';
+import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { stationAssignments, stations } from '@server/db/schema/stations';
+import { uploads, windowChannels, windows } from '@server/db/schema/uploads';
+import { userRoles, users } from '@server/db/schema/users';
+import type { DecodedStream } from '@server/formats/types';
+import { analyzeWindow } from '@server/dsp/pipeline';
+import { recordChange } from '@server/realtime/change-log';
+import { presentQueueRow, selectQueueRows } from '@server/features/queue/presenters';
 
 /**
  * Test rows in the shape the ingest path writes them (upload → window with the engine's analysis →

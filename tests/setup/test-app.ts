@@ -1,10 +1,10 @@
-import type { AppContext } from '../../server/context';
-import type { FakeSmtpServer } from '../../server/email/fake-smtp';
-import { setUpMail } from '../../server/email/setup';
-import { loadEnv } from '../../server/env';
-import { createAppHub } from '../../server/index';
-import { createLogger } from '../../server/logger';
-import { appVersion } from '../../server/version';
+import type { AppContext } from '@server/context';
+import type { FakeSmtpServer } from '@server/email/fake-smtp';
+import { setUpMail } from '@server/email/setup';
+import { loadEnv } from '@server/env';
+import { createAppHub } from '@server/index';
+import { createLogger } from '@server/logger';
+import { appVersion } from '@server/version';
 import { createTestDatabase, type TestDatabase } from './test-db';
 
 /** An app context over a fresh migrated test database; `close()` drops it. */

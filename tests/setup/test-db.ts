@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto';
 import mysql from 'mysql2/promise';
-import { createDatabaseClient, type DatabaseClient } from '../../server/db/client';
-import { migrateDatabase } from '../../server/db/migrate';
+import { createDatabaseClient, type DatabaseClient } from '@server/db/client';
+import { migrateDatabase } from '@server/db/migrate';
 
 /** A migrated database of its own for one test file, dropped by `drop()`. */
 export interface TestDatabase extends DatabaseClient {

@@ -1,7 +1,7 @@
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
-import { clientDistDir } from '../../server/app';
-import { startServer } from '../../server/index';
+import { clientDistDir } from '@server/app';
+import { startServer } from '@server/index';
 import { createTestContext, type TestContext } from './test-app';
 
 /** A real Seisift server over a fresh test database, serving the built client. */

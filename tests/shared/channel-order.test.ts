@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { compareChannels, componentRank, sortChannels } from '../../shared/channel-order';
+import { compareChannels, componentRank, sortChannels } from '@shared/channel-order';
 
 /*
  * The one channel order: the component is the last letter of a SEED channel code (SEED Manual

@@ -1,8 +1,8 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { createContext, useContext, useEffect, useState, type ReactNode } from 'react';
-import type { ConnectionState } from '../components/ui/connection-indicator';
-import { applyChanges, refetchAll } from '../api/queue/live-patch';
-import { createLiveClient, liveUrl } from '../lib/ws-client';
+import type { ConnectionState } from '@client/components/ui/connection-indicator';
+import { applyChanges, refetchAll } from '@client/api/queue/live-patch';
+import { createLiveClient, liveUrl } from '@client/lib/ws-client';
 
 const LiveContext = createContext<ConnectionState | undefined>(undefined);
 

@@ -1,9 +1,9 @@
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import { useState, type ReactNode } from 'react';
-import { ToastProvider } from '../components/ui/toast';
-import { AuthSessionProvider } from '../features/auth/components/session-boundary';
-import { SessionProvider, type SessionValue } from '../lib/session-context';
-import { ThemeProvider } from '../lib/theme-provider';
+import { ToastProvider } from '@client/components/ui/toast';
+import { AuthSessionProvider } from '@client/features/auth/components/session-boundary';
+import { SessionProvider, type SessionValue } from '@client/lib/session-context';
+import { ThemeProvider } from '@client/lib/theme-provider';
 
 /** Builds the app's query client: no refetch on window focus (live updates come over the websocket). */
 export function createQueryClient(): QueryClient {

@@ -1,11 +1,11 @@
 import { createBrowserRouter, matchRoutes, Navigate, Outlet, useLocation, useNavigate, type RouteObject } from 'react-router';
-import { AppShell } from '../components/layouts/app-shell';
-import { Loading } from '../components/ui/skeleton';
-import { authPagePaths } from '../../../shared/auth/links';
-import { devPagesIncluded } from '../config/build-flags';
-import { paths } from '../config/paths';
-import { useSession } from '../lib/session-context';
-import { useSignOut } from '../features/auth/api/session';
+import { AppShell } from '@client/components/layouts/app-shell';
+import { Loading } from '@client/components/ui/skeleton';
+import { authPagePaths } from '@shared/auth/links';
+import { paths } from '@client/config/paths';
+import { useSession } from '@client/lib/session-context';
+import { devPagesIncluded } from '@client/config/build-flags';
+import { useSignOut } from '@client/features/auth/api/session';
 import { LiveUpdatesProvider, useLiveConnection } from './live-updates';
 import { HomeRoute } from './routes/home';
 import { NotFoundRoute } from './routes/not-found';
@@ -74,7 +74,7 @@ export const routes: RouteObject[] = [
     errorElement: <RouteError />,
     hydrateFallbackElement: <Loading label="Loading Seisift…" className="m-6" />,
     lazy: async () => {
-      const pages = await import('../features/auth/components/auth-pages');
+      const pages = await import('@client/features/auth/components/auth-pages');
       return { Component: pages[name] };
     },
   })),

@@ -1,6 +1,6 @@
 import { Link } from 'react-router';
-import type { CandidateMember } from '../api/queue/candidate-events';
-import { paths } from '../config/paths';
+import type { CandidateMember } from '@client/api/queue/candidate-events';
+import { paths } from '@client/config/paths';
 import { FlagMarker } from './ui/flag-marker';
 import { StateMarker } from './ui/state-marker';
 

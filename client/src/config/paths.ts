@@ -1,5 +1,5 @@
-import { can, type Action } from '../../../shared/auth/policies';
-import type { Role } from '../../../shared/auth/roles';
+import { can, type Action } from '@shared/auth/policies';
+import type { Role } from '@shared/auth/roles';
 
 /**
  * Every client URL in one place. Screens link with `paths.x.href`, the router registers

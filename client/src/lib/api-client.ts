@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { apiErrorBodySchema } from '../../../shared/api-error';
+import { apiErrorBodySchema } from '@shared/api-error';
 
 /** Field-level problems the server lists in `details.issues` (dotted paths). */
 export type FieldIssue = { path: string; message: string };

@@ -1,5 +1,5 @@
 import { createContext, useContext, type ReactNode } from 'react';
-import type { Role } from '../../../shared/auth/roles';
+import type { Role } from '@shared/auth/roles';
 
 /** The signed-in person as the client needs them. Fed later from GET /api/auth/me. */
 export type SessionUser = {

@@ -1,4 +1,4 @@
-import { serverMessageSchema, wsPolicyViolation, type ChangeMessage } from '../../../shared/realtime';
+import { serverMessageSchema, wsPolicyViolation, type ChangeMessage } from '@shared/realtime';
 
 /** The live connection's state, as the shell shows it. */
 export type LiveState = 'live' | 'connecting' | 'offline';

@@ -1,5 +1,5 @@
 import { index, mysqlTable, varchar } from 'drizzle-orm/mysql-core';
-import type { Role } from '../../../shared/auth/roles';
+import type { Role } from '@shared/auth/roles';
 import { idColumn, jsonColumn, timeColumn } from './columns';
 import { users } from './users';
 

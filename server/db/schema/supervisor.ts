@@ -6,7 +6,7 @@ import { users } from './users';
 
 /**
  * Candidate events: groups of items from several stations whose first triggers fall within the time
- * the stations' distances allow (server/services/candidate-events.ts). The anchor is the earliest
+ * the stations' distances allow (server/features/events/candidate-events.ts). The anchor is the earliest
  * member; a group found again in another arrival order has the same anchor.
  */
 export const candidateEvents = mysqlTable(

@@ -1,5 +1,5 @@
 import { boolean, index, mysqlTable, primaryKey, varchar } from 'drizzle-orm/mysql-core';
-import type { Role } from '../../../shared/auth/roles';
+import type { Role } from '@shared/auth/roles';
 import { timeColumn } from './columns';
 
 /** People who sign in. The id is a random string (lucia's user id). */

@@ -37,7 +37,7 @@ export const windowFeatures = mysqlTable(
   },
   (t) => [
     index('window_features_station_start_idx').on(t.stationId, t.windowStart),
-    // The station baseline's engine-flagged noise set, newest first (server/services/station-baseline.ts).
+    // The station baseline's engine-flagged noise set, newest first (server/features/stations/station-baseline.ts).
     index('window_features_station_flag_start_idx').on(t.stationId, t.flag, t.windowStart),
   ],
 );

@@ -1,4 +1,4 @@
-import { roleLabels, type Role } from '../../../shared/auth/roles';
+import { roleLabels, type Role } from '@shared/auth/roles';
 import { renderMail, type RenderedMail } from './layout';
 
 /** The invitation mail: who invited, which roles, the one-time link and when it expires. */

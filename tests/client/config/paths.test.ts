@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { roles, type Role } from '../../../shared/auth/roles';
-import { navFor, navItems, paths } from '../../../client/src/config/paths';
+import { roles, type Role } from '@shared/auth/roles';
+import { navFor, navItems, paths } from '@client/config/paths';
 
 /*
  * Who sees which section, written out by hand from the role descriptions of issue 3 and issue 5

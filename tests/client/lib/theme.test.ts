@@ -8,7 +8,7 @@ import {
   themeStorageKey,
   writeThemeChoice,
   type ThemeStorage,
-} from '../../../client/src/lib/theme';
+} from '@client/lib/theme';
 
 /*
  * The theme rule (issue 10): a remembered choice wins; otherwise follow prefers-color-scheme

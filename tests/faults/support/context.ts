@@ -1,10 +1,10 @@
-import type { AppContext } from '../../../server/context';
-import type { DatabaseClient } from '../../../server/db/client';
-import { setUpMail } from '../../../server/email/setup';
-import { loadEnv } from '../../../server/env';
-import { createAppHub } from '../../../server/index';
-import type { Logger } from '../../../server/logger';
-import { appVersion } from '../../../server/version';
+import type { AppContext } from '@server/context';
+import type { DatabaseClient } from '@server/db/client';
+import { setUpMail } from '@server/email/setup';
+import { loadEnv } from '@server/env';
+import { createAppHub } from '@server/index';
+import type { Logger } from '@server/logger';
+import { appVersion } from '@server/version';
 
 /**
  * An app context over a database client of the caller's own (a throw-away MariaDB the test may

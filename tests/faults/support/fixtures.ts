@@ -2,13 +2,13 @@ import { createHash, randomBytes } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import type { Pool } from 'mysql2/promise';
 import { z } from 'zod';
-import type { Role } from '../../../shared/auth/roles';
-import { hashPassword } from '../../../server/auth/password';
-import { createSessionStore, sessionCookieName } from '../../../server/auth/sessions';
-import type { Database } from '../../../server/db/client';
-import { channels, ingestTokens } from '../../../server/db/schema/stations';
-import { userRoles, users } from '../../../server/db/schema/users';
-import { ensureStation } from '../../setup/queue-fixtures';
+import type { Role } from '@shared/auth/roles';
+import { hashPassword } from '@server/auth/password';
+import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
+import type { Database } from '@server/db/client';
+import { channels, ingestTokens } from '@server/db/schema/stations';
+import { userRoles, users } from '@server/db/schema/users';
+import { ensureStation } from '@tests/setup/queue-fixtures';
 
 /**
  * Rows the fault, hostile-input and benchmark runs need, written straight to the database (the

@@ -1,9 +1,9 @@
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
-import { freePort } from '../../../server/bootstrap/common';
-import { provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from '../../../server/bootstrap/mariadb';
-import { createDatabaseClient } from '../../../server/db/client';
-import { migrateDatabase } from '../../../server/db/migrate';
+import { freePort } from '@server/bootstrap/common';
+import { provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from '@server/bootstrap/mariadb';
+import { createDatabaseClient } from '@server/db/client';
+import { migrateDatabase } from '@server/db/migrate';
 
 /**
  * A throw-away private MariaDB of its own (data under .data/<prefix>-XXXX, a free port) that a

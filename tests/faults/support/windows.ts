@@ -1,4 +1,4 @@
-import { encodeMiniSeed2 } from '../../../server/formats/mseed2-writer';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 
 /**
  * Synthetic upload files for fault tests and benchmarks (test input only, never check values):

@@ -3,9 +3,9 @@
  * (m = 19 MiB, t = 2, p = 1), read back from the PHC string the hash carries.
  */
 import { describe, expect, it } from 'vitest';
-import { passwordMinLength } from '../../../shared/auth/schemas';
-import { hashPassword, minPasswordLength, verifyPassword } from '../../../server/auth/password';
-import { generateOneTimeToken, hashOneTimeToken } from '../../../server/auth/tokens';
+import { passwordMinLength } from '@shared/auth/schemas';
+import { hashPassword, minPasswordLength, verifyPassword } from '@server/auth/password';
+import { generateOneTimeToken, hashOneTimeToken } from '@server/auth/tokens';
 
 describe('passwords and one-time tokens', () => {
   it('hashes with argon2id at m=19456 KiB, t=2, p=1 and verifies', async () => {

@@ -1,9 +1,9 @@
 import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { queueCounts } from '../../../server/db/schema/queue-counts';
-import { queueItems } from '../../../server/db/schema/queue-items';
-import { createTestDatabase, type TestDatabase } from '../../setup/test-db';
-import { createItem } from '../../setup/queue-fixtures';
+import { queueCounts } from '@server/db/schema/queue-counts';
+import { queueItems } from '@server/db/schema/queue-items';
+import { createTestDatabase, type TestDatabase } from '@tests/setup/test-db';
+import { createItem } from '@tests/setup/queue-fixtures';
 
 /**
  * queue_counts (migration 0006) against the count it stands for: a GROUP BY over queue_items

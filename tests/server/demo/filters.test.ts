@@ -1,7 +1,7 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { bandpass, filterInPlace, highpass1, highpass2, lowpass1, lowpass2, type Biquad } from '../../../server/demo/filters';
+import { bandpass, filterInPlace, highpass1, highpass2, lowpass1, lowpass2, type Biquad } from '@server/demo/filters';
 
 /**
  * scipy.signal.butter(N, fc, btype, fs=fs) for N = 1, 2 (Debian python3-scipy): the bilinear

@@ -4,16 +4,16 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { and, eq, gte } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ingestTokens, stations } from '../../../server/db/schema/stations';
-import { uploads, windows } from '../../../server/db/schema/uploads';
-import { seedDemo } from '../../../server/db/seed-demo';
-import { DEMO_WAVEFORMS_DIR } from '../../../server/demo/generate-waveforms';
-import { readDemoManifest } from '../../../server/demo/ingest-demo';
-import { REPLAY_TOKEN_LABEL, ReplayError, parseReplayArgs, replayDemo, shiftWindowFile } from '../../../server/demo/replay';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { startServer, type RunningServer } from '../../../server/index';
-import { createToken } from '../../../server/services/station-registry';
-import { createTestContext, type TestContext } from '../../setup/test-app';
+import { ingestTokens, stations } from '@server/db/schema/stations';
+import { uploads, windows } from '@server/db/schema/uploads';
+import { seedDemo } from '@server/db/seed-demo';
+import { DEMO_WAVEFORMS_DIR } from '@server/demo/generate-waveforms';
+import { readDemoManifest } from '@server/demo/ingest-demo';
+import { REPLAY_TOKEN_LABEL, ReplayError, parseReplayArgs, replayDemo, shiftWindowFile } from '@server/demo/replay';
+import { decodeWaveform } from '@server/formats/decode';
+import { startServer, type RunningServer } from '@server/index';
+import { createToken } from '@server/features/stations/station-registry';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 const sha = (b: Uint8Array): string => createHash('sha256').update(b).digest('hex');
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { BandError, validateBand } from '../../../server/dsp/bands';
-import { processingProfileSchema } from '../../../shared/schemas/processing-profile';
+import { BandError, validateBand } from '@server/dsp/bands';
+import { processingProfileSchema } from '@shared/schemas/processing-profile';
 
 describe('band validation (0.45·fs rule of the brief)', () => {
   it('accepts a band below 0.45·fs unchanged', () => {

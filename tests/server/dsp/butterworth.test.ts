@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { butterworthSos, butterworthZpk, type FilterType } from '../../../server/dsp/butterworth';
-import { sosfreqz } from '../../../server/dsp/sosfilt';
+import { butterworthSos, butterworthZpk, type FilterType } from '@server/dsp/butterworth';
+import { sosfreqz } from '@server/dsp/sosfilt';
 import { readFixture } from './fixture-signal';
 
 const fixture = readFixture(

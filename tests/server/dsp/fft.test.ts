@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { isPowerOfTwo, rfft } from '../../../server/dsp/fft';
+import { isPowerOfTwo, rfft } from '@server/dsp/fft';
 
 /** Direct DFT, X_k = Σ x_n e^{−2πikn/N} (the definition; numpy.fft convention). */
 function naiveDft(x: number[]): { re: number[]; im: number[] } {

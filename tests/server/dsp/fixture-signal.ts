@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { z } from 'zod';
-import type { DecodedStream } from '../../../server/formats/types';
+import type { DecodedStream } from '@server/formats/types';
 
 /**
  * Rebuilds the deterministic test inputs described in the scipy fixtures, exactly as

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { demean, detrendLinear, preprocessTrace, tukeyWindow } from '../../../server/dsp/preprocess';
+import { demean, detrendLinear, preprocessTrace, tukeyWindow } from '@server/dsp/preprocess';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 const fixture = readFixture(

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { medianAbsoluteDeviation, qualityChecks, type QcOptions } from '../../../server/dsp/qc';
+import { medianAbsoluteDeviation, qualityChecks, type QcOptions } from '@server/dsp/qc';
 import { lcgUniform } from './fixture-signal';
 
 const opts: QcOptions = { flatTopSamples: 3, spikeK: 20 };

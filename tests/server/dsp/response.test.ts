@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { countsPsdToVelocity, pazMagnitude, responseMagnitude, velocityPsdToAccelerationDb } from '../../../server/dsp/response';
+import { countsPsdToVelocity, pazMagnitude, responseMagnitude, velocityPsdToAccelerationDb } from '@server/dsp/response';
 
 // A 1 Hz, 0.707-damped velocity sensor: zeros {0, 0}, poles −ω0(h ± i√(1−h²)), ω0 = 2π rad/s
 // (the textbook electrodynamic seismometer, common practice). Above ω0 its response is flat.

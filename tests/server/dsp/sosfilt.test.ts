@@ -2,8 +2,8 @@ import fc from 'fast-check';
 import Fili from 'fili';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { butterworthSos } from '../../../server/dsp/butterworth';
-import { bandEnergy, sosfilt, sosfiltZeroPhase, sosfreqz } from '../../../server/dsp/sosfilt';
+import { butterworthSos } from '@server/dsp/butterworth';
+import { bandEnergy, sosfilt, sosfiltZeroPhase, sosfreqz } from '@server/dsp/sosfilt';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 const fixture = readFixture(

@@ -5,14 +5,14 @@
 import { desc } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createApp } from '../../../server/app';
-import { mailMessages } from '../../../server/db/schema/mail-messages';
-import { seedDemo } from '../../../server/db/seed-demo';
-import { createMailer } from '../../../server/email/mailer';
-import { createSessionStore } from '../../../server/auth/sessions';
+import { createApp } from '@server/app';
+import { mailMessages } from '@server/db/schema/mail-messages';
+import { seedDemo } from '@server/db/seed-demo';
+import { createMailer } from '@server/email/mailer';
+import { createSessionStore } from '@server/auth/sessions';
 import { eq } from 'drizzle-orm';
-import { users } from '../../../server/db/schema/users';
-import { createTestContext, type TestContext } from '../../setup/test-app';
+import { users } from '@server/db/schema/users';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
 describe('fake SMTP server', () => {
   let ctx: TestContext;

@@ -4,7 +4,7 @@
  */
 import MailComposer from 'nodemailer/lib/mail-composer';
 import { describe, expect, it } from 'vitest';
-import { decodeEncodedWords, decodeQuotedPrintable, parseMessage } from '../../../server/email/parse-message';
+import { decodeEncodedWords, decodeQuotedPrintable, parseMessage } from '@server/email/parse-message';
 
 async function compose(opts: { subject: string; text: string; html?: string; to?: string }): Promise<string> {
   const buf = await new MailComposer({ from: 'Seisift <seisift@kestrel.example>', to: opts.to ?? 'a@kestrel.example', subject: opts.subject, text: opts.text, html: opts.html }).compile().build();

@@ -1,12 +1,12 @@
 import { Writable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createDatabaseClient, type DatabaseClient } from '../../../server/db/client';
-import { startServer, type RunningServer } from '../../../server/index';
-import { createLogger } from '../../../server/logger';
-import { contextOver } from '../../faults/support/context';
-import { ingestRowCounts, seedIngestToken, seedPerson, seedStation } from '../../faults/support/fixtures';
-import { startThrowawayDb, type ThrowawayDb } from '../../faults/support/private-db';
-import { makeWindowFile } from '../../faults/support/windows';
+import { createDatabaseClient, type DatabaseClient } from '@server/db/client';
+import { startServer, type RunningServer } from '@server/index';
+import { createLogger } from '@server/logger';
+import { contextOver } from '@tests/faults/support/context';
+import { ingestRowCounts, seedIngestToken, seedPerson, seedStation } from '@tests/faults/support/fixtures';
+import { startThrowawayDb, type ThrowawayDb } from '@tests/faults/support/private-db';
+import { makeWindowFile } from '@tests/faults/support/windows';
 
 /**
  * MariaDB stopped and started under load (a throw-away MariaDB of this test's own, so stopping it

@@ -1,12 +1,12 @@
 import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { freePort } from '../../../server/bootstrap/common';
-import { createDatabaseClient, type DatabaseClient } from '../../../server/db/client';
-import { startChildServer, type ChildServer } from '../../faults/support/child-server';
-import { seedIngestToken, seedStation } from '../../faults/support/fixtures';
-import { startThrowawayDb, type ThrowawayDb } from '../../faults/support/private-db';
-import { makeWindowFile } from '../../faults/support/windows';
+import { freePort } from '@server/bootstrap/common';
+import { createDatabaseClient, type DatabaseClient } from '@server/db/client';
+import { startChildServer, type ChildServer } from '@tests/faults/support/child-server';
+import { seedIngestToken, seedStation } from '@tests/faults/support/fixtures';
+import { startThrowawayDb, type ThrowawayDb } from '@tests/faults/support/private-db';
+import { makeWindowFile } from '@tests/faults/support/windows';
 
 /**
  * The server killed with SIGKILL in the middle of a burst of uploads, then restarted (issue 9).

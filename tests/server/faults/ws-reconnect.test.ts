@@ -1,11 +1,11 @@
 import { WebSocket } from 'ws';
 import { z } from 'zod';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { serverMessageSchema } from '../../../shared/realtime';
-import { startServer, type RunningServer } from '../../../server/index';
-import { createTestContext, type TestContext } from '../../setup/test-app';
-import { seedIngestToken, seedPerson, seedStation } from '../../faults/support/fixtures';
-import { makeWindowFile } from '../../faults/support/windows';
+import { serverMessageSchema } from '@shared/realtime';
+import { startServer, type RunningServer } from '@server/index';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { seedIngestToken, seedPerson, seedStation } from '@tests/faults/support/fixtures';
+import { makeWindowFile } from '@tests/faults/support/windows';
 
 /**
  * Websocket clients cut off and reconnecting during a burst of uploads receive every change

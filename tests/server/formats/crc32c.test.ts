@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { crc32c } from '../../../server/formats/crc32c';
+import { crc32c } from '@server/formats/crc32c';
 
 describe('CRC-32C (Castagnoli)', () => {
   it('gives the standard check value for "123456789"', () => {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { decodeCsv } from '../../../server/formats/csv';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { WaveformParseError } from '../../../server/formats/types';
+import { decodeCsv } from '@server/formats/csv';
+import { decodeWaveform } from '@server/formats/decode';
+import { WaveformParseError } from '@server/formats/types';
 
 const T0 = Date.UTC(2026, 2, 14, 9, 26, 53, 589) * 1000;
 
@@ -81,5 +81,32 @@ describe('CSV waveforms', () => {
     expect(decodeWaveform(bytes, { streamId: 'XX.KV04.00.HHZ', filename: 'kv04.csv' })[0]?.sampleRateHz).toBe(50);
     expect(() => decodeWaveform(bytes, { filename: 'kv04.csv' })).toThrow(WaveformParseError);
     expect(() => decodeWaveform(bytes, { filename: 'kv04.csv' })).toThrow(/^kv04.csv: CSV: no stream id/u);
+  });
+
+  it('reads RFC 4180 quoted cells (quoted header and values, a doubled quote, the separator inside quotes)', () => {
+    // RFC 4180 §2: fields may be enclosed in double quotes; a quote inside one is doubled.
+    const quoted = `# stream=XX.KV01.00.HHZ start=2026-03-14T09:26:53.589Z\n"t_seconds","counts"\n${Array.from({ length: 300 }, (_, i) => `"${(i / 100).toFixed(2)}", "${i * 2 - 3}"`).join('\n')}\n`;
+    const plain = `# stream=XX.KV01.00.HHZ start=2026-03-14T09:26:53.589Z\nt_seconds,counts\n${rows(300, 100, 2)}\n`;
+    const a = decodeCsv(quoted);
+    const b = decodeCsv(plain);
+    expect(Array.from(a.samples)).toEqual(Array.from(b.samples));
+    expect([a.startTimeUs, a.sampleRateHz]).toEqual([b.startTimeUs, b.sampleRateHz]);
+    // ';' separated with quoted cells holding commas in the header, and a doubled quote.
+    const semi = decodeCsv(`"time, UTC";"counts ""raw"""\n${Array.from({ length: 20 }, (_, i) => `"${(i / 50).toFixed(2)}";"${i}"`).join('\n')}`, { streamId: 'XX.KV01.00.HHZ', startTimeUs: T0 });
+    expect(semi.samples.length).toBe(20);
+    expect(semi.sampleRateHz).toBe(50);
+    expect(() => decodeCsv(`t_seconds,counts\n"0.00,1\n0.01,2`, { streamId: 'XX.KV01.00.HHZ', startTimeUs: T0 })).toThrow(/CSV line 2, column 1: a quote opens here but is not closed on this line/u);
+    expect(() => decodeCsv(`t_seconds,counts\n"0.00"x,1\n0.01,2`, { streamId: 'XX.KV01.00.HHZ', startTimeUs: T0 })).toThrow(/CSV line 2, column 1: text follows the closing quote/u);
+  });
+
+  it('takes the start time of relative seconds from the upload (winning over # start=), and ignores it for ISO times', () => {
+    const body = `t_seconds,counts\n${rows(100, 100, 2)}\n`;
+    const given = decodeCsv(body, { streamId: 'XX.KV01.00.HHZ', startTimeUs: T0 + 5_000_000 });
+    expect(given.startTimeUs).toBe(T0 + 5_000_000);
+    const both = decodeCsv(`# start=2026-03-14T09:26:53.589Z\n${body}`, { streamId: 'XX.KV01.00.HHZ', startTimeUs: T0 + 5_000_000 });
+    expect(both.startTimeUs).toBe(T0 + 5_000_000);
+    const iso = decodeCsv(`2026-03-14T09:26:53.589Z,1\n2026-03-14T09:26:53.599Z,2\n2026-03-14T09:26:53.609Z,3`, { streamId: 'XX.KV01.00.HHZ', startTimeUs: T0 + 5_000_000 });
+    expect(iso.startTimeUs).toBe(T0);
+    expect(() => decodeCsv(body, { streamId: 'XX.KV01.00.HHZ' })).toThrow(/give the start time with the upload, add a comment line/u);
   });
 });

@@ -7,9 +7,9 @@
  * - the same as miniSEED 3 Steim-2 (CRC-32C checked on every record);
  * - a 120 s 3-component window at 100 sps (36,000 samples) as MiniSEED 2 Steim-2 and as CSV.
  */
-import { decodeWaveform } from '../../../server/formats/decode';
-import { encodeMiniSeed2 } from '../../../server/formats/mseed2-writer';
-import { encodeMiniSeed3 } from '../../../server/formats/mseed3-writer';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
 
 function walk(n: number, seed: number): Int32Array {
   const x = new Int32Array(n);

@@ -2,11 +2,11 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { crc32c } from '../../../server/formats/crc32c';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { encodeMiniSeed2 } from '../../../server/formats/mseed2-writer';
-import { encodeMiniSeed3 } from '../../../server/formats/mseed3-writer';
-import { WaveformParseError } from '../../../server/formats/types';
+import { crc32c } from '@server/formats/crc32c';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { WaveformParseError } from '@server/formats/types';
 
 /**
  * Property tests (fast-check): whatever is done to a valid file, decodeWaveform returns streams or

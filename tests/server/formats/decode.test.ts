@@ -1,9 +1,9 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { encodeMiniSeed2 } from '../../../server/formats/mseed2-writer';
-import { WaveformParseError } from '../../../server/formats/types';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { WaveformParseError } from '@server/formats/types';
 
 const FIXTURES = join(import.meta.dirname, '../../fixtures/mseed');
 
@@ -28,8 +28,8 @@ describe('decodeWaveform format sniffing and refusals', () => {
 
   it('refuses empty, unknown and binary garbage with a clear message', () => {
     expectParseError(new Uint8Array(0), /empty file/u);
-    expectParseError(Uint8Array.of(0x89, 0x50, 0x4e, 0x47, 0, 1, 2, 3), /unrecognised format.*89 50 4e 47/u);
-    expectParseError(new TextEncoder().encode('hello'), /CSV/u);
+    expectParseError(Uint8Array.of(0x89, 0x50, 0x4e, 0x47, 0, 1, 2, 3), /unrecognised binary format.*89 50 4e 47/u);
+    expectParseError(new TextEncoder().encode('hello'), /^this is plain text, not a CSV waveform.*begins "hello"/u);
     expectParseError(Uint8Array.of(0x4d, 0x53, 3), /truncated/u);
   });
 
@@ -81,5 +81,54 @@ describe('decodeWaveform format sniffing and refusals', () => {
     const b = decodeWaveform(new Uint8Array(file))[0];
     expect(Array.from(a?.samples ?? [])).toEqual(Array.from(b?.samples ?? []));
     expect(a?.samples.length).toBe(700);
+  });
+
+  it('names what a file is when it is not a waveform (by content, whatever its name)', () => {
+    const enc = new TextEncoder();
+    const msg = (bytes: Uint8Array, filename: string): string => {
+      try {
+        decodeWaveform(bytes, { filename });
+      } catch (err) {
+        expect(err).toBeInstanceOf(WaveformParseError);
+        return (err as Error).message;
+      }
+      throw new Error(`${filename} accepted`);
+    };
+    // Signatures: PKWARE APPNOTE (ZIP local file header), RFC 1952 (gzip), W3C XML 1.0.
+    expect(msg(Uint8Array.of(0x50, 0x4b, 0x03, 0x04, 20, 0, 0, 0, 8, 0), 'day.mseed')).toBe('day.mseed: this is a ZIP archive, not a waveform file: unpack it and upload the MiniSEED or CSV files inside');
+    expect(msg(Uint8Array.of(0x1f, 0x8b, 8, 0, 0, 0, 0, 0, 0, 3), 'day.mseed.gz')).toBe('day.mseed.gz: this is gzip-compressed data, not a waveform file: decompress it and upload the file inside');
+    expect(msg(enc.encode('<?xml version="1.0" encoding="UTF-8"?>\n<!-- network XX -->\n<FDSNStationXML xmlns="http://www.fdsn.org/xml/station/1" schemaVersion="1.2"></FDSNStationXML>'), 'XX.csv')).toMatch(/^XX\.csv: this is XML: StationXML station metadata, not a waveform/u);
+    expect(msg(enc.encode('<?xml version="1.0"?><q:quakeml xmlns:q="http://quakeml.org/xmlns/quakeml/1.2"/>'), 'ev.xml')).toMatch(/this is XML: a QuakeML event catalogue/u);
+    expect(msg(enc.encode('<?xml version="1.0"?><readings><r t="0">1</r></readings>'), 'r.xml')).toMatch(/this is XML \(root element <readings>\), not a waveform file/u);
+    expect(msg(enc.encode('<!DOCTYPE html><html><body>502 Bad Gateway</body></html>'), 'w.mseed')).toMatch(/named like MiniSEED but holds text, this is an HTML page/u);
+    expect(msg(enc.encode('{"samples":[1,2,3]}'), 'w.json')).toMatch(/this is JSON, not a waveform file/u);
+    expect(msg(enc.encode('Station KV01 was serviced on Tuesday.\nNothing to report.\n'), 'notes.txt')).toBe(
+      `notes.txt: this is plain text, not a CSV waveform: no line holds a time and a value separated by ',', ';' or a tab (it begins "Station KV01 was serviced on Tuesday. Nothing to report.")`,
+    );
+    expect(msg(new Uint8Array(2048), 'blank.mseed')).toBe('blank.mseed: the file holds only zero bytes (2048 bytes)');
+    expect(msg(enc.encode('t_seconds,counts\n0.00,1\u0007\n'), 'bell.csv')).toMatch(/this is text with a control character \(byte 07 hex at byte 23\)/u);
+  });
+
+  it('reads a CSV file named .mseed as the CSV it is, and says so when it is refused', () => {
+    const enc = new TextEncoder();
+    const text = `# stream=XX.KV01.00.HHZ start=2026-03-14T09:26:53.589Z\nt_seconds,counts\n${Array.from({ length: 200 }, (_, i) => `${(i / 100).toFixed(2)},${i}`).join('\n')}\n`;
+    const [s] = decodeWaveform(enc.encode(text), { filename: 'kv01.mseed' });
+    expect(s?.format).toBe('csv');
+    expect(s?.samples.length).toBe(200);
+    expect(() => decodeWaveform(enc.encode(text.replace(/^# stream=\S+ /u, '# ')), { filename: 'kv01.mseed' })).toThrow(
+      /^kv01\.mseed: named like MiniSEED but holds text, read as CSV: CSV: no stream id/u,
+    );
+  });
+
+  it('accepts MiniSEED 2 followed by zero padding (libmseed fixture defect-zero-padding.mseed: 1024 zero bytes)', () => {
+    const padded = new Uint8Array(readFileSync(join(FIXTURES, 'defect-zero-padding.mseed')));
+    expect(padded.subarray(4096).every((b) => b === 0)).toBe(true);
+    const [a] = decodeWaveform(padded);
+    const [b] = decodeWaveform(padded.subarray(0, 4096));
+    expect(Array.from(a?.samples ?? [])).toEqual(Array.from(b?.samples ?? []));
+    expect(a?.samples.length).toBe(1500);
+    // Anything else after the records is still refused.
+    const junk = Uint8Array.from([...padded.subarray(0, 4096), 0, 0, ...new Uint8Array(100).fill(0x41)]);
+    expectParseError(junk, /record 9 at byte 4096: not a MiniSEED 2 data record header/u);
   });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatIsoTimeUs, parseIsoTimeUs } from '../../../server/formats/iso-time';
+import { formatIsoTimeUs, parseIsoTimeUs } from '@server/formats/iso-time';
 
 describe('ISO-8601 UTC times to µs (ISO 8601 / RFC 3339 layout)', () => {
   it('agrees with Date.parse to the ms and keeps µs beyond it', () => {

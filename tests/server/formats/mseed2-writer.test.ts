@@ -1,9 +1,9 @@
 import { rmSync } from 'node:fs';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { decodeMiniSeed2 } from '../../../server/formats/mseed2';
-import { encodeMiniSeed2, rateFactors, type MiniSeed2WriteOptions } from '../../../server/formats/mseed2-writer';
-import { nominalRate } from '../../../server/formats/mseed2';
+import { decodeMiniSeed2 } from '@server/formats/mseed2';
+import { encodeMiniSeed2, rateFactors, type MiniSeed2WriteOptions } from '@server/formats/mseed2-writer';
+import { nominalRate } from '@server/formats/mseed2';
 import type { LibmseedDump } from './libmseed-json';
 import { buildLibmseedDump } from './libmseed-tool';
 

@@ -1,11 +1,11 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { crc32c } from '../../../server/formats/crc32c';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { decodeMiniSeed3, parseSourceId } from '../../../server/formats/mseed3';
-import { encodeMiniSeed3, type MiniSeed3WriteOptions } from '../../../server/formats/mseed3-writer';
-import { WaveformParseError } from '../../../server/formats/types';
+import { crc32c } from '@server/formats/crc32c';
+import { decodeWaveform } from '@server/formats/decode';
+import { decodeMiniSeed3, parseSourceId } from '@server/formats/mseed3';
+import { encodeMiniSeed3, type MiniSeed3WriteOptions } from '@server/formats/mseed3-writer';
+import { WaveformParseError } from '@server/formats/types';
 import { libmseedDumpSchema } from './libmseed-json';
 
 const FIXTURES = join(import.meta.dirname, '../../fixtures/mseed');

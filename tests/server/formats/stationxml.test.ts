@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { parseStationXml, StationXmlParseError, type PolesZeros } from '../../../server/formats/stationxml';
+import { parseStationXml, StationXmlParseError, type PolesZeros } from '@server/formats/stationxml';
 
 const XML = readFileSync(join(import.meta.dirname, '../../fixtures/stationxml/xx-kestrel-valley.xml'), 'utf8');
 

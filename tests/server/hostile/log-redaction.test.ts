@@ -1,12 +1,12 @@
 import { Writable } from 'node:stream';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createApp } from '../../../server/app';
-import type { AppContext } from '../../../server/context';
-import { createLogger } from '../../../server/logger';
-import { contextOver } from '../../faults/support/context';
-import { createTestDatabase, type TestDatabase } from '../../setup/test-db';
-import { seedIngestToken, seedPerson, seedStation } from '../../faults/support/fixtures';
+import { createApp } from '@server/app';
+import type { AppContext } from '@server/context';
+import { createLogger } from '@server/logger';
+import { contextOver } from '@tests/faults/support/context';
+import { createTestDatabase, type TestDatabase } from '@tests/setup/test-db';
+import { seedIngestToken, seedPerson, seedStation } from '@tests/faults/support/fixtures';
 
 /**
  * Secrets never reach the logs: the app's real logger (server/logger.ts, pino with redaction) at

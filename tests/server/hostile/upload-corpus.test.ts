@@ -1,10 +1,10 @@
 import { request as httpRequest } from 'node:http';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startServer, type RunningServer } from '../../../server/index';
-import { createTestContext, type TestContext } from '../../setup/test-app';
-import { ingestRowCounts, seedIngestToken, seedStation } from '../../faults/support/fixtures';
-import { expectedReason, makeHostileCorpus } from '../../fixtures/hostile/make-corpus';
-import { makeWindowFile } from '../../faults/support/windows';
+import { startServer, type RunningServer } from '@server/index';
+import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { ingestRowCounts, seedIngestToken, seedStation } from '@tests/faults/support/fixtures';
+import { expectedReason, makeHostileCorpus } from '@tests/fixtures/hostile/make-corpus';
+import { makeWindowFile } from '@tests/faults/support/windows';
 
 /**
  * The hostile corpus through POST /api/uploads of a real server (HTTP on loopback, a station

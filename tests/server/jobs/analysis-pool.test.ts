@@ -1,8 +1,8 @@
 import { afterAll, describe, expect, it } from 'vitest';
-import { createAnalysisPool } from '../../../server/jobs/analysis-pool';
-import { analyzeWindow } from '../../../server/dsp/pipeline';
-import { defaultProcessingProfile } from '../../../shared/schemas/processing-profile';
-import { makeSignal, stream } from '../dsp/fixture-signal';
+import { createAnalysisPool } from '@server/jobs/analysis-pool';
+import { analyzeWindow } from '@server/dsp/pipeline';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
+import { makeSignal, stream } from '@tests/server/dsp/fixture-signal';
 
 const pool = createAnalysisPool({ threads: 2 });
 afterAll(async () => {

@@ -2,11 +2,11 @@ import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WebSocket } from 'ws';
-import { serverMessageSchema, wsPolicyViolation, type ServerMessage } from '../../../shared/realtime';
-import { recordChange } from '../../../server/realtime/change-log';
-import { createHub, type RealtimeHub } from '../../../server/realtime/hub';
-import { createLogger } from '../../../server/logger';
-import { createTestDatabase, type TestDatabase } from '../../setup/test-db';
+import { serverMessageSchema, wsPolicyViolation, type ServerMessage } from '@shared/realtime';
+import { recordChange } from '@server/realtime/change-log';
+import { createHub, type RealtimeHub } from '@server/realtime/hub';
+import { createLogger } from '@server/logger';
+import { createTestDatabase, type TestDatabase } from '@tests/setup/test-db';
 
 /** A test client that records every message it receives. */
 function connect(url: string, headers: Record<string, string>) {

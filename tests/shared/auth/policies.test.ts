@@ -3,7 +3,7 @@
  * written out case by case here rather than derived from the table under test.
  */
 import { describe, expect, it } from 'vitest';
-import { actions, allowedActions, can, stationScope, type PolicyActor } from '../../../shared/auth/policies';
+import { actions, allowedActions, can, stationScope, type PolicyActor } from '@shared/auth/policies';
 
 const operator: PolicyActor = { roles: ['operator'], stationIds: [1, 2, 3] };
 const analyst: PolicyActor = { roles: ['analyst'], stationIds: [] };

@@ -1,9 +1,9 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import type { groupLabelBodySchema } from '../../../../shared/schemas/supervisor';
-import { flagSchema } from '../../../../shared/schemas/flags';
-import { itemStateSchema } from '../../../../shared/schemas/item-states';
-import { apiRequest } from '../../lib/api-client';
+import type { groupLabelBodySchema } from '@shared/schemas/supervisor';
+import { flagSchema } from '@shared/schemas/flags';
+import { itemStateSchema } from '@shared/schemas/item-states';
+import { apiRequest } from '@client/lib/api-client';
 
 /** One member of a candidate event as GET /api/supervisor/candidate-events/:id sends it. */
 export const candidateMemberSchema = z.object({
@@ -22,7 +22,7 @@ export const candidateMemberSchema = z.object({
 /** A candidate event member. */
 export type CandidateMember = z.infer<typeof candidateMemberSchema>;
 
-/** A candidate event with the members the viewer may see (server/services/candidate-events.ts). */
+/** A candidate event with the members the viewer may see (server/features/events/candidate-events.ts). */
 export const candidateEventSchema = z.object({
   id: z.number().int(),
   anchorItemId: z.number().int(),

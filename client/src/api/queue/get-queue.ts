@@ -1,7 +1,7 @@
 import { infiniteQueryOptions, queryOptions, useInfiniteQuery, useQuery, type InfiniteData } from '@tanstack/react-query';
 import { z } from 'zod';
-import { queuePageSchema, type QueuePage, type QueueQuery } from '../../../../shared/schemas/queue';
-import { apiRequest } from '../../lib/api-client';
+import { queuePageSchema, type QueuePage, type QueueQuery } from '@shared/schemas/queue';
+import { apiRequest } from '@client/lib/api-client';
 
 /** The list filters a screen holds (everything of GET /api/queue but the cursor and page size). */
 export type QueueFilters = Omit<Partial<QueueQuery>, 'cursor' | 'limit'> & { sort: QueueQuery['sort'] };

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient, type QueryClient } from '@tanstack/react-query';
-import { queueRowSchema, type QueueRow } from '../../../../shared/schemas/queue';
-import type { EventLabelInput, NoiseReason } from '../../../../shared/schemas/label';
-import { apiRequest, noContent } from '../../lib/api-client';
+import { queueRowSchema, type QueueRow } from '@shared/schemas/queue';
+import type { EventLabelInput, NoiseReason } from '@shared/schemas/label';
+import { apiRequest, noContent } from '@client/lib/api-client';
 import { patchRow } from './live-patch';
 
 /** One analyst action and what it sends. */

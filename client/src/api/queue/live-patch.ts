@@ -1,7 +1,7 @@
 import type { QueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import type { ChangeMessage } from '../../../../shared/realtime';
-import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '../../../../shared/schemas/queue';
+import type { ChangeMessage } from '@shared/realtime';
+import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '@shared/schemas/queue';
 import { getQueuePage, type QueueFilters, type QueueListData } from './get-queue';
 
 /**
@@ -115,7 +115,7 @@ export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['ki
   if (kind === 'created') liveArrivals.add(row.id);
 }
 
-/** Summary of a candidate_event change (server/services/candidate-events.ts regroupAround). */
+/** Summary of a candidate_event change (server/features/events/candidate-events.ts regroupAround). */
 const groupSummarySchema = z.object({ itemIds: z.array(z.number().int()), stationCount: z.number().int() });
 
 /**

@@ -1,4 +1,4 @@
-import { queueQuerySchema } from '../../../../shared/schemas/queue';
+import { queueQuerySchema } from '@shared/schemas/queue';
 import type { QueueFilters } from './get-queue';
 
 /** The states the queue shows when the URL names none: what still waits for an analyst. */

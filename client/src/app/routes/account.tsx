@@ -1,6 +1,6 @@
-import { AccountScreen } from '../../features/account/components/account-screen';
-import { useSignOut } from '../../features/auth/api/session';
-import { RequirePermission } from '../../features/auth/components/require-permission';
+import { AccountScreen } from '@client/features/account/components/account-screen';
+import { useSignOut } from '@client/features/auth/api/session';
+import { RequirePermission } from '@client/features/auth/components/require-permission';
 
 /** /account: your password and sessions (any signed-in person). */
 export function AccountRoute() {

@@ -1,5 +1,5 @@
-import { AdminUsersScreen } from '../../features/admin/components/admin-users-screen';
-import { RequirePermission } from '../../features/auth/components/require-permission';
+import { AdminUsersScreen } from '@client/features/admin/components/admin-users-screen';
+import { RequirePermission } from '@client/features/auth/components/require-permission';
 
 /** /admin/users: people, roles, station assignments, invitations (admins). */
 export function AdminUsersRoute() {

@@ -1,5 +1,5 @@
-import { RequirePermission } from '../../features/auth/components/require-permission';
-import { AuditScreen } from '../../features/audit/components/audit-screen';
+import { RequirePermission } from '@client/features/auth/components/require-permission';
+import { AuditScreen } from '@client/features/audit/components/audit-screen';
 
 /** /audit: the audit log (supervisors and admins). */
 export function AuditRoute() {

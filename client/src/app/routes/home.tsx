@@ -1,11 +1,11 @@
 import { Link } from 'react-router';
-import { authPagePaths } from '../../../../shared/auth/links';
-import { roleLabels } from '../../../../shared/auth/roles';
-import { devPagesIncluded } from '../../config/build-flags';
-import { navFor } from '../../config/paths';
-import { useSession } from '../../lib/session-context';
-import { buttonClass } from '../../components/ui/button';
-import { EmptyState } from '../../components/ui/empty-state';
+import { authPagePaths } from '@shared/auth/links';
+import { roleLabels } from '@shared/auth/roles';
+import { devPagesIncluded } from '@client/config/build-flags';
+import { navFor } from '@client/config/paths';
+import { useSession } from '@client/lib/session-context';
+import { buttonClass } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
 
 /** Props of <HomeRoute>: which paths the router serves, to tell built sections from coming ones. */
 export type HomeRouteProps = { isRouted: (href: string) => boolean };

@@ -1,6 +1,6 @@
-import { EmptyState } from '../../components/ui/empty-state';
-import { MailboxScreen } from '../../features/admin/components/mailbox-screen';
-import { RequirePermission } from '../../features/auth/components/require-permission';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { MailboxScreen } from '@client/features/admin/components/mailbox-screen';
+import { RequirePermission } from '@client/features/auth/components/require-permission';
 
 /** /mailbox: mail caught by the local fake SMTP server (admins; only while it is in use). */
 export function MailboxRoute() {

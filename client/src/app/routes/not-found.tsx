@@ -1,6 +1,6 @@
 import { Link, useLocation } from 'react-router';
-import { EmptyState } from '../../components/ui/empty-state';
-import { buttonClass } from '../../components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { buttonClass } from '@client/components/ui/button';
 
 /** Shown for a URL the router does not know: names the URL and offers the way home. */
 export function NotFoundRoute() {

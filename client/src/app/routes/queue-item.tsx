@@ -1,5 +1,5 @@
 import { useParams } from 'react-router';
-import { ReviewScreen } from '../../features/review/components/review-screen';
+import { ReviewScreen } from '@client/features/review/components/review-screen';
 import { NotFoundRoute } from './not-found';
 
 /** /queue/items/:id: one item on the review screen. */

@@ -1,5 +1,5 @@
 import { useEffect } from 'react';
-import { QueueScreen } from '../../features/queue/components/queue-screen';
+import { QueueScreen } from '@client/features/queue/components/queue-screen';
 
 /** /queue: the live review queue. */
 export function QueueRoute() {

@@ -1,5 +1,5 @@
 import { useParams } from 'react-router';
-import { StationPage } from '../../features/stations/components/station-page';
+import { StationPage } from '@client/features/stations/components/station-page';
 import { NotFoundRoute } from './not-found';
 
 /** /stations/:id: one station's page. */

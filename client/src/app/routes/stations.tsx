@@ -1,4 +1,4 @@
-import { StationList } from '../../features/stations/components/station-list';
+import { StationList } from '@client/features/stations/components/station-list';
 
 /** /stations: the station registry. */
 export function StationsRoute() {

@@ -1,7 +1,7 @@
-import { DashboardScreen } from '../../features/supervisor/components/dashboard-screen';
-import { InboxScreen } from '../../features/supervisor/components/inbox-screen';
-import { ReviewScreen } from '../../features/supervisor/components/review-screen';
-import { ThresholdsScreen } from '../../features/supervisor/components/thresholds-screen';
+import { DashboardScreen } from '@client/features/supervisor/components/dashboard-screen';
+import { InboxScreen } from '@client/features/supervisor/components/inbox-screen';
+import { ReviewScreen } from '@client/features/supervisor/components/review-screen';
+import { ThresholdsScreen } from '@client/features/supervisor/components/thresholds-screen';
 
 /** /inbox: escalations for the signed-in supervisor. */
 export function InboxRoute() {

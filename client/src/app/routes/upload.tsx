@@ -1,4 +1,4 @@
-import { UploadScreen } from '../../features/uploads/components/upload-screen';
+import { UploadScreen } from '@client/features/uploads/components/upload-screen';
 
 /** /upload: send waveform files by hand. */
 export function UploadRoute() {

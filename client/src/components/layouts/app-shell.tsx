@@ -1,15 +1,15 @@
 import type { ReactNode } from 'react';
 import { Link, NavLink } from 'react-router';
-import { roleLabels } from '../../../../shared/auth/roles';
-import { devPagesIncluded } from '../../config/build-flags';
-import { navFor, navGroups, type NavItem } from '../../config/paths';
-import { cx } from '../../lib/cx';
-import { useSession, type SessionUser } from '../../lib/session-context';
-import { Badge } from '../ui/badge';
-import { Button } from '../ui/button';
-import { ConnectionIndicator, type ConnectionState } from '../ui/connection-indicator';
-import { SeisiftMark } from '../ui/seisift-mark';
-import { ThemeSwitch } from '../ui/theme-switch';
+import { roleLabels } from '@shared/auth/roles';
+import { devPagesIncluded } from '@client/config/build-flags';
+import { navFor, navGroups, type NavItem } from '@client/config/paths';
+import { cx } from '@client/lib/cx';
+import { useSession, type SessionUser } from '@client/lib/session-context';
+import { Badge } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { ConnectionIndicator, type ConnectionState } from '@client/components/ui/connection-indicator';
+import { SeisiftMark } from '@client/components/ui/seisift-mark';
+import { ThemeSwitch } from '@client/components/ui/theme-switch';
 
 /** Props of <TopBar>. */
 export type TopBarProps = {

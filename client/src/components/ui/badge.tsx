@@ -1,5 +1,5 @@
 import type { ReactNode } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 
 /** Badge tones; each pairs a wash background with a text colour of ≥ 4.5:1 on it. */
 export type BadgeTone = 'neutral' | 'info' | 'ok' | 'warn' | 'danger' | 'accent';

@@ -1,5 +1,5 @@
 import type { ComponentPropsWithRef, ReactNode } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 import { Kbd } from './kbd';
 
 /** Button looks: primary (one per view), secondary, quiet, and danger for destructive actions. */

@@ -1,5 +1,5 @@
 import { useId, type ComponentPropsWithRef, type ReactNode } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 
 /** Props of <Checkbox>: every native checkbox prop plus its label and an optional hint. */
 export type CheckboxProps = Omit<ComponentPropsWithRef<'input'>, 'type'> & {

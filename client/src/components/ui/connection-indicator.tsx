@@ -1,4 +1,4 @@
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 
 /** The websocket's state as the shell shows it. */
 export type ConnectionState = 'live' | 'connecting' | 'offline';

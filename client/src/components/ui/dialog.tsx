@@ -1,5 +1,5 @@
 import { useEffect, useId, useRef, type ReactNode } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 import { Button } from './button';
 import { CloseIcon } from './icons';
 

@@ -1,5 +1,5 @@
 import type { ReactNode } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 import { TrayIcon } from './icons';
 
 /** Props of <EmptyState>. */

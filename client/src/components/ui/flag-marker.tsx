@@ -1,5 +1,5 @@
-import type { Flag } from '../../../../shared/schemas/flags';
-import { cx } from '../../lib/cx';
+import type { Flag } from '@shared/schemas/flags';
+import { cx } from '@client/lib/cx';
 
 /** How each flag is drawn: a shape, a colour token and the words (the words are the flag itself). */
 export const flagLooks: Record<Flag, { shape: string; colorVar: string; description: string }> = {

@@ -1,5 +1,5 @@
 import { useId, type ReactNode } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 
 /** What <FormField> hands to its control so label, hint and error are wired for assistive tech. */
 export type FieldControlProps = {

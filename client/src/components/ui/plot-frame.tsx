@@ -2,7 +2,7 @@ import { useCallback, useEffect, useId, useMemo, useRef, useState, type RefObjec
 import uPlot from 'uplot';
 import UplotReact from 'uplot-react';
 import 'uplot/dist/uPlot.min.css';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 
 /** The axes font of every plot (shipped with the app, see main.tsx). */
 export const plotFontFamily = "'IBM Plex Mono', ui-monospace, monospace";

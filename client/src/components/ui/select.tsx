@@ -1,5 +1,5 @@
 import type { ComponentPropsWithRef } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 import { controlClass } from './controls';
 import { ChevronDownIcon } from './icons';
 

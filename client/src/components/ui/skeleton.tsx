@@ -1,4 +1,4 @@
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 
 /** Props of <Skeleton>. */
 export type SkeletonProps = { className?: string };

@@ -1,5 +1,5 @@
-import type { ItemState } from '../../../../shared/schemas/item-states';
-import { cx } from '../../lib/cx';
+import type { ItemState } from '@shared/schemas/item-states';
+import { cx } from '@client/lib/cx';
 
 /** How each item state is drawn: a glyph and a colour token; the words are the state itself. */
 export const stateLooks: Record<ItemState, { glyph: string; colorVar: string }> = {

@@ -1,5 +1,5 @@
 import type { ComponentPropsWithRef } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 
 /**
  * Dense table primitives: plain <table> elements with Seisift's look, so TanStack Table (or a hand

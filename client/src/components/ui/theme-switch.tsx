@@ -1,7 +1,7 @@
 import { useId, type KeyboardEvent } from 'react';
-import { useTheme } from '../../lib/theme-provider';
-import { themeChoiceLabels, themeChoices, type ThemeChoice } from '../../lib/theme';
-import { cx } from '../../lib/cx';
+import { useTheme } from '@client/lib/theme-provider';
+import { themeChoiceLabels, themeChoices, type ThemeChoice } from '@client/lib/theme';
+import { cx } from '@client/lib/cx';
 import { AutoIcon, MoonIcon, SunIcon } from './icons';
 
 const icons: Record<ThemeChoice, typeof SunIcon> = { system: AutoIcon, dark: MoonIcon, light: SunIcon };

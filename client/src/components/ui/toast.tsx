@@ -1,5 +1,5 @@
 import { createContext, useCallback, useContext, useEffect, useMemo, useRef, useState, type ReactNode } from 'react';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 import { CloseIcon } from './icons';
 
 /** Toast tones. Each toast starts with a word for its tone, so colour is never the only cue. */

@@ -1,4 +1,4 @@
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 import { CautionIcon } from './icons';
 
 /** The caution's words, in one place so every screen says the same (BRIEF.md, "Safety"). */

@@ -1,6 +1,6 @@
 import { useEffect, useId, useState } from 'react';
 import { z } from 'zod';
-import { cx } from '../../lib/cx';
+import { cx } from '@client/lib/cx';
 import { Input } from './input';
 
 /** The example every UTC time field shows (placeholder and error text). */

@@ -1,8 +1,8 @@
 import { QueryClient } from '@tanstack/react-query';
 import { describe, expect, it } from 'vitest';
-import type { QueuePage, QueueRow } from '../../../../shared/schemas/queue';
-import { queueKeys, type QueueFilters, type QueueListData } from '../../../../client/src/api/queue/get-queue';
-import { applyChanges, liveArrivals, patchRow } from '../../../../client/src/api/queue/live-patch';
+import type { QueuePage, QueueRow } from '@shared/schemas/queue';
+import { queueKeys, type QueueFilters, type QueueListData } from '@client/api/queue/get-queue';
+import { applyChanges, liveArrivals, patchRow } from '@client/api/queue/live-patch';
 
 const row = (id: number, score: number, over: Partial<QueueRow> = {}): QueueRow => ({
   id,

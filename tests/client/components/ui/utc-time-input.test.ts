@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatUtcTimeText, parseUtcTimeText } from '../../../../client/src/components/ui/utc-time-input';
+import { formatUtcTimeText, parseUtcTimeText } from '@client/components/ui/utc-time-input';
 
 /*
  * The UTC time field's parser against ISO 8601 (extended format, UTC designator "Z"; RFC 3339

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '../../../../client/src/features/review/lib/amplitude';
+import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '@client/features/review/lib/amplitude';
 
 // Prefix symbols and powers: BIPM, The International System of Units (SI), 9th ed. 2019, table 7.
 describe('SI amplitude labels', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { colormapRgb, colormapTable } from '../../../../client/src/features/review/lib/colormap';
+import { colormapRgb, colormapTable } from '@client/features/review/lib/colormap';
 
 /** WCAG 2.x relative luminance of an sRGB colour (W3C WCAG 2.2, "relative luminance" definition). */
 function luminance([r, g, b]: [number, number, number]): number {

@@ -1,7 +1,7 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import { sessionRowSchema } from '../../../../../shared/auth/schemas';
-import { apiRequest, noContent } from '../../../lib/api-client';
+import { sessionRowSchema } from '@shared/auth/schemas';
+import { apiRequest, noContent } from '@client/lib/api-client';
 
 /** Query key of your own sessions. */
 export const sessionsKey = ['account', 'sessions'] as const;

@@ -1,9 +1,9 @@
 import { useNavigate } from 'react-router';
-import { authPagePaths } from '../../../../../shared/auth/links';
-import { roleLabels } from '../../../../../shared/auth/roles';
-import type { Me } from '../../../../../shared/auth/schemas';
-import { Badge } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
+import { authPagePaths } from '@shared/auth/links';
+import { roleLabels } from '@shared/auth/roles';
+import type { Me } from '@shared/auth/schemas';
+import { Badge } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
 import { ChangePasswordForm } from './change-password-form';
 import { SessionsPanel } from './sessions-panel';
 

@@ -1,13 +1,13 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { z } from 'zod';
-import { newPasswordSchema, passwordMinLength } from '../../../../../shared/auth/schemas';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { useToast } from '../../../components/ui/toast';
-import { ApiError } from '../../../lib/api-client';
-import { useChangePassword } from '../api/account';
+import { newPasswordSchema, passwordMinLength } from '@shared/auth/schemas';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { useToast } from '@client/components/ui/toast';
+import { ApiError } from '@client/lib/api-client';
+import { useChangePassword } from '@client/features/account/api/account';
 
 const changeFormSchema = z
   .object({ currentPassword: z.string().min(1, 'enter your current password'), newPassword: newPasswordSchema, repeat: z.string() })

@@ -1,10 +1,10 @@
-import { Badge } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { useToast } from '../../../components/ui/toast';
-import { useEndSessions, useSessions } from '../api/account';
+import { Badge } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { Loading } from '@client/components/ui/skeleton';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { useToast } from '@client/components/ui/toast';
+import { useEndSessions, useSessions } from '@client/features/account/api/account';
 
 /** A short, readable name for a browser from its user-agent string (display only). */
 export function browserName(userAgent: string | null): string {

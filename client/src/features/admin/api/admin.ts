@@ -1,8 +1,8 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import type { Role } from '../../../../../shared/auth/roles';
-import { adminUserSchema, invitationRowSchema, mailMessageSchema, mailSummarySchema, stationOptionSchema } from '../../../../../shared/auth/schemas';
-import { apiRequest, noContent } from '../../../lib/api-client';
+import type { Role } from '@shared/auth/roles';
+import { adminUserSchema, invitationRowSchema, mailMessageSchema, mailSummarySchema, stationOptionSchema } from '@shared/auth/schemas';
+import { apiRequest, noContent } from '@client/lib/api-client';
 
 /** Query keys of the admin screens. */
 export const adminKeys = {

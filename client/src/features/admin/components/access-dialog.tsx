@@ -1,11 +1,11 @@
 import { useState } from 'react';
-import { roleLabels, roles, type Role } from '../../../../../shared/auth/roles';
-import type { AdminUser, StationOption } from '../../../../../shared/auth/schemas';
-import { Button } from '../../../components/ui/button';
-import { Checkbox } from '../../../components/ui/checkbox';
-import { Dialog } from '../../../components/ui/dialog';
-import { useToast } from '../../../components/ui/toast';
-import { useSetAccess } from '../api/admin';
+import { roleLabels, roles, type Role } from '@shared/auth/roles';
+import type { AdminUser, StationOption } from '@shared/auth/schemas';
+import { Button } from '@client/components/ui/button';
+import { Checkbox } from '@client/components/ui/checkbox';
+import { Dialog } from '@client/components/ui/dialog';
+import { useToast } from '@client/components/ui/toast';
+import { useSetAccess } from '@client/features/admin/api/admin';
 
 /** Props of <AccessDialog>. */
 export type AccessDialogProps = { user: AdminUser | null; stations: StationOption[]; onClose: () => void };

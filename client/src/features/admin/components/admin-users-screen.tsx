@@ -1,11 +1,11 @@
 import { useCallback, useState } from 'react';
-import type { AdminUser, InvitationRow } from '../../../../../shared/auth/schemas';
-import { Button } from '../../../components/ui/button';
-import { Dialog } from '../../../components/ui/dialog';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { Loading } from '../../../components/ui/skeleton';
-import { useToast } from '../../../components/ui/toast';
-import { useInvitations, useRevokeInvitation, useSetActive, useStationOptions, useUsers } from '../api/admin';
+import type { AdminUser, InvitationRow } from '@shared/auth/schemas';
+import { Button } from '@client/components/ui/button';
+import { Dialog } from '@client/components/ui/dialog';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { Loading } from '@client/components/ui/skeleton';
+import { useToast } from '@client/components/ui/toast';
+import { useInvitations, useRevokeInvitation, useSetActive, useStationOptions, useUsers } from '@client/features/admin/api/admin';
 import { AccessDialog } from './access-dialog';
 import { InvitationsList } from './invitations-list';
 import { InviteForm } from './invite-form';

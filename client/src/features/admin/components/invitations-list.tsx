@@ -1,9 +1,9 @@
-import { roleLabels } from '../../../../../shared/auth/roles';
-import type { InvitationRow, StationOption } from '../../../../../shared/auth/schemas';
-import { Badge, type BadgeTone } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
+import { roleLabels } from '@shared/auth/roles';
+import type { InvitationRow, StationOption } from '@shared/auth/schemas';
+import { Badge, type BadgeTone } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
 
 const statusTone: Record<InvitationRow['status'], BadgeTone> = { pending: 'info', accepted: 'ok', expired: 'warn', revoked: 'neutral' };
 

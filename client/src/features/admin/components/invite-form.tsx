@@ -1,15 +1,15 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { z } from 'zod';
-import { roleLabels, roles, roleSchema } from '../../../../../shared/auth/roles';
-import { displayNameSchema, emailSchema, type StationOption } from '../../../../../shared/auth/schemas';
-import { Button } from '../../../components/ui/button';
-import { Checkbox } from '../../../components/ui/checkbox';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { useToast } from '../../../components/ui/toast';
-import { ApiError } from '../../../lib/api-client';
-import { useInvite } from '../api/admin';
+import { roleLabels, roles, roleSchema } from '@shared/auth/roles';
+import { displayNameSchema, emailSchema, type StationOption } from '@shared/auth/schemas';
+import { Button } from '@client/components/ui/button';
+import { Checkbox } from '@client/components/ui/checkbox';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { useToast } from '@client/components/ui/toast';
+import { ApiError } from '@client/lib/api-client';
+import { useInvite } from '@client/features/admin/api/admin';
 
 /** The invite form's fields (checkbox groups give strings; station ids become numbers on submit). */
 export const inviteFormSchema = z.object({

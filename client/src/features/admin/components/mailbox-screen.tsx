@@ -1,8 +1,8 @@
 import { Fragment, useState } from 'react';
-import { Button } from '../../../components/ui/button';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { Loading } from '../../../components/ui/skeleton';
-import { mailboxPageSize, useMailbox, useMailMessage } from '../api/admin';
+import { Button } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { Loading } from '@client/components/ui/skeleton';
+import { mailboxPageSize, useMailbox, useMailMessage } from '@client/features/admin/api/admin';
 
 /** Splits text into plain parts and http(s) links, so links in a mail are clickable. */
 export function linkify(text: string): { text: string; href?: string }[] {

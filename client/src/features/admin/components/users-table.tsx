@@ -10,14 +10,14 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import { useMemo, useState } from 'react';
-import { roleLabels, roles, type Role } from '../../../../../shared/auth/roles';
-import type { AdminUser, StationOption } from '../../../../../shared/auth/schemas';
-import { Badge } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { Select } from '../../../components/ui/select';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
+import { roleLabels, roles, type Role } from '@shared/auth/roles';
+import type { AdminUser, StationOption } from '@shared/auth/schemas';
+import { Badge } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { Select } from '@client/components/ui/select';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
 
 /** Props of <UsersTable>. */
 export type UsersTableProps = {

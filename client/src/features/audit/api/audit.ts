@@ -1,7 +1,7 @@
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
-import { auditRowSchema } from '../../../../../shared/auth/schemas';
-import { apiRequest } from '../../../lib/api-client';
+import { auditRowSchema } from '@shared/auth/schemas';
+import { apiRequest } from '@client/lib/api-client';
 
 /** Filters of the audit page; empty strings mean "any". */
 /** The audit page's filters; `from` and `to` are ISO 8601 UTC times (both ends included) or ''. */

@@ -1,13 +1,13 @@
 import { useState } from 'react';
-import { Button } from '../../../components/ui/button';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { Select } from '../../../components/ui/select';
-import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { UtcTimeInput } from '../../../components/ui/utc-time-input';
-import { auditPageSize, useAuditPage, type AuditFilters } from '../api/audit';
+import { Button } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { Select } from '@client/components/ui/select';
+import { Loading } from '@client/components/ui/skeleton';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { UtcTimeInput } from '@client/components/ui/utc-time-input';
+import { auditPageSize, useAuditPage, type AuditFilters } from '@client/features/audit/api/audit';
 
 /** Action groups offered in the filter; a prefix ending in "." matches the whole group. */
 export const auditActionChoices: { value: string; label: string }[] = [

@@ -1,8 +1,8 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import { roleSchema } from '../../../../../shared/auth/roles';
-import { meSchema, type Me } from '../../../../../shared/auth/schemas';
-import { ApiError, apiRequest, noContent } from '../../../lib/api-client';
+import { roleSchema } from '@shared/auth/roles';
+import { meSchema, type Me } from '@shared/auth/schemas';
+import { ApiError, apiRequest, noContent } from '@client/lib/api-client';
 
 /** Query key of the signed-in user. */
 export const meKey = ['auth', 'me'] as const;

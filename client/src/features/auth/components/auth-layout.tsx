@@ -1,6 +1,6 @@
 import type { ReactNode } from 'react';
-import { SeisiftMark } from '../../../components/ui/seisift-mark';
-import { ThemeSwitch } from '../../../components/ui/theme-switch';
+import { SeisiftMark } from '@client/components/ui/seisift-mark';
+import { ThemeSwitch } from '@client/components/ui/theme-switch';
 
 /** Props of <AuthLayout>. */
 export type AuthLayoutProps = { title: string; intro?: ReactNode; children: ReactNode; footer?: ReactNode };

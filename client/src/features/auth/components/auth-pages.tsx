@@ -1,10 +1,10 @@
 import { Link, Navigate, useLocation, useNavigate } from 'react-router';
-import { authPagePaths } from '../../../../../shared/auth/links';
-import { roleLabels } from '../../../../../shared/auth/roles';
-import { Loading } from '../../../components/ui/skeleton';
-import { ApiError } from '../../../lib/api-client';
-import { invitationCheckSchema, resetCheckSchema, useTokenCheck } from '../api/session';
-import { useFragmentToken } from '../hooks/use-fragment-token';
+import { authPagePaths } from '@shared/auth/links';
+import { roleLabels } from '@shared/auth/roles';
+import { Loading } from '@client/components/ui/skeleton';
+import { ApiError } from '@client/lib/api-client';
+import { invitationCheckSchema, resetCheckSchema, useTokenCheck } from '@client/features/auth/api/session';
+import { useFragmentToken } from '@client/features/auth/hooks/use-fragment-token';
 import { AuthLayout, FormMessage } from './auth-layout';
 import { ForgotPasswordForm } from './forgot-password-form';
 import { useCurrentMe } from './session-boundary';

@@ -1,12 +1,12 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import type { z } from 'zod';
-import { forgotPasswordSchema } from '../../../../../shared/auth/schemas';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { ApiError } from '../../../lib/api-client';
-import { useForgotPassword } from '../api/session';
+import { forgotPasswordSchema } from '@shared/auth/schemas';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { ApiError } from '@client/lib/api-client';
+import { useForgotPassword } from '@client/features/auth/api/session';
 import { FormMessage } from './auth-layout';
 
 type ForgotValues = z.input<typeof forgotPasswordSchema>;

@@ -1,9 +1,9 @@
 import type { ReactNode } from 'react';
 import { Navigate, useLocation } from 'react-router';
-import { authPagePaths } from '../../../../../shared/auth/links';
-import { can, type Action } from '../../../../../shared/auth/policies';
-import type { Me } from '../../../../../shared/auth/schemas';
-import { EmptyState } from '../../../components/ui/empty-state';
+import { authPagePaths } from '@shared/auth/links';
+import { can, type Action } from '@shared/auth/policies';
+import type { Me } from '@shared/auth/schemas';
+import { EmptyState } from '@client/components/ui/empty-state';
 import { useCurrentMe } from './session-boundary';
 
 /**

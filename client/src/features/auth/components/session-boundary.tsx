@@ -1,10 +1,10 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { createContext, useContext, useEffect, type ReactNode } from 'react';
-import type { Me } from '../../../../../shared/auth/schemas';
-import { setUnauthenticatedHandler } from '../../../lib/api-client';
-import { SessionProvider } from '../../../lib/session-context';
-import { Loading } from '../../../components/ui/skeleton';
-import { meKey, useMe } from '../api/session';
+import type { Me } from '@shared/auth/schemas';
+import { setUnauthenticatedHandler } from '@client/lib/api-client';
+import { SessionProvider } from '@client/lib/session-context';
+import { Loading } from '@client/components/ui/skeleton';
+import { meKey, useMe } from '@client/features/auth/api/session';
 
 const MeContext = createContext<Me | null>(null);
 

@@ -1,12 +1,12 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { z } from 'zod';
-import { passwordMinLength, newPasswordSchema } from '../../../../../shared/auth/schemas';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { ApiError } from '../../../lib/api-client';
-import { useSetPassword } from '../api/session';
+import { passwordMinLength, newPasswordSchema } from '@shared/auth/schemas';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { ApiError } from '@client/lib/api-client';
+import { useSetPassword } from '@client/features/auth/api/session';
 import { FormMessage } from './auth-layout';
 
 /** The new-password pair, checked the way the server checks it (12+ characters) plus a repeat. */

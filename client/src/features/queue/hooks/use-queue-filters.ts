@@ -1,7 +1,7 @@
 import { useCallback, useMemo } from 'react';
 import { useSearchParams } from 'react-router';
-import type { QueueFilters } from '../../../api/queue/get-queue';
-import { parseFilters } from '../../../api/queue/queue-filters';
+import type { QueueFilters } from '@client/api/queue/get-queue';
+import { parseFilters } from '@client/api/queue/queue-filters';
 
 /**
  * The queue filters, kept in the URL's search params (so a view can be bookmarked, shared and

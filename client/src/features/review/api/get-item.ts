@@ -1,8 +1,8 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
-import { queueItemDetailSchema, tracesResponseSchema } from '../../../../../shared/schemas/queue';
-import { apiRequest } from '../../../lib/api-client';
-import { queueKeys } from '../../../api/queue/get-queue';
+import { queueItemDetailSchema, tracesResponseSchema } from '@shared/schemas/queue';
+import { apiRequest } from '@client/lib/api-client';
+import { queueKeys } from '@client/api/queue/get-queue';
 
 /** Query options of one item's detail (refetched by the live channel when its version moves on). */
 export function itemOptions(id: number) {

@@ -10,11 +10,11 @@ import {
   pickPolarities,
   quakemlEventTypes,
   typeCertainties,
-} from '../../../../../shared/schemas/label';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Kbd } from '../../../components/ui/kbd';
-import { Select } from '../../../components/ui/select';
+} from '@shared/schemas/label';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Kbd } from '@client/components/ui/kbd';
+import { Select } from '@client/components/ui/select';
 
 /** The review form: an event label (QuakeML type, certainty, distance class, picks, note) and, for dismissals, a noise reason. */
 export const reviewFormSchema = eventLabelSchema.extend({

@@ -1,10 +1,10 @@
 import { useCallback, useMemo } from 'react';
 import type uPlot from 'uplot';
-import type { TracesResponse } from '../../../../../shared/schemas/queue';
-import { PlotFrame } from '../../../components/ui/plot-frame';
-import { colormapGradient, colormapTable } from '../lib/colormap';
-import { spectrogramExtent } from '../lib/spectrogram-geometry';
-import { traceYAxisSizePx } from './trace-panel';
+import type { TracesResponse } from '@shared/schemas/queue';
+import { PlotFrame } from '@client/components/ui/plot-frame';
+import { colormapGradient, colormapTable } from '@client/features/review/lib/colormap';
+import { spectrogramExtent } from '@client/features/review/lib/spectrogram-geometry';
+import { traceYAxisSizePx } from '@client/features/review/components/trace-panel';
 
 type Sg = NonNullable<TracesResponse['channels'][number]['spectrogram']>;
 

@@ -1,8 +1,8 @@
 import { useCallback, useMemo } from 'react';
 import type uPlot from 'uplot';
-import { noiseModelSeries } from '../../../components/ui/noise-model-series';
-import { PlotFrame } from '../../../components/ui/plot-frame';
-import type { AnalysisView } from '../api/get-item';
+import { noiseModelSeries } from '@client/components/ui/noise-model-series';
+import { PlotFrame } from '@client/components/ui/plot-frame';
+import type { AnalysisView } from '@client/features/review/api/get-item';
 
 type Channel = AnalysisView['channels'][number];
 

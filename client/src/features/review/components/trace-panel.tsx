@@ -1,9 +1,9 @@
 import { Fragment, useCallback, useEffect, useMemo, useRef, type ReactNode } from 'react';
 import type uPlot from 'uplot';
-import { sortChannels } from '../../../../../shared/channel-order';
-import type { TracesResponse } from '../../../../../shared/schemas/queue';
-import { PlotFrame } from '../../../components/ui/plot-frame';
-import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '../lib/amplitude';
+import { sortChannels } from '@shared/channel-order';
+import type { TracesResponse } from '@shared/schemas/queue';
+import { PlotFrame } from '@client/components/ui/plot-frame';
+import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '@client/features/review/lib/amplitude';
 
 type ChannelTraces = TracesResponse['channels'][number];
 

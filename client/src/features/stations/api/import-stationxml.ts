@@ -1,11 +1,11 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import { apiErrorBodySchema } from '../../../../../shared/api-error';
+import { apiErrorBodySchema } from '@shared/api-error';
 import { StationApiError } from './stations';
 
 const diffSchema = z.object({ field: z.string(), from: z.unknown(), to: z.unknown() });
 
-/** The import preview (server/services/stationxml-import.ts ImportPreview). */
+/** The import preview (server/features/stations/stationxml-import.ts ImportPreview). */
 export const importPreviewSchema = z.object({
   previewHash: z.string(),
   stations: z.array(

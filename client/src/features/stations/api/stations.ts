@@ -1,10 +1,10 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import { apiErrorBodySchema } from '../../../../../shared/api-error';
-import { roleSchema } from '../../../../../shared/auth/roles';
-import { flagSchema } from '../../../../../shared/schemas/flags';
-import { itemStateSchema } from '../../../../../shared/schemas/item-states';
-import { processingProfileSchema, type ProcessingProfile } from '../../../../../shared/schemas/processing-profile';
+import { apiErrorBodySchema } from '@shared/api-error';
+import { roleSchema } from '@shared/auth/roles';
+import { flagSchema } from '@shared/schemas/flags';
+import { itemStateSchema } from '@shared/schemas/item-states';
+import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import {
   baselineViewSchema,
   stationDetailSchema,
@@ -12,7 +12,7 @@ import {
   tokenCreatedSchema,
   tokenViewSchema,
   type StationUpdateInput,
-} from '../../../../../shared/schemas/station';
+} from '@shared/schemas/station';
 
 /** An API answer other than 2xx, with the server's message and field issues (if any). */
 export class StationApiError extends Error {
@@ -66,7 +66,7 @@ export const stationQuery = (id: number) =>
     queryFn: () => stationFetch(z.object({ station: stationDetailClientSchema, baseline: baselineViewSchema }), `/api/stations/${id}`),
   });
 
-/** The health answer (server/services/station-health.ts StationHealth). */
+/** The health answer (server/features/stations/station-health.ts StationHealth). */
 export const stationHealthSchema = z.object({
   psd: z.array(
     z.object({

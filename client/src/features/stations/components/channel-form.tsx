@@ -2,11 +2,11 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { useForm, type FieldPath } from 'react-hook-form';
 import { z } from 'zod';
-import { channelInputSchema, type ChannelInput } from '../../../../../shared/schemas/station';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { StationApiError, stationDetailClientSchema, stationFetch } from '../api/stations';
+import { channelInputSchema, type ChannelInput } from '@shared/schemas/station';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { StationApiError, stationDetailClientSchema, stationFetch } from '@client/features/stations/api/stations';
 
 type Output = z.output<typeof channelInputSchema>;
 const num = { valueAsNumber: true } as const;

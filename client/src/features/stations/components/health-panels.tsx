@@ -1,15 +1,15 @@
 import { Link } from 'react-router';
 import type uPlot from 'uplot';
-import { sortChannels } from '../../../../../shared/channel-order';
-import { Badge } from '../../../components/ui/badge';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { FlagMarker } from '../../../components/ui/flag-marker';
-import { noiseModelSeries } from '../../../components/ui/noise-model-series';
-import { PlotFrame } from '../../../components/ui/plot-frame';
-import { StateMarker } from '../../../components/ui/state-marker';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { paths } from '../../../config/paths';
-import type { StationHealthView } from '../api/stations';
+import { sortChannels } from '@shared/channel-order';
+import { Badge } from '@client/components/ui/badge';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { FlagMarker } from '@client/components/ui/flag-marker';
+import { noiseModelSeries } from '@client/components/ui/noise-model-series';
+import { PlotFrame } from '@client/components/ui/plot-frame';
+import { StateMarker } from '@client/components/ui/state-marker';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { paths } from '@client/config/paths';
+import type { StationHealthView } from '@client/features/stations/api/stations';
 
 const fmtHz = (v: number) => (v >= 1 ? String(Number(v.toPrecision(3))) : String(Number(v.toPrecision(2))));
 const fmtDb = (v: number) => `${Math.round(v)}`.replace('-', '\u2212');

@@ -2,14 +2,14 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useMemo } from 'react';
 import { useFieldArray, useForm, type FieldPath } from 'react-hook-form';
 import type { z } from 'zod';
-import { processingProfileSchema, type ProcessingProfile } from '../../../../../shared/schemas/processing-profile';
-import { profileNyquistIssues, type ChannelView } from '../../../../../shared/schemas/station';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { Select } from '../../../components/ui/select';
-import { useToast } from '../../../components/ui/toast';
-import { StationApiError, useSaveProfile } from '../api/stations';
+import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
+import { profileNyquistIssues, type ChannelView } from '@shared/schemas/station';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { Select } from '@client/components/ui/select';
+import { useToast } from '@client/components/ui/toast';
+import { StationApiError, useSaveProfile } from '@client/features/stations/api/stations';
 
 type ProfileInput = z.input<typeof processingProfileSchema>;
 

@@ -3,12 +3,12 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { useForm, type FieldPath } from 'react-hook-form';
 import { useNavigate } from 'react-router';
 import { z } from 'zod';
-import { stationCreateSchema, type StationCreateInput } from '../../../../../shared/schemas/station';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { paths } from '../../../config/paths';
-import { StationApiError, stationDetailClientSchema, stationFetch } from '../api/stations';
+import { stationCreateSchema, type StationCreateInput } from '@shared/schemas/station';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { paths } from '@client/config/paths';
+import { StationApiError, stationDetailClientSchema, stationFetch } from '@client/features/stations/api/stations';
 
 type Output = z.output<typeof stationCreateSchema>;
 const num = { valueAsNumber: true } as const;

@@ -1,12 +1,12 @@
 import { useState } from 'react';
 import { Link } from 'react-router';
-import { Button } from '../../../components/ui/button';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { paths } from '../../../config/paths';
-import { can } from '../../../../../shared/auth/policies';
-import { useMe, useStations } from '../api/stations';
+import { Button } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { Loading } from '@client/components/ui/skeleton';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { paths } from '@client/config/paths';
+import { can } from '@shared/auth/policies';
+import { useMe, useStations } from '@client/features/stations/api/stations';
 import { StationCreateForm } from './station-create-form';
 import { StationXmlImport } from './stationxml-import';
 

@@ -1,8 +1,8 @@
 import { useId, useState } from 'react';
-import { Badge, type BadgeTone } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { previewStationXml, useApplyStationXml, type ImportPreview } from '../api/import-stationxml';
+import { Badge, type BadgeTone } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { previewStationXml, useApplyStationXml, type ImportPreview } from '@client/features/stations/api/import-stationxml';
 
 const tone: Record<string, BadgeTone> = { new: 'ok', changed: 'info', unchanged: 'neutral', skipped: 'neutral', invalid: 'danger' };
 

@@ -1,11 +1,11 @@
 import { useId, useState } from 'react';
-import { Badge } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
-import { FormField } from '../../../components/ui/form-field';
-import { Input } from '../../../components/ui/input';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { tokenCreateSchema, type TokenCreated } from '../../../../../shared/schemas/station';
-import { StationApiError, useCreateToken, useRevokeToken, useStationTokens } from '../api/stations';
+import { Badge } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { FormField } from '@client/components/ui/form-field';
+import { Input } from '@client/components/ui/input';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { tokenCreateSchema, type TokenCreated } from '@shared/schemas/station';
+import { StationApiError, useCreateToken, useRevokeToken, useStationTokens } from '@client/features/stations/api/stations';
 
 /**
  * A station's ingest tokens: create one (the secret is shown once, with a copy button and a curl

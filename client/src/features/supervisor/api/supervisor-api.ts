@@ -1,11 +1,11 @@
 import { queryOptions } from '@tanstack/react-query';
 import { z } from 'zod';
-import { apiErrorBodySchema } from '../../../../../shared/api-error';
-import { latestWindowsSchema } from '../../../../../shared/schemas/data-period';
-import { evaluationSchema, reviewRowSchema, type ThresholdValues } from '../../../../../shared/schemas/supervisor';
+import { apiErrorBodySchema } from '@shared/api-error';
+import { latestWindowsSchema } from '@shared/schemas/data-period';
+import { evaluationSchema, reviewRowSchema, type ThresholdValues } from '@shared/schemas/supervisor';
 
 /**
- * The supervisor screens' calls to /api/supervisor (server/routes/supervisor/router.ts), each with
+ * The supervisor screens' calls to /api/supervisor (server/features/supervision/router.ts), each with
  * a zod schema of its answer and, for reads, a TanStack Query options factory.
  */
 

@@ -1,6 +1,6 @@
 import type { ReactNode } from 'react';
 import type uPlot from 'uplot';
-import type { LiveState } from '../../../lib/ws-client';
+import type { LiveState } from '@client/lib/ws-client';
 
 /** The sentence every supervisor screen that shows event times carries. */
 export const noLocationText = 'Seisift does not yet locate events or compute magnitudes: times shown are station times (earliest P pick, else earliest trigger), not origin times.';

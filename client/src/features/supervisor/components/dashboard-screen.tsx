@@ -1,11 +1,11 @@
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
-import { PlotFrame } from '../../../components/ui/plot-frame';
-import { Loading } from '../../../components/ui/skeleton';
-import { Table, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { TriageCaution } from '../../../components/ui/triage-caution';
-import { UtcTimeInput } from '../../../components/ui/utc-time-input';
-import { dashboardQuery } from '../api/supervisor-api';
+import { PlotFrame } from '@client/components/ui/plot-frame';
+import { Loading } from '@client/components/ui/skeleton';
+import { Table, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { TriageCaution } from '@client/components/ui/triage-caution';
+import { UtcTimeInput } from '@client/components/ui/utc-time-input';
+import { dashboardQuery } from '@client/features/supervisor/api/supervisor-api';
 import { daysAgoIso, ErrorLine, Section, SupervisorPage, withDayAxis, withDayAxisShare } from './common';
 
 const dayFormat = (v: number) => new Date(v * 1000).toISOString().slice(5, 10);

@@ -1,13 +1,13 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState, type ReactNode } from 'react';
-import { Badge } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { TriageCaution } from '../../../components/ui/triage-caution';
-import { inboxAction, inboxQuery, type InboxEntry } from '../api/supervisor-api';
-import { useSupervisorLive } from '../hooks/use-supervisor-live';
+import { Badge } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { Loading } from '@client/components/ui/skeleton';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { TriageCaution } from '@client/components/ui/triage-caution';
+import { inboxAction, inboxQuery, type InboxEntry } from '@client/features/supervisor/api/supervisor-api';
+import { useSupervisorLive } from '@client/features/supervisor/hooks/use-supervisor-live';
 import { ErrorLine, SupervisorPage } from './common';
 
 /**

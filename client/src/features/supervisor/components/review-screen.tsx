@@ -1,22 +1,22 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { Link } from 'react-router';
-import { quakemlEventTypes } from '../../../../../shared/schemas/label';
-import { evaluationStatuses, reviewStatuses, type ReviewRow } from '../../../../../shared/schemas/supervisor';
-import { Badge } from '../../../components/ui/badge';
-import { Button, buttonClass } from '../../../components/ui/button';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { FlagMarker } from '../../../components/ui/flag-marker';
-import { Input } from '../../../components/ui/input';
-import { UtcTimeInput } from '../../../components/ui/utc-time-input';
-import { Select } from '../../../components/ui/select';
-import { Loading } from '../../../components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { TriageCaution } from '../../../components/ui/triage-caution';
-import { paths } from '../../../config/paths';
-import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuery, setStatus, type ReviewFilters } from '../api/supervisor-api';
-import { usePeriod } from '../hooks/use-period';
-import { useSupervisorLive } from '../hooks/use-supervisor-live';
+import { quakemlEventTypes } from '@shared/schemas/label';
+import { evaluationStatuses, reviewStatuses, type ReviewRow } from '@shared/schemas/supervisor';
+import { Badge } from '@client/components/ui/badge';
+import { Button, buttonClass } from '@client/components/ui/button';
+import { EmptyState } from '@client/components/ui/empty-state';
+import { FlagMarker } from '@client/components/ui/flag-marker';
+import { Input } from '@client/components/ui/input';
+import { UtcTimeInput } from '@client/components/ui/utc-time-input';
+import { Select } from '@client/components/ui/select';
+import { Loading } from '@client/components/ui/skeleton';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { TriageCaution } from '@client/components/ui/triage-caution';
+import { paths } from '@client/config/paths';
+import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuery, setStatus, type ReviewFilters } from '@client/features/supervisor/api/supervisor-api';
+import { usePeriod } from '@client/features/supervisor/hooks/use-period';
+import { useSupervisorLive } from '@client/features/supervisor/hooks/use-supervisor-live';
 import { ErrorLine, noLocationText, periodText, Section, SupervisorPage } from './common';
 
 /**

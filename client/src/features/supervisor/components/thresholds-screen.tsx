@@ -1,16 +1,16 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useEffect, useMemo, useState } from 'react';
-import type { Evaluation, ThresholdValues } from '../../../../../shared/schemas/supervisor';
-import { Button } from '../../../components/ui/button';
-import { Input } from '../../../components/ui/input';
-import { UtcTimeInput } from '../../../components/ui/utc-time-input';
-import { PlotFrame } from '../../../components/ui/plot-frame';
-import { Select } from '../../../components/ui/select';
-import { Loading } from '../../../components/ui/skeleton';
-import { Table, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { TriageCaution } from '../../../components/ui/triage-caution';
-import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '../api/supervisor-api';
-import { usePeriod } from '../hooks/use-period';
+import type { Evaluation, ThresholdValues } from '@shared/schemas/supervisor';
+import { Button } from '@client/components/ui/button';
+import { Input } from '@client/components/ui/input';
+import { UtcTimeInput } from '@client/components/ui/utc-time-input';
+import { PlotFrame } from '@client/components/ui/plot-frame';
+import { Select } from '@client/components/ui/select';
+import { Loading } from '@client/components/ui/skeleton';
+import { Table, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { TriageCaution } from '@client/components/ui/triage-caution';
+import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '@client/features/supervisor/api/supervisor-api';
+import { usePeriod } from '@client/features/supervisor/hooks/use-period';
 import { ErrorLine, periodText, Section, SupervisorPage, withPointsShare } from './common';
 
 const pct = (v: number | null) => (v === null ? 'n/a' : `${(v * 100).toFixed(1)} %`);

@@ -1,7 +1,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
-import { latestWindowsQuery } from '../api/supervisor-api';
-import { periodUpToLatest, type DefaultPeriod } from '../components/common';
+import { latestWindowsQuery } from '@client/features/supervisor/api/supervisor-api';
+import { periodUpToLatest, type DefaultPeriod } from '@client/features/supervisor/components/common';
 
 /** What `usePeriod` gives a screen. */
 export type PeriodState = {

@@ -1,6 +1,6 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useEffect, useState } from 'react';
-import { createLiveClient, liveUrl, type LiveState } from '../../../lib/ws-client';
+import { createLiveClient, liveUrl, type LiveState } from '@client/lib/ws-client';
 
 /**
  * Keeps the supervisor screens live: a live-channel client of their own that refetches the inbox

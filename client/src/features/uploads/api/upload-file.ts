@@ -1,5 +1,5 @@
-import { apiErrorBodySchema } from '../../../../../shared/api-error';
-import { uploadResponseSchema, type UploadOutcome } from '../../../../../shared/schemas/upload';
+import { apiErrorBodySchema } from '@shared/api-error';
+import { uploadResponseSchema, type UploadOutcome } from '@shared/schemas/upload';
 
 /** Progress of one file's request. */
 export type UploadProgress =

@@ -1,16 +1,16 @@
 import { useCallback, useId, useRef, useState, type DragEvent } from 'react';
 import { Link } from 'react-router';
-import type { UploadOutcome } from '../../../../../shared/schemas/upload';
-import { streamIdSchema } from '../../../../../shared/schemas/upload';
-import { Badge } from '../../../components/ui/badge';
-import { Button } from '../../../components/ui/button';
-import { FlagMarker } from '../../../components/ui/flag-marker';
-import { Input } from '../../../components/ui/input';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '../../../components/ui/table';
-import { TriageCaution } from '../../../components/ui/triage-caution';
-import { paths } from '../../../config/paths';
-import { cx } from '../../../lib/cx';
-import { isCsvName, uploadFile, type UploadProgress } from '../api/upload-file';
+import type { UploadOutcome } from '@shared/schemas/upload';
+import { streamIdSchema } from '@shared/schemas/upload';
+import { Badge } from '@client/components/ui/badge';
+import { Button } from '@client/components/ui/button';
+import { FlagMarker } from '@client/components/ui/flag-marker';
+import { Input } from '@client/components/ui/input';
+import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { TriageCaution } from '@client/components/ui/triage-caution';
+import { paths } from '@client/config/paths';
+import { cx } from '@client/lib/cx';
+import { isCsvName, uploadFile, type UploadProgress } from '@client/features/uploads/api/upload-file';
 
 /** One file on the page, from picking to its outcome. */
 type Entry = {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { dayRange, daySplits, periodText, periodUpToLatest } from '../../../../../client/src/features/supervisor/components/common';
+import { dayRange, daySplits, periodText, periodUpToLatest } from '@client/features/supervisor/components/common';
 
 /*
  * Default periods and the per-day time axis of the supervisor screens. Expected values are worked

@@ -1,0 +1,43 @@
+import { eq } from 'drizzle-orm';
+import { hashPassword, verifyPassword } from '@server/auth/password';
+import type { SessionInfo } from '@server/auth/sessions';
+import { users } from '@server/db/schema/users';
+import { AppError } from '@server/errors';
+import type { AuthLimiters } from '@server/auth/rate-limit';
+import type { AccountDeps, RequestMeta } from './accounts-deps';
+import { recordAudit } from '@server/features/audit/audit';
+
+/** The one answer for an unknown e-mail, a wrong password or a deactivated account. */
+export const signInRefused = () => new AppError(401, 'sign_in_failed', 'E-mail or password is not right');
+
+let dummyHash: Promise<string> | null = null;
+/** A hash to verify against when the account is unknown, so both answers take as long. */
+function timingDummy(): Promise<string> {
+  dummyHash ??= hashPassword('seisift-timing-equaliser-not-a-password');
+  return dummyHash;
+}
+
+/**
+ * Checks e-mail and password and opens a session. Counts every attempt per address and failed
+ * ones per account (429 with Retry-After over the limit); records success and failure in the
+ * audit log. Throws `signInRefused()` for every kind of wrong sign-in.
+ */
+export async function signIn(deps: AccountDeps, limiters: AuthLimiters, input: { email: string; password: string }, meta: RequestMeta): Promise<{ session: SessionInfo; userId: string }> {
+  await limiters.signInByAddress.consume(meta.ip ?? 'unknown');
+  await limiters.signInByAccount.check(input.email);
+  const [user] = await deps.db
+    .select({ id: users.id, email: users.email, passwordHash: users.passwordHash, active: users.active })
+    .from(users)
+    .where(eq(users.email, input.email));
+  const ok = user?.passwordHash ? await verifyPassword(user.passwordHash, input.password) : await verifyPassword(await timingDummy(), input.password).then(() => false);
+  if (!user || !ok || !user.active) {
+    await limiters.signInByAccount.consume(input.email).catch(() => {});
+    const reason = !user ? 'unknown_email' : !ok ? 'wrong_password' : 'deactivated';
+    await recordAudit(deps.db, { actor: user ? { id: user.id, email: user.email } : { id: null, label: input.email }, action: 'auth.sign_in_failed', targetType: 'user', targetId: user?.id ?? null, details: { email: input.email, reason }, ip: meta.ip });
+    throw signInRefused();
+  }
+  await limiters.signInByAccount.reset(input.email);
+  const session = await deps.sessions.create(user.id, { ipAddress: meta.ip, userAgent: meta.userAgent });
+  await recordAudit(deps.db, { actor: { id: user.id, email: user.email }, action: 'auth.sign_in', targetType: 'session', targetId: null, details: { userAgent: meta.userAgent }, ip: meta.ip });
+  return { session, userId: user.id };
+}

@@ -1,0 +1,212 @@
+import { and, asc, eq } from 'drizzle-orm';
+import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
+import type { TracesQuery, TracesResponse } from '@shared/schemas/queue';
+import type { Database } from '@server/db/client';
+import { queueItems } from '@server/db/schema/queue-items';
+import { channels, stations } from '@server/db/schema/stations';
+import { windowChannels } from '@server/db/schema/uploads';
+import { decodeStoredSamples } from '@server/db/samples-codec';
+import { highBandForRate, validateBand } from '@server/dsp/bands';
+import { butterworthSos } from '@server/dsp/butterworth';
+import { preprocessTrace } from '@server/dsp/preprocess';
+import { sosfiltInPlace } from '@server/dsp/sosfilt';
+import { spectrogram } from '@server/dsp/spectrum';
+import { triggerChain } from '@server/dsp/trigger';
+import { badRequest, notFound } from '@server/errors';
+
+/**
+ * Display traces of a queue item: for each channel of its window the pre-processed trace, both
+ * causal band-pass traces, the STA/LTA curve of the high band and a spectrogram — the same steps
+ * and profile as the engine (server/dsp/pipeline.ts), recomputed from the stored samples so a zoom
+ * can return any range at full resolution.
+ */
+
+/** A decimated curve: x positions (sample indices) and values. */
+export interface Decimated {
+  /** Sample index of each point. */
+  index: number[];
+  values: number[];
+}
+
+/**
+ * Min/max decimation for display: the samples `y[i0..i1)` are cut into buckets of `bucket`
+ * consecutive samples; each bucket gives two points, its minimum and its maximum, in the order
+ * they occur (one point when they are the same sample). A peak of any bucket is never lost,
+ * unlike taking every k-th sample (common practice for drawing long waveforms on a pixel grid).
+ * `bucket` = 1 returns every sample (full resolution).
+ * @param y the samples (not mutated)
+ * @param i0 first sample index, inclusive; @param i1 last, exclusive (0 ≤ i0 < i1 ≤ y.length)
+ * @param bucket samples per bucket, a positive integer
+ * @throws RangeError for an empty or out-of-range span or a bucket that is not a positive integer
+ */
+export function minMaxDecimate(y: Float64Array, i0: number, i1: number, bucket: number): Decimated {
+  if (!Number.isInteger(bucket) || bucket < 1) throw new RangeError(`bucket must be a positive whole number of samples, got ${bucket}`);
+  if (!(Number.isInteger(i0) && Number.isInteger(i1) && i0 >= 0 && i1 <= y.length && i0 < i1)) {
+    throw new RangeError(`sample span [${i0}, ${i1}) is empty or outside 0..${y.length}`);
+  }
+  const index: number[] = [];
+  const values: number[] = [];
+  for (let b = i0; b < i1; b += bucket) {
+    const e = Math.min(i1, b + bucket);
+    let lo = b;
+    let hi = b;
+    for (let i = b + 1; i < e; i++) {
+      if ((y[i] as number) < (y[lo] as number)) lo = i;
+      if ((y[i] as number) > (y[hi] as number)) hi = i;
+    }
+    const first = Math.min(lo, hi);
+    const second = Math.max(lo, hi);
+    index.push(first);
+    values.push(y[first] as number);
+    if (second !== first) {
+      index.push(second);
+      values.push(y[second] as number);
+    }
+  }
+  return { index, values };
+}
+
+/**
+ * Samples per display bucket so that `n` samples give at most about `points` points (two per
+ * bucket): ceil(2n / points), at least 1.
+ */
+export function bucketFor(n: number, points: number): number {
+  return Math.max(1, Math.ceil((2 * n) / points));
+}
+
+/**
+ * Reads `count` samples from a stored blob of any layout (legacy little-endian float64, or the
+ * tagged int32/float64 layouts of samples-codec.ts), copying, so alignment never matters.
+ * @throws RangeError when the blob does not hold exactly `count` samples or is not a samples blob
+ */
+export function decodeSamples(blob: Buffer, count: number): Float64Array {
+  return decodeStoredSamples(blob, count);
+}
+
+/** Parses a station's stored profile (null or absent: the defaults). */
+export function stationProfile(raw: unknown): ProcessingProfile {
+  return processingProfileSchema.parse(raw ?? {});
+}
+
+/**
+ * The display traces of item `itemId` over [from, to) s from the window's first sample (the whole
+ * window by default), each curve decimated to about `points` points with `minMaxDecimate`; a range
+ * of at most points/2 samples comes back at full resolution (bucket 1).
+ * @param scope station ids the viewer may see ('all' or assigned ids)
+ * @throws AppError 404 when the item is missing or out of scope; 400 when the range is outside the window
+ */
+export async function itemTraces(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<TracesResponse> {
+  const [item] = await db
+    .select({ windowId: queueItems.windowId, stationId: queueItems.stationId, profile: stations.profile })
+    .from(queueItems)
+    .innerJoin(stations, eq(stations.id, queueItems.stationId))
+    .where(eq(queueItems.id, itemId));
+  if (!item || (scope !== 'all' && !scope.includes(item.stationId))) throw notFound(`Queue item ${itemId}`);
+  const profile = stationProfile(item.profile);
+  const rows = await db.select().from(windowChannels).where(eq(windowChannels.windowId, item.windowId)).orderBy(asc(windowChannels.streamId));
+  if (rows.length === 0) throw notFound(`Samples of queue item ${itemId}`);
+  const sens = await db
+    .select({ location: channels.location, code: channels.code, sensitivity: channels.sensitivity })
+    .from(channels)
+    .where(and(eq(channels.stationId, item.stationId)));
+  const t0Us = Math.min(...rows.map((r) => r.startTimeUs));
+  const durationS = Math.max(...rows.map((r) => (r.startTimeUs - t0Us) / 1e6 + r.sampleCount / r.sampleRateHz));
+  const from = q.from ?? 0;
+  const to = q.to ?? durationS;
+  if (from < 0 || from >= durationS) throw badRequest(`from: ${from} s is outside the window (0 to ${durationS.toFixed(3)} s)`, { issues: [{ path: 'from', message: 'outside the window' }] });
+  const sl = profile.staLta;
+  const out: TracesResponse['channels'] = [];
+  for (const r of rows) {
+    const fs = r.sampleRateHz;
+    const x = decodeSamples(r.samples, r.sampleCount);
+    const [, , loc = '', cha = ''] = r.streamId.split('.');
+    const s = sens.find((c) => c.location === loc && c.code === cha)?.sensitivity ?? null;
+    const pre = preprocessTrace(x, profile.preprocess.taperAlpha);
+    if (s !== null && s > 0) for (let i = 0; i < pre.length; i++) pre[i] = (pre[i] as number) / s;
+    const low = validateBand('low', profile.bands.low, fs, 'cap');
+    const high = validateBand('high', highBandForRate(profile.bands.high, fs).band, fs, 'cap');
+    const rejected = Float64Array.from(pre);
+    for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(butterworthSos(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
+    const lowY = Float64Array.from(rejected);
+    sosfiltInPlace(butterworthSos(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs), lowY);
+    const highY = rejected;
+    const highSos = butterworthSos(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
+    sosfiltInPlace(highSos, highY);
+    // The STA/LTA curve and triggers come from the engine's own trigger chain (the flag's numbers).
+    const chain = triggerChain(x, fs, profile, highSos, (o, e, t, f) => butterworthSos(o, e, t, f), s !== null && s > 0 ? s : 1);
+    const cf = chain.cf;
+    const triggers = chain.triggers.map((t) => ({ on: t.on, off: t.off }));
+    const offsetS = (r.startTimeUs - t0Us) / 1e6;
+    const i0 = Math.max(0, Math.floor((from - offsetS) * fs));
+    const i1 = Math.min(pre.length, Math.ceil((to - offsetS) * fs));
+    if (i1 <= i0) continue;
+    const bucket = bucketFor(i1 - i0, q.points);
+    const raw = minMaxDecimate(pre, i0, i1, bucket);
+    // The band traces and the STA/LTA curve share the raw trace's points (one time axis for the
+    // linked plots): each takes its own extremes over the same bucket (bucketExtremes; STA/LTA its
+    // maximum, so a trigger peak is never hidden).
+    let sg: TracesResponse['channels'][number]['spectrogram'] = null;
+    if (pre.length >= 16) {
+      const full = spectrogram(pre, fs);
+      sg = { times: full.times.map((t) => t + offsetS), freqs: full.freqs, db: full.db };
+    }
+    out.push({
+      streamId: r.streamId,
+      sampleRateHz: fs,
+      startTime: new Date(Math.floor(r.startTimeUs / 1000)).toISOString(),
+      bucket,
+      times: raw.index.map((i) => offsetS + i / fs),
+      raw: raw.values,
+      low: bucketExtremes(lowY, raw.index, i0, i1, bucket),
+      high: bucketExtremes(highY, raw.index, i0, i1, bucket),
+      staLta: bucketMax(cf, raw.index, i0, i1, bucket),
+      units: s !== null && s > 0 ? 'm/s' : 'counts',
+      bands: { low: [low.fmin, low.fmax], high: [high.fmin, high.fmax] },
+      staLtaLevels: { on: sl.on, off: sl.off, method: sl.method },
+      triggers: triggers.map((t) => ({ on: t.on + offsetS, off: t.off === null ? null : t.off + offsetS })),
+      spectrogram: sg,
+    });
+  }
+  return { from, to: Math.min(to, durationS), filtering: 'causal, zero initial state', channels: out };
+}
+
+/**
+ * A band trace on the raw trace's points: for a bucket with two raw points, the band's minimum and
+ * maximum over that bucket in their own time order; for a one-point bucket, its value of largest
+ * magnitude; at full resolution, the sample itself.
+ */
+function bucketExtremes(y: Float64Array, rawIndex: number[], i0: number, i1: number, bucket: number): number[] {
+  if (bucket === 1) return rawIndex.map((i) => y[i] as number);
+  const out: number[] = [];
+  let k = 0;
+  while (k < rawIndex.length) {
+    const b = i0 + Math.floor(((rawIndex[k] as number) - i0) / bucket) * bucket;
+    const e = Math.min(i1, b + bucket);
+    const twoPoints = k + 1 < rawIndex.length && (rawIndex[k + 1] as number) < e;
+    let lo = b;
+    let hi = b;
+    for (let i = b + 1; i < e; i++) {
+      if ((y[i] as number) < (y[lo] as number)) lo = i;
+      if ((y[i] as number) > (y[hi] as number)) hi = i;
+    }
+    if (twoPoints) {
+      out.push(lo < hi ? (y[lo] as number) : (y[hi] as number), lo < hi ? (y[hi] as number) : (y[lo] as number));
+      k += 2;
+    } else {
+      out.push(Math.abs(y[lo] as number) > Math.abs(y[hi] as number) ? (y[lo] as number) : (y[hi] as number));
+      k += 1;
+    }
+  }
+  return out;
+}
+
+/** The curve's maximum over the bucket of each raw point (the sample itself at full resolution). */
+function bucketMax(y: Float64Array, rawIndex: number[], i0: number, i1: number, bucket: number): number[] {
+  return rawIndex.map((idx) => {
+    if (bucket === 1) return y[idx] as number;
+    const b = i0 + Math.floor((idx - i0) / bucket) * bucket;
+    let m = y[b] as number;
+    for (let i = b + 1; i < Math.min(i1, b + bucket); i++) if ((y[i] as number) > m) m = y[i] as number;
+    return m;
+  });
+}

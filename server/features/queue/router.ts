@@ -1,0 +1,125 @@
+import { eq } from 'drizzle-orm';
+import { Router, type Request } from 'express';
+import { z } from 'zod';
+import { dismissBodySchema, escalateBodySchema, labelBodySchema, queueQuerySchema, tracesQuerySchema, versionBodySchema } from '@shared/schemas/queue';
+import type { AppContext } from '@server/context';
+import { queueItems } from '@server/db/schema/queue-items';
+import { notFound } from '@server/errors';
+import { clientAddress, currentUser, requireUser, type AuthUser } from '@server/auth/authenticate';
+import { parseInput } from '@server/http/validate';
+import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
+import { getItemDetail } from './queue-detail';
+import { listQueue } from './queue-query';
+import { itemTraces } from './queue-traces';
+import {
+  claimItem,
+  dismissItem,
+  escalateItem,
+  keepClaimAlive,
+  labelItem,
+  releaseItem,
+  type EscalationListener,
+  type QueueServiceDeps,
+} from './queue-transitions';
+
+const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a queue item id (a whole number)').transform(Number) });
+
+/** Options of the queue router. */
+export interface QueueRouterOptions {
+  /** Run after an escalation commits (the supervisor issue adds e-mail and the inbox). */
+  escalationListeners?: readonly EscalationListener[];
+}
+
+/**
+ * The review queue API (issue 6), mounted at /api/queue:
+ * - `GET /` list with filters, keyset cursor and counts per state (queue.view; operators see their stations)
+ * - `GET /items/:id` detail with the analysis; `GET /items/:id/traces?from=&to=&points=` display traces
+ * - `POST /items/:id/claim|release|keepalive|label|dismiss|escalate` with `{ version, ... }`:
+ *   a stale version or a state that does not allow the action answers 409 naming who changed it.
+ * Every route needs a session (401) and the action's permission (403).
+ */
+export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Router {
+  const router = Router();
+  const db = ctx.database.db;
+  const deps = (req: Request): QueueServiceDeps => ({ db, notify: () => ctx.hub.notify(), ipAddress: clientAddress(req) });
+  const person = (u: AuthUser) => ({ id: u.id, displayName: u.displayName, email: u.email });
+
+  /** Loads the item's station and checks the action on it (404 when the item does not exist). */
+  const authorizeOnItem = async (user: AuthUser, action: Parameters<typeof authorize>[1], id: number) => {
+    const [row] = await db.select({ stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, id));
+    if (!row) throw notFound(`Queue item ${id}`);
+    authorize(user, action, { stationId: row.stationId });
+  };
+
+  router.use(requireUser);
+
+  router.get('/', requirePermission('queue.view'), async (req, res) => {
+    const user = currentUser(req);
+    const q = parseInput(queueQuerySchema, req.query, 'query');
+    res.json(await listQueue(db, q, authorizedStations(user, 'queue.view')));
+  });
+
+  router.get('/items/:id', requirePermission('queue.view'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    res.json(await getItemDetail(db, id, authorizedStations(user, 'queue.view'), ctx.env.SEISIFT_CLAIM_IDLE_MINUTES));
+  });
+
+  router.get('/items/:id/traces', requirePermission('queue.view'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    const q = parseInput(tracesQuerySchema, req.query, 'query');
+    res.json(await itemTraces(db, id, q, authorizedStations(user, 'queue.view')));
+  });
+
+  router.post('/items/:id/claim', requirePermission('queue.claim'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    const body = parseInput(versionBodySchema, req.body);
+    await authorizeOnItem(user, 'queue.claim', id);
+    res.json(await claimItem(deps(req), person(user), id, body.version));
+  });
+
+  router.post('/items/:id/release', requirePermission('queue.claim'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    const body = parseInput(versionBodySchema, req.body);
+    await authorizeOnItem(user, 'queue.claim', id);
+    res.json(await releaseItem(deps(req), person(user), id, body.version));
+  });
+
+  router.post('/items/:id/keepalive', requirePermission('queue.claim'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    await authorizeOnItem(user, 'queue.claim', id);
+    const at = await keepClaimAlive(deps(req), person(user), id);
+    res.json({ claimedAt: at.toISOString() });
+  });
+
+  router.post('/items/:id/label', requirePermission('queue.label'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    const body = parseInput(labelBodySchema, req.body);
+    await authorizeOnItem(user, 'queue.label', id);
+    res.json(await labelItem(deps(req), person(user), id, body.version, body.label));
+  });
+
+  router.post('/items/:id/dismiss', requirePermission('queue.dismiss'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    const body = parseInput(dismissBodySchema, req.body);
+    await authorizeOnItem(user, 'queue.dismiss', id);
+    res.json(await dismissItem(deps(req), person(user), id, body.version, { noiseReason: body.noiseReason, note: body.note }));
+  });
+
+  router.post('/items/:id/escalate', requirePermission('queue.escalate'), async (req, res) => {
+    const user = currentUser(req);
+    const { id } = parseInput(idParams, req.params, 'params');
+    const body = parseInput(escalateBodySchema, req.body);
+    await authorizeOnItem(user, 'queue.escalate', id);
+    const onError = (err: unknown) => ctx.logger.error({ err, itemId: id }, 'escalation listener failed');
+    res.json(await escalateItem({ ...deps(req), onError }, person(user), id, body.version, { reason: body.reason }, opts.escalationListeners ?? []));
+  });
+
+  return router;
+}

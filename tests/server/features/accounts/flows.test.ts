@@ -1,0 +1,398 @@
+/**
+ * Sign-in, sessions, invitations and password reset end to end against the real MariaDB and the
+ * local fake SMTP server: links are read from the mail the fake server received.
+ * Expectations come from issue 3 and the OWASP cheat sheets named beside each check.
+ */
+import { createHash } from 'node:crypto';
+import { eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { auditLog } from '@server/db/schema/audit-log';
+import { invitations } from '@server/db/schema/invitations';
+import { passwordResetTokens } from '@server/db/schema/password-reset-tokens';
+import { sessions } from '@server/db/schema/sessions';
+import { call, createWorld, demoPassword, latestMailTo, sessionCookieFrom, tokenFromMail, type World } from '@tests/server/support/world';
+
+const sha256 = (s: string) => createHash('sha256').update(s).digest('hex');
+
+async function auditActions(w: World): Promise<string[]> {
+  return (await w.ctx.database.db.select({ action: auditLog.action }).from(auditLog)).map((r) => r.action);
+}
+
+describe('sign-in and sessions', () => {
+  let w: World;
+  beforeAll(async () => {
+    w = await createWorld();
+  });
+  afterAll(async () => {
+    await w.close();
+  });
+
+  it('signs in with the demo password and sets an HttpOnly, SameSite=Lax session cookie (not Secure over http)', async () => {
+    const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'Analyst@Kestrel.example ', password: demoPassword });
+    expect(res.status).toBe(200);
+    const raw = String(res.headers['set-cookie']);
+    expect(raw).toMatch(/seisift_session=[a-z0-9]+/);
+    expect(raw).toMatch(/HttpOnly/);
+    expect(raw).toMatch(/SameSite=Lax/);
+    expect(raw).not.toMatch(/Secure/);
+    const cookie = sessionCookieFrom(res);
+    const me = await call(w, 'GET', '/api/auth/me', cookie);
+    expect(me.status).toBe(200);
+    expect(me.body.user).toMatchObject({ email: 'analyst@kestrel.example', roles: ['analyst'], stationIds: [] });
+    expect(me.body.mailbox).toBe(true);
+    expect(await auditActions(w)).toContain('auth.sign_in');
+  });
+
+  it('marks the cookie Secure when the request came over https (X-Forwarded-Proto from the loopback proxy)', async () => {
+    const res = await call(w, 'POST', '/api/auth/sign-in').set('X-Forwarded-Proto', 'https').set('Origin', 'https://seisift.test').send({ email: 'analyst@kestrel.example', password: demoPassword });
+    expect(res.status).toBe(200);
+    expect(String(res.headers['set-cookie'])).toMatch(/Secure/);
+  });
+
+  it('answers an unknown e-mail and a wrong password with the same generic error, and audits both', async () => {
+    const unknown = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'nobody@kestrel.example', password: demoPassword });
+    const wrong = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'supervisor@kestrel.example', password: 'not-the-right-password' });
+    expect(unknown.status).toBe(401);
+    expect(wrong.status).toBe(401);
+    expect(unknown.body).toEqual(wrong.body);
+    expect(unknown.body.error.code).toBe('sign_in_failed');
+    expect(sessionCookieFrom(unknown)).toBeNull();
+    const rows = await w.ctx.database.db.select().from(auditLog).where(eq(auditLog.action, 'auth.sign_in_failed'));
+    expect(rows.map((r) => (r.details as { reason: string }).reason).sort()).toEqual(['unknown_email', 'wrong_password']);
+    expect(rows.every((r) => r.ipAddress !== null)).toBe(true);
+  });
+
+  it('answers the session probe with null for a visitor and the user once signed in (never 401)', async () => {
+    const anon = await call(w, 'GET', '/api/auth/session');
+    expect(anon.status).toBe(200);
+    expect(anon.body).toEqual({ session: null });
+    const signed = await call(w, 'GET', '/api/auth/session', w.cookie.operator);
+    expect(signed.body.session.user).toMatchObject({ email: 'operator@kestrel.example', roles: ['operator'], stationIds: [w.stationIds.KV01, w.stationIds.KV02, w.stationIds.KV03] });
+    expect(signed.headers['cache-control']).toBe('no-store');
+  });
+
+  it('names the bad field on malformed input (400)', async () => {
+    const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'not-an-address', password: 'x' });
+    expect(res.status).toBe(400);
+    expect(res.body.error.code).toBe('validation_failed');
+    expect(res.body.error.message).toMatch(/^email: /);
+  });
+
+  it('sign-out ends the session: the old cookie no longer works', async () => {
+    const u = await w.freshUser(['analyst']);
+    expect((await call(w, 'GET', '/api/auth/me', u.cookie)).status).toBe(200);
+    const out = await call(w, 'POST', '/api/auth/sign-out', u.cookie);
+    expect(out.status).toBe(204);
+    expect(String(out.headers['set-cookie'])).toMatch(/seisift_session=;/);
+    expect((await call(w, 'GET', '/api/auth/me', u.cookie)).status).toBe(401);
+    expect(await auditActions(w)).toContain('auth.sign_out');
+  });
+
+  it('slides the expiry: a session in the second half of its life is pushed out and its cookie sent again', async () => {
+    const u = await w.freshUser(['analyst']);
+    const id = u.cookie.split('=')[1] ?? '';
+    const soon = new Date(Date.now() + 3600 * 1000); // 1 h left of 24 h idle time: past the half-life
+    await w.ctx.database.db.update(sessions).set({ expiresAt: soon }).where(eq(sessions.id, id));
+    const res = await call(w, 'GET', '/api/auth/me', u.cookie);
+    expect(res.status).toBe(200);
+    expect(sessionCookieFrom(res)).toBe(u.cookie);
+    const [row] = await w.ctx.database.db.select().from(sessions).where(eq(sessions.id, id));
+    expect(row!.expiresAt.getTime()).toBeGreaterThan(Date.now() + 23 * 3600 * 1000);
+  });
+
+  it('ends an expired session', async () => {
+    const u = await w.freshUser(['analyst']);
+    const id = u.cookie.split('=')[1] ?? '';
+    await w.ctx.database.db.update(sessions).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(sessions.id, id));
+    expect((await call(w, 'GET', '/api/auth/me', u.cookie)).status).toBe(401);
+  });
+
+  it('changing your password ends your other sessions and keeps this one', async () => {
+    const u = await w.freshUser(['supervisor']);
+    const other = await call(w, 'POST', '/api/auth/sign-in').send({ email: u.email, password: u.password });
+    const otherCookie = sessionCookieFrom(other);
+    expect(otherCookie).not.toBeNull();
+    const wrong = await call(w, 'PUT', '/api/account/password', u.cookie).send({ currentPassword: 'wrong-one-entirely', newPassword: 'a-brand-new-password' });
+    expect(wrong.status).toBe(400);
+    expect(wrong.body.error.message).toMatch(/^currentPassword: /);
+    const short = await call(w, 'PUT', '/api/account/password', u.cookie).send({ currentPassword: u.password, newPassword: 'short' });
+    expect(short.status).toBe(400);
+    expect(short.body.error.message).toBe('newPassword: must be at least 12 characters');
+    const ok = await call(w, 'PUT', '/api/account/password', u.cookie).send({ currentPassword: u.password, newPassword: 'a-brand-new-password' });
+    expect(ok.status).toBe(204);
+    expect((await call(w, 'GET', '/api/auth/me', u.cookie)).status).toBe(200);
+    expect((await call(w, 'GET', '/api/auth/me', otherCookie)).status).toBe(401);
+    const again = await call(w, 'POST', '/api/auth/sign-in').send({ email: u.email, password: 'a-brand-new-password' });
+    expect(again.status).toBe(200);
+  });
+
+  it('lists your own sessions by handle (never the cookie secret) and ends one', async () => {
+    const u = await w.freshUser(['analyst']);
+    const second = sessionCookieFrom(await call(w, 'POST', '/api/auth/sign-in').send({ email: u.email, password: u.password }));
+    const list = await call(w, 'GET', '/api/account/sessions', u.cookie);
+    expect(list.status).toBe(200);
+    expect(list.body.sessions).toHaveLength(2);
+    const secrets = [u.cookie, second].map((c) => (c ?? '').split('=')[1]);
+    for (const s of list.body.sessions) expect(secrets).not.toContain(s.id);
+    const other = list.body.sessions.find((s: { current: boolean }) => !s.current);
+    expect((await call(w, 'DELETE', `/api/account/sessions/${other.id}`, u.cookie)).status).toBe(204);
+    expect((await call(w, 'GET', '/api/auth/me', second)).status).toBe(401);
+    // Someone else's handle is not found.
+    const foreign = await call(w, 'GET', '/api/account/sessions', w.cookie.admin);
+    expect((await call(w, 'DELETE', `/api/account/sessions/${foreign.body.sessions[0].id}`, u.cookie)).status).toBe(404);
+  });
+
+  it('changing a user’s roles or deactivating them ends their sessions at once', async () => {
+    const a = await w.freshUser(['analyst']);
+    expect((await call(w, 'PUT', `/api/admin/users/${a.id}/roles`, w.cookie.admin).send({ roles: ['analyst', 'supervisor'] })).status).toBe(204);
+    expect((await call(w, 'GET', '/api/auth/me', a.cookie)).status).toBe(401);
+    const b = await w.freshUser(['operator'], { stationCodes: ['KV05'] });
+    expect((await call(w, 'POST', `/api/admin/users/${b.id}/deactivate`, w.cookie.admin)).status).toBe(204);
+    expect((await call(w, 'GET', '/api/auth/me', b.cookie)).status).toBe(401);
+    const signIn = await call(w, 'POST', '/api/auth/sign-in').send({ email: b.email, password: b.password });
+    expect(signIn.status).toBe(401);
+    expect(signIn.body.error.code).toBe('sign_in_failed');
+    const actions = await auditActions(w);
+    expect(actions).toContain('user.roles_changed');
+    expect(actions).toContain('user.deactivated');
+  });
+
+  it('refuses to remove the last active admin', async () => {
+    const res = await call(w, 'PUT', `/api/admin/users/${w.userId.admin}/roles`, w.cookie.admin).send({ roles: ['supervisor'] });
+    expect(res.status).toBe(409);
+    expect((await call(w, 'POST', `/api/admin/users/${w.userId.admin}/deactivate`, w.cookie.admin)).status).toBe(409);
+  });
+});
+
+describe('CSRF: Origin / Referer check on state-changing requests (OWASP CSRF Prevention Cheat Sheet)', () => {
+  let w: World;
+  beforeAll(async () => {
+    w = await createWorld();
+  });
+  afterAll(async () => {
+    await w.close();
+  });
+
+  it('refuses a POST from a foreign Origin with 403', async () => {
+    const res = await call(w, 'POST', '/api/auth/sign-out', w.cookie.analyst).set('Origin', 'http://evil.example');
+    expect(res.status).toBe(403);
+    expect(res.body.error.code).toBe('csrf_refused');
+    expect((await call(w, 'GET', '/api/auth/me', w.cookie.analyst)).status).toBe(200);
+  });
+
+  it('refuses a state-changing request with neither Origin nor Referer', async () => {
+    const res = await call(w, 'PUT', `/api/admin/users/${w.userId.analyst}/roles`, w.cookie.admin).unset('Origin').send({ roles: [] });
+    expect(res.status).toBe(403);
+    expect(res.body.error.code).toBe('csrf_refused');
+  });
+
+  it('accepts our own Referer when the browser sends no Origin, and compares whole origins (no prefix tricks)', async () => {
+    const ok = await call(w, 'POST', '/api/auth/sign-in').unset('Origin').set('Referer', 'http://seisift.test/sign-in').send({ email: 'x@kestrel.example', password: 'y' });
+    expect(ok.status).toBe(401);
+    const trick = await call(w, 'POST', '/api/auth/sign-in').set('Origin', 'http://seisift.test.evil.example').send({ email: 'x@kestrel.example', password: 'y' });
+    expect(trick.status).toBe(403);
+  });
+
+  it('leaves GET alone', async () => {
+    expect((await call(w, 'GET', '/api/auth/me', w.cookie.analyst).set('Origin', 'http://evil.example')).status).toBe(200);
+  });
+
+  it('lets a script with a bearer token and no cookie through to authentication (401 here: no ingest tokens yet)', async () => {
+    const res = await call(w, 'POST', '/api/auth/sign-out').unset('Origin').set('Authorization', 'Bearer abc');
+    expect(res.status).toBe(401);
+  });
+});
+
+describe('rate limiting of sign-in (rate-limiter-flexible): 429 with Retry-After', () => {
+  let w: World;
+  beforeAll(async () => {
+    w = await createWorld({ SEISIFT_SIGNIN_MAX_PER_ACCOUNT: '3', SEISIFT_SIGNIN_MAX_PER_ADDRESS: '8', SEISIFT_SIGNIN_WINDOW_S: '600' });
+  });
+  afterAll(async () => {
+    await w.close();
+  });
+
+  it('limits failed attempts per account, even with the right password afterwards', async () => {
+    for (let i = 0; i < 3; i++) expect((await call(w, 'POST', '/api/auth/sign-in').send({ email: 'operator@kestrel.example', password: `wrong-${i}` })).status).toBe(401);
+    const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'operator@kestrel.example', password: demoPassword });
+    expect(res.status).toBe(429);
+    expect(res.body.error.code).toBe('rate_limited');
+    const retry = Number(res.headers['retry-after']);
+    expect(retry).toBeGreaterThan(0);
+    expect(retry).toBeLessThanOrEqual(600);
+  });
+
+  it('limits every attempt per address, whichever account is tried', async () => {
+    let last = 0;
+    let sawLimit = false;
+    for (let i = 0; i < 10; i++) {
+      const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: `someone-${i}@kestrel.example`, password: 'whatever-it-is' });
+      last = res.status;
+      if (res.status === 429) {
+        sawLimit = true;
+        expect(Number(res.headers['retry-after'])).toBeGreaterThan(0);
+        break;
+      }
+    }
+    expect(sawLimit).toBe(true);
+    expect(last).toBe(429);
+  });
+});
+
+describe('invitations by e-mail (72 h, one-time, hashed)', () => {
+  let w: World;
+  beforeAll(async () => {
+    w = await createWorld();
+  });
+  afterAll(async () => {
+    await w.close();
+  });
+
+  it('admin invites an operator with stations; the person follows the mailed link, sets a password and is signed in', async () => {
+    const kv04 = w.stationIds.KV04!;
+    const created = await call(w, 'POST', '/api/admin/invitations', w.cookie.admin).send({ email: 'new.operator@kestrel.example', displayName: 'New Operator', roles: ['operator'], stationIds: [kv04] });
+    expect(created.status).toBe(201);
+    expect(created.body.invitation).toMatchObject({ email: 'new.operator@kestrel.example', roles: ['operator'], stationIds: [kv04], status: 'pending' });
+    const expires = Date.parse(created.body.invitation.expiresAt) - Date.parse(created.body.invitation.createdAt);
+    expect(expires).toBe(72 * 3600 * 1000);
+
+    const mail = await latestMailTo(w, 'new.operator@kestrel.example');
+    expect(mail).not.toBeNull();
+    expect(mail!.subject).toBe('Your invitation to Seisift');
+    expect(mail!.text).toContain('XX.KV04');
+    const token = tokenFromMail(mail!.text);
+    expect(token).not.toBeNull();
+    expect(tokenFromMail(mail!.html)).toBe(token);
+
+    // Only the SHA-256 of the token is stored.
+    const [row] = await w.ctx.database.db.select().from(invitations).where(eq(invitations.email, 'new.operator@kestrel.example'));
+    expect(row!.tokenHash).toBe(sha256(token!));
+    expect(JSON.stringify(row)).not.toContain(token!);
+
+    const check = await call(w, 'POST', '/api/auth/invitations/check').send({ token });
+    expect(check.status).toBe(200);
+    expect(check.body).toMatchObject({ email: 'new.operator@kestrel.example', roles: ['operator'] });
+
+    const short = await call(w, 'POST', '/api/auth/invitations/accept').send({ token, password: 'too-short' });
+    expect(short.status).toBe(400);
+    expect(short.body.error.message).toMatch(/^password: must be at least 12/);
+
+    const accepted = await call(w, 'POST', '/api/auth/invitations/accept').send({ token, password: 'operator-chosen-password' });
+    expect(accepted.status).toBe(201);
+    const cookie = sessionCookieFrom(accepted);
+    const me = await call(w, 'GET', '/api/auth/me', cookie);
+    expect(me.status).toBe(200);
+    expect(me.body.user).toMatchObject({ email: 'new.operator@kestrel.example', displayName: 'New Operator', roles: ['operator'], stationIds: [kv04] });
+
+    const reused = await call(w, 'POST', '/api/auth/invitations/accept').send({ token, password: 'operator-chosen-password' });
+    expect(reused.status).toBe(410);
+    expect(reused.body.error.code).toBe('token_used');
+    const actions = await auditActions(w);
+    expect(actions).toContain('invitation.created');
+    expect(actions).toContain('invitation.accepted');
+  });
+
+  it('refuses an expired invitation link (410) and an unknown one (404)', async () => {
+    const res = await call(w, 'POST', '/api/admin/invitations', w.cookie.admin).send({ email: 'late@kestrel.example', displayName: 'Late Analyst', roles: ['analyst'] });
+    expect(res.status).toBe(201);
+    const token = tokenFromMail((await latestMailTo(w, 'late@kestrel.example'))!.text);
+    await w.ctx.database.db.update(invitations).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(invitations.email, 'late@kestrel.example'));
+    const expired = await call(w, 'POST', '/api/auth/invitations/accept').send({ token, password: 'long-enough-password' });
+    expect(expired.status).toBe(410);
+    expect(expired.body.error.code).toBe('token_expired');
+    const unknown = await call(w, 'POST', '/api/auth/invitations/check').send({ token: 'A'.repeat(43) });
+    expect(unknown.status).toBe(404);
+    expect(unknown.body.error.code).toBe('token_unknown');
+    const malformed = await call(w, 'POST', '/api/auth/invitations/check').send({ token: 'abc' });
+    expect(malformed.status).toBe(400);
+    expect(malformed.body.error.message).toBe('token: is not a valid link token');
+  });
+
+  it('a withdrawn invitation stops working; a new one to the same address replaces the old', async () => {
+    await call(w, 'POST', '/api/admin/invitations', w.cookie.admin).send({ email: 'twice@kestrel.example', displayName: 'Twice', roles: ['analyst'] });
+    const first = tokenFromMail((await latestMailTo(w, 'twice@kestrel.example'))!.text);
+    const second = await call(w, 'POST', '/api/admin/invitations', w.cookie.admin).send({ email: 'twice@kestrel.example', displayName: 'Twice', roles: ['supervisor'] });
+    expect(second.status).toBe(201);
+    expect((await call(w, 'POST', '/api/auth/invitations/check').send({ token: first })).body.error.code).toBe('token_revoked');
+    expect((await call(w, 'DELETE', `/api/admin/invitations/${second.body.invitation.id}`, w.cookie.admin)).status).toBe(204);
+    const list = await call(w, 'GET', '/api/admin/invitations', w.cookie.admin);
+    expect(list.body.invitations.filter((i: { email: string }) => i.email === 'twice@kestrel.example').map((i: { status: string }) => i.status)).toEqual(['revoked', 'revoked']);
+  });
+
+  it('refuses to invite an address that already has an account (409), and stations for a non-operator (400)', async () => {
+    const dup = await call(w, 'POST', '/api/admin/invitations', w.cookie.admin).send({ email: 'analyst@kestrel.example', displayName: 'Again', roles: ['analyst'] });
+    expect(dup.status).toBe(409);
+    const bad = await call(w, 'POST', '/api/admin/invitations', w.cookie.admin).send({ email: 'x2@kestrel.example', displayName: 'X', roles: ['analyst'], stationIds: [w.stationIds.KV01] });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.message).toBe('stationIds: stations can be assigned only to an operator');
+    const none = await call(w, 'POST', '/api/admin/invitations', w.cookie.admin).send({ email: 'x3@kestrel.example', displayName: 'X', roles: ['operator'], stationIds: [999999] });
+    expect(none.status).toBe(400);
+    expect(none.body.error.message).toBe('stationIds: no station with id 999999');
+  });
+
+  it('shows the mail in the admin mailbox', async () => {
+    const list = await call(w, 'GET', '/api/admin/mailbox', w.cookie.admin);
+    expect(list.status).toBe(200);
+    expect(list.body.total).toBeGreaterThan(0);
+    const first = list.body.messages[0];
+    const one = await call(w, 'GET', `/api/admin/mailbox/${first.id}`, w.cookie.admin);
+    expect(one.status).toBe(200);
+    expect(one.body.message.text).toMatch(/#token=/);
+  });
+});
+
+describe('forgot password (1 h, one-time; using it ends every other session)', () => {
+  let w: World;
+  beforeAll(async () => {
+    w = await createWorld();
+  });
+  afterAll(async () => {
+    await w.close();
+  });
+
+  it('mails a reset link; setting a new password ends the other sessions and signs this browser in', async () => {
+    const u = await w.freshUser(['analyst']);
+    const other = await w.freshUser([]); // someone else's session is not touched
+    const res = await call(w, 'POST', '/api/auth/forgot-password').send({ email: u.email.toUpperCase() });
+    expect(res.status).toBe(202);
+    const mail = await latestMailTo(w, u.email);
+    expect(mail!.subject).toBe('Reset your Seisift password');
+    const token = tokenFromMail(mail!.text)!;
+    const [row] = await w.ctx.database.db.select().from(passwordResetTokens).where(eq(passwordResetTokens.userId, u.id));
+    expect(row!.tokenHash).toBe(sha256(token));
+    expect(row!.expiresAt.getTime() - row!.createdAt.getTime()).toBe(3600 * 1000);
+
+    expect((await call(w, 'POST', '/api/auth/reset-password/check').send({ token })).body.email).toBe(u.email);
+    const done = await call(w, 'POST', '/api/auth/reset-password').send({ token, password: 'the-new-password-1' });
+    expect(done.status).toBe(200);
+    const fresh = sessionCookieFrom(done);
+    expect((await call(w, 'GET', '/api/auth/me', fresh)).status).toBe(200);
+    expect((await call(w, 'GET', '/api/auth/me', u.cookie)).status).toBe(401);
+    expect((await call(w, 'GET', '/api/auth/me', other.cookie)).status).toBe(200);
+    expect((await call(w, 'POST', '/api/auth/sign-in').send({ email: u.email, password: u.password })).status).toBe(401);
+    expect((await call(w, 'POST', '/api/auth/sign-in').send({ email: u.email, password: 'the-new-password-1' })).status).toBe(200);
+
+    const reused = await call(w, 'POST', '/api/auth/reset-password').send({ token, password: 'another-new-password' });
+    expect(reused.status).toBe(410);
+    expect(reused.body.error.code).toBe('token_used');
+    expect(await auditActions(w)).toContain('auth.password_reset');
+  });
+
+  it('refuses an expired reset link', async () => {
+    const u = await w.freshUser(['supervisor']);
+    await call(w, 'POST', '/api/auth/forgot-password').send({ email: u.email });
+    const token = tokenFromMail((await latestMailTo(w, u.email))!.text)!;
+    await w.ctx.database.db.update(passwordResetTokens).set({ expiresAt: new Date(Date.now() - 1) }).where(eq(passwordResetTokens.userId, u.id));
+    const res = await call(w, 'POST', '/api/auth/reset-password').send({ token, password: 'the-new-password-2' });
+    expect(res.status).toBe(410);
+    expect(res.body.error.code).toBe('token_expired');
+  });
+
+  it('answers an unknown address exactly like a known one and sends nothing', async () => {
+    const known = await call(w, 'POST', '/api/auth/forgot-password').send({ email: 'supervisor@kestrel.example' });
+    const unknown = await call(w, 'POST', '/api/auth/forgot-password').send({ email: 'ghost@kestrel.example' });
+    expect(unknown.status).toBe(known.status);
+    expect(unknown.body).toEqual(known.body);
+    expect(await latestMailTo(w, 'ghost@kestrel.example', 300)).toBeNull();
+  });
+});
