@@ -3,7 +3,7 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
-import { detrendLinear, preprocessTrace } from './preprocess';
+import { detrendLinear, taperInPlace } from './preprocess';
 import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
@@ -196,7 +196,11 @@ function analyzeChannel(
   if (!(flatSensitivity > 0) || !Number.isFinite(flatSensitivity)) {
     throw new AnalysisError(`${s.id}: sensitivity ${flatSensitivity} counts per m/s must be a positive number`);
   }
-  const pre = preprocessTrace(s.samples, profile.preprocess.taperAlpha);
+  // Detrend once: the pre-processed trace is a tapered copy (= preprocessTrace), the trigger's trace
+  // (below) the detrended samples themselves with a start ramp instead of the taper.
+  const detrended = detrendLinear(s.samples);
+  const pre = detrended.slice();
+  taperInPlace(pre, profile.preprocess.taperAlpha);
   if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
 
   const low = validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
@@ -236,7 +240,7 @@ function analyzeChannel(
   // the rest. The characteristic function starts after the ramp (see `delayedStaLta`).
   const sl = profile.staLta;
   const startIndex = Math.min(n, Math.round(sl.startS * fs));
-  const trigBase = detrendLinear(s.samples);
+  const trigBase = detrended;
   for (let i = 0; i < startIndex; i++) trigBase[i] = (trigBase[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / startIndex));
   if (flatSensitivity !== 1) for (let i = 0; i < n; i++) trigBase[i] = (trigBase[i] as number) / flatSensitivity;
   for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), trigBase);

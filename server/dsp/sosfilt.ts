@@ -14,9 +14,11 @@ export function sosfilt(sos: Sos, x: Float64Array): Float64Array {
 }
 
 /**
- * `sosfilt` overwriting `y` with the filtered trace (no allocation). Sections run two per pass over
- * the trace (each sample goes through section s, then s+1, with both states in locals: the same
- * arithmetic in the same order as one section per pass, about twice as fast).
+ * `sosfilt` overwriting `y` with the filtered trace (no allocation). Sections run four per pass over
+ * the trace (then two, then one for the rest): each sample goes through section s, s+1, s+2, s+3 with
+ * all states in locals — the same arithmetic in the same order as one section per pass, so the output
+ * is bit-identical, but the sections' dependency chains overlap (about 1.4× faster than two per pass
+ * for a 4-section band-pass, measured with `npm run bench:engine`).
  * Throws when a section has a0 = 0.
  */
 export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
@@ -29,6 +31,36 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
     return [(cf[o] as number) / a0, (cf[o + 1] as number) / a0, (cf[o + 2] as number) / a0, (cf[o + 4] as number) / a0, (cf[o + 5] as number) / a0];
   };
   let s = 0;
+  for (; s + 3 < sos.sections; s += 4) {
+    const [b0, b1, b2, a1, a2] = coef(s);
+    const [c0, c1, c2, d1, d2] = coef(s + 1);
+    const [e0, e1, e2, f1, f2] = coef(s + 2);
+    const [g0, g1, g2, h1, h2] = coef(s + 3);
+    let s1 = 0;
+    let s2 = 0;
+    let t1 = 0;
+    let t2 = 0;
+    let u1 = 0;
+    let u2 = 0;
+    let v1 = 0;
+    let v2 = 0;
+    for (let i = 0; i < n; i++) {
+      const xi = y[i] as number;
+      const yi = b0 * xi + s1;
+      s1 = b1 * xi - a1 * yi + s2;
+      s2 = b2 * xi - a2 * yi;
+      const zi = c0 * yi + t1;
+      t1 = c1 * yi - d1 * zi + t2;
+      t2 = c2 * yi - d2 * zi;
+      const wi = e0 * zi + u1;
+      u1 = e1 * zi - f1 * wi + u2;
+      u2 = e2 * zi - f2 * wi;
+      const qi = g0 * wi + v1;
+      v1 = g1 * wi - h1 * qi + v2;
+      v2 = g2 * wi - h2 * qi;
+      y[i] = qi;
+    }
+  }
   for (; s + 1 < sos.sections; s += 2) {
     const [b0, b1, b2, a1, a2] = coef(s);
     const [c0, c1, c2, d1, d2] = coef(s + 1);
