@@ -64,6 +64,10 @@ async function startScipy(win: readonly DecodedStream[], profile: ProcessingProf
   const params = { ...profile, bands: { ...profile.bands, low: used?.low, high: used?.high }, baseline: NETWORK_DEFAULT_BASELINE };
   const py = spawn('/usr/bin/python3', [here.replace(/engine\.ts$/, 'scipy-engine.py'), String(win.length), String(n), String(fs), JSON.stringify(params)], {
     stdio: ['pipe', 'pipe', 'inherit'],
+    // The reference's best case on a small shared machine (ours is one thread too): single-threaded
+    // BLAS, and glibc keeping freed memory instead of returning each array's pages to the system
+    // (measured: without it numpy's page faults make the reference about twice as slow per window).
+    env: { ...process.env, OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1', MALLOC_MMAP_THRESHOLD_: '1073741824', MALLOC_TRIM_THRESHOLD_: '1073741824', MALLOC_TOP_PAD_: '134217728' },
   });
   const lines = createInterface({ input: py.stdout })[Symbol.asyncIterator]();
   const next = async (): Promise<string> => {
