@@ -8,9 +8,7 @@ import type { Sos } from './butterworth';
  * Throws when a section has a0 = 0.
  */
 export function sosfilt(sos: Sos, x: Float64Array): Float64Array {
-  const y = x.slice();
-  sosfiltInPlace(sos, y);
-  return y;
+  return sosfiltInto(sos, x, new Float64Array(x.length));
 }
 
 /**
@@ -22,8 +20,20 @@ export function sosfilt(sos: Sos, x: Float64Array): Float64Array {
  * Throws when a section has a0 = 0.
  */
 export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
+  sosfiltInto(sos, y, y);
+}
+
+/**
+ * `sosfilt` of `x` written into `y` (same length; may be `x` itself): the first pass reads `x`, the
+ * others work in place on `y`, so filtering a trace into a fresh array needs no copy first. Same
+ * arithmetic as `sosfiltInPlace`. Returns `y`. Throws when a section has a0 = 0 or the lengths differ.
+ */
+export function sosfiltInto(sos: Sos, x: Float64Array, y: Float64Array): Float64Array {
   const cf = sos.coefficients;
   const n = y.length;
+  if (x.length !== n) throw new RangeError(`sosfiltInto: input of ${x.length} samples, output of ${n}`);
+  if (sos.sections === 0 && x !== y) y.set(x);
+  let src = x;
   const coef = (s: number): [number, number, number, number, number] => {
     const o = s * 6;
     const a0 = cf[o + 3] as number;
@@ -45,7 +55,7 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
     let v1 = 0;
     let v2 = 0;
     for (let i = 0; i < n; i++) {
-      const xi = y[i] as number;
+      const xi = src[i] as number;
       const yi = b0 * xi + s1;
       s1 = b1 * xi - a1 * yi + s2;
       s2 = b2 * xi - a2 * yi;
@@ -60,6 +70,7 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
       v2 = g2 * wi - h2 * qi;
       y[i] = qi;
     }
+    src = y;
   }
   for (; s + 1 < sos.sections; s += 2) {
     const [b0, b1, b2, a1, a2] = coef(s);
@@ -69,7 +80,7 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
     let t1 = 0;
     let t2 = 0;
     for (let i = 0; i < n; i++) {
-      const xi = y[i] as number;
+      const xi = src[i] as number;
       const yi = b0 * xi + s1;
       s1 = b1 * xi - a1 * yi + s2;
       s2 = b2 * xi - a2 * yi;
@@ -78,19 +89,21 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
       t2 = c2 * yi - d2 * zi;
       y[i] = zi;
     }
+    src = y;
   }
   if (s < sos.sections) {
     const [b0, b1, b2, a1, a2] = coef(s);
     let s1 = 0;
     let s2 = 0;
     for (let i = 0; i < n; i++) {
-      const xi = y[i] as number;
+      const xi = src[i] as number;
       const yi = b0 * xi + s1;
       s1 = b1 * xi - a1 * yi + s2;
       s2 = b2 * xi - a2 * yi;
       y[i] = yi;
     }
   }
+  return y;
 }
 
 /**
