@@ -3,11 +3,13 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { butterworthSos } from '../dsp/butterworth';
 import { analyzeWindow } from '../dsp/pipeline';
+import { computeBaseline, NETWORK_DEFAULT_BASELINE } from '../dsp/score';
 import { sosfiltInPlace } from '../dsp/sosfilt';
 import { classicStaLta, detectTriggers } from '../dsp/sta-lta';
 import { decodeWaveform } from '../formats/decode';
 import type { DecodedStream } from '../formats/types';
-import { defaultProcessingProfile } from '../../shared/schemas/processing-profile';
+import { z } from 'zod';
+import { defaultProcessingProfile, processingProfileSchema } from '../../shared/schemas/processing-profile';
 import { confusion, errorStats, flagRates, longestConstantRun, rocAuc, type EvaluatedWindow, type Flag } from './detection-metrics';
 
 /**
@@ -71,6 +73,10 @@ export function crop(streams: readonly DecodedStream[], fromS: number, toS: numb
   });
 }
 
+const demoManifestSchema = z.object({
+  files: z.array(z.object({ file: z.string(), station: z.string(), events: z.array(z.object({ type: z.string() }).passthrough()) }).passthrough()),
+});
+
 export interface Cut {
   name: string;
   label: 'earthquake' | 'noise';
@@ -107,6 +113,8 @@ function textbookTrigger(streams: readonly DecodedStream[]): number | null {
 }
 
 interface Result {
+  /** The deciding channel's whole-window log10 ratio and the window's STA/LTA peak (noise baseline features). */
+  features: { log10Ratio: number | null; staLtaPeak: number };
   cut: string;
   split: 'dev' | 'holdout';
   engine: EvaluatedWindow;
@@ -135,11 +143,14 @@ export function run(): { results: Result[]; skipped: Record<string, number>; ref
       let score: number;
       let trig: number | null;
       let reasons: string[];
+      let features: Result['features'] = { log10Ratio: null, staLtaPeak: 0 };
       try {
         const a = analyzeWindow(w, defaultProcessingProfile, { baseline: null });
         flag = a.flag;
         score = a.score;
         reasons = a.reasons;
+        const lead = a.channels.find((c) => c.id === a.leadChannel);
+        features = { log10Ratio: lead?.log10Ratio ?? null, staLtaPeak: Math.max(...a.channels.map((c) => c.staLta.peak)) };
         trig = a.detection?.onset ?? null;
       } catch (err) {
         refused[cut.name] = (refused[cut.name] ?? 0) + 1;
@@ -152,6 +163,7 @@ export function run(): { results: Result[]; skipped: Record<string, number>; ref
       results.push({
         cut: cut.name,
         split: splitOf(row.station),
+        features,
         file: row.file,
         reasons,
         engine: { label: cut.label, flag, score, triggerErrorS: cut.pAt !== null && trig !== null ? trig - cut.pAt : null },
@@ -203,6 +215,13 @@ if (args.includes('--json')) {
   for (const split of ['dev', 'holdout'] as const) report(results.filter((r) => r.split === split), split === 'dev' ? 'development part (2/3 of stations)' : 'held-out part (1/3 of stations)');
   report(results, 'all');
   console.log(`\nleft out (a run of identical samples > 0.5 s in the cut): ${JSON.stringify(skipped)}; refused by the engine: ${JSON.stringify(refused)}`);
+  if (args.includes('--demo') || args.includes('--baseline')) demoDay(args.includes('--baseline'));
+  if (args.includes('--baseline')) {
+    const noise = results.filter((r) => r.split === 'dev' && r.engine.label === 'noise');
+    const b = computeBaseline(noise.map((r) => r.features));
+    console.log(`\nnoise baseline measured on the development part's noise cuts (${noise.length} windows): ${JSON.stringify(b)}`);
+    console.log(`in use (NETWORK_DEFAULT_BASELINE): ${JSON.stringify(NETWORK_DEFAULT_BASELINE)}`);
+  }
   if (args.includes('--misses')) {
     for (const r of results.filter((x) => (x.engine.label === 'earthquake') !== (x.engine.flag === 'likely event'))) {
       if (r.engine.label === 'noise' && r.engine.flag === 'likely noise') continue;
@@ -211,4 +230,33 @@ if (args.includes('--json')) {
   }
   console.log(`\n${results.length} windows in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
 }
+}
+
+/**
+ * The invented demo day (demo-waveforms/, written by `npm run demo:generate`): each window's flag
+ * against what the generator put in it. Invented data: shown to see the product as a user will, never
+ * a check value. KV04 gets its seeded pump band-reject.
+ */
+function demoDay(printBaseline: boolean): void {
+  const root = resolve(here, '../../demo-waveforms');
+  const manifest = demoManifestSchema.parse(JSON.parse(readFileSync(join(root, 'manifest.json'), 'utf8')));
+  const kv04 = processingProfileSchema.parse({ bandReject: [{ fmin: 24.5, fmax: 25.5, order: 4, label: 'pump, 25 Hz' }] });
+  const table = new Map<string, Record<Flag, number>>();
+  const noiseFeatures: Array<{ log10Ratio: number | null; staLtaPeak: number }> = [];
+  for (const f of manifest.files.filter((x) => x.file.startsWith('mseed/'))) {
+    const streams = decodeWaveform(new Uint8Array(readFileSync(join(root, f.file))));
+    const a = analyzeWindow(streams, f.station === 'KV04' ? kv04 : defaultProcessingProfile, { baseline: null });
+    const kind = f.events.length > 0 ? [...new Set(f.events.map((e) => e.type))].join(' + ') : 'no event';
+    const row = table.get(kind) ?? { 'likely event': 0, 'needs eyes': 0, 'likely noise': 0 };
+    row[a.flag]++;
+    table.set(kind, row);
+    if (f.events.length === 0) {
+      const lead = a.channels.find((c) => c.id === a.leadChannel);
+      noiseFeatures.push({ log10Ratio: lead?.log10Ratio ?? null, staLtaPeak: Math.max(...a.channels.map((c) => c.staLta.peak)) });
+    }
+  }
+  console.log('\n## the invented demo day (network-default baseline; not a check value)');
+  console.log('| what the generator put in | likely event | needs eyes | likely noise |\n| --- | --- | --- | --- |');
+  for (const [kind, r] of table) console.log(`| ${kind} | ${r['likely event']} | ${r['needs eyes']} | ${r['likely noise']} |`);
+  if (printBaseline) console.log(`demo network noise windows (${noiseFeatures.length}): ${JSON.stringify(computeBaseline(noiseFeatures))}`);
 }

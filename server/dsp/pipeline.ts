@@ -1,6 +1,6 @@
 import type { DecodedStream } from '../formats/types';
 import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
-import { validateBand } from './bands';
+import { highBandForRate, validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
 import { detrendLinear, taperInPlace } from './preprocess';
@@ -8,9 +8,9 @@ import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
 import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
-import { aicOnsetIndex } from './aic-picker';
-import { delayedStaLta, detectTriggers, peakOf, snrAroundTrigger } from './sta-lta';
-import { bandEnergy, sosfiltInPlace, sosfiltInto, sosfiltZeroPhase } from './sosfilt';
+import { peakOf, snrAroundTrigger } from './sta-lta';
+import { triggerChain } from './trigger';
+import { bandEnergy, sosfiltInto, sosfiltZeroPhase } from './sosfilt';
 
 /**
  * The analysis of one window (one station's channels for one time span): the output contract of
@@ -87,6 +87,8 @@ export interface ChannelResult {
     main: number | null;
   };
   snr: number | null;
+  /** High-band RMS over the first staLta.onsetWindowS after the main onset ÷ the noise before it (amplitude); null without a trigger. */
+  onsetSnr: number | null;
   /**
    * Welch PSD of the pre-processed trace. `values` is null only where a poles-and-zeros response is 0
    * (e.g. the 0 Hz bin of a velocity sensor), so the PSD cannot be corrected there.
@@ -204,8 +206,10 @@ function analyzeChannel(
   taperInPlace(pre, profile.preprocess.taperAlpha);
   if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
 
+  const fitted = highBandForRate(profile.bands.high, fs);
   const low = validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
-  const high = validateBand('high', profile.bands.high, fs, profile.bands.nyquistPolicy);
+  if (fitted.warning) warnings.push(fitted.warning);
+  const high = validateBand('high', fitted.band, fs, profile.bands.nyquistPolicy);
   if (low.warning) warnings.push(low.warning);
   if (high.warning) warnings.push(high.warning);
 
@@ -232,38 +236,23 @@ function analyzeChannel(
   const ratio = eLow > 0 ? eHigh / eLow : null;
   const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
 
-  // The trigger reads its own copy of the high band: the demeaned, detrended trace WITHOUT the
-  // window taper (which would hide a P in the first 5 % of the window) but with a short cosine ramp
-  // over the first `startS` seconds (so the causal filter starts without a step), band-rejected like
-  // the rest. The characteristic function starts after the ramp (see `delayedStaLta`).
+  // The trigger reads its own chain (untapered, ramped, band-rejected high band; see triggerChain).
   const sl = profile.staLta;
-  const startIndex = Math.min(n, Math.round(sl.startS * fs));
-  const trigBase = detrended;
-  for (let i = 0; i < startIndex; i++) trigBase[i] = (trigBase[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / startIndex));
-  if (flatSensitivity !== 1) for (let i = 0; i < n; i++) trigBase[i] = (trigBase[i] as number) / flatSensitivity;
-  for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), trigBase);
-  const trigY = sosfiltInto(highSos, trigBase, new Float64Array(n));
-  const cf = delayedStaLta(trigY, fs, sl.staS, sl.ltaS, sl.method, { startIndex, minLtaSamples: Math.max(1, Math.round(sl.minLtaS * fs)) });
-  const trig = detectTriggers(cf, fs, sl.on, sl.off);
+  const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity, detrended);
+  const { startIndex, cf, highY: trigY, base: trigBase } = chain;
+  const trig = chain.triggers;
   const pk = peakOf(cf, fs);
-  // Onset of each trigger by AIC on the trigger's band (Maeda 1985): from up to `onsetSearchS` before
-  // the trigger to `onsetAfterS` after it, never before the ramp's end nor after the trigger itself.
-  const onsets = trig.map((t) => {
-    const from = Math.max(startIndex, t.onIndex - Math.round(sl.onsetSearchS * fs));
-    const to = Math.min(n, t.onIndex + Math.round(sl.onsetAfterS * fs));
-    const k = aicOnsetIndex(trigY, from, to);
-    return k === null ? t.onIndex : Math.min(k, t.onIndex);
-  });
-  // Each trigger's own peak; the channel's main trigger is its strongest (the one its features describe).
-  const trigPeaks = trig.map((t) => {
-    let m = 0;
-    for (let i = t.onIndex; i < (t.offIndex ?? n); i++) if ((cf[i] as number) > m) m = cf[i] as number;
-    return m;
-  });
+  const onsets = trig.map((t) => t.onsetIndex);
+  const trigPeaks = trig.map((t) => t.peak);
+  // The channel's main trigger is its strongest (the one its features describe).
   let mainIdx = -1;
   for (let i = 0; i < trig.length; i++) if (mainIdx < 0 || (trigPeaks[i] as number) > (trigPeaks[mainIdx] as number)) mainIdx = i;
   const first = mainIdx >= 0 ? trig[mainIdx] : undefined;
   const firstOnset = mainIdx >= 0 ? (onsets[mainIdx] as number) : null;
+  // How sudden the onset is: the high band's RMS over the first `onsetWindowS` after the onset
+  // against the noise before it (an amplitude ratio). Impulsive arrivals jump at once; traffic,
+  // wind and other emergent noise climb over seconds.
+  const onsetSnr = snrAroundTrigger(trigY, fs, firstOnset, sl.onsetWindowS, Math.min(profile.snr.noiseS, firstOnset === null ? 0 : (firstOnset - startIndex) / fs));
   const snr = snrAroundTrigger(trigY, fs, firstOnset, profile.snr.signalS, Math.min(profile.snr.noiseS, firstOnset === null ? 0 : (firstOnset - startIndex) / fs));
 
   // PSD: with a full response, compute in counts and correct per frequency; otherwise on the scaled trace.
@@ -357,6 +346,7 @@ function analyzeChannel(
       main: mainIdx >= 0 ? mainIdx : null,
     },
     snr,
+    onsetSnr,
     psd: {
       freqs: toNumbers(psd.freqs),
       values: finiteOrNull(psdValues),

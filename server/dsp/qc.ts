@@ -33,7 +33,9 @@ export type QcCode =
   | 'spikes'
   | 'dc-offset'
   | 'sample-rate'
-  | 'short-window';
+  | 'short-window'
+  | 'flat-segment'
+  | 'dc-step';
 
 /** Parameters of the checks (the profile's `qc` part, plus the LTA length for the short-window check). */
 export interface QcOptions {
@@ -45,8 +47,10 @@ export interface QcOptions {
   spikeK: number;
   /** Expected sample rate from the registry, Hz. */
   expectedSampleRateHz?: number | undefined;
-  /** Samples needed for a full STA/LTA (the LTA window). */
+  /** Samples needed before the trigger can give a ratio. */
   minSamples?: number;
+  /** A run of identical samples at least this long is a flat segment (dropout, padding), s; default 0.5. */
+  flatSegmentS?: number;
 }
 
 const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toString();
@@ -66,7 +70,12 @@ const fmt = (v: number, digits = 3): string => Number(v.toPrecision(digits)).toS
  *   stand alone (4× the residuals 2–10 samples away), so a strong high-frequency signal is not a spike;
  * - dc-offset: |mean| > 5 × the standard deviation (info), or > 10 % of full scale when given (warning);
  * - sample-rate: differs from the registry's by more than 0.1 % (error);
- * - short-window: fewer samples than the LTA window (warning: no STA/LTA ratio).
+ * - short-window: fewer samples than the trigger needs (warning: no STA/LTA ratio);
+ * - flat-segment: a run of identical samples of at least `flatSegmentS` (0.5 s) — a digitiser
+ *   dropout, a run of zeros, padding (error: the samples there are not ground motion);
+ * - dc-step: the level jumps and stays (1 s block medians: a change of more than 10 robust σ of the
+ *   block-to-block changes between two 3 s stretches that are each steady within a third of the
+ *   step; warning) — a mass re-centring, a calibration pulse, a digitiser fault, not an arrival.
  */
 export function qualityChecks(
   samples: Float64Array,
@@ -157,7 +166,30 @@ export function qualityChecks(
       });
     }
   }
-  const sp = spikes(samples, opts.spikeK);
+  const flatLen = Math.max(2, Math.round((opts.flatSegmentS ?? 0.5) * sampleRateHz));
+  const flats = runsOfEqual(samples, flatLen);
+  if (flats.count > 0) {
+    const zero = samples[flats.first] === 0;
+    out.push({
+      code: 'flat-segment',
+      severity: 'error',
+      message: `${flats.count} stretch(es) of identical samples (the longest ${fmt(t(flats.longest))} s${zero ? ', reading 0' : ''}, first at ${fmt(t(flats.first), 6)} s): a dropout or padding, not ground motion`,
+      sampleIndex: flats.first,
+      time: t(flats.first),
+      count: flats.samples,
+    });
+  }
+  const step = dcStep(samples, Math.max(1, Math.round(sampleRateHz)));
+  if (step !== null) {
+    out.push({
+      code: 'dc-step',
+      severity: 'warning',
+      message: `the level steps by ${fmt(step.size, 4)} and stays there at ${fmt(t(step.index), 4)} s: an instrument step (re-centring, calibration, digitiser fault), not an arrival`,
+      sampleIndex: step.index,
+      time: t(step.index),
+    });
+  }
+  const sp = spikes(samples, opts.spikeK, Math.max(10, Math.round(0.25 * sampleRateHz)));
   if (sp.count > 0) {
     out.push({
       code: 'spikes',
@@ -182,6 +214,57 @@ export function qualityChecks(
     });
   }
   return out;
+}
+
+/** Runs of ≥ minLen identical consecutive samples: how many, their total and longest length, the first's start. */
+function runsOfEqual(x: Float64Array, minLen: number): { count: number; samples: number; longest: number; first: number } {
+  let count = 0;
+  let total = 0;
+  let longest = 0;
+  let first = -1;
+  let i = 0;
+  while (i < x.length) {
+    let j = i + 1;
+    while (j < x.length && x[j] === x[i]) j++;
+    if (j - i >= minLen) {
+      count++;
+      total += j - i;
+      longest = Math.max(longest, j - i);
+      if (first < 0) first = i;
+    }
+    i = j;
+  }
+  return { count, samples: total, longest, first };
+}
+
+/**
+ * A DC step: medians of consecutive blocks of `block` samples; σ = 1.4826·MAD of the block-to-block
+ * differences (robust, common practice). At each block boundary, the levels of the 3 blocks before
+ * and the 3 after (medians of the block medians) must differ by more than 10σ, with every block of
+ * each side within a third of that difference of its side's level (both sides steady: an oscillating
+ * arrival is not). Returns the first such step (sample index of the boundary, size in sample units) or null.
+ */
+function dcStep(x: Float64Array, block: number): { index: number; size: number } | null {
+  const nb = Math.floor(x.length / block);
+  if (nb < 6) return null;
+  const med = new Float64Array(nb);
+  for (let b = 0; b < nb; b++) med[b] = medianInPlace(x.slice(b * block, (b + 1) * block));
+  const diffs = new Float64Array(nb - 1);
+  for (let b = 1; b < nb; b++) diffs[b - 1] = (med[b] as number) - (med[b - 1] as number);
+  const sigma = 1.4826 * medianAbsoluteDeviation(diffs);
+  if (!(sigma > 0)) return null;
+  for (let b = 3; b <= nb - 3; b++) {
+    const left = median3(med[b - 3] as number, med[b - 2] as number, med[b - 1] as number);
+    const right = median3(med[b] as number, med[b + 1] as number, med[b + 2] as number);
+    const size = right - left;
+    if (!(Math.abs(size) > 10 * sigma)) continue;
+    const tol = Math.abs(size) / 3;
+    let steady = true;
+    for (let k = b - 3; k < b; k++) if (Math.abs((med[k] as number) - left) > tol) steady = false;
+    for (let k = b; k < b + 3; k++) if (Math.abs((med[k] as number) - right) > tol) steady = false;
+    if (steady) return { index: b * block, size };
+  }
+  return null;
 }
 
 /** Runs of ≥ minLen consecutive samples satisfying `pred` (and equal to each other when `equal`). */
@@ -233,9 +316,10 @@ function median5(a: number, b: number, c: number, d: number, e: number): number 
  * Spike count by the robust MAD rule on the residual r from a 5-sample running median: a sample is a
  * spike when |r_i| > k·1.4826·MAD(r) AND |r_i| > 4·max|r_j| over 2 ≤ |j − i| ≤ 10 (it stands alone:
  * a high-frequency signal, e.g. a tone near fs/4, also has large residuals, but its neighbours have
- * them too). Up to two adjacent outliers count as spikes.
+ * them too) and over up to `reach` samples (a quarter second: the sharp onset of a real S wave is
+ * followed by oscillations of its own size, a glitch is not). Up to two adjacent outliers count as spikes.
  */
-function spikes(x: Float64Array, k: number): { count: number; first: number } {
+function spikes(x: Float64Array, k: number, reach = 10): { count: number; first: number } {
   const n = x.length;
   if (n < 5) return { count: 0, first: -1 };
   const r = new Float64Array(n);
@@ -267,7 +351,7 @@ function spikes(x: Float64Array, k: number): { count: number; first: number } {
     const a = Math.abs(r[i] as number);
     if (a <= lim) continue;
     let around = 0;
-    for (let j = Math.max(2, i - 10); j <= Math.min(n - 3, i + 10); j++) {
+    for (let j = Math.max(2, i - reach); j <= Math.min(n - 3, i + reach); j++) {
       if (Math.abs(j - i) >= 2) around = Math.max(around, Math.abs(r[j] as number));
     }
     if (a > 4 * around) {

@@ -52,8 +52,8 @@ export interface StationBaseline {
  * has enough noise windows.
  */
 export const NETWORK_DEFAULT_BASELINE: StationBaseline = {
-  log10Ratio: { median: 0, mad: 0.3 },
-  staLtaPeak: { median: 3, mad: 0.7 },
+  log10Ratio: { median: 0.65, mad: 0.43 },
+  staLtaPeak: { median: 2.9, mad: 0.7 },
   count: 0,
 };
 
@@ -105,7 +105,7 @@ export interface ChannelFeatures {
   /** Why there is no signal spectrum although there is a trigger. */
   signalSpectrumNote?: string | null;
   bands: { high: { fmin: number; fmax: number } };
-  qc: ReadonlyArray<{ severity: 'info' | 'warning' | 'error'; message: string; code: string }>;
+  qc: ReadonlyArray<{ severity: 'info' | 'warning' | 'error'; message: string; code: string; time?: number | undefined }>;
 }
 
 /** The window's detection: the arrival the flag and the event groups read. */
@@ -137,6 +137,9 @@ export interface WindowScore {
 }
 
 const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
+/** QC codes that can set off a trigger by themselves, and how near the onset they count, s. */
+const DATA_PROBLEMS = new Set(['gap', 'overlap', 'flat-segment', 'dc-step', 'spikes']);
+const DATA_PROBLEM_S = 3;
 const ROBUST_SIGMA = 1.4826;
 
 /** Robust z = (x − median)/(1.4826·max(MAD, floor)). */
@@ -210,11 +213,14 @@ export function scoreWindow(
 
   // 1. The deciding channel: the strongest main trigger; the vertical on a tie or when none triggered.
   const vi = leadChannelIndex(channels.map((c) => c.id));
-  let di = vi;
+  let di = -1;
   for (let i = 0; i < channels.length; i++) {
-    const p = (channels[i] as ChannelFeatures).staLta.peak;
-    if (p > (channels[di] as ChannelFeatures).staLta.peak) di = i;
+    const c = channels[i] as ChannelFeatures;
+    if (c.staLta.triggers.length === 0) continue;
+    if (di < 0 || c.staLta.peak > (channels[di] as ChannelFeatures).staLta.peak || (c.staLta.peak === (channels[di] as ChannelFeatures).staLta.peak && i === vi)) di = i;
   }
+  if (di < 0) di = vi;
+  const anyTrigger = channels.some((c) => c.staLta.triggers.length > 0);
   const lead = channels[di] as ChannelFeatures;
   const main = mainTrigger(lead);
   const reasons: string[] = [];
@@ -258,23 +264,31 @@ export function scoreWindow(
   const nothingStandsOut = sig !== null && inBandSnr !== null && inBandSnr < sig.minSnr && (sig.peakFrequency === null);
   const qcErrors = lead.qc.filter((q) => q.severity === 'error');
   const strong = main !== null && zp >= th.eventZ;
+  // A trigger at a data problem (a gap or overlap where records were joined, a dropout, a DC step, a
+  // spike) on any channel, within DATA_PROBLEM_S of the onset, is not evidence of ground motion.
+  const atProblem = main === null
+    ? []
+    : channels.flatMap((c) => c.qc.filter((q) => DATA_PROBLEMS.has(q.code) && q.time !== undefined && Math.abs(q.time - main.onset) <= DATA_PROBLEM_S).map((q) => `${c.id}: ${q.message}`));
 
   let flag: WindowScore['flag'];
-  if (qcErrors.length > 0) {
+  if (qcErrors.length > 0 || atProblem.length > 0) {
     flag = 'needs eyes';
     for (const q of qcErrors) reasons.push(`quality problem on ${lead.id}: ${q.message}`);
+    for (const m of atProblem) reasons.push(`the trigger sits at a data problem, not necessarily ground motion — ${m}`);
   } else if (strong && inBand) {
     flag = 'likely event';
-  } else if (zp < th.noiseZ || (!strong && nothingStandsOut)) {
+  } else if (!anyTrigger || zp < th.noiseZ || (!strong && nothingStandsOut)) {
     flag = 'likely noise';
     if (main) reasons.push(zp < th.noiseZ ? 'the trigger is no stronger than this station\'s ordinary noise' : 'the triggered part stands out from the noise before it in no frequency bin');
   } else {
     flag = 'needs eyes';
     if (strong && !inBand) {
       reasons.push(
-        inBandKnown
-          ? `the trigger is strong but the high band ${hb.fmin}–${hb.fmax} Hz hardly rose (${fmtDb(inBandSnr ?? (lead.snr ?? 0) ** 2)}, ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins): energy may be leaking in from outside the band`
-          : 'the trigger is strong but there is too little data around it to check the band: look at this window and the next',
+        !inBandKnown
+          ? 'the trigger is strong but there is too little data around it to check the band: look at this window and the next'
+          : inBandSnr !== null && inBandSnr >= th.minInBandSnr
+            ? `the high band rose by ${fmtDb(inBandSnr)} but only in ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins: a narrow-band signal (machinery, a resonance) rather than an earthquake's broad spectrum`
+            : `the trigger is strong but the high band ${hb.fmin}–${hb.fmax} Hz hardly rose (${fmtDb(inBandSnr ?? (lead.snr ?? 0) ** 2)}, ${inBandShare === null ? 'n/a' : `${Math.round(inBandShare * 100)} %`} of its bins): energy may be leaking in from outside the band`
       );
     } else reasons.push('evidence between ordinary noise and an event');
   }

@@ -186,6 +186,7 @@ export function maxAllowedLagS(stations: ReadonlyArray<{ latitude: number; longi
 
 const storedAnalysisSchema = z.object({
   leadChannel: z.string().optional(),
+  detection: z.object({ channel: z.string(), onset: z.number() }).nullable().optional(),
   channels: z
     .array(
       z.object({
@@ -206,7 +207,13 @@ const storedAnalysisSchema = z.object({
 export function firstTriggerMs(analysis: unknown): number | null {
   const parsed = storedAnalysisSchema.safeParse(analysis);
   if (!parsed.success) return null;
-  const { channels, leadChannel } = parsed.data;
+  const { channels, leadChannel, detection } = parsed.data;
+  if (detection) {
+    // The engine's detection: the onset (AIC) of the earliest strong main trigger over all channels.
+    const ch = channels.find((c) => c.id === detection.channel);
+    const start = ch ? Date.parse(ch.startTime) : NaN;
+    return Number.isNaN(start) ? null : start + detection.onset * 1000;
+  }
   const lead = channels.find((c) => c.id === leadChannel) ?? channels[0];
   const first = lead?.staLta.triggers[0];
   if (!lead || !first) return null;
@@ -245,6 +252,7 @@ export async function recordArrivals(db: Database, itemIds: readonly number[]): 
       ids: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].id')`,
       starts: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].startTime')`,
       staLta: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.channels[*].staLta')`,
+      detection: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.detection')`,
     })
     .from(queueItems)
     .innerJoin(windows, eq(windows.id, queueItems.windowId))
@@ -272,7 +280,7 @@ function extracted(v: unknown): unknown {
 }
 
 /** Rebuilds the part of the analysis `firstTriggerMs` reads from its extracted fields. */
-function analysisFromExtract(r: { leadChannel: unknown; ids: unknown; starts: unknown; staLta: unknown }): unknown {
+function analysisFromExtract(r: { leadChannel: unknown; ids: unknown; starts: unknown; staLta: unknown; detection?: unknown }): unknown {
   const ids = extracted(r.ids);
   const single = !Array.isArray(ids);
   const col = (v: unknown): unknown[] => {
@@ -282,7 +290,8 @@ function analysisFromExtract(r: { leadChannel: unknown; ids: unknown; starts: un
   const starts = col(r.starts);
   const staLta = col(r.staLta);
   const list = single ? [ids] : ids;
-  return { leadChannel: extracted(r.leadChannel), channels: list.map((id, i) => ({ id, startTime: starts[i], staLta: staLta[i] })) };
+  const detection = r.detection === undefined ? undefined : extracted(r.detection);
+  return { leadChannel: extracted(r.leadChannel), detection, channels: list.map((id, i) => ({ id, startTime: starts[i], staLta: staLta[i] })) };
 }
 
 async function loadArrivals(db: DbOrTx, fromMs: number, toMs: number): Promise<Array<Arrival & { candidateEventId: number | null }>> {

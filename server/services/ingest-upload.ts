@@ -39,7 +39,7 @@ import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStat
  */
 
 /** The engine version stored with every window. */
-export const ENGINE_VERSION = '1';
+export const ENGINE_VERSION = '2';
 
 /** One uploaded file. */
 export interface IngestFile {

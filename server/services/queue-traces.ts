@@ -6,12 +6,12 @@ import { queueItems } from '../db/schema/queue-items';
 import { channels, stations } from '../db/schema/stations';
 import { windowChannels } from '../db/schema/uploads';
 import { decodeStoredSamples } from './samples-codec';
-import { validateBand } from '../dsp/bands';
+import { highBandForRate, validateBand } from '../dsp/bands';
 import { butterworthSos } from '../dsp/butterworth';
 import { preprocessTrace } from '../dsp/preprocess';
 import { sosfiltInPlace } from '../dsp/sosfilt';
 import { spectrogram } from '../dsp/spectrum';
-import { classicStaLta, detectTriggers, recursiveStaLta } from '../dsp/sta-lta';
+import { triggerChain } from '../dsp/trigger';
 import { badRequest, notFound } from '../errors';
 
 /**
@@ -124,16 +124,18 @@ export async function itemTraces(db: Database, itemId: number, q: TracesQuery, s
     const pre = preprocessTrace(x, profile.preprocess.taperAlpha);
     if (s !== null && s > 0) for (let i = 0; i < pre.length; i++) pre[i] = (pre[i] as number) / s;
     const low = validateBand('low', profile.bands.low, fs, 'cap');
-    const high = validateBand('high', profile.bands.high, fs, 'cap');
+    const high = validateBand('high', highBandForRate(profile.bands.high, fs).band, fs, 'cap');
     const rejected = Float64Array.from(pre);
     for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(butterworthSos(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
     const lowY = Float64Array.from(rejected);
     sosfiltInPlace(butterworthSos(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs), lowY);
     const highY = rejected;
-    sosfiltInPlace(butterworthSos(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs), highY);
-    const ltaN = Math.round(sl.ltaS * fs);
-    const cf = pre.length >= ltaN ? (sl.method === 'classic' ? classicStaLta(highY, fs, sl.staS, sl.ltaS) : recursiveStaLta(highY, fs, sl.staS, sl.ltaS)) : new Float64Array(pre.length);
-    const triggers = detectTriggers(cf, fs, sl.on, sl.off).map((t) => ({ on: t.on, off: t.off }));
+    const highSos = butterworthSos(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
+    sosfiltInPlace(highSos, highY);
+    // The STA/LTA curve and triggers come from the engine's own trigger chain (the flag's numbers).
+    const chain = triggerChain(x, fs, profile, highSos, (o, e, t, f) => butterworthSos(o, e, t, f), s !== null && s > 0 ? s : 1);
+    const cf = chain.cf;
+    const triggers = chain.triggers.map((t) => ({ on: t.on, off: t.off }));
     const offsetS = (r.startTimeUs - t0Us) / 1e6;
     const i0 = Math.max(0, Math.floor((from - offsetS) * fs));
     const i1 = Math.min(pre.length, Math.ceil((to - offsetS) * fs));

@@ -46,7 +46,15 @@ export function noiseSelect(db: DbOrTx, stationId: number, mode: 'dismissed' | '
   // (migration 0009). Both tables carry the same window start.
   const [where, newest] =
     mode === 'dismissed'
-      ? [and(eq(queueItems.stationId, stationId), eq(queueItems.state, 'dismissed')), desc(queueItems.windowStart)]
+      ? [
+          and(
+            eq(queueItems.stationId, stationId),
+            eq(queueItems.state, 'dismissed'),
+            // A window dismissed as an instrument glitch is not the station's ground noise: left out.
+            sql`COALESCE(JSON_UNQUOTE(JSON_EXTRACT(${queueItems.label}, '$.noiseReason')), '') <> 'instrument glitch'`,
+          ),
+          desc(queueItems.windowStart),
+        ]
       : [and(eq(windowFeatures.stationId, stationId), eq(windowFeatures.flag, 'likely noise')), desc(windowFeatures.windowStart)];
   return db
     .select({ set: sql<string>`${mode}`.as('noise_set'), r: windowFeatures.leadLog10Ratio, p: windowFeatures.leadStaLtaPeak, state: queueItems.state })

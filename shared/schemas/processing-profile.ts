@@ -86,11 +86,13 @@ export const processingProfileSchema = z.object({
       onsetSearchS: z.number().positive().max(10).default(2.5),
       /** … to this long after it, s. */
       onsetAfterS: z.number().min(0).max(5).default(0.5),
+      /** Window after the onset over which its suddenness (onsetSnr) is measured, s. */
+      onsetWindowS: z.number().positive().max(5).default(0.5),
     })
     .refine((s) => s.staS < s.ltaS, { message: 'the STA window must be shorter than the LTA window' })
     .refine((s) => s.off < s.on, { message: 'the trigger-off level must be below the trigger-on level' })
     .refine((s) => s.minLtaS <= s.ltaS, { message: 'minLtaS must not exceed the LTA window' })
-    .default({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5, startS: 0.75, minLtaS: 1.25, onsetSearchS: 2.5, onsetAfterS: 0.5 }),
+    .default({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5, startS: 0.75, minLtaS: 1.25, onsetSearchS: 2.5, onsetAfterS: 0.5, onsetWindowS: 0.5 }),
   snr: z
     .object({
       /** Length of the signal window after the first trigger-on, s. */

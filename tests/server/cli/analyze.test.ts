@@ -96,7 +96,7 @@ describe('npm run analyze (server/cli/analyze.ts)', () => {
     expect(bad.stderr).toMatch(/bands\.high: fmin must be lower than fmax/);
   });
 
-  it('MiniSEED with several channels of one station: all analysed, the Z channel leads', () => {
+  it('MiniSEED with several channels of one station: all analysed in file order; the strongest trigger decides and the reasons name it', () => {
     const parts = ['HHZ', 'HHN', 'HHE'].map((channel, i) =>
       encodeMiniSeed2(
         { network: 'XX', station: 'KV03', location: '00', channel, sampleRateHz: 100, startTimeUs: Date.UTC(2026, 2, 14) * 1000, samples: Int32Array.from(makeSignal({ ...spec, seed: 20 + i }), Math.round) },
@@ -111,9 +111,20 @@ describe('npm run analyze (server/cli/analyze.ts)', () => {
     }
     const file = join(dir, 'kv03.mseed');
     writeFileSync(file, bytes);
-    const r = contract.parse(JSON.parse(runAnalyzeCli([file, '--json']).stdout));
+    const raw = JSON.parse(runAnalyzeCli([file, '--json']).stdout) as { leadChannel: string };
+    const r = contract.parse(raw);
     expect(r.channels.map((c) => c.id)).toEqual(['XX.KV03.00.HHZ', 'XX.KV03.00.HHN', 'XX.KV03.00.HHE']);
-    expect(r.reasons[0]).toMatch(/high\/low ratio/);
+    // The deciding channel is the one whose STA/LTA peaks highest (server/dsp/score.ts, rule 1).
+    const strongest = r.channels.reduce((a, b) => (b.staLta.peak > a.staLta.peak ? b : a));
+    expect(raw.leadChannel).toBe(strongest.id);
+    const named = r.reasons.join(' | ');
+    expect(named).toContain(`STA/LTA peak ${(Math.round(strongest.staLta.peak * 10) / 10).toFixed(1)} on ${strongest.id}`);
+    // The same burst on all three with different noise (seeds 20–22): the north component peaks highest,
+    // so it decides over the vertical, and the first reason says so with the vertical's peak.
+    expect(strongest.id).toBe('XX.KV03.00.HHN');
+    const vPeak = (Math.round((r.channels[0]?.staLta.peak ?? NaN) * 10) / 10).toFixed(1);
+    expect(r.reasons[0]).toBe(`XX.KV03.00.HHN decides: its STA/LTA peak is the window's highest (the vertical XX.KV03.00.HHZ peaks at ${vPeak})`);
+    for (const c of r.channels.filter((c) => c.id !== strongest.id)) expect(named).toContain(`beside it, ${c.id}:`);
   });
 
   it('a file with two stations asks for --stream, which picks one station (libmseed fixture tests/fixtures/mseed/multi-stream.mseed)', () => {

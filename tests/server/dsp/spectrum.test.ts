@@ -2,7 +2,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { hannPeriodic, largestPowerOfTwoAtMost, planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd } from '../../../server/dsp/spectrum';
-import { preprocessTrace } from '../../../server/dsp/preprocess';
+import { detrendLinear } from '../../../server/dsp/preprocess';
 import { lcgUniform, makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 const fixture = readFixture(
@@ -133,44 +133,76 @@ const signalFixture = readFixture(
       z.object({
         signal: signalSpecSchema,
         first: z.array(z.number()),
-        signalFrom: z.number().int(),
-        signalTo: z.number().int(),
-        noiseFrom: z.number().int(),
-        noiseTo: z.number().int(),
-        nperseg: z.number().int(),
-        freqs: z.array(z.number()),
-        signalPsd: z.array(z.number()),
-        noisePsd: z.array(z.number()),
-        peakFrequency: z.number(),
-        peakSnr: z.number(),
-        centroid: z.number(),
+        signalSpectrum: z.object({
+          signalFrom: z.number().int(),
+          signalTo: z.number().int(),
+          noiseFrom: z.number().int(),
+          noiseTo: z.number().int(),
+          nperseg: z.number().int(),
+          freqs: z.array(z.number()),
+          signalPsd: z.array(z.number()),
+          noisePsd: z.array(z.number()),
+          peakFrequency: z.number(),
+          peakSnr: z.number(),
+          centroid: z.number(),
+          inBandSnr: z.number(),
+          inBandShare: z.number(),
+        }),
       }),
     ),
   }),
 );
 
+/**
+ * The trace the signal spectrum is read from (pipeline.ts): the linearly detrended, UNtapered trace
+ * with a cosine ramp ½(1 − cos(πi/a)) over its first a = round(0.75·fs) samples (the default staLta.startS).
+ */
+function rampedTrace(x: Float64Array, fs: number): Float64Array {
+  const y = detrendLinear(x);
+  const a = Math.round(0.75 * fs);
+  for (let i = 0; i < a; i++) y[i] = (y[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / a));
+  return y;
+}
+
 describe('signal-to-noise spectrum: each part against scipy.signal.welch on the same part (fixtures/dsp/signal-spectrum.json)', () => {
   // The inputs are constructed test signals (0.2 Hz sine + white noise + a windowed burst), not
   // reference data; the check values are scipy's.
-  for (const c of signalFixture.cases) {
-    it(`${c.signal.n} samples at ${c.signal.fs} Hz, parts [${c.signalFrom}, ${c.signalTo}) and [${c.noiseFrom}, ${c.noiseTo}), nperseg ${c.nperseg}: PSDs to 1e-6 of their max, peak and centroid`, () => {
-      const x = makeSignal(c.signal);
-      expect(maxAbsDiff(x.slice(0, c.first.length), c.first)).toBeLessThan(1e-12);
-      const pre = preprocessTrace(x, 0.1);
+  for (const { signal, first, signalSpectrum: c } of signalFixture.cases) {
+    it(`${signal.n} samples at ${signal.fs} Hz, parts [${c.signalFrom}, ${c.signalTo}) and [${c.noiseFrom}, ${c.noiseTo}), nperseg ${c.nperseg}: PSDs to 1e-6 of their max, peak, centroid, in-band SNR and share`, () => {
+      const x = makeSignal(signal);
+      expect(maxAbsDiff(x.slice(0, first.length), first)).toBeLessThan(1e-12);
+      const fs = signal.fs;
       const plan = { signalFrom: c.signalFrom, signalTo: c.signalTo, noiseFrom: c.noiseFrom, noiseTo: c.noiseTo, nperseg: c.nperseg };
-      const fs = c.signal.fs;
-      const sp = snrSpectrum(pre, fs, plan, 0.1, 0.45 * fs, [], 2);
-      // Source: scipy.signal.welch(pre[a:b], fs, window='hann', nperseg=N, noverlap=N//2,
-      // detrend='constant', scaling='density') on scipy's detrend(linear)·tukey(n, 0.1), scipy 1.10.
+      const sp = snrSpectrum(rampedTrace(x, fs), fs, plan, 0.1, 0.45 * fs, [], 2, [2, 10]);
+      // Source: scipy.signal.welch(base[a:b], fs, window='hann', nperseg=N, noverlap=N//2,
+      // detrend='constant', scaling='density') on scipy's detrend(linear) with the same ramp, scipy 1.10.
       expect(maxAbsDiff(sp.freqs, c.freqs)).toBeLessThan(1e-9);
       expect(maxAbsDiff(sp.signalPsd, c.signalPsd) / Math.max(...c.signalPsd)).toBeLessThan(1e-6);
       expect(maxAbsDiff(sp.noisePsd, c.noisePsd) / Math.max(...c.noisePsd)).toBeLessThan(1e-6);
-      // Peak, ratio and centroid by the rule written in the script (numpy on scipy's PSDs).
+      // Peak, ratio, centroid and the in-band sums by the rule written in the script (numpy on scipy's PSDs).
       expect(sp.peakFrequency).toBeCloseTo(c.peakFrequency, 9);
       expect(Math.abs((sp.peakSnr as number) / c.peakSnr - 1)).toBeLessThan(1e-6);
       expect(sp.centroid as number).toBeCloseTo(c.centroid, 6);
+      expect(Math.abs((sp.inBandSnr as number) / c.inBandSnr - 1)).toBeLessThan(1e-6);
+      expect(sp.inBandShare).toBeCloseTo(c.inBandShare, 12);
     });
   }
+
+  it('in-band sums hand-worked: without an in-band range they are null; a band between bins holds none', () => {
+    // Constructed: a tone at 6.25 Hz only in the signal part (bin 16 of 256 at 100 Hz) over a weak chirp.
+    const fs = 100;
+    const x = Float64Array.from({ length: 4000 }, (_, i) => (i >= 3000 ? Math.sin((2 * Math.PI * 6.25 * i) / fs) : 0) + 1e-3 * Math.sin(i * i));
+    const plan = { signalFrom: 3000, signalTo: 4000, noiseFrom: 0, noiseTo: 2900, nperseg: 256 };
+    const none = snrSpectrum(x, fs, plan, 0.1, 45);
+    expect(none.inBandSnr).toBeNull();
+    expect(none.inBandShare).toBeNull();
+    // [6.2, 6.3] Hz holds exactly bin 16 (6.25 Hz): Σ Ps/Σ Pn there is that bin's own ratio, and its share is 1.
+    const one = snrSpectrum(x, fs, plan, 0.1, 45, [], 2, [6.2, 6.3]);
+    expect(one.inBandSnr as number).toBeCloseTo(one.snr[16] as number, 6);
+    expect(one.inBandShare).toBe(1);
+    // no bin between 6.26 and 6.6 Hz (bins are 0.390625 Hz apart)
+    expect(snrSpectrum(x, fs, plan, 0.1, 45, [], 2, [6.26, 6.6]).inBandSnr).toBeNull();
+  });
 
   it('refuses parts outside the trace or shorter than the segment, naming them', () => {
     const x = new Float64Array(1000).fill(1);
@@ -196,9 +228,12 @@ describe('planSignalSegments (the documented rule, hand-worked at 100 Hz, taper 
     expect(planSignalSegments(12000, 100, { onIndex: 6000, offIndex: null }, opts)).toEqual({ plan: { signalFrom: 6000, signalTo: 8000, noiseFrom: 2900, noiseTo: 5900, nperseg: 256 } });
     expect(planSignalSegments(12000, 100, { onIndex: 3100, offIndex: 3600 }, opts)).toEqual({ plan: { signalFrom: 3100, signalTo: 3600, noiseFrom: 600, noiseTo: 3000, nperseg: 256 } });
   });
-  it('too little signal before the end, or too little untapered noise: a sentence instead of a plan', () => {
+  it('too little signal before the end, or too little usable noise before the onset: a sentence instead of a plan', () => {
     expect(planSignalSegments(12000, 100, { onIndex: 11900, offIndex: null }, opts)).toEqual({ note: 'only 1.0 s of signal after the trigger at 119.0 s before the window ends (at least 2 s needed)' });
-    expect(planSignalSegments(12000, 100, { onIndex: 1000, offIndex: 1500 }, opts)).toEqual({ note: 'only 3.0 s of untapered noise before the trigger at 10.0 s (at least 5 s needed)' });
+    // noise [max(600, 1000 − 100 − 3000), 1000 − 100) = [600, 900): 3.0 s < 5 s
+    expect(planSignalSegments(12000, 100, { onIndex: 1000, offIndex: 1500 }, opts)).toEqual({ note: 'only 3.0 s of usable noise before the onset at 10.0 s (at least 5 s needed)' });
+    // an onset inside the start ramp: no noise at all, said as 0.0 s
+    expect(planSignalSegments(12000, 100, { onIndex: 650, offIndex: 1500 }, opts)).toEqual({ note: 'only 0.0 s of usable noise before the onset at 6.5 s (at least 5 s needed)' });
   });
   it('largest power of two at most n', () => {
     expect([1, 2, 3, 255, 256, 600].map(largestPowerOfTwoAtMost)).toEqual([1, 2, 2, 128, 256, 512]);

@@ -2,10 +2,20 @@ import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { butterworthSos } from '../../../server/dsp/butterworth';
 import { sosfilt } from '../../../server/dsp/sosfilt';
-import { classicStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from '../../../server/dsp/sta-lta';
+import { classicStaLta, delayedStaLta, detectTriggers, peakOf, recursiveStaLta, snrAroundTrigger } from '../../../server/dsp/sta-lta';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 const trig = z.array(z.tuple([z.number(), z.number().nullable()]));
+const hand = z.object({
+  y: z.array(z.number()),
+  fs: z.number(),
+  staS: z.number(),
+  ltaS: z.number(),
+  startIndex: z.number().int(),
+  minLtaSamples: z.number().int(),
+  classic: z.array(z.number()),
+  recursive: z.array(z.number()),
+});
 const fixture = readFixture(
   'sta-lta.json',
   z.object({
@@ -23,6 +33,29 @@ const fixture = readFixture(
         classicPeak: z.number(),
         classicPeakTime: z.number(),
         recursivePeak: z.number(),
+        classicTriggers: trig,
+        recursiveTriggers: trig,
+      }),
+    ),
+    delayedHand: hand,
+    delayedStep: hand,
+    delayed: z.array(
+      z.object({
+        signal: signalSpecSchema,
+        first: z.array(z.number()),
+        staS: z.number(),
+        ltaS: z.number(),
+        startIndex: z.number().int(),
+        minLtaSamples: z.number().int(),
+        on: z.number(),
+        off: z.number(),
+        stride: z.number().int(),
+        classic: z.array(z.number()),
+        recursive: z.array(z.number()),
+        classicPeak: z.number(),
+        classicPeakTime: z.number(),
+        recursivePeak: z.number(),
+        recursivePeakTime: z.number(),
         classicTriggers: trig,
         recursiveTriggers: trig,
       }),
@@ -102,4 +135,86 @@ describe('STA/LTA hand-worked cases', () => {
     expect(snrAroundTrigger(y, 1, 4, 4, 4)).toBe(3);
     expect(snrAroundTrigger(y, 1, null, 4, 4)).toBeNull();
   });
+});
+
+describe('delayedStaLta (LTA before the STA, expanding from startIndex): hand-worked and against numpy', () => {
+  const h = fixture.delayedHand;
+  const y = Float64Array.from(h.y);
+  const opts = { startIndex: h.startIndex, minLtaSamples: h.minLtaSamples };
+
+  it('classic, hand-worked (fs 1 Hz, STA 2, LTA 4, start 1, minLta 2; squares 81 | 1 1 1 1 1 9 9 1 1)', () => {
+    // i = 1…3: the LTA [1, i − 2] holds < 2 samples → 0 (and sample 0 is never read: before startIndex).
+    // i = 4: STA mean(s3, s4) = 1, LTA mean(s1, s2) = 1 (expanding) → 1;  i = 5 → 1.
+    // i = 6: STA (1 + 9)/2 = 5, LTA mean(s1…s4) = 1 → 5;  i = 7: STA 9, LTA mean(s2…s5) = 1 → 9.
+    // i = 8: STA 5, LTA (1 + 1 + 1 + 9)/4 = 3 → 5/3;  i = 9: STA 1, LTA (1 + 1 + 9 + 9)/4 = 5 → 0.2.
+    const want = [0, 0, 0, 0, 1, 1, 5, 9, 5 / 3, 0.2];
+    const r = delayedStaLta(y, h.fs, h.staS, h.ltaS, 'classic', opts);
+    expect(maxAbsDiff(r, want)).toBeLessThan(1e-12);
+    // Independent numpy computation (make-scipy-fixtures.py `delayed_sta_lta`, direct window means):
+    expect(maxAbsDiff(r, h.classic)).toBeLessThan(1e-12);
+    // 9 > nlta/nsta = 2, the ceiling of the overlapping form on the same input:
+    expect(Math.max(...classicStaLta(y, h.fs, h.staS, h.ltaS))).toBeLessThanOrEqual(h.ltaS / h.staS);
+  });
+
+  it('recursive, hand-worked (c = 1/min(k, N), the LTA fed s_{i−nsta})', () => {
+    // STA: 1, 1, 1, 1, 1, 5, 7, 4, 2.5 (i = 1…9); LTA from i = 3: 1, 1, 1, 1, 1 (k = 4 from i = 6), 3, 4.5.
+    // Ratio once the LTA holds ≥ 2 samples (i ≥ 4): 1, 1, 5, 7, 4/3, 2.5/4.5.
+    const want = [0, 0, 0, 0, 1, 1, 5, 7, 4 / 3, 2.5 / 4.5];
+    const r = delayedStaLta(y, h.fs, h.staS, h.ltaS, 'recursive', opts);
+    expect(maxAbsDiff(r, want)).toBeLessThan(1e-12);
+    expect(maxAbsDiff(r, h.recursive)).toBeLessThan(1e-12);
+  });
+
+  it('no ceiling: ±1 then ±10 from sample 30 gives 50.5 then 100 (= 10²) with STA 2 / LTA 10, far above nlta/nsta = 5', () => {
+    const c = fixture.delayedStep;
+    const x = Float64Array.from(c.y);
+    const o = { startIndex: c.startIndex, minLtaSamples: c.minLtaSamples };
+    const r = delayedStaLta(x, c.fs, c.staS, c.ltaS, 'classic', o);
+    // i = 30: STA (1 + 100)/2 = 50.5 over an LTA of 1; i = 31: STA 100 → 100.
+    expect(r[30]).toBe(50.5);
+    expect(r[31]).toBe(100);
+    expect(maxAbsDiff(r, c.classic)).toBeLessThan(1e-12);
+    expect(maxAbsDiff(delayedStaLta(x, c.fs, c.staS, c.ltaS, 'recursive', o), c.recursive)).toBeLessThan(1e-12);
+    expect(Math.max(...classicStaLta(x, c.fs, c.staS, c.ltaS))).toBeLessThanOrEqual(c.ltaS / c.staS);
+  });
+
+  it('0 before startIndex and until the LTA holds minLtaSamples; then non-zero on noise (the expanding start)', () => {
+    const noise = makeSignal({ n: 400, fs: 100, noise: 1, seed: 3 });
+    for (const method of ['classic', 'recursive'] as const) {
+      const r = delayedStaLta(noise, 100, 0.1, 1, method, { startIndex: 50, minLtaSamples: 25 });
+      // the LTA ends at i − 10 and starts at 50: it holds i − 59 samples, ≥ 25 from i = 84
+      expect(Math.max(...r.slice(0, 84)), method).toBe(0);
+      expect(r[84] as number, method).toBeGreaterThan(0);
+      expect(Math.min(...r.slice(84)), method).toBeGreaterThan(0);
+    }
+  });
+
+  it('refuses bad windows and options with a message', () => {
+    const x = new Float64Array(20).fill(1);
+    expect(() => delayedStaLta(x, 1, 4, 4, 'classic', { startIndex: 0, minLtaSamples: 1 })).toThrow(/shorter than the LTA/);
+    expect(() => delayedStaLta(x, 1, 1, 4, 'classic', { startIndex: -1, minLtaSamples: 1 })).toThrow(/startIndex -1 must be a whole number/);
+    expect(() => delayedStaLta(x, 1, 1, 4, 'recursive', { startIndex: 0, minLtaSamples: 0 })).toThrow(/minLtaSamples 0 must be a whole number/);
+  });
+
+  for (const c of fixture.delayed) {
+    const fs = c.signal.fs;
+    for (const method of ['classic', 'recursive'] as const) {
+      it(`${method} at ${fs} Hz on a filtered constructed signal (bursts at 4 s and later) against numpy: ratio to 1e-9, same peak and triggers`, () => {
+        const x = makeSignal(c.signal);
+        expect(maxAbsDiff(x.slice(0, c.first.length), c.first)).toBeLessThan(1e-12);
+        const yy = sosfilt(butterworthSos(4, [2, 10], 'bandpass', fs), x);
+        const r = delayedStaLta(yy, fs, c.staS, c.ltaS, method, { startIndex: c.startIndex, minLtaSamples: c.minLtaSamples });
+        const want = c[method];
+        expect(maxAbsDiff(want.map((_, k) => r[k * c.stride] as number), want)).toBeLessThan(1e-9);
+        const p = peakOf(r, fs);
+        expect(p.peak).toBeCloseTo(method === 'classic' ? c.classicPeak : c.recursivePeak, 9);
+        expect(p.peakTime).toBe(method === 'classic' ? c.classicPeakTime : c.recursivePeakTime);
+        const t = detectTriggers(r, fs, c.on, c.off).map((g) => [g.on, g.off]);
+        const wantT = method === 'classic' ? c.classicTriggers : c.recursiveTriggers;
+        expect(t).toEqual(wantT);
+        // the burst 4 s into the window triggers (a classic 30 s LTA is 0 until 30 s): a check that can fail
+        expect((wantT[0]?.[0] as number) < 6).toBe(true);
+      });
+    }
+  }
 });
