@@ -45,6 +45,8 @@ const scipyResultSchema = z.object({
       peak: z.number(),
       onsets: z.array(z.number()),
       main: z.number().nullable(),
+      snr: z.number().nullable(),
+      onsetSnr: z.number().nullable(),
       dominantFrequency: z.number(),
       signalSpectrum: z.object({ inBandSnr: z.number().nullable(), inBandShare: z.number().nullable() }).nullable(),
     }),
@@ -125,6 +127,8 @@ function disagreements(win: readonly DecodedStream[], ref: ScipyResult): string[
     check('main trigger', c.staLta.main, r.main, 0);
     if (c.staLta.triggers.length !== r.onsets.length) out.push(`${c.id} triggers: ours ${c.staLta.triggers.length}, scipy ${r.onsets.length}`);
     c.staLta.triggers.forEach((t, k) => check(`onset ${k}`, t.onset, r.onsets[k], 1e-9));
+    check('SNR', c.snr, r.snr, 1e-9);
+    check('onset SNR', c.onsetSnr, r.onsetSnr, 1e-9);
     check('dominant frequency', c.dominantFrequency, r.dominantFrequency, 1e-9);
     check('in-band SNR', c.signalSpectrum?.inBandSnr, r.signalSpectrum?.inBandSnr, 1e-6);
     check('in-band share', c.signalSpectrum?.inBandShare, r.signalSpectrum?.inBandShare, 1e-9);
@@ -190,7 +194,7 @@ async function main(): Promise<void> {
   for (let i = 0; i < 15; i++) analyzeWindow(win, defaultProcessingProfile);
   const ref = await startScipy(win, defaultProcessingProfile);
   const wrong = disagreements(win, await ref.result());
-  console.log(wrong.length === 0 ? 'scipy reference (server/bench/scipy-engine.py, filters designed once) agrees with the engine: band ratios, STA/LTA peaks, triggers and AIC onsets, dominant frequencies, in-band SNR, score' : `scipy reference DISAGREES with the engine:\n  ${wrong.join('\n  ')}`);
+  console.log(wrong.length === 0 ? 'scipy reference (server/bench/scipy-engine.py, filters designed once) agrees with the engine: band ratios, STA/LTA peaks, triggers and AIC onsets, SNRs, dominant frequencies, in-band SNR, score' : `scipy reference DISAGREES with the engine:\n  ${wrong.join('\n  ')}`);
   const t = await interleaved(win, ref, ROUNDS, RUNS);
   ref.close();
   const oursMed = median(t.ours);

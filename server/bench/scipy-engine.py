@@ -6,9 +6,10 @@ timed run (as anyone analysing a stream of windows would), everything per window
 or a scipy.signal / scipy.ndimage call, and the few Python loops run over triggers, not samples.
 
 Per window and channel, the same steps as analyzeWindow (server/dsp/pipeline.ts) on the same input:
-  QC: max |x|, mean, standard deviation, equal consecutive samples, flat tops at ±max|x|, spikes by
-      the 5-sample running median residual and its MAD (every stride-th of at most ~4096 residuals),
-      standing alone against the residuals 2–10 samples away;
+  QC: max |x|, mean, standard deviation, equal consecutive samples, flat tops at ±max|x|, flat
+      segments (≥ 0.5 s of identical samples), a DC step between 1 s block medians, spikes by the
+      5-sample running median residual and its MAD (every stride-th of at most ~4096 residuals),
+      standing alone against the residuals 2 … max(10, fs/4) samples away;
   linear detrend (once; both traces below start from it) × tukey(n, alpha) → the pre-processed trace;
   causal sosfilt low and high band-passes of it, band energies, their ratio;
   the trigger trace: the detrended trace with a cosine ramp over the first startS seconds (no taper),
@@ -17,7 +18,7 @@ Per window and channel, the same steps as analyzeWindow (server/dsp/pipeline.ts)
       LTA holds minLtaS) with numpy cumsum; on/off triggers with hysteresis;
   per trigger: its peak, and the AIC onset (Maeda 1985) over [on − onsetSearchS, on + onsetAfterS)
       with numpy prefix sums; the main (strongest) trigger;
-  amplitude SNR around the main onset;
+  amplitude SNR around the main onset (signalS and onsetWindowS after it);
   Welch PSD of the pre-processed trace (hann, nperseg, 50 %, constant detrend, density), dominant
       frequency and centroid above fminStats;
   with a main trigger: the signal and noise parts (same plan as planSignalSegments), Welch of each,
@@ -38,21 +39,43 @@ import numpy as np
 from scipy import ndimage, signal
 
 
-def qc(x, spike_k):
+def dc_step(x, block):
+    """1 s block medians; a boundary where the 3 blocks either side differ by > 10 robust σ of the
+    block-to-block changes, each side steady within a third of the step. First such boundary or None."""
+    nb = len(x) // block
+    if nb < 6:
+        return None
+    med = np.median(x[:nb * block].reshape(nb, block), axis=1)
+    d = np.diff(med)
+    sigma = 1.4826 * np.median(np.abs(d - np.median(d)))
+    if not sigma > 0:
+        return None
+    w = np.lib.stride_tricks.sliding_window_view(med, 3)  # w[j] = med[j:j+3]
+    left, right = np.median(w[:nb - 5], axis=1), np.median(w[3:nb - 2], axis=1)  # boundaries b = 3 … nb−3
+    size = right - left
+    tol = np.abs(size) / 3
+    steady = (np.abs(w[:nb - 5] - left[:, None]).max(axis=1) <= tol) & (np.abs(w[3:nb - 2] - right[:, None]).max(axis=1) <= tol)
+    hit = np.flatnonzero((np.abs(size) > 10 * sigma) & steady)
+    return None if hit.size == 0 else int((hit[0] + 3) * block)
+
+
+def qc(x, fs, spike_k):
     n = len(x)
     ax = np.abs(x)
     max_abs = ax.max()
     mean = x.mean()
     std = x.std()
-    zero_diffs = np.count_nonzero(np.diff(x) == 0)
-    if std == 0 or zero_diffs / (n - 1) >= 0.99:
+    same = np.diff(x) == 0
+    if std == 0 or np.count_nonzero(same) / (n - 1) >= 0.99:
         return {"flatLine": True}
-    # Flat tops: runs of equal samples at +max|x| or −max|x|.
-    tops = 0
-    for at in (x == max_abs, x == -max_abs):
-        edges = np.flatnonzero(np.diff(np.concatenate(([0], at.view(np.int8), [0]))))
-        tops += np.count_nonzero(edges[1::2] - edges[::2] >= 3)
-    # Spikes: residual from the 5-sample running median.
+    # Runs of equal samples: flat tops at ±max|x| (≥ 3) and flat segments (≥ 0.5 s).
+    edges = np.flatnonzero(np.diff(np.concatenate(([0], same.view(np.int8), [0]))))
+    starts, lengths = edges[::2], edges[1::2] - edges[::2] + 1
+    tops = np.count_nonzero((lengths >= 3) & (ax[starts] == max_abs))
+    flats = np.count_nonzero(lengths >= max(2, round(0.5 * fs)))
+    step = dc_step(x, max(1, round(fs)))
+    # Spikes: residual from the 5-sample running median, standing alone over 2 … reach samples.
+    reach = max(10, round(0.25 * fs))
     r = np.zeros(n)
     r[2:n - 2] = (x - ndimage.median_filter(x, size=5, mode="nearest"))[2:n - 2]
     inner = r[2:n - 2]
@@ -64,11 +87,11 @@ def qc(x, spike_k):
     if sigma > 0:
         ar = np.abs(r)
         for i in np.flatnonzero(ar[2:n - 2] > spike_k * sigma) + 2:
-            lo, hi = max(2, i - 10), min(n - 3, i + 10)
+            lo, hi = max(2, i - reach), min(n - 3, i + reach)
             around = np.concatenate((ar[lo:max(lo, i - 1)], ar[i + 2:hi + 1]))
             if ar[i] > 4 * (around.max() if around.size else 0.0):
                 spikes += 1
-    return {"flatTops": int(tops), "spikes": spikes, "dcOffset": bool(abs(mean) > 5 * std)}
+    return {"flatTops": int(tops), "flatSegments": int(flats), "dcStep": step, "spikes": spikes, "dcOffset": bool(abs(mean) > 5 * std)}
 
 
 def delayed_sta_lta(y, nsta, nlta, a, min_lta):
@@ -147,7 +170,7 @@ def welch(x, fs, nperseg):
 def analyse_channel(x, fs, p, sos_lo, sos_hi, tukey):
     n = len(x)
     sl = p["staLta"]
-    q = qc(x, p["qc"]["spikeK"])
+    q = qc(x, fs, p["qc"]["spikeK"])
     d = signal.detrend(x, type="linear")
     pre = d * tukey
     lo = signal.sosfilt(sos_lo, pre)
@@ -166,13 +189,14 @@ def analyse_channel(x, fs, p, sos_lo, sos_hi, tukey):
         onsets.append(on if k is None else min(k, on))
         peaks.append(float(r[on:n if off is None else off].max()))
     main = int(np.argmax(peaks)) if peaks else None
-    snr = None
+    snr = onset_snr = None
     if main is not None and onsets[main] > 0:
         o = onsets[main]
         noise = ty[max(0, o - max(1, round(min(p["snr"]["noiseS"], (o - a) / fs) * fs))):o]
-        sig = ty[o:min(n, o + max(1, round(p["snr"]["signalS"] * fs)))]
         if noise.size and np.any(noise):
-            snr = float(np.sqrt(np.mean(sig ** 2) / np.mean(noise ** 2)))
+            noise_ms = np.mean(noise ** 2)
+            snr = float(np.sqrt(np.mean(ty[o:min(n, o + max(1, round(p["snr"]["signalS"] * fs)))] ** 2) / noise_ms))
+            onset_snr = float(np.sqrt(np.mean(ty[o:min(n, o + max(1, round(sl["onsetWindowS"] * fs)))] ** 2) / noise_ms))
     f, pxx = welch(pre, fs, min(p["psd"]["nperseg"], n))
     m = f >= p["psd"]["fminStats"]
     dom = float(f[m][np.argmax(pxx[m])])
@@ -203,6 +227,7 @@ def analyse_channel(x, fs, p, sos_lo, sos_hi, tukey):
         "triggerPeaks": peaks,
         "main": main,
         "snr": snr,
+        "onsetSnr": onset_snr,
         "dominantFrequency": dom,
         "spectralCentroid": cen,
         "signalSpectrum": spec,
