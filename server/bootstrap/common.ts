@@ -54,6 +54,22 @@ export async function freePort(): Promise<number> {
 }
 
 /** Builds the client with Vite (its own binary, so it can be stopped by PID). */
+/**
+ * `tsc --noEmit` over the whole project, then `eslint .` (eslint.config.js: type-aware rules and
+ * the import boundaries). Throws BootstrapError naming the step that found errors; their messages
+ * are already on the terminal.
+ */
+export function checkTypesAndLint(): void {
+  for (const [what, bin, args] of [
+    ['type check', 'node_modules/.bin/tsc', ['--noEmit', '-p', 'tsconfig.json']],
+    ['lint', 'node_modules/.bin/eslint', ['.']],
+  ] as const) {
+    console.log(`seisift: ${what}…`);
+    const r = spawnSync(process.execPath, [bin, ...args], { stdio: 'inherit' });
+    if (r.status !== 0) throw new BootstrapError(`the ${what} found errors (see above)`);
+  }
+}
+
 export function buildClient(): void {
   const r = spawnSync(process.execPath, ['node_modules/.bin/vite', 'build', '--logLevel', 'warn'], { stdio: 'inherit' });
   if (r.status !== 0) throw new BootstrapError('the client build (vite build) failed; see the messages above');

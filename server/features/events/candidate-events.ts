@@ -289,7 +289,7 @@ function analysisFromExtract(r: { leadChannel: unknown; ids: unknown; starts: un
   };
   const starts = col(r.starts);
   const staLta = col(r.staLta);
-  const list = single ? [ids] : ids;
+  const list: readonly unknown[] = Array.isArray(ids) ? ids : [ids];
   const detection = r.detection === undefined ? undefined : extracted(r.detection);
   return { leadChannel: extracted(r.leadChannel), detection, channels: list.map((id, i) => ({ id, startTime: starts[i], staLta: staLta[i] })) };
 }

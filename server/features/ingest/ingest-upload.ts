@@ -278,8 +278,8 @@ const endUs = (s: DecodedStream) => s.startTimeUs + Math.round((s.samples.length
 function duplicateKeyError(err: unknown): boolean {
   let e: unknown = err;
   for (let depth = 0; e && depth < 4; depth++) {
-    if (typeof e === 'object' && e !== null && 'code' in e && (e as { code: unknown }).code === 'ER_DUP_ENTRY') return true;
-    e = typeof e === 'object' && e !== null && 'cause' in e ? (e as { cause: unknown }).cause : undefined;
+    if (typeof e === 'object' && e !== null && 'code' in e && e.code === 'ER_DUP_ENTRY') return true;
+    e = typeof e === 'object' && e !== null && 'cause' in e ? e.cause : undefined;
   }
   return false;
 }

@@ -293,7 +293,7 @@ export function scoreInputFromExtract(row: ScoreExtractRow): unknown {
     if (single) return [parsed];
     return Array.isArray(parsed) ? parsed : null;
   };
-  const ids = single ? [idsRaw] : idsRaw;
+  const ids: readonly unknown[] = Array.isArray(idsRaw) ? idsRaw : [idsRaw];
   const fields = { log10Ratio: col(row.log10Ratio), ratio: col(row.ratio), staLta: col(row.staLta), dominantFrequency: col(row.dominantFrequency), spectralCentroid: col(row.spectralCentroid), bands: col(row.bands), qc: col(row.qc) };
   // Older analyses have no signal spectrum at all (the path matches nothing: null); newer ones
   // have one per channel (null where there was no trigger).
