@@ -136,7 +136,8 @@ export interface WindowScore {
   detection: Detection | null;
 }
 
-const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
+/** The smallest MAD the robust z divides by (log10 ratio, STA/LTA ratio): a baseline of identical windows would otherwise divide by 0. */
+export const MAD_FLOOR = { log10Ratio: 0.05, staLtaPeak: 0.1 } as const;
 /** QC codes that can set off a trigger by themselves, and how near the onset they count, s. */
 const DATA_PROBLEMS = new Set(['gap', 'overlap', 'flat-segment', 'dc-step', 'spikes']);
 const DATA_PROBLEM_S = 3;
@@ -244,7 +245,15 @@ export function scoreWindow(
   const inBandShare = sig?.inBandShare ?? null;
   let inBand: boolean;
   let inBandKnown = true;
-  if (sig && inBandSnr !== null && inBandShare !== null) {
+  if (sig && sig.inBandSnr === undefined) {
+    // An analysis stored before the in-band figures (engine version 1), replayed by the threshold
+    // tuning: its own rule — the signal's excess peaking in the high band widened by
+    // signalPeakTolerance, with the excess centroid at most centroidMaxFactor × the band's top.
+    const lo = hb.fmin / (1 + th.signalPeakTolerance);
+    const hi = hb.fmax * (1 + th.signalPeakTolerance);
+    inBand = sig.peakFrequency !== null && sig.peakFrequency >= lo && sig.peakFrequency <= hi && sig.centroid !== null && sig.centroid <= th.centroidMaxFactor * hb.fmax;
+    reasons.push(`stored before the in-band test: the signal's excess peaks at ${fmtHz(sig.peakFrequency)} (accepted ${f1(lo)}–${f1(hi)} Hz, centroid ${fmtHz(sig.centroid)})`);
+  } else if (sig && inBandSnr !== null && inBandShare !== null) {
     inBand = inBandSnr >= th.minInBandSnr && inBandShare >= th.minInBandShare;
     reasons.push(
       `the triggered part (${f1(sig.fromS)}–${f1(sig.toS)} s) in ${hb.fmin}–${hb.fmax} Hz: ${fmtDb(inBandSnr)} over the noise before it (${f1(sig.noiseFromS)}–${f1(sig.noiseToS)} s), ${Math.round(inBandShare * 100)} % of the band's bins ${sig.minSnr} × the noise or more` +
@@ -261,7 +270,11 @@ export function scoreWindow(
     inBandKnown = main !== null;
     if (main && lead.signalSpectrumNote) reasons.push(`no signal spectrum: ${lead.signalSpectrumNote}`);
   }
-  const nothingStandsOut = sig !== null && inBandSnr !== null && inBandSnr < sig.minSnr && (sig.peakFrequency === null);
+  // The band did not rise at all (its summed PSD under minSnr × the noise before it): whatever set the
+  // trigger off came from outside the band (a loud burst leaking through the causal filter's skirt)
+  // or from nothing — not ground motion in the band.
+  const bandFlat = sig !== null && inBandSnr !== null && inBandSnr < sig.minSnr;
+  const nothingStandsOut = bandFlat && sig.peakFrequency === null;
   const qcErrors = lead.qc.filter((q) => q.severity === 'error');
   const strong = main !== null && zp >= th.eventZ;
   // A trigger at a data problem (a gap or overlap where records were joined, a dropout, a DC step, a
@@ -277,9 +290,17 @@ export function scoreWindow(
     for (const m of atProblem) reasons.push(`the trigger sits at a data problem, not necessarily ground motion — ${m}`);
   } else if (strong && inBand) {
     flag = 'likely event';
-  } else if (!anyTrigger || zp < th.noiseZ || (!strong && nothingStandsOut)) {
+  } else if (!anyTrigger || zp < th.noiseZ || bandFlat) {
     flag = 'likely noise';
-    if (main) reasons.push(zp < th.noiseZ ? 'the trigger is no stronger than this station\'s ordinary noise' : 'the triggered part stands out from the noise before it in no frequency bin');
+    if (main) {
+      reasons.push(
+        zp < th.noiseZ
+          ? 'the trigger is no stronger than this station\'s ordinary noise'
+          : nothingStandsOut
+            ? 'the triggered part stands out from the noise before it in no frequency bin'
+            : `the high band ${hb.fmin}–${hb.fmax} Hz did not rise (${fmtDb(inBandSnr)}): the energy that set the trigger off lies outside the band (its excess peaks at ${fmtHz(sig?.peakFrequency ?? null)}) and leaked through the filter — not an event in the band`,
+      );
+    }
   } else {
     flag = 'needs eyes';
     if (strong && !inBand) {

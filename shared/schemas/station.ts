@@ -232,6 +232,10 @@ export const baselineViewSchema = z.object({
   minWindows: z.number(),
   /** Whether the score currently uses this baseline (count ≥ minWindows). */
   inUse: z.boolean(),
+  /** The network default the score uses until `inUse` (server/dsp/score.ts NETWORK_DEFAULT_BASELINE). */
+  networkDefault: z.object({ log10Ratio: robustStatViewSchema, staLtaPeak: robustStatViewSchema }),
+  /** The smallest MAD the score divides by (a smaller one, e.g. 0 from a single window, is raised to it). */
+  madFloor: z.object({ log10Ratio: z.number(), staLtaPeak: z.number() }),
 });
 
 /** A station's noise baseline. */

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { flagSchema } from './flags';
 import { itemStateSchema } from './item-states';
-import { quakemlEventTypes } from './label';
+import { eventLabelSchema, quakemlEventTypes } from './label';
 
 /**
  * Wire formats of the network supervisor's side (issue 7): candidate events, thresholds, review,
@@ -148,10 +148,22 @@ export const exportQuerySchema = z
 /** A parsed export query. */
 export type ExportQuery = z.infer<typeof exportQuerySchema>;
 
-/** Body of POST /api/supervisor/candidate-events/:id/label: labels every member. */
-export const groupLabelBodySchema = z.object({
-  label: z.unknown(),
-});
+/**
+ * Body of POST /api/supervisor/candidate-events/:id/label: labels every member with `eventType`
+ * only (certainty "suspected", no picks, no note of the analyst's: the other members have not been
+ * looked at). `current`, the member the analyst is on, gets its whole label (picks, note,
+ * certainty) instead.
+ */
+export const groupLabelBodySchema = z
+  .object({
+    eventType: z.enum(quakemlEventTypes),
+    current: z.object({ itemId: z.number().int().positive(), label: eventLabelSchema }).optional(),
+  })
+  .strict()
+  .refine((b) => b.current === undefined || b.current.label.eventType === b.eventType, { message: 'the current item’s label must have the group’s event type', path: ['current', 'label', 'eventType'] });
+
+/** A parsed group-label body. */
+export type GroupLabelBody = z.infer<typeof groupLabelBodySchema>;
 
 /** Query of GET /api/supervisor/dashboard. */
 export const dashboardQuerySchema = z

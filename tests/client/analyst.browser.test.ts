@@ -126,7 +126,7 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     expect(a11y, JSON.stringify(a11y, null, 1)).toEqual([]);
     // Every trace panel has an amplitude scale: more than one tick, not just "0" (the uPlot root
     // lists its drawn y tick labels in data-y-ticks, as the canvas cannot be read).
-    const ticks = await pageA.$$eval('[data-testid="trace-panel"] .uplot', (els) => els.map((e) => e.getAttribute("data-y-ticks") ?? ""));
+    const ticks = await pageA.$$eval('[data-testid="trace-panel"] section[aria-label^="Channel"] .uplot', (els) => els.map((e) => e.getAttribute("data-y-ticks") ?? ""));
     expect(ticks.length, ticks.join(" | ")).toBeGreaterThanOrEqual(12);
     console.log(`y ticks: ${ticks.join(" | ")}`);
     for (const t of ticks) expect(t.split(' ').filter((x) => x !== '' && x !== '0').length, `ticks "${t}"`).toBeGreaterThanOrEqual(1);
@@ -256,9 +256,15 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
       }
     }
 
-    // Label the whole group from the review screen: every member is labelled by Ana.
+    // Label the whole group from the review screen: the button asks first (nothing is labelled
+    // yet), says only the type is copied, and on confirmation every member is labelled by Ana.
     const page = await openAs(ana, `/queue/items/${ids[0]}`);
     await page.getByRole('button', { name: /Label the whole group as earthquake/ }).click();
+    await page.waitForSelector('dialog[open]:has-text("Only the event type is copied")');
+    expect(await page.locator('[data-testid="group-label-plan"] li').count()).toBe(3);
+    await screenshot(page, 'analyst-review-group-confirm');
+    for (const id of ids) expect(queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body).state, `item ${id} before confirming`).toBe('new');
+    await page.getByRole('button', { name: 'Label 3 items as earthquake' }).click();
     for (const id of ids) {
       let d = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ana.cookie)).body);
       for (let i = 0; i < 50 && d.state !== 'labelled'; i++) {
@@ -267,6 +273,8 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
       }
       expect(d.state, `item ${id}`).toBe('labelled');
       expect(d.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
+      // The others get the type only, never this item's note (the form's note is empty here; the server test checks a filled one).
+      if (id !== ids[0]) expect((d.label as { note?: string }).note ?? '').toMatch(/^Type set for the whole event group/);
     }
 
     // A supervisor returns one member with a comment: the analyst sees it on the review screen and
@@ -291,15 +299,16 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await page.waitForSelector('[data-testid="trace-panel"] .u-over');
     await page.keyboard.press('c');
     await page.waitForSelector(`[data-item-id="${id}"] [data-testid="claim-holder"]:has-text("you")`);
+    // S with the mouse off the traces places nothing (no guess at the trigger) but chooses the phase a click places.
     await page.keyboard.press('s');
-    await page.locator('form[aria-label="Label this item"] li').first().waitFor();
-    const before = await page.locator('form[aria-label="Label this item"] li').first().textContent();
+    await page.waitForSelector('text=Point at a trace to place an S pick');
+    expect(await page.locator('form[aria-label="Label this item"] li').count()).toBe(0);
     const over = page.locator('section[aria-label="Channel XX.KV01.00.HHZ"] .u-over').first();
     const box = await over.boundingBox();
     if (!box) throw new Error('no plot area for the vertical channel');
-    // 70 % across the 90 s window: about 63 s. The S pick placed by the key moves there.
+    // 70 % across the 90 s window: about 63 s.
     await page.mouse.click(box.x + box.width * 0.7, box.y + box.height / 2);
-    await page.waitForFunction((was) => document.querySelector('form[aria-label="Label this item"] li')?.textContent !== was, before);
+    await page.locator('form[aria-label="Label this item"] li').first().waitFor();
     const text = await page.locator('form[aria-label="Label this item"] li').first().innerText();
     const windowStart = Date.parse(queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${id}`).set('Cookie', ben.cookie)).body).windowStart);
     const iso = /\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z/.exec(text)?.[0];

@@ -1,15 +1,16 @@
 import { and, asc, desc, eq, gt, gte, inArray, lt, lte, max, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { EventLabel } from '@shared/schemas/label';
-import { defaultGroupingSettings, type GroupingSettings } from '@shared/schemas/supervisor';
+import { defaultGroupingSettings, type GroupingSettings, type GroupLabelBody } from '@shared/schemas/supervisor';
 import type { Database } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { candidateEvents, itemArrivals } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
-import { AppError, notFound } from '@server/errors';
+import { AppError, badRequest, notFound } from '@server/errors';
 import { recordChange, type DbOrTx } from '@server/realtime/change-log';
 import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from '@server/features/queue/queue-transitions';
+import { lowerLoneTrigger, raiseByCoincidence } from './coincidence';
 
 /**
  * Candidate events: items from at least `minStations` distinct stations whose first triggers fall
@@ -328,18 +329,23 @@ export async function regroupAround(deps: CandidateDeps, itemId: number): Promis
   for (let round = 0; round < 50; round++) {
     loaded = await loadArrivals(deps.db, from, to);
     component = groupArrivals(loaded, settings, horizonMs / 1000).find((g) => g.itemIds.includes(itemId));
-    if (!component) return null;
+    if (!component) break;
     const needFrom = component.firstArrivalMs - horizonMs;
     const needTo = component.lastArrivalMs + horizonMs;
     if (needFrom >= from && needTo <= to) break;
     from = Math.min(from, needFrom);
     to = Math.max(to, needTo);
   }
-  if (!component) return null;
+  const lone = async (): Promise<null> => {
+    const [me] = await deps.db.select({ stationId: itemArrivals.stationId }).from(itemArrivals).where(eq(itemArrivals.itemId, itemId));
+    if (me && (await deps.db.transaction((tx) => lowerLoneTrigger(tx, itemId, me.stationId, own.arrivalAt, horizonMs / 1000, new Date())))) deps.notify?.();
+    return null;
+  };
+  if (!component) return lone();
   const group = component;
   const members = loaded.filter((a) => group.itemIds.includes(a.itemId));
   const oldIds = [...new Set(members.map((m) => m.candidateEventId).filter((v): v is number => v !== null))];
-  if (!isCandidateEvent(group, settings)) return null;
+  if (!isCandidateEvent(group, settings)) return lone();
   const now = new Date();
   const id = await deps.db.transaction(async (tx) => {
     const [existing] = await tx.select().from(candidateEvents).where(eq(candidateEvents.anchorItemId, group.anchorItemId)).for('update');
@@ -359,6 +365,7 @@ export async function regroupAround(deps: CandidateDeps, itemId: number): Promis
       version = 1;
     }
     await tx.update(itemArrivals).set({ candidateEventId: eventId }).where(inArray(itemArrivals.itemId, group.itemIds));
+    await raiseByCoincidence(tx, eventId, group.itemIds, group.stationIds.length, now);
     const absorbed = oldIds.filter((o) => o !== eventId);
     if (absorbed.length > 0) await tx.delete(candidateEvents).where(inArray(candidateEvents.id, absorbed));
     for (const a of absorbed) await recordChange(tx, { resource: 'candidate_event', resourceId: a, kind: 'deleted', version: 0, summary: { mergedInto: eventId } });
@@ -513,22 +520,42 @@ export interface GroupLabelOutcome {
 }
 
 /**
- * Labels every member of a candidate event through the queue's own transitions (claim, then label),
- * each member with the picks on its own station's streams. Members already settled or claimed by
- * someone else are skipped and say why; each member stays individually correctable.
+ * The label a member gets from "label the whole group": the event type only. The certainty stays at
+ * "suspected", there are no picks, and the note says where the type came from instead of copying
+ * the analyst's note: nobody has looked at this member's traces yet.
+ */
+export function groupMemberLabel(eventId: number, eventType: EventLabel['eventType'], fromItemId: number | null): EventLabel {
+  return {
+    eventType,
+    certainty: 'suspected',
+    distanceClass: null,
+    picks: [],
+    note: `Type set for the whole event group #${eventId}${fromItemId === null ? '' : ` from item ${fromItemId}`}; this item's traces not yet reviewed on their own.`,
+  };
+}
+
+/**
+ * Labels every member of a candidate event through the queue's own transitions (claim, then label).
+ * `current` (the member the analyst is on) gets its whole label; every other member gets the event
+ * type only (groupMemberLabel). Members already settled or claimed by someone else are skipped and
+ * say why; each member stays individually correctable.
+ * @throws 404 when there is no such event; 400 when `current` names an item outside it
  */
 export async function labelCandidateEvent(
   deps: QueueServiceDeps,
   actor: QueuePerson,
   eventId: number,
-  label: EventLabel,
+  body: GroupLabelBody,
 ): Promise<GroupLabelOutcome[]> {
   const ev = await getCandidateEvent(deps.db, eventId);
   if (!ev) throw notFound(`Candidate event ${eventId}`);
+  const current = body.current ?? null;
+  if (current && !ev.members.some((m) => m.itemId === current.itemId)) {
+    throw badRequest(`current.itemId: item ${current.itemId} is not a member of event group #${eventId}`, { issues: [{ path: 'current.itemId', message: 'not a member of this event group' }] });
+  }
   const out: GroupLabelOutcome[] = [];
   for (const m of ev.members) {
-    const ownPicks = label.picks.filter((p) => p.streamId.startsWith(`${m.station}.`));
-    const memberLabel: EventLabel = { ...label, picks: ownPicks };
+    const memberLabel = current && m.itemId === current.itemId ? current.label : groupMemberLabel(eventId, body.eventType, current?.itemId ?? null);
     try {
       let version = m.version;
       if (m.state === 'new' || m.state === 'returned') version = (await claimItem(deps, actor, m.itemId, version)).version;

@@ -3,7 +3,7 @@ import { unionAll } from 'drizzle-orm/mysql-core';
 import type { BaselineView } from '@shared/schemas/station';
 import { queueItems } from '@server/db/schema/queue-items';
 import { windowFeatures } from '@server/db/schema/window-features';
-import { computeBaseline, type StationBaseline } from '@server/dsp/score';
+import { computeBaseline, MAD_FLOOR, NETWORK_DEFAULT_BASELINE, type StationBaseline } from '@server/dsp/score';
 import type { DbOrTx } from '@server/realtime/change-log';
 
 /**
@@ -89,9 +89,11 @@ export async function stationBaseline(db: DbOrTx, stationId: number, minWindows:
     source = 'flagged';
   }
   const baseline = rows.length > 0 ? computeBaseline(rows) : null;
-  if (!baseline) return { baseline: null, view: { count: 0, source: 'none', log10Ratio: null, staLtaPeak: null, minWindows, inUse: false } };
+  // What the score falls back to and how it guards a zero spread, so the page can show the values in use.
+  const fixed = { networkDefault: { log10Ratio: NETWORK_DEFAULT_BASELINE.log10Ratio, staLtaPeak: NETWORK_DEFAULT_BASELINE.staLtaPeak }, madFloor: { ...MAD_FLOOR } };
+  if (!baseline) return { baseline: null, view: { count: 0, source: 'none', log10Ratio: null, staLtaPeak: null, minWindows, inUse: false, ...fixed } };
   return {
     baseline,
-    view: { count: baseline.count, source, log10Ratio: baseline.log10Ratio, staLtaPeak: baseline.staLtaPeak, minWindows, inUse: baseline.count >= minWindows },
+    view: { count: baseline.count, source, log10Ratio: baseline.log10Ratio, staLtaPeak: baseline.staLtaPeak, minWindows, inUse: baseline.count >= minWindows, ...fixed },
   };
 }

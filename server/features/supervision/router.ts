@@ -2,11 +2,11 @@ import { eq } from 'drizzle-orm';
 import { Router, type Request } from 'express';
 import { z } from 'zod';
 import { latestWindowsQuerySchema } from '@shared/schemas/data-period';
-import { eventLabelSchema } from '@shared/schemas/label';
 import {
   applyThresholdsBodySchema,
   dashboardQuerySchema,
   exportQuerySchema,
+  groupLabelBodySchema,
   inboxReturnBodySchema,
   periodSchema,
   rescoreBodySchema,
@@ -55,7 +55,8 @@ function inScope(ev: CandidateEventView, scope: 'all' | readonly number[]): Cand
  *   `POST /review/items/:id/status {version,status,comment}`; `POST /review/items/:id/return {version,comment}`
  * - `GET /items/:id/review-note` (queue.view): the supervisor's comment the analyst sees
  * - candidate events (queue.view): `GET /candidate-events?from=&to=`, `GET /candidate-events/:id`;
- *   `POST /candidate-events/:id/label {label}` (queue.label) labels every member
+ *   `POST /candidate-events/:id/label {eventType, current?}` (queue.label) labels every member with
+ *   the type only (`current`, the member the analyst is on, with its whole label)
  * - thresholds (thresholds.edit): `GET /thresholds/:stationId?eventZ=&noiseZ=&centroidMaxFactor=`;
  *   `POST /thresholds/:stationId/apply {thresholds}`; `POST /thresholds/:stationId/rescore {from,to}`
  * - `GET /dashboard?from=&to=` (dashboard.view)
@@ -140,8 +141,8 @@ export function supervisorRouter(ctx: AppContext): Router {
   });
   router.post('/candidate-events/:id/label', requirePermission('queue.label'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
-    const body = parseInput(z.object({ label: eventLabelSchema }), req.body);
-    res.json({ members: await labelCandidateEvent(deps(req), person(currentUser(req)), id, body.label) });
+    const body = parseInput(groupLabelBodySchema, req.body);
+    res.json({ members: await labelCandidateEvent(deps(req), person(currentUser(req)), id, body) });
   });
 
   // Thresholds.

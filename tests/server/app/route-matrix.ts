@@ -513,7 +513,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     path: '/api/supervisor/candidate-events/:id/label',
     allow: ['analyst', 'supervisor'],
     action: 'queue.label',
-    build: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w)}/label`, body: { label: { eventType: 'earthquake' } } }),
+    build: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w)}/label`, body: { eventType: 'earthquake' } }),
   },
   { method: 'GET', path: '/api/supervisor/latest-windows', allow: ['supervisor'], action: 'review.evaluate', build: async () => ({ path: '/api/supervisor/latest-windows' }) },
   { method: 'GET', path: '/api/supervisor/dashboard', allow: ['supervisor'], action: 'dashboard.view', build: async () => ({ path: '/api/supervisor/dashboard?from=2026-03-01T00:00:00Z&to=2026-03-15T00:00:00Z' }) },

@@ -1,6 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import type { EventLabelInput } from '@shared/schemas/label';
+import type { groupLabelBodySchema } from '@shared/schemas/supervisor';
 import { flagSchema } from '@shared/schemas/flags';
 import { itemStateSchema } from '@shared/schemas/item-states';
 import { apiRequest } from '@client/lib/api-client';
@@ -52,19 +52,22 @@ const groupLabelResultSchema = z.object({
   members: z.array(z.object({ itemId: z.number().int(), result: z.enum(['labelled', 'skipped']), reason: z.string().optional() })),
 });
 
+/** The body of a group label: the event type for every member, the whole label for the current one. */
+export type GroupLabelBodyInput = z.input<typeof groupLabelBodySchema>;
+
 /** What labelling a group did to each member. */
 export type GroupLabelResult = z.infer<typeof groupLabelResultSchema>;
 
 /**
  * Labels every member of a candidate event (POST /api/supervisor/candidate-events/:id/label,
- * policy queue.label); members already settled or claimed by someone else are skipped with a
- * reason. Every queue query is refetched afterwards (each member's row changed).
+ * policy queue.label) with the event type only, the current item with its whole label; members
+ * already settled or claimed by someone else are skipped with a reason. Every queue query is refetched afterwards (each member's row changed).
  */
 export function useLabelGroup() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: ({ eventId, label }: { eventId: number; label: EventLabelInput }) =>
-      apiRequest(groupLabelResultSchema, `/api/supervisor/candidate-events/${eventId}/label`, { method: 'POST', body: { label } }),
+    mutationFn: ({ eventId, body }: { eventId: number; body: GroupLabelBodyInput }) =>
+      apiRequest(groupLabelResultSchema, `/api/supervisor/candidate-events/${eventId}/label`, { method: 'POST', body }),
     onSettled: () => qc.invalidateQueries({ queryKey: ['queue'] }),
   });
 }

@@ -42,6 +42,7 @@ export type PlotFrameProps = {
   description: string;
   x: PlotAxis & { values: Float64Array | number[] };
   y: PlotAxis;
+  /** The line series; empty for a plot that draws its own picture in a hook (then no legend). */
   series: PlotSeries[];
   /** Plot area height in px (the legend is extra). */
   height?: number;
@@ -293,29 +294,32 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
           />
         ) : null}
       </div>
-      <ul aria-label={`${title}: series`} className="flex flex-wrap gap-x-1 gap-y-0.5 border-t border-line px-2 py-1.5">
-        {series.map((s, i) => {
-          const look = styleOf(s, i);
-          const off = hidden.has(i);
-          const v = cursorIdx !== null ? s.values[cursorIdx] : undefined;
-          return (
-            <li key={`${s.label}-${i}`}>
-              <button
-                type="button"
-                aria-pressed={!off}
-                onClick={() => toggle(i)}
-                className={cx('inline-flex h-6 items-center gap-1.5 rounded-xs px-1.5 text-sm hover:bg-raised', off ? 'text-ink-muted line-through' : 'text-ink')}
-              >
-                <LineSample color={look.color} dash={look.dash} />
-                <span>{s.label}</span>
-                <span className="min-w-[6ch] text-right font-mono text-xs text-ink-muted tabular">
-                  {v === null || v === undefined || off ? '' : `${yFormat(v)}${y.unit ? ` ${y.unit}` : ''}`}
-                </span>
-              </button>
-            </li>
-          );
-        })}
-      </ul>
+      {/* A plot that draws its own picture (a heat map) has no line series and so no legend. */}
+      {series.length === 0 ? null : (
+        <ul aria-label={`${title}: series`} className="flex flex-wrap gap-x-1 gap-y-0.5 border-t border-line px-2 py-1.5">
+          {series.map((s, i) => {
+            const look = styleOf(s, i);
+            const off = hidden.has(i);
+            const v = cursorIdx !== null ? s.values[cursorIdx] : undefined;
+            return (
+              <li key={`${s.label}-${i}`}>
+                <button
+                  type="button"
+                  aria-pressed={!off}
+                  onClick={() => toggle(i)}
+                  className={cx('inline-flex h-6 items-center gap-1.5 rounded-xs px-1.5 text-sm hover:bg-raised', off ? 'text-ink-muted line-through' : 'text-ink')}
+                >
+                  <LineSample color={look.color} dash={look.dash} />
+                  <span>{s.label}</span>
+                  <span className="min-w-[6ch] text-right font-mono text-xs text-ink-muted tabular">
+                    {v === null || v === undefined || off ? '' : `${yFormat(v)}${y.unit ? ` ${y.unit}` : ''}`}
+                  </span>
+                </button>
+              </li>
+            );
+          })}
+        </ul>
+      )}
     </figure>
   );
 }

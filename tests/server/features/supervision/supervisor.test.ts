@@ -83,7 +83,7 @@ describe('supervisor API (real MariaDB, fake SMTP, supertest)', () => {
       { method: 'get', url: '/api/supervisor/items/999999/review-note', allowed: ['analyst', 'supervisor', 'operator'] },
       { method: 'get', url: `/api/supervisor/candidate-events?${period}`, allowed: ['analyst', 'supervisor', 'operator'] },
       { method: 'get', url: '/api/supervisor/candidate-events/999999', allowed: ['analyst', 'supervisor', 'operator'] },
-      { method: 'post', url: '/api/supervisor/candidate-events/999999/label', body: { label: { eventType: 'earthquake' } }, allowed: ['analyst', 'supervisor'] },
+      { method: 'post', url: '/api/supervisor/candidate-events/999999/label', body: { eventType: 'earthquake' }, allowed: ['analyst', 'supervisor'] },
       { method: 'get', url: '/api/supervisor/thresholds/999999', allowed: ['supervisor'] },
       { method: 'post', url: '/api/supervisor/thresholds/999999/apply', body: { thresholds: { eventZ: 3, noiseZ: 2, centroidMaxFactor: 1.5 } }, allowed: ['supervisor'] },
       { method: 'post', url: '/api/supervisor/thresholds/999999/rescore', body: { from: '2026-03-14T00:00:00Z', to: '2026-03-15T00:00:00Z' }, allowed: ['supervisor'] },
@@ -355,22 +355,38 @@ describe('supervisor API (real MariaDB, fake SMTP, supertest)', () => {
       expect((arr?.arrivalAt.getTime() ?? 0) - ws.getTime()).toBeLessThan(52_000);
     });
 
-    it('labels every member through the queue, each still correctable', async () => {
+    it('labels every member through the queue with the type only; the current item gets its whole label; each still correctable', async () => {
       const ids = await setUp('2026-04-05T08:00:00.000Z');
       await onItemsCreated({ db: ctx.database.db }, ids);
       const list = await get(ana, '/api/supervisor/candidate-events?from=2026-04-05T00:00:00Z&to=2026-04-06T00:00:00Z').expect(200);
       expect(list.body.events).toHaveLength(1);
       const evId = list.body.events[0].id;
-      const res = await post(ana, `/api/supervisor/candidate-events/${evId}/label`, {
-        label: { eventType: 'earthquake', certainty: 'suspected', picks: [{ phase: 'P', time: '2026-04-05T08:00:20.000Z', streamId: 'XX.KV11.00.HHZ' }] },
-      }).expect(200);
+      const current = ids[0] as number;
+      // The analyst's whole form goes to the current item only.
+      const full = { eventType: 'earthquake', certainty: 'known', distanceClass: 'local', note: 'clear P on the vertical', picks: [{ phase: 'P', time: '2026-04-05T08:00:20.000Z', streamId: 'XX.KV11.00.HHZ' }] };
+      // Refused: a current item outside the group, a current label of another type, the old whole-label body.
+      const outside = await post(ana, `/api/supervisor/candidate-events/${evId}/label`, { eventType: 'earthquake', current: { itemId: ids[3], label: full } }).expect(400);
+      expect(outside.body.error.message).toMatch(/current\.itemId: item \d+ is not a member of event group/);
+      const mismatch = await post(ana, `/api/supervisor/candidate-events/${evId}/label`, { eventType: 'quarry blast', current: { itemId: current, label: full } }).expect(400);
+      expect(mismatch.body.error.message).toMatch(/current\.label\.eventType/);
+      await post(ana, `/api/supervisor/candidate-events/${evId}/label`, { label: full }).expect(400);
+      expect((await item(current)).state).toBe('new');
+
+      const res = await post(ana, `/api/supervisor/candidate-events/${evId}/label`, { eventType: 'earthquake', current: { itemId: current, label: full } }).expect(200);
       expect(res.body.members.map((m: { result: string }) => m.result)).toEqual(['labelled', 'labelled', 'labelled']);
-      const first = await item(ids[0] as number);
+      const first = await item(current);
       expect(first.state).toBe('labelled');
+      expect(first.label).toMatchObject({ kind: 'event', eventType: 'earthquake', certainty: 'known', distanceClass: 'local', note: 'clear P on the vertical' });
       expect((first.label as { picks: unknown[] }).picks).toHaveLength(1);
-      expect(((await item(ids[1] as number)).label as { picks: unknown[] }).picks).toHaveLength(0);
+      for (const other of [ids[1], ids[2]] as number[]) {
+        const it = await item(other);
+        expect(it.state).toBe('labelled');
+        // The type only: certainty left at "suspected", no distance, no picks, and a note saying where the type came from.
+        expect(it.label).toMatchObject({ kind: 'event', eventType: 'earthquake', certainty: 'suspected', distanceClass: null, picks: [] });
+        expect((it.label as { note: string }).note).toBe(`Type set for the whole event group #${evId} from item ${current}; this item's traces not yet reviewed on their own.`);
+      }
       // Labelling again skips members already labelled, and says so.
-      const again = await post(ana, `/api/supervisor/candidate-events/${evId}/label`, { label: { eventType: 'quarry blast' } }).expect(200);
+      const again = await post(ana, `/api/supervisor/candidate-events/${evId}/label`, { eventType: 'quarry blast' }).expect(200);
       expect(again.body.members.map((m: { reason: string }) => m.reason)).toEqual(['already labelled', 'already labelled', 'already labelled']);
     });
   });

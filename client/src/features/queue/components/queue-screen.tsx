@@ -3,6 +3,8 @@ import { getCoreRowModel, useReactTable, flexRender, createColumnHelper } from '
 import { useVirtualizer } from '@tanstack/react-virtual';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react';
 import { useNavigate } from 'react-router';
+import { can } from '@shared/auth/policies';
+import { roleSchema, type Role } from '@shared/auth/roles';
 import { flags } from '@shared/schemas/flags';
 import { itemStates, type ItemState } from '@shared/schemas/item-states';
 import { labelFilterValues, type QueueRow } from '@shared/schemas/queue';
@@ -64,6 +66,7 @@ export function QueueScreen() {
   const { filters, setFilters, setStateParam, search } = useQueueFilters();
   const list = useQueueList(filters);
   const me = useMe();
+  const mayClaim = can(me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null, 'queue.claim');
   const navigate = useNavigate();
   const toast = useToast();
   const action = useItemAction();
@@ -226,7 +229,11 @@ export function QueueScreen() {
       if (e.key === 'j' || e.key === 'ArrowDown') select(selectedIndex + 1);
       else if (e.key === 'k' || e.key === 'ArrowUp') select(selectedIndex <= 0 ? 0 : selectedIndex - 1);
       else if ((e.key === 'Enter' || e.key === 'o') && current) open(current);
-      else if (e.key === 'c' && current) claim(current);
+      else if (e.key === 'c' && current) {
+        // Only roles that work the queue claim (the policy module; the server refuses the rest too).
+        if (mayClaim) claim(current);
+        else open(current);
+      }
       else if (e.key === 'g') {
         scrollRef.current?.scrollTo({ top: 0 });
         select(0);
@@ -236,7 +243,7 @@ export function QueueScreen() {
     };
     window.addEventListener('keydown', onKey);
     return () => window.removeEventListener('keydown', onKey);
-  }, [rows, selectedIndex, select, open, claim]);
+  }, [rows, selectedIndex, select, open, claim, mayClaim]);
 
   const headerGroups = table.getHeaderGroups();
   const items = virtual.getVirtualItems();

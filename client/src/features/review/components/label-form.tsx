@@ -27,11 +27,14 @@ export type ReviewFormInput = z.input<typeof reviewFormSchema>;
 /** Form values after validation. */
 export type ReviewFormValues = z.output<typeof reviewFormSchema>;
 
+/** The form's values before anything is entered (also what "unsaved work" is measured against). */
+export const reviewFormDefaults = { eventType: 'earthquake', certainty: 'suspected', distanceClass: null, picks: [], note: '', noiseReason: 'unknown noise' } as const satisfies ReviewFormValues;
+
 /** The form's hook (react-hook-form with the shared zod schema). */
 export function useReviewForm(initial?: Partial<ReviewFormInput>): UseFormReturn<ReviewFormInput, unknown, ReviewFormValues> {
   return useForm<ReviewFormInput, unknown, ReviewFormValues>({
     resolver: zodResolver(reviewFormSchema),
-    defaultValues: { eventType: 'earthquake', certainty: 'suspected', distanceClass: null, picks: [], note: '', noiseReason: 'unknown noise', ...initial },
+    defaultValues: { ...reviewFormDefaults, picks: [], ...initial },
   });
 }
 
@@ -40,6 +43,8 @@ export type LabelFormProps = {
   form: UseFormReturn<ReviewFormInput, unknown, ReviewFormValues>;
   /** Whether the analyst holds the claim (else the form is read-only with a hint). */
   canWrite: boolean;
+  /** The viewer's role may not label at all (an operator): the hint says so instead of "claim it". */
+  viewOnly?: boolean;
   busy: boolean;
   onLabel: (v: ReviewFormValues) => void;
   onDismiss: (v: ReviewFormValues) => void;
@@ -50,7 +55,7 @@ export type LabelFormProps = {
  * number keys 1–6 outside the form pick a common type and label at once; D dismisses with the
  * noise reason chosen here. Picks are placed on the traces and edited here (onset, polarity).
  */
-export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFormProps) {
+export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onDismiss }: LabelFormProps) {
   const { register, handleSubmit, control, formState } = form;
   const picks = useFieldArray({ control, name: 'picks' });
   // Picks are placed from outside the form (keys, clicks) with setValue: read their values, not the field array's snapshots.
@@ -115,7 +120,7 @@ export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFor
           <p className="pb-1 text-sm font-medium">Picks</p>
           {picks.fields.length === 0 ? (
             <p className="text-sm text-ink-muted">
-              None. Press <Kbd>P</Kbd> or <Kbd>S</Kbd> to place one at the cursor (or at the first trigger), or click a trace.
+              None. Point at a trace and press <Kbd>P</Kbd> or <Kbd>S</Kbd> to place one there, on that channel (P alone, off the traces, goes to the first trigger), or click a trace.
             </p>
           ) : (
             <ul className="flex flex-col gap-1">
@@ -162,7 +167,11 @@ export function LabelForm({ form, canWrite, busy, onLabel, onDismiss }: LabelFor
           </Button>
         </div>
       </fieldset>
-      {!canWrite ? <p className="text-sm text-ink-muted">Claim the item (<Kbd>C</Kbd>) to label it.</p> : null}
+      {viewOnly ? (
+        <p className="text-sm text-ink-muted">Analysts and supervisors label items; your role can look at them.</p>
+      ) : !canWrite ? (
+        <p className="text-sm text-ink-muted">Claim the item (<Kbd>C</Kbd>) to label it.</p>
+      ) : null}
     </form>
   );
 }

@@ -23,10 +23,11 @@ import { isTypingTarget, KeyHelp, type KeyBinding } from '@client/components/ui/
 import { EventGroupMembers } from '@client/components/event-group-members';
 import { parseFilters } from '@client/api/queue/queue-filters';
 import { analysisViewSchema, useItem, useTraces, type AnalysisView } from '@client/features/review/api/get-item';
-import { LabelForm, useReviewForm, type ReviewFormValues } from './label-form';
+import { clearDraft, describeUnsaved, readDraft, unsavedWork, writeDraft, type DraftStorage, type ReviewDraft } from '@client/features/review/lib/review-draft';
+import { LabelForm, reviewFormDefaults, useReviewForm, type ReviewFormValues } from '@client/features/review/components/label-form';
 import { SpectrogramPanel } from './spectrogram-panel';
 import { SpectrumPanel } from './spectrum-panel';
-import { TracePanel, pickSeconds, type SignalSegments } from './trace-panel';
+import { TracePanel, pickSeconds, type SignalSegments, type TraceCursor } from './trace-panel';
 
 /** The review screen's keys. */
 export const reviewKeysHelp: readonly KeyBinding[] = [
@@ -38,10 +39,10 @@ export const reviewKeysHelp: readonly KeyBinding[] = [
   { keys: ['Enter'], does: 'Label with the form’s values (inside the form)' },
   { keys: ['D'], does: 'Dismiss as noise with the form’s noise reason, then next item' },
   { keys: ['E'], does: 'Escalate to the supervisors (asks for a reason)' },
-  { keys: ['P', 'S'], does: 'Place a P or S pick at the cursor (else at the first trigger); also sets the phase a click places' },
+  { keys: ['P', 'S'], does: 'Place a P or S pick at the mouse, on the channel under it; also sets the phase a click places. Off the traces, P goes to the vertical’s first trigger and S waits for the mouse' },
   { keys: ['+', '−'], does: 'Zoom in / out around the cursor or the middle' },
   { keys: ['0'], does: 'Show the whole window' },
-  { keys: ['Esc'], does: 'Back to the queue' },
+  { keys: ['Esc'], does: 'Back to the queue (asks first when picks or a note are not saved)' },
   { keys: ['?'], does: 'Show these keys' },
 ];
 
@@ -51,6 +52,15 @@ function isoAt(startMs: number, seconds: number): string {
   const ms = Math.floor(totalUs / 1000);
   const us = totalUs - ms * 1000;
   return `${new Date(ms).toISOString().slice(0, 23)}${String(us).padStart(3, '0')}Z`;
+}
+
+/** The tab's sessionStorage, or null where there is none (drafts are then not kept). */
+function draftStorage(): DraftStorage | null {
+  try {
+    return typeof window !== 'undefined' ? window.sessionStorage : null;
+  } catch {
+    return null;
+  }
 }
 
 const fmt = (v: number | null | undefined, digits = 2) => (v === null || v === undefined ? '—' : Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(2) : v.toFixed(digits));
@@ -76,15 +86,23 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const [escalating, setEscalating] = useState(false);
   const [reason, setReason] = useState('');
   const [spectrumChannel, setSpectrumChannel] = useState<string | null>(null);
-  const cursorS = useRef<number | null>(null);
+  const [leaving, setLeaving] = useState(false);
+  const [groupConfirm, setGroupConfirm] = useState(false);
+  const [restoredDraft, setRestoredDraft] = useState<ReviewDraft | null>(null);
+  const cursor = useRef<TraceCursor | null>(null);
   const form = useReviewForm();
   const picks = form.watch('picks') ?? [];
+  const draftsReady = useRef(false);
 
   useEffect(() => liveArrivals.seen(itemId), [itemId]);
   const group = useCandidateEvent(item.data?.candidateEvent?.id ?? null);
   const labelGroup = useLabelGroup();
   const note = useReviewNote(itemId, item.data !== undefined && (item.data.state === 'returned' || item.data.state === 'confirmed' || item.data.state === 'in review' || item.data.state === 'labelled'));
-  const mayLabelGroup = me ? can({ roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] }, 'queue.label') : false;
+  // The policy module decides which controls show (the server checks every request anyway).
+  // Operators may view their stations' items but not work them: no claim, label, dismiss or escalate.
+  const actor = me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null;
+  const mayWork = can(actor, 'queue.claim') && can(actor, 'queue.label');
+  const mayLabelGroup = can(actor, 'queue.label');
 
   const detail = item.data;
   const analysis = useMemo(() => {
@@ -94,7 +112,41 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const windowStartMs = detail ? Date.parse(detail.windowStart) : 0;
   const durationS = detail ? (Date.parse(detail.windowEnd) - windowStartMs) / 1000 : 0;
   const mine = detail?.state === 'in review' && detail.claimedBy?.id === me?.id;
-  const claimable = detail?.state === 'new' || detail?.state === 'returned';
+  const claimable = mayWork && (detail?.state === 'new' || detail?.state === 'returned');
+  const writable = mine || claimable;
+
+  // Unsaved work survives leaving the item: a draft of the form is kept in this tab and put back
+  // when the item is opened again while it can still be labelled (lib/review-draft.ts).
+  const meId = me?.id;
+  useEffect(() => {
+    const storage = draftStorage();
+    if (draftsReady.current || meId === undefined || !detail || !writable || !storage) return;
+    draftsReady.current = true;
+    const draft = readDraft(storage, meId, itemId);
+    if (!draft || form.formState.isDirty) return;
+    form.reset(draft.values, { keepDefaultValues: true });
+    setRestoredDraft(draft);
+  }, [meId, detail, writable, itemId, form]);
+  useEffect(() => {
+    const storage = draftStorage();
+    if (meId === undefined || !storage) return;
+    const sub = form.watch((values) => {
+      if (!draftsReady.current) return;
+      writeDraft(storage, meId, itemId, values, reviewFormDefaults, new Date().toISOString());
+    });
+    return () => sub.unsubscribe();
+  }, [form, meId, itemId]);
+  const dropDraft = useCallback(() => {
+    const storage = draftStorage();
+    if (storage && meId !== undefined) clearDraft(storage, meId, itemId);
+    setRestoredDraft(null);
+  }, [meId, itemId]);
+  const discardDraft = () => {
+    draftsReady.current = false;
+    form.reset(reviewFormDefaults);
+    dropDraft();
+    draftsReady.current = true;
+  };
 
   // Keep a claim alive while this screen is open (the server lets idle claims lapse).
   useEffect(() => {
@@ -151,23 +203,29 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     async (v: ReviewFormValues) => {
       const version = await ensureClaim();
       if (version === null || !detail) return;
-      await run({ action: 'label', id: detail.id, version, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } }, `labelled ${v.eventType}`, true);
+      const row = await run({ action: 'label', id: detail.id, version, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } }, `labelled ${v.eventType}`, true);
+      if (row) dropDraft();
     },
-    [ensureClaim, run, detail],
+    [ensureClaim, run, detail, dropDraft],
   );
   const dismiss = useCallback(
     async (v: ReviewFormValues) => {
       const version = await ensureClaim();
       if (version === null || !detail) return;
-      await run({ action: 'dismiss', id: detail.id, version, noiseReason: v.noiseReason, note: v.note }, `dismissed (${v.noiseReason})`, true);
+      const row = await run({ action: 'dismiss', id: detail.id, version, noiseReason: v.noiseReason, note: v.note }, `dismissed (${v.noiseReason})`, true);
+      if (row) dropDraft();
     },
-    [ensureClaim, run, detail],
+    [ensureClaim, run, detail, dropDraft],
   );
+  /** After the confirmation: every member gets the type only, this item (when it can be written) its whole form. */
   const labelWholeGroup = async (v: ReviewFormValues) => {
     const ev = group.data;
+    setGroupConfirm(false);
     if (!ev) return;
     try {
-      const res = await labelGroup.mutateAsync({ eventId: ev.id, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } });
+      const current = writable ? { itemId: itemId, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } } : undefined;
+      const res = await labelGroup.mutateAsync({ eventId: ev.id, body: { eventType: v.eventType, current } });
+      if (res.members.some((m) => m.itemId === itemId && m.result === 'labelled')) dropDraft();
       const done = res.members.filter((m) => m.result === 'labelled').length;
       const skipped = res.members.filter((m) => m.result === 'skipped');
       toast.notify({
@@ -184,6 +242,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     if (version === null || !detail) return;
     const row = await run({ action: 'escalate', id: detail.id, version, reason }, 'escalated to the supervisors', true);
     if (row) {
+      dropDraft();
       setEscalating(false);
       setReason('');
     }
@@ -200,14 +259,34 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   );
   const onPick = useCallback((streamId: string, t: number) => placePick(streamId, t, phase), [placePick, phase]);
   const onZoom = useCallback((from: number, to: number) => setView({ from, to }), []);
-  const onCursor = useCallback((t: number | null) => {
-    cursorS.current = t;
+  const onCursor = useCallback((at: TraceCursor | null) => {
+    cursor.current = at;
   }, []);
+  /** What leaving now would lose (drives the Esc warning). */
+  const unsaved = () => unsavedWork(form.getValues(), reviewFormDefaults);
+  /**
+   * P or S from the keyboard: at the mouse, on the channel under it. With the mouse off the traces,
+   * P goes to the vertical's first STA/LTA trigger (where a P onset usually is) and S is not placed:
+   * the trigger says nothing about the S arrival, so a guess there would sit on the P.
+   */
+  const keyPick = (which: 'P' | 'S') => {
+    setPhase(which);
+    const at = cursor.current;
+    if (at) return placePick(at.streamId, at.timeS, which);
+    const firstTrigger = leadTraces?.triggers[0]?.on;
+    if (which === 'P' && leadTraces && firstTrigger !== undefined) return placePick(leadTraces.streamId, firstTrigger, 'P');
+    toast.notify({
+      tone: 'warn',
+      title: `Point at a trace to place ${which === 'S' ? 'an S' : 'a P'} pick`,
+      body: which === 'S' ? 'S goes where the mouse is, on the channel under it; clicking a trace places one too.' : 'No STA/LTA trigger on the vertical to place P at.',
+      durationMs: 4000,
+    });
+  };
 
   const zoom = (factor: number) => {
     const from = view?.from ?? 0;
     const to = view?.to ?? durationS;
-    const centre = cursorS.current ?? (from + to) / 2;
+    const centre = cursor.current?.timeS ?? (from + to) / 2;
     const half = Math.min(durationS / 2, ((to - from) * factor) / 2);
     if (half * 2 >= durationS - 1e-6) return setView(null);
     const f = Math.max(0, Math.min(durationS - 2 * half, centre - half));
@@ -216,9 +295,15 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
 
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
-      if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !detail) return;
+      // Keys belong to an open dialog (Esc there closes it, it must not also leave the item).
+      if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !detail || document.querySelector('dialog[open]')) return;
       const k = e.key;
       const n = Number(k);
+      if (!mayWork && /^[crdeps1-9]$/.test(k)) {
+        toast.notify({ tone: 'info', title: 'View only', body: 'Your role can look at this item but not claim, label, dismiss or escalate it.', durationMs: 3000 });
+        e.preventDefault();
+        return;
+      }
       if (k === 'j') go(neighbour(1)?.id);
       else if (k === 'k') go(neighbour(-1)?.id);
       else if (k === 'c') {
@@ -233,15 +318,14 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         }
       } else if (k === 'd') void form.handleSubmit(dismiss)();
       else if (k === 'e') setEscalating(true);
-      else if (k === 'p' || k === 's') {
-        const which = k === 'p' ? 'P' : 'S';
-        setPhase(which);
-        const t = cursorS.current ?? leadTraces?.triggers[0]?.on ?? null;
-        if (t !== null && leadTraces) placePick(leadTraces.streamId, t, which);
-      } else if (k === '+' || k === '=') zoom(0.5);
+      else if (k === 'p' || k === 's') keyPick(k === 'p' ? 'P' : 'S');
+      else if (k === '+' || k === '=') zoom(0.5);
       else if (k === '-' || k === '_') zoom(2);
       else if (k === '0') setView(null);
-      else if (k === 'Escape') go(undefined);
+      else if (k === 'Escape') {
+        if (unsaved().any) setLeaving(true);
+        else go(undefined);
+      }
       else if (k === '?') setHelp(true);
       else return;
       e.preventDefault();
@@ -289,18 +373,26 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         </span>
       </header>
       <div className="flex flex-wrap items-center gap-2" role="toolbar" aria-label="Item actions">
-        <Button size="sm" variant={claimable ? 'primary' : 'secondary'} shortcut="C" disabled={!claimable || action.isPending} onClick={() => void run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false)}>
-          Claim
-        </Button>
-        <Button size="sm" shortcut="R" disabled={!mine || action.isPending} onClick={() => void run({ action: 'release', id: detail.id, version: detail.version }, 'released', false)}>
-          Release
-        </Button>
-        <Button size="sm" shortcut="D" disabled={(!mine && !claimable) || action.isPending} onClick={() => void form.handleSubmit(dismiss)()}>
-          Dismiss
-        </Button>
-        <Button size="sm" shortcut="E" disabled={(!mine && !claimable) || action.isPending} onClick={() => setEscalating(true)}>
-          Escalate
-        </Button>
+        {mayWork ? (
+          <>
+            <Button size="sm" variant={claimable ? 'primary' : 'secondary'} shortcut="C" disabled={!claimable || action.isPending} onClick={() => void run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false)}>
+              Claim
+            </Button>
+            <Button size="sm" shortcut="R" disabled={!mine || action.isPending} onClick={() => void run({ action: 'release', id: detail.id, version: detail.version }, 'released', false)}>
+              Release
+            </Button>
+            <Button size="sm" shortcut="D" disabled={(!mine && !claimable) || action.isPending} onClick={() => void form.handleSubmit(dismiss)()}>
+              Dismiss
+            </Button>
+            <Button size="sm" shortcut="E" disabled={(!mine && !claimable) || action.isPending} onClick={() => setEscalating(true)}>
+              Escalate
+            </Button>
+          </>
+        ) : (
+          <span className="text-sm text-ink-muted" data-testid="view-only">
+            View only: your role does not work the queue.
+          </span>
+        )}
         <span className="mx-2 h-5 border-l border-line" aria-hidden="true" />
         <Button size="sm" variant="quiet" shortcut="K" disabled={!prev} onClick={() => go(prev?.id)}>
           Previous
@@ -316,7 +408,8 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         </span>
       </div>
       <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_26rem]">
-        <main className="flex min-w-0 flex-col gap-3" aria-label="Waveforms">
+        {/* The app shell's <main> holds the whole screen: one main landmark per page. */}
+        <section className="flex min-w-0 flex-col gap-3" aria-label="Waveforms">
           {traces.data ? (
             <TracePanel
               traces={traces.data}
@@ -332,7 +425,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
                 leadTraces?.spectrogram ? (
                   <section aria-label="Spectrogram" className="rounded-sm border border-line bg-surface p-2">
                     <h2 className="pb-1 text-md font-semibold">Spectrogram · {leadTraces.streamId}</h2>
-                    <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} fromS={view?.from ?? 0} toS={view?.to ?? durationS} />
+                    <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} times={leadTraces.times} syncKey={`item-${detail.id}`} onZoom={onZoom} />
                   </section>
                 ) : null
               }
@@ -342,8 +435,19 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           ) : (
             <Loading label="Loading traces…" />
           )}
-        </main>
+        </section>
         <aside className="flex flex-col gap-3" aria-label="Assessment">
+          {restoredDraft && writable ? (
+            <section aria-label="Unsaved draft" className="flex flex-wrap items-center gap-2 rounded-sm border-[1.5px] border-warn bg-surface p-3 text-sm" data-testid="draft-restored" role="status">
+              <p className="min-w-0 flex-1">
+                <strong>Draft put back:</strong> {describeUnsaved(unsavedWork(restoredDraft.values, reviewFormDefaults))} not yet saved, kept in this tab since{' '}
+                <time className="font-mono" dateTime={restoredDraft.savedAt}>{restoredDraft.savedAt.slice(11, 19)}Z</time>.
+              </p>
+              <Button size="sm" variant="quiet" onClick={discardDraft}>
+                Discard draft
+              </Button>
+            </section>
+          ) : null}
           {note.data?.note?.returnComment && (detail.state === 'returned' || detail.state === 'in review') ? (
             <section aria-label="Returned by a supervisor" className="rounded-sm border-[1.5px] p-3" style={{ borderColor: 'var(--sf-state-returned)' }} data-testid="return-note">
               <h2 className="pb-1 text-md font-semibold">Returned to the queue</h2>
@@ -371,7 +475,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
               mayLabel={mayLabelGroup}
               eventType={form.watch('eventType')}
               busy={labelGroup.isPending}
-              onLabel={() => void form.handleSubmit(labelWholeGroup)()}
+              onLabel={() => setGroupConfirm(true)}
             />
           ) : null}
           <section className="rounded-sm border border-line bg-surface p-3">
@@ -385,7 +489,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           </section>
           <section className="rounded-sm border border-line bg-surface p-3">
             <h2 className="pb-1 text-md font-semibold">Label</h2>
-            <LabelForm form={form} canWrite={mine || claimable} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
+            <LabelForm form={form} canWrite={writable} viewOnly={me !== undefined && !mayWork} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
           </section>
           {analysis ? <Metrics analysis={analysis} /> : null}
           {specChannel ? (
@@ -406,7 +510,49 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           ) : null}
         </aside>
       </div>
+      {group.data ? (
+        <GroupLabelDialog
+          open={groupConfirm}
+          ev={group.data}
+          currentId={detail.id}
+          currentWritable={writable}
+          eventType={form.watch('eventType')}
+          busy={labelGroup.isPending}
+          onCancel={() => setGroupConfirm(false)}
+          onConfirm={() => void form.handleSubmit(labelWholeGroup)()}
+        />
+      ) : null}
       <KeyHelp open={help} onClose={() => setHelp(false)} title="Review keys" bindings={reviewKeysHelp} />
+      <Dialog
+        open={leaving}
+        onClose={() => setLeaving(false)}
+        title={`Leave item ${detail.id} without saving?`}
+        description={`${describeUnsaved(unsaved())} on this item ${unsaved().picks + (unsaved().note ? 1 : 0) > 1 ? 'are' : 'is'} not saved. A draft stays in this tab and comes back when you open the item again.`}
+        actions={
+          <>
+            <Button onClick={() => setLeaving(false)}>Stay</Button>
+            <Button
+              variant="danger"
+              onClick={() => {
+                discardDraft();
+                setLeaving(false);
+                go(undefined);
+              }}
+            >
+              Discard and leave
+            </Button>
+            <Button
+              variant="primary"
+              onClick={() => {
+                setLeaving(false);
+                go(undefined);
+              }}
+            >
+              Leave, keep draft
+            </Button>
+          </>
+        }
+      />
       <Dialog
         open={escalating}
         onClose={() => setEscalating(false)}
@@ -564,7 +710,7 @@ type GroupPanelProps = {
 /**
  * The candidate event this item belongs to (issue 7): every member with station, first trigger,
  * flag and state, each a link to its own review; "Label the whole group" for those the policy
- * lets label (queue.label), with the form's values.
+ * lets label (queue.label), which asks first (GroupLabelDialog).
  */
 function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, search, mayLabel, eventType, busy, onLabel }: GroupPanelProps) {
   return (
@@ -585,9 +731,64 @@ function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, sear
           <Button size="sm" disabled={busy} onClick={onLabel}>
             Label the whole group as {eventType}
           </Button>
-          <span className="text-xs text-ink-muted">Uses the form’s type, certainty and note; members settled or held by others are skipped.</span>
+          <span className="text-xs text-ink-muted">Asks first. The others get the type only; this item gets your whole form.</span>
         </div>
       ) : null}
     </section>
+  );
+}
+
+/** Props of <GroupLabelDialog>. */
+type GroupLabelDialogProps = {
+  open: boolean;
+  ev: CandidateEvent;
+  currentId: number;
+  /** Whether this item can take the form's label (waiting, or claimed by the viewer). */
+  currentWritable: boolean;
+  eventType: string;
+  busy: boolean;
+  onCancel: () => void;
+  onConfirm: () => void;
+};
+
+/**
+ * The confirmation before labelling a whole event group: which members get the type, which are
+ * already settled (skipped), and that only the type is copied — certainty "suspected", no picks,
+ * no note — since nobody has looked at the other members' traces; this item gets the whole form.
+ */
+function GroupLabelDialog({ open, ev, currentId, currentWritable, eventType, busy, onCancel, onConfirm }: GroupLabelDialogProps) {
+  const waiting = ev.members.filter((m) => m.state === 'new' || m.state === 'returned' || m.state === 'in review');
+  const settled = ev.members.filter((m) => !waiting.includes(m));
+  const others = waiting.filter((m) => m.itemId !== currentId);
+  return (
+    <Dialog
+      open={open}
+      onClose={onCancel}
+      title={`Label event group #${ev.id} as ${eventType}?`}
+      description="Only the event type is copied to the other members: they keep certainty “suspected”, get no picks and no note of yours."
+      actions={
+        <>
+          <Button onClick={onCancel}>Cancel</Button>
+          <Button variant="primary" disabled={busy || waiting.length === 0} onClick={onConfirm}>
+            Label {waiting.length} {waiting.length === 1 ? 'item' : 'items'} as {eventType}
+          </Button>
+        </>
+      }
+    >
+      <ul className="flex flex-col gap-1 text-sm" data-testid="group-label-plan">
+        {waiting.map((m) => (
+          <li key={m.itemId}>
+            <span className="font-mono">{m.station}</span> item {m.itemId}:{' '}
+            {m.itemId === currentId && currentWritable ? <strong>this item, with your whole form (picks, certainty, note)</strong> : m.state === 'in review' ? 'the type only, if the claim is yours' : 'the type only'}
+          </li>
+        ))}
+        {settled.map((m) => (
+          <li key={m.itemId} className="text-ink-muted">
+            <span className="font-mono">{m.station}</span> item {m.itemId}: skipped, already {m.state}
+          </li>
+        ))}
+      </ul>
+      {others.length > 0 ? <p className="mt-2 text-sm text-ink-muted">Open each member later to place its picks; every label stays correctable on its own.</p> : null}
+    </Dialog>
   );
 }

@@ -1,83 +1,132 @@
-import { useEffect, useMemo, useRef } from 'react';
+import { useCallback, useMemo } from 'react';
+import type uPlot from 'uplot';
 import type { TracesResponse } from '@shared/schemas/queue';
+import { PlotFrame } from '@client/components/ui/plot-frame';
 import { colormapGradient, colormapTable } from '@client/features/review/lib/colormap';
+import { spectrogramExtent } from '@client/features/review/lib/spectrogram-geometry';
+import { traceYAxisSizePx } from '@client/features/review/components/trace-panel';
 
 type Sg = NonNullable<TracesResponse['channels'][number]['spectrogram']>;
 
-/**
- * The spectrogram as a heat map on a canvas: time across, frequency up (linear, 0 to the Nyquist
- * frequency), colour = 10·log10 PSD in dB with Seisift's sequential colour map (lightness rises
- * with power, readable without colour), scaled from the 2nd to the 99.5th percentile of the
- * window so one spike does not wash the rest out. A labelled scale sits under it.
- */
-export function SpectrogramPanel({ sg, streamId, units, fromS, toS }: { sg: Sg; streamId: string; units: string; fromS: number; toS: number }) {
-  const ref = useRef<HTMLCanvasElement>(null);
-  const lut = useMemo(() => colormapTable(), []);
+/** Props of <SpectrogramPanel>. */
+export type SpectrogramPanelProps = {
+  sg: Sg;
+  streamId: string;
+  units: string;
+  /** The traces' time points, s from the window start: the spectrogram uses the same time axis. */
+  times: readonly number[];
+  /** The cursor link of the traces (uPlot sync key). */
+  syncKey: string;
+  /** A drag across the spectrogram zooms the traces too. */
+  onZoom: (from: number, to: number) => void;
+};
+
+/** The image of the spectrogram, one pixel per column and bin (low frequencies at the bottom). */
+function renderImage(sg: Sg, lo: number, hi: number, lut: Uint8ClampedArray): HTMLCanvasElement | null {
   const nf = sg.freqs.length;
   const nt = sg.times.length;
+  if (nt === 0 || nf === 0 || typeof document === 'undefined') return null;
+  const canvas = document.createElement('canvas');
+  canvas.width = nt;
+  canvas.height = nf;
+  const ctx = canvas.getContext('2d');
+  if (!ctx) return null;
+  const img = ctx.createImageData(nt, nf);
+  const span = hi - lo || 1;
+  for (let j = 0; j < nt; j++) {
+    for (let k = 0; k < nf; k++) {
+      const d = sg.db[j * nf + k] ?? lo;
+      const idx = Math.max(0, Math.min(255, Math.round(((d - lo) / span) * 255)));
+      const o = ((nf - 1 - k) * nt + j) * 4;
+      img.data[o] = lut[idx * 4] ?? 0;
+      img.data[o + 1] = lut[idx * 4 + 1] ?? 0;
+      img.data[o + 2] = lut[idx * 4 + 2] ?? 0;
+      img.data[o + 3] = 255;
+    }
+  }
+  ctx.putImageData(img, 0, 0);
+  return canvas;
+}
+
+/**
+ * The spectrogram as a heat map under the lead trace: time across on the traces' own time axis
+ * (same points, same amplitude-axis width, same cursor link and zoom, so a time sits at the same
+ * pixel as on the traces), frequency up (linear, 0 to the Nyquist frequency), colour = 10·log10
+ * PSD in dB with Seisift's sequential colour map (lightness rises with power, readable without
+ * colour), scaled from the 2nd to the 99.5th percentile of the window so one spike does not wash
+ * the rest out. Each column is drawn over its own segment's span (lib/spectrogram-geometry.ts).
+ */
+export function SpectrogramPanel({ sg, streamId, units, times, syncKey, onZoom }: SpectrogramPanelProps) {
+  const lut = useMemo(() => colormapTable(), []);
+  const nf = sg.freqs.length;
   const [lo, hi] = useMemo(() => {
     const v = sg.db.filter((d) => d > -400).sort((a, b) => a - b);
     return [v[Math.floor(v.length * 0.02)] ?? -1, v[Math.floor(v.length * 0.995)] ?? 0];
   }, [sg.db]);
-  useEffect(() => {
-    const canvas = ref.current;
-    if (!canvas || nt === 0 || nf === 0) return;
-    canvas.width = nt;
-    canvas.height = nf;
-    const ctx = canvas.getContext('2d');
-    if (!ctx) return;
-    const img = ctx.createImageData(nt, nf);
-    const span = hi - lo || 1;
-    for (let j = 0; j < nt; j++) {
-      for (let k = 0; k < nf; k++) {
-        const d = sg.db[j * nf + k] ?? lo;
-        const idx = Math.max(0, Math.min(255, Math.round(((d - lo) / span) * 255)));
-        const o = ((nf - 1 - k) * nt + j) * 4;
-        img.data[o] = lut[idx * 4] ?? 0;
-        img.data[o + 1] = lut[idx * 4 + 1] ?? 0;
-        img.data[o + 2] = lut[idx * 4 + 2] ?? 0;
-        img.data[o + 3] = 255;
-      }
-    }
-    ctx.putImageData(img, 0, 0);
-  }, [sg.db, nt, nf, lo, hi, lut]);
-  const t0 = sg.times[0] ?? 0;
-  const t1 = sg.times[nt - 1] ?? 0;
+  const image = useMemo(() => renderImage(sg, lo, hi, lut), [sg, lo, hi, lut]);
+  const extent = useMemo(() => (sg.times.length > 0 && nf > 1 ? spectrogramExtent(sg.times, sg.freqs) : null), [sg.times, sg.freqs, nf]);
   const fmax = sg.freqs[nf - 1] ?? 0;
-  // Show only the zoomed span: crop the full-window image with CSS.
-  const total = Math.max(1e-9, t1 - t0);
-  const left = Math.max(0, (fromS - t0) / total);
-  const right = Math.min(1, (toS - t0) / total);
-  const scale = 1 / Math.max(0.01, right - left);
+  const x = useMemo(() => ({ label: 'Time from window start', unit: 's', values: Array.from(times) }), [times]);
+  const configure = useCallback(
+    (o: uPlot.Options): uPlot.Options => ({
+      ...o,
+      scales: { ...o.scales, y: { ...o.scales?.y, auto: false, range: [0, fmax] } },
+      axes: [o.axes?.[0] ?? {}, { ...o.axes?.[1], size: traceYAxisSizePx }],
+      cursor: { ...o.cursor, sync: { key: syncKey, setSeries: false } },
+      hooks: {
+        ...o.hooks,
+        draw: [
+          (u: uPlot) => {
+            if (!image || !extent) return;
+            const { top, left, width, height } = u.bbox;
+            const x0 = u.valToPos(extent.fromS, 'x', true);
+            const x1 = u.valToPos(extent.toS, 'x', true);
+            const yTop = u.valToPos(extent.toHz, 'y', true);
+            const yBottom = u.valToPos(extent.fromHz, 'y', true);
+            const ctx = u.ctx;
+            ctx.save();
+            ctx.beginPath();
+            ctx.rect(left, top, width, height);
+            ctx.clip();
+            ctx.imageSmoothingEnabled = false;
+            ctx.drawImage(image, x0, yTop, x1 - x0, yBottom - yTop);
+            ctx.restore();
+            // For tests (the canvas cannot be read): the time range of the axis and where the image sits on it.
+            u.root.dataset.xRange = `${u.scales.x?.min ?? ''} ${u.scales.x?.max ?? ''}`;
+            u.root.dataset.imageSpan = `${extent.fromS} ${extent.toS}`;
+          },
+        ],
+        setSelect: [
+          (u: uPlot) => {
+            if (u.select.width > 4) {
+              const from = u.posToVal(u.select.left, 'x');
+              const to = u.posToVal(u.select.left + u.select.width, 'x');
+              u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
+              onZoom(Math.max(0, from), to);
+            }
+          },
+        ],
+      },
+    }),
+    [fmax, syncKey, image, extent, onZoom],
+  );
   return (
-    <figure className="flex flex-col gap-1" aria-label={`Spectrogram of ${streamId}`}>
-      <div className="grid grid-cols-[3.5rem_1fr] gap-1">
-        <div className="flex flex-col justify-between text-right font-mono text-xs text-ink-muted" aria-hidden="true">
-          <span>{fmax.toFixed(0)} Hz</span>
-          <span>{(fmax / 2).toFixed(0)} Hz</span>
-          <span>0 Hz</span>
-        </div>
-        <div className="relative h-40 overflow-hidden rounded-xs border border-line">
-          <canvas
-            ref={ref}
-            role="img"
-            aria-label={`Spectrogram of ${streamId}: power in dB from ${lo.toFixed(0)} to ${hi.toFixed(0)}, 0 to ${fmax.toFixed(0)} Hz`}
-            className="absolute top-0 h-full [image-rendering:pixelated]"
-            style={{ width: `${scale * 100}%`, left: `${-left * scale * 100}%` }}
-          />
-        </div>
-      </div>
-      <div className="ml-[3.75rem] flex justify-between font-mono text-xs text-ink-muted" aria-hidden="true">
-        <span>{Math.max(t0, fromS).toFixed(1)} s</span>
-        <span>time from window start</span>
-        <span>{Math.min(t1, toS).toFixed(1)} s</span>
-      </div>
-      <figcaption className="ml-[3.75rem] flex items-center gap-2 text-xs text-ink-muted">
+    <div className="flex flex-col gap-1" data-testid="spectrogram">
+      <PlotFrame
+        title={`Spectrogram of ${streamId}`}
+        description={`Spectrogram of ${streamId}: power in dB from ${lo.toFixed(0)} to ${hi.toFixed(0)}, 0 to ${fmax.toFixed(0)} Hz, on the traces' time axis`}
+        x={x}
+        y={{ label: 'Frequency', unit: 'Hz' }}
+        series={[]}
+        height={150}
+        configure={configure}
+      />
+      <p className="flex items-center gap-2 pl-[3.75rem] text-xs text-ink-muted">
         <span className="font-mono">{lo.toFixed(0)}</span>
         <span className="h-3 w-48 rounded-xs border border-line" style={{ background: colormapGradient() }} aria-hidden="true" />
         <span className="font-mono">{hi.toFixed(0)}</span>
         <span>dB rel 1 ({units})²/Hz · darker = less power, lighter = more</span>
-      </figcaption>
-    </figure>
+      </p>
+    </div>
   );
 }

@@ -1,5 +1,6 @@
 import { useCallback, useMemo } from 'react';
 import type uPlot from 'uplot';
+import { noiseModelSeries } from '@client/components/ui/noise-model-series';
 import { PlotFrame } from '@client/components/ui/plot-frame';
 import type { AnalysisView } from '@client/features/review/api/get-item';
 
@@ -20,8 +21,11 @@ export function SpectrumPanel({ channel }: { channel: Channel }) {
     if (nm) {
       return [
         { label: 'acceleration PSD', values: keep.map((i) => nm.accelerationDb[i] ?? null), styleIndex: 0 },
-        { label: 'NLNM (Peterson 1993)', values: keep.map((i) => nm.nlnmDb[i] ?? null), styleIndex: 1 },
-        { label: 'NHNM (Peterson 1993)', values: keep.map((i) => nm.nhnmDb[i] ?? null), styleIndex: 2 },
+        // The same look as on the station page (one helper for both).
+        ...noiseModelSeries(
+          keep.map((i) => nm.nlnmDb[i] ?? null),
+          keep.map((i) => nm.nhnmDb[i] ?? null),
+        ),
       ];
     }
     return [{ label: `PSD (${channel.psd.units})`, values: keep.map((i) => { const v = channel.psd.values[i] ?? 0; return v > 0 ? v : null; }), styleIndex: 0 }];

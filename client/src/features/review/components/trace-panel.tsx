@@ -22,14 +22,24 @@ export type TracePanelProps = {
   onZoom: (from: number, to: number) => void;
   /** A click on a trace places a pick at `timeS` on `streamId`. */
   onPick: (streamId: string, timeS: number) => void;
-  /** The cursor's time, s (null when off the plots), for keyboard picks and zoom. */
-  onCursor: (timeS: number | null) => void;
+  /**
+   * The trace under the mouse and the time there, s (null once the mouse leaves every trace), for
+   * keyboard picks and zoom. Only the plot the mouse is really over reports: the linked cursor
+   * lines drawn on the other channels' plots do not.
+   */
+  onCursor: (at: TraceCursor | null) => void;
   syncKey: string;
   /** Shown right after the lead (vertical) channel, e.g. its spectrogram. */
   afterLead?: ReactNode;
   /** Per stream id: the engine's signal and noise segments, shaded on vertical (Z) traces. */
   segments?: Readonly<Record<string, SignalSegments | null>>;
 };
+
+/** Where the mouse is over the traces: the channel's stream id and the time, s from the window start. */
+export type TraceCursor = { streamId: string; timeS: number };
+
+/** Width of every trace plot's amplitude axis, CSS px; plots drawn under the traces use it too so their time axes line up. */
+export const traceYAxisSizePx = 58;
 
 /** Seconds from the window start of an ISO pick time. */
 export function pickSeconds(p: PickMark, windowStartMs: number): number {
@@ -148,7 +158,7 @@ function displayScaled(values: number[], unit: string): Scaled {
 function amplitudeAxis(axis: uPlot.Axis | undefined, amplitude: boolean): uPlot.Axis {
   return {
     ...axis,
-    size: 58,
+    size: traceYAxisSizePx,
     // On traces, 1-2-5 splits over the symmetric range (which ends on a tick): uPlot's own search
     // on a ~70 px plot picked a step just larger than the half-range and left a lone "0".
     // Panels under 120 px get only −h, 0, h so the labels never overlap.
@@ -178,8 +188,8 @@ export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, 
   return (
     <div className="flex flex-col gap-2" data-testid="trace-panel">
       <p className="text-sm text-ink-muted">
-        Drag across a trace to zoom all of them; click to place a <strong className="text-ink">{activePhase}</strong> pick (<kbd>P</kbd>/<kbd>S</kbd> choose the
-        phase). Band traces: Butterworth band-pass, {traces.filtering}. {ordered[0] && ordered[0].bucket > 1 ? `Shown as min/max of ${ordered[0].bucket} samples per point.` : 'Every sample shown.'}
+        Drag across a trace to zoom all of them; click to place a <strong className="text-ink">{activePhase}</strong> pick, or point and press <kbd>P</kbd>/<kbd>S</kbd>{' '}
+        (the pick goes on the channel under the mouse). Band traces: Butterworth band-pass, {traces.filtering}. {ordered[0] && ordered[0].bucket > 1 ? `Shown as min/max of ${ordered[0].bucket} samples per point.` : 'Every sample shown.'}
       </p>
       {ordered.map((c, i) => (
         <Fragment key={c.streamId}>
@@ -219,26 +229,29 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
             }
           },
         ],
-        setCursor: [
-          ...(o.hooks?.setCursor ?? []),
+        draw: [
           (u: uPlot) => {
-            const left = u.cursor.left;
-            onCursor(left === undefined || left < 0 ? null : u.posToVal(left, 'x'));
+            drawMarks(u, { picks: picksRef.current, windowStartMs, triggers: withTriggers ? c.triggers : null, segments: withSegments ? segment : null });
+            // The time range drawn, s (tests compare it with the spectrogram's; the canvas cannot be read).
+            u.root.dataset.xRange = `${u.scales.x?.min ?? ''} ${u.scales.x?.max ?? ''}`;
           },
         ],
-        draw: [(u: uPlot) => drawMarks(u, { picks: picksRef.current, windowStartMs, triggers: withTriggers ? c.triggers : null, segments: withSegments ? segment : null })],
         destroy: [(u: uPlot) => void charts.current.delete(u)],
         ready: [
           (u: uPlot) => {
             charts.current.add(u);
             let downX = 0;
+            // The mouse itself, not uPlot's setCursor hook: with linked cursors every channel's
+            // plots get setCursor, so the last one to run (not the one under the mouse) would win.
+            const timeAt = (e: MouseEvent) => u.posToVal(e.clientX - u.over.getBoundingClientRect().left, 'x');
+            u.over.addEventListener('mousemove', (e) => onCursor({ streamId: c.streamId, timeS: timeAt(e) }));
+            u.over.addEventListener('mouseleave', () => onCursor(null));
             u.over.addEventListener('mousedown', (e) => {
               downX = e.clientX;
             });
             u.over.addEventListener('click', (e) => {
               if (Math.abs(e.clientX - downX) > 3) return;
-              const rect = u.over.getBoundingClientRect();
-              onPick(c.streamId, u.posToVal(e.clientX - rect.left, 'x'));
+              onPick(c.streamId, timeAt(e));
             });
           },
         ],

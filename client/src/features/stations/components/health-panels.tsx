@@ -1,10 +1,10 @@
 import { Link } from 'react-router';
 import type uPlot from 'uplot';
 import { sortChannels } from '@shared/channel-order';
-import type { BaselineView } from '@shared/schemas/station';
 import { Badge } from '@client/components/ui/badge';
 import { EmptyState } from '@client/components/ui/empty-state';
 import { FlagMarker } from '@client/components/ui/flag-marker';
+import { noiseModelSeries } from '@client/components/ui/noise-model-series';
 import { PlotFrame } from '@client/components/ui/plot-frame';
 import { StateMarker } from '@client/components/ui/state-marker';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
@@ -29,8 +29,8 @@ export function PsdPlots({ health }: { health: StationHealthView }) {
         const series = c.physical
           ? [
               { label: c.streamId, values: c.db, styleIndex: 0 },
-              { label: 'NHNM (Peterson 1993)', values: c.nhnm, styleIndex: 1 },
-              { label: 'NLNM (Peterson 1993)', values: c.nlnm, styleIndex: 2 },
+              // The same look as on the review spectrum (one helper for both).
+              ...noiseModelSeries(c.nlnm, c.nhnm),
             ]
           : [{ label: `${c.streamId} (counts)`, values: c.db, styleIndex: 0 }];
         return (
@@ -117,48 +117,6 @@ export function QcFindings({ health }: { health: StationHealthView }) {
         </TBody>
       </Table>
     </TableScroll>
-  );
-}
-
-const sourceWords: Record<BaselineView['source'], string> = {
-  dismissed: 'windows an analyst dismissed as noise',
-  flagged: 'windows the engine flagged “likely noise” (until enough are dismissed by analysts)',
-  none: 'no noise windows yet',
-};
-
-/** The station's noise baseline as the score uses it. */
-export function BaselineSummary({ baseline }: { baseline: BaselineView }) {
-  const f = (v: number) => v.toFixed(3).replace('-', '\u2212');
-  return (
-    <div className="flex flex-col gap-2">
-      <p className="text-sm">
-        {baseline.inUse ? (
-          <Badge tone="ok">in use</Badge>
-        ) : (
-          <Badge tone="neutral">
-            network default in use ({baseline.count} of {baseline.minWindows} windows)
-          </Badge>
-        )}{' '}
-        {baseline.source === 'none' ? 'No noise windows yet: the score uses the network default.' : `From ${baseline.count} ${baseline.count === 1 ? sourceWords[baseline.source].replace(/^windows/, 'window') : sourceWords[baseline.source]}.`}
-      </p>
-      {baseline.log10Ratio && baseline.staLtaPeak ? (
-        <dl className="grid max-w-lg grid-cols-[auto_1fr_1fr] gap-x-4 gap-y-1 font-mono text-sm">
-          <dt className="font-sans text-ink-muted" />
-          <dd className="font-sans text-ink-muted">median</dd>
-          <dd className="font-sans text-ink-muted">MAD</dd>
-          <dt className="font-sans">log10 high/low ratio</dt>
-          <dd>{f(baseline.log10Ratio.median)}</dd>
-          <dd>{f(baseline.log10Ratio.mad)}</dd>
-          <dt className="font-sans">STA/LTA peak</dt>
-          <dd>{f(baseline.staLtaPeak.median)}</dd>
-          <dd>{f(baseline.staLtaPeak.mad)}</dd>
-        </dl>
-      ) : null}
-      <p className="text-sm text-ink-muted">
-        The score is a robust z against these: (x − median) / (1.4826 · MAD). A baseline built from the engine’s own “likely noise” flags can drift with the station (a slowly rising noise floor is
-        absorbed as normal); analyst dismissals replace them as soon as there are enough.
-      </p>
-    </div>
   );
 }
 
