@@ -14,14 +14,13 @@ import {
   type TokenView,
 } from '@shared/schemas/station';
 import type { z } from 'zod';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { auditLog } from '@server/db/schema/audit-log';
 import { channels, ingestTokens, stationAssignments, stations } from '@server/db/schema/stations';
 import { users } from '@server/db/schema/users';
 import { windows } from '@server/db/schema/uploads';
 import { AppError, badRequest, conflict, notFound } from '@server/errors';
 import type { IngestPrincipal } from '@server/auth/authenticate';
-import type { DbOrTx } from '@server/realtime/change-log';
 
 /**
  * The station registry: stations, channels, processing profiles and per-station ingest tokens.
