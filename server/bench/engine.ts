@@ -9,7 +9,8 @@ import { sosfilt } from '@server/dsp/sosfilt';
 import type { DecodedStream } from '@server/formats/types';
 import { createAnalysisPool } from '@server/jobs/analysis-pool';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
-import { median, timeRuns } from './timing';
+import { median } from '@shared/math/median';
+import { timeRuns } from './timing';
 
 /**
  * `npm run bench:engine`: speed of the triage engine, printed.
