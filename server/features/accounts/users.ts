@@ -6,7 +6,7 @@ import { stationAssignments, stations } from '@server/db/schema/stations';
 import { userRoles, users } from '@server/db/schema/users';
 import type { Database, Transaction } from '@server/db/client';
 import { conflict, notFound } from '@server/errors';
-import type { AuthUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
 import { recordAudit } from '@server/features/audit/audit';
 import { stationCodesFor } from './invitations';

@@ -20,7 +20,7 @@ import { channels, ingestTokens, stationAssignments, stations } from '@server/db
 import { users } from '@server/db/schema/users';
 import { windows } from '@server/db/schema/uploads';
 import { AppError, badRequest, conflict, notFound } from '@server/errors';
-import type { IngestPrincipal } from '@server/auth/authenticate';
+import type { IngestPrincipal } from '@server/auth/principal';
 
 /**
  * The station registry: stations, channels, processing profiles and per-station ingest tokens.
