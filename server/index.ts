@@ -4,7 +4,7 @@ import type { IncomingMessage } from 'node:http';
 import { createApp } from './app';
 import { createSessionStore } from './auth/sessions';
 import type { Database } from './db/client';
-import { loadAuthUser } from './auth/authenticate';
+import { loadAuthUser } from './auth/principal';
 import { startClaimLapseJob } from './jobs/claim-lapse';
 import { createHub, type RealtimeHub } from './realtime/hub';
 import type { Logger } from './logger';

@@ -1,6 +1,7 @@
 /**
  * Metrics of a detector on labelled windows, for `npm run eval:detection` (pure, no I/O).
  */
+import { median } from '@shared/math/median';
 
 /** The three flags of the engine. */
 export type Flag = 'likely event' | 'needs eyes' | 'likely noise';
@@ -71,10 +72,8 @@ export function rocAuc(positives: readonly number[], negatives: readonly number[
 export function errorStats(errors: readonly number[], within = 0.5): { median: number; p90: number; shareWithin: number; n: number } {
   const a = errors.map((e) => Math.abs(e)).sort((x, y) => x - y);
   if (a.length === 0) return { median: NaN, p90: NaN, shareWithin: NaN, n: 0 };
-  const m = a.length >> 1;
-  const median = a.length % 2 ? (a[m] as number) : ((a[m - 1] as number) + (a[m] as number)) / 2;
   const p90 = a[Math.min(a.length - 1, Math.ceil(0.9 * a.length) - 1)] as number;
-  return { median, p90, shareWithin: a.filter((e) => e <= within).length / a.length, n: a.length };
+  return { median: median(a), p90, shareWithin: a.filter((e) => e <= within).length / a.length, n: a.length };
 }
 
 /** Longest run of exactly equal consecutive samples, in samples (a padded or dead stretch). */

@@ -11,7 +11,8 @@ import { sosfilt } from '@server/dsp/sosfilt';
 import type { DecodedStream } from '@server/formats/types';
 import { createAnalysisPool } from '@server/jobs/analysis-pool';
 import { defaultProcessingProfile, type ProcessingProfile } from '@shared/schemas/processing-profile';
-import { median, timeRuns } from './timing';
+import { median } from '@shared/math/median';
+import { timeRuns } from './timing';
 
 /**
  * `npm run bench:engine`: speed of the triage engine, printed.

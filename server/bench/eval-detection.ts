@@ -1,15 +1,15 @@
 import { readFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { butterworthSos } from '../dsp/butterworth';
-import { analyzeWindow } from '../dsp/pipeline';
-import { computeBaseline, NETWORK_DEFAULT_BASELINE } from '../dsp/score';
-import { sosfiltInPlace } from '../dsp/sosfilt';
-import { classicStaLta, detectTriggers } from '../dsp/sta-lta';
-import { decodeWaveform } from '../formats/decode';
-import type { DecodedStream } from '../formats/types';
+import { butterworthSos } from '@server/dsp/butterworth';
+import { analyzeWindow } from '@server/dsp/pipeline';
+import { computeBaseline, NETWORK_DEFAULT_BASELINE } from '@server/dsp/score';
+import { sosfiltInPlace } from '@server/dsp/sosfilt';
+import { classicStaLta, detectTriggers } from '@server/dsp/sta-lta';
+import { decodeWaveform } from '@server/formats/decode';
+import type { DecodedStream } from '@server/formats/types';
 import { z } from 'zod';
-import { defaultProcessingProfile, processingProfileSchema } from '../../shared/schemas/processing-profile';
+import { defaultProcessingProfile, processingProfileSchema } from '@shared/schemas/processing-profile';
 import { confusion, errorStats, flagRates, longestConstantRun, rocAuc, type EvaluatedWindow, type Flag } from './detection-metrics';
 
 /**

@@ -52,7 +52,8 @@ import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-poo
 import { createLogger } from '@server/logger';
 import { ingestFile } from '@server/features/ingest/ingest-upload';
 import { stationsByKeys } from '@server/features/stations/station-registry';
-import { median, percentile, timeRuns } from './timing';
+import { median } from '@shared/math/median';
+import { percentile, timeRuns } from './timing';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);

@@ -1,13 +1,5 @@
 /** Small timing helpers shared by the benchmark scripts (`npm run bench:*`). */
 
-/** The median of `v` (the mean of the two middle values for an even count); NaN when empty. */
-export function median(v: readonly number[]): number {
-  if (v.length === 0) return NaN;
-  const s = [...v].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? (s[m] as number) : ((s[m - 1] as number) + (s[m] as number)) / 2;
-}
-
 /** The nearest-rank `p`th percentile (0–100) of an ascending `sorted` list; NaN when empty. */
 export function percentile(sorted: readonly number[], p: number): number {
   if (sorted.length === 0) return NaN;

@@ -54,6 +54,22 @@ export async function freePort(): Promise<number> {
 }
 
 /**
+ * `tsc --noEmit` over the whole project, then `eslint .` (eslint.config.js: type-aware rules and
+ * the import boundaries). Throws BootstrapError naming the step that found errors; their messages
+ * are already on the terminal.
+ */
+export function checkTypesAndLint(): void {
+  for (const [what, bin, args] of [
+    ['type check', 'node_modules/.bin/tsc', ['--noEmit', '-p', 'tsconfig.json']],
+    ['lint', 'node_modules/.bin/eslint', ['.']],
+  ] as const) {
+    console.log(`seisift: ${what}…`);
+    const r = spawnSync(process.execPath, [bin, ...args], { stdio: 'inherit' });
+    if (r.status !== 0) throw new BootstrapError(`the ${what} found errors (see above)`);
+  }
+}
+
+/**
  * Builds the client with Vite (its own binary, so it can be stopped by PID).
  * @param opts.devPages keep the design reference in the build (the test run's build; never `npm start`'s)
  */

@@ -3,13 +3,15 @@
  * reference fixtures), builds the client for the browser tests, runs every vitest test against a
  * throw-away MariaDB (tests/setup/global-setup.ts) and ends with one plain line
  * `tests: N passed, M failed` computed from vitest's JSON report. No test run is a failure.
- * Extra arguments go to vitest (e.g. `npm test -- tests/server/dsp`).
+ * The full run first type-checks (`tsc --noEmit`) and lints (`eslint .`) and stops on any error.
+ * Extra arguments go to vitest (e.g. `npm test -- tests/server/dsp`); such a targeted run skips
+ * the type check and the lint (`npm run lint` runs both alone).
  */
 import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { z } from 'zod';
-import { buildClient, secondsSince } from './common';
+import { buildClient, checkTypesAndLint, secondsSince } from './common';
 import { BootstrapError, ensureDebianPackages, ensureMariaDbInstalled } from './mariadb';
 
 const reportSchema = z.object({
@@ -24,13 +26,16 @@ const t0 = performance.now();
 try {
   ensureMariaDbInstalled();
   ensureDebianPackages(['chromium', 'libmseed-dev', 'gcc', 'libc6-dev', 'python3-scipy']);
+  const vitestArgs = process.argv.slice(2);
+  if (vitestArgs.length === 0) checkTypesAndLint();
+  else console.log('seisift: a targeted run: type check and lint skipped (npm run lint)');
   console.log('seisift: building the client for the browser tests (with the design reference)…');
   buildClient({ devPages: true });
 
   const outDir = resolve('.data');
   mkdirSync(outDir, { recursive: true });
   const reportFile = join(outDir, `vitest-report-${process.pid}.json`);
-  const args = ['node_modules/.bin/vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${reportFile}`, ...process.argv.slice(2)];
+  const args = ['node_modules/.bin/vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${reportFile}`, ...vitestArgs];
   const code = await new Promise<number>((ok) => {
     const child = spawn(process.execPath, args, { stdio: 'inherit', env: { ...process.env, NO_COLOR: '1', NODE_ENV: 'test' } });
     process.on('SIGINT', () => child.kill('SIGINT'));

@@ -15,6 +15,12 @@ export const schema = { ...changeLog, ...users, ...sessions, ...stations, ...upl
 /** The app's database handle. */
 export type Database = MySql2Database<typeof schema>;
 
+/** An open transaction, as `db.transaction(async (tx) => …)` passes it. */
+export type Transaction = Parameters<Parameters<Database['transaction']>[0]>[0];
+
+/** The database or an open transaction: a write can join the transaction of the change it belongs to. */
+export type DbOrTx = Database | Transaction;
+
 /** A pool and the drizzle handle over it. */
 export interface DatabaseClient {
   pool: mysql.Pool;

@@ -1,7 +1,8 @@
 import type { Request, RequestHandler } from 'express';
 import { can, stationScope, type Action, type PolicyTarget } from '@shared/auth/policies';
 import { forbidden, unauthorized } from '@server/errors';
-import { currentUser, optionalUser, type AuthUser } from '@server/auth/authenticate';
+import { currentUser, optionalUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 
 const actionWords: Record<Action, string> = {
   'station.view': 'view this station',

@@ -1,10 +1,7 @@
 import { asc, eq, gt, lt, min, sql } from 'drizzle-orm';
 import type { ChangeMessage } from '@shared/realtime';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { changeCounter, changeLog } from '@server/db/schema/change-log';
-
-/** A database handle or an open transaction. */
-export type DbOrTx = Database | Parameters<Parameters<Database['transaction']>[0]>[0];
 
 /** What changed. */
 export interface ChangeInput {

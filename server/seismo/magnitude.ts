@@ -6,6 +6,7 @@
  * A the zero-to-peak Wood-Anderson amplitude in mm, with −log10 A0(100 km) = 3, so that 1 mm at
  * 100 km is ML 3.0.
  */
+import { median } from '@shared/math/median';
 
 /**
  * −log10 A0(r) of Hutton & Boore (1987), BSSA 77(6), 2074–2094, for southern California (the
@@ -89,11 +90,6 @@ export interface NetworkMagnitude {
   stationCount: number;
   /** How the value and the uncertainty were formed, in words. */
   method: string;
-}
-
-function median(sorted: readonly number[]): number {
-  const m = sorted.length >> 1;
-  return sorted.length % 2 ? (sorted[m] as number) : ((sorted[m - 1] as number) + (sorted[m] as number)) / 2;
 }
 
 /**

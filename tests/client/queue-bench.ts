@@ -106,7 +106,7 @@ try {
   }
   console.log(`queue screen: all ${rows} rows loaded by scrolling after ${(performance.now() - t).toFixed(0)} ms`);
   // Passed as text: tsx's helpers (__name) do not exist inside the page.
-  const frames = (await page.evaluate(`new Promise((done) => {
+  const frames = await page.evaluate<{ intervals: number[]; domRows: number }>(`new Promise((done) => {
     const el = document.querySelector('[aria-label="Queue items"]');
     if (!el) return done({ intervals: [], domRows: 0 });
     el.scrollTop = 0;
@@ -123,7 +123,7 @@ try {
       else done({ intervals: intervals.slice(1), domRows });
     };
     requestAnimationFrame(step);
-  })`)) as { intervals: number[]; domRows: number };
+  })`);
   const slow = frames.intervals.filter((x) => x > 33).length;
   console.log(
     `scrolling ${rows} rows at 400 px per frame: ${frames.intervals.length} frames, interval median ${quantile(frames.intervals, 0.5).toFixed(1)} ms, p95 ${quantile(frames.intervals, 0.95).toFixed(1)} ms, ${slow} over 33 ms; at most ${frames.domRows} rows in the DOM`,

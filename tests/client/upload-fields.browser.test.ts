@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { seedDemo } from '../../server/db/seed-demo';
+import { seedDemo } from '@server/db/seed-demo';
 import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
 import { startTestServer, type TestServer } from '../setup/test-server';
 

@@ -12,7 +12,7 @@ import { userRoles, users } from '@server/db/schema/users';
 import { invitationLink } from '@server/email/links';
 import { invitationMail } from '@server/email/templates/invitation';
 import { AppError, badRequest, conflict, notFound } from '@server/errors';
-import type { AuthUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
 import { recordAudit } from '@server/features/audit/audit';
 import { tokenExpired, tokenRevoked, tokenUnknown, tokenUsed } from './one-time-tokens';

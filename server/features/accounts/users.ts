@@ -4,11 +4,11 @@ import type { AdminUser, StationOption } from '@shared/auth/schemas';
 import { sessions } from '@server/db/schema/sessions';
 import { stationAssignments, stations } from '@server/db/schema/stations';
 import { userRoles, users } from '@server/db/schema/users';
-import type { Database } from '@server/db/client';
+import type { Database, Transaction } from '@server/db/client';
 import { conflict, notFound } from '@server/errors';
-import type { AuthUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
-import { recordAudit, type Transaction } from '@server/features/audit/audit';
+import { recordAudit } from '@server/features/audit/audit';
 import { stationCodesFor } from './invitations';
 
 /** Every user with roles, stations and the number of open sessions, by e-mail. */

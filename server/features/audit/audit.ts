@@ -1,14 +1,8 @@
 import { and, count, desc, eq, gte, like, lte, or, type SQL } from 'drizzle-orm';
 import type { z } from 'zod';
 import type { AuditRow, auditQuerySchema } from '@shared/auth/schemas';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { auditLog } from '@server/db/schema/audit-log';
-
-/** A transaction handle, as `db.transaction(async (tx) => …)` passes it. */
-export type Transaction = Parameters<Parameters<Database['transaction']>[0]>[0];
-
-/** The database or an open transaction: audit rows can join the change they describe. */
-export type DbOrTx = Database | Transaction;
 
 /** Who acted: a person (id + e-mail), a script (label only), or nobody known (null). */
 export type AuditActor = { id: string | null; email?: string | null; label?: string | null } | null;

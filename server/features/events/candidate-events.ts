@@ -2,13 +2,13 @@ import { and, asc, desc, eq, gt, gte, inArray, lt, lte, max, sql } from 'drizzle
 import { z } from 'zod';
 import type { EventLabel } from '@shared/schemas/label';
 import { defaultGroupingSettings, type GroupingSettings, type GroupLabelBody } from '@shared/schemas/supervisor';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { candidateEvents, itemArrivals } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
 import { AppError, badRequest, notFound } from '@server/errors';
-import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { recordChange } from '@server/realtime/change-log';
 import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from '@server/features/queue/queue-transitions';
 import { lowerLoneTrigger, raiseByCoincidence } from './coincidence';
 
@@ -290,7 +290,7 @@ function analysisFromExtract(r: { leadChannel: unknown; ids: unknown; starts: un
   };
   const starts = col(r.starts);
   const staLta = col(r.staLta);
-  const list = single ? [ids] : ids;
+  const list: readonly unknown[] = Array.isArray(ids) ? ids : [ids];
   const detection = r.detection === undefined ? undefined : extracted(r.detection);
   return { leadChannel: extracted(r.leadChannel), detection, channels: list.map((id, i) => ({ id, startTime: starts[i], staLta: staLta[i] })) };
 }

@@ -3,7 +3,8 @@ import { queueItems } from '@server/db/schema/queue-items';
 import { itemArrivals } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
 import { loadQueueRow } from '@server/features/queue/presenters';
-import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { recordChange } from '@server/realtime/change-log';
+import type { DbOrTx } from '@server/db/client';
 
 /**
  * Network coincidence: one station's flag weighed by what the neighbours recorded (common practice:

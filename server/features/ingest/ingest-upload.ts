@@ -5,7 +5,7 @@ import { can } from '@shared/auth/policies';
 import { flagSchema } from '@shared/schemas/flags';
 import { channelResponseSchema } from '@shared/schemas/station';
 import type { UploadOutcome } from '@shared/schemas/upload';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { ConfigError, envSchema } from '@server/env';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
@@ -17,11 +17,11 @@ import { decodeWaveform } from '@server/formats/decode';
 import { WaveformParseError, type DecodedStream } from '@server/formats/types';
 import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import type { Logger } from '@server/logger';
-import { isDatabaseDown } from '@server/http/error-handler';
+import { isDatabaseDown } from '@server/db/availability';
 import { presentQueueRow } from '@server/features/queue/presenters';
 import { itemArrivals } from '@server/db/schema/supervisor';
-import type { AuthUser, IngestPrincipal } from '@server/auth/authenticate';
-import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import type { AuthUser, IngestPrincipal } from '@server/auth/principal';
+import { recordChange } from '@server/realtime/change-log';
 import { firstTriggerMs, regroupArrivals } from '@server/features/events/candidate-events';
 import { decodeStoredSamples, encodeSamples } from '@server/db/samples-codec';
 import { stationBaseline } from '@server/features/stations/station-baseline';
@@ -278,8 +278,8 @@ const endUs = (s: DecodedStream) => s.startTimeUs + Math.round((s.samples.length
 function duplicateKeyError(err: unknown): boolean {
   let e: unknown = err;
   for (let depth = 0; e && depth < 4; depth++) {
-    if (typeof e === 'object' && e !== null && 'code' in e && (e as { code: unknown }).code === 'ER_DUP_ENTRY') return true;
-    e = typeof e === 'object' && e !== null && 'cause' in e ? (e as { cause: unknown }).cause : undefined;
+    if (typeof e === 'object' && e !== null && 'code' in e && e.code === 'ER_DUP_ENTRY') return true;
+    e = typeof e === 'object' && e !== null && 'cause' in e ? e.cause : undefined;
   }
   return false;
 }

@@ -3,7 +3,7 @@ import { alias } from 'drizzle-orm/mysql-core';
 import { flagSchema } from '@shared/schemas/flags';
 import { itemStateSchema } from '@shared/schemas/item-states';
 import type { QueueRow } from '@shared/schemas/queue';
-import type { DbOrTx } from '@server/realtime/change-log';
+import type { DbOrTx } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { candidateEvents, itemArrivals } from '@server/db/schema/supervisor';

@@ -2,14 +2,14 @@ import { and, desc, eq, inArray, isNull, lt, sql, type SQL } from 'drizzle-orm';
 import { itemTransitions, type ItemAction, type ItemState } from '@shared/schemas/item-states';
 import type { Dismissal, EventLabel, Escalation, StoredLabel } from '@shared/schemas/label';
 import type { QueueRow } from '@shared/schemas/queue';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { auditLog } from '@server/db/schema/audit-log';
 import { queueItems } from '@server/db/schema/queue-items';
 import { users } from '@server/db/schema/users';
 import { conflict, notFound } from '@server/errors';
 import { loadQueueRow } from './presenters';
 import { recordAudit } from '@server/features/audit/audit';
-import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { recordChange } from '@server/realtime/change-log';
 
 /**
  * The life of a queue item (issue 6): every change is one transaction that

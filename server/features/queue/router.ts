@@ -5,7 +5,8 @@ import { dismissBodySchema, escalateBodySchema, labelBodySchema, queueQuerySchem
 import type { AppContext } from '@server/context';
 import { queueItems } from '@server/db/schema/queue-items';
 import { notFound } from '@server/errors';
-import { clientAddress, currentUser, requireUser, type AuthUser } from '@server/auth/authenticate';
+import { clientAddress, currentUser, requireUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 import { parseInput } from '@server/http/validate';
 import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
 import { getItemDetail } from './queue-detail';

@@ -5,7 +5,8 @@ import { processingProfileSchema } from '@shared/schemas/processing-profile';
 import { channelInputSchema, idParamSchema, stationCreateSchema, stationUpdateSchema, tokenCreateSchema } from '@shared/schemas/station';
 import type { AppContext } from '@server/context';
 import { badRequest, notFound, tooLarge } from '@server/errors';
-import { clientAddress, currentUser, type AuthUser } from '@server/auth/authenticate';
+import { clientAddress, currentUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 import { parseInput } from '@server/http/validate';
 import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
 import { stationHealth } from './station-health';
@@ -58,7 +59,7 @@ export function stationsRouter(ctx: AppContext): Router {
           if (err.code === 'LIMIT_FILE_SIZE') return reject(tooLarge(`The StationXML file is larger than the limit of ${MAX_STATIONXML_BYTES / 1024 / 1024} MB`));
           return reject(badRequest(`file: ${err.message}`));
         }
-        if (err) return reject(err instanceof Error ? err : new Error(String(err)));
+        if (err) return reject(err instanceof Error ? err : new Error(typeof err === 'string' ? err : 'the StationXML upload could not be read', { cause: err }));
         if (!req.file) return reject(badRequest('file: attach the StationXML document as the multipart field "file"'));
         resolve(req.file.buffer.toString('utf8'));
       });

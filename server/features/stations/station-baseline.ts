@@ -4,7 +4,7 @@ import type { BaselineView } from '@shared/schemas/station';
 import { queueItems } from '@server/db/schema/queue-items';
 import { windowFeatures } from '@server/db/schema/window-features';
 import { computeBaseline, MAD_FLOOR, NETWORK_DEFAULT_BASELINE, type StationBaseline } from '@server/dsp/score';
-import type { DbOrTx } from '@server/realtime/change-log';
+import type { DbOrTx } from '@server/db/client';
 
 /**
  * A station's noise baseline: robust statistics (median, MAD) of the lead channel's log10 band

@@ -14,14 +14,13 @@ import {
   type TokenView,
 } from '@shared/schemas/station';
 import type { z } from 'zod';
-import type { Database } from '@server/db/client';
-import { auditLog } from '@server/db/schema/audit-log';
+import type { Database, DbOrTx } from '@server/db/client';
+import { recordAudit } from '@server/features/audit/audit';
 import { channels, ingestTokens, stationAssignments, stations } from '@server/db/schema/stations';
 import { users } from '@server/db/schema/users';
 import { windows } from '@server/db/schema/uploads';
 import { AppError, badRequest, conflict, notFound } from '@server/errors';
-import type { IngestPrincipal } from '@server/auth/authenticate';
-import type { DbOrTx } from '@server/realtime/change-log';
+import type { IngestPrincipal } from '@server/auth/principal';
 
 /**
  * The station registry: stations, channels, processing profiles and per-station ingest tokens.
@@ -37,7 +36,7 @@ export interface Actor {
   ipAddress: string | null;
 }
 
-/** Adds one audit row (inside the caller's transaction when given one). */
+/** Adds one audit row through the one audit writer (inside the caller's transaction when given one). */
 export async function writeAudit(
   db: DbOrTx,
   actor: Actor,
@@ -45,16 +44,7 @@ export async function writeAudit(
   target: { type: string; id: string | number },
   details?: unknown,
 ): Promise<void> {
-  await db.insert(auditLog).values({
-    actorUserId: actor.userId,
-    actorLabel: actor.label.slice(0, 254),
-    action,
-    targetType: target.type,
-    targetId: String(target.id),
-    details: details ?? null,
-    ipAddress: actor.ipAddress,
-    createdAt: new Date(),
-  });
+  await recordAudit(db, { actor: { id: actor.userId, label: actor.label }, action, targetType: target.type, targetId: target.id, details, ip: actor.ipAddress });
 }
 
 /** The station's stream id prefix `NET.STA`. */

@@ -112,7 +112,7 @@ function diffValues(from: Record<string, unknown> | null, to: Record<string, unk
   const out: FieldDiff[] = [];
   for (const [field, value] of Object.entries(to)) {
     const old = from ? from[field] ?? null : null;
-    const same = typeof value === 'number' || value === null ? (typeof old === 'number' || old === null ? sameNumber(old as number | null, value as number | null) : false) : sameJson(old, value);
+    const same = typeof value === 'number' || value === null ? (typeof old === 'number' || old === null ? sameNumber(old, value) : false) : sameJson(old, value);
     if (!same) out.push({ field, from: from ? old : null, to: value });
   }
   return out;

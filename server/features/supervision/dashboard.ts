@@ -6,6 +6,7 @@ import { stations } from '@server/db/schema/stations';
 import { itemReviews } from '@server/db/schema/supervisor';
 import { users } from '@server/db/schema/users';
 import { truthOf } from './thresholds';
+import { median } from '@shared/math/median';
 
 /**
  * The supervisor's dashboard for a period, per UTC day:
@@ -38,10 +39,7 @@ const dayKey = (d: Date) => d.toISOString().slice(0, 10);
 
 /** The median of a list (null when empty). */
 export function medianOf(values: readonly number[]): number | null {
-  if (values.length === 0) return null;
-  const s = [...values].sort((a, b) => a - b);
-  const m = Math.floor(s.length / 2);
-  return s.length % 2 ? (s[m] as number) : ((s[m - 1] as number) + (s[m] as number)) / 2;
+  return values.length === 0 ? null : median(values);
 }
 
 const triageActions = ['queue.labelled', 'queue.dismissed', 'queue.escalated'];

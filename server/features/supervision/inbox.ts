@@ -1,5 +1,5 @@
 import { and, count, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { inboxEntries, itemReviews } from '@server/db/schema/supervisor';
@@ -8,7 +8,7 @@ import type { StoredLabel } from '@shared/schemas/label';
 import type { ConfirmLabel } from '@shared/schemas/supervisor';
 import { AppError, conflict, notFound } from '@server/errors';
 import { loadQueueRow } from '@server/features/queue/presenters';
-import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 
 /**

@@ -18,7 +18,8 @@ import {
 } from '@shared/schemas/supervisor';
 import type { AppContext } from '@server/context';
 import { queueItems } from '@server/db/schema/queue-items';
-import { clientAddress, currentUser, requireUser, type AuthUser } from '@server/auth/authenticate';
+import { clientAddress, currentUser, requireUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 import { parseInput } from '@server/http/validate';
 import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
 import { recordAudit } from '@server/features/audit/audit';

@@ -2,14 +2,14 @@ import { and, asc, count, desc, eq, gte, inArray, lt, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { storedLabelSchema } from '@shared/schemas/label';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
-import type { Database } from '@server/db/client';
+import type { Database, DbOrTx } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { itemReviews } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
 import { notFound, tooLarge, unprocessable } from '@server/errors';
 import { loadQueueRow } from '@server/features/queue/presenters';
-import { recordChange, type DbOrTx } from '@server/realtime/change-log';
+import { recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 import { stationBaseline } from '@server/features/stations/station-baseline';
 import type { Evaluation, ThresholdValues } from '@shared/schemas/supervisor';
@@ -303,7 +303,7 @@ export function scoreInputFromExtract(row: ScoreExtractRow): unknown {
     if (single) return [parsed];
     return Array.isArray(parsed) ? parsed : null;
   };
-  const ids = single ? [idsRaw] : idsRaw;
+  const ids: readonly unknown[] = Array.isArray(idsRaw) ? idsRaw : [idsRaw];
   const fields = { log10Ratio: col(row.log10Ratio), ratio: col(row.ratio), staLta: col(row.staLta), dominantFrequency: col(row.dominantFrequency), spectralCentroid: col(row.spectralCentroid), bands: col(row.bands), qc: col(row.qc) };
   // Older analyses have no signal spectrum at all (the path matches nothing: null); newer ones
   // have one per channel (null where there was no trigger).

@@ -72,8 +72,11 @@ describe('inline theme script in client/index.html', () => {
   const html = readFileSync(fileURLToPath(new URL('../../../client/index.html', import.meta.url)), 'utf8');
   const script = /<script>([\s\S]*?)<\/script>/.exec(html)?.[1];
 
-  /** Runs the inline script against a fake window/document and returns the attribute it set. */
-  function runInline(stored: string | null | 'throw', prefersLight: boolean): string | undefined {
+  /**
+   * Runs the inline script against a fake window/document and returns the attribute it set.
+   * `stored` is what localStorage holds; the word 'throw' makes reading it throw instead.
+   */
+  function runInline(stored: string | null, prefersLight: boolean): string | undefined {
     if (script === undefined) throw new Error('client/index.html has no inline <script>');
     const attributes = new Map<string, string>();
     const fakeWindow = {

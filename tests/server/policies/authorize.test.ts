@@ -1,7 +1,7 @@
 /** The server wrapper of the policy module: 403 with words, station scope for lists. */
 import { describe, expect, it } from 'vitest';
 import { AppError } from '@server/errors';
-import type { AuthUser } from '@server/auth/authenticate';
+import type { AuthUser } from '@server/auth/principal';
 import { authorize, authorizedStations } from '@server/policies/authorize';
 
 const operator: AuthUser = { id: 'op', email: 'operator@kestrel.example', displayName: 'Op', roles: ['operator'], stationIds: [1, 2] };

@@ -8,7 +8,8 @@
  */
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
-import { median, percentile, timeRuns } from '@server/bench/timing';
+import { median } from '@shared/math/median';
+import { percentile, timeRuns } from '@server/bench/timing';
 import { centroid, greatCircleDistanceKm } from '@server/seismo/geodesy';
 import { locateEvent, type LocateResult } from '@server/seismo/locate';
 import { networkMagnitude, stationMagnitude } from '@server/seismo/magnitude';

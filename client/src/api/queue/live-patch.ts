@@ -32,7 +32,8 @@ export const liveArrivals = {
     arrived.add(id);
     bump();
   },
-  subscribe(fn: Listener) {
+  // An arrow function, so useSyncExternalStore can take it unbound.
+  subscribe: (fn: Listener) => {
     listeners.add(fn);
     return () => listeners.delete(fn);
   },

@@ -15,7 +15,7 @@ export function parseFilters(p: URLSearchParams): QueueFilters {
     const raw = p.get(key);
     if (raw === null || raw === '') return;
     const r = queueQuerySchema.safeParse({ [key]: raw });
-    if (r.success) out[key] = r.data[key] as QueueFilters[K];
+    if (r.success) out[key] = r.data[key];
   };
   (['station', 'flag', 'label', 'scoreMin', 'scoreMax', 'from', 'to', 'sort'] as const).forEach(one);
   const state = p.get('state');

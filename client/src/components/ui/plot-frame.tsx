@@ -121,7 +121,7 @@ function useFontReady(): boolean {
   useEffect(() => {
     if (ready) return;
     let alive = true;
-    Promise.all([document.fonts.load(`11px ${plotFontFamily}`), document.fonts.load(`500 12px ${plotFontFamily}`)])
+    void Promise.all([document.fonts.load(`11px ${plotFontFamily}`), document.fonts.load(`500 12px ${plotFontFamily}`)])
       .catch(() => undefined)
       .then(() => {
         if (alive) setReady(true);
@@ -242,6 +242,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
     };
     return configure ? configure(base) : base;
     // seriesKey stands for the series' labels and styles; their values go in `data`, not here.
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- series, x and y enter through seriesKey and the fields listed
   }, [plotTheme, width, height, seriesKey, hidden, x.label, x.unit, x.log, y.label, y.unit, y.log, configure, styleOf, xFormat, yFormat]);
 
   const data = useMemo<uPlot.AlignedData>(() => [x.values, ...series.map((s) => s.values)], [x.values, series]);

@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { csvFieldProblems, peekWaveformFile } from '../../../../client/src/features/uploads/lib/peek-file';
-import { parseIsoTimeUs } from '../../../../server/formats/iso-time';
-import { decodeWaveform } from '../../../../server/formats/decode';
-import { encodeMiniSeed2 } from '../../../../server/formats/mseed2-writer';
-import { encodeMiniSeed3 } from '../../../../server/formats/mseed3-writer';
+import { csvFieldProblems, peekWaveformFile } from '@client/features/uploads/lib/peek-file';
+import { parseIsoTimeUs } from '@server/formats/iso-time';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
 
 /**
  * The upload form asks for a CSV file's stream id and start time only when the file does not give

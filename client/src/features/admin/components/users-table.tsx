@@ -36,6 +36,8 @@ const column = createColumnHelper<AdminUser>();
 const isFigure = (meta: unknown): boolean => typeof meta === 'object' && meta !== null && 'figure' in meta && meta.figure === true;
 
 const hasRole: FilterFn<AdminUser> = (row, _id, value: unknown) => value === '' || (typeof value === 'string' && row.original.roles.some((r) => r === value));
+/** A column filter's value as the select shows it (the filters hold strings; nothing set is ''). */
+const filterText = (value: unknown): string => (typeof value === 'string' ? value : '');
 const statusIs: FilterFn<AdminUser> = (row, _id, value: unknown) =>
   value === '' || (value === 'active' ? row.original.active : value === 'deactivated' ? !row.original.active : value === 'no-password' ? !row.original.hasPassword : true);
 
@@ -130,7 +132,7 @@ export function UsersTable({ users, stations, selfId, onEditAccess, onSetActive,
         </FormField>
         <FormField label="Role" className="w-48">
           {(p) => (
-            <Select {...p} value={String(roleFilter?.getFilterValue() ?? '')} onChange={(e) => roleFilter?.setFilterValue(e.target.value)}>
+            <Select {...p} value={filterText(roleFilter?.getFilterValue())} onChange={(e) => roleFilter?.setFilterValue(e.target.value)}>
               <option value="">Any role</option>
               {roles.map((r) => (
                 <option key={r} value={r}>
@@ -142,7 +144,7 @@ export function UsersTable({ users, stations, selfId, onEditAccess, onSetActive,
         </FormField>
         <FormField label="Status" className="w-44">
           {(p) => (
-            <Select {...p} value={String(statusFilter?.getFilterValue() ?? '')} onChange={(e) => statusFilter?.setFilterValue(e.target.value)}>
+            <Select {...p} value={filterText(statusFilter?.getFilterValue())} onChange={(e) => statusFilter?.setFilterValue(e.target.value)}>
               <option value="">Any status</option>
               <option value="active">Active</option>
               <option value="deactivated">Deactivated</option>

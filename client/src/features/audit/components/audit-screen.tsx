@@ -23,7 +23,7 @@ export const auditActionChoices: { value: string; label: string }[] = [
 /** One line of words for an audit row's details (JSON otherwise). */
 export function detailsText(details: unknown): string {
   if (details === null || details === undefined) return '';
-  if (typeof details !== 'object') return String(details);
+  if (typeof details !== 'object') return typeof details === 'string' ? details : (JSON.stringify(details) ?? '');
   return Object.entries(details)
     .map(([k, v]) => `${k}: ${Array.isArray(v) ? v.join(', ') || '—' : typeof v === 'object' && v !== null ? JSON.stringify(v) : String(v)}`)
     .join('; ');

@@ -47,7 +47,7 @@ export function ThresholdsScreen() {
   const periodOk = period.from !== undefined && period.to !== undefined && Date.parse(period.from) < Date.parse(period.to);
   const rs = useMutation({ mutationFn: () => rescore(stationId ?? 0, period.from ?? '', period.to ?? '') });
 
-  const curve = report.data?.curve ?? [];
+  const curve = useMemo(() => report.data?.curve ?? [], [report.data]);
   const x = useMemo(() => curve.map((p) => p.eventZ), [curve]);
   // Precision against recall: recall falls as eventZ rises, so the curve read backwards has recall
   // ascending, as uPlot needs its x values (points without a recall are left out).

@@ -1,4 +1,4 @@
-import { isoStartTimeSchema, streamIdSchema } from '../../../../../shared/schemas/upload';
+import { isoStartTimeSchema, streamIdSchema } from '@shared/schemas/upload';
 
 /**
  * What the upload form needs to know about a picked file before sending it, judged by content
