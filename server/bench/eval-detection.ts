@@ -223,8 +223,7 @@ if (args.includes('--json')) {
     console.log(`in use (NETWORK_DEFAULT_BASELINE): ${JSON.stringify(NETWORK_DEFAULT_BASELINE)}`);
   }
   if (args.includes('--misses')) {
-    for (const r of results.filter((x) => (x.engine.label === 'earthquake') !== (x.engine.flag === 'likely event'))) {
-      if (r.engine.label === 'noise' && r.engine.flag === 'likely noise') continue;
+    for (const r of results.filter((x) => (x.engine.label === 'earthquake' ? x.engine.flag !== 'likely event' : x.engine.flag !== 'likely noise'))) {
       console.log(`\n${r.cut} ${r.file} → ${r.engine.flag} (score ${r.engine.score}, trig err ${r.engine.triggerErrorS})\n  ${r.reasons.join('\n  ')}`);
     }
   }

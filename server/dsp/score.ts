@@ -262,7 +262,11 @@ export function scoreWindow(
     inBandKnown = main !== null;
     if (main && lead.signalSpectrumNote) reasons.push(`no signal spectrum: ${lead.signalSpectrumNote}`);
   }
-  const nothingStandsOut = sig !== null && inBandSnr !== null && inBandSnr < sig.minSnr && (sig.peakFrequency === null);
+  // The band did not rise at all (its summed PSD under minSnr × the noise before it): whatever set the
+  // trigger off came from outside the band (a loud burst leaking through the causal filter's skirt)
+  // or from nothing — not ground motion in the band.
+  const bandFlat = sig !== null && inBandSnr !== null && inBandSnr < sig.minSnr;
+  const nothingStandsOut = bandFlat && sig.peakFrequency === null;
   const qcErrors = lead.qc.filter((q) => q.severity === 'error');
   const strong = main !== null && zp >= th.eventZ;
   // A trigger at a data problem (a gap or overlap where records were joined, a dropout, a DC step, a
@@ -271,6 +275,13 @@ export function scoreWindow(
     ? []
     : channels.flatMap((c) => c.qc.filter((q) => DATA_PROBLEMS.has(q.code) && q.time !== undefined && Math.abs(q.time - main.onset) <= DATA_PROBLEM_S).map((q) => `${c.id}: ${q.message}`));
 
+  // Evidence stored by engine version 1 (triggers without an onset), replayed by the threshold
+  // tuning: judged by the rule it was made under (legacyInBand), so a station's history stays comparable.
+  const legacy = main !== null && lead.staLta.triggers.every((t) => t.onset === undefined);
+  if (legacy) {
+    inBand = legacyInBand(lead, th) && zr !== null && zr >= th.eventZ;
+    reasons.push('stored by an earlier engine: judged by its rule (whole-window ratio and where the spectrum peaks)');
+  }
   let flag: WindowScore['flag'];
   if (qcErrors.length > 0 || atProblem.length > 0) {
     flag = 'needs eyes';
@@ -278,9 +289,17 @@ export function scoreWindow(
     for (const m of atProblem) reasons.push(`the trigger sits at a data problem, not necessarily ground motion — ${m}`);
   } else if (strong && inBand) {
     flag = 'likely event';
-  } else if (!anyTrigger || zp < th.noiseZ || (!strong && nothingStandsOut)) {
+  } else if (legacy ? false : !anyTrigger || zp < th.noiseZ || bandFlat) {
     flag = 'likely noise';
-    if (main) reasons.push(zp < th.noiseZ ? 'the trigger is no stronger than this station\'s ordinary noise' : 'the triggered part stands out from the noise before it in no frequency bin');
+    if (main) {
+      reasons.push(
+        zp < th.noiseZ
+          ? 'the trigger is no stronger than this station\'s ordinary noise'
+          : nothingStandsOut
+            ? 'the triggered part stands out from the noise before it in no frequency bin'
+            : `the high band ${hb.fmin}–${hb.fmax} Hz did not rise (${fmtDb(inBandSnr)}): the energy that set the trigger off lies outside the band (its excess peaks at ${fmtHz(sig?.peakFrequency ?? null)}) and leaked through the filter — not an event in the band`,
+      );
+    }
   } else {
     flag = 'needs eyes';
     if (strong && !inBand) {
@@ -319,6 +338,24 @@ export function scoreWindow(
   if (!inBand && score > 0) score /= 2;
   score = Math.round(score * 10) / 10;
   return { score, flag, reasons, leadChannel: lead.id, baseline: useStation ? 'station' : 'network default', zLog10Ratio: zr, zStaLtaPeak: zp, detection };
+}
+
+/**
+ * The in-band test of engine version 1, for replaying stored evidence: with a signal spectrum, its
+ * excess peak within the high band widened by signalPeakTolerance and the excess centroid at most
+ * centroidMaxFactor × the band's top; without one, the whole-window dominant frequency inside the
+ * band and the centroid at most centroidMaxFactor × the top.
+ */
+function legacyInBand(c: ChannelFeatures, th: { signalPeakTolerance: number; centroidMaxFactor: number }): boolean {
+  const hb = c.bands.high;
+  const sig = c.signalSpectrum ?? null;
+  if (sig) {
+    const lo = hb.fmin / (1 + th.signalPeakTolerance);
+    const hi = hb.fmax * (1 + th.signalPeakTolerance);
+    return sig.peakFrequency !== null && sig.peakFrequency >= lo && sig.peakFrequency <= hi && sig.centroid !== null && sig.centroid <= th.centroidMaxFactor * hb.fmax;
+  }
+  const d = c.dominantFrequency;
+  return d !== null && d >= hb.fmin && d <= hb.fmax && c.spectralCentroid !== null && c.spectralCentroid <= th.centroidMaxFactor * hb.fmax;
 }
 
 /** A power ratio in dB (10·log10). */

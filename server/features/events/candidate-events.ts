@@ -10,6 +10,7 @@ import { windows } from '@server/db/schema/uploads';
 import { AppError, badRequest, notFound } from '@server/errors';
 import { recordChange, type DbOrTx } from '@server/realtime/change-log';
 import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from '@server/features/queue/queue-transitions';
+import { lowerLoneTrigger, raiseByCoincidence } from './coincidence';
 
 /**
  * Candidate events: items from at least `minStations` distinct stations whose first triggers fall
@@ -328,18 +329,23 @@ export async function regroupAround(deps: CandidateDeps, itemId: number): Promis
   for (let round = 0; round < 50; round++) {
     loaded = await loadArrivals(deps.db, from, to);
     component = groupArrivals(loaded, settings, horizonMs / 1000).find((g) => g.itemIds.includes(itemId));
-    if (!component) return null;
+    if (!component) break;
     const needFrom = component.firstArrivalMs - horizonMs;
     const needTo = component.lastArrivalMs + horizonMs;
     if (needFrom >= from && needTo <= to) break;
     from = Math.min(from, needFrom);
     to = Math.max(to, needTo);
   }
-  if (!component) return null;
+  const lone = async (): Promise<null> => {
+    const [me] = await deps.db.select({ stationId: itemArrivals.stationId }).from(itemArrivals).where(eq(itemArrivals.itemId, itemId));
+    if (me && (await deps.db.transaction((tx) => lowerLoneTrigger(tx, itemId, me.stationId, own.arrivalAt, horizonMs / 1000, new Date())))) deps.notify?.();
+    return null;
+  };
+  if (!component) return lone();
   const group = component;
   const members = loaded.filter((a) => group.itemIds.includes(a.itemId));
   const oldIds = [...new Set(members.map((m) => m.candidateEventId).filter((v): v is number => v !== null))];
-  if (!isCandidateEvent(group, settings)) return null;
+  if (!isCandidateEvent(group, settings)) return lone();
   const now = new Date();
   const id = await deps.db.transaction(async (tx) => {
     const [existing] = await tx.select().from(candidateEvents).where(eq(candidateEvents.anchorItemId, group.anchorItemId)).for('update');
@@ -359,6 +365,7 @@ export async function regroupAround(deps: CandidateDeps, itemId: number): Promis
       version = 1;
     }
     await tx.update(itemArrivals).set({ candidateEventId: eventId }).where(inArray(itemArrivals.itemId, group.itemIds));
+    await raiseByCoincidence(tx, eventId, group.itemIds, group.stationIds.length, now);
     const absorbed = oldIds.filter((o) => o !== eventId);
     if (absorbed.length > 0) await tx.delete(candidateEvents).where(inArray(candidateEvents.id, absorbed));
     for (const a of absorbed) await recordChange(tx, { resource: 'candidate_event', resourceId: a, kind: 'deleted', version: 0, summary: { mergedInto: eventId } });

@@ -151,17 +151,27 @@ const channelSchema = z.object({
   id: z.string(),
   log10Ratio: z.number().nullable(),
   ratio: z.number().nullable(),
-  staLta: z.object({ peak: z.number(), peakTime: z.number(), triggers: z.array(z.object({ on: z.number(), off: z.number().nullable() })) }),
+  /** ISO time of the first sample (compares onsets across channels; absent in older analyses). */
+  startTime: z.string().optional(),
+  staLta: z.object({
+    peak: z.number(),
+    peakTime: z.number(),
+    triggers: z.array(z.object({ on: z.number(), off: z.number().nullable(), onset: z.number().optional(), peak: z.number().optional() })),
+    main: z.number().nullable().optional(),
+  }),
+  snr: z.number().nullable().optional(),
   dominantFrequency: z.number().nullable(),
   spectralCentroid: z.number().nullable(),
   bands: z.object({ high: z.object({ fmin: z.number(), fmax: z.number() }) }),
-  qc: z.array(z.object({ severity: z.enum(['info', 'warning', 'error']), message: z.string(), code: z.string() })),
+  qc: z.array(z.object({ severity: z.enum(['info', 'warning', 'error']), message: z.string(), code: z.string(), time: z.number().optional() })),
   /** Where the triggered part rises above the pre-trigger noise (absent in older analyses). */
   signalSpectrum: z
     .object({
       peakFrequency: z.number().nullable(),
       peakSnr: z.number().nullable(),
       centroid: z.number().nullable(),
+      inBandSnr: z.number().nullable().optional(),
+      inBandShare: z.number().nullable().optional(),
       minSnr: z.number(),
       fromS: z.number(),
       toS: z.number(),

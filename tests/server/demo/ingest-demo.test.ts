@@ -39,17 +39,21 @@ afterAll(async () => {
 });
 
 describe('ingestDemo (the npm start demo step, through the real ingest service)', () => {
-  it('stores every demo file once, one queue item per window, with nothing refused', async () => {
+  it('stores every demo file once, one queue item per window; the telemetry-gap file is refused, naming the gap', async () => {
     const files = readDemoManifest().files.length;
-    expect(first.rejected).toEqual([]);
+    // Samples must sit at their times: a window with 6 s of records missing cannot be stored as one
+    // evenly sampled series, so the operator is told to upload the continuous parts separately.
+    expect(first.rejected).toHaveLength(1);
+    expect(first.rejected[0]?.message).toMatch(/cannot be placed exactly.*gap of 6 s/);
+    const stored = files - 1;
     expect(first.files).toBe(files);
-    expect(first.created).toBe(files);
+    expect(first.created).toBe(stored);
     expect(first.duplicates).toBe(0);
-    expect(first.items).toBe(files);
+    expect(first.items).toBe(stored);
     const c = await counts();
-    expect(c.uploads).toBe(files);
-    expect(c.windows).toBe(files);
-    expect(c.items).toBe(files);
+    expect(c.uploads).toBe(stored);
+    expect(c.windows).toBe(stored);
+    expect(c.items).toBe(stored);
     console.log(`demo ingest: ${files} files in ${first.seconds.toFixed(1)} s`);
   });
 
@@ -98,7 +102,8 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
     const before = await counts();
     const again = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger });
     expect(again.created).toBe(0);
-    expect(again.duplicates).toBe(first.files);
+    expect(again.duplicates).toBe(first.files - first.rejected.length);
+    expect(again.rejected).toHaveLength(first.rejected.length);
     expect([again.items, again.labelled, again.dismissed, again.escalated]).toEqual([0, 0, 0, 0]);
     expect(await counts()).toEqual(before);
   }, 60_000);

@@ -9,7 +9,9 @@ import { uploads, windows } from '@server/db/schema/uploads';
 import { seedDemo } from '@server/db/seed-demo';
 import { DEMO_WAVEFORMS_DIR } from '@server/demo/generate-waveforms';
 import { readDemoManifest } from '@server/demo/ingest-demo';
+import { encodeDemoMiniSeed } from '@server/demo/encode';
 import { REPLAY_TOKEN_LABEL, ReplayError, parseReplayArgs, replayDemo, shiftWindowFile } from '@server/demo/replay';
+import { synthesizeWindow } from '@server/demo/synth';
 import { decodeWaveform } from '@server/formats/decode';
 import { startServer, type RunningServer } from '@server/index';
 import { createToken } from '@server/features/stations/station-registry';
@@ -19,8 +21,17 @@ const sha = (b: Uint8Array): string => createHash('sha256').update(b).digest('he
 
 describe('shiftWindowFile', () => {
   it('moves every stream of a MiniSEED window (gap kept) to the new start with the same samples and a new hash', () => {
+    // A KV06 window with its 6 s telemetry gap in one file (the demo sends such a window as two files).
     const name = 'XX.KV06.2026-03-14T18-25-00.mseed';
-    const bytes = readFileSync(join(DEMO_WAVEFORMS_DIR, 'mseed', name));
+    const t0 = Date.UTC(2026, 2, 14, 18, 25) * 1000;
+    const syn = synthesizeWindow('KV06', t0, 'gap');
+    const gap = syn.gap ?? { from: 4800, to: 5400 };
+    const bytes = encodeDemoMiniSeed(
+      (['HHZ', 'HHN', 'HHE'] as const).flatMap((channel) => [
+        { network: 'XX', station: 'KV06', location: '00', channel, sampleRateHz: 100, startTimeUs: t0, samples: syn.counts[channel].slice(0, gap.from) },
+        { network: 'XX', station: 'KV06', location: '00', channel, sampleRateHz: 100, startTimeUs: t0 + gap.to * 10_000, samples: syn.counts[channel].slice(gap.to) },
+      ]),
+    );
     const start = Date.UTC(2026, 11, 1, 22, 0, 0) * 1000;
     const out = shiftWindowFile(bytes, name, start);
     expect(out.filename).toBe('XX.KV06.2026-12-01T22-00-00.mseed');
