@@ -33,11 +33,15 @@ import { buildQuakeml } from './quakeml-export';
 import { applyThresholds, rescorePeriod, thresholdReport } from './thresholds';
 import { notFound } from '@server/errors';
 
-const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be an id (a whole number)').transform(Number) });
-const stationParams = z.object({ stationId: z.string().regex(/^\d{1,15}$/, 'must be a station id (a whole number)').transform(Number) });
+/** Params `:id` of the supervisor routes: an inbox entry, item or candidate event id. */
+export const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be an id (a whole number)').transform(Number) });
+/** Params `:stationId` of the threshold routes. */
+export const stationParams = z.object({ stationId: z.string().regex(/^\d{1,15}$/, 'must be a station id (a whole number)').transform(Number) });
 const num = z.preprocess((v) => (typeof v === 'string' && v.trim() !== '' ? Number(v) : v), z.number().finite('must be a number'));
-const proposedQuery = z.object({ eventZ: num.optional(), noiseZ: num.optional(), centroidMaxFactor: num.optional() });
-const candidateQuery = periodSchema;
+/** Query of GET /api/supervisor/thresholds/:stationId: thresholds to try (each optional; the station's current ones fill the rest). */
+export const proposedQuery = z.object({ eventZ: num.optional(), noiseZ: num.optional(), centroidMaxFactor: num.optional() });
+/** Query of GET /api/supervisor/candidate-events: the period. */
+export const candidateQuery = periodSchema;
 
 /**
  * A candidate event as `scope` may see it: everything for 'all'; for an operator only the members
