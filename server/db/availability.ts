@@ -1,3 +1,6 @@
+import { sql } from 'drizzle-orm';
+import type { Database } from './client';
+
 /** Error codes (mysql2, MariaDB, Node sockets) that mean "the database cannot be reached right now". */
 const DATABASE_DOWN_CODES = new Set([
   'ECONNREFUSED',
@@ -30,4 +33,9 @@ export function isDatabaseDown(err: unknown): boolean {
     e = (e as { cause?: unknown }).cause;
   }
   return false;
+}
+
+/** One round trip to the database (`SELECT 1`); rejects when it cannot be reached. */
+export async function pingDatabase(db: Database): Promise<void> {
+  await db.execute(sql`SELECT 1`);
 }

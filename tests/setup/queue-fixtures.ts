@@ -13,7 +13,8 @@ import { userRoles, users } from '@server/db/schema/users';
 import type { DecodedStream } from '@server/formats/types';
 import { analyzeWindow } from '@server/dsp/pipeline';
 import { recordChange } from '@server/realtime/change-log';
-import { presentQueueRow, selectQueueRows } from '@server/features/queue/presenters';
+import { presentQueueRow } from '@server/features/queue/presenters';
+import { selectQueueRows } from '@server/features/queue/queue-rows';
 
 /**
  * Test rows in the shape the ingest path writes them (upload → window with the engine's analysis →

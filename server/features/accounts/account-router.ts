@@ -1,17 +1,15 @@
-import { eq } from 'drizzle-orm';
 import { Router } from 'express';
 import { createHash } from 'node:crypto';
 import { z } from 'zod';
 import { changePasswordSchema, type SessionRow } from '@shared/auth/schemas';
 import type { AuthKit } from '@server/auth/kit';
-import { hashPassword, verifyPassword } from '@server/auth/password';
 import type { AppContext } from '@server/context';
-import { users } from '@server/db/schema/users';
-import { AppError, notFound } from '@server/errors';
+import { notFound } from '@server/errors';
 import { currentSession, currentUser, requireUser } from '@server/auth/authenticate';
 import { parseInput } from '@server/http/validate';
 import { recordAudit } from '@server/features/audit/audit';
 import { requestMeta } from './respond';
+import { changeOwnPassword } from './sign-in';
 
 /** Params of DELETE /api/account/sessions/:id: a session handle (32 hex digits), never the cookie secret. */
 export const sessionParams = z.object({ id: z.string().regex(/^[0-9a-f]{32}$/, 'is not a session handle') });
@@ -35,13 +33,7 @@ export function accountRouter(ctx: AppContext, kit: AuthKit): Router {
     const user = currentUser(req);
     const session = currentSession(req);
     const input = parseInput(changePasswordSchema, req.body);
-    const [row] = await db.select({ passwordHash: users.passwordHash }).from(users).where(eq(users.id, user.id));
-    if (!row?.passwordHash || !(await verifyPassword(row.passwordHash, input.currentPassword)))
-      throw new AppError(400, 'validation_failed', 'currentPassword: is not your current password', { issues: [{ path: 'currentPassword', message: 'is not your current password' }] });
-    if (input.newPassword === input.currentPassword) throw new AppError(400, 'validation_failed', 'newPassword: must differ from the current password', { issues: [{ path: 'newPassword', message: 'must differ from the current password' }] });
-    await db.update(users).set({ passwordHash: await hashPassword(input.newPassword), updatedAt: new Date() }).where(eq(users.id, user.id));
-    await kit.sessions.endOthersForUser(user.id, session.id);
-    await recordAudit(db, { actor: user, action: 'auth.password_changed', targetType: 'user', targetId: user.id, details: { otherSessionsEnded: true }, ip: requestMeta(req).ip });
+    await changeOwnPassword({ db, sessions: kit.sessions }, user, session.id, input, requestMeta(req));
     res.status(204).end();
   });
 

@@ -1,10 +1,9 @@
-import { desc, eq } from 'drizzle-orm';
 import { Router } from 'express';
 import { z } from 'zod';
-import { createInvitationSchema, setRolesSchema, setStationsSchema, type MailMessage, type MailSummary } from '@shared/auth/schemas';
+import { createInvitationSchema, setRolesSchema, setStationsSchema } from '@shared/auth/schemas';
 import type { AuthKit } from '@server/auth/kit';
 import type { AppContext } from '@server/context';
-import { mailMessages } from '@server/db/schema/mail-messages';
+import { getMail, listMail } from '@server/email/mailbox';
 import { AppError, notFound } from '@server/errors';
 import { parseInput } from '@server/http/validate';
 import { requirePermission, userFor } from '@server/policies/authorize';
@@ -95,24 +94,15 @@ export function adminRouter(ctx: AppContext, kit: AuthKit): Router {
   router.get('/mailbox', requirePermission('mailbox.view'), async (req, res) => {
     if (ctx.mailer.kind !== 'fake') throw mailboxOff();
     const q = parseInput(mailQuery, req.query, 'query');
-    const rows = await db
-      .select({ id: mailMessages.id, receivedAt: mailMessages.receivedAt, from: mailMessages.fromHeader, to: mailMessages.envelopeTo, subject: mailMessages.subject })
-      .from(mailMessages)
-      .orderBy(desc(mailMessages.receivedAt), desc(mailMessages.id))
-      .limit(q.limit)
-      .offset(q.offset);
-    const total = (await db.select({ id: mailMessages.id }).from(mailMessages)).length;
-    const messages: MailSummary[] = rows.map((r) => ({ ...r, receivedAt: r.receivedAt.toISOString() }));
-    res.json({ messages, total });
+    res.json(await listMail(db, q));
   });
 
   /** GET /api/admin/mailbox/:id → {message: MailMessage} */
   router.get('/mailbox/:id', requirePermission('mailbox.view'), async (req, res) => {
     if (ctx.mailer.kind !== 'fake') throw mailboxOff();
     const { id } = parseInput(numericParams, req.params, 'params');
-    const [r] = await db.select().from(mailMessages).where(eq(mailMessages.id, id));
-    if (!r) throw notFound('Message');
-    const message: MailMessage = { id: r.id, receivedAt: r.receivedAt.toISOString(), from: r.fromHeader, to: r.envelopeTo, subject: r.subject, text: r.textBody, html: r.htmlBody };
+    const message = await getMail(db, id);
+    if (!message) throw notFound('Message');
     res.json({ message });
   });
 

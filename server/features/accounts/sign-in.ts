@@ -41,3 +41,24 @@ export async function signIn(deps: AccountDeps, limiters: AuthLimiters, input: {
   await recordAudit(deps.db, { actor: { id: user.id, email: user.email }, action: 'auth.sign_in', targetType: 'session', targetId: null, details: { userAgent: meta.userAgent }, ip: meta.ip });
   return { session, userId: user.id };
 }
+
+/**
+ * A signed-in person changes their own password: the current one must match and the new one must
+ * differ (400 naming the field otherwise). Every other session of theirs ends; audited as
+ * `auth.password_changed`.
+ */
+export async function changeOwnPassword(
+  deps: Pick<AccountDeps, 'db' | 'sessions'>,
+  user: { id: string; email: string },
+  currentSessionId: string,
+  input: { currentPassword: string; newPassword: string },
+  meta: RequestMeta,
+): Promise<void> {
+  const [row] = await deps.db.select({ passwordHash: users.passwordHash }).from(users).where(eq(users.id, user.id));
+  if (!row?.passwordHash || !(await verifyPassword(row.passwordHash, input.currentPassword)))
+    throw new AppError(400, 'validation_failed', 'currentPassword: is not your current password', { issues: [{ path: 'currentPassword', message: 'is not your current password' }] });
+  if (input.newPassword === input.currentPassword) throw new AppError(400, 'validation_failed', 'newPassword: must differ from the current password', { issues: [{ path: 'newPassword', message: 'must differ from the current password' }] });
+  await deps.db.update(users).set({ passwordHash: await hashPassword(input.newPassword), updatedAt: new Date() }).where(eq(users.id, user.id));
+  await deps.sessions.endOthersForUser(user.id, currentSessionId);
+  await recordAudit(deps.db, { actor: user, action: 'auth.password_changed', targetType: 'user', targetId: user.id, details: { otherSessionsEnded: true }, ip: meta.ip });
+}

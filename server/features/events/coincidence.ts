@@ -2,7 +2,7 @@ import { and, eq, gte, inArray, lte, ne, sql } from 'drizzle-orm';
 import { queueItems } from '@server/db/schema/queue-items';
 import { itemArrivals } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
-import { loadQueueRow } from '@server/features/queue/presenters';
+import { loadQueueRow } from '@server/features/queue/queue-rows';
 import { recordChange } from '@server/realtime/change-log';
 import type { DbOrTx } from '@server/db/client';
 

@@ -1,6 +1,6 @@
-import { sql } from 'drizzle-orm';
 import { Router } from 'express';
 import type { AppContext } from '@server/context';
+import { pingDatabase } from '@server/db/availability';
 
 /** GET /api/health: the database state and the app version. 200 when ok, 503 when the database is down. */
 export function healthRouter(ctx: AppContext): Router {
@@ -10,7 +10,7 @@ export function healthRouter(ctx: AppContext): Router {
     let database: { ok: boolean; latencyMs?: number; error?: string };
     try {
       await Promise.race([
-        ctx.database.db.execute(sql`SELECT 1`),
+        pingDatabase(ctx.database.db),
         new Promise((_, reject) => setTimeout(() => reject(new Error('timed out after 2 s')), 2000)),
       ]);
       database = { ok: true, latencyMs: Math.round((performance.now() - started) * 10) / 10 };

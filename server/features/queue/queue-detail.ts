@@ -6,7 +6,7 @@ import { queueItems } from '@server/db/schema/queue-items';
 import { channels } from '@server/db/schema/stations';
 import { windowChannels, windows } from '@server/db/schema/uploads';
 import { notFound } from '@server/errors';
-import { loadQueueRow } from './presenters';
+import { loadQueueRow } from './queue-rows';
 
 /**
  * Item detail for the review screen: the queue row, its label, the window span, the whole stored

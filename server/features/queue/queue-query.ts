@@ -7,7 +7,8 @@ import { queueCounts } from '@server/db/schema/queue-counts';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { badRequest } from '@server/errors';
-import { presentQueueRow, selectQueueRows } from './presenters';
+import { presentQueueRow } from './presenters';
+import { selectQueueRows } from './queue-rows';
 
 /**
  * GET /api/queue: filters, keyset ("cursor") pagination and counts per state.

@@ -7,7 +7,7 @@ import { auditLog } from '@server/db/schema/audit-log';
 import { queueItems } from '@server/db/schema/queue-items';
 import { users } from '@server/db/schema/users';
 import { conflict, notFound } from '@server/errors';
-import { loadQueueRow } from './presenters';
+import { loadQueueRow } from './queue-rows';
 import { recordAudit } from '@server/features/audit/audit';
 import { recordChange } from '@server/realtime/change-log';
 

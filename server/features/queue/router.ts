@@ -1,9 +1,7 @@
-import { eq } from 'drizzle-orm';
 import { Router, type Request } from 'express';
 import { z } from 'zod';
 import { dismissBodySchema, escalateBodySchema, labelBodySchema, queueQuerySchema, tracesQuerySchema, versionBodySchema } from '@shared/schemas/queue';
 import type { AppContext } from '@server/context';
-import { queueItems } from '@server/db/schema/queue-items';
 import { notFound } from '@server/errors';
 import { clientAddress, currentUser, requireUser } from '@server/auth/authenticate';
 import type { AuthUser } from '@server/auth/principal';
@@ -11,6 +9,7 @@ import { parseInput } from '@server/http/validate';
 import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
 import { getItemDetail } from './queue-detail';
 import { listQueue } from './queue-query';
+import { itemStationId } from './queue-rows';
 import { itemTraces } from './queue-traces';
 import {
   claimItem,
@@ -48,9 +47,9 @@ export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Rou
 
   /** Loads the item's station and checks the action on it (404 when the item does not exist). */
   const authorizeOnItem = async (user: AuthUser, action: Parameters<typeof authorize>[1], id: number) => {
-    const [row] = await db.select({ stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, id));
-    if (!row) throw notFound(`Queue item ${id}`);
-    authorize(user, action, { stationId: row.stationId });
+    const stationId = await itemStationId(db, id);
+    if (stationId === null) throw notFound(`Queue item ${id}`);
+    authorize(user, action, { stationId });
   };
 
   router.use(requireUser);

@@ -8,7 +8,7 @@ import { stations } from '@server/db/schema/stations';
 import { itemArrivals, itemReviews } from '@server/db/schema/supervisor';
 import { users } from '@server/db/schema/users';
 import { conflict, notFound } from '@server/errors';
-import { loadQueueRow } from '@server/features/queue/presenters';
+import { loadQueueRow } from '@server/features/queue/queue-rows';
 import { recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 import type { InboxActor, InboxDeps } from './inbox';

@@ -7,7 +7,7 @@ import { users } from '@server/db/schema/users';
 import type { StoredLabel } from '@shared/schemas/label';
 import type { ConfirmLabel } from '@shared/schemas/supervisor';
 import { AppError, conflict, notFound } from '@server/errors';
-import { loadQueueRow } from '@server/features/queue/presenters';
+import { loadQueueRow } from '@server/features/queue/queue-rows';
 import { recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 

@@ -1,4 +1,3 @@
-import { eq } from 'drizzle-orm';
 import { Router, type Request } from 'express';
 import { z } from 'zod';
 import { latestWindowsQuerySchema } from '@shared/schemas/data-period';
@@ -17,7 +16,7 @@ import {
   thresholdValuesSchema,
 } from '@shared/schemas/supervisor';
 import type { AppContext } from '@server/context';
-import { queueItems } from '@server/db/schema/queue-items';
+import { itemStationId } from '@server/features/queue/queue-rows';
 import { clientAddress, currentUser, requireUser } from '@server/auth/authenticate';
 import type { AuthUser } from '@server/auth/principal';
 import { parseInput } from '@server/http/validate';
@@ -126,9 +125,9 @@ export function supervisorRouter(ctx: AppContext): Router {
   });
   router.get('/items/:id/review-note', requirePermission('queue.view'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
-    const [row] = await db.select({ stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, id));
-    if (!row) throw notFound(`Queue item ${id}`);
-    authorize(currentUser(req), 'queue.view', { stationId: row.stationId });
+    const stationId = await itemStationId(db, id);
+    if (stationId === null) throw notFound(`Queue item ${id}`);
+    authorize(currentUser(req), 'queue.view', { stationId });
     res.json({ note: await reviewNote(db, id) });
   });
 

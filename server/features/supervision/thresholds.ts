@@ -8,7 +8,7 @@ import { stations } from '@server/db/schema/stations';
 import { itemReviews } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
 import { notFound, tooLarge, unprocessable } from '@server/errors';
-import { loadQueueRow } from '@server/features/queue/presenters';
+import { loadQueueRow } from '@server/features/queue/queue-rows';
 import { recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 import { stationBaseline } from '@server/features/stations/station-baseline';

@@ -6,7 +6,7 @@ import { createApp } from '@server/app';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { windows } from '@server/db/schema/uploads';
-import { loadQueueRow } from '@server/features/queue/presenters';
+import { loadQueueRow } from '@server/features/queue/queue-rows';
 import { getCandidateEvent, onItemsCreated } from '@server/features/events/candidate-events';
 import { queuePageSchema } from '@shared/schemas/queue';
 import { createItem, createPerson, ensureStation, type TestPerson } from '@tests/setup/queue-fixtures';
