@@ -218,20 +218,22 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
   const callers = new Map<string, IngestCaller>();
 
   const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, historyDismissed: 0, labelled: 0, dismissed: 0, escalated: 0, seconds: 0 };
-  const ingestAll = async (list: typeof files): Promise<Map<string, number[]>> => {
+  const ingestAll = async (list: typeof files, concurrency = 1): Promise<Map<string, number[]>> => {
     const createdItems = new Map<string, number[]>();
+    // Callers first, one per station (creating a token is not safe to race).
     for (const f of list) {
-      if (known.has(f.sha)) {
-        report.duplicates++;
-        continue;
-      }
+      if (known.has(f.sha) || callers.has(f.entry.station)) continue;
       const id = stationId.get(f.entry.station);
       if (id === undefined) throw new Error(`demo station XX.${f.entry.station} is not registered: the demo seed (seedDemo) must run first`);
-      let caller = callers.get(f.entry.station);
-      if (!caller) {
-        caller = await seedCaller(db, id);
-        callers.set(f.entry.station, caller);
+      callers.set(f.entry.station, await seedCaller(db, id));
+    }
+    await eachLimited(list, concurrency, async (f) => {
+      if (known.has(f.sha)) {
+        report.duplicates++;
+        return;
       }
+      const caller = callers.get(f.entry.station);
+      if (!caller) throw new Error(`demo station XX.${f.entry.station} has no ingest caller`);
       const name = uploadName(f.entry.file);
       const outcome = await ingestFile(deps, { filename: name, contentType: name.endsWith('.csv') ? 'text/csv' : 'application/vnd.fdsn.mseed', bytes: f.bytes }, caller);
       if (outcome.status === 'created') {
@@ -244,7 +246,7 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
       } else {
         report.rejected.push({ filename: name, message: outcome.message ?? outcome.code ?? 'rejected' });
       }
-    }
+    });
     return createdItems;
   };
   const work = opts.work !== false;
@@ -254,7 +256,7 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
 
   // 1. The noise history, dismissed before the demo day is scored against it.
   const history = files.filter((f) => f.entry.reason === 'history');
-  await ingestAll(history);
+  await ingestAll(history, HISTORY_CONCURRENCY);
   if (analyst && history.length > 0) report.historyDismissed = await dismissHistory(deps, analyst, history);
 
   // 2. The demo day.
@@ -280,12 +282,31 @@ async function dismissHistory(deps: DemoIngestDeps, analyst: QueuePerson, histor
     .where(and(inArray(uploads.sha256, [...reasonBySha.keys()]), eq(queueItems.state, 'new')))
     .orderBy(queueItems.windowStart);
   const qdeps = { db: deps.db, notify: deps.notify, ipAddress: null };
-  for (const item of open) {
+  await eachLimited(open, HISTORY_CONCURRENCY, async (item) => {
     const noiseReason = reasonBySha.get(item.sha) ?? 'unknown noise';
     const claimed = await claimItem(qdeps, analyst, item.id, item.version);
     await dismissItem(qdeps, analyst, item.id, claimed.version, { noiseReason, note: HISTORY_NOTES[noiseReason] });
-  }
+  });
   return open.length;
+}
+
+/**
+ * How many history files are ingested (and items dismissed) at once: their order does not matter
+ * (no two overlap, each is dismissed whatever its flag), and overlapping the analysis in the worker
+ * pool with the database round trips keeps `npm start` short.
+ */
+const HISTORY_CONCURRENCY = 4;
+
+/** Runs `fn` over `items` with at most `limit` calls in flight; rejects with the first error. */
+async function eachLimited<T>(items: readonly T[], limit: number, fn: (item: T) => Promise<void>): Promise<void> {
+  let next = 0;
+  const worker = async (): Promise<void> => {
+    while (next < items.length) {
+      const item = items[next++] as T;
+      await fn(item);
+    }
+  };
+  await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, items.length)) }, worker));
 }
 
 async function workItems(deps: DemoIngestDeps, analyst: QueuePerson, actions: Map<string, DemoAction>, createdItems: Map<string, number[]>, report: DemoIngestReport): Promise<void> {
