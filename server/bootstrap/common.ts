@@ -53,9 +53,14 @@ export async function freePort(): Promise<number> {
   });
 }
 
-/** Builds the client with Vite (its own binary, so it can be stopped by PID). */
-export function buildClient(): void {
-  const r = spawnSync(process.execPath, ['node_modules/.bin/vite', 'build', '--logLevel', 'warn'], { stdio: 'inherit' });
+/**
+ * Builds the client with Vite (its own binary, so it can be stopped by PID).
+ * @param opts.devPages keep the design reference in the build (the test run's build; never `npm start`'s)
+ */
+export function buildClient(opts: { devPages?: boolean } = {}): void {
+  // VITE_SEISIFT_DEV_PAGES=1 keeps the design reference in the build (client/src/config/build-flags.ts); production builds leave it out.
+  const env = { ...process.env, VITE_SEISIFT_DEV_PAGES: opts.devPages ? '1' : '' };
+  const r = spawnSync(process.execPath, ['node_modules/.bin/vite', 'build', '--logLevel', 'warn'], { stdio: 'inherit', env });
   if (r.status !== 0) throw new BootstrapError('the client build (vite build) failed; see the messages above');
 }
 

@@ -24,8 +24,8 @@ const t0 = performance.now();
 try {
   ensureMariaDbInstalled();
   ensureDebianPackages(['chromium', 'libmseed-dev', 'gcc', 'libc6-dev', 'python3-scipy']);
-  console.log('seisift: building the client for the browser tests…');
-  buildClient();
+  console.log('seisift: building the client for the browser tests (with the design reference)…');
+  buildClient({ devPages: true });
 
   const outDir = resolve('.data');
   mkdirSync(outDir, { recursive: true });

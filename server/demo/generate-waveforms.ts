@@ -1,7 +1,8 @@
 /**
  * `npm run demo:generate [-- --out DIR]`: writes the invented Kestrel Valley demo day into
  * demo-waveforms/ (or DIR): MiniSEED 2 Steim-2 windows (one file per station window with its three
- * channels), a few single-channel CSV windows, the network's StationXML and manifest.json (what each
+ * channels; a window with a telemetry gap as two files, before and after it), a few single-channel
+ * CSV windows, the network's StationXML and manifest.json (what each
  * file holds, the events with their arrival times). Deterministic: a second run writes byte-identical
  * files. Invented data, for the demo only.
  */
@@ -101,37 +102,27 @@ export function buildDemoFiles(): DemoFile[] {
   const fileOf = new Map<string, string>();
   for (const w of plan) {
     const syn = synthesizeWindow(w.station, w.startUs, w.glitch);
-    const n = syn.counts.HHZ.length;
-    // A window with a telemetry gap is sent as its two continuous parts, one file each: the ingest
-    // stores a window as one evenly sampled series per channel and refuses a file with a gap.
-    const parts = syn.gap
-      ? [
-          { from: 0, to: syn.gap.from, note: `this file: the part before the gap (0–${syn.gap.from / DEMO_SAMPLE_RATE_HZ} s)` },
-          { from: syn.gap.to, to: n, note: `this file: the part after the gap (${syn.gap.to / DEMO_SAMPLE_RATE_HZ}–${n / DEMO_SAMPLE_RATE_HZ} s)` },
-        ]
-      : [{ from: 0, to: n, note: null }];
-    for (const part of parts) {
+    const n = syn.counts[w.channels[0] ?? 'HHZ'].length;
+    // A window with a telemetry gap is sent as its two continuous parts, one file each, as a
+    // station has to: an upload whose samples cannot all sit at their times is refused.
+    const parts = syn.gap ? [{ from: 0, to: syn.gap.from }, { from: syn.gap.to, to: n }] : [{ from: 0, to: n }];
+    parts.forEach((part, k) => {
       const startUs = w.startUs + (part.from * 1e6) / DEMO_SAMPLE_RATE_HZ;
+      const endUs = w.startUs + (part.to * 1e6) / DEMO_SAMPLE_RATE_HZ;
       const path = demoFileName({ ...w, startUs });
       let bytes: Uint8Array;
       if (w.format === 'mseed') {
-        const pieces: CountsPiece[] = w.channels.map((ch) => ({
-          network: DEMO_NETWORK,
-          station: w.station,
-          location: '00',
-          channel: ch,
-          sampleRateHz: DEMO_SAMPLE_RATE_HZ,
-          startTimeUs: startUs,
-          samples: syn.counts[ch].slice(part.from, part.to),
-        }));
+        const pieces: CountsPiece[] = w.channels.map((ch) => ({ network: DEMO_NETWORK, station: w.station, location: '00', channel: ch, sampleRateHz: DEMO_SAMPLE_RATE_HZ, startTimeUs: startUs, samples: syn.counts[ch].slice(part.from, part.to) }));
         bytes = encodeDemoMiniSeed(pieces);
       } else {
         const ch = w.channels[0] ?? 'HHZ';
         const text = encodeDemoCsv(`${DEMO_NETWORK}.${w.station}.00.${ch}`, startUs, DEMO_SAMPLE_RATE_HZ, syn.counts[ch].slice(part.from, part.to), 'Kestrel Valley demo (invented data); counts at 1.5e9 counts per m/s');
         bytes = new TextEncoder().encode(text);
       }
+      const events = parts.length === 1 ? syn.events : syn.events.filter(({ at }) => at.pArrivalUs >= startUs && at.pArrivalUs < endUs);
       files.push({ path, bytes });
-      for (const { event } of syn.events) fileOf.set(`${event.id}/${w.station}`, path);
+      for (const { event } of events) fileOf.set(`${event.id}/${w.station}`, path);
+      const partNote = parts.length === 1 ? [] : [k === 0 ? `part 1 of 2: the ${(part.to - part.from) / DEMO_SAMPLE_RATE_HZ} s before the gap (the rest is the next file)` : `part 2 of 2: the ${(part.to - part.from) / DEMO_SAMPLE_RATE_HZ} s after the gap`];
       manifestFiles.push({
         file: path,
         format: w.format === 'mseed' ? 'mseed2-steim2' : 'csv',
@@ -140,8 +131,8 @@ export function buildDemoFiles(): DemoFile[] {
         start: formatIsoTimeUs(startUs),
         durationS: (part.to - part.from) / DEMO_SAMPLE_RATE_HZ,
         reason: w.reason,
-        contents: part.note ? [...syn.contents, part.note] : syn.contents,
-        events: syn.events.map(({ event, at }) => ({
+        contents: [...syn.contents, ...partNote],
+        events: events.map(({ event, at }) => ({
           id: event.id,
           type: event.type,
           p: formatIsoTimeUs(at.pArrivalUs),
@@ -150,7 +141,7 @@ export function buildDemoFiles(): DemoFile[] {
         })),
         ...(w.reason === 'history' ? { noiseReason: dismissalReason(syn.noise) } : {}),
       });
-    }
+    });
   }
   files.push({ path: `stationxml/${DEMO_NETWORK}.xml`, bytes: new TextEncoder().encode(demoStationXml(demoStations)) });
 

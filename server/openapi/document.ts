@@ -47,7 +47,7 @@ export function buildOpenApiDocument(version: string): unknown {
     path: '/api/uploads',
     summary: 'Upload waveform windows (MiniSEED 2, MiniSEED 3, CSV)',
     description:
-      'Multipart body with one or more files in the field `files` and, for CSV, a `streamId`. Each file gets its own outcome; ' +
+      'Multipart body with one or more files in the field `files` and, for CSV, a `streamId` (when the file has no `# stream=` line) and a `startTime` (t = 0 of times in seconds, when the file has no `# start=` line). Each file gets its own outcome; ' +
       'a file already uploaded (same sha256) returns its existing items. 201 when any file was created, 200 when all were duplicates, ' +
       'else the most telling refusal (403 > 413 > 422).',
     security: [{ session: [] }, { ingestToken: [] }],

@@ -171,6 +171,20 @@ export const dashboardQuerySchema = z
   .refine((p) => Date.parse(p.from) < Date.parse(p.to), { message: 'from must be before to', path: ['from'] })
   .refine((p) => Date.parse(p.to) - Date.parse(p.from) <= 366 * 86_400_000, { message: 'at most 366 days at a time', path: ['to'] });
 
+/**
+ * The event label a supervisor gives when confirming an escalated item that has none (an
+ * escalation carries a reason, not a label): the QuakeML type and, optionally, certainty,
+ * distance class and a note. Without it such an item would be confirmed as nothing, in neither
+ * the catalogue nor the queue.
+ */
+export const confirmLabelSchema = eventLabelSchema.pick({ eventType: true, certainty: true, distanceClass: true, note: true }).strict();
+
+/** A parsed confirmation label. */
+export type ConfirmLabel = z.infer<typeof confirmLabelSchema>;
+
+/** Body of POST /api/supervisor/inbox/:id/confirm: `label` is required when the item has no event label yet. */
+export const inboxConfirmBodySchema = z.object({ label: confirmLabelSchema.optional() }).strict();
+
 /** Body of POST /api/supervisor/inbox/:id/return. */
 export const inboxReturnBodySchema = z.object({
   comment: z.string().trim().min(3, 'say why you return it (at least 3 characters)').max(2000),

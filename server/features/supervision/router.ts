@@ -7,6 +7,7 @@ import {
   dashboardQuerySchema,
   exportQuerySchema,
   groupLabelBodySchema,
+  inboxConfirmBodySchema,
   inboxReturnBodySchema,
   periodSchema,
   rescoreBodySchema,
@@ -50,7 +51,8 @@ function inScope(ev: CandidateEventView, scope: 'all' | readonly number[]): Cand
 /**
  * The network supervisor's API (issue 7), mounted at /api/supervisor. Every route needs a session
  * (401) and the named permission (403):
- * - inbox (inbox.view): `GET /inbox`; `POST /inbox/:id/read|acknowledge|confirm|return`
+ * - inbox (inbox.view): `GET /inbox`; `POST /inbox/:id/read|acknowledge|return`; `POST /inbox/:id/confirm
+ *   {label?}` (an escalated item without an event label needs `label`: 422 label_required)
  * - review (review.evaluate): `GET /review?station=&type=&analyst=&status=&from=&to=`;
  *   `POST /review/items/:id/status {version,status,comment}`; `POST /review/items/:id/return {version,comment}`
  * - `GET /items/:id/review-note` (queue.view): the supervisor's comment the analyst sees
@@ -88,7 +90,8 @@ export function supervisorRouter(ctx: AppContext): Router {
   });
   router.post('/inbox/:id/confirm', requirePermission('review.evaluate'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
-    await confirmFromInbox(deps(req), person(currentUser(req)), id);
+    const body = parseInput(inboxConfirmBodySchema, req.body ?? {});
+    await confirmFromInbox(deps(req), person(currentUser(req)), id, body.label);
     res.json(await listInbox(db, currentUser(req).id));
   });
   router.post('/inbox/:id/return', requirePermission('review.evaluate'), async (req, res) => {

@@ -10,8 +10,8 @@ import { seedDemo } from '@server/db/seed-demo';
 import { DEMO_WAVEFORMS_DIR } from '@server/demo/generate-waveforms';
 import { encodeDemoMiniSeed } from '@server/demo/encode';
 import { readDemoManifest } from '@server/demo/ingest-demo';
-import { synthesizeWindow } from '@server/demo/synth';
 import { REPLAY_TOKEN_LABEL, ReplayError, parseReplayArgs, replayDemo, shiftWindowFile } from '@server/demo/replay';
+import { synthesizeWindow } from '@server/demo/synth';
 import { decodeWaveform } from '@server/formats/decode';
 import { startServer, type RunningServer } from '@server/index';
 import { createToken } from '@server/features/stations/station-registry';
@@ -21,21 +21,16 @@ const sha = (b: Uint8Array): string => createHash('sha256').update(b).digest('he
 
 describe('shiftWindowFile', () => {
   it('moves every stream of a MiniSEED window (gap kept) to the new start with the same samples and a new hash', () => {
-    // KV06's 18:25 window with its 6 s telemetry gap kept in one file (the demo folder holds its two
-    // continuous parts, as the ingest takes them; a replay source may still hold a gap).
+    // A KV06 window with its 6 s telemetry gap in one file (the demo sends such a window as two files).
     const name = 'XX.KV06.2026-03-14T18-25-00.mseed';
-    const startUs = Date.parse('2026-03-14T18:25:00Z') * 1000;
-    const syn = synthesizeWindow('KV06', startUs, 'gap');
-    const gap = syn.gap ?? { from: 0, to: 0 };
-    expect(gap.to - gap.from).toBe(600);
+    const t0 = Date.UTC(2026, 2, 14, 18, 25) * 1000;
+    const syn = synthesizeWindow('KV06', t0, 'gap');
+    const gap = syn.gap ?? { from: 4800, to: 5400 };
     const bytes = encodeDemoMiniSeed(
-      (['HHZ', 'HHN', 'HHE'] as const).flatMap((channel) => {
-        const base = { network: 'XX', station: 'KV06', location: '00', channel, sampleRateHz: 100 };
-        return [
-          { ...base, startTimeUs: startUs, samples: syn.counts[channel].slice(0, gap.from) },
-          { ...base, startTimeUs: startUs + gap.to * 1e4, samples: syn.counts[channel].slice(gap.to) },
-        ];
-      }),
+      (['HHZ', 'HHN', 'HHE'] as const).flatMap((channel) => [
+        { network: 'XX', station: 'KV06', location: '00', channel, sampleRateHz: 100, startTimeUs: t0, samples: syn.counts[channel].slice(0, gap.from) },
+        { network: 'XX', station: 'KV06', location: '00', channel, sampleRateHz: 100, startTimeUs: t0 + gap.to * 10_000, samples: syn.counts[channel].slice(gap.to) },
+      ]),
     );
     const start = Date.UTC(2026, 11, 1, 22, 0, 0) * 1000;
     const out = shiftWindowFile(bytes, name, start);

@@ -2,7 +2,7 @@ import { queryOptions } from '@tanstack/react-query';
 import { z } from 'zod';
 import { apiErrorBodySchema } from '@shared/api-error';
 import { latestWindowsSchema } from '@shared/schemas/data-period';
-import { evaluationSchema, reviewRowSchema, type ThresholdValues } from '@shared/schemas/supervisor';
+import { evaluationSchema, reviewRowSchema, type confirmLabelSchema, type ThresholdValues } from '@shared/schemas/supervisor';
 
 /**
  * The supervisor screens' calls to /api/supervisor (server/features/supervision/router.ts), each with
@@ -65,6 +65,8 @@ export const inboxEntrySchema = z.object({
   resolvedAt: z.string().nullable(),
   itemState: z.string(),
   itemVersion: z.number(),
+  /** The item's event type, or null when it has no event label (confirming it then needs one). */
+  itemLabelType: z.string().nullable(),
   mailError: z.string().nullable(),
 });
 /** One inbox entry. */
@@ -74,10 +76,17 @@ const inboxSchema = z.object({ entries: z.array(inboxEntrySchema), unread: z.num
 /** The signed-in supervisor's inbox. */
 export const inboxQuery = () => queryOptions({ queryKey: ['supervisor', 'inbox'], queryFn: () => fetchJson(inboxSchema, '/api/supervisor/inbox') });
 
-/** An inbox action: read, acknowledge, confirm, or return with a comment. */
-export function inboxAction(id: number, action: 'read' | 'acknowledge' | 'confirm' | 'return', comment?: string) {
-  return fetchJson(inboxSchema, `/api/supervisor/inbox/${id}/${action}`, { method: 'POST', body: action === 'return' ? { comment } : {} });
+/**
+ * An inbox action: read, acknowledge, confirm (with `label` when the item has no event label yet),
+ * or return with a comment.
+ */
+export function inboxAction(id: number, action: 'read' | 'acknowledge' | 'confirm' | 'return', extra: { comment?: string; label?: ConfirmLabelInput } = {}) {
+  const body = action === 'return' ? { comment: extra.comment } : action === 'confirm' && extra.label ? { label: extra.label } : {};
+  return fetchJson(inboxSchema, `/api/supervisor/inbox/${id}/${action}`, { method: 'POST', body });
 }
+
+/** The label a supervisor gives when confirming an escalation that has none. */
+export type ConfirmLabelInput = z.input<typeof confirmLabelSchema>;
 
 // Review.
 
