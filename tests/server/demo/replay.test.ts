@@ -8,8 +8,8 @@ import { ingestTokens, stations } from '@server/db/schema/stations';
 import { uploads, windows } from '@server/db/schema/uploads';
 import { seedDemo } from '@server/db/seed-demo';
 import { DEMO_WAVEFORMS_DIR } from '@server/demo/generate-waveforms';
-import { readDemoManifest } from '@server/demo/ingest-demo';
 import { encodeDemoMiniSeed } from '@server/demo/encode';
+import { readDemoManifest } from '@server/demo/ingest-demo';
 import { REPLAY_TOKEN_LABEL, ReplayError, parseReplayArgs, replayDemo, shiftWindowFile } from '@server/demo/replay';
 import { synthesizeWindow } from '@server/demo/synth';
 import { decodeWaveform } from '@server/formats/decode';
@@ -122,11 +122,13 @@ describe('replayDemo against a running server (POST /api/uploads with ingest tok
     // A small demo folder of two KV03 windows, so that two passes stay quick.
     const dir = mkdtempSync(join(tmpdir(), 'seisift-replay-'));
     const manifest = readDemoManifest();
-    const two = manifest.files.filter((f) => f.station === 'KV03').slice(0, 2);
-    mkdirSync(join(dir, 'mseed'));
-    mkdirSync(join(dir, 'csv'));
-    for (const f of two) copyFileSync(join(DEMO_WAVEFORMS_DIR, f.file), join(dir, f.file));
-    writeFileSync(join(dir, 'manifest.json'), JSON.stringify({ files: two }));
+    const two = manifest.files.filter((f) => f.station === 'KV03' && f.reason !== 'history').slice(0, 2);
+    // And one of the station's history windows, which a replay does not send (the seed dismisses them).
+    const history = manifest.files.filter((f) => f.station === 'KV03' && f.reason === 'history').slice(0, 1);
+    expect(history).toHaveLength(1);
+    for (const sub of ['mseed', 'csv', 'history']) mkdirSync(join(dir, sub));
+    for (const f of [...history, ...two]) copyFileSync(join(DEMO_WAVEFORMS_DIR, f.file), join(dir, f.file));
+    writeFileSync(join(dir, 'manifest.json'), JSON.stringify({ files: [...history, ...two] }));
     const waits: number[] = [];
     const started = Date.now();
     const report = await replayDemo({
