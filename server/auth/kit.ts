@@ -8,7 +8,9 @@ export type AuthKit = { sessions: SessionStore; limiters: AuthLimiters };
 /** Builds the auth kit for one app instance from the context's database and settings. */
 export function createAuthKit(ctx: AppContext): AuthKit {
   return {
-    sessions: createSessionStore(ctx.database.db, { idleHours: ctx.env.SEISIFT_SESSION_IDLE_HOURS }),
+    // Whenever sessions end (sign-out, deactivation, role change, password change), open live
+    // sockets are re-checked at once and closed when theirs was among them.
+    sessions: createSessionStore(ctx.database.db, { idleHours: ctx.env.SEISIFT_SESSION_IDLE_HOURS, onEnded: () => void ctx.hub.recheckNow() }),
     limiters: createAuthLimiters({
       perAccount: ctx.env.SEISIFT_SIGNIN_MAX_PER_ACCOUNT,
       perAddress: ctx.env.SEISIFT_SIGNIN_MAX_PER_ADDRESS,

@@ -6,7 +6,7 @@ import { inboxEntries, itemReviews } from '../db/schema/supervisor';
 import { users } from '../db/schema/users';
 import { conflict, notFound } from '../errors';
 import { loadQueueRow } from '../presenters/queue-item';
-import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { itemAudience, recordChange, type DbOrTx } from '../realtime/change-log';
 import { recordAudit } from './audit';
 
 /**
@@ -59,7 +59,7 @@ export async function unreadCount(db: DbOrTx, userId: string): Promise<number> {
 
 /** Records an `inbox` change for `userId`'s entry (last write of the transaction). */
 export async function recordInboxChange(tx: DbOrTx, entryId: number, userId: string, kind: 'created' | 'updated'): Promise<void> {
-  await recordChange(tx, { resource: 'inbox', resourceId: entryId, kind, version: 1, summary: { userId, unread: await unreadCount(tx, userId) } });
+  await recordChange(tx, { resource: 'inbox', resourceId: entryId, kind, version: 1, summary: { userId, unread: await unreadCount(tx, userId) }, audience: { action: 'inbox.view', userId } });
 }
 
 /** A supervisor's inbox, newest first (at most `limit`), with the unread count. */
@@ -139,7 +139,7 @@ export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: num
   const now = new Date();
   const from = outcome === 'confirmed' ? ['escalated', 'labelled'] : ['escalated', 'labelled', 'confirmed'];
   await deps.db.transaction(async (tx) => {
-    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
+    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version, stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
     if (!item) throw notFound(`Queue item ${itemId}`);
     if (version !== null && item.version !== version) throw conflict(`Item ${itemId} changed since you loaded it (version ${version}, now ${item.version}); reload it.`);
     if (!from.includes(item.state)) throw conflict(`Item ${itemId} is ${item.state}; you can ${outcome === 'confirmed' ? 'confirm' : 'return'} it only when it is ${from.join(' or ')}.`);
@@ -178,7 +178,7 @@ export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: num
     }
     const row = await loadQueueRow(tx, eq(queueItems.id, itemId));
     for (const o of open) await recordInboxChange(tx, o.id, o.userId, 'updated');
-    await recordChange(tx, { resource: 'item', resourceId: itemId, kind: 'updated', version: item.version + 1, summary: row ?? undefined });
+    await recordChange(tx, { resource: 'item', resourceId: itemId, kind: 'updated', version: item.version + 1, summary: row ?? undefined, audience: itemAudience(item.stationId) });
   });
   deps.notify?.();
 }

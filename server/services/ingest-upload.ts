@@ -21,7 +21,7 @@ import { isDatabaseDown } from '../middleware/error-handler';
 import { presentQueueRow } from '../presenters/queue-item';
 import { itemArrivals } from '../db/schema/supervisor';
 import type { AuthUser, IngestPrincipal } from '../middleware/auth';
-import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { itemAudience, recordChange, type DbOrTx } from '../realtime/change-log';
 import { firstTriggerMs, regroupArrivals } from './candidate-events';
 import { decodeStoredSamples, encodeSamples } from './samples-codec';
 import { stationBaseline } from './station-baseline';
@@ -514,6 +514,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
           candidateEventId: null,
           candidateStationCount: null,
         }),
+        audience: itemAudience(c.w.station.id),
       });
     }
     if (deps.beforeCommit) await deps.beforeCommit(tx, { filename, uploadId: up.id, itemIds: created.map((c) => c.itemId) });

@@ -9,7 +9,7 @@ import { users } from '../db/schema/users';
 import { conflict, notFound } from '../errors';
 import { loadQueueRow } from '../presenters/queue-item';
 import { recordAudit } from './audit';
-import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { itemAudience, recordChange, type DbOrTx } from '../realtime/change-log';
 
 /**
  * The life of a queue item (issue 6): every change is one transaction that
@@ -97,7 +97,7 @@ async function transition(deps: QueueServiceDeps, spec: TransitionSpec): Promise
     });
     const fresh = await loadQueueRow(tx, eq(queueItems.id, spec.itemId));
     if (!fresh) throw notFound(`Queue item ${spec.itemId}`);
-    await recordChange(tx, { resource: 'item', resourceId: spec.itemId, kind: 'updated', version: fresh.version, summary: fresh });
+    await recordChange(tx, { resource: 'item', resourceId: spec.itemId, kind: 'updated', version: fresh.version, summary: fresh, audience: itemAudience(fresh.stationId) });
     return fresh;
   });
   deps.notify?.();

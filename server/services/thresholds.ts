@@ -9,7 +9,7 @@ import { itemReviews } from '../db/schema/supervisor';
 import { windows } from '../db/schema/uploads';
 import { notFound, tooLarge, unprocessable } from '../errors';
 import { loadQueueRow } from '../presenters/queue-item';
-import { recordChange, type DbOrTx } from '../realtime/change-log';
+import { itemAudience, recordChange, type DbOrTx } from '../realtime/change-log';
 import { recordAudit } from './audit';
 import { stationBaseline } from './station-baseline';
 import type { Evaluation, ThresholdValues } from '../../shared/schemas/supervisor';
@@ -443,7 +443,7 @@ export async function rescorePeriod(deps: ThresholdDeps, actor: ThresholdActor, 
     });
     for (const c of changes) {
       const fresh = await loadQueueRow(tx, eq(queueItems.id, c.id));
-      await recordChange(tx, { resource: 'item', resourceId: c.id, kind: 'updated', version: c.version, summary: fresh ?? undefined });
+      await recordChange(tx, { resource: 'item', resourceId: c.id, kind: 'updated', version: c.version, summary: fresh ?? undefined, audience: itemAudience(stationId) });
     }
   });
   deps.notify?.();
