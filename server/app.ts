@@ -32,7 +32,9 @@ export const clientDistDir = fileURLToPath(new URL('../dist/client', import.meta
 export function createApp(ctx: AppContext, opts: { serveClient?: boolean; uploads?: UploadsRouterOptions } = {}): Express {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // X-Forwarded-* are believed only from the proxies TRUST_PROXY names (default none): otherwise
+  // any client could choose its own address for the sign-in limits and the audit log.
+  app.set('trust proxy', ctx.env.TRUST_PROXY.length > 0 ? ctx.env.TRUST_PROXY : false);
   app.use(
     pinoHttp({
       logger: ctx.logger,

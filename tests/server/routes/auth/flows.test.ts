@@ -43,11 +43,6 @@ describe('sign-in and sessions', () => {
     expect(await auditActions(w)).toContain('auth.sign_in');
   });
 
-  it('marks the cookie Secure when the request came over https (X-Forwarded-Proto from the loopback proxy)', async () => {
-    const res = await call(w, 'POST', '/api/auth/sign-in').set('X-Forwarded-Proto', 'https').set('Origin', 'https://seisift.test').send({ email: 'analyst@kestrel.example', password: demoPassword });
-    expect(res.status).toBe(200);
-    expect(String(res.headers['set-cookie'])).toMatch(/Secure/);
-  });
 
   it('answers an unknown e-mail and a wrong password with the same generic error, and audits both', async () => {
     const unknown = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'nobody@kestrel.example', password: demoPassword });
@@ -200,6 +195,45 @@ describe('CSRF: Origin / Referer check on state-changing requests (OWASP CSRF Pr
   it('lets a script with a bearer token and no cookie through to authentication (401 here: no ingest tokens yet)', async () => {
     const res = await call(w, 'POST', '/api/auth/sign-out').unset('Origin').set('Authorization', 'Bearer abc');
     expect(res.status).toBe(401);
+  });
+});
+
+describe('X-Forwarded-For and -Proto are believed only from the proxies TRUST_PROXY names (default none)', () => {
+  const worlds: World[] = [];
+  afterAll(async () => {
+    for (const w of worlds) await w.close();
+  });
+  /** Signs in through a claimed proxy chain; returns the address the audit row recorded and whether the cookie is Secure. */
+  async function signInVia(w: World, forwardedFor: string) {
+    const email = 'analyst@kestrel.example';
+    const res = await call(w, 'POST', '/api/auth/sign-in').set('X-Forwarded-For', forwardedFor).set('X-Forwarded-Proto', 'https').set('Origin', 'https://seisift.test').send({ email, password: demoPassword });
+    expect(res.status).toBe(200);
+    const rows = await w.ctx.database.db.select().from(auditLog).where(eq(auditLog.action, 'auth.sign_in'));
+    return { ip: rows[rows.length - 1]?.ipAddress, secure: /Secure/.test(String(res.headers['set-cookie'])) };
+  }
+
+  it('by default ignores them: the address is the socket peer (loopback here) and the cookie is not Secure', async () => {
+    const w = await createWorld();
+    worlds.push(w);
+    const seen = await signInVia(w, '203.0.113.7');
+    expect(seen.ip).toMatch(/^(::ffff:)?127\.0\.0\.1$|^::1$/);
+    expect(seen.secure).toBe(false);
+  });
+
+  it('TRUST_PROXY=loopback: a proxy on this machine speaks for the client (its address, https)', async () => {
+    const w = await createWorld({ TRUST_PROXY: 'loopback' });
+    worlds.push(w);
+    const seen = await signInVia(w, '203.0.113.7');
+    expect(seen.ip).toBe('203.0.113.7');
+    expect(seen.secure).toBe(true);
+  });
+
+  it('TRUST_PROXY naming another address: the loopback peer is not that proxy, so its headers are ignored', async () => {
+    const w = await createWorld({ TRUST_PROXY: '10.1.2.3, 192.168.0.0/16' });
+    worlds.push(w);
+    const seen = await signInVia(w, '203.0.113.7');
+    expect(seen.ip).not.toBe('203.0.113.7');
+    expect(seen.secure).toBe(false);
   });
 });
 
