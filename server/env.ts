@@ -16,6 +16,13 @@ const positiveInt = (fallback: number) =>
     .refine((v) => /^\d+$/.test(v) && Number(v) > 0, 'must be a positive whole number')
     .transform(Number);
 
+const nonNegativeInt = (fallback: number) =>
+  z
+    .string()
+    .default(String(fallback))
+    .refine((v) => /^\d+$/.test(v), 'must be a whole number ≥ 0')
+    .transform(Number);
+
 /** Express's names for address ranges (proxy-addr): 127.0.0.0/8 and ::1, 169.254/16 and fe80::/10, 10/8 172.16/12 192.168/16 and fc00::/7. */
 const PROXY_RANGE_NAMES = ['loopback', 'linklocal', 'uniquelocal'];
 
@@ -74,10 +81,19 @@ export const envSchema = z.object({
   SEISIFT_SESSION_IDLE_HOURS: positiveInt(24),
   /** A claimed queue item goes back to `new` after this many minutes without activity by its analyst. */
   SEISIFT_CLAIM_IDLE_MINUTES: positiveInt(15),
-  /** Failed sign-ins allowed per account within SEISIFT_SIGNIN_WINDOW_S before 429. */
-  SEISIFT_SIGNIN_MAX_PER_ACCOUNT: positiveInt(10),
+  /**
+   * Failed sign-ins allowed for one account from one client address within SEISIFT_SIGNIN_WINDOW_S
+   * before that address gets 429 for that account (the owner elsewhere is not refused).
+   */
+  SEISIFT_SIGNIN_MAX_PER_ACCOUNT_ADDRESS: positiveInt(10),
   /** Sign-in attempts allowed per client address within SEISIFT_SIGNIN_WINDOW_S before 429. */
   SEISIFT_SIGNIN_MAX_PER_ADDRESS: positiveInt(50),
+  /** Failed sign-ins of one account (any address) within the window before attempts on it are slowed down. */
+  SEISIFT_SIGNIN_SLOWDOWN_AFTER: nonNegativeInt(3),
+  /** First slow-down delay, ms; it doubles with each further failure. */
+  SEISIFT_SIGNIN_DELAY_MS: positiveInt(500),
+  /** Longest slow-down delay, ms. */
+  SEISIFT_SIGNIN_MAX_DELAY_MS: positiveInt(8000),
   /** Length of the sign-in rate-limit window, seconds. */
   SEISIFT_SIGNIN_WINDOW_S: positiveInt(900),
   /** Worker threads of the analysis pool (default: one per core, `max(1, availableParallelism())`). */

@@ -237,30 +237,65 @@ describe('X-Forwarded-For and -Proto are believed only from the proxies TRUST_PR
   });
 });
 
-describe('rate limiting of sign-in (rate-limiter-flexible): 429 with Retry-After', () => {
+describe('sign-in throttling (OWASP Authentication Cheat Sheet, "Login Throttling"; rate-limiter-flexible)', () => {
   let w: World;
   beforeAll(async () => {
-    w = await createWorld({ SEISIFT_SIGNIN_MAX_PER_ACCOUNT: '3', SEISIFT_SIGNIN_MAX_PER_ADDRESS: '8', SEISIFT_SIGNIN_WINDOW_S: '600' });
+    // A proxy on loopback speaks for the client, so each request can come "from" its own address.
+    w = await createWorld({
+      TRUST_PROXY: 'loopback',
+      SEISIFT_SIGNIN_MAX_PER_ACCOUNT_ADDRESS: '3',
+      SEISIFT_SIGNIN_MAX_PER_ADDRESS: '8',
+      SEISIFT_SIGNIN_WINDOW_S: '600',
+      SEISIFT_SIGNIN_SLOWDOWN_AFTER: '2',
+      SEISIFT_SIGNIN_DELAY_MS: '150',
+      SEISIFT_SIGNIN_MAX_DELAY_MS: '600',
+    });
   });
   afterAll(async () => {
     await w.close();
   });
+  const signIn = (email: string, password: string, from: string) => call(w, 'POST', '/api/auth/sign-in').set('X-Forwarded-For', from).send({ email, password });
 
-  it('limits failed attempts per account, even with the right password afterwards', async () => {
-    for (let i = 0; i < 3; i++) expect((await call(w, 'POST', '/api/auth/sign-in').send({ email: 'operator@kestrel.example', password: `wrong-${i}` })).status).toBe(401);
-    const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'operator@kestrel.example', password: demoPassword });
+  it('refuses the account from the address that guessed wrong (429, even with the right password), while the owner elsewhere signs in', async () => {
+    const u = await w.freshUser(['operator']);
+    for (let i = 0; i < 3; i++) expect((await signIn(u.email, `wrong-${i}`, '198.51.100.1')).status).toBe(401);
+    const res = await signIn(u.email, u.password, '198.51.100.1');
     expect(res.status).toBe(429);
     expect(res.body.error.code).toBe('rate_limited');
     const retry = Number(res.headers['retry-after']);
     expect(retry).toBeGreaterThan(0);
     expect(retry).toBeLessThanOrEqual(600);
+    // The owner, from another address, is not refused (only slowed down).
+    const owner = await signIn(u.email, u.password, '198.51.100.2');
+    expect(owner.status).toBe(200);
+    expect(sessionCookieFrom(owner)).not.toBeNull();
+  });
+
+  it('slows down every attempt on an account after its free failures, from any address, doubling to the cap; never refuses the owner', async () => {
+    const u = await w.freshUser(['analyst']);
+    const elapsed: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      const t0 = performance.now();
+      // Each guess from a fresh address: neither the address nor the account-and-address limit applies.
+      expect((await signIn(u.email, `wrong-${i}`, `203.0.113.${10 + i}`)).status).toBe(401);
+      elapsed.push(performance.now() - t0);
+    }
+    const rows = await w.ctx.database.db.select().from(auditLog).where(eq(auditLog.action, 'auth.sign_in_failed'));
+    const delays = rows.filter((r) => r.targetId === u.id).map((r) => (r.details as { delayMs: number }).delayMs);
+    // 2 free failures, then 150 · 2^k ms capped at 600 ms (progressiveDelayMs).
+    expect(delays).toEqual([0, 0, 150, 300, 600, 600]);
+    delays.forEach((d, i) => expect(elapsed[i]).toBeGreaterThanOrEqual(d - 5));
+    const t0 = performance.now();
+    const owner = await signIn(u.email, u.password, '203.0.113.99');
+    expect(owner.status).toBe(200);
+    expect(performance.now() - t0).toBeGreaterThanOrEqual(595);
   });
 
   it('limits every attempt per address, whichever account is tried', async () => {
     let last = 0;
     let sawLimit = false;
     for (let i = 0; i < 10; i++) {
-      const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: `someone-${i}@kestrel.example`, password: 'whatever-it-is' });
+      const res = await signIn(`someone-${i}@kestrel.example`, 'whatever-it-is', '192.0.2.50');
       last = res.status;
       if (res.status === 429) {
         sawLimit = true;
@@ -270,6 +305,8 @@ describe('rate limiting of sign-in (rate-limiter-flexible): 429 with Retry-After
     }
     expect(sawLimit).toBe(true);
     expect(last).toBe(429);
+    // Another address is not affected.
+    expect((await signIn('analyst@kestrel.example', demoPassword, '192.0.2.51')).status).toBe(200);
   });
 });
 
