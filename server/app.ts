@@ -8,6 +8,7 @@ import type { AppContext } from './context';
 import { authenticate } from './middleware/auth';
 import { csrfProtection } from './middleware/csrf';
 import { apiNotFound, errorHandler } from './middleware/error-handler';
+import { securityHeaders } from './middleware/security-headers';
 import { accountRouter } from './routes/account/router';
 import { adminRouter } from './routes/admin/router';
 import { auditRouter } from './routes/audit/router';
@@ -32,6 +33,7 @@ export const clientDistDir = fileURLToPath(new URL('../dist/client', import.meta
 export function createApp(ctx: AppContext, opts: { serveClient?: boolean; uploads?: UploadsRouterOptions } = {}): Express {
   const app = express();
   app.disable('x-powered-by');
+  app.use(securityHeaders(clientDistDir));
   // X-Forwarded-* are believed only from the proxies TRUST_PROXY names (default none): otherwise
   // any client could choose its own address for the sign-in limits and the audit log.
   app.set('trust proxy', ctx.env.TRUST_PROXY.length > 0 ? ctx.env.TRUST_PROXY : false);
