@@ -311,6 +311,16 @@ export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: Ing
   }
 }
 
+/**
+ * The one refusal for a station the caller may not upload for, registered or not: uploaders are
+ * limited to their own stations (operators) or one station (ingest tokens), so telling an
+ * unregistered station from someone else's would reveal which stations exist. 403 either way.
+ */
+function stationRefusal(caller: IngestCaller, filename: string, streamId: string, key: string): FileRefused {
+  const why = caller.kind === 'ingest' ? `station ${key} is not this ingest token's station` : `station ${key} is not registered or is not one of your stations`;
+  return new FileRefused(403, 'forbidden', `${filename}: stream ${streamId}: ${why}`);
+}
+
 async function existingOutcome(db: Database, file: IngestFile, caller: IngestCaller): Promise<UploadOutcome | null> {
   const sha = sha256Hex(file.bytes);
   const [existing] = await db.select({ id: uploads.id, stationId: uploads.stationId, filename: uploads.filename }).from(uploads).where(eq(uploads.sha256, sha));
@@ -319,11 +329,9 @@ async function existingOutcome(db: Database, file: IngestFile, caller: IngestCal
   const stationIds = new Set<number>([existing.stationId]);
   const stationRows = await db.select({ stationId: windows.stationId }).from(windows).where(eq(windows.uploadId, existing.id));
   for (const r of stationRows) stationIds.add(r.stationId);
-  for (const id of stationIds) {
-    if (!mayUpload(caller, id)) {
-      throw new FileRefused(403, 'forbidden', `${file.filename}: this file was already uploaded for a station you may not upload for`);
-    }
-  }
+  // Bytes already stored for a station the caller may not upload for are not theirs to hear of:
+  // the file goes the ordinary way and is refused as any file for that station is (stationRefusal).
+  for (const id of stationIds) if (!mayUpload(caller, id)) return null;
   return {
     filename: file.filename,
     status: 'duplicate',
@@ -360,11 +368,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   for (const [key, list] of groups) {
     const first = list[0] as DecodedStream;
     const station = registry.get(key);
-    if (!station) throw new FileRefused(422, 'unknown_station', `${filename}: stream ${first.id}: station ${key} is not registered (register it, or import its StationXML, first)`);
-    if (!mayUpload(caller, station.id)) {
-      const why = caller.kind === 'ingest' ? `this ingest token is for another station` : `station ${key} is not one of your stations`;
-      throw new FileRefused(403, 'forbidden', `${filename}: stream ${first.id}: ${why}`);
-    }
+    if (!station || !mayUpload(caller, station.id)) throw stationRefusal(caller, filename, first.id, key);
   }
 
   // Analyse each station window in the pool (before any transaction opens).

@@ -19,7 +19,8 @@ import type { AppContext } from '../../context';
 import { queueItems } from '../../db/schema/queue-items';
 import { clientAddress, currentUser, requireUser, type AuthUser } from '../../middleware/auth';
 import { parseInput } from '../../middleware/validate';
-import { authorize, authorizedStations, requirePermission } from '../../policies/authorize';
+import { authorizedStations, requirePermission } from '../../policies/authorize';
+import { can } from '../../../shared/auth/policies';
 import { recordAudit } from '../../services/audit';
 import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '../../services/candidate-events';
 import { buildCatalogueCsv } from '../../services/catalogue-csv';
@@ -118,8 +119,8 @@ export function supervisorRouter(ctx: AppContext): Router {
   router.get('/items/:id/review-note', requirePermission('queue.view'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
     const [row] = await db.select({ stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, id));
-    if (!row) throw notFound(`Queue item ${id}`);
-    authorize(currentUser(req), 'queue.view', { stationId: row.stationId });
+    // Out of scope answers as missing does (as GET /api/queue/items/:id), so no id tells whether it exists.
+    if (!row || !can(currentUser(req), 'queue.view', { stationId: row.stationId })) throw notFound(`Queue item ${id}`);
     res.json({ note: await reviewNote(db, id) });
   });
 
