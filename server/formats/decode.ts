@@ -2,6 +2,7 @@ import { decodeCsv } from './csv';
 import { decodeMiniSeed2, looksLikeMiniSeed2 } from './mseed2';
 import { decodeMiniSeed3, looksLikeMiniSeed3 } from './mseed3';
 import { WaveformParseError, type DecodedStream } from './types';
+import { clipInput, MAX_QUOTED_CHARS } from '../../shared/quote-input';
 
 /** Options for {@link decodeWaveform}. */
 export interface DecodeOptions {
@@ -29,7 +30,7 @@ export interface DecodeOptions {
  *   truncated record, impossible header values, CRC mismatch, bad CSV cell, …)
  */
 export function decodeWaveform(bytes: Uint8Array, opts: DecodeOptions = {}): DecodedStream[] {
-  const name = opts.filename ? `${opts.filename}: ` : '';
+  const name = opts.filename ? `${clipInput(opts.filename, MAX_QUOTED_CHARS, 12)}: ` : '';
   try {
     const streams = dispatch(bytes, opts);
     if (streams.length === 0) throw new WaveformParseError('the file holds no samples (only empty records)');

@@ -4,6 +4,7 @@ import { mergeRecords, type DecodedRecord } from './merge-records';
 import { decodeSamples, SEED_ENCODINGS } from './mseed2';
 import { seedTimeToUs } from './seed-time';
 import { WaveformParseError, type DecodedStream } from './types';
+import { quoteInput } from '../../shared/quote-input';
 
 /** Fixed header length of a miniSEED 3 record, bytes (FDSN miniSEED 3 specification, 2022). */
 export const MS3_FIXED_HEADER_LENGTH = 40;
@@ -22,17 +23,17 @@ export function looksLikeMiniSeed3(bytes: Uint8Array): boolean {
  */
 export function parseSourceId(sid: string, where: string): { network: string; station: string; location: string; channel: string } {
   if (!sid.startsWith('FDSN:')) {
-    throw new WaveformParseError(`${where}: source identifier '${sid}' is not an FDSN source identifier (FDSN:NET_STA_LOC_B_S_SS)`);
+    throw new WaveformParseError(`${where}: source identifier ${quoteInput(sid)} is not an FDSN source identifier (FDSN:NET_STA_LOC_B_S_SS)`);
   }
   const parts = sid.slice(5).split('_');
   if (parts.length !== 6) {
     throw new WaveformParseError(
-      `${where}: source identifier '${sid}' has ${parts.length} '_'-separated parts; FDSN:NET_STA_LOC_B_S_SS has 6`,
+      `${where}: source identifier ${quoteInput(sid)} has ${parts.length} '_'-separated parts; FDSN:NET_STA_LOC_B_S_SS has 6`,
     );
   }
   const [network = '', station = '', location = '', band = '', source = '', subsource = ''] = parts;
   if (network === '' || station === '' || source === '') {
-    throw new WaveformParseError(`${where}: source identifier '${sid}' lacks a network, station or source code`);
+    throw new WaveformParseError(`${where}: source identifier ${quoteInput(sid)} lacks a network, station or source code`);
   }
   return { network, station, location, channel: `${band}${source}${subsource}` };
 }

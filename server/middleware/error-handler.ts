@@ -1,6 +1,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { MulterError } from 'multer';
 import type { ApiErrorBody } from '../../shared/api-error';
+import { clipInput } from '../../shared/quote-input';
 import { AppError } from '../errors';
 import type { Logger } from '../logger';
 
@@ -71,5 +72,5 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
 
 /** 404 in the API shape for unknown /api routes. */
 export const apiNotFound: RequestHandler = (req, _res, next) => {
-  next(new AppError(404, 'not_found', `No API route ${req.method} ${req.originalUrl.split("?")[0]}`));
+  next(new AppError(404, 'not_found', `No API route ${req.method} ${clipInput(req.originalUrl.split('?')[0] ?? '')}`));
 };

@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { can } from '../../shared/auth/policies';
+import { capMessage, clipInput, MAX_QUOTED_CHARS } from '../../shared/quote-input';
 import { flagSchema } from '../../shared/schemas/flags';
 import { channelResponseSchema } from '../../shared/schemas/station';
 import type { UploadOutcome } from '../../shared/schemas/upload';
@@ -102,6 +103,9 @@ class FileRefused extends Error {
     super(message);
   }
 }
+
+/** A file name as messages show it: at most MAX_QUOTED_CHARS characters, its extension kept. */
+const shownName = (filename: string) => clipInput(filename, MAX_QUOTED_CHARS, 12);
 
 /** SHA-256 of the bytes, hex. */
 export function sha256Hex(bytes: Uint8Array): string {
@@ -307,7 +311,7 @@ export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: Ing
     // files committed before this one are found again by sha256 when the client retries.
     if (isDatabaseDown(err)) throw err;
     deps.logger.error({ err, filename }, 'upload: ingest failed');
-    return { filename, status: 'rejected', httpStatus: 500, code: 'internal_error', message: `${filename}: the file could not be stored because of a server error; nothing was saved` };
+    return { filename, status: 'rejected', httpStatus: 500, code: 'internal_error', message: `${shownName(filename)}: the file could not be stored because of a server error; nothing was saved` };
   }
 }
 
@@ -318,7 +322,7 @@ export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: Ing
  */
 function stationRefusal(caller: IngestCaller, filename: string, streamId: string, key: string): FileRefused {
   const why = caller.kind === 'ingest' ? `station ${key} is not this ingest token's station` : `station ${key} is not registered or is not one of your stations`;
-  return new FileRefused(403, 'forbidden', `${filename}: stream ${streamId}: ${why}`);
+  return new FileRefused(403, 'forbidden', `${shownName(filename)}: stream ${streamId}: ${why}`);
 }
 
 async function existingOutcome(db: Database, file: IngestFile, caller: IngestCaller): Promise<UploadOutcome | null> {
@@ -336,7 +340,7 @@ async function existingOutcome(db: Database, file: IngestFile, caller: IngestCal
     filename: file.filename,
     status: 'duplicate',
     httpStatus: 200,
-    message: `${file.filename}: the same file (sha256 ${sha.slice(0, 12)}…) was already uploaded as "${existing.filename}"; its existing item is returned`,
+    message: `${shownName(file.filename)}: the same file (sha256 ${sha.slice(0, 12)}…) was already uploaded as "${shownName(existing.filename)}"; its existing item is returned`,
     uploadId: existing.id,
     itemIds: items.map((i) => i.id),
     items,
@@ -352,7 +356,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   try {
     streams = decodeWaveform(file.bytes, { filename, ...(opts.streamId ? { streamId: opts.streamId } : {}) });
   } catch (err) {
-    if (err instanceof WaveformParseError) throw new FileRefused(422, 'unprocessable', err.message);
+    if (err instanceof WaveformParseError) throw new FileRefused(422, 'unprocessable', capMessage(err.message));
     throw err;
   }
 
@@ -386,7 +390,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
       analysis = await deps.pool.run(toWorker, station.profile, options);
     } catch (err) {
       const msg = err instanceof Error ? err.message : String(err);
-      throw new FileRefused(422, 'unprocessable', `${filename}: station ${key}: analysis refused: ${msg}`);
+      throw new FileRefused(422, 'unprocessable', `${shownName(filename)}: station ${key}: analysis refused: ${capMessage(msg)}`);
     }
     analysed.push({ station, streams: stored, analysis });
   }

@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { can, stationScope, type PolicyActor } from '../../shared/auth/policies';
+import { capMessage } from '../../shared/quote-input';
 import { channelCodeSchema, locationCodeSchema, networkCodeSchema, profileNyquistIssues, stationCodeSchema } from '../../shared/schemas/station';
 import { processingProfileSchema } from '../../shared/schemas/processing-profile';
 import type { Database } from '../db/client';
@@ -134,7 +135,7 @@ export async function previewStationXml(db: Database, xml: string, actor: Policy
   try {
     doc = parseStationXml(xml);
   } catch (err) {
-    if (err instanceof StationXmlParseError) throw unprocessable(err.message);
+    if (err instanceof StationXmlParseError) throw unprocessable(capMessage(err.message));
     throw err;
   }
   const nowUs = now.getTime() * 1000;
