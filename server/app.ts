@@ -58,7 +58,7 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api/audit', auditRouter(ctx));
   // Escalations reach every supervisor by e-mail and in the inbox (issue 7).
   const onEscalation = escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify: () => ctx.hub.notify(), publicUrl: publicBaseUrl(ctx.env) });
-  app.use('/api/queue', queueRouter(ctx, { escalationListeners: [onEscalation] }));
+  app.use('/api/queue', queueRouter(ctx, { escalationListeners: [onEscalation], ...(opts.uploads?.pool ? { pool: opts.uploads.pool } : {}) }));
   app.use('/api/supervisor', supervisorRouter(ctx));
   app.use('/api/stations', stationsRouter(ctx));
   app.use('/api/uploads', uploadsRouter(ctx, opts.uploads));

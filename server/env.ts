@@ -77,6 +77,10 @@ export const envSchema = z.object({
   SEISIFT_MAX_UPLOAD_BYTES: positiveInt(25 * 1024 * 1024),
   /** Most files in one upload request. */
   SEISIFT_MAX_UPLOAD_FILES: positiveInt(20),
+  /** Most samples per channel in one uploaded window (default 1 h at 200 sps); more is refused with 413. */
+  SEISIFT_MAX_WINDOW_SAMPLES: positiveInt(720_000),
+  /** Longest span of one uploaded window, s (default 1 h); longer is refused with 413. */
+  SEISIFT_MAX_WINDOW_S: positiveInt(3600),
   /** Sessions end after this many hours without a request (sliding expiry). */
   SEISIFT_SESSION_IDLE_HOURS: positiveInt(24),
   /** A claimed queue item goes back to `new` after this many minutes without activity by its analyst. */

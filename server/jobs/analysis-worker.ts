@@ -1,6 +1,11 @@
-import type { DecodedStream } from '../formats/types';
+import { move, transferableSymbol, valueSymbol } from 'piscina';
+import { capMessage, clipInput, MAX_QUOTED_CHARS } from '../../shared/quote-input';
+import { decodeWaveform, type DecodeOptions } from '../formats/decode';
+import { WaveformParseError, type DecodedStream } from '../formats/types';
 import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
 import { analyzeWindow, type AnalysisResult, type AnalyzeOptions } from '../dsp/pipeline';
+import { computeTraces, type TracesInput } from '../services/queue-traces';
+import { windowLimitProblem, type WindowLimits } from '../services/window-limits';
 
 /** One task for the analysis worker: the arguments of `analyzeWindow`, sent by the pool. */
 export interface AnalysisTask {
@@ -9,10 +14,69 @@ export interface AnalysisTask {
   opts: AnalyzeOptions;
 }
 
+/** A decode task: an uploaded file's bytes (a copy), the decoder's options and the window limits. */
+export interface DecodeTask {
+  bytes: Uint8Array;
+  opts: DecodeOptions;
+  limits: WindowLimits;
+}
+
+/** What a decode task answers: the streams, or why the file is refused (status, code, message). */
+export type DecodeOutcome =
+  | { ok: true; streams: DecodedStream[] }
+  | { ok: false; status: 413 | 422; code: 'too_large' | 'unprocessable'; message: string };
+
+/**
+ * A result handed back with its buffers TRANSFERRED rather than copied (piscina's Transferable
+ * protocol: an object naming the value and its transferable parts, marked movable by
+ * `move`; the pool's caller receives the value itself).
+ */
+function moved(value: object, buffers: ArrayBuffer[]): unknown {
+  return move({
+    get [transferableSymbol]() {
+      return buffers;
+    },
+    get [valueSymbol]() {
+      return value;
+    },
+  });
+}
+
 /**
  * Worker-thread entry point (piscina calls the default export): runs `analyzeWindow` on the task.
  * Errors (BandError, AnalysisError, RangeError) reject the pool's promise with the same message.
  */
 export default function runAnalysisTask(task: AnalysisTask): AnalysisResult {
   return analyzeWindow(task.streams, task.profile, task.opts);
+}
+
+/**
+ * Decodes an uploaded file off the event loop (a 25 MB CSV or MiniSEED takes the main thread
+ * nowhere), then checks the window limits before anything else sees the samples. The samples come
+ * back transferred. A decoder error or a window over the limits is an answer, not a throw, so its
+ * status and words survive the thread boundary.
+ */
+export function decode(task: DecodeTask): unknown {
+  let streams: DecodedStream[];
+  try {
+    streams = decodeWaveform(task.bytes, task.opts);
+  } catch (err) {
+    if (err instanceof WaveformParseError) return { ok: false, status: 422, code: 'unprocessable', message: capMessage(err.message) } satisfies DecodeOutcome;
+    throw err;
+  }
+  const problem = windowLimitProblem(streams, task.limits);
+  if (problem !== null) return { ok: false, status: 413, code: 'too_large', message: `${task.opts.filename ? `${clipInput(task.opts.filename, MAX_QUOTED_CHARS, 12)}: ` : ''}${problem}` } satisfies DecodeOutcome;
+  const buffers = new Set<ArrayBuffer>();
+  for (const s of streams) if (s.samples.buffer instanceof ArrayBuffer && s.samples.byteLength === s.samples.buffer.byteLength) buffers.add(s.samples.buffer);
+  return moved({ ok: true, streams } satisfies DecodeOutcome, [...buffers]);
+}
+
+/**
+ * Computes a queue item's display traces (`computeTraces`) and answers them as JSON text in
+ * UTF-8, transferred: the main thread only writes the bytes out, so neither the filtering nor the
+ * serialising of a long window holds its event loop.
+ */
+export function traces(task: TracesInput): unknown {
+  const bytes = new TextEncoder().encode(JSON.stringify(computeTraces(task)));
+  return moved(bytes, [bytes.buffer]);
 }

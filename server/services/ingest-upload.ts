@@ -1,4 +1,4 @@
-import { createHash } from 'node:crypto';
+import { createHash, webcrypto } from 'node:crypto';
 import { eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { can } from '../../shared/auth/policies';
@@ -14,9 +14,9 @@ import { uploads, windowChannels, windows } from '../db/schema/uploads';
 import { windowFeatures } from '../db/schema/window-features';
 import type { AnalysisResult, AnalyzeOptions, ChannelResult } from '../dsp/pipeline';
 import type { PolesZerosResponse } from '../dsp/response';
-import { decodeWaveform } from '../formats/decode';
-import { WaveformParseError, type DecodedStream } from '../formats/types';
+import type { DecodedStream } from '../formats/types';
 import { createAnalysisPool, type AnalysisPool } from '../jobs/analysis-pool';
+import { defaultWindowLimits, type WindowLimits } from './window-limits';
 import type { Logger } from '../logger';
 import { isDatabaseDown } from '../middleware/error-handler';
 import { presentQueueRow } from '../presenters/queue-item';
@@ -58,6 +58,8 @@ export interface IngestDeps {
   pool: AnalysisPool;
   /** Told after each commit (the live hub). */
   notify: () => void;
+  /** The largest window accepted (default `defaultWindowLimits`: 1 h, 720 000 samples per channel). */
+  limits?: WindowLimits;
   logger: Logger;
   /**
    * Test-only: runs inside the transaction after every row is written and before the commit; a
@@ -110,6 +112,14 @@ const shownName = (filename: string) => clipInput(filename, MAX_QUOTED_CHARS, 12
 /** SHA-256 of the bytes, hex. */
 export function sha256Hex(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
+}
+
+/**
+ * SHA-256 of the bytes, hex, hashed on libuv's thread pool (Web Crypto's digest is asynchronous in
+ * Node), so hashing a 25 MB upload does not hold the event loop.
+ */
+export async function sha256HexOffThread(bytes: Uint8Array): Promise<string> {
+  return Buffer.from(await webcrypto.subtle.digest('SHA-256', bytes)).toString('hex');
 }
 
 function actorOf(caller: IngestCaller): Actor {
@@ -300,7 +310,7 @@ export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: Ing
     if (duplicateKeyError(err)) {
       // The same bytes were committed by a concurrent request between our check and our insert.
       try {
-        const again = await existingOutcome(deps.db, file, caller);
+        const again = await existingOutcome(deps.db, file, caller, await sha256HexOffThread(file.bytes));
         if (again) return again;
       } catch (e) {
         if (e instanceof FileRefused) return { filename, status: 'rejected', httpStatus: e.httpStatus, code: e.code, message: e.message };
@@ -325,8 +335,7 @@ function stationRefusal(caller: IngestCaller, filename: string, streamId: string
   return new FileRefused(403, 'forbidden', `${shownName(filename)}: stream ${streamId}: ${why}`);
 }
 
-async function existingOutcome(db: Database, file: IngestFile, caller: IngestCaller): Promise<UploadOutcome | null> {
-  const sha = sha256Hex(file.bytes);
+async function existingOutcome(db: Database, file: IngestFile, caller: IngestCaller, sha: string): Promise<UploadOutcome | null> {
   const [existing] = await db.select({ id: uploads.id, stationId: uploads.stationId, filename: uploads.filename }).from(uploads).where(eq(uploads.sha256, sha));
   if (!existing) return null;
   const items = await itemsOfUpload(db, existing.id);
@@ -349,16 +358,14 @@ async function existingOutcome(db: Database, file: IngestFile, caller: IngestCal
 
 async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestCaller, opts: IngestOptions): Promise<UploadOutcome> {
   const { filename } = file;
-  const dup = await existingOutcome(deps.db, file, caller);
+  const sha = await sha256HexOffThread(file.bytes);
+  const dup = await existingOutcome(deps.db, file, caller, sha);
   if (dup) return dup;
 
-  let streams: DecodedStream[];
-  try {
-    streams = decodeWaveform(file.bytes, { filename, ...(opts.streamId ? { streamId: opts.streamId } : {}) });
-  } catch (err) {
-    if (err instanceof WaveformParseError) throw new FileRefused(422, 'unprocessable', capMessage(err.message));
-    throw err;
-  }
+  // Decoded in the pool (a 25 MB file never holds the event loop), checked against the window limits there.
+  const decoded = await deps.pool.decode(file.bytes, { filename, ...(opts.streamId ? { streamId: opts.streamId } : {}) }, deps.limits ?? defaultWindowLimits);
+  if (!decoded.ok) throw new FileRefused(decoded.status, decoded.code, decoded.message);
+  const streams = decoded.streams;
 
   // Group by station; each station must be registered and within the caller's scope.
   const groups = new Map<string, DecodedStream[]>();
@@ -396,7 +403,6 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   }
 
   const actor = actorOf(caller);
-  const sha = sha256Hex(file.bytes);
   const format = streams[0]?.format ?? 'csv';
   const primary = analysed[0] as AnalysedWindow;
   const result = await deps.db.transaction(async (tx) => {

@@ -10,7 +10,9 @@ import { parseInput } from '../../middleware/validate';
 import { authorize, authorizedStations, requirePermission } from '../../policies/authorize';
 import { getItemDetail } from '../../services/queue-detail';
 import { listQueue } from '../../services/queue-query';
-import { itemTraces } from '../../services/queue-traces';
+import { loadTracesInput } from '../../services/queue-traces';
+import { defaultAnalysisPool } from '../../services/ingest-upload';
+import type { AnalysisPool } from '../../jobs/analysis-pool';
 import {
   claimItem,
   dismissItem,
@@ -28,6 +30,8 @@ const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a queue 
 export interface QueueRouterOptions {
   /** Run after an escalation commits (the supervisor issue adds e-mail and the inbox). */
   escalationListeners?: readonly EscalationListener[];
+  /** The worker pool that computes display traces (default: the process's analysis pool, made on first use). */
+  pool?: AnalysisPool;
 }
 
 /**
@@ -69,7 +73,11 @@ export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Rou
     const user = currentUser(req);
     const { id } = parseInput(idParams, req.params, 'params');
     const q = parseInput(tracesQuerySchema, req.query, 'query');
-    res.json(await itemTraces(db, id, q, authorizedStations(user, 'queue.view')));
+    // Read here, computed and serialised in a worker: a window of an hour at 200 sps is tens of
+    // megabytes of filtering, which must not hold the event loop (docs/RELIABILITY.md, bench:traces).
+    const input = await loadTracesInput(db, id, q, authorizedStations(user, 'queue.view'));
+    const json = await (opts.pool ?? defaultAnalysisPool()).traces(input);
+    res.type('application/json').send(Buffer.from(json.buffer, json.byteOffset, json.byteLength));
   });
 
   router.post('/items/:id/claim', requirePermission('queue.claim'), async (req, res) => {

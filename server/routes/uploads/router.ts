@@ -145,6 +145,7 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
       pool: opts.pool ?? defaultAnalysisPool(),
       notify: () => ctx.hub.notify(),
       logger: ctx.logger,
+      limits: { maxSamples: ctx.env.SEISIFT_MAX_WINDOW_SAMPLES, maxDurationS: ctx.env.SEISIFT_MAX_WINDOW_S },
       ...(opts.beforeCommit ? { beforeCommit: opts.beforeCommit } : {}),
     };
     const result = await ingestFiles(
