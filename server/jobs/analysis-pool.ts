@@ -81,7 +81,7 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
     },
     async traces(input) {
       // Own copies of the blobs (a driver's row buffer may hold more than one value), transferred.
-      const channels = input.channels.map((c) => ({ ...c, samples: Uint8Array.from(c.samples) }));
+      const channels = input.channels.map((c) => ({ ...c, samples: new Uint8Array(c.samples) }));
       const out = await pool.run({ ...input, channels }, { name: 'traces', transferList: channels.map((c) => c.samples.buffer) });
       if (!(out instanceof Uint8Array)) throw new Error('analysis worker: unexpected answer to traces');
       return out;

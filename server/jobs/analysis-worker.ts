@@ -1,3 +1,5 @@
+import { readlinkSync } from 'node:fs';
+import { setPriority } from 'node:os';
 import { move, transferableSymbol, valueSymbol } from 'piscina';
 import { capMessage, clipInput, MAX_QUOTED_CHARS } from '../../shared/quote-input';
 import { decodeWaveform, type DecodeOptions } from '../formats/decode';
@@ -6,6 +8,21 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { analyzeWindow, type AnalysisResult, type AnalyzeOptions } from '../dsp/pipeline';
 import { computeTraces, type TracesInput } from '../services/queue-traces';
 import { windowLimitProblem, type WindowLimits } from '../services/window-limits';
+
+/**
+ * Runs this worker thread below the event loop's priority: Linux nice +`WORKER_NICE` for this thread
+ * only (setpriority(2) on a thread id changes that thread alone, and /proc/thread-self names it;
+ * proc(5)). On a machine with as many busy workers as cores the server's event loop then still
+ * gets a core at once, so requests such as GET /api/health are answered while long analyses or
+ * traces run; the workers take whatever CPU is left. Elsewhere (no /proc) the thread runs as is.
+ */
+const WORKER_NICE = 10;
+try {
+  const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
+  if (Number.isInteger(tid) && tid > 0) setPriority(tid, WORKER_NICE);
+} catch {
+  // Not Linux, or not allowed: the worker keeps the process's priority.
+}
 
 /** One task for the analysis worker: the arguments of `analyzeWindow`, sent by the pool. */
 export interface AnalysisTask {
