@@ -35,7 +35,8 @@ describe('analysis pool (piscina worker threads)', () => {
   });
 
   it('rejects with the analysis error message', async () => {
-    const slow = [stream('XX.KV05.00.BHZ', makeSignal({ n: 2400, fs: 20, noise: 1, seed: 1 }), 20)];
-    await expect(pool.run(slow, defaultProcessingProfile)).rejects.toThrow(/high band 2–10 Hz reaches 0\.45·fs = 9 Hz/);
+    // A 1 sps channel is a long-period channel: refused with the reason (20 sps now gets a fitted default band).
+    const slow = [stream('XX.KV05.00.LHZ', makeSignal({ n: 600, fs: 1, noise: 1, seed: 1 }), 1)];
+    await expect(pool.run(slow, defaultProcessingProfile)).rejects.toThrow(/long-period channel \(1 sps or slower\)/);
   });
 });
