@@ -6,7 +6,7 @@
 import { demoUsers } from '@server/db/seed-demo';
 import type { AppContext } from '@server/context';
 import { ingestDemo } from '@server/demo/ingest-demo';
-import { defaultAnalysisPool } from '@server/features/ingest/ingest-upload';
+import { defaultAnalysisPool } from '@server/jobs/analysis-pool';
 import { escalationListener } from '@server/features/supervision/escalations';
 import { publicBaseUrl } from '@server/email/links';
 import { ConfigError, loadEnv } from '@server/env';

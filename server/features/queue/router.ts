@@ -10,7 +10,9 @@ import { authorize, authorizedStations, requirePermission } from '@server/polici
 import { getItemDetail } from './queue-detail';
 import { listQueue } from './queue-query';
 import { itemStationId } from './queue-rows';
-import { itemTraces } from './queue-traces';
+import { loadTracesInput } from './queue-traces';
+import { defaultAnalysisPool } from '@server/jobs/analysis-pool';
+import type { AnalysisPool } from '@server/jobs/analysis-pool';
 import {
   claimItem,
   dismissItem,
@@ -29,6 +31,8 @@ export const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a
 export interface QueueRouterOptions {
   /** Run after an escalation commits (the supervisor issue adds e-mail and the inbox). */
   escalationListeners?: readonly EscalationListener[];
+  /** The worker pool that computes display traces (default: the process's analysis pool, made on first use). */
+  pool?: AnalysisPool;
 }
 
 /**
@@ -70,7 +74,11 @@ export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Rou
     const user = currentUser(req);
     const { id } = parseInput(idParams, req.params, 'params');
     const q = parseInput(tracesQuerySchema, req.query, 'query');
-    res.json(await itemTraces(db, id, q, authorizedStations(user, 'queue.view')));
+    // Read here, computed and serialised in a worker: a window of an hour at 200 sps is tens of
+    // megabytes of filtering, which must not hold the event loop (docs/RELIABILITY.md, bench:traces).
+    const input = await loadTracesInput(db, id, q, authorizedStations(user, 'queue.view'));
+    const json = await (opts.pool ?? defaultAnalysisPool()).traces(input);
+    res.type('application/json').send(Buffer.from(json.buffer, json.byteOffset, json.byteLength));
   });
 
   router.post('/items/:id/claim', requirePermission('queue.claim'), async (req, res) => {
