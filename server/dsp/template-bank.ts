@@ -7,20 +7,23 @@ import { fftPlan, nextPowerOfTwo } from './xcorr';
  * Two passes:
  * 1. Coarse, in the frequency domain (overlap-save, fft.js): the band-passed traces and templates are
  *    taken every k-th sample, k = ⌊fs / (2.5·f_max)⌋ (≥ 1; f_max the band's upper edge, so the
- *    coarse rate keeps ≥ 2.5 samples per period of the band's fastest energy; the band-pass is the
- *    anti-alias filter). Each block of B coarse samples (B the power of two ≥ 4·M', M' the coarse
- *    template length) is transformed once per component; each template's conjugate spectra are
- *    prepared once (and may be kept between windows: `PreparedCache`). Per block, the components'
- *    products X·conj(W) are summed and two templates share one complex inverse FFT (the real
- *    correlation of the first in the real part, of the second in the imaginary part, since both are
- *    real sequences). The largest coarse C of each template ranks it.
- * 2. Exact, in the time domain: for the best-ranked templates (`refine`), C is recomputed by its
- *    definition at full rate over every lag within ±2k samples of the coarse peak (k·lag'). Every
- *    value and lag this function returns comes from this pass, at the full rate, so it is the same
+ *    coarse rate keeps ≥ 2.5 samples per period of the band's fastest energy and the products w·x,
+ *    below 2·f_max, do not alias onto 0 Hz; the band-pass is the anti-alias filter). Each block of B
+ *    coarse samples (B the power of two ≥ 4·M', M' the coarse template length) is transformed once per
+ *    component; each template's spectra are prepared once and may be kept between windows
+ *    (`PreparedCache`). Per template and block, the components' products X·conj(W) are summed over
+ *    the band's bins only, and one inverse FFT of the next power of two Q above their count gives the
+ *    ANALYTIC correlation moved to 0 Hz (negative frequencies dropped), sampled every B/Q coarse lags;
+ *    its magnitude is the correlation's envelope. Templates are ranked by their largest normalised
+ *    envelope: unlike the correlation itself, sampled every k samples, the envelope's peak does not
+ *    drop when the true peak falls between coarse lags (for a narrow-band 8 Hz burst at k = 4 the
+ *    sampled correlation can lose half its peak; the envelope, as smooth as the band is narrow,
+ *    loses little).
+ * 2. Exact, in the time domain: for the best-ranked templates (`refine`), C is computed by its
+ *    definition at full rate over every lag within k·(2 + ⌈B/2Q⌉) + ⌈fs / (2·f_min)⌉ samples of the
+ *    envelope peak (the correlation's largest cycle lies within half a period of the band's lowest frequency
+ *    of it). Every value and lag this function returns comes from this pass, at the full rate: the
  *    number `normalizedXcorr` (and scipy) give at that lag.
- * The coarse pass can under-rate a template whose peak falls between coarse samples (by up to
- * 1 − mean cos(2π·f·k/(2fs)) over the band, about 30 % for a flat 2–10 Hz band at k = 4), so many
- * more templates are refined than reported.
  */
 
 /** A stored template as the matcher takes it. */
@@ -48,11 +51,13 @@ export interface BankMatch {
 export interface MatchBankOptions {
   /** The band's upper edge, Hz (sets the coarse step). */
   fmaxHz: number;
+  /** The band's lower edge, Hz (sets how far around the coarse peak the exact pass looks). */
+  fminHz: number;
   /** Matches returned at most (best first). */
   topK: number;
   /** Smallest C returned. */
   minValue: number;
-  /** Templates refined at full rate (the best by coarse C); default max(8·topK, 32). */
+  /** Templates refined at full rate (the best by coarse envelope); default max(4·topK, 24). */
   refine?: number;
   /** Prepared spectra kept between calls (template ids are immutable content). */
   cache?: PreparedCache;
@@ -182,19 +187,23 @@ export function matchBank(window: { ids: readonly string[]; sampleRateHz: number
     groups.set(block, g);
   }
 
-  const coarseBest = new Map<number, { value: number; lag: number }>();
-  for (const [block, group] of groups) coarsePass(block, group, coarse, cumsq, nc, coarseBest);
+  const coarseBest = new Map<number, { value: number; lag: number; spacing: number }>();
+  const band = { lo: opts.fminHz / (fs / step), hi: Math.min(0.5, opts.fmaxHz / (fs / step)) };
+  for (const [block, group] of groups) coarsePass(block, group, coarse, cumsq, nc, band, coarseBest);
 
   // Refine the best-ranked at full rate.
-  const refineCount = opts.refine ?? Math.max(8 * opts.topK, 32);
+  const refineCount = opts.refine ?? Math.max(4 * opts.topK, 24);
+  // The envelope peaks where the correlation's cycles are largest; its best cycle lies within half a
+  // period of the band's lowest frequency (and a coarse step or two) of there.
+  const halfCycle = Math.ceil(fs / (2 * opts.fminHz));
   const ranked = usable
     .map((u) => ({ u, c: coarseBest.get(u.t.id) }))
-    .filter((r): r is { u: (typeof usable)[number]; c: { value: number; lag: number } } => r.c !== undefined)
+    .filter((r): r is { u: (typeof usable)[number]; c: { value: number; lag: number; spacing: number } } => r.c !== undefined)
     .sort((a, b) => b.c.value - a.c.value)
     .slice(0, refineCount);
   const matches: BankMatch[] = [];
   for (const { u, c } of ranked) {
-    const exact = refineAround(u.t, u.map, window.traces, u.m, c.lag * step, 2 * step);
+    const exact = refineAround(u.t, u.map, window.traces, u.m, c.lag * step, step * (2 + Math.ceil(c.spacing / 2)) + halfCycle);
     if (exact && exact.value >= opts.minValue) matches.push({ templateId: u.t.id, ...exact });
   }
   matches.sort((a, b) => b.value - a.value || a.templateId - b.templateId);
@@ -208,9 +217,16 @@ function coarsePass(
   coarse: readonly Float64Array[],
   cumsq: readonly Float64Array[],
   nc: number,
-  best: Map<number, { value: number; lag: number }>,
+  band: { lo: number; hi: number },
+  best: Map<number, { value: number; lag: number; spacing: number }>,
 ): void {
   const plan = fftPlan(block);
+  // The band's bins (band edges in cycles per coarse sample) and the baseband transform's size.
+  const kLo = Math.max(1, Math.floor(band.lo * block));
+  const kHi = Math.min(block / 2, Math.ceil(band.hi * block));
+  const q = nextPowerOfTwo(kHi - kLo + 1);
+  const dec = block / q;
+  const basePlan = fftPlan(q);
   let mMax = 0;
   let mMin = Infinity;
   for (const g of group) {
@@ -258,95 +274,65 @@ function coarsePass(
     }
     return e;
   };
-  const full = new Float64Array(2 * block);
-  const out = new Float64Array(2 * block);
-  for (let gi = 0; gi < group.length; gi += 2) {
-    const g1 = group[gi] as (typeof group)[number];
-    const g2 = group[gi + 1];
-    const inv1 = energyOf(g1.map, g1.p.m);
-    const inv2 = g2 ? energyOf(g2.map, g2.p.m) : inv1;
-    const w1 = g1.p.energy > 0 ? 1 / Math.sqrt(g1.p.energy) : 0;
-    const w2 = g2 && g2.p.energy > 0 ? 1 / Math.sqrt(g2.p.energy) : 0;
-    let best1 = -Infinity;
-    let lag1 = 0;
-    let best2 = -Infinity;
-    let lag2 = 0;
+  const full = new Float64Array(2 * q);
+  const out = new Float64Array(2 * q);
+  for (const g of group) {
+    const inv = energyOf(g.map, g.p.m);
+    const wInv = g.p.energy > 0 ? 1 / Math.sqrt(g.p.energy) : 0;
+    let bestEnv = -Infinity;
+    let bestLag = 0;
     for (let b = 0; b < blocks; b++) {
-      const xs = dataSpectra[b] as Float64Array[];
-      pairSpectrum(full, xs, g1.p.spectra, g1.map, g2 ? g2.p.spectra : null, g2 ? g2.map : null, block);
-      plan.inverseTransform(out, full);
+      basebandSpectrum(full, dataSpectra[b] as Float64Array[], g.p.spectra, g.map, kLo, kHi);
+      basePlan.inverseTransform(out, full);
       const from = b * hop;
-      for (let l = 0; l < hop; l++) {
-        const g = from + l;
-        if (g >= lagsTotal) break;
-        if (g < inv1.length) {
-          const v = (out[2 * l] as number) * (inv1[g] as number) * w1;
-          if (v > best1) {
-            best1 = v;
-            lag1 = g;
-          }
-        }
-        if (g2 && g < inv2.length) {
-          const v = (out[2 * l + 1] as number) * (inv2[g] as number) * w2;
-          if (v > best2) {
-            best2 = v;
-            lag2 = g;
-          }
+      for (let j = 0; j < q; j++) {
+        const l = j * dec;
+        if (l >= hop || from + l >= lagsTotal || from + l >= inv.length) break;
+        const re = out[2 * j] as number;
+        const im = out[2 * j + 1] as number;
+        // Envelope² scaled by the data energy; compared squared (no square root per lag).
+        const scale = inv[from + l] as number;
+        const env2 = (re * re + im * im) * scale * scale;
+        if (env2 > bestEnv) {
+          bestEnv = env2;
+          bestLag = from + l;
         }
       }
     }
-    if (best1 > -Infinity) best.set(g1.t.id, { value: best1, lag: lag1 });
-    if (g2 && best2 > -Infinity) best.set(g2.t.id, { value: best2, lag: lag2 });
+    // fft.js's inverse divides by q; the block's correlation needs 1/B, and the analytic signal 2×.
+    if (bestEnv > -Infinity) best.set(g.t.id, { value: ((2 * q) / block) * Math.sqrt(bestEnv) * wInv, lag: bestLag, spacing: dec });
   }
 }
 
 /**
- * The full spectrum (bins 0 … B−1, interleaved) of z = s1 + i·s2, s1 and s2 the circular
- * correlations of the coarse block with templates 1 and 2 summed over their components:
- * S_k = Σ_c X_c,k·conj(W_c,k) ((a + ib)(c − id) = (ac + bd) + i(bc − ad)), and since s1, s2 are real,
- * Z_k = S1_k + i·S2_k and Z_{B−k} = conj(S1_k) + i·conj(S2_k). Without a second template S2 = 0.
- * One pass over the bins for both templates and every component (this loop is most of the work).
+ * The analytic correlation's band, moved to 0 Hz: bins kLo … kHi of S_k = Σ_c X_c,k·conj(W_c,k)
+ * ((a + ib)(c − id) = (ac + bd) + i(bc − ad); the spectrum of the real circular correlation r summed
+ * over the template's components present in the window) written to bins 0 … kHi − kLo of `full`,
+ * the rest 0. The inverse transform of size Q of these bins is, at every (B/Q)-th lag, the analytic
+ * signal z = r + i·H(r) of r (negative frequencies dropped, positive doubled: Bracewell, The Fourier
+ * Transform and Its Applications, ch. 12) times a phase ramp — so its magnitude is r's envelope,
+ * sampled every B/Q coarse lags (the envelope is as smooth as the band is narrow, so this loses
+ * little), and its peak does not depend on where the lags fall within the band's cycles.
  */
-function pairSpectrum(
-  full: Float64Array,
-  xs: readonly Float64Array[],
-  w1s: readonly Float32Array[],
-  map1: readonly number[],
-  w2s: readonly Float32Array[] | null,
-  map2: readonly number[] | null,
-  block: number,
-): void {
-  const half = block / 2;
-  const x1: Float64Array[] = [];
-  const t1: Float32Array[] = [];
-  for (let c = 0; c < w1s.length; c++) {
-    const ci = map1[c] as number;
+function basebandSpectrum(full: Float64Array, xs: readonly Float64Array[], ws: readonly Float32Array[], map: readonly number[], kLo: number, kHi: number): void {
+  const xsUsed: Float64Array[] = [];
+  const wsUsed: Float32Array[] = [];
+  for (let c = 0; c < ws.length; c++) {
+    const ci = map[c] as number;
     if (ci >= 0) {
-      x1.push(xs[ci] as Float64Array);
-      t1.push(w1s[c] as Float32Array);
+      xsUsed.push(xs[ci] as Float64Array);
+      wsUsed.push(ws[c] as Float32Array);
     }
   }
-  const x2: Float64Array[] = [];
-  const t2: Float32Array[] = [];
-  if (w2s && map2) {
-    for (let c = 0; c < w2s.length; c++) {
-      const ci = map2[c] as number;
-      if (ci >= 0) {
-        x2.push(xs[ci] as Float64Array);
-        t2.push(w2s[c] as Float32Array);
-      }
-    }
-  }
-  const n1 = x1.length;
-  const n2 = x2.length;
-  for (let k = 0; k <= half; k++) {
+  const nc = xsUsed.length;
+  for (let k = kLo; k <= kHi; k++) {
     const re = 2 * k;
     const im = re + 1;
     let ar = 0;
     let ai = 0;
-    for (let c = 0; c < n1; c++) {
-      const x = x1[c] as Float64Array;
-      const w = t1[c] as Float32Array;
+    for (let c = 0; c < nc; c++) {
+      const x = xsUsed[c] as Float64Array;
+      const w = wsUsed[c] as Float32Array;
       const xr = x[re] as number;
       const xi = x[im] as number;
       const wr = w[re] as number;
@@ -354,26 +340,11 @@ function pairSpectrum(
       ar += xr * wr + xi * wi;
       ai += xi * wr - xr * wi;
     }
-    let br = 0;
-    let bi = 0;
-    for (let c = 0; c < n2; c++) {
-      const x = x2[c] as Float64Array;
-      const w = t2[c] as Float32Array;
-      const xr = x[re] as number;
-      const xi = x[im] as number;
-      const wr = w[re] as number;
-      const wi = w[im] as number;
-      br += xr * wr + xi * wi;
-      bi += xi * wr - xr * wi;
-    }
-    full[re] = ar - bi;
-    full[im] = ai + br;
-    if (k > 0 && k < half) {
-      const m = 2 * (block - k);
-      full[m] = ar + bi;
-      full[m + 1] = br - ai;
-    }
+    const o = 2 * (k - kLo);
+    full[o] = ar;
+    full[o + 1] = ai;
   }
+  full.fill(0, 2 * (kHi - kLo + 1));
 }
 
 /**

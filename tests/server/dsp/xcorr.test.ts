@@ -137,7 +137,7 @@ describe('real windows (tests/fixtures/real-windows, decoded by libmseed for sci
       // The bank matcher (coarse FFT pass, exact refinement): its value is the exact C at its lag
       // (float32 template), never above scipy's maximum; for a real resemblance (C ≥ 0.3) it is that
       // maximum at the same lag. Below that the coarse pass may settle on another, similar peak.
-      const bank = matchBank(b, [{ id: 1, sampleRateHz: b.sampleRateHz, ids: t?.ids ?? [], samples: w.map((s) => Float32Array.from(s)) }], { fmaxHz: 10, topK: 1, minValue: -1 });
+      const bank = matchBank(b, [{ id: 1, sampleRateHz: b.sampleRateHz, ids: t?.ids ?? [], samples: w.map((s) => Float32Array.from(s)) }], { fminHz: 2, fmaxHz: 10, topK: 1, minValue: -1 });
       const got = bank[0];
       expect(got).toBeDefined();
       expect(Math.abs((got?.value ?? 0) - (other[got?.lag ?? 0] as number))).toBeLessThan(1e-5);
@@ -166,7 +166,7 @@ describe('matchBank: coarse FFT pass then exact values', () => {
       { id: 3, sampleRateHz: fs, ids: window.ids, samples: cut(10999) },
     ];
     const cache = new PreparedCache();
-    const res = matchBank(window, templates, { fmaxHz: 10, topK: 5, minValue: 0.5, cache });
+    const res = matchBank(window, templates, { fminHz: 2, fmaxHz: 10, topK: 5, minValue: 0.5, cache });
     expect(res.map((r) => [r.templateId, r.lag])).toEqual(
       expect.arrayContaining([
         [1, 4321],
@@ -181,7 +181,7 @@ describe('matchBank: coarse FFT pass then exact values', () => {
     }
     expect(cache.size).toBe(63);
     // A second call reuses the prepared spectra and answers the same.
-    expect(matchBank(window, templates, { fmaxHz: 10, topK: 5, minValue: 0.5, cache })).toEqual(res);
+    expect(matchBank(window, templates, { fminHz: 2, fmaxHz: 10, topK: 5, minValue: 0.5, cache })).toEqual(res);
   });
 
   it('a half-amplitude copy buried in noise: value and lag as the exact FFT correlation', () => {
@@ -192,7 +192,7 @@ describe('matchBank: coarse FFT pass then exact values', () => {
       return y;
     });
     const exact = peakOfXcorr(normalizedXcorr(w, mixed));
-    const res = matchBank({ ids: window.ids, sampleRateHz: fs, traces: mixed }, [{ id: 9, sampleRateHz: fs, ids: window.ids, samples: w }], { fmaxHz: 10, topK: 1, minValue: 0 });
+    const res = matchBank({ ids: window.ids, sampleRateHz: fs, traces: mixed }, [{ id: 9, sampleRateHz: fs, ids: window.ids, samples: w }], { fminHz: 2, fmaxHz: 10, topK: 1, minValue: 0 });
     expect(exact.lag).toBe(3000);
     expect(res[0]?.lag).toBe(exact.lag);
     expect(res[0]?.value).toBeCloseTo(exact.value, 9);
@@ -204,7 +204,7 @@ describe('matchBank: coarse FFT pass then exact values', () => {
       { ...t, id: 1, ids: window.ids, sampleRateHz: 50 },
       { ...t, id: 2, ids: ['XX.KV09.00.HHZ', 'XX.KV09.00.HHN', 'XX.KV09.00.HHE'] },
       { id: 3, sampleRateHz: fs, ids: window.ids, samples: window.traces.map((x) => Float32Array.from([...x, ...x])) },
-    ], { fmaxHz: 10, topK: 3, minValue: -1 });
+    ], { fminHz: 2, fmaxHz: 10, topK: 3, minValue: -1 });
     expect(res).toEqual([]);
   });
 });
