@@ -109,6 +109,18 @@ describe('network coincidence (real MariaDB)', () => {
     expect((await item(strong)).version).toBe(raised.version);
   });
 
+  it('raises a group member its noisy station called likely noise to needs eyes, never to likely event', async () => {
+    const ids = await windowsAt('2026-05-07T10:00:00.000Z', [
+      { code: 'KC01', flag: 'likely event', triggerS: 20, z: 12 },
+      { code: 'KC02', flag: 'likely event', triggerS: 22, z: 10 },
+      { code: 'KC03', flag: 'likely noise', triggerS: 25, z: -0.3, reasons: ["the trigger is no stronger than this station's ordinary noise"] },
+    ]);
+    await onItemsCreated({ db: db.db }, ids);
+    const hidden = await item(ids[2] as number);
+    expect(hidden.flag).toBe('needs eyes');
+    expect(hidden.reasons.at(-1)).toMatch(/^network coincidence: part of event group #\d+ — 3 stations .*; raised from likely noise: this station's own noise hides its trigger, the network does not$/);
+  });
+
   it('lowers a lone likely event that two quiet neighbours recorded; not with one quiet neighbour', async () => {
     // Day 1: KC02 and KC03 cover 10:00:00–10:01:30 without a trigger; KC01 triggers at 40 s.
     // Covered means the window spans the arrival ± the horizon (40 ± 13.1 s): it does.
