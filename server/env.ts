@@ -16,6 +16,13 @@ const positiveInt = (fallback: number) =>
     .refine((v) => /^\d+$/.test(v) && Number(v) > 0, 'must be a positive whole number')
     .transform(Number);
 
+const fraction = (fallback: number) =>
+  z
+    .string()
+    .default(String(fallback))
+    .refine((v) => /^(0(\.\d+)?|1(\.0+)?)$/.test(v), 'must be a number from 0 to 1')
+    .transform(Number);
+
 const nonNegativeInt = (fallback: number) =>
   z
     .string()
@@ -102,6 +109,12 @@ export const envSchema = z.object({
   SEISIFT_SIGNIN_WINDOW_S: positiveInt(900),
   /** Worker threads of the analysis pool (default: one per core, `max(1, availableParallelism())`). */
   SEISIFT_ANALYSIS_THREADS: positiveInt(Math.max(1, availableParallelism())),
+  /** Waveform templates kept per station (issue 19); over it the oldest unlabelled go first, then the oldest labelled. */
+  SEISIFT_TEMPLATES_PER_STATION: positiveInt(500),
+  /** Correlation at or above which a window "resembles" a template (flag reasons, families by default). */
+  SEISIFT_RESEMBLES_AT: fraction(0.7),
+  /** Correlation at or above which a match to a labelled blast or noise keeps a window from rising as a new event. */
+  SEISIFT_NEAR_IDENTICAL_AT: fraction(0.9),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 

@@ -195,6 +195,14 @@ async function stageTimings(db: Parameters<typeof ingestFile>[0]['db'], bases: M
         analysisMs.push(performance.now() - t);
       }
     },
+    async runMatched(streams, profile, opts, bank, match) {
+      const t = performance.now();
+      try {
+        return await pool.runMatched(streams, profile, opts, bank, match);
+      } finally {
+        analysisMs.push(performance.now() - t);
+      }
+    },
   };
   const code = CODES[0] ?? 'KV01';
   const [station] = (await stationsByKeys(db, [`XX.${code}`])).values();

@@ -7,7 +7,8 @@ import type { WindowLimits } from '@server/formats/window-limits';
 import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import type { AnalysisResult, AnalyzeOptions } from '@server/dsp/pipeline';
 import type { TracesInput } from '@server/features/queue/queue-traces';
-import type { AnalysisTask, DecodeOutcome, DecodeTask } from './analysis-worker';
+import type { BankTemplate } from '@server/dsp/template-bank';
+import type { AnalysisTask, DecodeOutcome, DecodeTask, MatchedOutcome, MatchedTask } from './analysis-worker';
 
 /**
  * A pool of worker threads for the heavy work of the server — decoding uploads, `analyzeWindow`,
@@ -20,6 +21,11 @@ export interface AnalysisPool {
    * Rejects with the analysis error's message (e.g. a refused band).
    */
   run(streams: DecodedStream[], profile: ProcessingProfile, opts?: AnalyzeOptions): Promise<AnalysisResult>;
+  /**
+   * `run`, then the window's template and its matches against `bank` (issue 19), in the same worker
+   * task (the streams' buffers are transferred as in `run`; the bank's samples are copied).
+   */
+  runMatched(streams: DecodedStream[], profile: ProcessingProfile, opts: AnalyzeOptions, bank: BankTemplate[], match: { topK: number; minValue: number }): Promise<MatchedOutcome>;
   /**
    * Decodes an uploaded file in a worker (the bytes are copied there; the caller keeps its own)
    * and checks the window limits: the streams, or the refusal (422 undecodable, 413 over a limit).
@@ -42,6 +48,9 @@ const isObject = (v: unknown): v is object => typeof v === 'object' && v !== nul
 function isAnalysisResult(v: unknown): v is AnalysisResult {
   return isObject(v) && 'channels' in v && 'score' in v;
 }
+function isMatchedOutcome(v: unknown): v is MatchedOutcome {
+  return isObject(v) && 'analysis' in v && 'matching' in v && isAnalysisResult(v.analysis);
+}
 function isDecodeOutcome(v: unknown): v is DecodeOutcome {
   return isObject(v) && 'ok' in v && typeof v.ok === 'boolean';
 }
@@ -56,7 +65,7 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
   const here = import.meta.url;
   const isTs = here.endsWith('.ts');
   const filename = new URL(isTs ? './analysis-worker.ts' : './analysis-worker.js', here).href;
-  const pool = new Piscina<AnalysisTask | DecodeTask | TracesInput, unknown>({
+  const pool = new Piscina<AnalysisTask | MatchedTask | DecodeTask | TracesInput, unknown>({
     filename,
     minThreads: threads,
     maxThreads: threads,
@@ -73,6 +82,17 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
       }
       const out = await pool.run({ streams, profile, opts }, { transferList: [...buffers] });
       if (!isAnalysisResult(out)) throw new Error('analysis worker: unexpected answer to an analysis');
+      return out;
+    },
+    async runMatched(streams, profile, opts, bank, match) {
+      const buffers = new Set<ArrayBuffer>();
+      for (const s of streams) {
+        const b = s.samples.buffer;
+        if (b instanceof ArrayBuffer && b.byteLength > 0) buffers.add(b);
+      }
+      const task: MatchedTask = { streams, profile, opts, bank, match };
+      const out = await pool.run(task, { name: 'matched', transferList: [...buffers] });
+      if (!isMatchedOutcome(out)) throw new Error('analysis worker: unexpected answer to a matched analysis');
       return out;
     },
     async decode(bytes, opts, limits) {
