@@ -18,6 +18,7 @@ import { openApiRouter } from './openapi/router';
 import { queueRouter } from './features/queue/router';
 import { stationsRouter } from './features/stations/router';
 import { supervisorRouter } from './features/supervision/router';
+import { similarityRouter } from './features/similarity/router';
 import { uploadsRouter, type UploadsRouterOptions } from './features/ingest/router';
 import { publicBaseUrl } from './email/links';
 import { escalationListener } from './features/supervision/escalations';
@@ -56,6 +57,7 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api/queue', queueRouter(ctx, { escalationListeners: [onEscalation], ...(opts.uploads?.pool ? { pool: opts.uploads.pool } : {}) }));
   app.use('/api/supervisor', supervisorRouter(ctx));
   app.use('/api/stations', stationsRouter(ctx));
+  app.use('/api/similarity', similarityRouter(ctx));
   app.use('/api/uploads', uploadsRouter(ctx, opts.uploads));
   app.use('/api/openapi.json', openApiRouter(ctx));
   app.use('/api', apiNotFound);

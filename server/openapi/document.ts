@@ -8,6 +8,7 @@ import { ingestOperations } from '@server/features/ingest/openapi';
 import { queueOperations } from '@server/features/queue/openapi';
 import { stationOperations } from '@server/features/stations/openapi';
 import { supervisionOperations } from '@server/features/supervision/openapi';
+import { similarityOperations } from '@server/features/similarity/openapi';
 import { openApiPath, type ApiOperation, type ApiResponse } from './operation';
 
 /** GET /api/openapi.json itself. */
@@ -26,6 +27,7 @@ export const apiOperations: readonly ApiOperation[] = [
   ...auditOperations,
   ...queueOperations,
   ...supervisionOperations,
+  ...similarityOperations,
   ...stationOperations,
   ...ingestOperations,
   ...documentOperations,

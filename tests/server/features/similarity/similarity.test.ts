@@ -10,6 +10,8 @@ import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-poo
 import { createLogger } from '@server/logger';
 import { ingestFile, type IngestDeps } from '@server/features/ingest/ingest-upload';
 import { labelItem } from '@server/features/queue/queue-transitions';
+import { groupFamilies, loadFamilies } from '@server/features/similarity/families';
+import { itemMatches } from '@server/features/similarity/item-matches';
 import { applyResemblance, labelWords } from '@server/features/similarity/resemblance';
 import { decodeTemplateSamples, encodeTemplateSamples } from '@server/features/similarity/template-store';
 import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
@@ -144,5 +146,47 @@ describe('templates and matches on ingest (real MariaDB, real window)', () => {
     const cm = await ctx.database.db.select().from(windowMatches).where(eq(windowMatches.windowStart, new Date(Math.floor((t0 + 7200e6) / 1000))));
     expect(cm).toHaveLength(2);
     expect(cm.filter((m) => m.templateId === null)).toHaveLength(1);
+
+    // The review screen's matches: the suggested label comes from the labelled blast; the overlay
+    // of the window and the template (peak-scaled, same waveform) coincide.
+    const itemC = c.itemIds?.[0] ?? -1;
+    const seen = await itemMatches(ctx.database.db, itemC, 'all', 0.7);
+    expect(seen.matches).toHaveLength(2);
+    expect(seen.suggestion).toEqual({ kind: 'event', eventType: 'quarry blast', fromItemId: itemA, value: expect.closeTo(1, 6) });
+    const withOverlay = seen.matches.find((m) => m.overlay !== null);
+    // The same offset into the window as the template has into its own (1 s before the detection onset).
+    expect(withOverlay?.offsetS).toBeCloseTo(((templates[0]?.startTimeUs ?? 0) - t0) / 1e6, 5);
+    withOverlay?.overlay?.window.forEach((v, i) => expect(Math.abs(v - (withOverlay.overlay?.template[i] ?? NaN))).toBeLessThan(1e-5));
+    await expect(itemMatches(ctx.database.db, itemC, [stationId + 1000], 0.7)).rejects.toThrow(/not found/i);
+
+    // The supervisor's families: the three copies are one family, one labelled and two not yet.
+    const fams = await loadFamilies(ctx.database.db, { minValue: 0.7, minSize: 2 }, 'all');
+    expect(fams).toHaveLength(1);
+    expect(fams[0]?.size).toBe(3);
+    expect(fams[0]?.labelMix).toEqual({ 'quarry blast': 1, unlabelled: 2 });
+    expect(fams[0]?.hours[11]).toBe(1);
+    expect(fams[0]?.hours[12]).toBe(1);
+    expect(fams[0]?.hours[13]).toBe(1);
+    expect(fams[0]?.id).toBe(itemA);
+  });
+});
+
+describe('families (pure)', () => {
+  const node = (windowId: number, hour: number, labelType: string | null) => ({ windowId, itemId: windowId + 100, stationId: 1, station: 'XX.KV02', windowStart: new Date(Date.UTC(2026, 2, 10 + windowId, hour)), labelType, flag: 'needs eyes' });
+  it('links chains into one family (single linkage), keeps separate groups apart and drops singletons', () => {
+    const fams = groupFamilies(
+      [node(1, 11, 'quarry blast'), node(2, 12, 'quarry blast'), node(3, 13, null), node(4, 3, 'earthquake'), node(5, 4, 'earthquake'), node(6, 9, null)],
+      [
+        { a: 2, b: 1, value: 0.91 },
+        { a: 3, b: 2, value: 0.75 },
+        { a: 5, b: 4, value: 0.8 },
+      ],
+    );
+    expect(fams.map((f) => f.size)).toEqual([3, 2]);
+    expect(fams[0]?.labelMix).toEqual({ 'quarry blast': 2, unlabelled: 1 });
+    expect(fams[0]?.bestLink).toBe(0.91);
+    expect(fams[0]?.weakestLink).toBe(0.75);
+    expect(fams[0]?.hours.slice(11, 14)).toEqual([1, 1, 1]);
+    expect(fams[1]?.labelMix).toEqual({ earthquake: 2 });
   });
 });
