@@ -2,7 +2,7 @@ import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Link, useLocation, useNavigate } from 'react-router';
 import { can } from '@shared/auth/policies';
 import { roleSchema, type Role } from '@shared/auth/roles';
-import { commonEventTypes, type Pick } from '@shared/schemas/label';
+import { commonEventTypes, noiseReasons, quakemlEventTypes, type Pick } from '@shared/schemas/label';
 import { useCandidateEvent, useLabelGroup, useReviewNote, type CandidateEvent } from '@client/api/queue/candidate-events';
 import { Button } from '@client/components/ui/button';
 import { Dialog } from '@client/components/ui/dialog';
@@ -25,6 +25,8 @@ import { parseFilters } from '@client/api/queue/queue-filters';
 import { analysisViewSchema, useItem, useTraces, type AnalysisView } from '@client/features/review/api/get-item';
 import { clearDraft, describeUnsaved, readDraft, unsavedWork, writeDraft, type DraftStorage, type ReviewDraft } from '@client/features/review/lib/review-draft';
 import { LabelForm, reviewFormDefaults, useReviewForm, type ReviewFormValues } from '@client/features/review/components/label-form';
+import { useItemMatches } from '@client/features/review/api/get-matches';
+import { MatchesPanel } from './matches-panel';
 import { SpectrogramPanel } from './spectrogram-panel';
 import { SpectrumPanel } from './spectrum-panel';
 import { TracePanel, pickSeconds, type SignalSegments, type TraceCursor } from './trace-panel';
@@ -38,6 +40,7 @@ export const reviewKeysHelp: readonly KeyBinding[] = [
   ...commonEventTypes.map((t, i) => ({ keys: [String(i + 1)], does: `Label as ${t} (claims first if needed) and go to the next item` })),
   { keys: ['Enter'], does: 'Label with the form’s values (inside the form)' },
   { keys: ['D'], does: 'Dismiss as noise with the form’s noise reason, then next item' },
+  { keys: ['M'], does: 'Take the best match’s label into the form (seen before); confirm with Enter, or D for noise' },
   { keys: ['E'], does: 'Escalate to the supervisors (asks for a reason)' },
   { keys: ['P', 'S'], does: 'Place a P or S pick at the mouse, on the channel under it; also sets the phase a click places. Off the traces, P goes to the vertical’s first trigger and S waits for the mouse' },
   { keys: ['+', '−'], does: 'Zoom in / out around the cursor or the middle' },
@@ -72,6 +75,7 @@ const fmt = (v: number | null | undefined, digits = 2) => (v === null || v === u
  */
 export function ReviewScreen({ itemId }: { itemId: number }) {
   const item = useItem(itemId);
+  const matches = useItemMatches(itemId);
   const me = useMe();
   const toast = useToast();
   const navigate = useNavigate();
@@ -283,6 +287,29 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     });
   };
 
+  /**
+   * Key M: the best labelled match's label goes into the form (event type, or the noise reason for
+   * a match to dismissed noise). Nothing is saved: the analyst confirms with Enter (or D).
+   */
+  const takeMatchedLabel = () => {
+    const s = matches.data?.suggestion;
+    if (!s) {
+      toast.notify({ tone: 'info', title: 'No labelled match', body: 'No earlier labelled window at this station resembles this one.', durationMs: 3000 });
+      return;
+    }
+    if (s.kind === 'event') {
+      const type = quakemlEventTypes.find((t) => t === s.eventType);
+      if (!type) return;
+      form.setValue('eventType', type, { shouldDirty: true });
+      toast.notify({ tone: 'info', title: `Label set to ${type}`, body: `From the best match (${s.value.toFixed(2)}). Press Enter to label, or change it first.`, durationMs: 4000 });
+    } else {
+      const reason = noiseReasons.find((r) => r === s.noiseReason);
+      if (!reason) return;
+      form.setValue('noiseReason', reason, { shouldDirty: true });
+      toast.notify({ tone: 'info', title: `Noise reason set to ${reason}`, body: `From the best match (${s.value.toFixed(2)}). Press D to dismiss.`, durationMs: 4000 });
+    }
+  };
+
   const zoom = (factor: number) => {
     const from = view?.from ?? 0;
     const to = view?.to ?? durationS;
@@ -299,7 +326,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
       if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !detail || document.querySelector('dialog[open]')) return;
       const k = e.key;
       const n = Number(k);
-      if (!mayWork && /^[crdeps1-9]$/.test(k)) {
+      if (!mayWork && /^[crdepsm1-9]$/.test(k)) {
         toast.notify({ tone: 'info', title: 'View only', body: 'Your role can look at this item but not claim, label, dismiss or escalate it.', durationMs: 3000 });
         e.preventDefault();
         return;
@@ -318,6 +345,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         }
       } else if (k === 'd') void form.handleSubmit(dismiss)();
       else if (k === 'e') setEscalating(true);
+      else if (k === 'm') takeMatchedLabel();
       else if (k === 'p' || k === 's') keyPick(k === 'p' ? 'P' : 'S');
       else if (k === '+' || k === '=') zoom(0.5);
       else if (k === '-' || k === '_') zoom(2);
@@ -487,6 +515,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
             </ul>
             <TriageCaution className="mt-2" />
           </section>
+          <MatchesPanel data={matches.data} loading={matches.isPending} error={matches.error?.message ?? null} canTake={mayWork} onTake={takeMatchedLabel} />
           <section className="rounded-sm border border-line bg-surface p-3">
             <h2 className="pb-1 text-md font-semibold">Label</h2>
             <LabelForm form={form} canWrite={writable} viewOnly={me !== undefined && !mayWork} busy={action.isPending} onLabel={(v) => void label(v)} onDismiss={(v) => void dismiss(v)} />
