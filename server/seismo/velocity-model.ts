@@ -57,7 +57,7 @@ export function validateVelocityModel(model: VelocityModel): VelocityModel {
   if (typeof model.name !== 'string' || model.name.trim() === '') throw new RangeError('velocity model: the name is empty');
   const layers = model.layers;
   if (!Array.isArray(layers) || layers.length === 0) throw new RangeError('velocity model: there are no layers');
-  layers.forEach((l, i) => {
+  layers.forEach((l: VelocityLayer, i) => {
     const at = `velocity model layer ${i + 1}`;
     for (const [k, v] of [['topKm', l.topKm], ['vpKmS', l.vpKmS], ['vsKmS', l.vsKmS]] as const) {
       if (typeof v !== 'number' || !Number.isFinite(v)) throw new RangeError(`${at}: ${k} must be a finite number, got ${String(v)}`);

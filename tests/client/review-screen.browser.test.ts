@@ -1,13 +1,13 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { queueItemDetailSchema } from '../../shared/schemas/queue';
-import { uploadResponseSchema } from '../../shared/schemas/upload';
-import { encodeMiniSeed2 } from '../../server/formats/mseed2-writer';
+import { queueItemDetailSchema } from '@shared/schemas/queue';
+import { uploadResponseSchema } from '@shared/schemas/upload';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
-import { launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { createItem, createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { createItem, createPerson, syntheticStreams, type TestPerson } from '@tests/setup/queue-fixtures';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /**
  * The review screen as an analyst works it (bugs found in use): keyboard picks land on the channel

@@ -10,7 +10,7 @@ import {
   fromLocalKm,
   greatCircleDistanceKm,
   toLocalKm,
-} from '../../../server/seismo/geodesy';
+} from '@server/seismo/geodesy';
 import { readSeismoFixture } from './read-fixture';
 
 const pt = (latitudeDeg: number, longitudeDeg: number): { latitudeDeg: number; longitudeDeg: number } => ({ latitudeDeg, longitudeDeg });

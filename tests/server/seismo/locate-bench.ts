@@ -10,11 +10,11 @@ import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { median } from '@shared/math/median';
 import { percentile, timeRuns } from '@server/bench/timing';
-import { centroid, greatCircleDistanceKm } from '../../../server/seismo/geodesy';
-import { locateEvent, type LocateResult } from '../../../server/seismo/locate';
-import { networkMagnitude, stationMagnitude } from '../../../server/seismo/magnitude';
-import { DEFAULT_VELOCITY_MODEL } from '../../../server/seismo/velocity-model';
-import { peakAmplitude, simulateWoodAnderson } from '../../../server/seismo/wood-anderson';
+import { centroid, greatCircleDistanceKm } from '@server/seismo/geodesy';
+import { locateEvent, type LocateResult } from '@server/seismo/locate';
+import { networkMagnitude, stationMagnitude } from '@server/seismo/magnitude';
+import { DEFAULT_VELOCITY_MODEL } from '@server/seismo/velocity-model';
+import { peakAmplitude, simulateWoodAnderson } from '@server/seismo/wood-anderson';
 import { ringStations, seededNormal, synthesizePicks } from './synthetic';
 
 const runs = Number(process.env.BENCH_RUNS ?? 30);

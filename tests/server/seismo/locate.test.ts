@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { destinationPoint, greatCircleDistanceKm, toLocalKm, azimuthDeg } from '../../../server/seismo/geodesy';
-import { K68_1D, K68_2D, confidenceEllipse68, locateEvent, type LocateResult, type LocatedOrigin } from '../../../server/seismo/locate';
-import { cholesky, choleskyInverse, choleskySolve } from '../../../server/seismo/small-matrix';
-import { DEFAULT_VELOCITY_MODEL, type VelocityModel } from '../../../server/seismo/velocity-model';
+import { destinationPoint, greatCircleDistanceKm, toLocalKm, azimuthDeg } from '@server/seismo/geodesy';
+import { K68_1D, K68_2D, confidenceEllipse68, locateEvent, type LocateResult, type LocatedOrigin } from '@server/seismo/locate';
+import { cholesky, choleskyInverse, choleskySolve } from '@server/seismo/small-matrix';
+import { DEFAULT_VELOCITY_MODEL, type VelocityModel } from '@server/seismo/velocity-model';
 import { readSeismoFixture } from './read-fixture';
 import { ringStations, seededNormal, synthesizePicks, type TrueHypocentre } from './synthetic';
 

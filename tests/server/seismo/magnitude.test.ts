@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { distanceNote, localMagnitude, minusLogA0HuttonBoore, networkMagnitude, stationMagnitude } from '../../../server/seismo/magnitude';
-import { WOOD_ANDERSON, peakAmplitude, simulateWoodAnderson, woodAndersonPoles, woodAndersonResponse } from '../../../server/seismo/wood-anderson';
+import { distanceNote, localMagnitude, minusLogA0HuttonBoore, networkMagnitude, stationMagnitude } from '@server/seismo/magnitude';
+import { WOOD_ANDERSON, peakAmplitude, simulateWoodAnderson, woodAndersonPoles, woodAndersonResponse } from '@server/seismo/wood-anderson';
 import { readSeismoFixture } from './read-fixture';
 
 const abs = (c: { re: number; im: number }): number => Math.hypot(c.re, c.im);

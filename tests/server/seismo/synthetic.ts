@@ -3,10 +3,10 @@
  * travel-time engine, plus Gaussian noise from a seeded generator (never Math.random, so every run
  * draws the same numbers).
  */
-import { destinationPoint, greatCircleDistanceKm, type GeoPoint } from '../../../server/seismo/geodesy';
-import type { LocatePick, LocateStation } from '../../../server/seismo/locate';
-import { firstArrivalTimeS, prepareVelocityModel } from '../../../server/seismo/travel-time';
-import type { VelocityModel, WaveType } from '../../../server/seismo/velocity-model';
+import { destinationPoint, greatCircleDistanceKm, type GeoPoint } from '@server/seismo/geodesy';
+import type { LocatePick, LocateStation } from '@server/seismo/locate';
+import { firstArrivalTimeS, prepareVelocityModel } from '@server/seismo/travel-time';
+import type { VelocityModel, WaveType } from '@server/seismo/velocity-model';
 
 /** mulberry32 (public-domain 32-bit generator, common practice for seeded tests) with Box–Muller normals. */
 export function seededNormal(seed: number): () => number {

@@ -9,8 +9,8 @@ import {
   interpolateTable,
   prepareVelocityModel,
   travelTimeTable,
-} from '../../../server/seismo/travel-time';
-import { DEFAULT_VELOCITY_MODEL, validateVelocityModel, type VelocityModel } from '../../../server/seismo/velocity-model';
+} from '@server/seismo/travel-time';
+import { DEFAULT_VELOCITY_MODEL, validateVelocityModel, type VelocityModel } from '@server/seismo/velocity-model';
 import { readSeismoFixture } from './read-fixture';
 
 const halfSpace: VelocityModel = { name: 'half-space', layers: [{ topKm: 0, vpKmS: 6, vsKmS: 3.5 }] };

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { clearDraft, describeUnsaved, draftKey, readDraft, unsavedWork, writeDraft, type DraftStorage, type ReviewDraftValues } from '../../../../client/src/features/review/lib/review-draft';
+import { clearDraft, describeUnsaved, draftKey, readDraft, unsavedWork, writeDraft, type DraftStorage, type ReviewDraftValues } from '@client/features/review/lib/review-draft';
 
 /** A Map-backed stand-in for sessionStorage (the Web Storage getItem/setItem/removeItem contract). */
 function memoryStorage(): DraftStorage & { map: Map<string, string> } {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { spectrogramExtent } from '../../../../client/src/features/review/lib/spectrogram-geometry';
+import { spectrogramExtent } from '@client/features/review/lib/spectrogram-geometry';
 
 describe('spectrogramExtent', () => {
   it('puts each column over its own hop (hand-worked: 12 000 samples at 100 Hz, 256-sample segments, 128-sample hop)', () => {

@@ -1,7 +1,7 @@
 import { renderToStaticMarkup } from 'react-dom/server';
 import { describe, expect, it } from 'vitest';
-import type { BaselineView } from '../../../../shared/schemas/station';
-import { BaselineSummary } from '../../../../client/src/features/stations/components/baseline-summary';
+import type { BaselineView } from '@shared/schemas/station';
+import { BaselineSummary } from '@client/features/stations/components/baseline-summary';
 
 /** Visible text of rendered markup (tags dropped, entities of the few characters used decoded, spaces collapsed). */
 const text = (html: string) => html.replace(/<[^>]+>/g, ' ').replace(/&quot;/g, '"').replace(/&amp;/g, '&').replace(/\s+/g, ' ').trim();

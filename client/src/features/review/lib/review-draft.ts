@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { distanceClasses, MAX_NOTE_CHARS, MAX_PICKS, noiseReasons, pickSchema, quakemlEventTypes, typeCertainties } from '../../../../../shared/schemas/label';
+import { distanceClasses, MAX_NOTE_CHARS, MAX_PICKS, noiseReasons, pickSchema, quakemlEventTypes, typeCertainties } from '@shared/schemas/label';
 
 /**
  * Review work not yet saved (picks placed, a note, the form's choices), kept per person and item in

@@ -1,5 +1,5 @@
-import type { BaselineView } from '../../../../../shared/schemas/station';
-import { Badge } from '../../../components/ui/badge';
+import type { BaselineView } from '@shared/schemas/station';
+import { Badge } from '@client/components/ui/badge';
 
 const sourceWords: Record<BaselineView['source'], [one: string, many: string]> = {
   dismissed: ['window an analyst dismissed as noise', 'windows an analyst dismissed as noise'],
