@@ -46,6 +46,8 @@ export const envSchema = z.object({
   SEISIFT_MAX_UPLOAD_FILES: positiveInt(20),
   /** Sessions end after this many hours without a request (sliding expiry). */
   SEISIFT_SESSION_IDLE_HOURS: positiveInt(24),
+  /** Live-update changes are kept this many hours; a client away longer reloads its lists instead of replaying. */
+  SEISIFT_CHANGE_LOG_KEEP_HOURS: positiveInt(24),
   /** A claimed queue item goes back to `new` after this many minutes without activity by its analyst. */
   SEISIFT_CLAIM_IDLE_MINUTES: positiveInt(15),
   /** Failed sign-ins allowed per account within SEISIFT_SIGNIN_WINDOW_S before 429. */

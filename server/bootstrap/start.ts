@@ -6,15 +6,11 @@
 import { demoUsers } from '@server/db/seed-demo';
 import type { AppContext } from '@server/context';
 import { ingestDemo } from '@server/demo/ingest-demo';
-import { defaultAnalysisPool } from '@server/features/ingest/ingest-upload';
-import { escalationListener } from '@server/features/supervision/escalations';
-import { publicBaseUrl } from '@server/email/links';
 import { ConfigError, loadEnv } from '@server/env';
 import { FakeSmtpError } from '@server/email/fake-smtp';
 import { setUpMail } from '@server/email/setup';
-import { createSessionStore } from '@server/auth/sessions';
 import { createLogger } from '@server/logger';
-import { createAppHub, ListenError, startServer } from '@server/index';
+import { createAppContext, ListenError, startServer } from '@server/index';
 import { appVersion } from '@server/version';
 import { buildClient, prepareApp, secondsSince } from './common';
 import { BootstrapError, type PrivateMariaDb } from './mariadb';
@@ -45,13 +41,12 @@ process.on('SIGTERM', () => void shutdown(0));
  */
 async function ingestDemoWindows(ctx: AppContext): Promise<void> {
   try {
-    const notify = (): void => ctx.hub.notify();
     const r = await ingestDemo({
       db: ctx.database.db,
-      pool: defaultAnalysisPool(),
-      notify,
+      pool: ctx.analysisPool,
+      notify: () => ctx.hub.notify(),
       logger: ctx.logger,
-      escalationListeners: [escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify, publicUrl: publicBaseUrl(ctx.env) })],
+      escalationListeners: ctx.escalationListeners,
     });
     for (const f of r.rejected) console.warn(`seisift: demo file ${f.filename} was refused: ${f.message}`);
     console.log(
@@ -82,14 +77,9 @@ try {
   // No SMTP_URL: start the local fake SMTP server (loopback only); the admin Mailbox page shows its mail.
   const mail = await setUpMail(env, database.db, { onError: (err) => logger.error({ err }, 'fake SMTP server error') });
   cleanups.push(() => mail.close());
-  // Expired sessions are refused when presented; this also removes the ones nobody presents again.
-  const sessionStore = createSessionStore(database.db, { idleHours: env.SEISIFT_SESSION_IDLE_HOURS });
-  const sweep = () => sessionStore.deleteExpired().catch((err: unknown) => logger.warn({ err }, 'could not delete expired sessions'));
-  await sweep();
-  const sweeper = setInterval(() => void sweep(), 3600_000);
-  sweeper.unref();
-  cleanups.push(async () => clearInterval(sweeper));
-  const ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env), mailer: mail.mailer };
+  // Periodic work (expired sessions, claim lapse, change-log pruning…) runs in startServer's scheduler.
+  const ctx = createAppContext({ env, database, mailer: mail.mailer, logger });
+  cleanups.push(() => ctx.close());
   if (env.SEISIFT_SEED_DEMO === '1') await ingestDemoWindows(ctx);
   const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
   cleanups.push(() => running.close());

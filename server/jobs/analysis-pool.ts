@@ -51,3 +51,25 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
     },
   };
 }
+
+/**
+ * The app's analysis pool (one per app context): `threads` worker threads, SEISIFT_ANALYSIS_THREADS
+ * (default one per core). One thread analyses a 120 s 3-component window in about 8–20 ms, so the
+ * 100 windows/s target needs two on a 2-core machine (docs/PERFORMANCE.md). The workers start with
+ * the first window, so a context that never ingests (most tests, the CLI) starts none.
+ */
+export function createLazyAnalysisPool(threads: number): AnalysisPool {
+  let pool: AnalysisPool | null = null;
+  return {
+    threads,
+    run(streams, profile, opts) {
+      pool ??= createAnalysisPool({ threads });
+      return pool.run(streams, profile, opts);
+    },
+    async close() {
+      const open = pool;
+      pool = null;
+      await open?.close();
+    },
+  };
+}

@@ -6,7 +6,6 @@ import { flagSchema } from '@shared/schemas/flags';
 import { channelResponseSchema } from '@shared/schemas/station';
 import type { UploadOutcome } from '@shared/schemas/upload';
 import type { Database, DbOrTx } from '@server/db/client';
-import { ConfigError, envSchema } from '@server/env';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { uploads, windowChannels, windows } from '@server/db/schema/uploads';
@@ -15,7 +14,7 @@ import type { AnalysisResult, AnalyzeOptions, ChannelResult } from '@server/dsp/
 import type { PolesZerosResponse } from '@server/dsp/response';
 import { decodeWaveform } from '@server/formats/decode';
 import { WaveformParseError, type DecodedStream } from '@server/formats/types';
-import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
+import type { AnalysisPool } from '@server/jobs/analysis-pool';
 import type { Logger } from '@server/logger';
 import { isDatabaseDown } from '@server/db/availability';
 import { presentQueueRow } from '@server/features/queue/presenters';
@@ -71,27 +70,6 @@ export interface IngestOptions {
   streamId?: string;
   /** Time of t = 0 for CSV files with relative times, µs since epoch (wins over a `# start=` line). */
   startTimeUs?: number;
-}
-
-let sharedPool: AnalysisPool | undefined;
-
-/**
- * The process's analysis pool, created on first use with `threads` worker threads (default:
- * SEISIFT_ANALYSIS_THREADS, else one per core: `max(1, availableParallelism())`). One thread
- * analyses a 120 s 3-component window in about 8–20 ms, so the 100 windows/s target needs two on a
- * 2-core machine (docs/PERFORMANCE.md). Idle workers do not keep the process alive.
- * @throws ConfigError when SEISIFT_ANALYSIS_THREADS is not a positive whole number
- */
-export function defaultAnalysisPool(threads: number = analysisThreads()): AnalysisPool {
-  sharedPool ??= createAnalysisPool({ threads });
-  return sharedPool;
-}
-
-/** SEISIFT_ANALYSIS_THREADS from `source` (validated like every setting), else one per core. */
-export function analysisThreads(source: NodeJS.ProcessEnv = process.env): number {
-  const r = envSchema.shape.SEISIFT_ANALYSIS_THREADS.safeParse(source.SEISIFT_ANALYSIS_THREADS);
-  if (!r.success) throw new ConfigError(`SEISIFT_ANALYSIS_THREADS: ${r.error.issues[0]?.message ?? 'invalid'} (got "${source.SEISIFT_ANALYSIS_THREADS ?? ''}")`);
-  return r.data;
 }
 
 /** A file-level refusal carrying the outcome's status and code. */

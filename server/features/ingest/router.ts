@@ -7,7 +7,7 @@ import { badRequest, forbidden, tooLarge, unauthorized, type AppError } from '@s
 import type { AnalysisPool } from '@server/jobs/analysis-pool';
 import { clientAddress, getRequestAuth } from '@server/auth/authenticate';
 import { parseInput } from '@server/http/validate';
-import { defaultAnalysisPool, ingestFiles, type IngestCaller, type IngestDeps } from './ingest-upload';
+import { ingestFiles, type IngestCaller, type IngestDeps } from './ingest-upload';
 
 const mb = (bytes: number) => `${Math.round((bytes / 1024 / 1024) * 100) / 100} MB`;
 
@@ -141,7 +141,7 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
     if (files.length === 0) throw badRequest('files: attach at least one file in the multipart field "files"');
     const deps: IngestDeps = {
       db: ctx.database.db,
-      pool: opts.pool ?? defaultAnalysisPool(),
+      pool: opts.pool ?? ctx.analysisPool,
       notify: () => ctx.hub.notify(),
       logger: ctx.logger,
       ...(opts.beforeCommit ? { beforeCommit: opts.beforeCommit } : {}),

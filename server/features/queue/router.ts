@@ -18,18 +18,12 @@ import {
   keepClaimAlive,
   labelItem,
   releaseItem,
-  type EscalationListener,
   type QueueServiceDeps,
 } from './queue-transitions';
 
 const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a queue item id (a whole number)').transform(Number) });
 
 /** Options of the queue router. */
-export interface QueueRouterOptions {
-  /** Run after an escalation commits (the supervisor issue adds e-mail and the inbox). */
-  escalationListeners?: readonly EscalationListener[];
-}
-
 /**
  * The review queue API (issue 6), mounted at /api/queue:
  * - `GET /` list with filters, keyset cursor and counts per state (queue.view; operators see their stations)
@@ -38,7 +32,7 @@ export interface QueueRouterOptions {
  *   a stale version or a state that does not allow the action answers 409 naming who changed it.
  * Every route needs a session (401) and the action's permission (403).
  */
-export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Router {
+export function queueRouter(ctx: AppContext): Router {
   const router = Router();
   const db = ctx.database.db;
   const deps = (req: Request): QueueServiceDeps => ({ db, notify: () => ctx.hub.notify(), ipAddress: clientAddress(req) });
@@ -118,7 +112,7 @@ export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Rou
     const body = parseInput(escalateBodySchema, req.body);
     await authorizeOnItem(user, 'queue.escalate', id);
     const onError = (err: unknown) => ctx.logger.error({ err, itemId: id }, 'escalation listener failed');
-    res.json(await escalateItem({ ...deps(req), onError }, person(user), id, body.version, { reason: body.reason }, opts.escalationListeners ?? []));
+    res.json(await escalateItem({ ...deps(req), onError }, person(user), id, body.version, { reason: body.reason }, ctx.escalationListeners));
   });
 
   return router;

@@ -21,7 +21,7 @@ import type { AuthUser } from '@server/auth/principal';
 import { parseInput } from '@server/http/validate';
 import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
 import { recordAudit } from '@server/features/audit/audit';
-import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
+import { getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
 import { buildCatalogueCsv } from './catalogue-csv';
 import { listReview, loadCatalogue, reviewNote, setEvaluationStatus } from './catalogue-review';
 import { dashboard } from './dashboard';
@@ -101,7 +101,6 @@ export function supervisorRouter(ctx: AppContext): Router {
   // Review of labelled events.
   router.get('/review', requirePermission('review.evaluate'), async (req, res) => {
     const q = parseInput(reviewQuerySchema, req.query, 'query');
-    await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
     res.json({ items: await listReview(db, q) });
   });
   router.post('/review/items/:id/status', requirePermission('review.evaluate'), async (req, res) => {
@@ -127,7 +126,6 @@ export function supervisorRouter(ctx: AppContext): Router {
   // Candidate events.
   router.get('/candidate-events', requirePermission('queue.view'), async (req, res) => {
     const q = parseInput(candidateQuery, req.query, 'query');
-    await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
     const scope = authorizedStations(currentUser(req), 'queue.view');
     const events = await listCandidateEvents(db, { from: new Date(q.from), to: new Date(q.to) });
     res.json({ events: events.map((e) => inScope(e, scope)).filter((e) => e !== null) });
@@ -185,7 +183,6 @@ export function supervisorRouter(ctx: AppContext): Router {
   router.get('/export', requirePermission('catalogue.export'), async (req, res) => {
     const q = parseInput(exportQuerySchema, req.query, 'query');
     const user = currentUser(req);
-    await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
     const period = { from: new Date(q.from), to: new Date(q.to) };
     const events = await loadCatalogue(db, period, q.status);
     const stamp = `${period.from.toISOString().slice(0, 10)}_${period.to.toISOString().slice(0, 10)}`;
