@@ -1,13 +1,13 @@
 import express, { type Express } from 'express';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { pinoHttp } from 'pino-http';
 import { createAuthKit } from './auth/kit';
 import { sessionCookieName } from './auth/sessions';
 import type { AppContext } from './context';
 import { authenticate } from './auth/authenticate';
 import { csrfProtection } from './auth/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
+import { requestLog } from './http/request-log';
 import { accountRouter } from './features/accounts/account-router';
 import { adminRouter } from './features/accounts/admin-router';
 import { auditRouter } from './features/audit/router';
@@ -31,13 +31,8 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
-  app.use(
-    pinoHttp({
-      logger: ctx.logger,
-      autoLogging: { ignore: (req) => req.url === '/api/health' },
-      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
-    }),
-  );
+  // One short line per request (method, path, status, ms, user id); never the headers.
+  app.use(requestLog(ctx.logger));
   app.use(express.json({ limit: '1mb' }));
 
   // Who is asking (session cookie, or `Authorization: Bearer` with a station's ingest token) and the CSRF check.

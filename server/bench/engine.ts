@@ -1,28 +1,142 @@
-import { spawnSync } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { availableParallelism, loadavg } from 'node:os';
+import { createInterface } from 'node:readline';
 import { fileURLToPath } from 'node:url';
 import Fili from 'fili';
 import { z } from 'zod';
 import { butterworthSos } from '@server/dsp/butterworth';
 import { analyzeWindow } from '@server/dsp/pipeline';
+import { NETWORK_DEFAULT_BASELINE } from '@server/dsp/score';
 import { sosfilt } from '@server/dsp/sosfilt';
 import type { DecodedStream } from '@server/formats/types';
 import { createAnalysisPool } from '@server/jobs/analysis-pool';
-import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
+import { defaultProcessingProfile, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import { median } from '@shared/math/median';
 import { timeRuns } from './timing';
 
 /**
  * `npm run bench:engine`: speed of the triage engine, printed.
- * 1. 3-component 120 s window at 100 sps (36 000 samples): median of 50 `analyzeWindow` runs, and
- *    the same steps in scipy (server/bench/scipy-engine.py, one python process, same input, same run).
+ * 1. 3-component 120 s window at 100 sps (36 000 samples): `analyzeWindow` against the same steps in
+ *    numpy/scipy (server/bench/scipy-engine.py: one python process, filters designed once, same input),
+ *    6 rounds of 10 runs each, interleaved; first a check that both give the same results.
  * 2. Our sosfilt loop against fili's IirFilter on the same sections.
- * 3. 1-hour 3-component window at 200 sps (2.16 M samples) in a child process: time and peak RSS.
+ * 3. 1-hour 3-component window at 200 sps (2.16 M samples) in a child process: time and peak RSS,
+ *    and the scipy reference on the same samples (two rounds of 3 runs each, interleaved).
  * 4. Pool throughput (windows/s) on 1 and on 2 worker threads.
  * Input: a deterministic synthetic signal (sines, a burst, LCG noise) — benchmark data only.
  */
 
 const here = fileURLToPath(import.meta.url);
+
+/** A running scipy reference process (server/bench/scipy-engine.py) holding one window. */
+interface ScipyReference {
+  /** Times `runs` analyses in the python process; ms each. */
+  run(runs: number): Promise<number[]>;
+  /** The reference's per-channel results of one analysis. */
+  result(): Promise<ScipyResult>;
+  close(): void;
+}
+
+const scipyResultSchema = z.object({
+  score: z.number(),
+  lead: z.number(),
+  channels: z.array(
+    z.object({
+      ratio: z.number().nullable(),
+      peak: z.number(),
+      onsets: z.array(z.number()),
+      main: z.number().nullable(),
+      snr: z.number().nullable(),
+      onsetSnr: z.number().nullable(),
+      dominantFrequency: z.number(),
+      signalSpectrum: z.object({ inBandSnr: z.number().nullable(), inBandShare: z.number().nullable() }).nullable(),
+    }),
+  ),
+});
+type ScipyResult = z.infer<typeof scipyResultSchema>;
+
+/**
+ * Starts the scipy reference on `win` with the engine's parameters (the profile, the bands the engine
+ * actually used, the network default baseline). It designs its filters once, then answers "run K"
+ * and "result" lines, so its rounds can be interleaved with ours on a shared machine.
+ */
+async function startScipy(win: readonly DecodedStream[], profile: ProcessingProfile): Promise<ScipyReference> {
+  const n = win[0]?.samples.length ?? 0;
+  const fs = win[0]?.sampleRateHz ?? 0;
+  const used = analyzeWindow(win, profile).channels[0]?.bands;
+  const params = { ...profile, bands: { ...profile.bands, low: used?.low, high: used?.high }, baseline: NETWORK_DEFAULT_BASELINE };
+  const py = spawn('/usr/bin/python3', [here.replace(/engine\.ts$/, 'scipy-engine.py'), String(win.length), String(n), String(fs), JSON.stringify(params)], {
+    stdio: ['pipe', 'pipe', 'inherit'],
+    // The reference's best case on a small shared machine (ours is one thread too): single-threaded
+    // BLAS, and glibc keeping freed memory instead of returning each array's pages to the system
+    // (measured: without it numpy's page faults make the reference about twice as slow per window).
+    env: { ...process.env, OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1', MALLOC_MMAP_THRESHOLD_: '1073741824', MALLOC_TRIM_THRESHOLD_: '1073741824', MALLOC_TOP_PAD_: '134217728' },
+  });
+  const lines = createInterface({ input: py.stdout })[Symbol.asyncIterator]();
+  const next = async (): Promise<string> => {
+    const r = await lines.next();
+    if (r.done) throw new Error('the scipy reference stopped (see its error above)');
+    return r.value;
+  };
+  const raw = new Float64Array(win.length * n);
+  win.forEach((s, c) => raw.set(s.samples, c * n));
+  py.stdin.write(Buffer.from(raw.buffer));
+  if ((await next()) !== 'ready') throw new Error('the scipy reference did not start');
+  return {
+    async run(runs) {
+      py.stdin.write(`run ${runs}\n`);
+      return z.object({ times: z.array(z.number()) }).parse(JSON.parse(await next())).times;
+    },
+    async result() {
+      py.stdin.write('result\n');
+      return scipyResultSchema.parse(JSON.parse(await next()));
+    },
+    close() {
+      py.stdin.end('quit\n');
+    },
+  };
+}
+
+/**
+ * Interleaved timing: `rounds` rounds of `runs` analyses each, ours then scipy's, so both see the same
+ * load on a shared machine. Returns every run's time, ms.
+ */
+async function interleaved(win: readonly DecodedStream[], ref: ScipyReference, rounds: number, runs: number): Promise<{ ours: number[]; scipy: number[] }> {
+  const ours: number[] = [];
+  const scipy: number[] = [];
+  for (let r = 0; r < rounds; r++) {
+    ours.push(...timeRuns(runs, () => analyzeWindow(win, defaultProcessingProfile)));
+    scipy.push(...(await ref.run(runs)));
+  }
+  return { ours, scipy };
+}
+
+/** Where the reference and the engine disagree on the same window (empty: they agree). */
+function disagreements(win: readonly DecodedStream[], ref: ScipyResult): string[] {
+  const ours = analyzeWindow(win, defaultProcessingProfile);
+  const out: string[] = [];
+  const near = (a: number | null | undefined, b: number | null | undefined, rel: number): boolean =>
+    a === null || a === undefined || b === null || b === undefined ? (a ?? null) === (b ?? null) : Math.abs(a - b) <= rel * Math.max(Math.abs(a), Math.abs(b), 1e-300);
+  ours.channels.forEach((c, i) => {
+    const r = ref.channels[i];
+    if (!r) return void out.push(`${c.id}: missing in the reference`);
+    const check = (what: string, a: number | null | undefined, b: number | null | undefined, rel: number): void => {
+      if (!near(a, b, rel)) out.push(`${c.id} ${what}: ours ${a}, scipy ${b}`);
+    };
+    check('band ratio', c.ratio, r.ratio, 1e-9);
+    check('STA/LTA peak', c.staLta.peak, r.peak, 1e-6);
+    check('main trigger', c.staLta.main, r.main, 0);
+    if (c.staLta.triggers.length !== r.onsets.length) out.push(`${c.id} triggers: ours ${c.staLta.triggers.length}, scipy ${r.onsets.length}`);
+    c.staLta.triggers.forEach((t, k) => check(`onset ${k}`, t.onset, r.onsets[k], 1e-9));
+    check('SNR', c.snr, r.snr, 1e-9);
+    check('onset SNR', c.onsetSnr, r.onsetSnr, 1e-9);
+    check('dominant frequency', c.dominantFrequency, r.dominantFrequency, 1e-9);
+    check('in-band SNR', c.signalSpectrum?.inBandSnr, r.signalSpectrum?.inBandSnr, 1e-6);
+    check('in-band share', c.signalSpectrum?.inBandShare, r.signalSpectrum?.inBandShare, 1e-9);
+  });
+  if (Math.abs(ours.score - ref.score) > 0.1 + 1e-9) out.push(`score: ours ${ours.score}, scipy ${ref.score}`);
+  return out;
+}
 
 function lcgNoise(seed: number, n: number): Float64Array {
   const out = new Float64Array(n);
@@ -73,28 +187,22 @@ async function main(): Promise<void> {
     return;
   }
 
-  const RUNS = 50;
+  const ROUNDS = 6;
+  const RUNS = 10;
   const win = makeWindow(100, 120, 1);
   const total = win.reduce((n, s) => n + s.samples.length, 0);
   console.log(`engine benchmark — Node ${process.version}, ${total} samples (3 × 120 s at 100 sps); load average ${loadavg().map((v) => v.toFixed(2)).join(' ')} on ${availableParallelism()} cores`);
   for (let i = 0; i < 15; i++) analyzeWindow(win, defaultProcessingProfile);
-  const ours = timeRuns(RUNS, () => analyzeWindow(win, defaultProcessingProfile));
-  const oursMed = median(ours);
-  console.log(`analyzeWindow: median ${f2(oursMed)} ms, min ${f2(Math.min(...ours))} ms over ${RUNS} runs (target ≤ 5 ms)`);
-
-  const raw = new Float64Array(total);
-  win.forEach((s, c) => raw.set(s.samples, c * s.samples.length));
-  const py = spawnSync('/usr/bin/python3', [here.replace(/engine\.ts$/, 'scipy-engine.py'), '3', String(win[0]?.samples.length), '100', String(RUNS)], {
-    input: Buffer.from(raw.buffer),
-    encoding: 'utf8',
-  });
-  if (py.status === 0) {
-    const r = z.object({ medianMs: z.number(), minMs: z.number() }).parse(JSON.parse(py.stdout));
-    console.log(`scipy same steps: median ${f2(r.medianMs)} ms, min ${f2(r.minMs)} ms over ${RUNS} runs`);
-    console.log(`ratio scipy/ours: ${f2(r.medianMs / oursMed)}× (target > 1: faster than scipy)`);
-  } else {
-    console.log(`scipy run failed (${py.status}): ${py.stderr.trim()}`);
-  }
+  const ref = await startScipy(win, defaultProcessingProfile);
+  const wrong = disagreements(win, await ref.result());
+  console.log(wrong.length === 0 ? 'scipy reference (server/bench/scipy-engine.py, filters designed once) agrees with the engine: band ratios, STA/LTA peaks, triggers and AIC onsets, SNRs, dominant frequencies, in-band SNR, score' : `scipy reference DISAGREES with the engine:\n  ${wrong.join('\n  ')}`);
+  const t = await interleaved(win, ref, ROUNDS, RUNS);
+  ref.close();
+  const oursMed = median(t.ours);
+  const pyMed = median(t.scipy);
+  console.log(`analyzeWindow: median ${f2(oursMed)} ms, min ${f2(Math.min(...t.ours))} ms over ${t.ours.length} runs (target ≤ 5 ms)`);
+  console.log(`scipy same steps: median ${f2(pyMed)} ms, min ${f2(Math.min(...t.scipy))} ms over ${t.scipy.length} runs (interleaved with ours, ${ROUNDS} rounds of ${RUNS})`);
+  console.log(`ratio scipy/ours: median ${f2(pyMed / oursMed)}×, min ${f2(Math.min(...t.scipy) / Math.min(...t.ours))}× (target ≥ 1.5×)`);
 
   // sosfilt: our loop against fili's IirFilter (same sections, both from zero state).
   const sos = butterworthSos(4, [2, 10], 'bandpass', 100);
@@ -113,12 +221,31 @@ async function main(): Promise<void> {
   const tFili = median(timeRuns(RUNS, () => new Fili.IirFilter(sections).multiStep(x)));
   console.log(`sosfilt 12 000 samples, 4 sections: ours ${(tOurs * 1000).toFixed(0)} µs, fili IirFilter ${(tFili * 1000).toFixed(0)} µs (${f2(tFili / tOurs)}× slower)`);
 
-  const child = spawnSync(process.execPath, ['--import', 'tsx', here, '--long-child'], { encoding: 'utf8', maxBuffer: 1 << 24 });
-  if (child.status === 0) {
-    const r = z.object({ medianMs: z.number(), maxRssMb: z.number(), samples: z.number() }).parse(JSON.parse(child.stdout));
-    console.log(`1-hour window, 3 × 3600 s at 200 sps (${r.samples} samples): median ${f2(r.medianMs)} ms of 3 (target < 1500 ms), peak RSS ${r.maxRssMb.toFixed(0)} MB (target < 400 MB)`);
-  } else {
-    console.log(`long-window child failed (${child.status}): ${child.stderr.trim()}`);
+  // 1-hour window: ours in a child process (for its own peak RSS), then scipy on the same samples;
+  // two rounds each, interleaved.
+  const long = makeWindow(200, 3600, 7);
+  const longRef = await startScipy(long, defaultProcessingProfile);
+  const longOurs: number[] = [];
+  const longPy: number[] = [];
+  let longRss = 0;
+  let longFailed = '';
+  for (let round = 0; round < 2 && !longFailed; round++) {
+    const child = spawnSync(process.execPath, ['--import', 'tsx', here, '--long-child'], { encoding: 'utf8', maxBuffer: 1 << 24 });
+    if (child.status !== 0) {
+      longFailed = `long-window child failed (${child.status}): ${child.stderr.trim()}`;
+      break;
+    }
+    const r = z.object({ times: z.array(z.number()), maxRssMb: z.number() }).parse(JSON.parse(child.stdout));
+    longOurs.push(...r.times);
+    longRss = Math.max(longRss, r.maxRssMb);
+    longPy.push(...(await longRef.run(3)));
+  }
+  longRef.close();
+  if (longFailed) console.log(longFailed);
+  else {
+    const lo = median(longOurs);
+    const lp = median(longPy);
+    console.log(`1-hour window, 3 × 3600 s at 200 sps (${long.reduce((n, s) => n + s.samples.length, 0)} samples): ours median ${f2(lo)} ms of ${longOurs.length} (target < 1500 ms), peak RSS ${longRss.toFixed(0)} MB (target < 400 MB); scipy same steps median ${f2(lp)} ms of ${longPy.length}; ratio scipy/ours ${f2(lp / lo)}×`);
   }
 
   // Pool throughput: 1 and 2 threads, three rounds each, interleaved (the machine is shared, so

@@ -53,7 +53,6 @@ export async function freePort(): Promise<number> {
   });
 }
 
-/** Builds the client with Vite (its own binary, so it can be stopped by PID). */
 /**
  * `tsc --noEmit` over the whole project, then `eslint .` (eslint.config.js: type-aware rules and
  * the import boundaries). Throws BootstrapError naming the step that found errors; their messages
@@ -70,8 +69,14 @@ export function checkTypesAndLint(): void {
   }
 }
 
-export function buildClient(): void {
-  const r = spawnSync(process.execPath, ['node_modules/.bin/vite', 'build', '--logLevel', 'warn'], { stdio: 'inherit' });
+/**
+ * Builds the client with Vite (its own binary, so it can be stopped by PID).
+ * @param opts.devPages keep the design reference in the build (the test run's build; never `npm start`'s)
+ */
+export function buildClient(opts: { devPages?: boolean } = {}): void {
+  // VITE_SEISIFT_DEV_PAGES=1 keeps the design reference in the build (client/src/config/build-flags.ts); production builds leave it out.
+  const env = { ...process.env, VITE_SEISIFT_DEV_PAGES: opts.devPages ? '1' : '' };
+  const r = spawnSync(process.execPath, ['node_modules/.bin/vite', 'build', '--logLevel', 'warn'], { stdio: 'inherit', env });
   if (r.status !== 0) throw new BootstrapError('the client build (vite build) failed; see the messages above');
 }
 

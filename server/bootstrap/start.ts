@@ -51,7 +51,7 @@ async function ingestDemoWindows(ctx: AppContext): Promise<void> {
     for (const f of r.rejected) console.warn(`seisift: demo file ${f.filename} was refused: ${f.message}`);
     console.log(
       r.created > 0
-        ? `seisift: demo windows ingested (${r.created} files, ${r.items} queue items; the demo analyst labelled ${r.labelled}, dismissed ${r.dismissed}, escalated ${r.escalated}) in ${r.seconds.toFixed(1)} s`
+        ? `seisift: demo windows ingested (${r.created} files, ${r.items} queue items; the demo analyst dismissed ${r.historyDismissed} history windows as the stations' noise baseline, then labelled ${r.labelled}, dismissed ${r.dismissed}, escalated ${r.escalated}) in ${r.seconds.toFixed(1)} s`
         : `seisift: demo windows already ingested (${r.duplicates} of ${r.files} files)`,
     );
   } catch (err) {

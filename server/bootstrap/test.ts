@@ -29,8 +29,8 @@ try {
   const vitestArgs = process.argv.slice(2);
   if (vitestArgs.length === 0) checkTypesAndLint();
   else console.log('seisift: a targeted run: type check and lint skipped (npm run lint)');
-  console.log('seisift: building the client for the browser tests…');
-  buildClient();
+  console.log('seisift: building the client for the browser tests (with the design reference)…');
+  buildClient({ devPages: true });
 
   const outDir = resolve('.data');
   mkdirSync(outDir, { recursive: true });

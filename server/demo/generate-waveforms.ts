@@ -1,7 +1,8 @@
 /**
  * `npm run demo:generate [-- --out DIR]`: writes the invented Kestrel Valley demo day into
  * demo-waveforms/ (or DIR): MiniSEED 2 Steim-2 windows (one file per station window with its three
- * channels), a few single-channel CSV windows, the network's StationXML and manifest.json (what each
+ * channels; a window with a telemetry gap as two files, before and after it), a few single-channel
+ * CSV windows, the network's StationXML and manifest.json (what each
  * file holds, the events with their arrival times). Deterministic: a second run writes byte-identical
  * files. Invented data, for the demo only.
  */
@@ -18,16 +19,21 @@ import {
   DEMO_SAMPLE_RATE_HZ,
   DEMO_SENSITIVITY,
   DEMO_WINDOW_S,
+  HISTORY_DAYS,
   RG_KM_S,
   VP_KM_S,
   VS_KM_S,
   demoStation,
   eventAtStation,
   planDemoWindows,
+  planHistoryWindows,
   type PlannedWindow,
 } from './scenario';
 import { demoStationXml } from './stationxml';
-import { synthesizeWindow } from './synth';
+import { dismissalReason, synthesizeWindow } from './synth';
+
+/** The folders of demo-waveforms/ the generator owns. */
+export const DEMO_FILE_FOLDERS = ['mseed', 'history', 'csv', 'stationxml'] as const;
 
 /** One generated file: its path relative to the output folder and its bytes. */
 export interface DemoFile {
@@ -48,6 +54,8 @@ export interface DemoManifestFile {
   contents: string[];
   /** Events in the window: id, type and arrival times (ISO) at this station. */
   events: { id: string; type: string; p: string; s: string; hypocentralKm: number }[];
+  /** History windows only: the noise reason the demo analyst dismissed it with (server/demo/synth.ts `dismissalReason`). */
+  noiseReason?: ReturnType<typeof dismissalReason>;
 }
 
 /** The manifest (demo-waveforms/manifest.json). */
@@ -70,68 +78,75 @@ export interface DemoManifest {
   }[];
 }
 
-/** File name stem of a window: `XX.KV03.2026-03-14T09-26-40` (MiniSEED) or `XX.KV05.00.HHZ.2026-03-14T15-22-00` (CSV). */
+/**
+ * Path of a window's file: `mseed/XX.KV03.2026-03-14T09-26-40.mseed` (MiniSEED of the demo day),
+ * `history/XX.KV03.2026-03-09T04-17-23.mseed` (the noise history before it) or
+ * `csv/XX.KV05.00.HHZ.2026-03-14T15-22-00.csv` (CSV).
+ */
 export function demoFileName(w: PlannedWindow): string {
   const t = new Date(w.startUs / 1000).toISOString().slice(0, 19).replace(/:/gu, '-');
-  return w.format === 'mseed' ? `mseed/${DEMO_NETWORK}.${w.station}.${t}.mseed` : `csv/${DEMO_NETWORK}.${w.station}.00.${w.channels[0] ?? 'HHZ'}.${t}.csv`;
+  if (w.format === 'csv') return `csv/${DEMO_NETWORK}.${w.station}.00.${w.channels[0] ?? 'HHZ'}.${t}.csv`;
+  return `${w.reason === 'history' ? 'history' : 'mseed'}/${DEMO_NETWORK}.${w.station}.${t}.mseed`;
 }
 
 /**
- * Generates every demo file in memory (no I/O): the planned windows of {@link planDemoWindows},
- * `stationxml/XX.xml` and `manifest.json`, in a fixed order.
+ * Generates every demo file in memory (no I/O): the stations' noise history of
+ * {@link planHistoryWindows}, the demo day's windows of {@link planDemoWindows}, `stationxml/XX.xml`
+ * and `manifest.json`, in a fixed order (history first, as it is ingested).
  * @throws RangeError when the plan contradicts itself or a window cannot be encoded
  */
 export function buildDemoFiles(): DemoFile[] {
   const files: DemoFile[] = [];
   const manifestFiles: DemoManifestFile[] = [];
-  const plan = planDemoWindows();
+  const plan = [...planHistoryWindows(), ...planDemoWindows()];
   const fileOf = new Map<string, string>();
   for (const w of plan) {
     const syn = synthesizeWindow(w.station, w.startUs, w.glitch);
-    const path = demoFileName(w);
-    let bytes: Uint8Array;
-    if (w.format === 'mseed') {
-      const pieces: CountsPiece[] = [];
-      for (const ch of w.channels) {
-        const samples = syn.counts[ch];
-        const base = { network: DEMO_NETWORK, station: w.station, location: '00', channel: ch, sampleRateHz: DEMO_SAMPLE_RATE_HZ };
-        if (syn.gap) {
-          pieces.push({ ...base, startTimeUs: w.startUs, samples: samples.slice(0, syn.gap.from) });
-          pieces.push({ ...base, startTimeUs: w.startUs + (syn.gap.to * 1e6) / DEMO_SAMPLE_RATE_HZ, samples: samples.slice(syn.gap.to) });
-        } else {
-          pieces.push({ ...base, startTimeUs: w.startUs, samples });
-        }
+    const n = syn.counts[w.channels[0] ?? 'HHZ'].length;
+    // A window with a telemetry gap is sent as its two continuous parts, one file each, as a
+    // station has to: an upload whose samples cannot all sit at their times is refused.
+    const parts = syn.gap ? [{ from: 0, to: syn.gap.from }, { from: syn.gap.to, to: n }] : [{ from: 0, to: n }];
+    parts.forEach((part, k) => {
+      const startUs = w.startUs + (part.from * 1e6) / DEMO_SAMPLE_RATE_HZ;
+      const endUs = w.startUs + (part.to * 1e6) / DEMO_SAMPLE_RATE_HZ;
+      const path = demoFileName({ ...w, startUs });
+      let bytes: Uint8Array;
+      if (w.format === 'mseed') {
+        const pieces: CountsPiece[] = w.channels.map((ch) => ({ network: DEMO_NETWORK, station: w.station, location: '00', channel: ch, sampleRateHz: DEMO_SAMPLE_RATE_HZ, startTimeUs: startUs, samples: syn.counts[ch].slice(part.from, part.to) }));
+        bytes = encodeDemoMiniSeed(pieces);
+      } else {
+        const ch = w.channels[0] ?? 'HHZ';
+        const text = encodeDemoCsv(`${DEMO_NETWORK}.${w.station}.00.${ch}`, startUs, DEMO_SAMPLE_RATE_HZ, syn.counts[ch].slice(part.from, part.to), 'Kestrel Valley demo (invented data); counts at 1.5e9 counts per m/s');
+        bytes = new TextEncoder().encode(text);
       }
-      bytes = encodeDemoMiniSeed(pieces);
-    } else {
-      const ch = w.channels[0] ?? 'HHZ';
-      const text = encodeDemoCsv(`${DEMO_NETWORK}.${w.station}.00.${ch}`, w.startUs, DEMO_SAMPLE_RATE_HZ, syn.counts[ch], 'Kestrel Valley demo (invented data); counts at 1.5e9 counts per m/s');
-      bytes = new TextEncoder().encode(text);
-    }
-    files.push({ path, bytes });
-    for (const { event } of syn.events) fileOf.set(`${event.id}/${w.station}`, path);
-    manifestFiles.push({
-      file: path,
-      format: w.format === 'mseed' ? 'mseed2-steim2' : 'csv',
-      station: w.station,
-      streams: w.channels.map((ch) => `${DEMO_NETWORK}.${w.station}.00.${ch}`),
-      start: formatIsoTimeUs(w.startUs),
-      durationS: DEMO_WINDOW_S,
-      reason: w.reason,
-      contents: syn.contents,
-      events: syn.events.map(({ event, at }) => ({
-        id: event.id,
-        type: event.type,
-        p: formatIsoTimeUs(at.pArrivalUs),
-        s: formatIsoTimeUs(at.sArrivalUs),
-        hypocentralKm: Number(at.hypocentralKm.toFixed(3)),
-      })),
+      const events = parts.length === 1 ? syn.events : syn.events.filter(({ at }) => at.pArrivalUs >= startUs && at.pArrivalUs < endUs);
+      files.push({ path, bytes });
+      for (const { event } of events) fileOf.set(`${event.id}/${w.station}`, path);
+      const partNote = parts.length === 1 ? [] : [k === 0 ? `part 1 of 2: the ${(part.to - part.from) / DEMO_SAMPLE_RATE_HZ} s before the gap (the rest is the next file)` : `part 2 of 2: the ${(part.to - part.from) / DEMO_SAMPLE_RATE_HZ} s after the gap`];
+      manifestFiles.push({
+        file: path,
+        format: w.format === 'mseed' ? 'mseed2-steim2' : 'csv',
+        station: w.station,
+        streams: w.channels.map((ch) => `${DEMO_NETWORK}.${w.station}.00.${ch}`),
+        start: formatIsoTimeUs(startUs),
+        durationS: (part.to - part.from) / DEMO_SAMPLE_RATE_HZ,
+        reason: w.reason,
+        contents: [...syn.contents, ...partNote],
+        events: events.map(({ event, at }) => ({
+          id: event.id,
+          type: event.type,
+          p: formatIsoTimeUs(at.pArrivalUs),
+          s: formatIsoTimeUs(at.sArrivalUs),
+          hypocentralKm: Number(at.hypocentralKm.toFixed(3)),
+        })),
+        ...(w.reason === 'history' ? { noiseReason: dismissalReason(syn.noise) } : {}),
+      });
     });
   }
   files.push({ path: `stationxml/${DEMO_NETWORK}.xml`, bytes: new TextEncoder().encode(demoStationXml(demoStations)) });
 
   const manifest: DemoManifest = {
-    description: `Invented Kestrel Valley demo day ${DEMO_DAY} (network ${DEMO_NETWORK}); written by npm run demo:generate`,
+    description: `Invented Kestrel Valley demo day ${DEMO_DAY} (network ${DEMO_NETWORK}) and each station's noise history of the ${HISTORY_DAYS} days before it (reason "history"); written by npm run demo:generate`,
     sampleRateHz: DEMO_SAMPLE_RATE_HZ,
     windowS: DEMO_WINDOW_S,
     units: 'counts (int32); ground velocity = counts / sensitivity',
@@ -166,11 +181,11 @@ export function buildDemoFiles(): DemoFile[] {
 
 /**
  * Writes the demo files into `outDir` (creating folders), first removing `.mseed`/`.csv`/`.xml`
- * files of earlier runs from its mseed/, csv/ and stationxml/ folders (README.md is left alone).
+ * files of earlier runs from its mseed/, history/, csv/ and stationxml/ folders (README.md is left alone).
  * @returns the files written and their total size in bytes
  */
 export function writeDemoFiles(outDir: string): { files: DemoFile[]; totalBytes: number } {
-  for (const sub of ['mseed', 'csv', 'stationxml']) {
+  for (const sub of DEMO_FILE_FOLDERS) {
     const dir = join(outDir, sub);
     mkdirSync(dir, { recursive: true });
     for (const name of readdirSync(dir)) if (/\.(mseed|csv|xml)$/u.test(name)) rmSync(join(dir, name));

@@ -1,20 +1,26 @@
 /**
  * The `npm start` demo step: ingests the demo windows of demo-waveforms/ through the real ingest
  * service (decode → analysis → upload, window, queue item, audit and change-log rows), each file as
- * its station sends it (with a per-station ingest token labelled "demo seed"), then — only for the
- * items this run created — has the demo analyst work a handful through the real queue services:
- * a few labelled (earthquake, quarry blast), a few dismissed as noise, two escalated. Idempotent:
- * files whose SHA-256 is already stored are skipped, so a second start adds nothing.
+ * its station sends it (with a per-station ingest token labelled "demo seed"), in two steps:
+ * 1. The stations' noise history (manifest reason `history`: routine windows of the days before the
+ *    demo day), each dismissed at once by the demo analyst through the real queue services (claim,
+ *    then dismiss with the noise reason the generator knows; audit rows are written), so that every
+ *    station has its own dismissed-noise baseline (server/features/stations/station-baseline.ts).
+ * 2. The demo day, scored at ingest against that baseline; then — only for the items this run
+ *    created — the demo analyst works a handful: a few labelled (earthquake, quarry blast), a few
+ *    dismissed as noise, two escalated.
+ * Idempotent: files whose SHA-256 is already stored are skipped, so a second start adds nothing; a
+ * history item a broken earlier run left undismissed (still `new`) is dismissed on the next.
  */
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { and, eq, inArray, isNull } from 'drizzle-orm';
 import { z } from 'zod';
-import { eventLabelSchema, type EventLabelInput, type NoiseReason } from '@shared/schemas/label';
+import { eventLabelSchema, noiseReasons, type EventLabelInput, type NoiseReason } from '@shared/schemas/label';
 import type { Database } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
 import { ingestTokens, stations } from '@server/db/schema/stations';
-import { uploads } from '@server/db/schema/uploads';
+import { uploads, windows } from '@server/db/schema/uploads';
 import { users } from '@server/db/schema/users';
 import type { AnalysisPool } from '@server/jobs/analysis-pool';
 import type { Logger } from '@server/logger';
@@ -35,7 +41,9 @@ const manifestSchema = z.object({
       station: z.string().regex(/^KV0[1-6]$/u),
       start: z.string(),
       streams: z.array(z.string()),
-      reason: z.enum(['routine', 'trigger', 'manual']),
+      reason: z.enum(['routine', 'trigger', 'manual', 'history']),
+      /** History windows: the noise reason they are dismissed with. */
+      noiseReason: z.enum(noiseReasons).optional(),
       events: z.array(z.object({ id: z.string(), type: z.string(), p: z.string(), s: z.string(), hypocentralKm: z.number() })),
     }),
   ),
@@ -86,6 +94,8 @@ export interface DemoIngestReport {
   rejected: { filename: string; message: string }[];
   /** Queue items created by this run. */
   items: number;
+  /** History items the demo analyst dismissed in this run (the stations' noise history). */
+  historyDismissed: number;
   labelled: number;
   dismissed: number;
   escalated: number;
@@ -111,6 +121,15 @@ async function seedCaller(db: Database, stationId: number): Promise<IngestCaller
 function uploadName(path: string): string {
   return path.slice(path.lastIndexOf('/') + 1);
 }
+
+/** Analyst's note on a dismissed history window, by noise reason (invented, for the demo). */
+const HISTORY_NOTES: Record<NoiseReason, string> = {
+  traffic: 'Vehicle passes on the valley highway.',
+  wind: 'Wind gusts.',
+  machinery: 'Pumping station running.',
+  'instrument glitch': 'Digitiser glitch.',
+  'unknown noise': 'Ordinary site noise, nothing in particular.',
+};
 
 /** What the demo analyst does with an item, by file and event (invented, for the demo). */
 type DemoAction =
@@ -170,7 +189,7 @@ export function demoActions(manifest: DemoIngestManifest): Map<string, DemoActio
 /**
  * Ingests the demo windows (see the module comment).
  * @param opts.dir the demo-waveforms folder (default: the repository's)
- * @param opts.work false to ingest only (no labels); default true
+ * @param opts.work false to ingest only (no dismissals, labels or escalations); default true
  * @returns what was done
  * @throws Error when the manifest is unreadable, a listed file is missing, or a demo station is not
  *   registered (run the demo seed first)
@@ -198,40 +217,96 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
   const stationId = new Map(stationRows.map((r) => [r.code, r.id]));
   const callers = new Map<string, IngestCaller>();
 
-  const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, labelled: 0, dismissed: 0, escalated: 0, seconds: 0 };
-  const createdItems = new Map<string, number[]>();
-  for (const f of files) {
-    if (known.has(f.sha)) {
-      report.duplicates++;
-      continue;
+  const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, historyDismissed: 0, labelled: 0, dismissed: 0, escalated: 0, seconds: 0 };
+  const ingestAll = async (list: typeof files, concurrency = 1): Promise<Map<string, number[]>> => {
+    const createdItems = new Map<string, number[]>();
+    // Callers first, one per station (creating a token is not safe to race).
+    for (const f of list) {
+      if (known.has(f.sha) || callers.has(f.entry.station)) continue;
+      const id = stationId.get(f.entry.station);
+      if (id === undefined) throw new Error(`demo station XX.${f.entry.station} is not registered: the demo seed (seedDemo) must run first`);
+      callers.set(f.entry.station, await seedCaller(db, id));
     }
-    const id = stationId.get(f.entry.station);
-    if (id === undefined) throw new Error(`demo station XX.${f.entry.station} is not registered: the demo seed (seedDemo) must run first`);
-    let caller = callers.get(f.entry.station);
-    if (!caller) {
-      caller = await seedCaller(db, id);
-      callers.set(f.entry.station, caller);
-    }
-    const name = uploadName(f.entry.file);
-    const outcome = await ingestFile(deps, { filename: name, contentType: name.endsWith('.csv') ? 'text/csv' : 'application/vnd.fdsn.mseed', bytes: f.bytes }, caller);
-    if (outcome.status === 'created') {
-      report.created++;
-      const ids = outcome.itemIds ?? outcome.items?.map((i) => i.id) ?? [];
-      report.items += ids.length;
-      createdItems.set(f.entry.file, ids);
-    } else if (outcome.status === 'duplicate') {
-      report.duplicates++;
-    } else {
-      report.rejected.push({ filename: name, message: outcome.message ?? outcome.code ?? 'rejected' });
-    }
-  }
+    await eachLimited(list, concurrency, async (f) => {
+      if (known.has(f.sha)) {
+        report.duplicates++;
+        return;
+      }
+      const caller = callers.get(f.entry.station);
+      if (!caller) throw new Error(`demo station XX.${f.entry.station} has no ingest caller`);
+      const name = uploadName(f.entry.file);
+      const outcome = await ingestFile(deps, { filename: name, contentType: name.endsWith('.csv') ? 'text/csv' : 'application/vnd.fdsn.mseed', bytes: f.bytes }, caller);
+      if (outcome.status === 'created') {
+        report.created++;
+        const ids = outcome.itemIds ?? outcome.items?.map((i) => i.id) ?? [];
+        report.items += ids.length;
+        createdItems.set(f.entry.file, ids);
+      } else if (outcome.status === 'duplicate') {
+        report.duplicates++;
+      } else {
+        report.rejected.push({ filename: name, message: outcome.message ?? outcome.code ?? 'rejected' });
+      }
+    });
+    return createdItems;
+  };
+  const work = opts.work !== false;
+  const analyst = work
+    ? (await db.select({ id: users.id, displayName: users.displayName, email: users.email }).from(users).where(eq(users.email, DEMO_ANALYST_EMAIL)))[0]
+    : undefined;
 
-  if (opts.work !== false && createdItems.size > 0) {
-    const [analyst] = await db.select({ id: users.id, displayName: users.displayName, email: users.email }).from(users).where(eq(users.email, DEMO_ANALYST_EMAIL));
-    if (analyst) await workItems(deps, analyst, demoActions(manifest), createdItems, report);
-  }
+  // 1. The noise history, dismissed before the demo day is scored against it.
+  const history = files.filter((f) => f.entry.reason === 'history');
+  await ingestAll(history, HISTORY_CONCURRENCY);
+  if (analyst && history.length > 0) report.historyDismissed = await dismissHistory(deps, analyst, history);
+
+  // 2. The demo day.
+  const createdItems = await ingestAll(files.filter((f) => f.entry.reason !== 'history'));
+  if (analyst && createdItems.size > 0) await workItems(deps, analyst, demoActions(manifest), createdItems, report);
   report.seconds = (performance.now() - t0) / 1000;
   return report;
+}
+
+/**
+ * Has the demo analyst dismiss every history item still `new` (those this run created, and any a
+ * broken earlier run left): claim, then dismiss with the manifest's noise reason, through the queue
+ * services an analyst's dismissal uses. Items someone else already took are left alone.
+ * @returns how many were dismissed
+ */
+async function dismissHistory(deps: DemoIngestDeps, analyst: QueuePerson, history: ReadonlyArray<{ entry: DemoIngestManifest['files'][number]; sha: string }>): Promise<number> {
+  const reasonBySha = new Map(history.map((f) => [f.sha, f.entry.noiseReason ?? 'unknown noise']));
+  const open = await deps.db
+    .select({ id: queueItems.id, version: queueItems.version, sha: uploads.sha256 })
+    .from(queueItems)
+    .innerJoin(windows, eq(windows.id, queueItems.windowId))
+    .innerJoin(uploads, eq(uploads.id, windows.uploadId))
+    .where(and(inArray(uploads.sha256, [...reasonBySha.keys()]), eq(queueItems.state, 'new')))
+    .orderBy(queueItems.windowStart);
+  const qdeps = { db: deps.db, notify: deps.notify, ipAddress: null };
+  await eachLimited(open, HISTORY_CONCURRENCY, async (item) => {
+    const noiseReason = reasonBySha.get(item.sha) ?? 'unknown noise';
+    const claimed = await claimItem(qdeps, analyst, item.id, item.version);
+    await dismissItem(qdeps, analyst, item.id, claimed.version, { noiseReason, note: HISTORY_NOTES[noiseReason] });
+  });
+  return open.length;
+}
+
+/**
+ * How many history files are ingested (and items dismissed) at once: their order does not matter
+ * (no two overlap, each is dismissed whatever its flag), and overlapping the analysis in the worker
+ * pool with the database round trips keeps `npm start` short.
+ */
+const HISTORY_CONCURRENCY = 4;
+
+/** Runs `fn` over `items` with at most `limit` calls in flight; rejects with the first error. */
+async function eachLimited<T>(items: readonly T[], limit: number, fn: (item: T) => Promise<void>): Promise<void> {
+  let next = 0;
+  const worker = async (): Promise<void> => {
+    while (next < items.length) {
+      const item = items[next++] as T;
+      await fn(item);
+    }
+  };
+  await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, items.length)) }, worker));
 }
 
 async function workItems(deps: DemoIngestDeps, analyst: QueuePerson, actions: Map<string, DemoAction>, createdItems: Map<string, number[]>, report: DemoIngestReport): Promise<void> {

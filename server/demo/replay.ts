@@ -1,9 +1,9 @@
 /**
- * `npm run demo:replay`: sends the demo windows to a running Seisift through POST /api/uploads,
- * each with its station's ingest token, at a steady pace, with the start times moved to "now" so
- * the live queue moves while someone watches. Every window is re-encoded with our MiniSEED writer
- * (or CSV writer) at its new start time, so its SHA-256 differs from the stored demo files and from
- * earlier replays: nothing is a duplicate. Windows that share a start time in the demo (one event
+ * `npm run demo:replay`: sends the demo day's windows (not the stations' noise history) to a running
+ * Seisift through POST /api/uploads, each with its station's ingest token, at a steady pace, with
+ * the start times moved to "now" so the live queue moves while someone watches. Every window is
+ * re-encoded with our MiniSEED writer (or CSV writer) at its new start time, so its SHA-256 differs
+ * from the stored demo files and from earlier replays: nothing is a duplicate. Windows that share a start time in the demo (one event
  * seen by several stations) keep sharing one, so they still group as one candidate event.
  *
  * Tokens (see `--help`): `--token NET.STA=SECRET` (repeatable) or SEISIFT_INGEST_TOKEN with the same
@@ -172,7 +172,8 @@ export async function replayDemo(opts: ReplayOptions): Promise<ReplayReport> {
   const manifest = readDemoManifest(dir);
   const codes = [...new Set(manifest.files.map((f) => f.station))].sort();
   const tokens = opts.tokens ?? (opts.credentials ? await makeTokens(opts.url, opts.credentials, codes) : new Map<string, string>());
-  const files = manifest.files.filter((f) => tokens.has(f.station));
+  // The stations' noise history is what the seed dismisses; a replay sends the demo day.
+  const files = manifest.files.filter((f) => f.reason !== 'history' && tokens.has(f.station));
   if (files.length === 0) {
     throw new ReplayError(
       opts.tokens

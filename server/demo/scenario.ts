@@ -4,6 +4,7 @@
  * demo; nothing is a check value.
  */
 import { demoNetwork, demoStations } from '@server/db/seed-demo';
+import { prngFor } from './prng';
 
 /** Sample rate of every demo channel, Hz. */
 export const DEMO_SAMPLE_RATE_HZ = 100;
@@ -166,8 +167,11 @@ export interface PlannedWindow {
   /** Channels in the file (CSV: one). */
   channels: readonly DemoChannel[];
   glitch?: DemoGlitch;
-  /** Why this window exists: `routine` (every N minutes), `trigger` (an event), `manual` (CSV export). */
-  reason: 'routine' | 'trigger' | 'manual';
+  /**
+   * Why this window exists: `routine` (every N minutes), `trigger` (an event), `manual` (CSV export),
+   * `history` (a routine window of the days before the demo day, already dismissed as noise).
+   */
+  reason: 'routine' | 'trigger' | 'manual' | 'history';
 }
 
 /** Routine windows per station (HH:MM:SS of the first sample), spread over the day (invented). */
@@ -241,4 +245,45 @@ export function eventsInWindow(station: DemoStationCode, startUs: number): { eve
     // Coda lasts well under 60 s for these small events.
     ({ at }) => at.pArrivalUs < endUs && at.pArrivalUs + 60e6 > startUs,
   );
+}
+
+/** The station's noise history: how many days before the demo day it spans. */
+export const HISTORY_DAYS = 6;
+/** Routine noise windows per station in the history (4 a day over {@link HISTORY_DAYS} days; the score needs 20). */
+export const HISTORY_WINDOWS_PER_STATION = 24;
+/** Minutes between the history windows of neighbouring stations in a slot (no two stations' windows overlap). */
+const HISTORY_STATION_STAGGER_MIN = 7;
+
+/**
+ * The stations' noise history: {@link HISTORY_WINDOWS_PER_STATION} routine 120 s windows per station on
+ * the {@link HISTORY_DAYS} days before {@link DEMO_DAY}, without glitches or events. Slot k of a station
+ * starts at k·24 h/28 into its day (so every hour of the day is represented: night, both rush hours,
+ * the windy afternoons), plus a station stagger of 7 min and up to a minute of seeded jitter; the day
+ * is (2k + station index) mod 7, so each day holds four windows of each station. Stations never
+ * overlap each other: the history must not look like a network-wide event to the grouping.
+ * Invented, for the demo.
+ * @throws RangeError when two history windows overlap (the plan would contradict itself)
+ */
+export function planHistoryWindows(): PlannedWindow[] {
+  const dayUs = 86_400e6;
+  const firstDayUs = Date.parse(`${DEMO_DAY}T00:00:00Z`) * 1000 - HISTORY_DAYS * dayUs;
+  const slotS = 86_400 / HISTORY_WINDOWS_PER_STATION;
+  const plan: PlannedWindow[] = [];
+  demoStations.forEach((st, s) => {
+    const rng = prngFor(`history/${st.code}`);
+    for (let k = 0; k < HISTORY_WINDOWS_PER_STATION; k++) {
+      const day = (k + s) % HISTORY_DAYS;
+      const offsetS = Math.floor(k * slotS + s * HISTORY_STATION_STAGGER_MIN * 60 + rng.uniform(0, 60));
+      plan.push({ station: st.code, startUs: firstDayUs + day * dayUs + offsetS * 1e6, format: 'mseed', channels: DEMO_CHANNELS, reason: 'history' });
+    }
+  });
+  plan.sort((a, b) => a.startUs - b.startUs || a.station.localeCompare(b.station));
+  for (let i = 1; i < plan.length; i++) {
+    const a = plan[i - 1];
+    const b = plan[i];
+    if (a && b && b.startUs - a.startUs < DEMO_WINDOW_S * 1e6) {
+      throw new RangeError(`history plan: windows of ${a.station} and ${b.station} overlap (${new Date(a.startUs / 1000).toISOString()} and ${new Date(b.startUs / 1000).toISOString()})`);
+    }
+  }
+  return plan;
 }

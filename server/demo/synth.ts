@@ -35,6 +35,36 @@ export interface SynthWindow {
   contents: string[];
   /** The events in the window with their geometry at the station. */
   events: { event: DemoEvent; at: EventAtStation }[];
+  /** How loud each noise source is in the window (vertical, ground velocity), m/s. */
+  noise: NoiseLevels;
+}
+
+/** The noise sources' levels in one window (vertical component, m/s). */
+export interface NoiseLevels {
+  /** RMS of the broadband background (site and day/night factors included). */
+  backgroundMS: number;
+  /** Largest vehicle pass's peak amplitude (0 without a pass inside the window). */
+  trafficPeakMS: number;
+  /** Peak of the wind's gust envelope (0 at a sheltered station). */
+  windPeakMS: number;
+  /** Amplitude of the pump's 25 Hz line (0 away from KV04). */
+  pumpMS: number;
+}
+
+/** A transient source is what an analyst sees in a window when its peak reaches this many times the background RMS (invented rule of the demo). */
+export const STANDS_OUT_FACTOR = 2;
+
+/**
+ * The noise reason an analyst dismissing this window would give, from what the generator put in it:
+ * the louder of traffic and wind when its peak stands out ({@link STANDS_OUT_FACTOR} × the background
+ * RMS); else `machinery` where the pump runs; else `unknown noise` (nothing in particular, the site's
+ * ordinary noise). Invented rule of the demo; events and glitches are not noise reasons here.
+ */
+export function dismissalReason(noise: NoiseLevels): 'traffic' | 'wind' | 'machinery' | 'unknown noise' {
+  const transient = Math.max(noise.trafficPeakMS, noise.windPeakMS);
+  if (transient >= STANDS_OUT_FACTOR * noise.backgroundMS) return noise.trafficPeakMS >= noise.windPeakMS ? 'traffic' : 'wind';
+  if (noise.pumpMS > 0) return 'machinery';
+  return 'unknown noise';
 }
 
 const chainCache = new Map<string, Biquad[]>();
@@ -234,6 +264,7 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
 
   const site = SITE_NOISE_FACTOR[station];
   const daytime = h > 6 && h < 21 ? 1.4 : 1;
+  const noise: NoiseLevels = { backgroundMS: 1.0e-8 * site * daytime, trafficPeakMS: 0, windPeakMS: 0, pumpMS: 0 };
   contents.push('background noise', 'ocean microseism');
   for (const ch of DEMO_CHANNELS) {
     const bg = colouredNoise(prngFor(`${key}/bg/${ch}`), N, chain(1, [0.05, 0.8], 'bandpass'), 60 * FS);
@@ -251,7 +282,11 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
   for (let t = -10 + (-Math.log(1 - trafficRng.next()) * 60) / perMin; t < DEMO_WINDOW_S + 10; t += (-Math.log(1 - trafficRng.next()) * 60) / perMin) {
     const width = trafficRng.uniform(1.2, 4);
     const amp = coupling * 1.2e-7 * Math.exp(0.6 * trafficRng.gauss());
-    if (t >= 0 && t < DEMO_WINDOW_S) vehicles++;
+    if (t >= 0 && t < DEMO_WINDOW_S) {
+      vehicles++;
+      // Only where the highway is felt at all (the coupling at which the manifest names traffic).
+      if (coupling >= 0.1) noise.trafficPeakMS = Math.max(noise.trafficPeakMS, amp);
+    }
     const i0 = Math.max(0, Math.floor((t - 4 * width) * FS));
     const i1 = Math.min(N, Math.ceil((t + 4 * width) * FS));
     for (let i = i0; i < i1; i++) envelope[i] = (envelope[i] ?? 0) + amp * Math.exp(-0.5 * ((i / FS - t) / width) ** 2);
@@ -268,6 +303,7 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
     const wander = colouredNoise(rng, N, chain(2, [0.02], 'lowpass'), 100 * FS);
     for (const ch of DEMO_CHANNELS) {
       const amp = ch === 'HHZ' ? 2.5e-7 : 1.6e-7;
+      if (ch === 'HHZ') noise.pumpMS = amp;
       const phases = [rng.uniform(0, 2 * Math.PI), rng.uniform(0, 2 * Math.PI), rng.uniform(0, 2 * Math.PI)];
       let phase = 0;
       for (let i = 0; i < N; i++) {
@@ -284,6 +320,10 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
     const strength = exposure * byHour(WIND_BY_HOUR, h);
     if (strength >= 0.05) contents.push(`wind gusts (strength ${strength.toFixed(2)} of the saddle's afternoon peak)`);
     const gust = colouredNoise(prngFor(`${key}/gust`), N, chain(2, [0.05], 'lowpass'), 100 * FS);
+    let gustPeak = 0;
+    for (let i = 0; i < N; i++) gustPeak = Math.max(gustPeak, Math.exp(0.9 * (gust[i] ?? 0) - 0.4));
+    // Only wind the manifest names (strength ≥ 0.05).
+    if (strength >= 0.05) noise.windPeakMS = 1.5e-7 * strength * gustPeak;
     for (const ch of DEMO_CHANNELS) {
       const low = colouredNoise(prngFor(`${key}/wind-low/${ch}`), N, chain(2, [2], 'lowpass'), 10 * FS);
       const broad = colouredNoise(prngFor(`${key}/wind-broad/${ch}`), N, chain(2, [0.5, 30], 'bandpass'), 2 * FS);
@@ -335,5 +375,5 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
       contents.push('telemetry gap: 6 s of records missing from 48 s on all channels');
     }
   }
-  return { counts, contents, events, ...(gap ? { gap } : {}) };
+  return { counts, contents, events, noise, ...(gap ? { gap } : {}) };
 }

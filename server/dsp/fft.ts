@@ -83,3 +83,20 @@ export function rfftPowerInto(x: Float64Array, out: Float64Array, scratch: Float
   const { re, im } = rfft(x);
   for (let k = 0; k < re.length; k++) out[k] = (re[k] as number) ** 2 + (im[k] as number) ** 2;
 }
+
+/**
+ * Adds |X_k|² for k = 0 … N/2 to `acc[k]` (length N/2+1) for a power-of-two N; `scratch` has length 2N.
+ * Same numbers as `rfftPowerInto` followed by `acc[k] += out[k]`, without the intermediate array (the
+ * Welch average's inner step). @throws RangeError when N is not a power of two.
+ */
+export function rfftPowerAccumulate(x: Float64Array, acc: Float64Array, scratch: Float64Array): void {
+  const n = x.length;
+  if (!isPowerOfTwo(n)) throw new RangeError(`rfftPowerAccumulate: length ${n} is not a power of two`);
+  planFor(n).realTransform(scratch, x);
+  const bins = n / 2 + 1;
+  for (let k = 0; k < bins; k++) {
+    const r = scratch[2 * k] as number;
+    const i = scratch[2 * k + 1] as number;
+    acc[k] = (acc[k] as number) + (r * r + i * i);
+  }
+}

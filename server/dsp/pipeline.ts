@@ -3,14 +3,14 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { highBandForRate, validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
-import { preprocessTrace } from './preprocess';
+import { detrendLinear, taperInPlace } from './preprocess';
 import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
 import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
 import { peakOf, snrAroundTrigger } from './sta-lta';
 import { triggerChain } from './trigger';
-import { bandEnergy, sosfiltInPlace, sosfiltZeroPhase } from './sosfilt';
+import { bandEnergy, sosfiltInto, sosfiltZeroPhase } from './sosfilt';
 
 /**
  * The analysis of one window (one station's channels for one time span): the output contract of
@@ -179,9 +179,10 @@ function analyzeChannel(
   if (!(fs > 0) || !Number.isFinite(fs)) throw new AnalysisError(`${s.id}: sample rate ${fs} Hz is not a positive number`);
   const n = s.samples.length;
   if (n < MIN_SAMPLES) throw new AnalysisError(`${s.id}: only ${n} samples, at least ${MIN_SAMPLES} are needed`);
+  const raw = s.samples;
   for (let i = 0; i < n; i++) {
-    if (!Number.isFinite(s.samples[i] as number)) {
-      throw new AnalysisError(`${s.id}: sample ${i} (${(i / fs).toFixed(3)} s) is ${s.samples[i]}, not a finite number`);
+    if (!Number.isFinite(raw[i] as number)) {
+      throw new AnalysisError(`${s.id}: sample ${i} (${(i / fs).toFixed(3)} s) is ${raw[i]}, not a finite number`);
     }
   }
   const ltaSamples = Math.round((profile.staLta.startS + profile.staLta.minLtaS + profile.staLta.staS) * fs);
@@ -199,7 +200,11 @@ function analyzeChannel(
   if (!(flatSensitivity > 0) || !Number.isFinite(flatSensitivity)) {
     throw new AnalysisError(`${s.id}: sensitivity ${flatSensitivity} counts per m/s must be a positive number`);
   }
-  const pre = preprocessTrace(s.samples, profile.preprocess.taperAlpha);
+  // Detrend once: the pre-processed trace is a tapered copy (= preprocessTrace), the trigger's trace
+  // (below) the detrended samples themselves with a start ramp instead of the taper.
+  const detrended = detrendLinear(s.samples);
+  const pre = detrended.slice();
+  taperInPlace(pre, profile.preprocess.taperAlpha);
   if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
 
   const fitted = highBandForRate(profile.bands.high, fs);
@@ -209,8 +214,9 @@ function analyzeChannel(
   if (low.warning) warnings.push(low.warning);
   if (high.warning) warnings.push(high.warning);
 
-  // Band-reject first (one shared trace), then both band-passes on it.
-  const rejected = pre.slice();
+  // Band-reject first (one shared trace: `pre` itself until a filter applies), then both band-passes
+  // on it, each filtered straight into its own array (`rejected` is not changed after this).
+  let rejected: Float64Array = pre;
   const bandReject: ChannelResult['bandReject'] = [];
   for (const br of profile.bandReject) {
     const ok = br.fmax < fs / 2;
@@ -219,17 +225,13 @@ function analyzeChannel(
       warnings.push(`band-reject ${br.fmin}–${br.fmax} Hz${br.label ? ` (${br.label})` : ''} is not below the Nyquist frequency ${fs / 2} Hz: not applied`);
       continue;
     }
-    sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
+    rejected = sosfiltInto(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected, rejected === pre ? new Float64Array(n) : rejected);
   }
-  const rejectedCopy = profile.bandReject.length > 0 ? rejected.slice() : rejected;
   const lowSos = design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs);
   const highSos = design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
   const zeroPhaseDisplay = opts.display === true && opts.displayFiltering === 'zero-phase';
-  const rejectedForDisplay = zeroPhaseDisplay ? rejected.slice() : null;
-  const lowY = rejected.slice();
-  sosfiltInPlace(lowSos, lowY);
-  const highY = rejected;
-  sosfiltInPlace(highSos, highY);
+  const lowY = sosfiltInto(lowSos, rejected, new Float64Array(n));
+  const highY = sosfiltInto(highSos, rejected, new Float64Array(n));
   const eLow = bandEnergy(lowY, fs);
   const eHigh = bandEnergy(highY, fs);
   const ratio = eLow > 0 ? eHigh / eLow : null;
@@ -237,7 +239,7 @@ function analyzeChannel(
 
   // The trigger reads its own chain (untapered, ramped, band-rejected high band; see triggerChain).
   const sl = profile.staLta;
-  const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity);
+  const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity, detrended);
   const { startIndex, cf, highY: trigY, base: trigBase } = chain;
   const trig = chain.triggers;
   const pk = peakOf(cf, fs);
@@ -271,7 +273,7 @@ function analyzeChannel(
   const excluded = profile.bandReject.filter((b) => b.fmax < fs / 2);
   let statsValues = psdValues;
   if (excluded.length > 0) {
-    const rej = welchPsd(rejectedCopy, fs, profile.psd.nperseg).values;
+    const rej = welchPsd(rejected, fs, profile.psd.nperseg).values;
     if (paz) {
       for (let k = 0; k < rej.length; k++) rej[k] = (rej[k] as number) * flatSensitivity * flatSensitivity;
       statsValues = countsPsdToVelocity(psd.freqs, rej, paz);
@@ -314,9 +316,9 @@ function analyzeChannel(
   if (physical) {
     const acc = velocityPsdToAccelerationDb(psd.freqs, psdValues);
     const pos = noiseModelPosition(psd.freqs, acc);
-    const freqs = Array.from(psd.freqs);
+    const freqs = toNumbers(psd.freqs);
     noiseModels = {
-      accelerationDb: Array.from(acc, (v) => (Number.isFinite(v) ? v : null)),
+      accelerationDb: finiteOrNull(acc),
       nlnmDb: freqs.map((f) => (f > 0 ? nlnmDb(1 / f) : null)),
       nhnmDb: freqs.map((f) => (f > 0 ? nhnmDb(1 / f) : null)),
       medianPosition: pos.median,
@@ -347,8 +349,8 @@ function analyzeChannel(
     snr,
     onsetSnr,
     psd: {
-      freqs: Array.from(psd.freqs),
-      values: Array.from(psdValues, (v) => (Number.isFinite(v) ? v : null)),
+      freqs: toNumbers(psd.freqs),
+      values: finiteOrNull(psdValues),
       units: physical ? '(m/s)^2/Hz' : 'counts^2/Hz',
       nperseg: psd.nperseg,
       segments: psd.segments,
@@ -364,11 +366,11 @@ function analyzeChannel(
     const bucket = Math.max(1, Math.ceil((2 * n) / points));
     const idx = minMaxIndices(pre, bucket);
     const pick = (y: Float64Array): number[] => idx.map((i) => y[i] as number);
-    const lowShown = rejectedForDisplay ? sosfiltZeroPhase(lowSos, rejectedForDisplay) : lowY;
-    const highShown = rejectedForDisplay ? sosfiltZeroPhase(highSos, rejectedForDisplay) : highY;
+    const lowShown = zeroPhaseDisplay ? sosfiltZeroPhase(lowSos, rejected) : lowY;
+    const highShown = zeroPhaseDisplay ? sosfiltZeroPhase(highSos, rejected) : highY;
     result.display = {
       bucket,
-      filtering: rejectedForDisplay ? 'zero-phase' : 'causal',
+      filtering: zeroPhaseDisplay ? 'zero-phase' : 'causal',
       times: idx.map((i) => i / fs),
       trace: pick(pre),
       low: pick(lowShown),
@@ -378,6 +380,23 @@ function analyzeChannel(
     };
   }
   return result;
+}
+
+/** A typed array as a plain number array (a loop: `Array.from` on a typed array is several times slower). */
+function toNumbers(a: Float64Array): number[] {
+  const out = new Array<number>(a.length);
+  for (let i = 0; i < a.length; i++) out[i] = a[i] as number;
+  return out;
+}
+
+/** A typed array as numbers, with null where a value is not finite (JSON has no NaN or ±Infinity). */
+function finiteOrNull(a: Float64Array): Array<number | null> {
+  const out = new Array<number | null>(a.length);
+  for (let i = 0; i < a.length; i++) {
+    const v = a[i] as number;
+    out[i] = Number.isFinite(v) ? v : null;
+  }
+  return out;
 }
 
 /** Indices of the min and max of each bucket of `bucket` samples, in time order. */

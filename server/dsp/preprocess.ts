@@ -90,12 +90,23 @@ export function preprocessTrace(x: Float64Array, taperAlpha: number): Float64Arr
   if (x.length === 0) throw new RangeError('preprocess: the trace has no samples');
   const y = new Float64Array(x.length);
   detrendLinearInto(x, y);
+  taperInPlace(y, taperAlpha);
+  return y;
+}
+
+/**
+ * Multiply `y` in place by the Tukey window of α = `taperAlpha` (`tukeyWindow(y.length, α)`), touching
+ * only the tapered ends when α < 1 (the middle is 1). `preprocessTrace` is `detrendLinear` then this,
+ * so a caller that also needs the untapered detrended trace detrends once and tapers a copy.
+ * Dimensionless window; units of `y` kept.
+ */
+export function taperInPlace(y: Float64Array, taperAlpha: number): void {
   const n = y.length;
-  if (n <= 1 || taperAlpha <= 0) return y;
+  if (n <= 1 || taperAlpha <= 0) return;
   if (taperAlpha >= 1) {
     const w = tukeyWindow(n, taperAlpha);
     for (let i = 0; i < n; i++) y[i] = (y[i] as number) * (w[i] as number);
-    return y;
+    return;
   }
   // Only the tapered ends differ from 1: the same formulas as tukeyWindow, at those samples only.
   const m1 = n - 1;
@@ -104,5 +115,4 @@ export function preprocessTrace(x: Float64Array, taperAlpha: number): Float64Arr
   for (let i = n - width - 1; i < n; i++) {
     y[i] = (y[i] as number) * 0.5 * (1 + Math.cos(Math.PI * (-2 / taperAlpha + 1 + (2 * i) / taperAlpha / m1)));
   }
-  return y;
 }

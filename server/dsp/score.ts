@@ -245,15 +245,7 @@ export function scoreWindow(
   const inBandShare = sig?.inBandShare ?? null;
   let inBand: boolean;
   let inBandKnown = true;
-  if (sig && sig.inBandSnr === undefined) {
-    // An analysis stored before the in-band figures (engine version 1), replayed by the threshold
-    // tuning: its own rule — the signal's excess peaking in the high band widened by
-    // signalPeakTolerance, with the excess centroid at most centroidMaxFactor × the band's top.
-    const lo = hb.fmin / (1 + th.signalPeakTolerance);
-    const hi = hb.fmax * (1 + th.signalPeakTolerance);
-    inBand = sig.peakFrequency !== null && sig.peakFrequency >= lo && sig.peakFrequency <= hi && sig.centroid !== null && sig.centroid <= th.centroidMaxFactor * hb.fmax;
-    reasons.push(`stored before the in-band test: the signal's excess peaks at ${fmtHz(sig.peakFrequency)} (accepted ${f1(lo)}–${f1(hi)} Hz, centroid ${fmtHz(sig.centroid)})`);
-  } else if (sig && inBandSnr !== null && inBandShare !== null) {
+  if (sig && inBandSnr !== null && inBandShare !== null) {
     inBand = inBandSnr >= th.minInBandSnr && inBandShare >= th.minInBandShare;
     reasons.push(
       `the triggered part (${f1(sig.fromS)}–${f1(sig.toS)} s) in ${hb.fmin}–${hb.fmax} Hz: ${fmtDb(inBandSnr)} over the noise before it (${f1(sig.noiseFromS)}–${f1(sig.noiseToS)} s), ${Math.round(inBandShare * 100)} % of the band's bins ${sig.minSnr} × the noise or more` +
@@ -283,6 +275,13 @@ export function scoreWindow(
     ? []
     : channels.flatMap((c) => c.qc.filter((q) => DATA_PROBLEMS.has(q.code) && q.time !== undefined && Math.abs(q.time - main.onset) <= DATA_PROBLEM_S).map((q) => `${c.id}: ${q.message}`));
 
+  // Evidence stored by engine version 1 (triggers without an onset), replayed by the threshold
+  // tuning: judged by the rule it was made under (legacyInBand), so a station's history stays comparable.
+  const legacy = main !== null && lead.staLta.triggers.every((t) => t.onset === undefined);
+  if (legacy) {
+    inBand = legacyInBand(lead, th) && zr !== null && zr >= th.eventZ;
+    reasons.push('stored by an earlier engine: judged by its rule (whole-window ratio and where the spectrum peaks)');
+  }
   let flag: WindowScore['flag'];
   if (qcErrors.length > 0 || atProblem.length > 0) {
     flag = 'needs eyes';
@@ -290,7 +289,7 @@ export function scoreWindow(
     for (const m of atProblem) reasons.push(`the trigger sits at a data problem, not necessarily ground motion — ${m}`);
   } else if (strong && inBand) {
     flag = 'likely event';
-  } else if (!anyTrigger || zp < th.noiseZ || bandFlat) {
+  } else if (legacy ? false : !anyTrigger || zp < th.noiseZ || bandFlat) {
     flag = 'likely noise';
     if (main) {
       reasons.push(
@@ -339,6 +338,24 @@ export function scoreWindow(
   if (!inBand && score > 0) score /= 2;
   score = Math.round(score * 10) / 10;
   return { score, flag, reasons, leadChannel: lead.id, baseline: useStation ? 'station' : 'network default', zLog10Ratio: zr, zStaLtaPeak: zp, detection };
+}
+
+/**
+ * The in-band test of engine version 1, for replaying stored evidence: with a signal spectrum, its
+ * excess peak within the high band widened by signalPeakTolerance and the excess centroid at most
+ * centroidMaxFactor × the band's top; without one, the whole-window dominant frequency inside the
+ * band and the centroid at most centroidMaxFactor × the top.
+ */
+function legacyInBand(c: ChannelFeatures, th: { signalPeakTolerance: number; centroidMaxFactor: number }): boolean {
+  const hb = c.bands.high;
+  const sig = c.signalSpectrum ?? null;
+  if (sig) {
+    const lo = hb.fmin / (1 + th.signalPeakTolerance);
+    const hi = hb.fmax * (1 + th.signalPeakTolerance);
+    return sig.peakFrequency !== null && sig.peakFrequency >= lo && sig.peakFrequency <= hi && sig.centroid !== null && sig.centroid <= th.centroidMaxFactor * hb.fmax;
+  }
+  const d = c.dominantFrequency;
+  return d !== null && d >= hb.fmin && d <= hb.fmax && c.spectralCentroid !== null && c.spectralCentroid <= th.centroidMaxFactor * hb.fmax;
 }
 
 /** A power ratio in dB (10·log10). */

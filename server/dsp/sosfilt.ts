@@ -8,20 +8,32 @@ import type { Sos } from './butterworth';
  * Throws when a section has a0 = 0.
  */
 export function sosfilt(sos: Sos, x: Float64Array): Float64Array {
-  const y = x.slice();
-  sosfiltInPlace(sos, y);
-  return y;
+  return sosfiltInto(sos, x, new Float64Array(x.length));
 }
 
 /**
- * `sosfilt` overwriting `y` with the filtered trace (no allocation). Sections run two per pass over
- * the trace (each sample goes through section s, then s+1, with both states in locals: the same
- * arithmetic in the same order as one section per pass, about twice as fast).
+ * `sosfilt` overwriting `y` with the filtered trace (no allocation). Sections run four per pass over
+ * the trace (then two, then one for the rest): each sample goes through section s, s+1, s+2, s+3 with
+ * all states in locals — the same arithmetic in the same order as one section per pass, so the output
+ * is bit-identical, but the sections' dependency chains overlap (about 1.4× faster than two per pass
+ * for a 4-section band-pass, measured with `npm run bench:engine`).
  * Throws when a section has a0 = 0.
  */
 export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
+  sosfiltInto(sos, y, y);
+}
+
+/**
+ * `sosfilt` of `x` written into `y` (same length; may be `x` itself): the first pass reads `x`, the
+ * others work in place on `y`, so filtering a trace into a fresh array needs no copy first. Same
+ * arithmetic as `sosfiltInPlace`. Returns `y`. Throws when a section has a0 = 0 or the lengths differ.
+ */
+export function sosfiltInto(sos: Sos, x: Float64Array, y: Float64Array): Float64Array {
   const cf = sos.coefficients;
   const n = y.length;
+  if (x.length !== n) throw new RangeError(`sosfiltInto: input of ${x.length} samples, output of ${n}`);
+  if (sos.sections === 0 && x !== y) y.set(x);
+  let src = x;
   const coef = (s: number): [number, number, number, number, number] => {
     const o = s * 6;
     const a0 = cf[o + 3] as number;
@@ -29,6 +41,37 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
     return [(cf[o] as number) / a0, (cf[o + 1] as number) / a0, (cf[o + 2] as number) / a0, (cf[o + 4] as number) / a0, (cf[o + 5] as number) / a0];
   };
   let s = 0;
+  for (; s + 3 < sos.sections; s += 4) {
+    const [b0, b1, b2, a1, a2] = coef(s);
+    const [c0, c1, c2, d1, d2] = coef(s + 1);
+    const [e0, e1, e2, f1, f2] = coef(s + 2);
+    const [g0, g1, g2, h1, h2] = coef(s + 3);
+    let s1 = 0;
+    let s2 = 0;
+    let t1 = 0;
+    let t2 = 0;
+    let u1 = 0;
+    let u2 = 0;
+    let v1 = 0;
+    let v2 = 0;
+    for (let i = 0; i < n; i++) {
+      const xi = src[i] as number;
+      const yi = b0 * xi + s1;
+      s1 = b1 * xi - a1 * yi + s2;
+      s2 = b2 * xi - a2 * yi;
+      const zi = c0 * yi + t1;
+      t1 = c1 * yi - d1 * zi + t2;
+      t2 = c2 * yi - d2 * zi;
+      const wi = e0 * zi + u1;
+      u1 = e1 * zi - f1 * wi + u2;
+      u2 = e2 * zi - f2 * wi;
+      const qi = g0 * wi + v1;
+      v1 = g1 * wi - h1 * qi + v2;
+      v2 = g2 * wi - h2 * qi;
+      y[i] = qi;
+    }
+    src = y;
+  }
   for (; s + 1 < sos.sections; s += 2) {
     const [b0, b1, b2, a1, a2] = coef(s);
     const [c0, c1, c2, d1, d2] = coef(s + 1);
@@ -37,7 +80,7 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
     let t1 = 0;
     let t2 = 0;
     for (let i = 0; i < n; i++) {
-      const xi = y[i] as number;
+      const xi = src[i] as number;
       const yi = b0 * xi + s1;
       s1 = b1 * xi - a1 * yi + s2;
       s2 = b2 * xi - a2 * yi;
@@ -46,19 +89,21 @@ export function sosfiltInPlace(sos: Sos, y: Float64Array): void {
       t2 = c2 * yi - d2 * zi;
       y[i] = zi;
     }
+    src = y;
   }
   if (s < sos.sections) {
     const [b0, b1, b2, a1, a2] = coef(s);
     let s1 = 0;
     let s2 = 0;
     for (let i = 0; i < n; i++) {
-      const xi = y[i] as number;
+      const xi = src[i] as number;
       const yi = b0 * xi + s1;
       s1 = b1 * xi - a1 * yi + s2;
       s2 = b2 * xi - a2 * yi;
       y[i] = yi;
     }
   }
+  return y;
 }
 
 /**

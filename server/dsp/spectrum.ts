@@ -1,4 +1,4 @@
-import { isPowerOfTwo, rfftPowerInto } from './fft';
+import { isPowerOfTwo, rfftPowerAccumulate, rfftPowerInto } from './fft';
 
 /**
  * Spectra of a pre-processed trace: Welch PSD, dominant frequency, spectral centroid, spectrogram.
@@ -20,6 +20,25 @@ export function hannPeriodic(n: number): Float64Array {
   const step = (2 * Math.PI) / n;
   for (let i = 0; i < n; i++) w[i] = 0.5 + 0.5 * Math.cos(-Math.PI + i * step);
   return w;
+}
+
+/**
+ * Periodic Hann windows and their Σw², by length, kept for the process (a network uses a few segment
+ * lengths: the profile's nperseg, the signal spectrum's, the spectrogram's). Read only.
+ */
+const hannCache = new Map<number, { w: Float64Array; wss: number }>();
+
+function cachedHann(n: number): { w: Float64Array; wss: number } {
+  let h = hannCache.get(n);
+  if (!h) {
+    const w = hannPeriodic(n);
+    let wss = 0;
+    for (let i = 0; i < n; i++) wss += (w[i] as number) ** 2;
+    h = { w, wss };
+    if (hannCache.size >= 32) hannCache.clear();
+    hannCache.set(n, h);
+  }
+  return h;
 }
 
 /** A one-sided power spectral density. */
@@ -65,22 +84,24 @@ export function welchPsd(x: Float64Array, sampleRateHz: number, nperseg = 1024):
   const noverlap = Math.floor(seg / 2);
   const step = seg - noverlap;
   const nseg = Math.floor((x.length - noverlap) / step);
-  const w = hannPeriodic(seg);
-  let wss = 0;
-  for (let i = 0; i < seg; i++) wss += (w[i] as number) ** 2;
+  const { w, wss } = cachedHann(seg);
   const bins = Math.floor(seg / 2) + 1;
   const acc = new Float64Array(bins);
   const buf = new Float64Array(seg);
-  const pow = new Float64Array(bins);
-  const scratch = new Float64Array(isPowerOfTwo(seg) ? 2 * seg : 0);
+  const pow2 = isPowerOfTwo(seg);
+  const pow = pow2 ? acc : new Float64Array(bins);
+  const scratch = new Float64Array(pow2 ? 2 * seg : 0);
   for (let j = 0; j < nseg; j++) {
     const o = j * step;
     let mean = 0;
     for (let i = 0; i < seg; i++) mean += x[o + i] as number;
     mean /= seg;
     for (let i = 0; i < seg; i++) buf[i] = ((x[o + i] as number) - mean) * (w[i] as number);
-    rfftPowerInto(buf, pow, scratch);
-    for (let k = 0; k < bins; k++) acc[k] = (acc[k] as number) + (pow[k] as number);
+    if (pow2) rfftPowerAccumulate(buf, acc, scratch);
+    else {
+      rfftPowerInto(buf, pow, scratch);
+      for (let k = 0; k < bins; k++) acc[k] = (acc[k] as number) + (pow[k] as number);
+    }
   }
   const scale = 1 / (sampleRateHz * wss * nseg);
   const values = new Float64Array(bins);
@@ -178,9 +199,7 @@ export function spectrogram(x: Float64Array, sampleRateHz: number, nperseg = 256
   let seg = nperseg;
   while (seg > x.length && seg > 16) seg /= 2;
   if (x.length < seg) throw new RangeError(`spectrogram: the trace needs at least ${seg} samples, got ${x.length}`);
-  const w = hannPeriodic(seg);
-  let wss = 0;
-  for (let i = 0; i < seg; i++) wss += (w[i] as number) ** 2;
+  const { w, wss } = cachedHann(seg);
   let step = Math.floor(seg / 2);
   const cols = (s: number): number => Math.floor((x.length - seg) / s) + 1;
   if (cols(step) > maxColumns) step = Math.ceil((x.length - seg) / (maxColumns - 1));

@@ -231,7 +231,10 @@ export function delayedStaLta(
   let slta = 0;
   let peakSta = 0;
   let peakLta = 0;
-  for (let i = a; i < n; i++) {
+  // From `steady` on, both windows are full and inside [a, n): the second loop below is this one with
+  // the bounds and counts as constants (same arithmetic in the same order, so the same numbers).
+  const steady = Math.max(a, Math.min(n, a + nsta + nlta));
+  for (let i = a; i < steady; i++) {
     // STA over [max(a, i − nsta + 1), i]; LTA over [max(a, i − nsta − nlta + 1), i − nsta].
     ssta += sq(i);
     const leaveSta = i - nsta;
@@ -258,6 +261,27 @@ export function delayedStaLta(
     const staCount = i - staFrom + 1;
     const ltaCount = ltaTo - ltaFrom + 1;
     out[i] = ltaCount >= minLta && slta > 0 ? ssta / staCount / (slta / ltaCount) : 0;
+  }
+  const ltaFull = nlta >= minLta;
+  for (let i = steady; i < n; i++) {
+    const v = y[i] as number;
+    ssta += v * v;
+    const vs = y[i - nsta] as number;
+    const leaving = vs * vs;
+    ssta -= leaving;
+    slta += leaving;
+    const vl = y[i - nsta - nlta] as number;
+    slta -= vl * vl;
+    const periodic = ((i - a) & 0xffff) === 0xffff;
+    if (periodic || ssta < 1e-4 * peakSta) {
+      ssta = sumSquares(i - nsta + 1, i);
+      peakSta = ssta;
+    } else if (ssta > peakSta) peakSta = ssta;
+    if (periodic || slta < 1e-4 * peakLta) {
+      slta = sumSquares(i - nsta - nlta + 1, i - nsta);
+      peakLta = slta;
+    } else if (slta > peakLta) peakLta = slta;
+    out[i] = ltaFull && slta > 0 ? ssta / nsta / (slta / nlta) : 0;
   }
   return out;
 }

@@ -2,7 +2,7 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { aicOnsetIndex } from './aic-picker';
 import type { Sos } from './butterworth';
 import { detrendLinear } from './preprocess';
-import { sosfiltInPlace } from './sosfilt';
+import { sosfiltInPlace, sosfiltInto } from './sosfilt';
 import { delayedStaLta, detectTriggers, type Trigger } from './sta-lta';
 
 /** A trigger with its AIC onset and its own peak. */
@@ -36,7 +36,9 @@ export interface TriggerChain {
  * 4. triggers with hysteresis (on/off levels); each trigger's peak, and its onset by AIC
  *    (`aicOnsetIndex`, Maeda 1985) over [on − onsetSearchS, on + onsetAfterS], never before the
  *    ramp's end nor after the trigger-on.
- * Pure; `design` returns Butterworth sections (a cache may stand behind it).
+ * Pure; `design` returns Butterworth sections (a cache may stand behind it). A caller that has
+ * already detrended the samples (`detrendLinear(samples)`, as the pipeline does for its tapered trace)
+ * passes them as `detrended`: the chain then starts from them, and takes them over as `base`.
  */
 export function triggerChain(
   samples: Float64Array,
@@ -45,17 +47,18 @@ export function triggerChain(
   highSos: Sos,
   design: (order: number, edges: [number, number], type: 'bandstop', fs: number) => Sos,
   sensitivity = 1,
+  detrended?: Float64Array,
 ): TriggerChain {
   const fs = sampleRateHz;
   const n = samples.length;
   const sl = profile.staLta;
   const startIndex = Math.min(n, Math.round(sl.startS * fs));
-  const base = detrendLinear(samples);
+  if (detrended !== undefined && detrended.length !== n) throw new RangeError(`triggerChain: ${detrended.length} detrended samples for ${n} samples`);
+  const base = detrended ?? detrendLinear(samples);
   for (let i = 0; i < startIndex; i++) base[i] = (base[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / startIndex));
   if (sensitivity !== 1) for (let i = 0; i < n; i++) base[i] = (base[i] as number) / sensitivity;
   for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), base);
-  const highY = base.slice();
-  sosfiltInPlace(highSos, highY);
+  const highY = sosfiltInto(highSos, base, new Float64Array(n));
   const cf = delayedStaLta(highY, fs, sl.staS, sl.ltaS, sl.method, { startIndex, minLtaSamples: Math.max(1, Math.round(sl.minLtaS * fs)) });
   const triggers = detectTriggers(cf, fs, sl.on, sl.off).map((t): ChainTrigger => {
     let peak = 0;

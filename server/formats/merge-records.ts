@@ -21,6 +21,12 @@ export interface DecodedRecord {
   extraHeaders?: unknown;
 }
 
+/**
+ * Most runs (pieces separated by gaps or overlaps) one stream may fall into: more is refused, which
+ * also bounds the work of joining records into runs on crafted files (at most records × this).
+ */
+export const MAX_RUNS_PER_STREAM = 1000;
+
 /** Encodings that carry a sampled time series: a record in one of them with 0 samples is "empty". */
 const SAMPLE_ENCODINGS = new Set(['int16', 'int32', 'float32', 'float64', 'steim1', 'steim2']);
 
@@ -106,28 +112,78 @@ function runName(run: Run, verb: string): string {
   return `records ${span} (from byte ${first.offset}) ${verb}`;
 }
 
-/** Joins one stream's records (file order) into runs, see mergeRecords. */
-function joinRuns(list: DecodedRecord[], rate: number): Run[] {
+/**
+ * Joins one stream's records (file order) into runs, see mergeRecords. Runs are found by their
+ * start and end times on the sample grid (hash maps keyed by time / period, the neighbouring keys
+ * checked too), so a file of many separate records costs linear time, not quadratic.
+ */
+function joinRuns(id: string, list: DecodedRecord[], rate: number): Run[] {
   const periodUs = 1e6 / rate;
   const tol = periodUs / 2;
   const runs: Run[] = [];
+  // Buckets are Sets: insertion-ordered, O(1) removal; the first matching run in a bucket is taken.
+  const byEnd = new Map<number, Set<Run>>();
+  const byStart = new Map<number, Set<Run>>();
+  const key = (us: number): number => Math.round(us / periodUs);
+  const add = (map: Map<number, Set<Run>>, us: number, run: Run): void => {
+    const bucket = map.get(key(us));
+    if (bucket) bucket.add(run);
+    else map.set(key(us), new Set([run]));
+  };
+  const remove = (map: Map<number, Set<Run>>, us: number, run: Run): void => {
+    const bucket = map.get(key(us));
+    bucket?.delete(run);
+    if (bucket?.size === 0) map.delete(key(us));
+  };
+  const find = (map: Map<number, Set<Run>>, us: number, at: (run: Run) => number): Run | undefined => {
+    const k = key(us);
+    for (const kk of [k, k - 1, k + 1]) {
+      for (const run of map.get(kk) ?? []) if (Math.abs(us - at(run)) <= tol) return run;
+    }
+    return undefined;
+  };
   for (const r of list) {
     const spanUs = r.samples.length * periodUs;
-    const after = runs.find((run) => Math.abs(r.startTimeUs - run.endUs) <= tol);
+    const after = find(byEnd, r.startTimeUs, (run) => run.endUs);
     if (after) {
+      remove(byEnd, after.endUs, after);
       after.records.push(r);
       after.endUs += spanUs;
+      add(byEnd, after.endUs, after);
       continue;
     }
-    const before = runs.find((run) => Math.abs(r.startTimeUs + spanUs - run.startUs) <= tol);
+    const before = find(byStart, r.startTimeUs + spanUs, (run) => run.startUs);
     if (before) {
+      remove(byStart, before.startUs, before);
       before.records.unshift(r);
       before.startUs = r.startTimeUs;
+      add(byStart, before.startUs, before);
       continue;
     }
-    runs.push({ startUs: r.startTimeUs, endUs: r.startTimeUs + spanUs, records: [r] });
+    const run: Run = { startUs: r.startTimeUs, endUs: r.startTimeUs + spanUs, records: [r] };
+    if (runs.length >= MAX_RUNS_PER_STREAM) {
+      throw new WaveformParseError(
+        `stream ${id}: its records fall into more than ${MAX_RUNS_PER_STREAM} separate pieces (gaps or overlaps between them, from record ${r.recordIndex + 1} at byte ${r.offset}): not a window whose samples can be placed`,
+        r.offset,
+      );
+    }
+    runs.push(run);
+    add(byEnd, run.endUs, run);
+    add(byStart, run.startUs, run);
   }
   return runs.sort((a, b) => a.startUs - b.startUs);
+}
+
+/** Index of the first element of `sorted` (ascending by `at`) with `at(x) >= value`. */
+function lowerBound<T>(sorted: readonly T[], value: number, at: (x: T) => number): number {
+  let lo = 0;
+  let hi = sorted.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (at(sorted[mid] as T) < value) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
 }
 
 /** Places one stream's records (at least one, file order) on its sample grid; see mergeRecords. */
@@ -144,7 +200,8 @@ function placeRecords(id: string, list: DecodedRecord[], empties: DecodedRecord[
     encodings.add(r.encoding);
   }
   const periodUs = 1e6 / rate;
-  const runs = joinRuns(list, rate);
+  const runs = joinRuns(id, list, rate);
+  const emptiesByTime = [...empties].sort((a, b) => a.startTimeUs - b.startTimeUs);
   const firstRun = runs[0] as Run;
   let total = 0;
   for (const r of list) total += r.samples.length;
@@ -230,7 +287,12 @@ function placeRecords(id: string, list: DecodedRecord[], empties: DecodedRecord[
         detail: `overlap of ${fmt((expectedTimeUs - first.startTimeUs) / 1e6)} s: ${runName(run, 'start')} at ${formatIsoTimeUs(first.startTimeUs)}, before the end of the samples already placed (${formatIsoTimeUs(expectedTimeUs)}), with different values${where}`,
       });
     } else {
-      const inGap = empties.filter((e) => e.startTimeUs >= expectedUs - periodUs / 2 && e.startTimeUs < first.startTimeUs - periodUs / 2);
+      const inGap: DecodedRecord[] = [];
+      for (let i = lowerBound(emptiesByTime, expectedUs - periodUs / 2, (e) => e.startTimeUs); i < emptiesByTime.length; i++) {
+        const e = emptiesByTime[i] as DecodedRecord;
+        if (e.startTimeUs >= first.startTimeUs - periodUs / 2) break;
+        inGap.push(e);
+      }
       for (const e of inGap) usedEmpties.add(e);
       const why = inGap.map((e) => `; ${recordName(e)} starts in it and claims 0 samples`).join('');
       discontinuities.push({
@@ -246,8 +308,8 @@ function placeRecords(id: string, list: DecodedRecord[], empties: DecodedRecord[
   }
   for (const e of empties) {
     if (usedEmpties.has(e)) continue;
-    let piece = pieces[0] as { startUs: number; fromIndex: number };
-    for (const p of pieces) if (p.startUs <= e.startTimeUs) piece = p;
+    // The last piece starting at or before the record (pieces are in time order).
+    const piece = pieces[Math.max(0, lowerBound(pieces, e.startTimeUs + 1, (p) => p.startUs) - 1)] as { startUs: number; fromIndex: number };
     const index = Math.max(0, Math.min(placed, piece.fromIndex + Math.round((e.startTimeUs - piece.startUs) / periodUs)));
     notes.push({
       code: 'empty-record',
@@ -266,7 +328,8 @@ function placeRecords(id: string, list: DecodedRecord[], empties: DecodedRecord[
     channel: head.channel,
     sampleRateHz: rate,
     startTimeUs: head.startTimeUs,
-    samples: placed === total ? samples : samples.slice(0, placed),
+    // A view, not a copy: copying a large stream only to drop repeats cost more than the repeats.
+    samples: placed === total ? samples : samples.subarray(0, placed),
     discontinuities,
     ...(notes.length > 0 ? { notes } : {}),
     encoding: [...encodings].join('+'),

@@ -54,7 +54,10 @@ export interface DecodedStream {
   sampleRateHz: number;
   /** Time of the first sample, µs since epoch (UTC), after time corrections. */
   startTimeUs: number;
-  /** Samples in the file's units (counts for integer/Steim data), concatenated across records. */
+  /**
+   * Samples in the file's units (counts for integer/Steim data), concatenated across records. May
+   * view a larger buffer (room that dropped repeats did not fill): use byteOffset/byteLength.
+   */
   samples: Float64Array;
   /**
    * Gaps and overlaps between records that remain in `samples` (empty when continuous): the samples

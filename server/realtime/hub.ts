@@ -5,6 +5,7 @@ import { wsPolicyViolation, type ChangeMessage, type ServerMessage } from '@shar
 import type { Database } from '@server/db/client';
 import type { Logger } from '@server/logger';
 import { changesSince, latestSeq, oldestKeptSeq } from './change-log';
+import { createOutageLog } from './outage-log';
 
 /** Who is on the other end of a socket. */
 export interface HubPrincipal {
@@ -63,9 +64,12 @@ export function createHub(opts: HubOptions): RealtimeHub {
   let pumpQueued = false;
   let closed = false;
 
+  // A database outage fails the poll every second: logged once when it starts and once when it ends.
+  const readOutage = createOutageLog(opts.logger, 'live hub: change log read');
+
   /** Serialises every change-log read, so catch-ups and broadcasts never interleave. */
   const enqueue = (task: () => Promise<void>): Promise<void> => {
-    chain = chain.then(task).catch((err: unknown) => opts.logger.warn({ err }, 'live hub: change log read failed'));
+    chain = chain.then(task).catch((err: unknown) => readOutage.failed(err));
     return chain;
   };
 
@@ -108,7 +112,11 @@ export function createHub(opts: HubOptions): RealtimeHub {
   const notify = () => {
     if (pumpQueued || closed) return;
     pumpQueued = true;
-    void enqueue(pump);
+    // Every pump that returns has read the change log at least once: the read works (again).
+    void enqueue(async () => {
+      await pump();
+      readOutage.ok();
+    });
   };
 
   const join = (ws: WebSocket, principal: HubPrincipal, since: number | undefined) =>

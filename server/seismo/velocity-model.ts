@@ -55,9 +55,11 @@ const MAX_TOP_KM = 1000;
  */
 export function validateVelocityModel(model: VelocityModel): VelocityModel {
   if (typeof model.name !== 'string' || model.name.trim() === '') throw new RangeError('velocity model: the name is empty');
-  const layers = model.layers;
-  if (!Array.isArray(layers) || layers.length === 0) throw new RangeError('velocity model: there are no layers');
-  layers.forEach((l: VelocityLayer, i) => {
+  // Array.isArray narrows a readonly array to any[]; check on the model, then keep the declared type.
+  if (!Array.isArray(model.layers)) throw new RangeError('velocity model: there are no layers');
+  const layers: readonly VelocityLayer[] = model.layers;
+  if (layers.length === 0) throw new RangeError('velocity model: there are no layers');
+  layers.forEach((l, i) => {
     const at = `velocity model layer ${i + 1}`;
     for (const [k, v] of [['topKm', l.topKm], ['vpKmS', l.vpKmS], ['vsKmS', l.vsKmS]] as const) {
       if (typeof v !== 'number' || !Number.isFinite(v)) throw new RangeError(`${at}: ${k} must be a finite number, got ${String(v)}`);

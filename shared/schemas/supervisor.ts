@@ -171,7 +171,78 @@ export const dashboardQuerySchema = z
   .refine((p) => Date.parse(p.from) < Date.parse(p.to), { message: 'from must be before to', path: ['from'] })
   .refine((p) => Date.parse(p.to) - Date.parse(p.from) <= 366 * 86_400_000, { message: 'at most 366 days at a time', path: ['to'] });
 
+/**
+ * The event label a supervisor gives when confirming an escalated item that has none (an
+ * escalation carries a reason, not a label): the QuakeML type and, optionally, certainty,
+ * distance class and a note. Without it such an item would be confirmed as nothing, in neither
+ * the catalogue nor the queue.
+ */
+export const confirmLabelSchema = eventLabelSchema.pick({ eventType: true, certainty: true, distanceClass: true, note: true }).strict();
+
+/** A parsed confirmation label. */
+export type ConfirmLabel = z.infer<typeof confirmLabelSchema>;
+
+/** Body of POST /api/supervisor/inbox/:id/confirm: `label` is required when the item has no event label yet. */
+export const inboxConfirmBodySchema = z.object({ label: confirmLabelSchema.optional() }).strict();
+
 /** Body of POST /api/supervisor/inbox/:id/return. */
 export const inboxReturnBodySchema = z.object({
   comment: z.string().trim().min(3, 'say why you return it (at least 3 characters)').max(2000),
+});
+
+/** One inbox entry as GET /api/supervisor/inbox lists it (server/features/supervision/inbox.ts). */
+export const inboxEntryViewSchema = z.object({
+  id: z.number(),
+  itemId: z.number(),
+  station: z.string(),
+  subject: z.string(),
+  reason: z.string(),
+  escalatedBy: z.string().nullable(),
+  createdAt: z.string(),
+  readAt: z.string().nullable(),
+  acknowledgedAt: z.string().nullable(),
+  resolution: z.string().nullable(),
+  resolutionComment: z.string().nullable(),
+  resolvedBy: z.string().nullable(),
+  resolvedAt: z.string().nullable(),
+  itemState: z.string(),
+  itemVersion: z.number(),
+  /** The item's event type, or null when it has no event label (confirming it then needs one). */
+  itemLabelType: z.string().nullable(),
+  mailError: z.string().nullable(),
+});
+
+/** One inbox entry. */
+export type InboxEntryView = z.infer<typeof inboxEntryViewSchema>;
+
+/** A supervisor's inbox: entries newest first and the unread count. */
+export const inboxViewSchema = z.object({ entries: z.array(inboxEntryViewSchema), unread: z.number() });
+
+/** One member of a candidate event (server/features/events/candidate-events.ts). */
+export const candidateMemberSchema = z.object({
+  itemId: z.number().int(),
+  station: z.string(),
+  stationId: z.number().int(),
+  /** First trigger time, ISO 8601 UTC with ms. */
+  arrival: z.string(),
+  state: itemStateSchema,
+  flag: flagSchema,
+  score: z.number(),
+  labelType: z.string().nullable(),
+  version: z.number().int(),
+});
+
+/** A candidate event with the members the viewer may see. */
+export const candidateEventSchema = z.object({
+  id: z.number().int(),
+  anchorItemId: z.number().int(),
+  firstArrival: z.string(),
+  lastArrival: z.string(),
+  stationCount: z.number().int(),
+  members: z.array(candidateMemberSchema),
+});
+
+/** What labelling a group did to each member. */
+export const groupLabelResultSchema = z.object({
+  members: z.array(z.object({ itemId: z.number().int(), result: z.enum(['labelled', 'skipped']), reason: z.string().optional() })),
 });

@@ -11,10 +11,24 @@ export const streamIdSchema = z
   .trim()
   .regex(/^[A-Za-z0-9]{1,8}\.[A-Za-z0-9]{1,8}\.[A-Za-z0-9]{0,8}\.[A-Za-z0-9]{1,8}$/, 'streamId must look like NET.STA.LOC.CHA, e.g. XX.KV01.00.HHZ');
 
+/**
+ * An ISO-8601 date-time, UTC unless it names a zone: `2026-03-14T09:26:53.589Z`, a space instead of
+ * the `T`, 1–9 fraction digits. The server converts it to µs exactly (server/formats/iso-time.ts).
+ */
+export const isoStartTimeSchema = z
+  .string()
+  .trim()
+  .regex(/^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}:\d{2}(\.\d{1,9})?(Z|[+-]\d{2}:?\d{2})?$/, 'startTime must be an ISO-8601 UTC time, e.g. 2026-03-14T09:26:53.589Z');
+
 /** The text fields of the multipart body of POST /api/uploads. */
 export const uploadFieldsSchema = z.object({
-  /** Stream id for CSV files (MiniSEED files carry their own). */
+  /** Stream id for CSV files (MiniSEED files carry their own; wins over a CSV's `# stream=` line). */
   streamId: streamIdSchema.optional(),
+  /**
+   * Time of t = 0 for CSV files whose times are seconds (wins over a CSV's `# start=` line);
+   * unused for MiniSEED and for CSV files with ISO-8601 times.
+   */
+  startTime: isoStartTimeSchema.optional(),
 });
 
 /** What happened to one file. */

@@ -162,10 +162,14 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     const entry = page.locator('tr', { hasText: reason });
     await entry.waitFor({ timeout: 30_000 });
     expect(await entry.textContent()).toContain('escalated by');
-    await entry.getByRole('button', { name: 'Confirm' }).click();
+    // Escalated, not labelled: confirming asks for the event type.
+    await entry.getByRole('button', { name: 'Confirm…' }).click();
+    await entry.getByLabel('Event type (QuakeML)').selectOption('earthquake');
+    await entry.getByRole('button', { name: 'Confirm as earthquake' }).click();
     await entry.getByText('✓ confirmed').waitFor({ timeout: 20_000 });
     const confirmed = queueItemDetailSchema.parse(await apiGet(`/api/queue/items/${kv02Item}`));
     expect(confirmed.state).toBe('confirmed');
+    expect(confirmed.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
     await screenshot(page, 'story-3-supervisor-inbox');
 
     await page.goto(`${server.url}/review`);

@@ -75,10 +75,18 @@ describe('supervisor in the browser', () => {
 
     await row.getByRole('button', { name: 'Acknowledge' }).click();
     await page.getByTestId('unread-count').filter({ hasText: 'Nothing unread' }).waitFor({ timeout: 10_000 });
-    await row.getByRole('button', { name: 'Confirm' }).click();
+    // The escalated item has no event label: confirming asks which event it is first.
+    await row.getByRole('button', { name: 'Confirm…' }).click();
+    const form = row.getByRole('form', { name: /Confirm escalation \d+ with an event label/ });
+    await form.waitFor();
+    expect(await form.getByRole('button', { name: 'Confirm' }).isDisabled()).toBe(true);
+    await form.getByLabel('Event type (QuakeML)').selectOption('earthquake');
+    await screenshot(page, 'supervisor-inbox-confirm-label');
+    await form.getByRole('button', { name: 'Confirm as earthquake' }).click();
     await row.getByText('✓ confirmed').waitFor({ timeout: 10_000 });
     const item = await api(sue, 'GET', `/api/queue/items/${id}`);
     expect(item.state).toBe('confirmed');
+    expect(item.label).toMatchObject({ kind: 'event', eventType: 'earthquake', certainty: 'suspected' });
     await screenshot(page, 'supervisor-inbox-confirmed');
 
     // A labelled event, reviewed as final in the review screen, then exported.

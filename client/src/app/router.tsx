@@ -1,8 +1,10 @@
-import { createBrowserRouter, matchRoutes, Outlet, useNavigate, type RouteObject } from 'react-router';
+import { createBrowserRouter, matchRoutes, Navigate, Outlet, useLocation, useNavigate, type RouteObject } from 'react-router';
 import { AppShell } from '@client/components/layouts/app-shell';
 import { Loading } from '@client/components/ui/skeleton';
 import { authPagePaths } from '@shared/auth/links';
 import { paths } from '@client/config/paths';
+import { useSession } from '@client/lib/session-context';
+import { devPagesIncluded } from '@client/config/build-flags';
 import { useSignOut } from '@client/features/auth/api/session';
 import { LiveUpdatesProvider, useLiveConnection } from './live-updates';
 import { HomeRoute } from './routes/home';
@@ -20,7 +22,19 @@ export function isRouted(href: string): boolean {
   return leaf !== undefined && leaf.route.path !== '*';
 }
 
+/**
+ * The signed-in frame. A visitor who is not signed in goes to the sign-in page (which brings them
+ * back afterwards) instead of an empty shell whose live channel can only fail; the one exception
+ * is the design reference of a development build. The live channel opens only for a signed-in user.
+ */
 function RootLayout() {
+  const { user } = useSession();
+  const location = useLocation();
+  if (!user) {
+    if (devPagesIncluded && location.pathname === paths.design.path) return <LiveShell />;
+    const here = `${location.pathname}${location.search}`;
+    return <Navigate to={here === paths.home.href ? authPagePaths.signIn : `${authPagePaths.signIn}?next=${encodeURIComponent(here)}`} replace />;
+  }
   return (
     <LiveUpdatesProvider>
       <LiveShell />
@@ -72,13 +86,20 @@ export const routes: RouteObject[] = [
     hydrateFallbackElement: <Loading label="Loading Seisift…" className="m-6" />,
     children: [
       { index: true, element: <HomeRoute isRouted={isRouted} /> },
-      {
-        path: paths.design.path.slice(1),
-        lazy: async () => {
-          const { DesignRoute } = await import('./routes/design');
-          return { Component: DesignRoute };
-        },
-      },
+      // The design reference exists only in builds that carry the development pages (not production).
+      // The condition is written out here, not read from build-flags.ts, so the bundler can see it is
+      // false in a production build and leave the page's code out altogether.
+      ...(import.meta.env.DEV || import.meta.env.VITE_SEISIFT_DEV_PAGES === '1'
+        ? [
+            {
+              path: paths.design.path.slice(1),
+              lazy: async () => {
+                const { DesignRoute } = await import('./routes/design');
+                return { Component: DesignRoute };
+              },
+            },
+          ]
+        : []),
       {
         path: paths.queue.path.slice(1),
         lazy: async () => {

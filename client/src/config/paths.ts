@@ -40,7 +40,7 @@ export type NavGroup = (typeof navGroups)[number];
  * - `'signed-in'`: any signed-in user;
  * - `{ action }`: whoever the one policy module (shared/auth/policies.ts) lets do that action on
  *   some station — the same predicate the server enforces, so nav and policy cannot drift;
- * - `{ role }`: holders of that role (only for screens no API action guards, e.g. /design).
+ * - `{ role }`: holders of that role (only for screens no API action guards).
  */
 export type NavAccess = 'signed-in' | { action: Action } | { role: Role };
 
@@ -62,6 +62,8 @@ export type NavItem = {
   feature?: keyof NavFeatures;
   /** Also shown in development builds (import.meta.env.DEV) regardless of role. */
   inDevelopment?: boolean;
+  /** A page for people building Seisift: listed in builds that carry it (config/build-flags.ts), never in production. */
+  devOnly?: boolean;
   /** One line for the home page. */
   summary: string;
 };
@@ -84,13 +86,14 @@ export const navItems: readonly NavItem[] = [
   { key: 'adminUsers', label: 'Users', href: paths.adminUsers.href, group: 'Administration', access: { action: 'users.manage' }, summary: 'People, roles, station assignments, invitations.' },
   { key: 'mailbox', label: 'Mailbox', href: paths.mailbox.href, group: 'Administration', access: { action: 'mailbox.view' }, feature: 'mailbox', summary: 'Mail sent by the local test mail server.' },
   { key: 'account', label: 'Account', href: paths.account.href, group: 'You', access: 'signed-in', summary: 'Your password and sessions.' },
-  { key: 'design', label: 'Design reference', href: paths.design.href, group: 'Reference', access: { role: 'admin' }, inDevelopment: true, summary: 'Every component in both themes.' },
+  { key: 'design', label: 'Design reference', href: paths.design.href, group: 'Reference', access: 'signed-in', devOnly: true, summary: 'Every component in both themes (development builds only).' },
 ];
 
 /**
  * The entries a person may use. Hiding is a convenience only; the server checks every request.
  * @param roles the user's roles (empty when nobody is signed in: then nothing is listed)
- * @param isDevelopment whether this is a development build (shows `inDevelopment` entries)
+ * @param isDevelopment whether this build carries the development pages (shows `inDevelopment`
+ *   entries to anyone, and is the only way a `devOnly` entry is listed)
  * @param signedIn whether a user is signed in (every other entry needs one)
  * @param features server features in use; left out (previews of the navigation), every feature counts as on
  */
@@ -98,6 +101,7 @@ export function navFor(roles: readonly Role[], isDevelopment: boolean, signedIn:
   // Nav asks "may this person use the screen at all", so no station target: assigned stations do not matter.
   const actor = signedIn ? { roles, stationIds: [] } : null;
   return navItems.filter((item) => {
+    if (item.devOnly) return isDevelopment;
     if (item.inDevelopment && isDevelopment) return true;
     if (!actor) return false;
     if (item.feature && !features[item.feature]) return false;

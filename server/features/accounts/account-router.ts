@@ -11,7 +11,8 @@ import { recordAudit } from '@server/features/audit/audit';
 import { requestMeta } from './respond';
 import { changeOwnPassword } from './sign-in';
 
-const sessionParams = z.object({ id: z.string().regex(/^[0-9a-f]{32}$/, 'is not a session handle') });
+/** Params of DELETE /api/account/sessions/:id: a session handle (32 hex digits), never the cookie secret. */
+export const sessionParams = z.object({ id: z.string().regex(/^[0-9a-f]{32}$/, 'is not a session handle') });
 
 /**
  * The public handle of a session: the first 32 hex digits of SHA-256 of its id. The id itself is

@@ -11,9 +11,12 @@ import { createInvitation, listInvitations, revokeInvitation } from './invitatio
 import { listStationOptions, listUsers, setUserActive, setUserRoles, setUserStations } from './users';
 import { accountDeps, requestMeta } from './respond';
 
-const userParams = z.object({ id: z.string().min(1).max(255) });
-const numericParams = z.object({ id: z.coerce.number().int().positive() });
-const mailQuery = z.object({ limit: z.coerce.number().int().min(1).max(200).default(50), offset: z.coerce.number().int().min(0).default(0) });
+/** Params `:id` of the admin user routes: a user id. */
+export const userParams = z.object({ id: z.string().min(1).max(255) });
+/** Params `:id` of invitations and mail messages: a positive whole number. */
+export const numericParams = z.object({ id: z.coerce.number().int().positive() });
+/** Query of GET /api/admin/mailbox: a page of messages. */
+export const mailQuery = z.object({ limit: z.coerce.number().int().min(1).max(200).default(50), offset: z.coerce.number().int().min(0).default(0) });
 
 /** /api/admin: users, roles, station assignments, invitations (users.manage) and the mailbox (mailbox.view). */
 export function adminRouter(ctx: AppContext, kit: AuthKit): Router {

@@ -6,6 +6,7 @@ import type { AppContext } from '@server/context';
 import { badRequest, forbidden, tooLarge, unauthorized, type AppError } from '@server/errors';
 import type { AnalysisPool } from '@server/jobs/analysis-pool';
 import { clientAddress, getRequestAuth } from '@server/auth/authenticate';
+import { parseIsoTimeUs } from '@server/formats/iso-time';
 import { parseInput } from '@server/http/validate';
 import { ingestFiles, type IngestCaller, type IngestDeps } from './ingest-upload';
 
@@ -88,8 +89,8 @@ function earlyRefusalStorage(maxBytes: number, maxFiles: number): multer.Storage
 }
 
 /**
- * POST /api/uploads: multipart with one or more files in the field `files` (MiniSEED 2/3 or CSV)
- * and an optional `streamId` for CSV. Authenticated by session or ingest token BEFORE the body is
+ * POST /api/uploads: multipart with one or more files in the field `files` (MiniSEED 2/3 or CSV),
+ * an optional `streamId` and an optional `startTime` (t = 0 of relative seconds) for CSV. Authenticated by session or ingest token BEFORE the body is
  * read; multer's limits (SEISIFT_MAX_UPLOAD_BYTES per file, SEISIFT_MAX_UPLOAD_FILES per request)
  * stop reading as soon as one is passed → 413 naming the limit. Answers `{ files: [outcome…] }`
  * with 201 when any file was created (see overallStatus for the rest).
@@ -126,7 +127,7 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
         const file = err.field ? ` (field "${err.field}")` : '';
         if (err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(`A file${file} is larger than the limit of ${mb(maxBytes)} per file (SEISIFT_MAX_UPLOAD_BYTES = ${maxBytes} bytes)`));
         if (err.code === 'LIMIT_FILE_COUNT') return next(tooLarge(`More than ${maxFiles} files in one request (SEISIFT_MAX_UPLOAD_FILES = ${maxFiles}); send them in several requests`));
-        if (err.code === 'LIMIT_PART_COUNT' || err.code === 'LIMIT_FIELD_COUNT') return next(tooLarge(`Too many parts in one request: at most ${maxFiles} files and a streamId field`));
+        if (err.code === 'LIMIT_PART_COUNT' || err.code === 'LIMIT_FIELD_COUNT') return next(tooLarge(`Too many parts in one request: at most ${maxFiles} files, a streamId and a startTime field`));
         if (err.code === 'LIMIT_FIELD_VALUE') return next(badRequest(`${err.field ?? 'field'}: the value is too long (at most 1024 bytes)`));
         return next(badRequest(`files: ${err.message}`));
       }
@@ -137,6 +138,8 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
   router.post('/', guard, receive, async (req, res) => {
     const caller = uploadCaller(req);
     const fields = parseInput(uploadFieldsSchema, req.body ?? {});
+    const startTimeUs = fields.startTime === undefined ? undefined : parseIsoTimeUs(fields.startTime);
+    if (fields.startTime !== undefined && startTimeUs === undefined) throw badRequest(`startTime: "${fields.startTime.slice(0, 40)}" is not a valid date and time (e.g. 2026-03-14T09:26:53.589Z)`);
     const files = (Array.isArray(req.files) ? req.files : []).filter((f) => f.fieldname === 'files' || f.fieldname === 'file');
     if (files.length === 0) throw badRequest('files: attach at least one file in the multipart field "files"');
     const deps: IngestDeps = {
@@ -150,7 +153,7 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
       deps,
       files.map((f) => ({ filename: f.originalname || 'upload', contentType: f.mimetype, bytes: f.buffer })),
       caller,
-      fields.streamId ? { streamId: fields.streamId } : {},
+      { ...(fields.streamId ? { streamId: fields.streamId } : {}), ...(startTimeUs !== undefined ? { startTimeUs } : {}) },
     );
     res.status(result.status).json({ files: result.files });
   });

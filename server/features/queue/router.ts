@@ -21,7 +21,8 @@ import {
   type QueueServiceDeps,
 } from './queue-transitions';
 
-const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a queue item id (a whole number)').transform(Number) });
+/** Params `:id` of the queue item routes: a queue item id. */
+export const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a queue item id (a whole number)').transform(Number) });
 
 /** Options of the queue router. */
 /**

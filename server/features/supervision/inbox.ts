@@ -4,7 +4,9 @@ import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { inboxEntries, itemReviews } from '@server/db/schema/supervisor';
 import { users } from '@server/db/schema/users';
-import { conflict, notFound } from '@server/errors';
+import type { StoredLabel } from '@shared/schemas/label';
+import type { ConfirmLabel } from '@shared/schemas/supervisor';
+import { AppError, conflict, notFound } from '@server/errors';
 import { loadQueueRow } from '@server/features/queue/queue-rows';
 import { recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
@@ -48,6 +50,8 @@ export interface InboxEntryView {
   resolvedAt: string | null;
   itemState: string;
   itemVersion: number;
+  /** The item's event type when it has an event label; null when it has none (then confirming needs one). */
+  itemLabelType: string | null;
   mailError: string | null;
 }
 
@@ -67,7 +71,7 @@ export async function listInbox(db: Database, userId: string, limit = 200): Prom
   const escalator = sql<string | null>`(SELECT display_name FROM users u WHERE u.id = ${inboxEntries.escalatedByUserId})`;
   const resolver = sql<string | null>`(SELECT display_name FROM users u WHERE u.id = ${inboxEntries.resolvedByUserId})`;
   const rows = await db
-    .select({ e: inboxEntries, escalatedBy: escalator, resolvedBy: resolver, network: stations.network, code: stations.code, state: queueItems.state, version: queueItems.version })
+    .select({ e: inboxEntries, escalatedBy: escalator, resolvedBy: resolver, network: stations.network, code: stations.code, state: queueItems.state, version: queueItems.version, labelType: queueItems.labelType })
     .from(inboxEntries)
     .innerJoin(queueItems, eq(queueItems.id, inboxEntries.itemId))
     .innerJoin(stations, eq(stations.id, queueItems.stationId))
@@ -92,6 +96,7 @@ export async function listInbox(db: Database, userId: string, limit = 200): Prom
       resolvedAt: r.e.resolvedAt?.toISOString() ?? null,
       itemState: r.state,
       itemVersion: r.version,
+      itemLabelType: r.labelType === 'noise' ? null : r.labelType,
       mailError: r.e.mailError,
     })),
   };
@@ -127,22 +132,42 @@ export async function acknowledge(deps: InboxDeps, actor: InboxActor, entryId: n
   deps.notify?.();
 }
 
+/** 422 `label_required`: confirming an item that has no event label needs one. */
+export const labelRequired = (itemId: number) =>
+  new AppError(422, 'label_required', `Item ${itemId} has no event label (it was escalated, not labelled): say which event type it is to confirm it, or return it to the queue.`, {
+    issues: [{ path: 'label.eventType', message: 'required to confirm an item without an event label' }],
+  });
+
 /**
  * Settles an item as a supervisor: `confirmed` (from escalated or labelled) or `returned` (from
  * escalated, labelled or confirmed; claim cleared, the comment stored for the analyst). One
  * versioned write of the item, an audit row, every open inbox entry for the item settled, then the
- * change-log rows.
+ * change-log rows. A confirmed item must carry an event label (the catalogue is made of them): an
+ * escalated item has only the escalation's reason, so confirming it takes `label`, stored as the
+ * item's event label (no picks) with the escalation's reason kept in its note.
  * @param version the item version the supervisor saw (null: the current one, for the inbox)
- * @throws 404 for a missing item; 409 when its state does not allow it or it changed meanwhile
+ * @param label the event label for an item that has none (refused for one that has)
+ * @throws 404 for a missing item; 409 when its state does not allow it, it changed meanwhile or it
+ *   already has an event label and `label` is given; 422 `label_required` when it needs one
  */
-export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: number, version: number | null, outcome: 'confirmed' | 'returned', comment: string): Promise<void> {
+export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: number, version: number | null, outcome: 'confirmed' | 'returned', comment: string, label?: ConfirmLabel): Promise<void> {
   const now = new Date();
   const from = outcome === 'confirmed' ? ['escalated', 'labelled'] : ['escalated', 'labelled', 'confirmed'];
   await deps.db.transaction(async (tx) => {
-    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
+    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version, labelType: queueItems.labelType, label: queueItems.label }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
     if (!item) throw notFound(`Queue item ${itemId}`);
     if (version !== null && item.version !== version) throw conflict(`Item ${itemId} changed since you loaded it (version ${version}, now ${item.version}); reload it.`);
     if (!from.includes(item.state)) throw conflict(`Item ${itemId} is ${item.state}; you can ${outcome === 'confirmed' ? 'confirm' : 'return'} it only when it is ${from.join(' or ')}.`);
+    const hasEventLabel = item.labelType !== null && item.labelType !== 'noise';
+    let newLabel: StoredLabel | null = null;
+    if (outcome === 'confirmed' && label) {
+      if (hasEventLabel) throw conflict(`Item ${itemId} is already labelled ${item.labelType}; confirm it without a label, or return it to change the label.`);
+      const reason = typeof item.label === 'object' && item.label !== null && 'reason' in item.label && typeof item.label.reason === 'string' ? item.label.reason : null;
+      const note = [label.note, reason ? `Escalated: ${reason}` : ''].filter((t) => t !== '').join('\n');
+      newLabel = { kind: 'event', eventType: label.eventType, certainty: label.certainty, distanceClass: label.distanceClass, picks: [], note };
+    } else if (outcome === 'confirmed' && !hasEventLabel) {
+      throw labelRequired(itemId);
+    }
     await tx
       .update(queueItems)
       .set({
@@ -151,6 +176,7 @@ export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: num
         updatedByUserId: actor.id,
         updatedAt: now,
         ...(outcome === 'returned' ? { claimedByUserId: null, claimedAt: null } : {}),
+        ...(newLabel ? { label: newLabel, labelType: newLabel.kind === 'event' ? newLabel.eventType : null } : {}),
       })
       .where(eq(queueItems.id, itemId));
     if (outcome === 'returned') {
@@ -164,7 +190,7 @@ export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: num
       action: outcome === 'confirmed' ? 'review.confirmed' : 'review.returned',
       targetType: 'queue_item',
       targetId: itemId,
-      details: { from: item.state, to: outcome, version: item.version + 1, comment },
+      details: { from: item.state, to: outcome, version: item.version + 1, comment, ...(newLabel?.kind === 'event' ? { eventType: newLabel.eventType, certainty: newLabel.certainty } : {}) },
       ip: deps.ipAddress ?? null,
     });
     const open = await tx.select({ id: inboxEntries.id, userId: inboxEntries.userId }).from(inboxEntries).where(and(eq(inboxEntries.itemId, itemId), isNull(inboxEntries.resolution)));
@@ -183,10 +209,13 @@ export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: num
   deps.notify?.();
 }
 
-/** Confirms the item behind an inbox entry. @throws 404 / 409 as settleItem */
-export async function confirmFromInbox(deps: InboxDeps, actor: InboxActor, entryId: number): Promise<void> {
+/**
+ * Confirms the item behind an inbox entry; an escalated item without an event label needs `label`.
+ * @throws 404 / 409 / 422 as settleItem
+ */
+export async function confirmFromInbox(deps: InboxDeps, actor: InboxActor, entryId: number, label?: ConfirmLabel): Promise<void> {
   const e = await ownEntry(deps.db, actor, entryId);
-  await settleItem(deps, actor, e.itemId, null, 'confirmed', '');
+  await settleItem(deps, actor, e.itemId, null, 'confirmed', '', label);
 }
 
 /** Returns the item behind an inbox entry to the queue with a comment. @throws 404 / 409 as settleItem */

@@ -6,6 +6,7 @@ import {
   dashboardQuerySchema,
   exportQuerySchema,
   groupLabelBodySchema,
+  inboxConfirmBodySchema,
   inboxReturnBodySchema,
   periodSchema,
   rescoreBodySchema,
@@ -31,11 +32,15 @@ import { buildQuakeml } from './quakeml-export';
 import { applyThresholds, rescorePeriod, thresholdReport } from './thresholds';
 import { notFound } from '@server/errors';
 
-const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be an id (a whole number)').transform(Number) });
-const stationParams = z.object({ stationId: z.string().regex(/^\d{1,15}$/, 'must be a station id (a whole number)').transform(Number) });
+/** Params `:id` of the supervisor routes: an inbox entry, item or candidate event id. */
+export const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be an id (a whole number)').transform(Number) });
+/** Params `:stationId` of the threshold routes. */
+export const stationParams = z.object({ stationId: z.string().regex(/^\d{1,15}$/, 'must be a station id (a whole number)').transform(Number) });
 const num = z.preprocess((v) => (typeof v === 'string' && v.trim() !== '' ? Number(v) : v), z.number().finite('must be a number'));
-const proposedQuery = z.object({ eventZ: num.optional(), noiseZ: num.optional(), centroidMaxFactor: num.optional() });
-const candidateQuery = periodSchema;
+/** Query of GET /api/supervisor/thresholds/:stationId: thresholds to try (each optional; the station's current ones fill the rest). */
+export const proposedQuery = z.object({ eventZ: num.optional(), noiseZ: num.optional(), centroidMaxFactor: num.optional() });
+/** Query of GET /api/supervisor/candidate-events: the period. */
+export const candidateQuery = periodSchema;
 
 /**
  * A candidate event as `scope` may see it: everything for 'all'; for an operator only the members
@@ -50,7 +55,8 @@ function inScope(ev: CandidateEventView, scope: 'all' | readonly number[]): Cand
 /**
  * The network supervisor's API (issue 7), mounted at /api/supervisor. Every route needs a session
  * (401) and the named permission (403):
- * - inbox (inbox.view): `GET /inbox`; `POST /inbox/:id/read|acknowledge|confirm|return`
+ * - inbox (inbox.view): `GET /inbox`; `POST /inbox/:id/read|acknowledge|return`; `POST /inbox/:id/confirm
+ *   {label?}` (an escalated item without an event label needs `label`: 422 label_required)
  * - review (review.evaluate): `GET /review?station=&type=&analyst=&status=&from=&to=`;
  *   `POST /review/items/:id/status {version,status,comment}`; `POST /review/items/:id/return {version,comment}`
  * - `GET /items/:id/review-note` (queue.view): the supervisor's comment the analyst sees
@@ -88,7 +94,8 @@ export function supervisorRouter(ctx: AppContext): Router {
   });
   router.post('/inbox/:id/confirm', requirePermission('review.evaluate'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
-    await confirmFromInbox(deps(req), person(currentUser(req)), id);
+    const body = parseInput(inboxConfirmBodySchema, req.body ?? {});
+    await confirmFromInbox(deps(req), person(currentUser(req)), id, body.label);
     res.json(await listInbox(db, currentUser(req).id));
   });
   router.post('/inbox/:id/return', requirePermission('review.evaluate'), async (req, res) => {

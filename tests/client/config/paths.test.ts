@@ -9,7 +9,7 @@ import { navFor, navItems, paths } from '@client/config/paths';
  * station.view); Upload (operator only: upload.create); Review & catalogue, Thresholds, Dashboard,
  * Inbox (supervisor); Audit log (supervisor, admin); Users and Mailbox (admin; Mailbox only while the
  * local fake mailbox is in use); Account (all). Home is for everyone signed in; the design reference
- * for admins (and in development builds).
+ * for nobody in production (it is listed only in builds that carry the development pages).
  */
 const expected: Record<string, readonly Role[]> = {
   home: roles,
@@ -24,7 +24,7 @@ const expected: Record<string, readonly Role[]> = {
   adminUsers: ['admin'],
   mailbox: ['admin'],
   account: roles,
-  design: ['admin'],
+  design: [],
 };
 
 describe('navigation by role', () => {
@@ -49,6 +49,11 @@ describe('navigation by role', () => {
   it('hides Mailbox when the fake mailbox is off (a real SMTP server is configured)', () => {
     expect(navFor(['admin'], false, true, { mailbox: false }).map((i) => i.key)).not.toContain('mailbox');
     expect(navFor(['admin'], false, true, { mailbox: true }).map((i) => i.key)).toContain('mailbox');
+  });
+
+  it('never lists the design reference in production, whatever the roles; lists it in builds with the development pages', () => {
+    expect(navFor(['admin', 'supervisor', 'analyst', 'operator'], false, true).map((i) => i.key)).not.toContain('design');
+    expect(navFor(['operator'], true, true).map((i) => i.key)).toContain('design');
   });
 
   it('shows nothing to nobody in production, and only the development entries in development', () => {

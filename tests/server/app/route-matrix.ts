@@ -520,7 +520,7 @@ export const routeMatrix: readonly MatrixRow[] = [
   { method: 'GET', path: '/api/supervisor/export', allow: ['supervisor'], action: 'catalogue.export', build: async () => ({ path: '/api/supervisor/export?from=2026-03-01T00:00:00Z&to=2026-03-15T00:00:00Z&format=csv' }) },
   { method: 'GET', path: '/api/supervisor/inbox', allow: ['supervisor'], action: 'inbox.view', build: async () => ({ path: '/api/supervisor/inbox' }) },
   { method: 'POST', path: '/api/supervisor/inbox/:id/acknowledge', allow: ['supervisor'], action: 'inbox.view', build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/acknowledge` }) },
-  { method: 'POST', path: '/api/supervisor/inbox/:id/confirm', allow: ['supervisor'], action: 'review.evaluate', build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/confirm` }) },
+  { method: 'POST', path: '/api/supervisor/inbox/:id/confirm', allow: ['supervisor'], action: 'review.evaluate', build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/confirm`, body: { label: { eventType: 'earthquake' } } }) },
   { method: 'POST', path: '/api/supervisor/inbox/:id/read', allow: ['supervisor'], action: 'inbox.view', build: async (w) => ({ path: `/api/supervisor/inbox/${await inboxEntry(w)}/read` }) },
   {
     method: 'POST',

@@ -1,4 +1,4 @@
-import { count, eq } from 'drizzle-orm';
+import { and, count, eq, gte, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditLog } from '@server/db/schema/audit-log';
 import { changeLog } from '@server/db/schema/change-log';
@@ -7,6 +7,7 @@ import { uploads, windows } from '@server/db/schema/uploads';
 import { seedDemo } from '@server/db/seed-demo';
 import { ingestDemo, readDemoManifest, type DemoIngestReport } from '@server/demo/ingest-demo';
 import { stations } from '@server/db/schema/stations';
+import { stationBaseline } from '@server/features/stations/station-baseline';
 import { inboxEntries } from '@server/db/schema/supervisor';
 import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import { catchUpArrivals, listCandidateEvents } from '@server/features/events/candidate-events';
@@ -39,7 +40,7 @@ afterAll(async () => {
 });
 
 describe('ingestDemo (the npm start demo step, through the real ingest service)', () => {
-  it('stores every demo file once, one queue item per window, with nothing refused', async () => {
+  it('stores every demo file once, one queue item per window, with nothing refused (the telemetry-gap window comes as its two continuous parts)', async () => {
     const files = readDemoManifest().files.length;
     expect(first.rejected).toEqual([]);
     expect(first.files).toBe(files);
@@ -53,17 +54,53 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
     console.log(`demo ingest: ${files} files in ${first.seconds.toFixed(1)} s`);
   });
 
-  it('has the demo analyst label, dismiss and escalate a handful through the queue services (audit rows are real)', async () => {
-    expect([first.labelled, first.dismissed, first.escalated]).toEqual([3, 4, 2]);
+  it('has the demo analyst dismiss the history, then label, dismiss and escalate a handful through the queue services (audit rows are real)', async () => {
+    const history = readDemoManifest().files.filter((f) => f.reason === 'history').length;
+    expect(history).toBeGreaterThanOrEqual(6 * 20);
+    expect([first.historyDismissed, first.labelled, first.dismissed, first.escalated]).toEqual([history, 3, 4, 2]);
     const db = ctx.database.db;
     const states = await db.select({ state: queueItems.state, n: count() }).from(queueItems).groupBy(queueItems.state);
     const byState = Object.fromEntries(states.map((s) => [s.state, s.n]));
     expect(byState.labelled).toBe(3);
-    expect(byState.dismissed).toBe(4);
+    expect(byState.dismissed).toBe(history + 4);
     expect(byState.escalated).toBe(2);
     for (const action of ['queue.claimed', 'queue.labelled', 'queue.dismissed', 'queue.escalated']) {
       const [row] = await db.select({ n: count() }).from(auditLog).where(eq(auditLog.action, action));
-      expect(row?.n, action).toBe(action === 'queue.claimed' ? 9 : action === 'queue.labelled' ? 3 : action === 'queue.dismissed' ? 4 : 2);
+      expect(row?.n, action).toBe(action === 'queue.claimed' ? history + 9 : action === 'queue.labelled' ? 3 : action === 'queue.dismissed' ? history + 4 : 2);
+    }
+  });
+
+  it('every station has at least 20 dismissed noise windows, its own baseline is in use, and the demo day was scored against it', async () => {
+    const db = ctx.database.db;
+    const manifest = readDemoManifest();
+    const rows = await db.select({ id: stations.id, code: stations.code, profile: stations.profile }).from(stations).where(eq(stations.network, 'XX'));
+    expect(rows.map((r) => r.code).sort()).toEqual(['KV01', 'KV02', 'KV03', 'KV04', 'KV05', 'KV06']);
+    for (const st of rows) {
+      const min = processingProfileSchema.parse(st.profile ?? {}).thresholds.minBaselineWindows;
+      const dismissedNoise = await db
+        .select({ reason: sql<string>`JSON_UNQUOTE(JSON_EXTRACT(${queueItems.label}, '$.noiseReason'))`, filename: uploads.filename })
+        .from(queueItems)
+        .innerJoin(windows, eq(windows.id, queueItems.windowId))
+        .innerJoin(uploads, eq(uploads.id, windows.uploadId))
+        .where(and(eq(queueItems.stationId, st.id), eq(queueItems.state, 'dismissed'), eq(queueItems.labelType, 'noise')));
+      expect(dismissedNoise.filter((d) => d.reason !== 'instrument glitch').length, st.code).toBeGreaterThanOrEqual(20);
+      // Each history window carries the reason the generator wrote for it.
+      const reasonOf = new Map(dismissedNoise.map((d) => [d.filename, d.reason]));
+      for (const f of manifest.files.filter((x) => x.station === st.code && x.reason === 'history')) {
+        expect(reasonOf.get(f.file.slice(f.file.lastIndexOf('/') + 1)), f.file).toBe(f.noiseReason);
+      }
+      const { view } = await stationBaseline(db, st.id, min);
+      expect(view.source, st.code).toBe('dismissed');
+      expect(view.count, st.code).toBeGreaterThanOrEqual(min);
+      expect(view.inUse, st.code).toBe(true);
+      // Every window of the demo day was scored against this station's own noise, not the network default.
+      const day = await db
+        .select({ analysis: windows.analysis })
+        .from(windows)
+        .innerJoin(queueItems, eq(queueItems.windowId, windows.id))
+        .where(and(eq(windows.stationId, st.id), gte(windows.startTime, new Date('2026-03-14T00:00:00Z'))));
+      expect(day.length, st.code).toBeGreaterThan(0);
+      for (const w of day) expect((w.analysis as { baseline?: string }).baseline, st.code).toBe('station');
     }
   });
 
@@ -98,8 +135,9 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
     const before = await counts();
     const again = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger });
     expect(again.created).toBe(0);
-    expect(again.duplicates).toBe(first.files);
-    expect([again.items, again.labelled, again.dismissed, again.escalated]).toEqual([0, 0, 0, 0]);
+    expect(again.duplicates).toBe(first.files - first.rejected.length);
+    expect(again.rejected).toHaveLength(first.rejected.length);
+    expect([again.items, again.historyDismissed, again.labelled, again.dismissed, again.escalated]).toEqual([0, 0, 0, 0, 0]);
     expect(await counts()).toEqual(before);
   }, 60_000);
 });

@@ -8,8 +8,10 @@ import { ingestTokens, stations } from '@server/db/schema/stations';
 import { uploads, windows } from '@server/db/schema/uploads';
 import { seedDemo } from '@server/db/seed-demo';
 import { DEMO_WAVEFORMS_DIR } from '@server/demo/generate-waveforms';
+import { encodeDemoMiniSeed } from '@server/demo/encode';
 import { readDemoManifest } from '@server/demo/ingest-demo';
 import { REPLAY_TOKEN_LABEL, ReplayError, parseReplayArgs, replayDemo, shiftWindowFile } from '@server/demo/replay';
+import { synthesizeWindow } from '@server/demo/synth';
 import { decodeWaveform } from '@server/formats/decode';
 import { startServer, type RunningServer } from '@server/index';
 import { createToken } from '@server/features/stations/station-registry';
@@ -19,8 +21,17 @@ const sha = (b: Uint8Array): string => createHash('sha256').update(b).digest('he
 
 describe('shiftWindowFile', () => {
   it('moves every stream of a MiniSEED window (gap kept) to the new start with the same samples and a new hash', () => {
+    // A KV06 window with its 6 s telemetry gap in one file (the demo sends such a window as two files).
     const name = 'XX.KV06.2026-03-14T18-25-00.mseed';
-    const bytes = readFileSync(join(DEMO_WAVEFORMS_DIR, 'mseed', name));
+    const t0 = Date.UTC(2026, 2, 14, 18, 25) * 1000;
+    const syn = synthesizeWindow('KV06', t0, 'gap');
+    const gap = syn.gap ?? { from: 4800, to: 5400 };
+    const bytes = encodeDemoMiniSeed(
+      (['HHZ', 'HHN', 'HHE'] as const).flatMap((channel) => [
+        { network: 'XX', station: 'KV06', location: '00', channel, sampleRateHz: 100, startTimeUs: t0, samples: syn.counts[channel].slice(0, gap.from) },
+        { network: 'XX', station: 'KV06', location: '00', channel, sampleRateHz: 100, startTimeUs: t0 + gap.to * 10_000, samples: syn.counts[channel].slice(gap.to) },
+      ]),
+    );
     const start = Date.UTC(2026, 11, 1, 22, 0, 0) * 1000;
     const out = shiftWindowFile(bytes, name, start);
     expect(out.filename).toBe('XX.KV06.2026-12-01T22-00-00.mseed');
@@ -111,11 +122,13 @@ describe('replayDemo against a running server (POST /api/uploads with ingest tok
     // A small demo folder of two KV03 windows, so that two passes stay quick.
     const dir = mkdtempSync(join(tmpdir(), 'seisift-replay-'));
     const manifest = readDemoManifest();
-    const two = manifest.files.filter((f) => f.station === 'KV03').slice(0, 2);
-    mkdirSync(join(dir, 'mseed'));
-    mkdirSync(join(dir, 'csv'));
-    for (const f of two) copyFileSync(join(DEMO_WAVEFORMS_DIR, f.file), join(dir, f.file));
-    writeFileSync(join(dir, 'manifest.json'), JSON.stringify({ files: two }));
+    const two = manifest.files.filter((f) => f.station === 'KV03' && f.reason !== 'history').slice(0, 2);
+    // And one of the station's history windows, which a replay does not send (the seed dismisses them).
+    const history = manifest.files.filter((f) => f.station === 'KV03' && f.reason === 'history').slice(0, 1);
+    expect(history).toHaveLength(1);
+    for (const sub of ['mseed', 'csv', 'history']) mkdirSync(join(dir, sub));
+    for (const f of [...history, ...two]) copyFileSync(join(DEMO_WAVEFORMS_DIR, f.file), join(dir, f.file));
+    writeFileSync(join(dir, 'manifest.json'), JSON.stringify({ files: [...history, ...two] }));
     const waits: number[] = [];
     const started = Date.now();
     const report = await replayDemo({

@@ -22,6 +22,21 @@ describe('quality checks (definitions in server/dsp/qc.ts)', () => {
     expect(f[0]?.message).toMatch(/gap of 2\.5 s .* nothing is filled in/);
   });
 
+  it('the decoder\'s notes (repeats dropped, empty records) become info findings at their sample', () => {
+    const f = qualityChecks(noise(5000), 100, [], {
+      ...opts,
+      decodeNotes: [
+        { code: 'duplicate-record', message: 'record 3 at byte 1024 repeats 182 samples already placed from … with identical values: dropped', sampleIndex: 413, count: 182 },
+        { code: 'empty-record', message: 'record 9 at byte 4096 claims 0 samples at …: nothing placed from it', sampleIndex: 595, count: 0 },
+      ],
+    });
+    expect(f.map((q) => [q.code, q.severity, q.sampleIndex, q.time, q.count])).toEqual([
+      ['duplicate-record', 'info', 413, 4.13, 182],
+      ['empty-record', 'info', 595, 5.95, 0],
+    ]);
+    expect(f[0]?.message).toMatch(/^record 3 at byte 1024 repeats 182 samples/u);
+  });
+
   it('clipping at a given full scale: runs at ±full scale are an error with the first sample', () => {
     const x = noise(5000);
     for (let i = 2000; i < 2010; i++) x[i] = 8_388_607;

@@ -87,13 +87,13 @@ describe('scoreWindow (the rule in server/dsp/score.ts: deciding channel, z of i
     expect(r.score).toBe(Math.round((0.5 * zPeak + 0.5 * zRatio) * 10) / 10);
   });
 
-  it('the same trigger with a band that hardly rose (a 20 Hz machinery burst leaking in): needs eyes with the reason, and a halved score', () => {
+  it('the same trigger with a band that did not rise (a 20 Hz machinery burst leaking in): likely noise with the reason, and a halved score', () => {
     const ok = scoreWindow([eventLike()], baseline, defaultProcessingProfile);
     const r = scoreWindow([eventLike({ signalSpectrum: sig({ inBandSnr: 1.3, inBandShare: 0.1, peakFrequency: 20, centroid: 19.5 }) })], baseline, defaultProcessingProfile);
-    expect(r.flag).toBe('needs eyes');
+    expect(r.flag).toBe('likely noise');
     // 10·log10(1.3) = 1.1 dB
     expect(r.reasons.join(' | ')).toMatch(/its excess peaks at 20\.0 Hz \(centroid 19\.5 Hz\)/);
-    expect(r.reasons.join(' | ')).toMatch(/the trigger is strong but the high band 2–10 Hz hardly rose \(1\.1 dB, 10 % of its bins\): energy may be leaking in from outside the band/);
+    expect(r.reasons.join(' | ')).toMatch(/the high band 2–10 Hz did not rise \(1\.1 dB\): the energy that set the trigger off lies outside the band \(its excess peaks at 20\.0 Hz\) and leaked through the filter/);
     expect(r.score).toBe(Math.round(((0.5 * zPeak + 0.5 * zRatio) / 2) * 10) / 10);
     expect(r.score).toBeLessThan(ok.score);
   });

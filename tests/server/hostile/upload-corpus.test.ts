@@ -3,7 +3,11 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startServer, type RunningServer } from '@server/index';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
 import { ingestRowCounts, seedIngestToken, seedStation } from '@tests/faults/support/fixtures';
-import { expectedReason, makeHostileCorpus } from '@tests/fixtures/hostile/make-corpus';
+import { eq } from 'drizzle-orm';
+import { decodeStoredSamples } from '@server/db/samples-codec';
+import { windowChannels, windows } from '@server/db/schema/uploads';
+import { decodeWaveform } from '@server/formats/decode';
+import { expectedReason, makeHostileCorpus, makeRepairableCorpus } from '@tests/fixtures/hostile/make-corpus';
 import { makeWindowFile } from '@tests/faults/support/windows';
 
 /**
@@ -140,6 +144,26 @@ describe('hostile uploads', () => {
     // And a good file is still accepted afterwards (the server is not wedged).
     const good = await post([{ name: 'good.mseed', bytes: makeWindowFile('KV01', 1_781_000_000_000_000) }]);
     expect(good.status).toBe(201);
+  }, 120_000);
+
+  it('accepts every repairable file (repeated record, re-sent overlap, empty record, zero padding, quoted CSV, CSV named .mseed) with its clean twin\'s samples at their times and the decoder\'s note in the QC findings', async () => {
+    for (const c of makeRepairableCorpus()) {
+      const { status, body } = await post([{ name: c.filename, bytes: c.bytes }]);
+      expect(status, `${c.name}: ${JSON.stringify(body)}`).toBe(201);
+      const uploadId = (body as { files: Array<{ uploadId?: number }> }).files[0]?.uploadId;
+      expect(uploadId, c.name).toBeDefined();
+      const rows = await ctx.database.db
+        .select({ streamId: windowChannels.streamId, startTimeUs: windowChannels.startTimeUs, rate: windowChannels.sampleRateHz, count: windowChannels.sampleCount, samples: windowChannels.samples, qc: windowChannels.qc })
+        .from(windowChannels)
+        .innerJoin(windows, eq(windows.id, windowChannels.windowId))
+        .where(eq(windows.uploadId, uploadId ?? -1));
+      const [clean] = decodeWaveform(c.clean, { filename: c.cleanFilename });
+      expect(rows.map((r) => [r.streamId, r.startTimeUs, r.rate, r.count]), c.name).toEqual([[clean?.id, clean?.startTimeUs, clean?.sampleRateHz, clean?.samples.length]]);
+      expect(Array.from(decodeStoredSamples(rows[0]?.samples ?? new Uint8Array(0))), c.name).toEqual(Array.from(clean?.samples ?? []));
+      const codes = (Array.isArray(rows[0]?.qc) ? (rows[0]?.qc as Array<{ code: string }>) : []).map((f) => f.code);
+      for (const note of c.notes) expect(codes, c.name).toContain(note);
+      expect(codes.filter((k) => k.startsWith('duplicate') || k === 'empty-record'), c.name).toEqual(c.notes);
+    }
   }, 120_000);
 
   it('refuses a 200 MB streamed file after the 25 MB limit, not after reading it all', async () => {

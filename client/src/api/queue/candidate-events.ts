@@ -1,36 +1,16 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import type { groupLabelBodySchema } from '@shared/schemas/supervisor';
-import { flagSchema } from '@shared/schemas/flags';
-import { itemStateSchema } from '@shared/schemas/item-states';
+import { candidateEventSchema as sharedCandidateEventSchema, candidateMemberSchema as sharedCandidateMemberSchema, groupLabelResultSchema as sharedGroupLabelResultSchema, type groupLabelBodySchema } from '@shared/schemas/supervisor';
 import { apiRequest } from '@client/lib/api-client';
 
-/** One member of a candidate event as GET /api/supervisor/candidate-events/:id sends it. */
-export const candidateMemberSchema = z.object({
-  itemId: z.number().int(),
-  station: z.string(),
-  stationId: z.number().int(),
-  /** First trigger time, ISO 8601 UTC with ms. */
-  arrival: z.string(),
-  state: itemStateSchema,
-  flag: flagSchema,
-  score: z.number(),
-  labelType: z.string().nullable(),
-  version: z.number().int(),
-});
+/** One member of a candidate event as GET /api/supervisor/candidate-events/:id sends it (shared with the server). */
+export const candidateMemberSchema = sharedCandidateMemberSchema;
 
 /** A candidate event member. */
 export type CandidateMember = z.infer<typeof candidateMemberSchema>;
 
-/** A candidate event with the members the viewer may see (server/features/events/candidate-events.ts). */
-export const candidateEventSchema = z.object({
-  id: z.number().int(),
-  anchorItemId: z.number().int(),
-  firstArrival: z.string(),
-  lastArrival: z.string(),
-  stationCount: z.number().int(),
-  members: z.array(candidateMemberSchema),
-});
+/** A candidate event with the members the viewer may see (shared with the server). */
+export const candidateEventSchema = sharedCandidateEventSchema;
 
 /** A candidate event. */
 export type CandidateEvent = z.infer<typeof candidateEventSchema>;
@@ -48,9 +28,7 @@ export function useCandidateEvent(id: number | null) {
   return useQuery({ ...candidateEventOptions(id ?? 0), enabled: id !== null });
 }
 
-const groupLabelResultSchema = z.object({
-  members: z.array(z.object({ itemId: z.number().int(), result: z.enum(['labelled', 'skipped']), reason: z.string().optional() })),
-});
+const groupLabelResultSchema = sharedGroupLabelResultSchema;
 
 /** The body of a group label: the event type for every member, the whole label for the current one. */
 export type GroupLabelBodyInput = z.input<typeof groupLabelBodySchema>;

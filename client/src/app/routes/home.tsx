@@ -1,6 +1,7 @@
 import { Link } from 'react-router';
 import { authPagePaths } from '@shared/auth/links';
 import { roleLabels } from '@shared/auth/roles';
+import { devPagesIncluded } from '@client/config/build-flags';
 import { navFor } from '@client/config/paths';
 import { useSession } from '@client/lib/session-context';
 import { buttonClass } from '@client/components/ui/button';
@@ -15,7 +16,7 @@ export type HomeRouteProps = { isRouted: (href: string) => boolean };
  */
 export function HomeRoute({ isRouted }: HomeRouteProps) {
   const { user, features } = useSession();
-  const sections = navFor(user?.roles ?? [], import.meta.env.DEV, user !== null, features).filter((item) => item.key !== 'home');
+  const sections = navFor(user?.roles ?? [], devPagesIncluded, user !== null, features).filter((item) => item.key !== 'home');
   return (
     <div className="flex max-w-4xl flex-col gap-4">
       <header>
@@ -38,7 +39,7 @@ export function HomeRoute({ isRouted }: HomeRouteProps) {
           }
         >
           Sign in to see the sections your roles give you.
-          {import.meta.env.DEV ? ' In development the design reference is listed below.' : ''}
+          {devPagesIncluded ? ' This build also has the design reference, listed below.' : ''}
         </EmptyState>
       )}
       {sections.length > 0 ? (

@@ -1,6 +1,7 @@
 import type { ReactNode } from 'react';
 import { Link, NavLink } from 'react-router';
 import { roleLabels } from '@shared/auth/roles';
+import { devPagesIncluded } from '@client/config/build-flags';
 import { navFor, navGroups, type NavItem } from '@client/config/paths';
 import { cx } from '@client/lib/cx';
 import { useSession, type SessionUser } from '@client/lib/session-context';
@@ -130,7 +131,7 @@ export type AppShellProps = {
  */
 export function AppShell({ children, connection, isRouted, onSignOut, signingOut }: AppShellProps) {
   const { user, features } = useSession();
-  const items = navFor(user?.roles ?? [], import.meta.env.DEV, user !== null, features).filter((item) => isRouted(item.href));
+  const items = navFor(user?.roles ?? [], devPagesIncluded, user !== null, features).filter((item) => isRouted(item.href));
   return (
     <div className="grid h-dvh grid-rows-[auto_minmax(0,1fr)] bg-canvas text-ink">
       <a

@@ -6,14 +6,18 @@ import { Input } from './input';
 /** The example every UTC time field shows (placeholder and error text). */
 export const utcTimePlaceholder = '2026-03-14T00:00Z';
 
-const utcTimePattern = /^(\d{4})-(\d{2})-(\d{2})(?:T(\d{2}):(\d{2})(?::(\d{2})(?:\.(\d{1,3}))?)?Z)?$/;
+// Date, then optionally a time after "T" or spaces (RFC 3339 §5.6 lets a space stand for the T
+// "for the sake of readability"), with an optional "Z": the field itself says UTC.
+const utcTimePattern = /^(\d{4})-(\d{2})-(\d{2})(?:(?:T| +)(\d{2}):(\d{2})(?::(\d{2})(?:\.(\d{1,3}))?)?Z?)?$/;
 
 /**
  * A UTC time typed as ISO 8601 text (the form used everywhere else in Seisift), parsed to the full
  * ISO string with milliseconds. Accepted: `2026-03-14` (that UTC day at 00:00),
- * `2026-03-14T09:26Z`, `2026-03-14T09:26:53Z`, `2026-03-14T09:26:53.589Z`. Leading/trailing spaces
- * are ignored, and a lower-case `t`/`z` is taken as upper case. A time must end in `Z` (no local
- * times, no offsets), and the day must exist (2026-02-30 is refused).
+ * `2026-03-14T09:26Z`, `2026-03-14T09:26:53Z`, `2026-03-14T09:26:53.589Z`, and the same with a
+ * space in place of the `T` (`2026-03-14 12:00`, as RFC 3339 §5.6 allows) or without the `Z`: the
+ * field is labelled UTC, so a time without a zone is read as UTC, never as the browser's local
+ * time. Leading/trailing spaces are ignored, and a lower-case `t`/`z` is taken as upper case.
+ * Offsets (`+01:00`) are refused rather than converted, and the day must exist (2026-02-30 is refused).
  */
 export const utcTimeTextSchema = z
   .string()
@@ -30,7 +34,7 @@ export const utcTimeTextSchema = z
     }
     const [y, mo, d, h = '0', mi = '0', sec = '0'] = m.slice(1);
     if (Number(h) > 23 || Number(mi) > 59 || Number(sec) > 59) {
-      ctx.addIssue({ code: 'custom', message: `${s.slice(11, -1)} is not a time of day (00:00 to 23:59:59)` });
+      ctx.addIssue({ code: 'custom', message: `${s.slice(10).replace(/^[T ]+/, '').replace(/Z$/, '')} is not a time of day (00:00 to 23:59:59)` });
       return;
     }
     const back = new Date(Date.UTC(Number(y), Number(mo) - 1, Number(d)));
@@ -38,7 +42,11 @@ export const utcTimeTextSchema = z
       ctx.addIssue({ code: 'custom', message: `${y}-${mo}-${d} is not a day of the calendar` });
     }
   })
-  .transform((s) => new Date(s.length === 10 ? `${s}T00:00:00Z` : s).toISOString());
+  .transform((s) => {
+    const [y, mo, d, h = '0', mi = '0', sec = '0', frac = ''] = (utcTimePattern.exec(s) ?? []).slice(1);
+    // Built from the fields with Date.UTC, so no string is ever handed to the local-time parser.
+    return new Date(Date.UTC(Number(y), Number(mo) - 1, Number(d), Number(h), Number(mi), Number(sec), Number(frac.padEnd(3, '0')))).toISOString();
+  });
 
 /**
  * Parses typed text as a UTC time.

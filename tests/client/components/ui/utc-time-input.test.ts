@@ -15,6 +15,12 @@ describe('parseUtcTimeText', () => {
     ['2026-03-14T09:26:53.589Z', '2026-03-14T09:26:53.589Z'],
     [' 2026-03-14t09:26z ', '2026-03-14T09:26:00.000Z'],
     ['2024-02-29', '2024-02-29T00:00:00.000Z'], // a leap day (2024 is divisible by 4, not by 100)
+    // A space for the T, as RFC 3339 §5.6 allows "for the sake of readability"; no Z in a field
+    // labelled UTC is still UTC (never the browser's local time).
+    ['2026-03-14 12:00', '2026-03-14T12:00:00.000Z'],
+    ['2026-03-14 12:00Z', '2026-03-14T12:00:00.000Z'],
+    ['2026-03-14  09:26:53.5', '2026-03-14T09:26:53.500Z'],
+    ['2026-03-14T09:26', '2026-03-14T09:26:00.000Z'],
   ])('reads %j as %s', (text, iso) => {
     expect(parseUtcTimeText(text)).toEqual({ ok: true, iso });
   });
@@ -22,8 +28,10 @@ describe('parseUtcTimeText', () => {
   it.each([
     ['', /Enter a UTC time, e\.g\. 2026-03-14T00:00Z/],
     ['03/14/2026', /Not a UTC time: use 2026-03-14T00:00Z/],
-    ['2026-03-14T09:26', /Not a UTC time/], // no Z: a local time is refused
-    ['2026-03-14T09:26+01:00', /Not a UTC time/], // offsets are refused too
+    ['2026-03-14T09:26+01:00', /Not a UTC time/], // offsets are refused, not converted
+    ['2026-03-14 09:26 +0100', /Not a UTC time/],
+    ['2026-03-1412:00', /Not a UTC time/], // a separator is needed
+    ['2026-03-14 24:00', /^24:00 is not a time of day/],
     ['2026-02-30', /2026-02-30 is not a day of the calendar/],
     ['2025-02-29', /2025-02-29 is not a day of the calendar/], // 2025 is no leap year
     ['2026-03-14T24:00Z', /^24:00 is not a time of day/],

@@ -188,6 +188,27 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     expect(refused?.message).toMatch(/^no-stream\.csv: .*stream/i);
   });
 
+  it('CSV with relative seconds takes its start from the startTime field (winning over # start=); a bad startTime is 400; a gapped MiniSEED window is 422 naming the gap', async () => {
+    const samples = wave(4000, 3);
+    const body = ['t_seconds,counts', ...Array.from(samples, (v, i) => `${(i / 100).toFixed(2)},${v}`)].join('\n');
+    const ok = await post(operator).field('streamId', 'XX.KV01.00.HHZ').field('startTime', '2026-03-14 11:00:00.25').attach('files', Buffer.from(body), 'relative.csv');
+    expect(ok.status).toBe(201);
+    const out = uploadResponseSchema.parse(ok.body).files[0];
+    expect(out?.items?.[0]?.windowStart).toBe('2026-03-14T11:00:00.250Z');
+    const commented = `# start=2026-03-14T09:00:00Z\n${body.replace('t_seconds', 't_s')}`;
+    const over = await post(operator).field('streamId', 'XX.KV01.00.HHZ').field('startTime', '2026-03-14T12:00:00Z').attach('files', Buffer.from(commented), 'commented.csv');
+    expect(uploadResponseSchema.parse(over.body).files[0]?.items?.[0]?.windowStart).toBe('2026-03-14T12:00:00.000Z');
+    const none = await post(operator).field('streamId', 'XX.KV01.00.HHZ').attach('files', Buffer.from(`${body}\n`), 'nostart.csv');
+    expect(none.status).toBe(422);
+    expect(uploadResponseSchema.parse(none.body).files[0]?.message).toMatch(/no start time is given; give the start time with the upload/u);
+    const bad = await post(operator).field('startTime', '14/03/2026 11:00').attach('files', Buffer.from(body), 'bad.csv');
+    expect(bad.status).toBe(400);
+    expect(JSON.stringify(bad.body)).toMatch(/startTime must be an ISO-8601 UTC time/u);
+    const gap = await post(operator).attach('files', readFileSync(fixture('gap-overlap.mseed')), 'gap.mseed');
+    expect(gap.status).toBe(422);
+    expect(uploadResponseSchema.parse(gap.body).files[0]?.message).toMatch(/^gap\.mseed: samples cannot be placed exactly at their times .*gap of 2\.5 s/u);
+  });
+
   it('a multi-stream file makes one item per station window', async () => {
     const res = await post(operator).attach('files', readFileSync(fixture('multi-stream.mseed')), 'multi.mseed');
     expect(res.status).toBe(201);

@@ -314,7 +314,7 @@ describe('queue API (real MariaDB, supertest)', () => {
       expect(Math.min(...z.raw)).toBe(Math.min(...pre));
       // Triggers equal the ones the engine stored in the analysis (same samples, same profile).
       const analysis = detail.analysis as { channels: Array<{ id: string; staLta: { triggers: Array<{ on: number; off: number | null }> } }> };
-      expect(z.triggers).toEqual(analysis.channels.find((c) => c.id.endsWith('HHZ'))?.staLta.triggers);
+      expect(z.triggers).toEqual(analysis.channels.find((c) => c.id.endsWith('HHZ'))?.staLta.triggers.map((t) => ({ on: t.on, off: t.off })));
       expect(z.triggers.length).toBeGreaterThan(0);
       // Zoom: 4 s at 100 Hz = 400 samples ≤ points/2 → every sample, equal to the engine's pre-processing.
       const zoom = tracesResponseSchema.parse((await get(ana, `/api/queue/items/${id}/traces?from=50&to=54&points=1000`).expect(200)).body);

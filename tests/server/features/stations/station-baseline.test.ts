@@ -1,3 +1,4 @@
+import { NETWORK_DEFAULT_BASELINE } from '@server/dsp/score';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
@@ -35,7 +36,8 @@ describe('station noise baseline (real MariaDB)', () => {
   it('no windows: no baseline, the view says so', async () => {
     const r = await stationBaseline(ctx.database.db, kv05, 20);
     expect(r.baseline).toBeNull();
-    expect(r.view).toEqual({ count: 0, source: 'none', log10Ratio: null, staLtaPeak: null, minWindows: 20, inUse: false });
+    expect(r.view).toMatchObject({ count: 0, source: 'none', log10Ratio: null, staLtaPeak: null, minWindows: 20, inUse: false });
+    expect(r.view.networkDefault).toEqual({ log10Ratio: NETWORK_DEFAULT_BASELINE.log10Ratio, staLtaPeak: NETWORK_DEFAULT_BASELINE.staLtaPeak });
   });
 
   it('until enough dismissals exist, the automatic "likely noise" windows are used (not labelled or escalated ones)', async () => {

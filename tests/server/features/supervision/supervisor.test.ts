@@ -136,8 +136,24 @@ describe('supervisor API (real MariaDB, fake SMTP, supertest)', () => {
       // Sam cannot act on Sue's entry.
       expect((await post(sam, `/api/supervisor/inbox/${entry.id}/confirm`, {})).status).toBe(404);
 
-      await post(sue, `/api/supervisor/inbox/${entry.id}/confirm`, {}).expect(200);
-      expect((await item(id)).state).toBe('confirmed');
+      // The escalated item has no event label: confirming it without one is refused and changes nothing.
+      expect(entry.itemLabelType).toBeNull();
+      const bare = await post(sue, `/api/supervisor/inbox/${entry.id}/confirm`, {}).expect(422);
+      expect(bare.body.error.code).toBe('label_required');
+      expect(bare.body.error.message).toMatch(/has no event label .*say which event type it is/);
+      expect((await item(id)).state).toBe('escalated');
+      const wrong = await post(sue, `/api/supervisor/inbox/${entry.id}/confirm`, { label: { eventType: 'tremor' } }).expect(400);
+      expect(wrong.body.error.message).toMatch(/^label\.eventType/);
+
+      const confirmed = await post(sue, `/api/supervisor/inbox/${entry.id}/confirm`, { label: { eventType: 'earthquake', certainty: 'known', note: 'felt reports from the valley' } }).expect(200);
+      expect(confirmed.body.entries[0].itemLabelType).toBe('earthquake');
+      const settled = await item(id);
+      expect(settled.state).toBe('confirmed');
+      expect(settled.labelType).toBe('earthquake');
+      expect(settled.label).toEqual({ kind: 'event', eventType: 'earthquake', certainty: 'known', distanceClass: null, picks: [], note: 'felt reports from the valley\nEscalated: odd double onset at KV01' });
+      // Now in the catalogue's review list (labelled as an event, confirmed), not lost between queue and catalogue.
+      const review = await get(sue, '/api/supervisor/review?station=XX.KV01&type=earthquake&limit=500').expect(200);
+      expect(JSON.stringify(review.body)).toContain(`"itemId":${id},`);
       const samInbox = await get(sam, '/api/supervisor/inbox').expect(200);
       expect(samInbox.body.entries[0]).toMatchObject({ itemId: id, resolution: 'confirmed', resolvedBy: 'Sue Ridge' });
       const audits = await ctx.database.db.select().from(auditLog).where(and(eq(auditLog.targetType, 'queue_item'), eq(auditLog.targetId, String(id))));

@@ -2,7 +2,7 @@ import { queryOptions } from '@tanstack/react-query';
 import { z } from 'zod';
 import { apiErrorBodySchema } from '@shared/api-error';
 import { latestWindowsSchema } from '@shared/schemas/data-period';
-import { evaluationSchema, reviewRowSchema, type ThresholdValues } from '@shared/schemas/supervisor';
+import { evaluationSchema, inboxEntryViewSchema, inboxViewSchema, reviewRowSchema, type confirmLabelSchema, type ThresholdValues } from '@shared/schemas/supervisor';
 
 /**
  * The supervisor screens' calls to /api/supervisor (server/features/supervision/router.ts), each with
@@ -48,36 +48,26 @@ const qs = (params: Record<string, string | number | undefined>) => {
 
 // Inbox.
 
-/** One inbox entry. */
-export const inboxEntrySchema = z.object({
-  id: z.number(),
-  itemId: z.number(),
-  station: z.string(),
-  subject: z.string(),
-  reason: z.string(),
-  escalatedBy: z.string().nullable(),
-  createdAt: z.string(),
-  readAt: z.string().nullable(),
-  acknowledgedAt: z.string().nullable(),
-  resolution: z.string().nullable(),
-  resolutionComment: z.string().nullable(),
-  resolvedBy: z.string().nullable(),
-  resolvedAt: z.string().nullable(),
-  itemState: z.string(),
-  itemVersion: z.number(),
-  mailError: z.string().nullable(),
-});
+/** One inbox entry (shared with the server, which documents it in its OpenAPI description). */
+export const inboxEntrySchema = inboxEntryViewSchema;
 /** One inbox entry. */
 export type InboxEntry = z.infer<typeof inboxEntrySchema>;
-const inboxSchema = z.object({ entries: z.array(inboxEntrySchema), unread: z.number() });
+const inboxSchema = inboxViewSchema;
 
 /** The signed-in supervisor's inbox. */
 export const inboxQuery = () => queryOptions({ queryKey: ['supervisor', 'inbox'], queryFn: () => fetchJson(inboxSchema, '/api/supervisor/inbox') });
 
-/** An inbox action: read, acknowledge, confirm, or return with a comment. */
-export function inboxAction(id: number, action: 'read' | 'acknowledge' | 'confirm' | 'return', comment?: string) {
-  return fetchJson(inboxSchema, `/api/supervisor/inbox/${id}/${action}`, { method: 'POST', body: action === 'return' ? { comment } : {} });
+/**
+ * An inbox action: read, acknowledge, confirm (with `label` when the item has no event label yet),
+ * or return with a comment.
+ */
+export function inboxAction(id: number, action: 'read' | 'acknowledge' | 'confirm' | 'return', extra: { comment?: string; label?: ConfirmLabelInput } = {}) {
+  const body = action === 'return' ? { comment: extra.comment } : action === 'confirm' && extra.label ? { label: extra.label } : {};
+  return fetchJson(inboxSchema, `/api/supervisor/inbox/${id}/${action}`, { method: 'POST', body });
 }
+
+/** The label a supervisor gives when confirming an escalation that has none. */
+export type ConfirmLabelInput = z.input<typeof confirmLabelSchema>;
 
 // Review.
 

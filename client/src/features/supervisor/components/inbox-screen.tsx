@@ -6,25 +6,32 @@ import { EmptyState } from '@client/components/ui/empty-state';
 import { Loading } from '@client/components/ui/skeleton';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
 import { TriageCaution } from '@client/components/ui/triage-caution';
-import { inboxAction, inboxQuery, type InboxEntry } from '@client/features/supervisor/api/supervisor-api';
+import { commonEventTypes, quakemlEventTypes, typeCertainties } from '@shared/schemas/label';
+import { Select } from '@client/components/ui/select';
+import { inboxAction, inboxQuery, type ConfirmLabelInput, type InboxEntry } from '@client/features/supervisor/api/supervisor-api';
 import { useSupervisorLive } from '@client/features/supervisor/hooks/use-supervisor-live';
 import { ErrorLine, SupervisorPage } from './common';
 
 /**
  * /inbox: escalations sent to this supervisor, newest first, updating live. Acknowledge ("I am on
- * it"), then confirm the item or return it to the queue with a comment the analyst sees.
+ * it"), then confirm the item or return it to the queue with a comment the analyst sees. An
+ * escalated item has no event label (the analyst escalated instead of labelling), so "Confirm…"
+ * asks for its event type first: a confirmed item without one would reach neither the catalogue
+ * nor the queue.
  */
 export function InboxScreen() {
   const live = useSupervisorLive();
   const qc = useQueryClient();
   const inbox = useQuery(inboxQuery());
   const [returning, setReturning] = useState<number | null>(null);
+  const [confirming, setConfirming] = useState<number | null>(null);
   const [comment, setComment] = useState('');
   const act = useMutation({
-    mutationFn: (v: { id: number; action: 'read' | 'acknowledge' | 'confirm' | 'return'; comment?: string }) => inboxAction(v.id, v.action, v.comment),
+    mutationFn: (v: { id: number; action: 'read' | 'acknowledge' | 'confirm' | 'return'; comment?: string; label?: ConfirmLabelInput }) => inboxAction(v.id, v.action, { comment: v.comment, label: v.label }),
     onSuccess: (data) => {
       qc.setQueryData(inboxQuery().queryKey, data);
       setReturning(null);
+      setConfirming(null);
       setComment('');
     },
   });
@@ -72,7 +79,9 @@ export function InboxScreen() {
                     <EntryStatus entry={e} />
                   </Td>
                   <Td>
-                    {e.resolution ? null : returning === e.id ? (
+                    {e.resolution ? null : confirming === e.id ? (
+                      <ConfirmLabelForm entryId={e.id} busy={act.isPending} onCancel={() => setConfirming(null)} onConfirm={(label) => act.mutate({ id: e.id, action: 'confirm', label })} />
+                    ) : returning === e.id ? (
                       <form
                         className="flex flex-col gap-1"
                         onSubmit={(ev) => {
@@ -100,9 +109,15 @@ export function InboxScreen() {
                             Acknowledge
                           </Button>
                         ) : null}
-                        <Button size="sm" variant="primary" onClick={() => act.mutate({ id: e.id, action: 'confirm' })}>
-                          Confirm
-                        </Button>
+                        {e.itemLabelType === null ? (
+                          <Button size="sm" variant="primary" onClick={() => setConfirming(e.id)}>
+                            Confirm…
+                          </Button>
+                        ) : (
+                          <Button size="sm" variant="primary" onClick={() => act.mutate({ id: e.id, action: 'confirm' })}>
+                            Confirm as {e.itemLabelType}
+                          </Button>
+                        )}
                         <Button size="sm" variant="secondary" onClick={() => setReturning(e.id)}>
                           Return…
                         </Button>
@@ -158,5 +173,65 @@ function EntryStatus({ entry: e }: { entry: InboxEntry }) {
       {e.acknowledgedAt ? <span>acknowledged</span> : null}
       {e.mailError ? <span className="text-danger">e-mail not sent</span> : null}
     </span>
+  );
+}
+
+/**
+ * The event label asked for when confirming an escalation that has none: the QuakeML type (the
+ * common ones first), its certainty and an optional note; the escalation's reason is kept with it.
+ */
+function ConfirmLabelForm({ entryId, busy, onCancel, onConfirm }: { entryId: number; busy: boolean; onCancel: () => void; onConfirm: (label: ConfirmLabelInput) => void }) {
+  const [eventType, setEventType] = useState<(typeof quakemlEventTypes)[number] | ''>('');
+  const [certainty, setCertainty] = useState<(typeof typeCertainties)[number]>('suspected');
+  const [note, setNote] = useState('');
+  return (
+    <form
+      className="flex flex-col gap-1"
+      aria-label={`Confirm escalation ${entryId} with an event label`}
+      onSubmit={(ev) => {
+        ev.preventDefault();
+        if (eventType !== '') onConfirm({ eventType, certainty, note });
+      }}
+    >
+      <p className="text-sm text-ink-muted">It has no event label yet: which event is it?</p>
+      <label className="flex flex-col gap-0.5 text-sm">
+        Event type (QuakeML)
+        <Select className="h-7" value={eventType} required onChange={(ev) => setEventType(quakemlEventTypes.find((t) => t === ev.target.value) ?? '')}>
+          <option value="">choose…</option>
+          <optgroup label="Common">
+            {commonEventTypes.map((t) => (
+              <option key={t}>{t}</option>
+            ))}
+          </optgroup>
+          <optgroup label="All QuakeML 1.2 types">
+            {quakemlEventTypes
+              .filter((t) => !(commonEventTypes as readonly string[]).includes(t))
+              .map((t) => (
+                <option key={t}>{t}</option>
+              ))}
+          </optgroup>
+        </Select>
+      </label>
+      <label className="flex flex-col gap-0.5 text-sm">
+        Type certainty
+        <Select className="h-7" value={certainty} onChange={(ev) => setCertainty(typeCertainties.find((c) => c === ev.target.value) ?? 'suspected')}>
+          {typeCertainties.map((c) => (
+            <option key={c}>{c}</option>
+          ))}
+        </Select>
+      </label>
+      <label className="flex flex-col gap-0.5 text-sm">
+        Note (optional)
+        <textarea className="rounded-xs border border-line bg-surface p-1 text-sm" rows={2} value={note} onChange={(ev) => setNote(ev.target.value)} />
+      </label>
+      <div className="flex gap-2">
+        <Button size="sm" type="submit" variant="primary" disabled={eventType === '' || busy}>
+          {eventType === '' ? 'Confirm' : `Confirm as ${eventType}`}
+        </Button>
+        <Button size="sm" variant="quiet" onClick={onCancel}>
+          Cancel
+        </Button>
+      </div>
+    </form>
   );
 }

@@ -13,8 +13,9 @@ export type UploadProgress =
  * outcome; a refusal of the whole request (401, 403, 413) becomes a `rejected` outcome carrying
  * the server's message, and a network failure one that says so.
  * @param streamId the stream id for a CSV file (NET.STA.LOC.CHA)
+ * @param startTime t = 0 of a CSV file whose times are seconds (ISO-8601, UTC)
  */
-export function uploadFile(file: File, opts: { streamId?: string; onProgress: (p: UploadProgress) => void; signal?: AbortSignal }): Promise<UploadOutcome> {
+export function uploadFile(file: File, opts: { streamId?: string; startTime?: string; onProgress: (p: UploadProgress) => void; signal?: AbortSignal }): Promise<UploadOutcome> {
   return new Promise((resolve) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', '/api/uploads');
@@ -43,10 +44,8 @@ export function uploadFile(file: File, opts: { streamId?: string; onProgress: (p
     opts.signal?.addEventListener('abort', () => xhr.abort());
     const form = new FormData();
     if (opts.streamId) form.append('streamId', opts.streamId);
+    if (opts.startTime) form.append('startTime', opts.startTime);
     form.append('files', file, file.name);
     xhr.send(form);
   });
 }
-
-/** Whether a file name looks like CSV text (which needs a stream id). */
-export const isCsvName = (name: string) => /\.(csv|txt)$/i.test(name);

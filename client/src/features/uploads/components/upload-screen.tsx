@@ -1,7 +1,6 @@
 import { useCallback, useId, useRef, useState, type DragEvent } from 'react';
 import { Link } from 'react-router';
 import type { UploadOutcome } from '@shared/schemas/upload';
-import { streamIdSchema } from '@shared/schemas/upload';
 import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { FlagMarker } from '@client/components/ui/flag-marker';
@@ -10,15 +9,22 @@ import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import { paths } from '@client/config/paths';
 import { cx } from '@client/lib/cx';
-import { isCsvName, uploadFile, type UploadProgress } from '@client/features/uploads/api/upload-file';
+import { uploadFile, type UploadProgress } from '@client/features/uploads/api/upload-file';
+import { csvFieldProblems, PEEK_BYTES, peekWaveformFile, type CsvFieldProblems, type FilePeek } from '@client/features/uploads/lib/peek-file';
 
 /** One file on the page, from picking to its outcome. */
 type Entry = {
   key: string;
   file: File;
+  /** What the file is, read from its first bytes (null while reading). */
+  peek: FilePeek | null;
   streamId: string;
+  startTime: string;
   state: { phase: 'ready' } | UploadProgress | { phase: 'done'; outcome: UploadOutcome };
 };
+
+/** The fields a file still needs (see csvFieldProblems). */
+const csvProblems = (e: Entry): CsvFieldProblems => csvFieldProblems(e.peek, e.streamId, e.startTime);
 
 const sizeWords = (bytes: number) => (bytes < 1024 ? `${bytes} B` : bytes < 1024 * 1024 ? `${(bytes / 1024).toFixed(1)} KB` : `${(bytes / 1024 / 1024).toFixed(2)} MB`);
 
@@ -55,28 +61,34 @@ export function UploadScreen() {
   const counter = useRef(0);
   const hintId = useId();
 
-  const add = useCallback((files: FileList | File[]) => {
-    const list = Array.from(files);
-    setEntries((prev) => [...prev.filter((e) => e.state.phase !== 'done'), ...list.map((file) => ({ key: `f${++counter.current}`, file, streamId: '', state: { phase: 'ready' } as const }))]);
-  }, []);
-
   const update = (key: string, patch: Partial<Entry>) => setEntries((prev) => prev.map((e) => (e.key === key ? { ...e, ...patch } : e)));
 
-  const csvProblem = (e: Entry): string | null => {
-    if (!isCsvName(e.file.name)) return null;
-    if (e.streamId.trim() === '') return 'A CSV file needs its stream id, e.g. XX.KV01.00.HHZ';
-    const parsed = streamIdSchema.safeParse(e.streamId);
-    return parsed.success ? null : (parsed.error.issues[0]?.message ?? 'invalid stream id');
-  };
+  const add = useCallback((files: FileList | File[]) => {
+    const list = Array.from(files).map((file) => ({ key: `f${++counter.current}`, file, peek: null, streamId: '', startTime: '', state: { phase: 'ready' } as const }));
+    setEntries((prev) => [...prev.filter((e) => e.state.phase !== 'done'), ...list]);
+    // Judge each file by its first bytes (a CSV named .mseed gets its fields; MiniSEED needs none).
+    for (const e of list) {
+      void e.file
+        .slice(0, PEEK_BYTES)
+        .arrayBuffer()
+        .then(
+          (buf) => peekWaveformFile(new Uint8Array(buf)),
+          (): FilePeek => ({ kind: 'other' }),
+        )
+        .then((peek) => setEntries((prev) => prev.map((x) => (x.key === e.key ? { ...x, peek } : x))));
+    }
+  }, []);
 
   const ready = entries.filter((e) => e.state.phase === 'ready');
-  const blocked = ready.some((e) => csvProblem(e) !== null);
+  const blocked = ready.some((e) => e.peek === null || csvProblems(e) !== null);
 
   const send = async () => {
     setBusy(true);
     for (const e of ready) {
+      const csv = e.peek?.kind === 'csv';
       const outcome = await uploadFile(e.file, {
-        ...(isCsvName(e.file.name) ? { streamId: e.streamId.trim() } : {}),
+        ...(csv && e.streamId.trim() ? { streamId: e.streamId.trim() } : {}),
+        ...(csv && e.startTime.trim() ? { startTime: e.startTime.trim() } : {}),
         onProgress: (p) => update(e.key, { state: p }),
       });
       update(e.key, { state: { phase: 'done', outcome } });
@@ -97,7 +109,7 @@ export function UploadScreen() {
       <header>
         <h1 className="text-xl font-semibold">Upload waveform windows</h1>
         <p className="text-base text-ink-muted">
-          MiniSEED 2, MiniSEED 3 or CSV (<span className="font-mono">t_seconds,counts</span>). Each file is decoded, checked and analysed; every station window in it becomes one queue item.
+          MiniSEED 2, MiniSEED 3 or CSV (<span className="font-mono">t_seconds,counts</span>). Each file is decoded, checked and analysed; every station window in it becomes one queue item. A CSV file asks for its stream id and start time only when it does not give them itself.
         </p>
       </header>
 
@@ -137,7 +149,15 @@ export function UploadScreen() {
           </h2>
           <ul className="flex flex-col gap-2">
             {entries.map((e) => (
-              <FileRow key={e.key} entry={e} busy={busy} csvProblem={csvProblem(e)} onStreamId={(v) => update(e.key, { streamId: v })} onRemove={() => setEntries((prev) => prev.filter((x) => x.key !== e.key))} />
+              <FileRow
+                key={e.key}
+                entry={e}
+                busy={busy}
+                problems={csvProblems(e)}
+                onStreamId={(v) => update(e.key, { streamId: v })}
+                onStartTime={(v) => update(e.key, { startTime: v })}
+                onRemove={() => setEntries((prev) => prev.filter((x) => x.key !== e.key))}
+              />
             ))}
           </ul>
           {busy || ready.length > 0 ? (
@@ -145,7 +165,7 @@ export function UploadScreen() {
               <Button variant="primary" disabled={busy || blocked} onClick={() => void send()}>
                 {busy ? 'Uploading…' : `Upload ${ready.length} file${ready.length === 1 ? '' : 's'}`}
               </Button>
-              {blocked ? <span className="text-sm text-danger">Give every CSV file its stream id first.</span> : null}
+              {blocked ? <span className="text-sm text-danger">{ready.some((e) => e.peek === null) ? 'Reading the files…' : 'Complete the fields of every CSV file first.'}</span> : null}
             </div>
           ) : (
             <p className="text-sm text-ink-muted">Every file has been sent. Drop or choose more files to upload again.</p>
@@ -239,9 +259,25 @@ function ProgressBar({ label, percent, tone }: { label: string; percent: number 
   );
 }
 
-function FileRow({ entry, busy, csvProblem, onStreamId, onRemove }: { entry: Entry; busy: boolean; csvProblem: string | null; onStreamId: (v: string) => void; onRemove: () => void }) {
+function FileRow({
+  entry,
+  busy,
+  problems,
+  onStreamId,
+  onStartTime,
+  onRemove,
+}: {
+  entry: Entry;
+  busy: boolean;
+  problems: CsvFieldProblems;
+  onStreamId: (v: string) => void;
+  onStartTime: (v: string) => void;
+  onRemove: () => void;
+}) {
   const s = entry.state;
   const streamInputId = useId();
+  const startInputId = useId();
+  const peek = entry.peek;
   const pct = s.phase === 'uploading' ? Math.round((100 * s.sentBytes) / Math.max(1, s.totalBytes)) : s.phase === 'ready' ? 0 : 100;
   const status =
     s.phase === 'ready'
@@ -274,21 +310,40 @@ function FileRow({ entry, busy, csvProblem, onStreamId, onRemove }: { entry: Ent
         percent={s.phase === 'analysing' ? null : pct}
         tone={s.phase === 'done' && s.outcome.status === 'rejected' ? 'danger' : 'accent'}
       />
-      {s.phase === 'ready' && isCsvName(entry.file.name) ? (
-        <div className="flex flex-col gap-1">
-          <label htmlFor={streamInputId} className="text-sm font-medium">
-            Stream id for this CSV file
-          </label>
-          <Input
-            id={streamInputId}
-            mono
-            placeholder="XX.KV01.00.HHZ"
-            value={entry.streamId}
-            aria-invalid={csvProblem ? true : undefined}
-            onChange={(ev) => onStreamId(ev.target.value)}
-            className="max-w-xs"
-          />
-          {csvProblem ? <span className="text-sm text-danger">{csvProblem}</span> : null}
+      {s.phase === 'ready' && peek?.kind === 'csv' ? (
+        <div className="flex flex-wrap gap-4">
+          <div className="flex flex-col gap-1">
+            <label htmlFor={streamInputId} className="text-sm font-medium">
+              {peek.streamId ? 'Stream id (optional: the file names one)' : 'Stream id for this CSV file'}
+            </label>
+            <Input
+              id={streamInputId}
+              mono
+              placeholder={peek.streamId ?? 'XX.KV01.00.HHZ'}
+              value={entry.streamId}
+              aria-invalid={problems?.streamId ? true : undefined}
+              onChange={(ev) => onStreamId(ev.target.value)}
+              className="max-w-xs"
+            />
+            {problems?.streamId ? <span className="text-sm text-danger">{problems.streamId}</span> : peek.streamId ? <span className="text-sm text-ink-muted">From the file: <span className="font-mono">{peek.streamId}</span></span> : null}
+          </div>
+          {peek.relativeTimes ? (
+            <div className="flex flex-col gap-1">
+              <label htmlFor={startInputId} className="text-sm font-medium">
+                {peek.start ? 'Start time, UTC (optional: the file gives one)' : 'Start time, UTC (the times are seconds from it)'}
+              </label>
+              <Input
+                id={startInputId}
+                mono
+                placeholder={peek.start ?? '2026-03-14T09:26:00Z'}
+                value={entry.startTime}
+                aria-invalid={problems?.startTime ? true : undefined}
+                onChange={(ev) => onStartTime(ev.target.value)}
+                className="max-w-xs"
+              />
+              {problems?.startTime ? <span className="text-sm text-danger">{problems.startTime}</span> : peek.start ? <span className="text-sm text-ink-muted">From the file: <span className="font-mono">{peek.start}</span></span> : null}
+            </div>
+          ) : null}
         </div>
       ) : null}
     </li>
