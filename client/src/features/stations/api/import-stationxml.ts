@@ -1,7 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import { apiErrorBodySchema } from '@shared/api-error';
-import { StationApiError } from './stations';
+import { apiRequest } from '@client/lib/api-client';
 
 const diffSchema = z.object({ field: z.string(), from: z.unknown(), to: z.unknown() });
 
@@ -29,13 +28,7 @@ async function send(path: string, file: File, previewHash?: string): Promise<Imp
   const form = new FormData();
   if (previewHash) form.append('previewHash', previewHash);
   form.append('file', file, file.name);
-  const res = await fetch(path, { method: 'POST', body: form, credentials: 'same-origin', headers: { Accept: 'application/json' } });
-  const json: unknown = await res.json().catch(() => null);
-  if (!res.ok) {
-    const err = apiErrorBodySchema.safeParse(json);
-    throw new StationApiError(res.status, err.success ? err.data.error.code : 'http_error', err.success ? err.data.error.message : `The server answered ${res.status}`, []);
-  }
-  return importPreviewSchema.parse(json);
+  return apiRequest(importPreviewSchema, path, { method: 'POST', body: form });
 }
 
 /** POST /api/stations/import/preview: what the document would change (nothing is written). */
