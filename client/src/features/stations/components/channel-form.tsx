@@ -8,6 +8,7 @@ import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
 import { stationDetailClientSchema } from '@client/features/stations/api/stations';
 import { ApiError, apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 type Output = z.output<typeof channelInputSchema>;
 const num = { valueAsNumber: true } as const;
@@ -21,7 +22,7 @@ export function ChannelForm({ stationId }: { stationId: number }) {
   const qc = useQueryClient();
   const save = useMutation({
     mutationFn: (body: Output) => apiRequest(z.object({ station: stationDetailClientSchema }), `/api/stations/${stationId}/channels`, { method: 'POST', body }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.all }),
   });
   const e = formState.errors;
   const onSubmit = handleSubmit(async (value) => {
@@ -75,6 +76,6 @@ export function useDeleteChannel(stationId: number) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (channelId: number) => apiRequest(z.null(), `/api/stations/${stationId}/channels/${channelId}`, { method: 'DELETE' }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.all }),
   });
 }

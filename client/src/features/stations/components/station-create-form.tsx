@@ -10,6 +10,7 @@ import { Input } from '@client/components/ui/input';
 import { paths } from '@client/config/paths';
 import { stationDetailClientSchema } from '@client/features/stations/api/stations';
 import { ApiError, apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 type Output = z.output<typeof stationCreateSchema>;
 const num = { valueAsNumber: true } as const;
@@ -23,7 +24,7 @@ export function StationCreateForm({ onCancel }: { onCancel: () => void }) {
   const create = useMutation({
     mutationFn: (body: Output) => apiRequest(z.object({ station: stationDetailClientSchema }), '/api/stations', { method: 'POST', body }),
     onSuccess: async (res) => {
-      await qc.invalidateQueries({ queryKey: ['stations'] });
+      await qc.invalidateQueries({ queryKey: queryKeys.stations.all });
       await navigate(`${paths.station.href}/${res.station.id}`);
     },
   });

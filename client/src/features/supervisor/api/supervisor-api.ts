@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { latestWindowsSchema } from '@shared/schemas/data-period';
 import { evaluationSchema, inboxEntryViewSchema, inboxViewSchema, reviewRowSchema, type confirmLabelSchema, type ThresholdValues } from '@shared/schemas/supervisor';
 import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /**
  * The supervisor screens' calls to /api/supervisor (server/features/supervision/router.ts), each with
@@ -25,7 +26,7 @@ export type InboxEntry = z.infer<typeof inboxEntrySchema>;
 const inboxSchema = inboxViewSchema;
 
 /** The signed-in supervisor's inbox. */
-export const inboxQuery = () => queryOptions({ queryKey: ['supervisor', 'inbox'], queryFn: () => apiRequest(inboxSchema, '/api/supervisor/inbox') });
+export const inboxQuery = () => queryOptions({ queryKey: queryKeys.supervisor.inbox, queryFn: () => apiRequest(inboxSchema, '/api/supervisor/inbox') });
 
 /**
  * An inbox action: read, acknowledge, confirm (with `label` when the item has no event label yet),
@@ -54,7 +55,7 @@ export interface ReviewFilters {
 /** The review list under `f`. */
 export const reviewQuery = (f: ReviewFilters) =>
   queryOptions({
-    queryKey: ['supervisor', 'review', f],
+    queryKey: queryKeys.supervisor.review(f),
     queryFn: () => apiRequest(z.object({ items: z.array(reviewRowSchema) }), `/api/supervisor/review?${qs({ ...f })}`),
   });
 
@@ -84,7 +85,7 @@ export type CandidateEvent = z.infer<typeof candidateSchema>;
 /** Candidate events whose first arrival is in [from, to). */
 export const candidateEventsQuery = (from: string, to: string) =>
   queryOptions({
-    queryKey: ['supervisor', 'candidates', from, to],
+    queryKey: queryKeys.supervisor.candidates(from, to),
     queryFn: () => apiRequest(z.object({ events: z.array(candidateSchema) }), `/api/supervisor/candidate-events?${qs({ from, to })}`),
   });
 
@@ -114,7 +115,7 @@ export type ThresholdReport = z.infer<typeof reportSchema>;
 /** The thresholds report of a station, with proposed values when given. */
 export const thresholdsQuery = (stationId: number, proposed: ThresholdValues | null) =>
   queryOptions({
-    queryKey: ['supervisor', 'thresholds', stationId, proposed],
+    queryKey: queryKeys.supervisor.thresholds(stationId, proposed),
     queryFn: () => apiRequest(reportSchema, `/api/supervisor/thresholds/${stationId}?${proposed ? qs({ ...proposed }) : ''}`),
   });
 
@@ -131,7 +132,7 @@ export function rescore(stationId: number, from: string, to: string) {
 /** The station list (id and codes) for the station picker. */
 export const stationsQuery = () =>
   queryOptions({
-    queryKey: ['supervisor', 'stations'],
+    queryKey: queryKeys.supervisor.stations,
     queryFn: async () => {
       const body = await apiRequest(z.unknown(), '/api/stations');
       const list = z.array(z.object({ id: z.number(), network: z.string(), code: z.string() }));
@@ -158,12 +159,12 @@ export type Dashboard = z.infer<typeof dashboardSchema>;
 
 /** The dashboard for [from, to). */
 export const dashboardQuery = (from: string, to: string) =>
-  queryOptions({ queryKey: ['supervisor', 'dashboard', from, to], queryFn: () => apiRequest(dashboardSchema, `/api/supervisor/dashboard?${qs({ from, to })}`) });
+  queryOptions({ queryKey: queryKeys.supervisor.dashboard(from, to), queryFn: () => apiRequest(dashboardSchema, `/api/supervisor/dashboard?${qs({ from, to })}`) });
 
 /** Window starts of the latest item and latest labelled event (all stations, or one), for default periods. */
 export const latestWindowsQuery = (stationId?: number) =>
   queryOptions({
-    queryKey: ['supervisor', 'latest-windows', stationId ?? 'all'],
+    queryKey: queryKeys.supervisor.latestWindows(stationId),
     queryFn: () => apiRequest(latestWindowsSchema, `/api/supervisor/latest-windows${stationId === undefined ? '' : `?${qs({ stationId: String(stationId) })}`}`),
   });
 
