@@ -18,7 +18,7 @@ const features = {
   events: ['candidate-events.ts'],
   health: [],
   ingest: [],
-  queue: ['presenters.ts', 'queue-rows.ts', 'queue-transitions.ts'],
+  queue: ['presenters.ts', 'queue-rows.ts', 'queue-traces.ts', 'queue-transitions.ts'],
   stations: ['station-registry.ts', 'station-baseline.ts'],
   supervision: ['escalations.ts'],
 };

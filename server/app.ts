@@ -8,6 +8,7 @@ import { authenticate } from './auth/authenticate';
 import { csrfProtection } from './auth/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { requestLog } from './http/request-log';
+import { securityHeaders } from './http/security-headers';
 import { accountRouter } from './features/accounts/account-router';
 import { adminRouter } from './features/accounts/admin-router';
 import { auditRouter } from './features/audit/router';
@@ -30,7 +31,10 @@ export const clientDistDir = fileURLToPath(new URL('../dist/client', import.meta
 export function createApp(ctx: AppContext, opts: { serveClient?: boolean; uploads?: UploadsRouterOptions } = {}): Express {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  app.use(securityHeaders(clientDistDir));
+  // X-Forwarded-* are believed only from the proxies TRUST_PROXY names (default none): otherwise
+  // any client could choose its own address for the sign-in limits and the audit log.
+  app.set('trust proxy', ctx.env.TRUST_PROXY.length > 0 ? ctx.env.TRUST_PROXY : false);
   // One short line per request (method, path, status, ms, user id); never the headers.
   app.use(requestLog(ctx.logger));
   app.use(express.json({ limit: '1mb' }));

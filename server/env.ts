@@ -1,3 +1,4 @@
+import { isIP } from 'node:net';
 import { availableParallelism } from 'node:os';
 import { z } from 'zod';
 
@@ -15,6 +16,26 @@ const positiveInt = (fallback: number) =>
     .refine((v) => /^\d+$/.test(v) && Number(v) > 0, 'must be a positive whole number')
     .transform(Number);
 
+const nonNegativeInt = (fallback: number) =>
+  z
+    .string()
+    .default(String(fallback))
+    .refine((v) => /^\d+$/.test(v), 'must be a whole number ≥ 0')
+    .transform(Number);
+
+/** Express's names for address ranges (proxy-addr): 127.0.0.0/8 and ::1, 169.254/16 and fe80::/10, 10/8 172.16/12 192.168/16 and fc00::/7. */
+const PROXY_RANGE_NAMES = ['loopback', 'linklocal', 'uniquelocal'];
+
+/** One TRUST_PROXY entry: a range name, an IP address, or an address with a /prefix length. */
+function trustedProxyEntry(entry: string): boolean {
+  if (PROXY_RANGE_NAMES.includes(entry)) return true;
+  const [addr = '', prefix, extra] = entry.split('/');
+  const family = isIP(addr);
+  if (family === 0 || extra !== undefined) return false;
+  if (prefix === undefined) return true;
+  return /^\d{1,3}$/.test(prefix) && Number(prefix) <= (family === 4 ? 32 : 128);
+}
+
 /** Every setting Seisift reads from the environment, validated once at start. */
 export const envSchema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('production'),
@@ -22,6 +43,18 @@ export const envSchema = z.object({
   PORT: port(3000),
   /** Address the app listens on. */
   HOST: z.string().default('127.0.0.1'),
+  /**
+   * Which reverse proxies may speak for the client through X-Forwarded-For / -Proto / -Host:
+   * comma-separated addresses, CIDR ranges or Express's names (`loopback`, `linklocal`,
+   * `uniquelocal`). Default `none`: those headers are ignored and the client address is the
+   * socket's peer (so nobody can pose as another address to the sign-in limits or the audit log).
+   * Parsed to the list Express's `trust proxy` takes (empty: trust none).
+   */
+  TRUST_PROXY: z
+    .string()
+    .default('none')
+    .transform((v) => (v.trim() === '' || v.trim() === 'none' ? [] : v.split(',').map((e) => e.trim())))
+    .refine((list) => list.every(trustedProxyEntry), 'must be "none" or comma-separated IP addresses, CIDR ranges (10.0.0.0/8) or loopback, linklocal, uniquelocal'),
   /** Public base URL used in e-mail links; defaults to http://HOST:PORT. */
   SEISIFT_PUBLIC_URL: z.url().optional(),
   /** Folder for the private MariaDB and other local state (git-ignored). */
@@ -44,16 +77,29 @@ export const envSchema = z.object({
   SEISIFT_MAX_UPLOAD_BYTES: positiveInt(25 * 1024 * 1024),
   /** Most files in one upload request. */
   SEISIFT_MAX_UPLOAD_FILES: positiveInt(20),
+  /** Most samples per channel in one uploaded window (default 1 h at 200 sps); more is refused with 413. */
+  SEISIFT_MAX_WINDOW_SAMPLES: positiveInt(720_000),
+  /** Longest span of one uploaded window, s (default 1 h); longer is refused with 413. */
+  SEISIFT_MAX_WINDOW_S: positiveInt(3600),
   /** Sessions end after this many hours without a request (sliding expiry). */
   SEISIFT_SESSION_IDLE_HOURS: positiveInt(24),
   /** Live-update changes are kept this many hours; a client away longer reloads its lists instead of replaying. */
   SEISIFT_CHANGE_LOG_KEEP_HOURS: positiveInt(24),
   /** A claimed queue item goes back to `new` after this many minutes without activity by its analyst. */
   SEISIFT_CLAIM_IDLE_MINUTES: positiveInt(15),
-  /** Failed sign-ins allowed per account within SEISIFT_SIGNIN_WINDOW_S before 429. */
-  SEISIFT_SIGNIN_MAX_PER_ACCOUNT: positiveInt(10),
+  /**
+   * Failed sign-ins allowed for one account from one client address within SEISIFT_SIGNIN_WINDOW_S
+   * before that address gets 429 for that account (the owner elsewhere is not refused).
+   */
+  SEISIFT_SIGNIN_MAX_PER_ACCOUNT_ADDRESS: positiveInt(10),
   /** Sign-in attempts allowed per client address within SEISIFT_SIGNIN_WINDOW_S before 429. */
   SEISIFT_SIGNIN_MAX_PER_ADDRESS: positiveInt(50),
+  /** Failed sign-ins of one account (any address) within the window before attempts on it are slowed down. */
+  SEISIFT_SIGNIN_SLOWDOWN_AFTER: nonNegativeInt(3),
+  /** First slow-down delay, ms; it doubles with each further failure. */
+  SEISIFT_SIGNIN_DELAY_MS: positiveInt(500),
+  /** Longest slow-down delay, ms. */
+  SEISIFT_SIGNIN_MAX_DELAY_MS: positiveInt(8000),
   /** Length of the sign-in rate-limit window, seconds. */
   SEISIFT_SIGNIN_WINDOW_S: positiveInt(900),
   /** Worker threads of the analysis pool (default: one per core, `max(1, availableParallelism())`). */

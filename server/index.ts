@@ -4,11 +4,11 @@ import type { IncomingMessage } from 'node:http';
 import { createApp } from './app';
 import { createSessionStore } from './auth/sessions';
 import type { Database, DatabaseClient } from './db/client';
-import { loadAuthUser } from './auth/principal';
+import { loadActiveRights, loadAuthUser } from './auth/principal';
 import { appJobs } from './jobs/app-jobs';
 import { createLazyAnalysisPool, type AnalysisPool } from './jobs/analysis-pool';
 import { startScheduler } from './jobs/scheduler';
-import { createHub, type RealtimeHub } from './realtime/hub';
+import { createHub, type HubVerdict, type RealtimeHub } from './realtime/hub';
 import type { Logger } from './logger';
 import type { AppContext } from './context';
 import { createDatabaseClient } from './db/client';
@@ -72,6 +72,7 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
 export function createAppHub(db: Database, logger: Logger, env: Env): RealtimeHub {
   const sessions = createSessionStore(db, { idleHours: env.SEISIFT_SESSION_IDLE_HOURS });
   const publicOrigin = env.SEISIFT_PUBLIC_URL ? new URL(env.SEISIFT_PUBLIC_URL).origin : null;
+  const same = (a: readonly (string | number)[], b: readonly (string | number)[]) => a.length === b.length && a.every((v, i) => v === b[i]);
   return createHub({
     db,
     logger,
@@ -81,7 +82,20 @@ export function createAppHub(db: Database, logger: Logger, env: Env): RealtimeHu
       const session = await sessions.validate(id);
       if (!session) return null;
       const user = await loadAuthUser(db, session.userId);
-      return user ? { userId: user.id } : null;
+      return user ? { id: user.id, sessionId: session.id, roles: user.roles, stationIds: user.stationIds } : null;
+    },
+    // Every open socket at once: which sessions are still open, and the rights of their active
+    // users (both sorted as loadAuthUser sorts them, so an unchanged person compares equal).
+    async recheck(principals) {
+      const open = await sessions.stillOpen(principals.map((p) => p.sessionId));
+      const rights = await loadActiveRights(db, principals.map((p) => p.id));
+      const verdicts = new Map<string, HubVerdict>();
+      for (const p of principals) {
+        const now = rights.get(p.id);
+        if (!open.has(p.sessionId) || !now) verdicts.set(p.sessionId, 'ended');
+        else verdicts.set(p.sessionId, same(now.roles, p.roles) && same(now.stationIds, p.stationIds) ? 'ok' : 'changed');
+      }
+      return verdicts;
     },
     originAllowed(origin, req) {
       if (!origin) return false;

@@ -1,7 +1,33 @@
 import { z } from 'zod';
+import { actionSchema } from './auth/policies';
 
+/**
+ * Close codes of the live channel. RFC 6455 §7.4.2 leaves 4000–4999 to applications; ours mirror
+ * the HTTP statuses they stand for.
+ */
 /** Close code for an upgrade without a valid session or from a foreign origin (RFC 6455 "policy violation"). */
 export const wsPolicyViolation = 1008;
+/** Close code when the socket's session ended: signed out, expired, ended elsewhere, or the account deactivated (as HTTP 401). */
+export const wsSessionEnded = 4401;
+/** Close code when the person's roles or station assignments changed: reconnect, then reload what the socket fed (as HTTP 403). */
+export const wsRightsChanged = 4403;
+
+/**
+ * Who may see a change (stored with it in change_log.audience, never sent): the policy action,
+ * the stations it is about, the one user it is meant for, and — for a change that lists items of
+ * several stations (a candidate event) — each listed item's station, so a viewer limited to some
+ * stations receives only their items. See `canSee` in shared/auth/policies.ts.
+ */
+export const changeAudienceSchema = z.object({
+  action: actionSchema,
+  stationIds: z.array(z.number().int()).optional(),
+  userId: z.string().optional(),
+  /** `[itemId, stationId]` pairs of the items the summary lists in `itemIds`. */
+  itemStations: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
+});
+
+/** Who may see a change. */
+export type ChangeAudience = z.infer<typeof changeAudienceSchema>;
 
 /** One change as the live channel sends it: a hint (id, version) plus a small summary, never full state. */
 export const changeMessageSchema = z.object({

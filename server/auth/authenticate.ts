@@ -19,7 +19,7 @@ export type BearerResolver = (token: string, req: Request) => Promise<IngestPrin
 
 const requestAuth = new WeakMap<Request, RequestAuth>();
 
-/** Whether the request came over https (directly or through a loopback proxy, see trust proxy). */
+/** Whether the request came over https (directly, or per X-Forwarded-Proto from a proxy TRUST_PROXY names). */
 export function isSecureRequest(req: Request): boolean {
   return req.secure;
 }
@@ -98,7 +98,7 @@ export const requireUser: RequestHandler = (req, _res, next) => {
   next(unauthorized());
 };
 
-/** The request's client address as Express sees it (trust proxy: loopback). */
+/** The request's client address: the socket's peer, or X-Forwarded-For's client when it came through a proxy TRUST_PROXY names. */
 export function clientAddress(req: Request): string | null {
   return req.ip ?? req.socket.remoteAddress ?? null;
 }

@@ -8,11 +8,14 @@ export type AuthKit = { sessions: SessionStore; limiters: AuthLimiters };
 /** Builds the auth kit for one app instance from the context's database and settings. */
 export function createAuthKit(ctx: AppContext): AuthKit {
   return {
-    sessions: createSessionStore(ctx.database.db, { idleHours: ctx.env.SEISIFT_SESSION_IDLE_HOURS }),
+    // Whenever sessions end (sign-out, deactivation, role change, password change), open live
+    // sockets are re-checked at once and closed when theirs was among them.
+    sessions: createSessionStore(ctx.database.db, { idleHours: ctx.env.SEISIFT_SESSION_IDLE_HOURS, onEnded: () => void ctx.hub.recheckNow() }),
     limiters: createAuthLimiters({
-      perAccount: ctx.env.SEISIFT_SIGNIN_MAX_PER_ACCOUNT,
+      perAccountAddress: ctx.env.SEISIFT_SIGNIN_MAX_PER_ACCOUNT_ADDRESS,
       perAddress: ctx.env.SEISIFT_SIGNIN_MAX_PER_ADDRESS,
       windowS: ctx.env.SEISIFT_SIGNIN_WINDOW_S,
+      slowdown: { freeFailures: ctx.env.SEISIFT_SIGNIN_SLOWDOWN_AFTER, baseDelayMs: ctx.env.SEISIFT_SIGNIN_DELAY_MS, maxDelayMs: ctx.env.SEISIFT_SIGNIN_MAX_DELAY_MS },
     }),
   };
 }

@@ -44,23 +44,88 @@ export function createAttemptLimiter(limit: AttemptLimit, keyPrefix: string): At
   };
 }
 
+/**
+ * Counts failures per key without ever refusing: the per-account slow-down reads how many failed
+ * sign-ins an account had within the window to choose a delay (`progressiveDelayMs`).
+ */
+export interface FailureCounter {
+  /** Failures (and attempts still in progress) counted for `key` within the window. */
+  count(key: string): Promise<number>;
+  /** Counts one more for `key`. */
+  add(key: string): Promise<void>;
+  /** Takes one back (an attempt counted in advance that succeeded). */
+  remove(key: string): Promise<void>;
+}
+
+/** Builds a failure counter over a window of `durationS` seconds. Keys are lower-cased and trimmed. */
+export function createFailureCounter(durationS: number, keyPrefix: string): FailureCounter {
+  // Points far above any real count: this limiter only counts, it never blocks.
+  const limiter = new RateLimiterMemory({ points: Number.MAX_SAFE_INTEGER, duration: durationS, keyPrefix });
+  const norm = (key: string) => key.trim().toLowerCase();
+  return {
+    async count(key) {
+      return (await limiter.get(norm(key)))?.consumedPoints ?? 0;
+    },
+    async add(key) {
+      await limiter.consume(norm(key));
+    },
+    async remove(key) {
+      await limiter.reward(norm(key), 1);
+    },
+  };
+}
+
+/** Settings of the per-account slow-down. */
+export type SlowdownSettings = {
+  /** Failures per account within the window that cost nothing. */
+  freeFailures: number;
+  /** Delay after the first failure past `freeFailures`, ms. */
+  baseDelayMs: number;
+  /** The longest delay, ms. */
+  maxDelayMs: number;
+};
+
+/**
+ * The delay before a sign-in attempt is checked, from the failures its account had within the
+ * window (from any address): none for the first `freeFailures`, then `baseDelayMs` doubling with
+ * each further failure up to `maxDelayMs` — min(max, base · 2^(failures − free)). A progressive
+ * delay rather than a lock-out, as the OWASP Authentication Cheat Sheet ("Login Throttling")
+ * recommends, so an attacker cannot lock the owner out, only slow every guess down.
+ * @param failures failed attempts counted for the account (≥ 0)
+ * @returns delay, ms
+ */
+export function progressiveDelayMs(failures: number, s: SlowdownSettings): number {
+  if (failures < s.freeFailures) return 0;
+  return Math.min(s.maxDelayMs, s.baseDelayMs * 2 ** Math.min(30, failures - s.freeFailures));
+}
+
 /** The limiters of the sign-in and password-reset routes. */
 export type AuthLimiters = {
-  /** Every sign-in attempt, per client address. */
+  /** Every sign-in attempt, per client address (429 over the limit). */
   signInByAddress: AttemptLimiter;
-  /** Failed sign-ins, per account e-mail (reset on success). */
-  signInByAccount: AttemptLimiter;
+  /**
+   * Failed sign-ins per account AND address (reset on success): 429 for that account from that
+   * address only, so whoever guesses from one address is stopped while the owner, from another
+   * address, is not refused.
+   */
+  signInByAccountAddress: AttemptLimiter;
+  /** Failed sign-ins per account from any address: the slow-down, never a refusal. */
+  signInFailuresByAccount: FailureCounter;
+  /** The slow-down's settings (`progressiveDelayMs`). */
+  slowdown: SlowdownSettings;
   /** Forgot-password requests, per address and per e-mail (no mail bombing). */
   resetByAddress: AttemptLimiter;
   resetByAccount: AttemptLimiter;
 };
 
 /** Builds the auth limiters from settings (per app instance, so each test app starts fresh). */
-export function createAuthLimiters(cfg: { perAccount: number; perAddress: number; windowS: number }): AuthLimiters {
+export function createAuthLimiters(cfg: { perAccountAddress: number; perAddress: number; windowS: number; slowdown: SlowdownSettings }): AuthLimiters {
   return {
     signInByAddress: createAttemptLimiter({ points: cfg.perAddress, durationS: cfg.windowS }, 'signin-addr'),
-    signInByAccount: createAttemptLimiter({ points: cfg.perAccount, durationS: cfg.windowS }, 'signin-acct'),
+    signInByAccountAddress: createAttemptLimiter({ points: cfg.perAccountAddress, durationS: cfg.windowS }, 'signin-acct-addr'),
+    signInFailuresByAccount: createFailureCounter(cfg.windowS, 'signin-acct'),
+    slowdown: cfg.slowdown,
     resetByAddress: createAttemptLimiter({ points: cfg.perAddress, durationS: cfg.windowS }, 'reset-addr'),
-    resetByAccount: createAttemptLimiter({ points: Math.max(1, Math.ceil(cfg.perAccount / 2)), durationS: cfg.windowS }, 'reset-acct'),
+    resetByAccount: createAttemptLimiter({ points: Math.max(1, Math.ceil(cfg.perAccountAddress / 2)), durationS: cfg.windowS }, 'reset-acct'),
   };
 }

@@ -4,7 +4,7 @@
  * touching routes). Routes and middleware call only the functions exported here.
  */
 import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
-import { eq } from 'drizzle-orm';
+import { and, eq, gt, inArray } from 'drizzle-orm';
 import { Lucia, TimeSpan } from 'lucia';
 import type { Database } from '@server/db/client';
 import { sessions } from '@server/db/schema/sessions';
@@ -51,6 +51,11 @@ export interface SessionStore {
   endAllForUser(userId: string): Promise<void>;
   /** Ends every session of a user except `keepSessionId` (password change/reset). */
   endOthersForUser(userId: string, keepSessionId: string | null): Promise<void>;
+  /**
+   * Which of `sessionIds` are still open (not ended, not expired), without touching their expiry:
+   * the live hub's re-check of its sockets, one query for all of them.
+   */
+  stillOpen(sessionIds: readonly string[]): Promise<Set<string>>;
   deleteExpired(): Promise<void>;
   /** Reads the session id from a Cookie header. */
   readCookie(cookieHeader: string | undefined): string | null;
@@ -62,10 +67,11 @@ export interface SessionStore {
 
 /**
  * Builds the session store over the app database.
+ * @param onEnded called after sessions were ended through this store (the live hub re-checks its sockets)
  * @param idleHours sessions end after this many hours without a request (sliding: each request in
  *   the second half of the span pushes the expiry out again)
  */
-export function createSessionStore(db: Database, opts: { idleHours: number }): SessionStore {
+export function createSessionStore(db: Database, opts: { idleHours: number; onEnded?: () => void }): SessionStore {
   const adapter = new DrizzleMySQLAdapter(db, sessions, users);
   const lucia = new Lucia<SessionMeta, Record<never, never>>(adapter, {
     sessionExpiresIn: new TimeSpan(opts.idleHours, 'h'),
@@ -115,11 +121,26 @@ export function createSessionStore(db: Database, opts: { idleHours: number }): S
       const list = await lucia.getUserSessions(userId);
       return list.map((s) => toInfo({ ...s, fresh: false })).sort((a, b) => b.createdAt.getTime() - a.createdAt.getTime());
     },
-    end: (sessionId) => lucia.invalidateSession(sessionId),
-    endAllForUser: (userId) => lucia.invalidateUserSessions(userId),
+    async end(sessionId) {
+      await lucia.invalidateSession(sessionId);
+      opts.onEnded?.();
+    },
+    async endAllForUser(userId) {
+      await lucia.invalidateUserSessions(userId);
+      opts.onEnded?.();
+    },
     async endOthersForUser(userId, keepSessionId) {
       const rows = await db.select({ id: sessions.id }).from(sessions).where(eq(sessions.userId, userId));
       for (const row of rows) if (row.id !== keepSessionId) await lucia.invalidateSession(row.id);
+      opts.onEnded?.();
+    },
+    async stillOpen(sessionIds) {
+      if (sessionIds.length === 0) return new Set();
+      const rows = await db
+        .select({ id: sessions.id })
+        .from(sessions)
+        .where(and(inArray(sessions.id, [...new Set(sessionIds)]), gt(sessions.expiresAt, new Date())));
+      return new Set(rows.map((r) => r.id));
     },
     deleteExpired: () => lucia.deleteExpiredSessions(),
     readCookie: (header) => (header ? lucia.readSessionCookie(header) : null),

@@ -185,6 +185,8 @@ async function stageTimings(db: Parameters<typeof ingestFile>[0]['db'], bases: M
   const timed: AnalysisPool = {
     threads: pool.threads,
     close: () => pool.close(),
+    decode: (bytes, opts, limits) => pool.decode(bytes, opts, limits),
+    traces: (input) => pool.traces(input),
     async run(streams, profile, opts) {
       const t = performance.now();
       try {

@@ -1,6 +1,7 @@
 import { parseIsoTimeUs } from './iso-time';
 import { parseStreamId } from './stream-id';
 import { WaveformParseError, type DecodedStream } from './types';
+import { clipInput, quoteInput } from '../../shared/quote-input';
 
 /** Options for {@link decodeCsv}. */
 export interface CsvOptions {
@@ -68,7 +69,7 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
         if (key === 'start') {
           const t = parseIsoTimeUs(value);
           if (t === undefined) {
-            throw new WaveformParseError(`CSV line ${lineNo}: start time '${value}' is not an ISO-8601 UTC time`);
+            throw new WaveformParseError(`CSV line ${lineNo}: start time ${quoteInput(value)} is not an ISO-8601 UTC time`);
           }
           startUs = t;
         } else if (key === 'stream') {
@@ -122,7 +123,7 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
     if (iso) {
       const t = parseIsoTimeUs(row.time);
       if (t === undefined) {
-        throw new WaveformParseError(`CSV line ${row.line}, column 1 (time): '${row.time}' is not an ISO-8601 UTC time`);
+        throw new WaveformParseError(`CSV line ${row.line}, column 1 (time): ${quoteInput(row.time)} is not an ISO-8601 UTC time`);
       }
       if (i === 0) firstUs = t;
       timesS[i] = (t - firstUs) / 1e6;
@@ -130,11 +131,11 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
       decimals = Math.max(decimals, frac?.[1]?.length ?? 0);
     } else {
       if (!NUMBER.test(row.time)) {
-        throw new WaveformParseError(`CSV line ${row.line}, column 1 (t_seconds): '${row.time}' is not a finite number`);
+        throw new WaveformParseError(`CSV line ${row.line}, column 1 (t_seconds): ${quoteInput(row.time)} is not a finite number`);
       }
       const t = Number(row.time);
       if (!Number.isFinite(t)) {
-        throw new WaveformParseError(`CSV line ${row.line}, column 1 (t_seconds): '${row.time}' is not a finite number`);
+        throw new WaveformParseError(`CSV line ${row.line}, column 1 (t_seconds): ${quoteInput(row.time)} is not a finite number`);
       }
       if (i === 0) firstRel = t;
       timesS[i] = t - firstRel;
@@ -142,12 +143,12 @@ export function decodeCsv(text: string, opts: CsvOptions = {}): DecodedStream {
       decimals = Math.max(decimals, dot?.length ?? 0);
     }
     if (!NUMBER.test(row.value) || !Number.isFinite(Number(row.value))) {
-      throw new WaveformParseError(`CSV line ${row.line}, column 2 (counts): '${row.value}' is not a finite number`);
+      throw new WaveformParseError(`CSV line ${row.line}, column 2 (counts): ${quoteInput(row.value)} is not a finite number`);
     }
     samples[i] = Number(row.value);
     if (i > 0 && (timesS[i] ?? 0) <= (timesS[i - 1] ?? 0)) {
       throw new WaveformParseError(
-        `CSV line ${row.line}, column 1: time ${row.time} does not increase after the previous row`,
+        `CSV line ${row.line}, column 1: time ${clipInput(row.time)} does not increase after the previous row`,
       );
     }
   }

@@ -4,6 +4,7 @@ import { decodeMiniSeed3 } from './mseed3';
 import { assertExactPlacement } from './placement';
 import { describeNonCsvText, quoteStart, sniffFile } from './sniff';
 import { WaveformParseError, type DecodedStream } from './types';
+import { clipInput, MAX_QUOTED_CHARS } from '../../shared/quote-input';
 
 /** Options for {@link decodeWaveform}. */
 export interface DecodeOptions {
@@ -48,7 +49,7 @@ const MSEED_NAME = /\.(mseed|miniseed|ms|msd|seed|mseed3|ms3)$/iu;
  *   and with `exactPlacement` a gap or overlap, …)
  */
 export function decodeWaveform(bytes: Uint8Array, opts: DecodeOptions = {}): DecodedStream[] {
-  const name = opts.filename ? `${opts.filename}: ` : '';
+  const name = opts.filename ? `${clipInput(opts.filename, MAX_QUOTED_CHARS, 12)}: ` : '';
   try {
     const streams = dispatch(bytes, opts);
     if (streams.length === 0) throw new WaveformParseError('the file holds no samples (only empty records)');

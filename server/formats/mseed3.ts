@@ -5,6 +5,7 @@ import { decodeSamples, latin1, SEED_ENCODINGS, skipZeroPadding } from './mseed2
 import { seedTimeToUs } from './seed-time';
 import { headerCode } from './stream-id';
 import { WaveformParseError, type DecodedStream } from './types';
+import { quoteInput } from '../../shared/quote-input';
 
 /** Fixed header length of a miniSEED 3 record, bytes (FDSN miniSEED 3 specification, 2022). */
 export const MS3_FIXED_HEADER_LENGTH = 40;
@@ -27,17 +28,17 @@ export function looksLikeMiniSeed3(bytes: Uint8Array): boolean {
  */
 export function parseSourceId(sid: string, where: string): { network: string; station: string; location: string; channel: string } {
   if (!sid.startsWith('FDSN:')) {
-    throw new WaveformParseError(`${where}: source identifier '${printable(sid)}' is not an FDSN source identifier (FDSN:NET_STA_LOC_B_S_SS)`);
+    throw new WaveformParseError(`${where}: source identifier ${quoteInput(printable(sid))} is not an FDSN source identifier (FDSN:NET_STA_LOC_B_S_SS)`);
   }
   const parts = sid.slice(5).split('_');
   if (parts.length !== 6) {
     throw new WaveformParseError(
-      `${where}: source identifier '${printable(sid)}' has ${parts.length} '_'-separated parts; FDSN:NET_STA_LOC_B_S_SS has 6`,
+      `${where}: source identifier ${quoteInput(printable(sid))} has ${parts.length} '_'-separated parts; FDSN:NET_STA_LOC_B_S_SS has 6`,
     );
   }
   const [network = '', station = '', location = '', band = '', source = '', subsource = ''] = parts;
   if (source === '') {
-    throw new WaveformParseError(`${where}: source identifier '${printable(sid)}' lacks a source code (the middle letter of the channel)`);
+    throw new WaveformParseError(`${where}: source identifier ${quoteInput(printable(sid))} lacks a source code (the middle letter of the channel)`);
   }
   return {
     network: headerCode(network, 'network', where),

@@ -1,6 +1,7 @@
 import { XMLParser, XMLValidator } from 'fast-xml-parser';
 import { z } from 'zod';
 import { parseIsoTimeUs } from './iso-time';
+import { clipInput, quoteInput } from '../../shared/quote-input';
 
 /** The error parseStationXml throws: names the element path and what is wrong. */
 export class StationXmlParseError extends Error {
@@ -125,7 +126,7 @@ const nodeListSchema = z.array(z.unknown());
 export function parseStationXml(xmlText: string): StationXmlDocument {
   const valid = XMLValidator.validate(xmlText);
   if (valid !== true) {
-    throw new StationXmlParseError(`StationXML is not well-formed XML: ${valid.err.msg} (line ${valid.err.line}, column ${valid.err.col})`);
+    throw new StationXmlParseError(`StationXML is not well-formed XML: ${clipInput(valid.err.msg, 200)} (line ${valid.err.line}, column ${valid.err.col})`);
   }
   const parser = new XMLParser({
     ignoreAttributes: false,
@@ -141,18 +142,18 @@ export function parseStationXml(xmlText: string): StationXmlDocument {
   try {
     tree = parser.parse(xmlText);
   } catch (err) {
-    throw new StationXmlParseError(`StationXML could not be parsed: ${err instanceof Error ? err.message : String(err)}`);
+    throw new StationXmlParseError(`StationXML could not be parsed: ${clipInput(err instanceof Error ? err.message : String(err), 200)}`);
   }
   const top = asNode(tree, 'document');
   const root = top.FDSNStationXML;
   if (root === undefined) {
     const names = Object.keys(top).filter((k) => !k.startsWith('?'));
-    throw new StationXmlParseError(`not FDSN StationXML: the root element is <${names[0] ?? 'none'}>, expected <FDSNStationXML>`);
+    throw new StationXmlParseError(`not FDSN StationXML: the root element is <${clipInput(names[0] ?? 'none')}>, expected <FDSNStationXML>`);
   }
   const r = asNode(root, 'FDSNStationXML');
   const schemaVersion = attr(r, 'schemaVersion') ?? '';
   if (!/^1(\.\d+)?$/u.test(schemaVersion)) {
-    throw new StationXmlParseError(`FDSNStationXML: schemaVersion '${schemaVersion}' is not a 1.x version`);
+    throw new StationXmlParseError(`FDSNStationXML: schemaVersion ${quoteInput(schemaVersion)} is not a 1.x version`);
   }
   const networks = list(r, 'Network', 'FDSNStationXML').map((n) => parseNetwork(asNode(n, 'Network')));
   if (networks.length === 0) throw new StationXmlParseError('FDSNStationXML: no <Network> element');
@@ -167,7 +168,7 @@ export function parseStationXml(xmlText: string): StationXmlDocument {
 
 function parseNetwork(n: Node): z.infer<typeof networkSchema> {
   const code = requiredAttr(n, 'code', 'Network');
-  const path = `Network ${code}`;
+  const path = `Network ${clipInput(code)}`;
   return {
     code,
     description: text(n.Description),
@@ -179,7 +180,7 @@ function parseNetwork(n: Node): z.infer<typeof networkSchema> {
 
 function parseStation(s: Node, network: string, parent: string): z.infer<typeof stationSchema> {
   const code = requiredAttr(s, 'code', `${parent} / Station`);
-  const path = `${parent} / Station ${code}`;
+  const path = `${parent} / Station ${clipInput(code)}`;
   const site = s.Site === undefined ? undefined : asNode(s.Site, `${path} / Site`);
   const siteName = site ? text(site.Name) : undefined;
   if (siteName === undefined) throw new StationXmlParseError(`${path}: <Site><Name> is missing`);
@@ -202,8 +203,8 @@ function parseStation(s: Node, network: string, parent: string): z.infer<typeof 
 function parseChannel(c: Node, network: string, station: string, parent: string): StationXmlChannel {
   const code = requiredAttr(c, 'code', `${parent} / Channel`);
   const locationCode = attr(c, 'locationCode');
-  if (locationCode === undefined) throw new StationXmlParseError(`${parent} / Channel ${code}: attribute locationCode is missing`);
-  const path = `${parent} / Channel ${locationCode}.${code}`;
+  if (locationCode === undefined) throw new StationXmlParseError(`${parent} / Channel ${clipInput(code)}: attribute locationCode is missing`);
+  const path = `${parent} / Channel ${clipInput(`${locationCode}.${code}`)}`;
   const startDate = date(c, 'startDate', path);
   const endDate = date(c, 'endDate', path);
   const channel: StationXmlChannel = {
@@ -251,7 +252,7 @@ function parsePaz(pz: Node, stage: Node, stageNumber: number, path: string): Pol
   if (type === undefined) throw new StationXmlParseError(`${path}: <PzTransferFunctionType> is missing`);
   const known = PZ_TRANSFER_FUNCTION_TYPES.find((t) => t === type.toUpperCase());
   if (known === undefined) {
-    throw new StationXmlParseError(`${path}: <PzTransferFunctionType> '${type}' is not one of ${PZ_TRANSFER_FUNCTION_TYPES.join(', ')}`);
+    throw new StationXmlParseError(`${path}: <PzTransferFunctionType> ${quoteInput(type)} is not one of ${PZ_TRANSFER_FUNCTION_TYPES.join(', ')}`);
   }
   const complex = (name: 'Zero' | 'Pole'): { re: number; im: number }[] =>
     list(pz, name, path).map((raw, k) => {
@@ -315,7 +316,7 @@ function requiredAttr(n: Node, name: string, path: string): string {
 function date(n: Node, name: string, path: string): string | undefined {
   const v = attr(n, name);
   if (v === undefined) return undefined;
-  if (parseIsoTimeUs(v) === undefined) throw new StationXmlParseError(`${path}: ${name} '${v}' is not an ISO-8601 date-time`);
+  if (parseIsoTimeUs(v) === undefined) throw new StationXmlParseError(`${path}: ${name} ${quoteInput(v)} is not an ISO-8601 date-time`);
   return v;
 }
 
@@ -326,7 +327,7 @@ function requiredNumber(n: Node, name: string, path: string): number {
   if (raw === undefined) throw new StationXmlParseError(`${path}: <${name}> is missing`);
   const t = text(raw);
   if (t === undefined || !DECIMAL.test(t) || !Number.isFinite(Number(t))) {
-    throw new StationXmlParseError(`${path}: <${name}> '${t ?? ''}' is not a finite number`);
+    throw new StationXmlParseError(`${path}: <${name}> ${quoteInput(t ?? '')} is not a finite number`);
   }
   return Number(t);
 }

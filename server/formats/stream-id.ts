@@ -1,4 +1,5 @@
 import { WaveformParseError } from './types';
+import { quoteInput } from '../../shared/quote-input';
 
 /** The parts of an FDSN stream id `NET.STA.LOC.CHA`. */
 export interface StreamIdParts {
@@ -20,13 +21,13 @@ const LOCATION = /^[A-Za-z0-9-]{0,8}$/u;
 export function parseStreamId(id: string, from: string): StreamIdParts {
   const parts = id.trim().split('.');
   if (parts.length !== 4) {
-    throw new WaveformParseError(`${from}: stream id '${id}' must have four dot-separated parts NET.STA.LOC.CHA`);
+    throw new WaveformParseError(`${from}: stream id ${quoteInput(id)} must have four dot-separated parts NET.STA.LOC.CHA`);
   }
   const [network = '', station = '', location = '', channel = ''] = parts;
-  if (!CODE.test(network)) throw new WaveformParseError(`${from}: network code '${network}' in '${id}' must be 1–8 letters or digits`);
-  if (!CODE.test(station)) throw new WaveformParseError(`${from}: station code '${station}' in '${id}' must be 1–8 letters or digits`);
-  if (!LOCATION.test(location)) throw new WaveformParseError(`${from}: location code '${location}' in '${id}' must be 0–8 letters or digits`);
-  if (!CODE.test(channel)) throw new WaveformParseError(`${from}: channel code '${channel}' in '${id}' must be 1–8 letters or digits`);
+  if (!CODE.test(network)) throw new WaveformParseError(`${from}: network code ${quoteInput(network)} in ${quoteInput(id)} must be 1–8 letters or digits`);
+  if (!CODE.test(station)) throw new WaveformParseError(`${from}: station code ${quoteInput(station)} in ${quoteInput(id)} must be 1–8 letters or digits`);
+  if (!LOCATION.test(location)) throw new WaveformParseError(`${from}: location code ${quoteInput(location)} in ${quoteInput(id)} must be 0–8 letters or digits`);
+  if (!CODE.test(channel)) throw new WaveformParseError(`${from}: channel code ${quoteInput(channel)} in ${quoteInput(id)} must be 1–8 letters or digits`);
   return { network, station, location, channel };
 }
 

@@ -4,6 +4,7 @@ import type { ApiErrorBody } from '@shared/api-error';
 import { AppError } from '@server/errors';
 import type { Logger } from '@server/logger';
 import { isDatabaseDown } from '@server/db/availability';
+import { clipInput } from '@shared/quote-input';
 
 /** Renders every error in the one API shape; unknown errors are logged and masked as 500. */
 export function errorHandler(logger: Logger): ErrorRequestHandler {
@@ -38,5 +39,5 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
 
 /** 404 in the API shape for unknown /api routes. */
 export const apiNotFound: RequestHandler = (req, _res, next) => {
-  next(new AppError(404, 'not_found', `No API route ${req.method} ${req.originalUrl.split("?")[0]}`));
+  next(new AppError(404, 'not_found', `No API route ${req.method} ${clipInput(req.originalUrl.split('?')[0] ?? '')}`));
 };

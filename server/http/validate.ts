@@ -1,4 +1,5 @@
 import type { z } from 'zod';
+import { capMessage } from '@shared/quote-input';
 import { badRequest } from '@server/errors';
 
 /**
@@ -11,5 +12,6 @@ export function parseInput<S extends z.ZodType>(schema: S, value: unknown, where
   const issues = result.error.issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message }));
   const first = issues[0];
   const field = first?.path ? first.path : where;
-  throw badRequest(`${field}: ${first?.message ?? 'invalid'}`, { issues });
+  // Our schemas' messages may name the value they refuse: never more than a line of it.
+  throw badRequest(capMessage(`${field}: ${first?.message ?? 'invalid'}`), { issues: issues.map((i) => ({ ...i, message: capMessage(i.message) })) });
 }

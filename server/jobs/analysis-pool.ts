@@ -1,11 +1,17 @@
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
+import type { DecodeOptions } from '@server/formats/decode';
 import type { DecodedStream } from '@server/formats/types';
+import type { WindowLimits } from '@server/formats/window-limits';
 import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import type { AnalysisResult, AnalyzeOptions } from '@server/dsp/pipeline';
-import type { AnalysisTask } from './analysis-worker';
+import type { TracesInput } from '@server/features/queue/queue-traces';
+import type { AnalysisTask, DecodeOutcome, DecodeTask } from './analysis-worker';
 
-/** A pool of worker threads running `analyzeWindow`, so the server's event loop never blocks on it. */
+/**
+ * A pool of worker threads for the heavy work of the server — decoding uploads, `analyzeWindow`,
+ * and a queue item's display traces — so its event loop never blocks on them.
+ */
 export interface AnalysisPool {
   /**
    * Analyse one window in a worker. The streams' sample buffers are TRANSFERRED to the worker (the
@@ -13,10 +19,30 @@ export interface AnalysisPool {
    * Rejects with the analysis error's message (e.g. a refused band).
    */
   run(streams: DecodedStream[], profile: ProcessingProfile, opts?: AnalyzeOptions): Promise<AnalysisResult>;
+  /**
+   * Decodes an uploaded file in a worker (the bytes are copied there; the caller keeps its own)
+   * and checks the window limits: the streams, or the refusal (422 undecodable, 413 over a limit).
+   */
+  decode(bytes: Uint8Array, opts: DecodeOptions, limits: WindowLimits): Promise<DecodeOutcome>;
+  /**
+   * A queue item's display traces as UTF-8 JSON text (`computeTraces` in a worker). The input's
+   * sample blobs are copied once and their copies transferred.
+   */
+  traces(input: TracesInput): Promise<Uint8Array>;
   /** Number of worker threads. */
   readonly threads: number;
   /** Stop the workers (pending tasks are rejected). */
   close(): Promise<void>;
+}
+
+const isObject = (v: unknown): v is object => typeof v === 'object' && v !== null;
+
+/** The worker's answers are built by the same code on the other side; these checks catch a mix-up, not bad data. */
+function isAnalysisResult(v: unknown): v is AnalysisResult {
+  return isObject(v) && 'channels' in v && 'score' in v;
+}
+function isDecodeOutcome(v: unknown): v is DecodeOutcome {
+  return isObject(v) && 'ok' in v && typeof v.ok === 'boolean';
 }
 
 /**
@@ -29,7 +55,7 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
   const here = import.meta.url;
   const isTs = here.endsWith('.ts');
   const filename = new URL(isTs ? './analysis-worker.ts' : './analysis-worker.js', here).href;
-  const pool = new Piscina<AnalysisTask, AnalysisResult>({
+  const pool = new Piscina<AnalysisTask | DecodeTask | TracesInput, unknown>({
     filename,
     minThreads: threads,
     maxThreads: threads,
@@ -38,13 +64,27 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
   });
   return {
     threads,
-    run(streams, profile, opts = {}) {
+    async run(streams, profile, opts = {}) {
       const buffers = new Set<ArrayBuffer>();
       for (const s of streams) {
         const b = s.samples.buffer;
         if (b instanceof ArrayBuffer && b.byteLength > 0) buffers.add(b);
       }
-      return pool.run({ streams, profile, opts }, { transferList: [...buffers] });
+      const out = await pool.run({ streams, profile, opts }, { transferList: [...buffers] });
+      if (!isAnalysisResult(out)) throw new Error('analysis worker: unexpected answer to an analysis');
+      return out;
+    },
+    async decode(bytes, opts, limits) {
+      const out = await pool.run({ bytes, opts, limits }, { name: 'decode' });
+      if (!isDecodeOutcome(out)) throw new Error('analysis worker: unexpected answer to a decode');
+      return out;
+    },
+    async traces(input) {
+      // Own copies of the blobs (a driver's row buffer may hold more than one value), transferred.
+      const channels = input.channels.map((c) => ({ ...c, samples: new Uint8Array(c.samples) }));
+      const out = await pool.run({ ...input, channels }, { name: 'traces', transferList: channels.map((c) => c.samples.buffer) });
+      if (!(out instanceof Uint8Array)) throw new Error('analysis worker: unexpected answer to traces');
+      return out;
     },
     async close() {
       await pool.destroy();
@@ -53,23 +93,24 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
 }
 
 /**
- * The app's analysis pool (one per app context): `threads` worker threads, SEISIFT_ANALYSIS_THREADS
- * (default one per core). One thread analyses a 120 s 3-component window in about 8–20 ms, so the
- * 100 windows/s target needs two on a 2-core machine (docs/PERFORMANCE.md). The workers start with
- * the first window, so a context that never ingests (most tests, the CLI) starts none.
+ * The app's analysis pool (one per app context, built in `createAppContext`): `threads` worker
+ * threads, SEISIFT_ANALYSIS_THREADS (default one per core). One thread analyses a 120 s 3-component
+ * window in about 8–20 ms, so the 100 windows/s target needs two on a 2-core machine
+ * (docs/PERFORMANCE.md). The workers start with the first task, so a context that never ingests nor
+ * draws traces (most tests, the CLI) starts none.
  */
 export function createLazyAnalysisPool(threads: number): AnalysisPool {
   let pool: AnalysisPool | null = null;
+  const open = (): AnalysisPool => (pool ??= createAnalysisPool({ threads }));
   return {
     threads,
-    run(streams, profile, opts) {
-      pool ??= createAnalysisPool({ threads });
-      return pool.run(streams, profile, opts);
-    },
+    run: (streams, profile, opts) => open().run(streams, profile, opts),
+    decode: (bytes, opts, limits) => open().decode(bytes, opts, limits),
+    traces: (input) => open().traces(input),
     async close() {
-      const open = pool;
+      const started = pool;
       pool = null;
-      await open?.close();
+      await started?.close();
     },
   };
 }

@@ -1,5 +1,5 @@
 import { asc, eq, gt, lt, min, sql } from 'drizzle-orm';
-import type { ChangeMessage } from '@shared/realtime';
+import { changeAudienceSchema, type ChangeAudience, type ChangeMessage } from '@shared/realtime';
 import type { Database, DbOrTx } from '@server/db/client';
 import { changeCounter, changeLog } from '@server/db/schema/change-log';
 
@@ -10,6 +10,16 @@ export interface ChangeInput {
   kind: 'created' | 'updated' | 'deleted';
   version: number;
   summary?: Record<string, unknown>;
+  /** Who may see it (shared/auth/policies.ts `canSee`); required, so no change is written without. */
+  audience: ChangeAudience;
+}
+
+/** A change as the log keeps it: the message sent to sockets plus who may see it (never sent). */
+export type StoredChange = ChangeMessage & { audience: ChangeAudience | null };
+
+/** The audience of a queue item's change: whoever may see that station's queue (`queue.view`). */
+export function itemAudience(stationId: number): ChangeAudience {
+  return { action: 'queue.view', stationIds: [stationId] };
 }
 
 /**
@@ -30,6 +40,7 @@ export async function recordChange(tx: DbOrTx, change: ChangeInput): Promise<num
     kind: change.kind,
     version: change.version,
     summary: change.summary ?? null,
+    audience: change.audience,
     createdAt: new Date(),
   });
   return seq;
@@ -47,8 +58,8 @@ export async function oldestKeptSeq(db: Database): Promise<number | undefined> {
   return row?.seq ?? undefined;
 }
 
-/** Changes with seq > `since`, in order, at most `limit`. */
-export async function changesSince(db: Database, since: number, limit = 1000): Promise<ChangeMessage[]> {
+/** Changes with seq > `since`, in order, at most `limit`, each with its audience (null when unreadable). */
+export async function changesSince(db: Database, since: number, limit = 1000): Promise<StoredChange[]> {
   const rows = await db.select().from(changeLog).where(gt(changeLog.seq, since)).orderBy(asc(changeLog.seq)).limit(limit);
   return rows.map((r) => ({
     seq: r.seq,
@@ -58,7 +69,14 @@ export async function changesSince(db: Database, since: number, limit = 1000): P
     version: r.version,
     summary: r.summary ?? null,
     at: r.createdAt.toISOString(),
+    audience: readAudience(r.audience),
   }));
+}
+
+/** A stored audience, or null when missing or not of the expected shape (such a change reaches nobody). */
+function readAudience(raw: unknown): ChangeAudience | null {
+  const parsed = changeAudienceSchema.safeParse(raw);
+  return parsed.success ? parsed.data : null;
 }
 
 /**

@@ -1,16 +1,31 @@
 import type { IncomingMessage, Server } from 'node:http';
 import type { Duplex } from 'node:stream';
 import { WebSocketServer, type WebSocket } from 'ws';
-import { wsPolicyViolation, type ChangeMessage, type ServerMessage } from '@shared/realtime';
+import type { Role } from '@shared/auth/roles';
+import { wsPolicyViolation, wsRightsChanged, wsSessionEnded, type ChangeMessage, type ServerMessage } from '@shared/realtime';
 import type { Database } from '@server/db/client';
 import type { Logger } from '@server/logger';
-import { changesSince, latestSeq, oldestKeptSeq } from './change-log';
+import { changesSince, latestSeq, oldestKeptSeq, type StoredChange } from './change-log';
 import { createOutageLog } from './outage-log';
+import { visibleTo, type PreparedChange } from './visible-changes';
 
-/** Who is on the other end of a socket. */
+/**
+ * Who is on the other end of a socket, as loaded when it connected: the user, the session the
+ * upgrade came with, and the rights every change is filtered by (roles and assigned stations).
+ */
 export interface HubPrincipal {
-  userId: string;
+  id: string;
+  sessionId: string;
+  roles: readonly Role[];
+  stationIds: readonly number[];
 }
+
+/**
+ * What a re-check says of one socket's principal: still `ok`; its session `ended` (signed out,
+ * expired, ended elsewhere, the account deactivated); or the person's roles or stations
+ * `changed`, so the filter the socket was opened with no longer holds.
+ */
+export type HubVerdict = 'ok' | 'ended' | 'changed';
 
 /** Options of the live-update hub. */
 export interface HubOptions {
@@ -26,6 +41,14 @@ export interface HubOptions {
   pollMs?: number;
   /** Drop a client whose unsent buffer exceeds this many bytes (it resumes on reconnect). */
   maxBufferedBytes?: number;
+  /**
+   * Re-checks the principals of the open sockets (a few queries for all of them, not one per
+   * socket): the verdict for each session id. A session missing from the answer counts as ended.
+   * Without it sockets are never re-checked.
+   */
+  recheck?: (principals: readonly HubPrincipal[]) => Promise<Map<string, HubVerdict>>;
+  /** Interval of the periodic re-check, ms (default 2000); `recheckNow()` runs one at once. */
+  recheckMs?: number;
 }
 
 interface Client {
@@ -44,6 +67,12 @@ export interface RealtimeHub {
   notify(): void;
   /** Resolves once every change committed before the call has been handed to the sockets. */
   flush(): Promise<void>;
+  /**
+   * Re-checks every open socket's session and rights now (after a sign-out, a deactivation, a
+   * role or station change) and closes those that no longer hold: 4401 when the session ended,
+   * 4403 when roles or stations changed (shared/realtime.ts). Resolves when that check is done.
+   */
+  recheckNow(): Promise<void>;
   clientCount(): number;
   close(): Promise<void>;
 }
@@ -53,6 +82,12 @@ export interface RealtimeHub {
  * now"). The server answers `hello` with the latest seq, then `changes` after N in order (or
  * `refetch` when N is older than the kept log), then live `changes`. Sockets without a valid session
  * or from a foreign Origin are closed with code 1008 (policy violation).
+ *
+ * Every change, live or replayed, goes only to the sockets whose principal may see it
+ * (`visibleTo`: the policy module's `canSee` on the audience stored with the change), so an
+ * operator hears only of their stations' items and a supervisor only of their own inbox. Sockets
+ * are re-checked every `recheckMs` and on `recheckNow()`, and closed with 4401 / 4403 when their
+ * session ended or their rights changed.
  */
 export function createHub(opts: HubOptions): RealtimeHub {
   const wss = new WebSocketServer({ noServer: true, maxPayload: 64 * 1024 });
@@ -83,29 +118,55 @@ export function createHub(opts: HubOptions): RealtimeHub {
     client.ws.send(encoded ?? JSON.stringify(message), { binary: false });
   };
 
+  /** One read of the change log, ready to send: audiences apart, and each distinct list encoded once. */
+  interface Batch {
+    changes: PreparedChange[];
+    /** Encoded `changes` messages by the list they carry (see `sendChanges`). */
+    encoded: Map<string, Buffer>;
+  }
+  const prepare = (stored: StoredChange[]): Batch => ({
+    changes: stored.map(({ audience, ...message }) => ({ message, audience })),
+    encoded: new Map(),
+  });
+
   /**
-   * Sends the changes this client has not seen. `batch` carries the whole list encoded once, used
-   * whenever the client needs all of it (the usual case), so a broadcast serialises once, not once
-   * per client.
+   * Sends this client the changes of `batch` it has not seen and may see (`visibleTo`). Clients
+   * that may see the same list share one encoding (keyed by the seqs it holds, and the summary of
+   * any change cut down for them), so a broadcast to many analysts serialises once. The cursor
+   * moves past changes the client may not see, so they are never considered again.
    */
-  const sendChanges = (client: Client, changes: ChangeMessage[], batch?: { encoded: Buffer }) => {
-    const fresh = changes.filter((c) => c.seq > client.cursor);
-    if (fresh.length === 0) return;
-    const message: ServerMessage = { type: 'changes', changes: fresh };
-    send(client, message, batch && fresh.length === changes.length ? batch.encoded : undefined);
-    client.cursor = fresh[fresh.length - 1]?.seq ?? client.cursor;
+  const sendChanges = (client: Client, batch: Batch) => {
+    const visible: ChangeMessage[] = [];
+    let key = '';
+    let last = client.cursor;
+    for (const change of batch.changes) {
+      if (change.message.seq <= client.cursor) continue;
+      last = change.message.seq;
+      const m = visibleTo(client.principal, change);
+      if (!m) continue;
+      visible.push(m);
+      key += m === change.message ? `${m.seq},` : `${m.seq}:${JSON.stringify(m.summary)},`;
+    }
+    client.cursor = last;
+    if (visible.length === 0) return;
+    let encoded = batch.encoded.get(key);
+    if (!encoded) {
+      encoded = Buffer.from(JSON.stringify({ type: 'changes', changes: visible } satisfies ServerMessage));
+      batch.encoded.set(key, encoded);
+    }
+    send(client, { type: 'changes', changes: visible }, encoded);
   };
 
   const pump = async () => {
     pumpQueued = false;
     if (broadcastCursor === undefined) broadcastCursor = await latestSeq(opts.db);
     for (;;) {
-      const changes = await changesSince(opts.db, broadcastCursor, 500);
-      if (changes.length === 0) return;
-      const batch = { encoded: Buffer.from(JSON.stringify({ type: 'changes', changes } satisfies ServerMessage)) };
-      for (const client of clients) sendChanges(client, changes, batch);
-      broadcastCursor = changes[changes.length - 1]?.seq ?? broadcastCursor;
-      if (changes.length < 500) return;
+      const stored = await changesSince(opts.db, broadcastCursor, 500);
+      if (stored.length === 0) return;
+      const batch = prepare(stored);
+      for (const client of clients) sendChanges(client, batch);
+      broadcastCursor = stored[stored.length - 1]?.seq ?? broadcastCursor;
+      if (stored.length < 500) return;
     }
   };
 
@@ -135,7 +196,8 @@ export function createHub(opts: HubOptions): RealtimeHub {
           while (cursor < now) {
             const changes = (await changesSince(opts.db, cursor, 500)).filter((c) => c.seq <= now);
             if (changes.length === 0) break;
-            sendChanges(client, changes);
+            // The replay goes through the same filter as live changes.
+            sendChanges(client, prepare(changes));
             cursor = changes[changes.length - 1]?.seq ?? now;
           }
           client.cursor = now;
@@ -164,6 +226,51 @@ export function createHub(opts: HubOptions): RealtimeHub {
   heartbeat.unref();
   const poll = setInterval(notify, opts.pollMs ?? 1000);
   poll.unref();
+
+  /** Closes a socket whose principal no longer holds, and stops sending to it at once. */
+  const expel = (client: Client, verdict: Exclude<HubVerdict, 'ok'>) => {
+    clients.delete(client);
+    if (verdict === 'ended') client.ws.close(wsSessionEnded, 'session ended');
+    else client.ws.close(wsRightsChanged, 'roles or stations changed');
+    // A peer that does not answer the close handshake is cut off.
+    setTimeout(() => client.ws.terminate(), 2000).unref();
+  };
+
+  let checking: Promise<void> | null = null;
+  let checkAgain = false;
+  // The database away: sockets stay open (the API cannot check sessions either); said once, and once when it is back.
+  const recheckOutage = createOutageLog(opts.logger, 'live hub: socket re-check');
+  /** One re-check of every open socket; calls while one runs are folded into one more run after it. */
+  const recheckNow = (): Promise<void> => {
+    const recheck = opts.recheck;
+    if (!recheck || closed) return Promise.resolve();
+    if (checking) {
+      checkAgain = true;
+      return checking;
+    }
+    checking = (async () => {
+      do {
+        checkAgain = false;
+        const list = [...clients];
+        if (list.length === 0) continue;
+        try {
+          const verdicts = await recheck(list.map((c) => c.principal));
+          recheckOutage.ok();
+          for (const client of list) {
+            const verdict = verdicts.get(client.principal.sessionId) ?? 'ended';
+            if (verdict !== 'ok' && clients.has(client)) expel(client, verdict);
+          }
+        } catch (err) {
+          recheckOutage.failed(err);
+        }
+      } while (checkAgain && !closed);
+    })().finally(() => {
+      checking = null;
+    });
+    return checking;
+  };
+  const recheckTimer = setInterval(() => void recheckNow(), opts.recheckMs ?? 2000);
+  recheckTimer.unref();
 
   const refuse = (req: IncomingMessage, socket: Duplex, head: Buffer, reason: string) => {
     wss.handleUpgrade(req, socket, head, (ws) => ws.close(wsPolicyViolation, reason));
@@ -204,11 +311,13 @@ export function createHub(opts: HubOptions): RealtimeHub {
       notify();
       return enqueue(async () => {});
     },
+    recheckNow,
     clientCount: () => clients.size,
     async close() {
       closed = true;
       clearInterval(heartbeat);
       clearInterval(poll);
+      clearInterval(recheckTimer);
       for (const client of clients) client.ws.terminate();
       clients.clear();
       await chain;

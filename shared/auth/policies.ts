@@ -113,6 +113,36 @@ export function can(actor: PolicyActor | null, action: Action, target?: PolicyTa
   return scope.includes(target.stationId);
 }
 
+/**
+ * Who may see one change on the live channel (server/realtime/hub.ts): the action that grants
+ * sight of it, the stations it is about, and, for a change meant for one person (their own
+ * inbox), that person's user id. Carried with every change, so the hub decides per socket
+ * without a query.
+ */
+export type PolicyAudience = {
+  action: Action;
+  /** The stations the change is about; absent when it is about no station. */
+  stationIds?: readonly number[];
+  /** Only this user may see it (and only while they reach `action`). */
+  userId?: string;
+};
+
+/**
+ * Whether `actor` (with their user id) may see a change meant for `audience`: they reach
+ * `audience.action` — for at least one of its stations when it names stations — and, when it
+ * names a user, they are that user. The same rule as the API's: an operator's `queue.view` is
+ * limited to their stations, so a change about KV04 never reaches the operator of KV01–KV03.
+ * Nobody signed in (`null`) sees nothing.
+ */
+export function canSee(actor: (PolicyActor & { id: string }) | null, audience: PolicyAudience): boolean {
+  if (!actor) return false;
+  if (audience.userId !== undefined && audience.userId !== actor.id) return false;
+  const scope = stationScope(actor, audience.action);
+  if (scope === 'none') return false;
+  if (scope === 'all' || audience.stationIds === undefined) return true;
+  return audience.stationIds.some((id) => scope.includes(id));
+}
+
 /** Every action one of `actor`'s roles reaches, in `actions` order (for hiding controls). */
 export function allowedActions(actor: PolicyActor | null): Action[] {
   return actions.filter((a) => can(actor, a));

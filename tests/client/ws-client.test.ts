@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { WebSocket } from 'ws';
-import { wsPolicyViolation, type ChangeMessage } from '@shared/realtime';
+import { wsPolicyViolation, wsRightsChanged, wsSessionEnded, type ChangeMessage } from '@shared/realtime';
 import { adaptSocket, backoffDelayMs, createLiveClient, type LiveState, type SocketLike } from '@client/lib/ws-client';
 import { startServer, type RunningServer } from '@server/index';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
@@ -118,6 +118,40 @@ describe('live client protocol (fake sockets)', () => {
     sockets[2]?.drop(wsPolicyViolation);
     expect(client.state()).toBe('offline');
     await until(() => sockets.length === 4);
+    client.stop();
+  });
+});
+
+describe('live client: closes for an ended session (4401) and for changed rights (4403)', () => {
+  it('4403: reconnects at once and asks for a refetch after the new hello; 4401: tells the app and reads offline', async () => {
+    const sockets: FakeSocket[] = [];
+    const refetches: string[] = [];
+    let ended = 0;
+    const client = createLiveClient({
+      url: 'ws://x/ws',
+      connect: (u) => {
+        const s = new FakeSocket(u);
+        sockets.push(s);
+        return s;
+      },
+      onChanges: () => {},
+      onRefetch: (r) => refetches.push(r),
+      onSessionEnded: () => ended++,
+      backoff: { initialMs: 1, maxMs: 10_000, jitter: 0 },
+    });
+    sockets[0]?.send({ type: 'hello', seq: 5 });
+    sockets[0]?.drop(wsRightsChanged);
+    expect(client.state()).toBe('connecting');
+    await until(() => sockets.length === 2, 500);
+    expect(refetches).toEqual([]);
+    sockets[1]?.send({ type: 'hello', seq: 6 });
+    expect(refetches).toEqual(['your roles or stations changed']);
+    sockets[1]?.drop(wsSessionEnded);
+    expect(ended).toBe(1);
+    expect(client.state()).toBe('offline');
+    // The next attempt waits the longest delay (10 s here), not the first one.
+    await new Promise((r) => setTimeout(r, 100));
+    expect(sockets).toHaveLength(2);
     client.stop();
   });
 });

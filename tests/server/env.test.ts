@@ -18,4 +18,13 @@ describe('loadEnv', () => {
     expect(() => loadEnv({ SEISIFT_DB_PORT: '70000' })).toThrow(/^SEISIFT_DB_PORT:/);
     expect(() => loadEnv({ DATABASE_URL: 'postgres://x' })).toThrow(/^DATABASE_URL: must start with mysql:\/\//);
   });
+
+  it('reads TRUST_PROXY as the list Express trusts (default none) and refuses what is not an address, range or range name', () => {
+    expect(loadEnv({}).TRUST_PROXY).toEqual([]);
+    expect(loadEnv({ TRUST_PROXY: 'none' }).TRUST_PROXY).toEqual([]);
+    expect(loadEnv({ TRUST_PROXY: 'loopback, 10.0.0.0/8,fd00::1' }).TRUST_PROXY).toEqual(['loopback', '10.0.0.0/8', 'fd00::1']);
+    expect(() => loadEnv({ TRUST_PROXY: 'true' })).toThrow(/^TRUST_PROXY: must be "none" or comma-separated/);
+    expect(() => loadEnv({ TRUST_PROXY: '10.0.0.0/33' })).toThrow(/^TRUST_PROXY:/);
+    expect(() => loadEnv({ TRUST_PROXY: '*' })).toThrow(/^TRUST_PROXY:/);
+  });
 });

@@ -12,7 +12,7 @@ import { uploads, windowChannels, windows } from '@server/db/schema/uploads';
 import { userRoles, users } from '@server/db/schema/users';
 import type { DecodedStream } from '@server/formats/types';
 import { analyzeWindow } from '@server/dsp/pipeline';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { presentQueueRow } from '@server/features/queue/presenters';
 import { selectQueueRows } from '@server/features/queue/queue-rows';
 
@@ -197,7 +197,7 @@ export async function createItem(db: Database, opts: ItemOptions = {}): Promise<
       updatedAt: createdAt,
     });
     const [row] = await selectQueueRows(tx).where(eq(queueItems.id, item.insertId));
-    await recordChange(tx, { resource: 'item', resourceId: item.insertId, kind: 'created', version: 1, summary: row ? presentQueueRow(row) : {} });
+    await recordChange(tx, { resource: 'item', resourceId: item.insertId, kind: 'created', version: 1, summary: row ? presentQueueRow(row) : {}, audience: itemAudience(stationId) });
     return item.insertId;
   });
 }

@@ -1,4 +1,4 @@
-import { serverMessageSchema, wsPolicyViolation, type ChangeMessage } from '@shared/realtime';
+import { serverMessageSchema, wsPolicyViolation, wsRightsChanged, wsSessionEnded, type ChangeMessage } from '@shared/realtime';
 
 /** The live connection's state, as the shell shows it. */
 export type LiveState = 'live' | 'connecting' | 'offline';
@@ -49,8 +49,10 @@ export interface LiveClientOptions {
   connect?: (url: string) => SocketLike;
   /** New changes, in sequence order, each exactly once. */
   onChanges: (changes: ChangeMessage[]) => void;
-  /** The server could not replay what was missed: reload every live list. */
+  /** The server could not replay what was missed, or what this person may see changed: reload every live list. */
   onRefetch: (reason: string) => void;
+  /** The server closed the socket because its session ended (4401): the app should recheck who is signed in. */
+  onSessionEnded?: () => void;
   onState?: (state: LiveState) => void;
   /** Resume after this sequence number on the first connection (default: from now). */
   since?: number;
@@ -98,7 +100,9 @@ export function liveUrl(location: { protocol: string; host: string }): string {
  * (anything at or below N is dropped, so a replay overlapping a live message never repeats), asks
  * for a refetch when told to (or when the server's sequence went backwards, i.e. a new database),
  * and reconnects by itself with exponential backoff and jitter. Messages that fail the schema are
- * ignored. A socket closed for policy (no session) keeps retrying at the longest delay.
+ * ignored. A socket closed for policy (no session, 1008) or because its session ended (4401) keeps
+ * retrying at the longest delay; one closed because the person's roles or stations changed (4403)
+ * reconnects at once and asks for a refetch, since what it may see is no longer what it saw.
  */
 export function createLiveClient(opts: LiveClientOptions): LiveClient {
   const connect = opts.connect ?? ((url: string) => adaptSocket(new WebSocket(url)));
@@ -111,6 +115,7 @@ export function createLiveClient(opts: LiveClientOptions): LiveClient {
   let timer: ReturnType<typeof setTimeout> | null = null;
   let failures = 0;
   let stopped = false;
+  let refetchOnHello = false;
 
   const setState = (s: LiveState) => {
     if (s === state) return;
@@ -145,7 +150,12 @@ export function createLiveClient(opts: LiveClientOptions): LiveClient {
       if (last === undefined) last = m.seq;
       else if (m.seq < last) {
         last = m.seq;
+        refetchOnHello = false;
         opts.onRefetch('the server restarted its change log');
+      }
+      if (refetchOnHello) {
+        refetchOnHello = false;
+        opts.onRefetch('your roles or stations changed');
       }
       return;
     }
@@ -178,7 +188,14 @@ export function createLiveClient(opts: LiveClientOptions): LiveClient {
     s.onclose = (ev) => {
       if (socket !== s) return;
       socket = null;
-      schedule(ev.code === wsPolicyViolation);
+      if (ev.code === wsRightsChanged) {
+        refetchOnHello = true;
+        failures = 0;
+        schedule(false);
+        return;
+      }
+      if (ev.code === wsSessionEnded) opts.onSessionEnded?.();
+      schedule(ev.code === wsPolicyViolation || ev.code === wsSessionEnded);
     };
     s.onerror = () => {
       // onclose follows and schedules the retry.

@@ -1,4 +1,5 @@
 import { bigint, index, int, mysqlTable, tinyint, varchar } from 'drizzle-orm/mysql-core';
+import type { ChangeAudience } from '@shared/realtime';
 import { jsonColumn, refColumn, timeColumn } from './columns';
 
 /**
@@ -19,6 +20,12 @@ export const changeLog = mysqlTable(
     version: int('version', { unsigned: true }).notNull(),
     /** A small summary sent with the hint so clients can patch lists without a refetch storm. */
     summary: jsonColumn<Record<string, unknown>>('summary'),
+    /**
+     * Who may see the change (action, stations, user): the hub filters every socket through the
+     * policy module with it, so no query per client. Never sent. Null (rows older than migration
+     * 0011 it could not fill in) reaches nobody.
+     */
+    audience: jsonColumn<ChangeAudience>('audience'),
     createdAt: timeColumn('created_at').notNull(),
   },
   (t) => [index('change_log_created_idx').on(t.createdAt), index('change_log_resource_idx').on(t.resource, t.resourceId)],

@@ -43,12 +43,13 @@ export function adminRouter(ctx: AppContext, kit: AuthKit): Router {
     res.status(204).end();
   });
 
-  /** PUT /api/admin/users/:id/stations {stationIds} → 204 */
+  /** PUT /api/admin/users/:id/stations {stationIds} → 204; that user's live sockets close (4403) and reconnect with the new stations. */
   router.put('/users/:id/stations', requirePermission('users.manage'), async (req, res) => {
     const actor = userFor(req, 'users.manage');
     const { id } = parseInput(userParams, req.params, 'params');
     const { stationIds } = parseInput(setStationsSchema, req.body);
     await setUserStations(deps, actor, id, stationIds, requestMeta(req));
+    await ctx.hub.recheckNow();
     res.status(204).end();
   });
 

@@ -7,7 +7,7 @@ import type { AuthUser } from '@server/auth/principal';
 import { parseInput } from '@server/http/validate';
 import { recordAudit } from '@server/features/audit/audit';
 import { acceptInvitation, inspectInvitation } from './invitations';
-import { inspectPasswordReset, requestPasswordReset, resetPassword } from './password-resets';
+import { inspectPasswordReset, limitPasswordResetRequests, requestPasswordReset, resetPassword } from './password-resets';
 import { signIn } from './sign-in';
 import { accountDeps, clearSessionCookie, requestMeta, setSessionCookie } from './respond';
 
@@ -58,11 +58,20 @@ export function authRouter(ctx: AppContext, kit: AuthKit): Router {
     res.json({ session: user ? meOf(user) : null });
   });
 
-  /** POST /api/auth/forgot-password {email} → 202, the same answer whether or not the account exists. */
+  /**
+   * POST /api/auth/forgot-password {email} → 202, the same answer in the same time whether or not
+   * the account exists: it is sent before the account is even looked up; the token and the mail
+   * follow (requestPasswordReset). 429 over the limits, checked alike for every address.
+   */
   router.post('/forgot-password', async (req, res) => {
     const { email } = parseInput(forgotPasswordSchema, req.body);
-    await requestPasswordReset(deps, kit.limiters, email, requestMeta(req));
+    const meta = requestMeta(req);
+    await limitPasswordResetRequests(kit.limiters, email, meta);
     res.status(202).json({ message: 'If that address has an active Seisift account, a reset link is on its way. It works for 1 hour.' });
+    // 'close' follows the answer (or a client that hung up): the reset goes ahead either way.
+    res.once('close', () => {
+      requestPasswordReset(deps, email, meta).catch((err: unknown) => ctx.logger.error({ err }, 'password reset request failed after the answer'));
+    });
   });
 
   /** POST /api/auth/reset-password/check {token} → 200 {email, expiresAt}; 404/410 for unusable links. */

@@ -16,14 +16,22 @@ import { tokenExpired, tokenUnknown, tokenUsed } from './one-time-tokens';
 export const resetLifetimeMs = 3600 * 1000;
 
 /**
- * "Forgot password": when `email` belongs to an active account, stores a hash of a new 1 h
- * one-time token (earlier unused links of that account stop working) and mails the link. The
- * caller answers the same whether or not the account exists, so the form reveals nothing.
- * Rate-limited per address and per e-mail (429).
+ * The rate limits of "forgot password", per address and per e-mail as typed (429), checked
+ * before the request is answered: they cost the same whether or not the account exists.
  */
-export async function requestPasswordReset(deps: AccountDeps, limiters: AuthLimiters, email: string, meta: RequestMeta): Promise<void> {
+export async function limitPasswordResetRequests(limiters: AuthLimiters, email: string, meta: RequestMeta): Promise<void> {
   await limiters.resetByAddress.consume(meta.ip ?? 'unknown');
   await limiters.resetByAccount.consume(email);
+}
+
+/**
+ * "Forgot password": when `email` belongs to an active account, stores a hash of a new 1 h
+ * one-time token (earlier unused links of that account stop working) and mails the link. The
+ * route runs it AFTER answering (202, the same words for any address), so neither the answer nor
+ * its timing says whether the account exists: the lookup, the token and the mail (the slow part)
+ * happen once the response is sent. Errors are logged, never reported to the requester.
+ */
+export async function requestPasswordReset(deps: AccountDeps, email: string, meta: RequestMeta): Promise<void> {
   const [user] = await deps.db.select({ id: users.id, email: users.email, displayName: users.displayName, active: users.active }).from(users).where(eq(users.email, email));
   await recordAudit(deps.db, {
     // Nobody is signed in: the requester is known only by the address they typed.

@@ -1,9 +1,10 @@
+import { setTimeout as sleep } from 'node:timers/promises';
 import { eq } from 'drizzle-orm';
 import { hashPassword, verifyPassword } from '@server/auth/password';
 import type { SessionInfo } from '@server/auth/sessions';
 import { users } from '@server/db/schema/users';
 import { AppError } from '@server/errors';
-import type { AuthLimiters } from '@server/auth/rate-limit';
+import { progressiveDelayMs, type AuthLimiters } from '@server/auth/rate-limit';
 import type { AccountDeps, RequestMeta } from './accounts-deps';
 import { recordAudit } from '@server/features/audit/audit';
 
@@ -18,27 +19,44 @@ function timingDummy(): Promise<string> {
 }
 
 /**
- * Checks e-mail and password and opens a session. Counts every attempt per address and failed
- * ones per account (429 with Retry-After over the limit); records success and failure in the
- * audit log. Throws `signInRefused()` for every kind of wrong sign-in.
+ * Checks e-mail and password and opens a session. Throttling as the OWASP Authentication Cheat
+ * Sheet ("Login Throttling", "Account Lockout") describes, with no lock-out anybody else can cause:
+ * - every attempt counts against the client address (429 + Retry-After over the limit);
+ * - failed attempts count against the account AND address (429 for that account from that
+ *   address only; reset when it succeeds), so the owner signing in from elsewhere is not refused;
+ * - failed attempts count against the account from any address, and each attempt on an account
+ *   with failures past the free ones waits `progressiveDelayMs` BEFORE the password is checked
+ *   (so a guesser cannot learn the answer sooner by hanging up early). The attempt is counted
+ *   while it waits, so a burst of parallel guesses waits longer and longer, and taken back if it
+ *   succeeds.
+ * The keys are the address and the e-mail as typed (lower-cased), whether or not an account has
+ * it, so the answers reveal nothing more. Records success and failure in the audit log. Throws
+ * `signInRefused()` for every kind of wrong sign-in.
  */
 export async function signIn(deps: AccountDeps, limiters: AuthLimiters, input: { email: string; password: string }, meta: RequestMeta): Promise<{ session: SessionInfo; userId: string }> {
-  await limiters.signInByAddress.consume(meta.ip ?? 'unknown');
-  await limiters.signInByAccount.check(input.email);
+  const address = meta.ip ?? 'unknown';
+  const pairKey = `${input.email}|${address}`;
+  await limiters.signInByAddress.consume(address);
+  await limiters.signInByAccountAddress.check(pairKey);
+  const failures = await limiters.signInFailuresByAccount.count(input.email);
+  await limiters.signInFailuresByAccount.add(input.email);
+  const delayMs = progressiveDelayMs(failures, limiters.slowdown);
+  if (delayMs > 0) await sleep(delayMs);
   const [user] = await deps.db
     .select({ id: users.id, email: users.email, passwordHash: users.passwordHash, active: users.active })
     .from(users)
     .where(eq(users.email, input.email));
   const ok = user?.passwordHash ? await verifyPassword(user.passwordHash, input.password) : await verifyPassword(await timingDummy(), input.password).then(() => false);
   if (!user || !ok || !user.active) {
-    await limiters.signInByAccount.consume(input.email).catch(() => {});
+    await limiters.signInByAccountAddress.consume(pairKey).catch(() => {});
     const reason = !user ? 'unknown_email' : !ok ? 'wrong_password' : 'deactivated';
-    await recordAudit(deps.db, { actor: user ? { id: user.id, email: user.email } : { id: null, label: input.email }, action: 'auth.sign_in_failed', targetType: 'user', targetId: user?.id ?? null, details: { email: input.email, reason }, ip: meta.ip });
+    await recordAudit(deps.db, { actor: user ? { id: user.id, email: user.email } : { id: null, label: input.email }, action: 'auth.sign_in_failed', targetType: 'user', targetId: user?.id ?? null, details: { email: input.email, reason, delayMs }, ip: meta.ip });
     throw signInRefused();
   }
-  await limiters.signInByAccount.reset(input.email);
+  await limiters.signInByAccountAddress.reset(pairKey);
+  await limiters.signInFailuresByAccount.remove(input.email);
   const session = await deps.sessions.create(user.id, { ipAddress: meta.ip, userAgent: meta.userAgent });
-  await recordAudit(deps.db, { actor: { id: user.id, email: user.email }, action: 'auth.sign_in', targetType: 'session', targetId: null, details: { userAgent: meta.userAgent }, ip: meta.ip });
+  await recordAudit(deps.db, { actor: { id: user.id, email: user.email }, action: 'auth.sign_in', targetType: 'session', targetId: null, details: { userAgent: meta.userAgent, ...(delayMs > 0 ? { delayMs } : {}) }, ip: meta.ip });
   return { session, userId: user.id };
 }
 

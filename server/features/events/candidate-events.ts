@@ -360,17 +360,25 @@ export async function regroupAround(deps: CandidateDeps, itemId: number): Promis
       eventId = ins.id;
       version = 1;
     }
+    const absorbed = oldIds.filter((o) => o !== eventId);
+    // Who saw an absorbed event (a viewer of one of its members' stations) hears of its end.
+    const absorbedStations = absorbed.length > 0 ? await tx.select({ eventId: itemArrivals.candidateEventId, stationId: itemArrivals.stationId }).from(itemArrivals).where(inArray(itemArrivals.candidateEventId, absorbed)) : [];
     await tx.update(itemArrivals).set({ candidateEventId: eventId }).where(inArray(itemArrivals.itemId, group.itemIds));
     await raiseByCoincidence(tx, eventId, group.itemIds, group.stationIds.length, now);
-    const absorbed = oldIds.filter((o) => o !== eventId);
     if (absorbed.length > 0) await tx.delete(candidateEvents).where(inArray(candidateEvents.id, absorbed));
-    for (const a of absorbed) await recordChange(tx, { resource: 'candidate_event', resourceId: a, kind: 'deleted', version: 0, summary: { mergedInto: eventId } });
+    for (const a of absorbed) {
+      const stationIds = [...new Set(absorbedStations.filter((r) => r.eventId === a).map((r) => r.stationId))];
+      await recordChange(tx, { resource: 'candidate_event', resourceId: a, kind: 'deleted', version: 0, summary: { mergedInto: eventId }, audience: { action: 'queue.view', stationIds } });
+    }
     await recordChange(tx, {
       resource: 'candidate_event',
       resourceId: eventId,
       kind: existing ? 'updated' : 'created',
       version,
       summary: { anchorItemId: group.anchorItemId, itemIds: group.itemIds, stationCount: group.stationIds.length, firstArrival: new Date(group.firstArrivalMs).toISOString() },
+      // As GET /api/supervisor/candidate-events/:id: seen by whoever sees one member's station,
+      // who is told only of the members at stations they may see.
+      audience: { action: 'queue.view', stationIds: group.stationIds, itemStations: members.map((m) => [m.itemId, m.stationId] as [number, number]) },
     });
     return eventId;
   });

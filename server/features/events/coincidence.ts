@@ -3,7 +3,7 @@ import { queueItems } from '@server/db/schema/queue-items';
 import { itemArrivals } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
 import { loadQueueRow } from '@server/features/queue/queue-rows';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 import type { DbOrTx } from '@server/db/client';
 
 /**
@@ -34,7 +34,7 @@ async function reflag(tx: DbOrTx, item: { id: number; version: number; score: nu
     .where(and(eq(queueItems.id, item.id), eq(queueItems.version, item.version), eq(queueItems.state, 'new')));
   if (res.affectedRows !== 1) return false;
   const fresh = await loadQueueRow(tx, eq(queueItems.id, item.id));
-  if (fresh) await recordChange(tx, { resource: 'item', resourceId: item.id, kind: 'updated', version: fresh.version, summary: fresh });
+  if (fresh) await recordChange(tx, { resource: 'item', resourceId: item.id, kind: 'updated', version: fresh.version, summary: fresh, audience: itemAudience(fresh.stationId) });
   return true;
 }
 

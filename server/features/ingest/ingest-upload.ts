@@ -1,7 +1,8 @@
-import { createHash } from 'node:crypto';
+import { createHash, webcrypto } from 'node:crypto';
 import { eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { can } from '@shared/auth/policies';
+import { capMessage, clipInput, MAX_QUOTED_CHARS } from '@shared/quote-input';
 import { flagSchema } from '@shared/schemas/flags';
 import { channelResponseSchema } from '@shared/schemas/station';
 import type { UploadOutcome } from '@shared/schemas/upload';
@@ -12,15 +13,15 @@ import { uploads, windowChannels, windows } from '@server/db/schema/uploads';
 import { windowFeatures } from '@server/db/schema/window-features';
 import type { AnalysisResult, AnalyzeOptions, ChannelResult } from '@server/dsp/pipeline';
 import type { PolesZerosResponse } from '@server/dsp/response';
-import { decodeWaveform } from '@server/formats/decode';
-import { WaveformParseError, type DecodedStream } from '@server/formats/types';
+import type { DecodedStream } from '@server/formats/types';
+import { defaultWindowLimits, type WindowLimits } from '@server/formats/window-limits';
 import type { AnalysisPool } from '@server/jobs/analysis-pool';
 import type { Logger } from '@server/logger';
 import { isDatabaseDown } from '@server/db/availability';
 import { presentQueueRow } from '@server/features/queue/presenters';
 import { itemArrivals } from '@server/db/schema/supervisor';
 import type { AuthUser, IngestPrincipal } from '@server/auth/principal';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { firstTriggerMs, regroupArrivals } from '@server/features/events/candidate-events';
 import { decodeStoredSamples, encodeSamples } from '@server/db/samples-codec';
 import { stationBaseline } from '@server/features/stations/station-baseline';
@@ -56,6 +57,8 @@ export interface IngestDeps {
   pool: AnalysisPool;
   /** Told after each commit (the live hub). */
   notify: () => void;
+  /** The largest window accepted (default `defaultWindowLimits`: 1 h, 720 000 samples per channel). */
+  limits?: WindowLimits;
   logger: Logger;
   /**
    * Test-only: runs inside the transaction after every row is written and before the commit; a
@@ -83,9 +86,20 @@ class FileRefused extends Error {
   }
 }
 
+/** A file name as messages show it: at most MAX_QUOTED_CHARS characters, its extension kept. */
+const shownName = (filename: string) => clipInput(filename, MAX_QUOTED_CHARS, 12);
+
 /** SHA-256 of the bytes, hex. */
 export function sha256Hex(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
+}
+
+/**
+ * SHA-256 of the bytes, hex, hashed on libuv's thread pool (Web Crypto's digest is asynchronous in
+ * Node), so hashing a 25 MB upload does not hold the event loop.
+ */
+export async function sha256HexOffThread(bytes: Uint8Array): Promise<string> {
+  return Buffer.from(await webcrypto.subtle.digest('SHA-256', bytes)).toString('hex');
 }
 
 function actorOf(caller: IngestCaller): Actor {
@@ -276,7 +290,7 @@ export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: Ing
     if (duplicateKeyError(err)) {
       // The same bytes were committed by a concurrent request between our check and our insert.
       try {
-        const again = await existingOutcome(deps.db, file, caller);
+        const again = await existingOutcome(deps.db, file, caller, await sha256HexOffThread(file.bytes));
         if (again) return again;
       } catch (e) {
         if (e instanceof FileRefused) return { filename, status: 'rejected', httpStatus: e.httpStatus, code: e.code, message: e.message };
@@ -287,28 +301,35 @@ export async function ingestFile(deps: IngestDeps, file: IngestFile, caller: Ing
     // files committed before this one are found again by sha256 when the client retries.
     if (isDatabaseDown(err)) throw err;
     deps.logger.error({ err, filename }, 'upload: ingest failed');
-    return { filename, status: 'rejected', httpStatus: 500, code: 'internal_error', message: `${filename}: the file could not be stored because of a server error; nothing was saved` };
+    return { filename, status: 'rejected', httpStatus: 500, code: 'internal_error', message: `${shownName(filename)}: the file could not be stored because of a server error; nothing was saved` };
   }
 }
 
-async function existingOutcome(db: Database, file: IngestFile, caller: IngestCaller): Promise<UploadOutcome | null> {
-  const sha = sha256Hex(file.bytes);
+/**
+ * The one refusal for a station the caller may not upload for, registered or not: uploaders are
+ * limited to their own stations (operators) or one station (ingest tokens), so telling an
+ * unregistered station from someone else's would reveal which stations exist. 403 either way.
+ */
+function stationRefusal(caller: IngestCaller, filename: string, streamId: string, key: string): FileRefused {
+  const why = caller.kind === 'ingest' ? `station ${key} is not this ingest token's station` : `station ${key} is not registered or is not one of your stations`;
+  return new FileRefused(403, 'forbidden', `${shownName(filename)}: stream ${streamId}: ${why}`);
+}
+
+async function existingOutcome(db: Database, file: IngestFile, caller: IngestCaller, sha: string): Promise<UploadOutcome | null> {
   const [existing] = await db.select({ id: uploads.id, stationId: uploads.stationId, filename: uploads.filename }).from(uploads).where(eq(uploads.sha256, sha));
   if (!existing) return null;
   const items = await itemsOfUpload(db, existing.id);
   const stationIds = new Set<number>([existing.stationId]);
   const stationRows = await db.select({ stationId: windows.stationId }).from(windows).where(eq(windows.uploadId, existing.id));
   for (const r of stationRows) stationIds.add(r.stationId);
-  for (const id of stationIds) {
-    if (!mayUpload(caller, id)) {
-      throw new FileRefused(403, 'forbidden', `${file.filename}: this file was already uploaded for a station you may not upload for`);
-    }
-  }
+  // Bytes already stored for a station the caller may not upload for are not theirs to hear of:
+  // the file goes the ordinary way and is refused as any file for that station is (stationRefusal).
+  for (const id of stationIds) if (!mayUpload(caller, id)) return null;
   return {
     filename: file.filename,
     status: 'duplicate',
     httpStatus: 200,
-    message: `${file.filename}: the same file (sha256 ${sha.slice(0, 12)}…) was already uploaded as "${existing.filename}"; its existing item is returned`,
+    message: `${shownName(file.filename)}: the same file (sha256 ${sha.slice(0, 12)}…) was already uploaded as "${shownName(existing.filename)}"; its existing item is returned`,
     uploadId: existing.id,
     itemIds: items.map((i) => i.id),
     items,
@@ -317,17 +338,16 @@ async function existingOutcome(db: Database, file: IngestFile, caller: IngestCal
 
 async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestCaller, opts: IngestOptions): Promise<UploadOutcome> {
   const { filename } = file;
-  const dup = await existingOutcome(deps.db, file, caller);
+  const sha = await sha256HexOffThread(file.bytes);
+  const dup = await existingOutcome(deps.db, file, caller, sha);
   if (dup) return dup;
 
-  let streams: DecodedStream[];
-  try {
-    // Stored as start + index / rate per channel: a gap or a true overlap is refused (exactPlacement).
-    streams = decodeWaveform(file.bytes, { filename, exactPlacement: true, ...(opts.streamId ? { streamId: opts.streamId } : {}), ...(opts.startTimeUs !== undefined ? { startTimeUs: opts.startTimeUs } : {}) });
-  } catch (err) {
-    if (err instanceof WaveformParseError) throw new FileRefused(422, 'unprocessable', err.message);
-    throw err;
-  }
+  // Decoded in the pool (a 25 MB file never holds the event loop), checked against the window limits
+  // there. Stored as start + index / rate per channel: a gap or a true overlap is refused (exactPlacement).
+  const decodeOptions = { filename, exactPlacement: true, ...(opts.streamId ? { streamId: opts.streamId } : {}), ...(opts.startTimeUs !== undefined ? { startTimeUs: opts.startTimeUs } : {}) };
+  const decoded = await deps.pool.decode(file.bytes, decodeOptions, deps.limits ?? defaultWindowLimits);
+  if (!decoded.ok) throw new FileRefused(decoded.status, decoded.code, decoded.message);
+  const streams = decoded.streams;
 
   // Group by station; each station must be registered and within the caller's scope.
   const groups = new Map<string, DecodedStream[]>();
@@ -341,11 +361,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   for (const [key, list] of groups) {
     const first = list[0] as DecodedStream;
     const station = registry.get(key);
-    if (!station) throw new FileRefused(422, 'unknown_station', `${filename}: stream ${first.id}: station ${key} is not registered (register it, or import its StationXML, first)`);
-    if (!mayUpload(caller, station.id)) {
-      const why = caller.kind === 'ingest' ? `this ingest token is for another station` : `station ${key} is not one of your stations`;
-      throw new FileRefused(403, 'forbidden', `${filename}: stream ${first.id}: ${why}`);
-    }
+    if (!station || !mayUpload(caller, station.id)) throw stationRefusal(caller, filename, first.id, key);
   }
 
   // Analyse each station window in the pool (before any transaction opens).
@@ -363,13 +379,12 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
       analysis = await deps.pool.run(toWorker, station.profile, options);
     } catch (err) {
       const msg = err instanceof Error ? err.message : String(err);
-      throw new FileRefused(422, 'unprocessable', `${filename}: station ${key}: analysis refused: ${msg}`);
+      throw new FileRefused(422, 'unprocessable', `${shownName(filename)}: station ${key}: analysis refused: ${capMessage(msg)}`);
     }
     analysed.push({ station, streams: stored, analysis });
   }
 
   const actor = actorOf(caller);
-  const sha = sha256Hex(file.bytes);
   const format = streams[0]?.format ?? 'csv';
   const primary = analysed[0] as AnalysedWindow;
   const result = await deps.db.transaction(async (tx) => {
@@ -495,6 +510,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
           candidateEventId: null,
           candidateStationCount: null,
         }),
+        audience: itemAudience(c.w.station.id),
       });
     }
     if (deps.beforeCommit) await deps.beforeCommit(tx, { filename, uploadId: up.id, itemIds: created.map((c) => c.itemId) });

@@ -1,6 +1,7 @@
 import { Router, type NextFunction, type Request, type Response } from 'express';
 import multer from 'multer';
 import { can } from '@shared/auth/policies';
+import { clipInput } from '@shared/quote-input';
 import { uploadFieldsSchema } from '@shared/schemas/upload';
 import type { AppContext } from '@server/context';
 import { badRequest, forbidden, tooLarge, unauthorized, type AppError } from '@server/errors';
@@ -66,7 +67,7 @@ function earlyRefusalStorage(maxBytes: number, maxFiles: number): multer.Storage
         if (refused) return;
         refused = true;
         chunks.length = 0;
-        if (res) refuseNow(req, res, tooLarge(`A file (field "${file.fieldname}") is larger than the limit of ${mb(maxBytes)} per file (SEISIFT_MAX_UPLOAD_BYTES = ${maxBytes} bytes)`));
+        if (res) refuseNow(req, res, tooLarge(`A file (field "${clipInput(file.fieldname)}") is larger than the limit of ${mb(maxBytes)} per file (SEISIFT_MAX_UPLOAD_BYTES = ${maxBytes} bytes)`));
       };
       file.stream.on('data', (chunk: Buffer) => {
         size += chunk.length;
@@ -124,11 +125,11 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
   const receive = (req: Request, res: Response, next: NextFunction) => {
     upload(req, res, (err: unknown) => {
       if (err instanceof multer.MulterError) {
-        const file = err.field ? ` (field "${err.field}")` : '';
+        const file = err.field ? ` (field "${clipInput(err.field)}")` : '';
         if (err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(`A file${file} is larger than the limit of ${mb(maxBytes)} per file (SEISIFT_MAX_UPLOAD_BYTES = ${maxBytes} bytes)`));
         if (err.code === 'LIMIT_FILE_COUNT') return next(tooLarge(`More than ${maxFiles} files in one request (SEISIFT_MAX_UPLOAD_FILES = ${maxFiles}); send them in several requests`));
         if (err.code === 'LIMIT_PART_COUNT' || err.code === 'LIMIT_FIELD_COUNT') return next(tooLarge(`Too many parts in one request: at most ${maxFiles} files, a streamId and a startTime field`));
-        if (err.code === 'LIMIT_FIELD_VALUE') return next(badRequest(`${err.field ?? 'field'}: the value is too long (at most 1024 bytes)`));
+        if (err.code === 'LIMIT_FIELD_VALUE') return next(badRequest(`${clipInput(err.field ?? 'field')}: the value is too long (at most 1024 bytes)`));
         return next(badRequest(`files: ${err.message}`));
       }
       next(err);
@@ -147,6 +148,7 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
       pool: opts.pool ?? ctx.analysisPool,
       notify: () => ctx.hub.notify(),
       logger: ctx.logger,
+      limits: { maxSamples: ctx.env.SEISIFT_MAX_WINDOW_SAMPLES, maxDurationS: ctx.env.SEISIFT_MAX_WINDOW_S },
       ...(opts.beforeCommit ? { beforeCommit: opts.beforeCommit } : {}),
     };
     const result = await ingestFiles(

@@ -88,37 +88,96 @@ export function stationProfile(raw: unknown): ProcessingProfile {
   return processingProfileSchema.parse(raw ?? {});
 }
 
+/** One stored channel of a window, as the traces are computed from it. */
+export interface StoredTraceChannel {
+  streamId: string;
+  sampleRateHz: number;
+  startTimeUs: number;
+  sampleCount: number;
+  /** The window_channels.samples blob (any layout `decodeStoredSamples` reads). */
+  samples: Uint8Array;
+}
+
 /**
- * The display traces of item `itemId` over [from, to) s from the window's first sample (the whole
- * window by default), each curve decimated to about `points` points with `minMaxDecimate`; a range
- * of at most points/2 samples comes back at full resolution (bucket 1).
- * @param scope station ids the viewer may see ('all' or assigned ids)
- * @throws AppError 404 when the item is missing or out of scope; 400 when the range is outside the window
+ * Everything `computeTraces` needs, read from the database: plain data, so it can be sent to a
+ * worker thread (the blobs' buffers transferred).
  */
-export async function itemTraces(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<TracesResponse> {
+export interface TracesInput {
+  channels: StoredTraceChannel[];
+  /** The station's stored profile (null: the defaults). */
+  profile: unknown;
+  /** The station's channels' flat sensitivities (counts per m/s). */
+  sensitivities: Array<{ location: string; code: string; sensitivity: number | null }>;
+  query: TracesQuery;
+}
+
+/**
+ * Reads what the traces of item `itemId` are computed from, after checking scope and range.
+ * @param scope station ids the viewer may see ('all' or assigned ids)
+ * @throws AppError 404 when the item is missing or out of scope; 400 when `from` is outside the window
+ */
+export async function loadTracesInput(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<TracesInput> {
   const [item] = await db
     .select({ windowId: queueItems.windowId, stationId: queueItems.stationId, profile: stations.profile })
     .from(queueItems)
     .innerJoin(stations, eq(stations.id, queueItems.stationId))
     .where(eq(queueItems.id, itemId));
   if (!item || (scope !== 'all' && !scope.includes(item.stationId))) throw notFound(`Queue item ${itemId}`);
-  const profile = stationProfile(item.profile);
   const rows = await db.select().from(windowChannels).where(eq(windowChannels.windowId, item.windowId)).orderBy(asc(windowChannels.streamId));
   if (rows.length === 0) throw notFound(`Samples of queue item ${itemId}`);
-  const sens = await db
+  const sensitivities = await db
     .select({ location: channels.location, code: channels.code, sensitivity: channels.sensitivity })
     .from(channels)
     .where(and(eq(channels.stationId, item.stationId)));
+  const durationS = windowDurationS(rows);
+  const from = q.from ?? 0;
+  if (from < 0 || from >= durationS) throw badRequest(`from: ${from} s is outside the window (0 to ${durationS.toFixed(3)} s)`, { issues: [{ path: 'from', message: 'outside the window' }] });
+  return {
+    channels: rows.map((r) => ({ streamId: r.streamId, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, sampleCount: r.sampleCount, samples: r.samples })),
+    profile: item.profile,
+    sensitivities,
+    query: q,
+  };
+}
+
+/** The window's length, s: from its earliest first sample to the end of its longest channel. */
+function windowDurationS(rows: ReadonlyArray<{ startTimeUs: number; sampleCount: number; sampleRateHz: number }>): number {
   const t0Us = Math.min(...rows.map((r) => r.startTimeUs));
-  const durationS = Math.max(...rows.map((r) => (r.startTimeUs - t0Us) / 1e6 + r.sampleCount / r.sampleRateHz));
+  return Math.max(...rows.map((r) => (r.startTimeUs - t0Us) / 1e6 + r.sampleCount / r.sampleRateHz));
+}
+
+/**
+ * The display traces of item `itemId` over [from, to) s from the window's first sample (the whole
+ * window by default), each curve decimated to about `points` points with `minMaxDecimate`; a range
+ * of at most points/2 samples comes back at full resolution (bucket 1). Computed in this thread;
+ * the API computes them in the analysis pool (`computeTraces` there) so a long window never holds
+ * the event loop.
+ * @param scope station ids the viewer may see ('all' or assigned ids)
+ * @throws AppError 404 when the item is missing or out of scope; 400 when the range is outside the window
+ */
+export async function itemTraces(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<TracesResponse> {
+  return computeTraces(await loadTracesInput(db, itemId, q, scope));
+}
+
+/**
+ * The display traces from what `loadTracesInput` read: pure computation (decode the stored
+ * samples, pre-process, band-pass, STA/LTA, spectrogram, decimate), the same steps and profile as
+ * the engine (server/dsp/pipeline.ts). Runs in the analysis worker for the API.
+ */
+export function computeTraces(input: TracesInput): TracesResponse {
+  const { query: q } = input;
+  const profile = stationProfile(input.profile);
+  const rows = input.channels;
+  const sens = input.sensitivities;
+  const t0Us = Math.min(...rows.map((r) => r.startTimeUs));
+  const durationS = windowDurationS(rows);
   const from = q.from ?? 0;
   const to = q.to ?? durationS;
-  if (from < 0 || from >= durationS) throw badRequest(`from: ${from} s is outside the window (0 to ${durationS.toFixed(3)} s)`, { issues: [{ path: 'from', message: 'outside the window' }] });
   const sl = profile.staLta;
   const out: TracesResponse['channels'] = [];
   for (const r of rows) {
     const fs = r.sampleRateHz;
-    const x = decodeSamples(r.samples, r.sampleCount);
+    const x = decodeStoredSamples(r.samples, r.sampleCount);
     const [, , loc = '', cha = ''] = r.streamId.split('.');
     const s = sens.find((c) => c.location === loc && c.code === cha)?.sensitivity ?? null;
     const pre = preprocessTrace(x, profile.preprocess.taperAlpha);

@@ -9,7 +9,7 @@ import { users } from '@server/db/schema/users';
 import { conflict, notFound } from '@server/errors';
 import { loadQueueRow } from './queue-rows';
 import { recordAudit } from '@server/features/audit/audit';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 
 /**
  * The life of a queue item (issue 6): every change is one transaction that
@@ -97,7 +97,7 @@ async function transition(deps: QueueServiceDeps, spec: TransitionSpec): Promise
     });
     const fresh = await loadQueueRow(tx, eq(queueItems.id, spec.itemId));
     if (!fresh) throw notFound(`Queue item ${spec.itemId}`);
-    await recordChange(tx, { resource: 'item', resourceId: spec.itemId, kind: 'updated', version: fresh.version, summary: fresh });
+    await recordChange(tx, { resource: 'item', resourceId: spec.itemId, kind: 'updated', version: fresh.version, summary: fresh, audience: itemAudience(fresh.stationId) });
     return fresh;
   });
   deps.notify?.();

@@ -10,7 +10,7 @@ import { authorize, authorizedStations, requirePermission } from '@server/polici
 import { getItemDetail } from './queue-detail';
 import { listQueue } from './queue-query';
 import { itemStationId } from './queue-rows';
-import { itemTraces } from './queue-traces';
+import { loadTracesInput } from './queue-traces';
 import {
   claimItem,
   dismissItem,
@@ -24,7 +24,6 @@ import {
 /** Params `:id` of the queue item routes: a queue item id. */
 export const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a queue item id (a whole number)').transform(Number) });
 
-/** Options of the queue router. */
 /**
  * The review queue API (issue 6), mounted at /api/queue:
  * - `GET /` list with filters, keyset cursor and counts per state (queue.view; operators see their stations)
@@ -64,7 +63,11 @@ export function queueRouter(ctx: AppContext): Router {
     const user = currentUser(req);
     const { id } = parseInput(idParams, req.params, 'params');
     const q = parseInput(tracesQuerySchema, req.query, 'query');
-    res.json(await itemTraces(db, id, q, authorizedStations(user, 'queue.view')));
+    // Read here, computed and serialised in a worker: a window of an hour at 200 sps is tens of
+    // megabytes of filtering, which must not hold the event loop (docs/RELIABILITY.md, bench:traces).
+    const input = await loadTracesInput(db, id, q, authorizedStations(user, 'queue.view'));
+    const json = await ctx.analysisPool.traces(input);
+    res.type('application/json').send(Buffer.from(json.buffer, json.byteOffset, json.byteLength));
   });
 
   router.post('/items/:id/claim', requirePermission('queue.claim'), async (req, res) => {

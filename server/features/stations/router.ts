@@ -44,8 +44,9 @@ const actorOf = (user: AuthUser, req: Request): Actor => ({ userId: user.id, lab
 
 /**
  * /api/stations: the registry (list, create, view, edit), channels, processing profile, ingest
- * tokens, health and StationXML import. Every handler: user → validate → load → authorize (the
- * shared policy) → service.
+ * tokens, health and StationXML import. Every handler: user → validate → authorize on the station
+ * id (the shared policy) → load → service. Authorizing before loading answers a station that is
+ * not yours and one that does not exist alike (403), so ids tell nothing about what exists.
  */
 export function stationsRouter(ctx: AppContext): Router {
   const db = ctx.database.db;
@@ -107,8 +108,8 @@ export function stationsRouter(ctx: AppContext): Router {
     const { id } = parseInput(idParamSchema, req.params, 'params');
     const user = currentUser(req);
     const patch = parseInput(stationUpdateSchema, req.body);
-    await requireStationRow(db, id);
     authorize(user, 'station.edit', { stationId: id });
+    await requireStationRow(db, id);
     await updateStation(db, id, patch, actorOf(user, req));
     res.json({ station: await getStation(db, id) });
   });
@@ -121,8 +122,8 @@ export function stationsRouter(ctx: AppContext): Router {
       const issues = parsed.error.issues.map((i) => ({ path: ['profile', ...i.path.map(String)].join('.'), message: i.message }));
       throw badRequest(`${issues[0]?.path ?? 'profile'}: ${issues[0]?.message ?? 'invalid'}`, { issues });
     }
-    await requireStationRow(db, id);
     authorize(user, 'station.edit', { stationId: id });
+    await requireStationRow(db, id);
     const profile = await updateProfile(db, id, parsed.data, actorOf(user, req));
     res.json({ profile });
   });
@@ -131,8 +132,8 @@ export function stationsRouter(ctx: AppContext): Router {
     const { id } = parseInput(idParamSchema, req.params, 'params');
     const user = currentUser(req);
     const input = parseInput(channelInputSchema, req.body);
-    await requireStationRow(db, id);
     authorize(user, 'station.edit', { stationId: id });
+    await requireStationRow(db, id);
     await upsertChannel(db, id, input, actorOf(user, req));
     res.status(201).json({ station: await getStation(db, id) });
   });
@@ -140,8 +141,8 @@ export function stationsRouter(ctx: AppContext): Router {
   router.delete('/:id/channels/:childId', requirePermission('station.edit'), async (req, res) => {
     const { id, childId } = parseInput(childParamSchema, req.params, 'params');
     const user = currentUser(req);
-    await requireStationRow(db, id);
     authorize(user, 'station.edit', { stationId: id });
+    await requireStationRow(db, id);
     await deleteChannel(db, id, childId, actorOf(user, req));
     res.status(204).end();
   });
@@ -149,8 +150,8 @@ export function stationsRouter(ctx: AppContext): Router {
   router.get('/:id/tokens', requirePermission('token.manage'), async (req, res) => {
     const { id } = parseInput(idParamSchema, req.params, 'params');
     const user = currentUser(req);
-    await requireStationRow(db, id);
     authorize(user, 'token.manage', { stationId: id });
+    await requireStationRow(db, id);
     res.json({ tokens: await listTokens(db, id) });
   });
 
@@ -158,8 +159,8 @@ export function stationsRouter(ctx: AppContext): Router {
     const { id } = parseInput(idParamSchema, req.params, 'params');
     const user = currentUser(req);
     const { label } = parseInput(tokenCreateSchema, req.body);
-    await requireStationRow(db, id);
     authorize(user, 'token.manage', { stationId: id });
+    await requireStationRow(db, id);
     res.setHeader('Cache-Control', 'no-store');
     res.status(201).json(await createToken(db, id, label, actorOf(user, req)));
   });
@@ -167,8 +168,8 @@ export function stationsRouter(ctx: AppContext): Router {
   router.post('/:id/tokens/:childId/revoke', requirePermission('token.manage'), async (req, res) => {
     const { id, childId } = parseInput(childParamSchema, req.params, 'params');
     const user = currentUser(req);
-    await requireStationRow(db, id);
     authorize(user, 'token.manage', { stationId: id });
+    await requireStationRow(db, id);
     res.json({ token: await revokeToken(db, id, childId, actorOf(user, req)) });
   });
 
@@ -176,8 +177,8 @@ export function stationsRouter(ctx: AppContext): Router {
     const { id } = parseInput(idParamSchema, req.params, 'params');
     const { days } = parseInput(healthQuerySchema, req.query, 'query');
     const user = currentUser(req);
-    const row = await requireStationRow(db, id);
     authorize(user, 'station.view', { stationId: id });
+    const row = await requireStationRow(db, id);
     res.json(await stationHealth(db, id, { days, minBaselineWindows: storedProfile(row).thresholds.minBaselineWindows }));
   });
 

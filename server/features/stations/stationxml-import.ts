@@ -1,7 +1,8 @@
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { z } from 'zod';
-import { can, type PolicyActor } from '@shared/auth/policies';
+import { can, stationScope, type PolicyActor } from '@shared/auth/policies';
+import { capMessage } from '@shared/quote-input';
 import { channelCodeSchema, locationCodeSchema, networkCodeSchema, profileNyquistIssues, stationCodeSchema } from '@shared/schemas/station';
 import { processingProfileSchema } from '@shared/schemas/processing-profile';
 import type { Database } from '@server/db/client';
@@ -50,7 +51,11 @@ export interface ChannelPreview {
 export interface StationPreview {
   station: string;
   stationId: number | null;
-  status: 'new' | 'changed' | 'unchanged' | 'invalid';
+  /**
+   * `refused`: a station the requester may not see (someone else's, or unregistered for one who
+   * may not register): nothing of it is shown, and applying leaves it out.
+   */
+  status: 'new' | 'changed' | 'unchanged' | 'invalid' | 'refused';
   fields: FieldDiff[];
   channels: ChannelPreview[];
   message?: string;
@@ -119,8 +124,10 @@ function diffValues(from: Record<string, unknown> | null, to: Record<string, unk
 }
 
 /**
- * Parses the document and compares it with the registry.
- * @param actor the requesting user's roles and stations (for `allowed`), or null to skip that
+ * Parses the document and compares it with the registry. A station the actor may not view
+ * (`station.view`) is answered `refused` with nothing of what is stored, and so is an unregistered
+ * one for an actor limited to assigned stations, so the two cannot be told apart.
+ * @param actor the requesting user's roles and stations (for the scope and `allowed`), or null for all
  * @throws 422 naming the XML problem (StationXmlParseError's message)
  */
 export async function previewStationXml(db: Database, xml: string, actor: PolicyActor | null, now = new Date()): Promise<{ preview: ImportPreview; plan: Planned[] }> {
@@ -128,10 +135,11 @@ export async function previewStationXml(db: Database, xml: string, actor: Policy
   try {
     doc = parseStationXml(xml);
   } catch (err) {
-    if (err instanceof StationXmlParseError) throw unprocessable(err.message);
+    if (err instanceof StationXmlParseError) throw unprocessable(capMessage(err.message));
     throw err;
   }
   const nowUs = now.getTime() * 1000;
+  const viewScope = actor === null ? 'all' : stationScope(actor, 'station.view');
   const previews: StationPreview[] = [];
   const plan: Planned[] = [];
   const byKey = new Map<string, { net: string; epochs: (typeof doc.networks)[number]['stations'] }>();
@@ -159,6 +167,12 @@ export async function previewStationXml(db: Database, xml: string, actor: Policy
     const network = netCode.data;
     const code = staCode.data;
     const [row] = await db.select().from(stations).where(and(eq(stations.network, network), eq(stations.code, code)));
+    // Nothing stored for a station the requester may not view leaves the server, nor whether it
+    // is registered at all: someone else's station and an unregistered one look the same.
+    if (viewScope !== 'all' && !(row && viewScope !== 'none' && viewScope.includes(row.id))) {
+      previews.push({ station: key, stationId: null, status: 'refused', fields: [], channels: [], message: 'not one of your stations (or not registered): left out of this import', allowed: false });
+      continue;
+    }
     const values = { name: st.siteName.slice(0, 200) || key, latitude: st.latitude, longitude: st.longitude, elevationM: st.elevationM };
     const fields = diffValues(row ? { name: row.name, latitude: row.latitude, longitude: row.longitude, elevationM: row.elevationM } : null, values);
     const existingChannels = row ? await db.select().from(channels).where(eq(channels.stationId, row.id)) : [];
@@ -235,14 +249,16 @@ export const importApplySchema = z.object({ previewHash: z.string().regex(/^[0-9
 /**
  * Applies a previewed document: recomputes the preview, refuses (409) when it no longer matches
  * `previewHash` (the registry or the file changed), refuses (403) when the user may not change
- * one of the stations, then writes every new/changed station and channel in one transaction with
- * one audit row. An operator who registers a station through the import is assigned to it.
+ * one of the stations they can see, then writes every new/changed station and channel in one
+ * transaction with one audit row. Stations `refused` in the preview (not the user's to see) are
+ * left out, as the preview said: an operator may apply the network's whole document and change
+ * only their own stations. An operator who registers a station through the import is assigned to it.
  * @returns the preview that was applied
  */
 export async function applyStationXml(db: Database, xml: string, previewHash: string, actor: PolicyActor & { isOperator: boolean }, who: Actor, now = new Date()): Promise<ImportPreview> {
   const { preview, plan } = await previewStationXml(db, xml, actor, now);
   if (preview.previewHash !== previewHash) throw conflict('The registry or the file changed since the preview: preview the file again');
-  const refused = preview.stations.filter((s) => !s.allowed);
+  const refused = preview.stations.filter((s) => !s.allowed && s.status !== 'refused');
   if (refused.length > 0) throw forbidden(`You may not change ${refused.map((s) => s.station).join(', ')}`);
   if (plan.length === 0) return preview;
   await db.transaction(async (tx) => {

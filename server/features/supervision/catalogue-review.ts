@@ -9,7 +9,7 @@ import { itemArrivals, itemReviews } from '@server/db/schema/supervisor';
 import { users } from '@server/db/schema/users';
 import { conflict, notFound } from '@server/errors';
 import { loadQueueRow } from '@server/features/queue/queue-rows';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 import type { InboxActor, InboxDeps } from './inbox';
 import type { CatalogueEvent, CataloguePick } from './quakeml-export';
@@ -147,7 +147,7 @@ export async function listReview(db: Database, q: ReviewQuery): Promise<ReviewRo
 export async function setEvaluationStatus(deps: InboxDeps, actor: InboxActor, itemId: number, version: number, status: Exclude<EvaluationStatus, 'preliminary'>, comment: string): Promise<void> {
   const now = new Date();
   await deps.db.transaction(async (tx) => {
-    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version, labelType: queueItems.labelType }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
+    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version, labelType: queueItems.labelType, stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
     if (!item) throw notFound(`Queue item ${itemId}`);
     if (item.version !== version) throw conflict(`Item ${itemId} changed since you loaded it (version ${version}, now ${item.version}); reload it.`);
     if (!['labelled', 'confirmed'].includes(item.state) || item.labelType === null || item.labelType === 'noise') {
@@ -168,7 +168,7 @@ export async function setEvaluationStatus(deps: InboxDeps, actor: InboxActor, it
       ip: deps.ipAddress ?? null,
     });
     const row = await loadQueueRow(tx, eq(queueItems.id, itemId));
-    await recordChange(tx, { resource: 'item', resourceId: itemId, kind: 'updated', version: item.version + 1, summary: row ?? undefined });
+    await recordChange(tx, { resource: 'item', resourceId: itemId, kind: 'updated', version: item.version + 1, summary: row ?? undefined, audience: itemAudience(item.stationId) });
   });
   deps.notify?.();
 }

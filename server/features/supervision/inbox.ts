@@ -8,7 +8,7 @@ import type { StoredLabel } from '@shared/schemas/label';
 import type { ConfirmLabel } from '@shared/schemas/supervisor';
 import { AppError, conflict, notFound } from '@server/errors';
 import { loadQueueRow } from '@server/features/queue/queue-rows';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 
 /**
@@ -63,7 +63,7 @@ export async function unreadCount(db: DbOrTx, userId: string): Promise<number> {
 
 /** Records an `inbox` change for `userId`'s entry (last write of the transaction). */
 export async function recordInboxChange(tx: DbOrTx, entryId: number, userId: string, kind: 'created' | 'updated'): Promise<void> {
-  await recordChange(tx, { resource: 'inbox', resourceId: entryId, kind, version: 1, summary: { userId, unread: await unreadCount(tx, userId) } });
+  await recordChange(tx, { resource: 'inbox', resourceId: entryId, kind, version: 1, summary: { userId, unread: await unreadCount(tx, userId) }, audience: { action: 'inbox.view', userId } });
 }
 
 /** A supervisor's inbox, newest first (at most `limit`), with the unread count. */
@@ -154,7 +154,7 @@ export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: num
   const now = new Date();
   const from = outcome === 'confirmed' ? ['escalated', 'labelled'] : ['escalated', 'labelled', 'confirmed'];
   await deps.db.transaction(async (tx) => {
-    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version, labelType: queueItems.labelType, label: queueItems.label }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
+    const [item] = await tx.select({ state: queueItems.state, version: queueItems.version, labelType: queueItems.labelType, label: queueItems.label, stationId: queueItems.stationId }).from(queueItems).where(eq(queueItems.id, itemId)).for('update');
     if (!item) throw notFound(`Queue item ${itemId}`);
     if (version !== null && item.version !== version) throw conflict(`Item ${itemId} changed since you loaded it (version ${version}, now ${item.version}); reload it.`);
     if (!from.includes(item.state)) throw conflict(`Item ${itemId} is ${item.state}; you can ${outcome === 'confirmed' ? 'confirm' : 'return'} it only when it is ${from.join(' or ')}.`);
@@ -204,7 +204,7 @@ export async function settleItem(deps: InboxDeps, actor: InboxActor, itemId: num
     }
     const row = await loadQueueRow(tx, eq(queueItems.id, itemId));
     for (const o of open) await recordInboxChange(tx, o.id, o.userId, 'updated');
-    await recordChange(tx, { resource: 'item', resourceId: itemId, kind: 'updated', version: item.version + 1, summary: row ?? undefined });
+    await recordChange(tx, { resource: 'item', resourceId: itemId, kind: 'updated', version: item.version + 1, summary: row ?? undefined, audience: itemAudience(item.stationId) });
   });
   deps.notify?.();
 }

@@ -20,7 +20,8 @@ import { itemStationId } from '@server/features/queue/queue-rows';
 import { clientAddress, currentUser, requireUser } from '@server/auth/authenticate';
 import type { AuthUser } from '@server/auth/principal';
 import { parseInput } from '@server/http/validate';
-import { authorize, authorizedStations, requirePermission } from '@server/policies/authorize';
+import { authorizedStations, requirePermission } from '@server/policies/authorize';
+import { can } from '@shared/auth/policies';
 import { recordAudit } from '@server/features/audit/audit';
 import { getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
 import { buildCatalogueCsv } from './catalogue-csv';
@@ -125,8 +126,8 @@ export function supervisorRouter(ctx: AppContext): Router {
   router.get('/items/:id/review-note', requirePermission('queue.view'), async (req, res) => {
     const { id } = parseInput(idParams, req.params, 'params');
     const stationId = await itemStationId(db, id);
-    if (stationId === null) throw notFound(`Queue item ${id}`);
-    authorize(currentUser(req), 'queue.view', { stationId });
+    // Out of scope answers as missing does (as GET /api/queue/items/:id), so no id tells whether it exists.
+    if (stationId === null || !can(currentUser(req), 'queue.view', { stationId })) throw notFound(`Queue item ${id}`);
     res.json({ note: await reviewNote(db, id) });
   });
 

@@ -9,7 +9,7 @@ import { itemReviews } from '@server/db/schema/supervisor';
 import { windows } from '@server/db/schema/uploads';
 import { notFound, tooLarge, unprocessable } from '@server/errors';
 import { loadQueueRow } from '@server/features/queue/queue-rows';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 import { stationBaseline } from '@server/features/stations/station-baseline';
 import type { Evaluation, ThresholdValues } from '@shared/schemas/supervisor';
@@ -432,7 +432,7 @@ export async function rescorePeriod(deps: ThresholdDeps, actor: ThresholdActor, 
     });
     for (const c of changes) {
       const fresh = await loadQueueRow(tx, eq(queueItems.id, c.id));
-      await recordChange(tx, { resource: 'item', resourceId: c.id, kind: 'updated', version: c.version, summary: fresh ?? undefined });
+      await recordChange(tx, { resource: 'item', resourceId: c.id, kind: 'updated', version: c.version, summary: fresh ?? undefined, audience: itemAudience(stationId) });
     }
   });
   deps.notify?.();

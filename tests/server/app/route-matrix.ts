@@ -13,6 +13,9 @@
  * - `ok`: statuses that count as success (default 200, 201, 202, 204).
  * - `foreignStation(w)`: for station-scoped routes, the request aimed at a station NOT assigned to
  *   the demo operator (KV04); the operator must get 403 or 404 there.
+ * - `missing(w)`: the same request aimed at an object that does not exist (an unused id, an
+ *   unregistered station); the operator must get exactly the answer `foreignStation` gets (status,
+ *   code, and message but for the numbers and codes in it), so no answer tells what exists.
  */
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
@@ -52,7 +55,11 @@ export type MatrixRow = {
   build?: (w: World, as: Principal) => Promise<MatrixRequest>;
   ok?: readonly number[];
   foreignStation?: (w: World) => Promise<MatrixRequest>;
+  missing?: (w: World) => Promise<MatrixRequest>;
 };
+
+/** An id no row has. */
+const NO_ID = 987654321;
 
 const kv = (w: World, code: string) => {
   const id = w.stationIds[code];
@@ -295,6 +302,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'queue.view',
     build: async (w, as) => ({ path: `/api/queue/items/${(await item(w, as)).id}` }),
     foreignStation: async (w) => ({ path: `/api/queue/items/${(await item(w, 'analyst', { station: 'KV04' })).id}` }),
+    missing: async () => ({ path: `/api/queue/items/${NO_ID}` }),
   },
   {
     method: 'GET',
@@ -303,6 +311,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'queue.view',
     build: async (w, as) => ({ path: `/api/queue/items/${(await item(w, as, { samples: true })).id}/traces` }),
     foreignStation: async (w) => ({ path: `/api/queue/items/${(await item(w, 'analyst', { station: 'KV04', samples: true })).id}/traces` }),
+    missing: async () => ({ path: `/api/queue/items/${NO_ID}/traces` }),
   },
   {
     method: 'POST',
@@ -390,13 +399,8 @@ export const routeMatrix: readonly MatrixRow[] = [
       const hash = typeof preview.body?.previewHash === 'string' ? preview.body.previewHash : 'none';
       return { path: '/api/stations/import/apply', files: [{ field: 'file', bytes: xml, filename: 'kv.xml' }], fields: { previewHash: hash } };
     },
-    foreignStation: async (w) => {
-      // A changed KV04 (not the operator's): a new site name.
-      const xml = Buffer.from(stationXml().toString('utf8').replace('<Name>Kestrel Valley pumping station</Name>', `<Name>Renamed by matrix ${next()}</Name>`));
-      const preview = await call(w, 'POST', '/api/stations/import/preview', w.cookie.operator).attach('file', xml, 'kv.xml');
-      const hash = typeof preview.body?.previewHash === 'string' ? preview.body.previewHash : 'none';
-      return { path: '/api/stations/import/apply', files: [{ field: 'file', bytes: xml, filename: 'kv.xml' }], fields: { previewHash: hash } };
-    },
+    // A station not the operator's (KV04, or an unregistered one) is left out of the operator's
+    // import and shown without its stored data: tests/server/routes/stations/stations.test.ts.
   },
   {
     method: 'GET',
@@ -405,6 +409,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'station.view',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV01')}` }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}` }),
+    missing: async () => ({ path: `/api/stations/${NO_ID}` }),
   },
   {
     method: 'PATCH',
@@ -413,6 +418,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'station.edit',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV02')}`, body: { siteDescription: `matrix edit ${next()}` } }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}`, body: { siteDescription: 'not yours' } }),
+    missing: async () => ({ path: `/api/stations/${NO_ID}`, body: { siteDescription: 'not yours' } }),
   },
   {
     method: 'POST',
@@ -421,6 +427,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'station.edit',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV02')}/channels`, body: { location: '10', code: `HN${'ZNE'[next() % 3]}`, sampleRateHz: 200 } }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}/channels`, body: { location: '10', code: 'HNZ', sampleRateHz: 200 } }),
+    missing: async () => ({ path: `/api/stations/${NO_ID}/channels`, body: { location: '10', code: 'HNZ', sampleRateHz: 200 } }),
   },
   {
     method: 'DELETE',
@@ -436,6 +443,7 @@ export const routeMatrix: readonly MatrixRow[] = [
       const [ch] = await w.ctx.database.db.select({ id: channels.id }).from(channels).where(eq(channels.stationId, kv(w, 'KV04')));
       return { path: `/api/stations/${kv(w, 'KV04')}/channels/${ch?.id ?? 1}` };
     },
+    missing: async () => ({ path: `/api/stations/${NO_ID}/channels/${NO_ID}` }),
   },
   {
     method: 'GET',
@@ -444,6 +452,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'station.view',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV01')}/health` }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}/health` }),
+    missing: async () => ({ path: `/api/stations/${NO_ID}/health` }),
   },
   {
     method: 'PUT',
@@ -458,6 +467,10 @@ export const routeMatrix: readonly MatrixRow[] = [
       const res = await call(w, 'GET', `/api/stations/${kv(w, 'KV04')}`, w.cookie.admin);
       return { path: `/api/stations/${kv(w, 'KV04')}/profile`, body: res.body.station.profile };
     },
+    missing: async (w) => {
+      const res = await call(w, 'GET', `/api/stations/${kv(w, 'KV04')}`, w.cookie.admin);
+      return { path: `/api/stations/${NO_ID}/profile`, body: res.body.station.profile };
+    },
   },
   {
     method: 'GET',
@@ -466,6 +479,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'token.manage',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV01')}/tokens` }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}/tokens` }),
+    missing: async () => ({ path: `/api/stations/${NO_ID}/tokens` }),
   },
   {
     method: 'POST',
@@ -474,6 +488,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'token.manage',
     build: async (w) => ({ path: `/api/stations/${kv(w, 'KV01')}/tokens`, body: { label: `matrix ${next()}` } }),
     foreignStation: async (w) => ({ path: `/api/stations/${kv(w, 'KV04')}/tokens`, body: { label: 'not yours' } }),
+    missing: async () => ({ path: `/api/stations/${NO_ID}/tokens`, body: { label: 'not yours' } }),
   },
   {
     method: 'POST',
@@ -490,6 +505,7 @@ export const routeMatrix: readonly MatrixRow[] = [
       const id = made.body?.token?.id ?? made.body?.id ?? 1;
       return { path: `/api/stations/${kv(w, 'KV04')}/tokens/${id}/revoke` };
     },
+    missing: async () => ({ path: `/api/stations/${NO_ID}/tokens/${NO_ID}/revoke` }),
   },
 
   // ---- supervisor (issue 7): inbox, review, candidate events, thresholds, dashboard, export
@@ -507,6 +523,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'queue.view',
     build: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w)}` }),
     foreignStation: async (w) => ({ path: `/api/supervisor/candidate-events/${await candidateEvent(w, ['KV04', 'KV05', 'KV06'])}` }),
+    missing: async () => ({ path: `/api/supervisor/candidate-events/${NO_ID}` }),
   },
   {
     method: 'POST',
@@ -536,6 +553,7 @@ export const routeMatrix: readonly MatrixRow[] = [
     action: 'queue.view',
     build: async (w) => ({ path: `/api/supervisor/items/${(await labelledItem(w)).id}/review-note` }),
     foreignStation: async (w) => ({ path: `/api/supervisor/items/${(await labelledItem(w, 'KV04')).id}/review-note` }),
+    missing: async () => ({ path: `/api/supervisor/items/${NO_ID}/review-note` }),
   },
   { method: 'GET', path: '/api/supervisor/review', allow: ['supervisor'], action: 'review.evaluate', build: async () => ({ path: '/api/supervisor/review' }) },
   {
@@ -583,5 +601,6 @@ export const routeMatrix: readonly MatrixRow[] = [
     ok: [201],
     build: async () => ({ path: '/api/uploads', files: [{ field: 'files', bytes: csvWindow(next()), filename: 'kv01.csv' }], fields: { streamId: 'XX.KV01.00.HHZ' } }),
     foreignStation: async () => ({ path: '/api/uploads', files: [{ field: 'files', bytes: csvWindow(next()), filename: 'kv04.csv' }], fields: { streamId: 'XX.KV04.00.HHZ' } }),
+    missing: async () => ({ path: '/api/uploads', files: [{ field: 'files', bytes: csvWindow(next()), filename: 'kv97.csv' }], fields: { streamId: 'XX.KV97.00.HHZ' } }),
   },
 ];

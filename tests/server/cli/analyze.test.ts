@@ -143,7 +143,7 @@ describe('npm run analyze (server/cli/analyze.ts)', () => {
     writeFileSync(file, Uint8Array.from([0, 1, 2, 3, 200, 201]));
     const res = spawnSync(process.execPath, ['--import', 'tsx', 'server/cli/analyze.ts', file], { encoding: 'utf8' });
     expect(res.status).toBe(2);
-    expect(res.stderr).toMatch(/cannot decode .*junk\.bin: unrecognised format/);
+    expect(res.stderr).toMatch(/cannot decode .*junk\.bin: unrecognised (binary )?format/);
     expect(res.stdout).toBe('');
     expect(runAnalyzeCli([join(dir, 'missing.csv')]).code).toBe(2);
     expect(runAnalyzeCli([]).code).toBe(1);

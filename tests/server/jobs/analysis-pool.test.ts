@@ -3,6 +3,11 @@ import { createAnalysisPool } from '@server/jobs/analysis-pool';
 import { analyzeWindow } from '@server/dsp/pipeline';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { makeSignal, stream } from '@tests/server/dsp/fixture-signal';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { defaultWindowLimits } from '@server/formats/window-limits';
+import { computeTraces, type TracesInput } from '@server/features/queue/queue-traces';
+import { encodeSamples } from '@server/db/samples-codec';
 
 const pool = createAnalysisPool({ threads: 2 });
 afterAll(async () => {
@@ -35,7 +40,40 @@ describe('analysis pool (piscina worker threads)', () => {
   });
 
   it('rejects with the analysis error message', async () => {
-    const slow = [stream('XX.KV05.00.BHZ', makeSignal({ n: 2400, fs: 20, noise: 1, seed: 1 }), 20)];
-    await expect(pool.run(slow, defaultProcessingProfile)).rejects.toThrow(/high band 2–10 Hz reaches 0\.45·fs = 9 Hz/);
+    // A 1 sps channel is a long-period channel: refused with the reason (20 sps now gets a fitted default band).
+    const slow = [stream('XX.KV05.00.LHZ', makeSignal({ n: 600, fs: 1, noise: 1, seed: 1 }), 1)];
+    await expect(pool.run(slow, defaultProcessingProfile)).rejects.toThrow(/long-period channel \(1 sps or slower\)/);
+  });
+
+  it('decodes an upload in a worker exactly as decodeWaveform does here, and refuses an over-limit window with 413 naming the setting', async () => {
+    const samples = Int32Array.from({ length: 6000 }, (_, i) => Math.round(300 * Math.sin(i / 9)));
+    const bytes = encodeMiniSeed3({ network: 'XX', station: 'KV01', location: '00', channel: 'HHZ', sampleRateHz: 100, startTimeUs: Date.UTC(2026, 2, 14, 9) * 1000, samples }, { encoding: 'int32' });
+    const here = decodeWaveform(bytes, { filename: 'kv01.mseed' });
+    const there = await pool.decode(bytes, { filename: 'kv01.mseed' }, defaultWindowLimits);
+    expect(there).toEqual({ ok: true, streams: here });
+    // The caller's bytes were copied, not taken.
+    expect(bytes.byteLength).toBeGreaterThan(0);
+    const csv = new TextEncoder().encode(['# stream=XX.KV01.00.HHZ', 'time,counts', '2026-03-14T09:00:00Z,1', '2026-03-14T09:00:00.01Z,2', '2026-03-14T09:00:00.02Z,3'].join('\n'));
+    expect(await pool.decode(csv, { filename: 'w.csv' }, defaultWindowLimits)).toEqual({ ok: true, streams: decodeWaveform(csv, { filename: 'w.csv' }) });
+    const small = await pool.decode(bytes, { filename: 'kv01.mseed' }, { maxSamples: 5000, maxDurationS: 3600 });
+    expect(small).toMatchObject({ ok: false, status: 413, code: 'too_large' });
+    if (!small.ok) expect(small.message).toBe('kv01.mseed: stream XX.KV01.00.HHZ holds 6 000 samples over 60.0 s; a window may hold at most 5 000 samples and 3 600 s per channel (SEISIFT_MAX_WINDOW_SAMPLES, SEISIFT_MAX_WINDOW_S)');
+    const bad = await pool.decode(new TextEncoder().encode('t_seconds,counts\n0,x\n'), { filename: 'b.csv' }, defaultWindowLimits);
+    expect(bad).toMatchObject({ ok: false, status: 422, code: 'unprocessable' });
+  });
+
+  it('computes display traces in a worker exactly as computeTraces does here', async () => {
+    const x = window(7)[0]!;
+    const input: TracesInput = {
+      channels: [{ streamId: x.id, sampleRateHz: 100, startTimeUs: x.startTimeUs, sampleCount: x.samples.length, samples: encodeSamples(x.samples) }],
+      profile: null,
+      sensitivities: [],
+      query: { points: 2000 },
+    };
+    const here = computeTraces(input);
+    const json = await pool.traces(input);
+    expect(JSON.parse(new TextDecoder().decode(json))).toEqual(JSON.parse(JSON.stringify(here)));
+    // The caller's blob is untouched (the pool sends its own copy).
+    expect(input.channels[0]!.samples.byteLength).toBeGreaterThan(0);
   });
 });

@@ -8,7 +8,7 @@ import { itemArrivals } from '@server/db/schema/supervisor';
 import { appJobs } from '@server/jobs/app-jobs';
 import { startScheduler, type PeriodicJob } from '@server/jobs/scheduler';
 import { createLogger } from '@server/logger';
-import { recordChange } from '@server/realtime/change-log';
+import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
 import { createItem, createPerson } from '@tests/setup/queue-fixtures';
 
@@ -91,7 +91,7 @@ describe("the app's periodic jobs (real MariaDB)", () => {
   it('change-log pruning removes the changes older than SEISIFT_CHANGE_LOG_KEEP_HOURS and keeps the rest', async () => {
     const db = ctx.database.db;
     const seqs: number[] = [];
-    for (let i = 0; i < 5; i++) seqs.push(await db.transaction((tx) => recordChange(tx, { resource: 'item', resourceId: 900 + i, kind: 'updated', version: 1 })));
+    for (let i = 0; i < 5; i++) seqs.push(await db.transaction((tx) => recordChange(tx, { resource: 'item', resourceId: 900 + i, kind: 'updated', version: 1, audience: itemAudience(1) })));
     const old = seqs.slice(0, 3);
     await db.update(changeLog).set({ createdAt: new Date(Date.now() - 25 * 3_600_000) }).where(inArray(changeLog.seq, old));
     const scheduler = startScheduler(appJobs(ctx), ctx.logger);

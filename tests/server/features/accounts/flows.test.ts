@@ -43,11 +43,6 @@ describe('sign-in and sessions', () => {
     expect(await auditActions(w)).toContain('auth.sign_in');
   });
 
-  it('marks the cookie Secure when the request came over https (X-Forwarded-Proto from the loopback proxy)', async () => {
-    const res = await call(w, 'POST', '/api/auth/sign-in').set('X-Forwarded-Proto', 'https').set('Origin', 'https://seisift.test').send({ email: 'analyst@kestrel.example', password: demoPassword });
-    expect(res.status).toBe(200);
-    expect(String(res.headers['set-cookie'])).toMatch(/Secure/);
-  });
 
   it('answers an unknown e-mail and a wrong password with the same generic error, and audits both', async () => {
     const unknown = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'nobody@kestrel.example', password: demoPassword });
@@ -203,30 +198,104 @@ describe('CSRF: Origin / Referer check on state-changing requests (OWASP CSRF Pr
   });
 });
 
-describe('rate limiting of sign-in (rate-limiter-flexible): 429 with Retry-After', () => {
+describe('X-Forwarded-For and -Proto are believed only from the proxies TRUST_PROXY names (default none)', () => {
+  const worlds: World[] = [];
+  afterAll(async () => {
+    for (const w of worlds) await w.close();
+  });
+  /** Signs in through a claimed proxy chain; returns the address the audit row recorded and whether the cookie is Secure. */
+  async function signInVia(w: World, forwardedFor: string) {
+    const email = 'analyst@kestrel.example';
+    const res = await call(w, 'POST', '/api/auth/sign-in').set('X-Forwarded-For', forwardedFor).set('X-Forwarded-Proto', 'https').set('Origin', 'https://seisift.test').send({ email, password: demoPassword });
+    expect(res.status).toBe(200);
+    const rows = await w.ctx.database.db.select().from(auditLog).where(eq(auditLog.action, 'auth.sign_in'));
+    return { ip: rows[rows.length - 1]?.ipAddress, secure: /Secure/.test(String(res.headers['set-cookie'])) };
+  }
+
+  it('by default ignores them: the address is the socket peer (loopback here) and the cookie is not Secure', async () => {
+    const w = await createWorld();
+    worlds.push(w);
+    const seen = await signInVia(w, '203.0.113.7');
+    expect(seen.ip).toMatch(/^(::ffff:)?127\.0\.0\.1$|^::1$/);
+    expect(seen.secure).toBe(false);
+  });
+
+  it('TRUST_PROXY=loopback: a proxy on this machine speaks for the client (its address, https)', async () => {
+    const w = await createWorld({ TRUST_PROXY: 'loopback' });
+    worlds.push(w);
+    const seen = await signInVia(w, '203.0.113.7');
+    expect(seen.ip).toBe('203.0.113.7');
+    expect(seen.secure).toBe(true);
+  });
+
+  it('TRUST_PROXY naming another address: the loopback peer is not that proxy, so its headers are ignored', async () => {
+    const w = await createWorld({ TRUST_PROXY: '10.1.2.3, 192.168.0.0/16' });
+    worlds.push(w);
+    const seen = await signInVia(w, '203.0.113.7');
+    expect(seen.ip).not.toBe('203.0.113.7');
+    expect(seen.secure).toBe(false);
+  });
+});
+
+describe('sign-in throttling (OWASP Authentication Cheat Sheet, "Login Throttling"; rate-limiter-flexible)', () => {
   let w: World;
   beforeAll(async () => {
-    w = await createWorld({ SEISIFT_SIGNIN_MAX_PER_ACCOUNT: '3', SEISIFT_SIGNIN_MAX_PER_ADDRESS: '8', SEISIFT_SIGNIN_WINDOW_S: '600' });
+    // A proxy on loopback speaks for the client, so each request can come "from" its own address.
+    w = await createWorld({
+      TRUST_PROXY: 'loopback',
+      SEISIFT_SIGNIN_MAX_PER_ACCOUNT_ADDRESS: '3',
+      SEISIFT_SIGNIN_MAX_PER_ADDRESS: '8',
+      SEISIFT_SIGNIN_WINDOW_S: '600',
+      SEISIFT_SIGNIN_SLOWDOWN_AFTER: '2',
+      SEISIFT_SIGNIN_DELAY_MS: '150',
+      SEISIFT_SIGNIN_MAX_DELAY_MS: '600',
+    });
   });
   afterAll(async () => {
     await w.close();
   });
+  const signIn = (email: string, password: string, from: string) => call(w, 'POST', '/api/auth/sign-in').set('X-Forwarded-For', from).send({ email, password });
 
-  it('limits failed attempts per account, even with the right password afterwards', async () => {
-    for (let i = 0; i < 3; i++) expect((await call(w, 'POST', '/api/auth/sign-in').send({ email: 'operator@kestrel.example', password: `wrong-${i}` })).status).toBe(401);
-    const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: 'operator@kestrel.example', password: demoPassword });
+  it('refuses the account from the address that guessed wrong (429, even with the right password), while the owner elsewhere signs in', async () => {
+    const u = await w.freshUser(['operator']);
+    for (let i = 0; i < 3; i++) expect((await signIn(u.email, `wrong-${i}`, '198.51.100.1')).status).toBe(401);
+    const res = await signIn(u.email, u.password, '198.51.100.1');
     expect(res.status).toBe(429);
     expect(res.body.error.code).toBe('rate_limited');
     const retry = Number(res.headers['retry-after']);
     expect(retry).toBeGreaterThan(0);
     expect(retry).toBeLessThanOrEqual(600);
+    // The owner, from another address, is not refused (only slowed down).
+    const owner = await signIn(u.email, u.password, '198.51.100.2');
+    expect(owner.status).toBe(200);
+    expect(sessionCookieFrom(owner)).not.toBeNull();
+  });
+
+  it('slows down every attempt on an account after its free failures, from any address, doubling to the cap; never refuses the owner', async () => {
+    const u = await w.freshUser(['analyst']);
+    const elapsed: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      const t0 = performance.now();
+      // Each guess from a fresh address: neither the address nor the account-and-address limit applies.
+      expect((await signIn(u.email, `wrong-${i}`, `203.0.113.${10 + i}`)).status).toBe(401);
+      elapsed.push(performance.now() - t0);
+    }
+    const rows = await w.ctx.database.db.select().from(auditLog).where(eq(auditLog.action, 'auth.sign_in_failed'));
+    const delays = rows.filter((r) => r.targetId === u.id).map((r) => (r.details as { delayMs: number }).delayMs);
+    // 2 free failures, then 150 · 2^k ms capped at 600 ms (progressiveDelayMs).
+    expect(delays).toEqual([0, 0, 150, 300, 600, 600]);
+    delays.forEach((d, i) => expect(elapsed[i]).toBeGreaterThanOrEqual(d - 5));
+    const t0 = performance.now();
+    const owner = await signIn(u.email, u.password, '203.0.113.99');
+    expect(owner.status).toBe(200);
+    expect(performance.now() - t0).toBeGreaterThanOrEqual(595);
   });
 
   it('limits every attempt per address, whichever account is tried', async () => {
     let last = 0;
     let sawLimit = false;
     for (let i = 0; i < 10; i++) {
-      const res = await call(w, 'POST', '/api/auth/sign-in').send({ email: `someone-${i}@kestrel.example`, password: 'whatever-it-is' });
+      const res = await signIn(`someone-${i}@kestrel.example`, 'whatever-it-is', '192.0.2.50');
       last = res.status;
       if (res.status === 429) {
         sawLimit = true;
@@ -236,6 +305,8 @@ describe('rate limiting of sign-in (rate-limiter-flexible): 429 with Retry-After
     }
     expect(sawLimit).toBe(true);
     expect(last).toBe(429);
+    // Another address is not affected.
+    expect((await signIn('analyst@kestrel.example', demoPassword, '192.0.2.51')).status).toBe(200);
   });
 });
 
@@ -386,6 +457,33 @@ describe('forgot password (1 h, one-time; using it ends every other session)', (
     const res = await call(w, 'POST', '/api/auth/reset-password').send({ token, password: 'the-new-password-2' });
     expect(res.status).toBe(410);
     expect(res.body.error.code).toBe('token_expired');
+  });
+
+  it('answers a real account and an unknown address in the same time (medians of 12 interleaved calls each)', async () => {
+    const t = await createWorld({ SEISIFT_SIGNIN_MAX_PER_ACCOUNT_ADDRESS: '200', SEISIFT_SIGNIN_MAX_PER_ADDRESS: '1000' });
+    try {
+      const known = await t.freshUser(['analyst']);
+      const times: Record<'known' | 'unknown', number[]> = { known: [], unknown: [] };
+      for (let i = 0; i < 12; i++) {
+        for (const kind of ['known', 'unknown'] as const) {
+          const email = kind === 'known' ? known.email : `ghost-${i}@kestrel.example`;
+          const t0 = performance.now();
+          const res = await call(t, 'POST', '/api/auth/forgot-password').send({ email });
+          times[kind].push(performance.now() - t0);
+          expect(res.status).toBe(202);
+          // Let the work that follows a known account's answer (token, mail) finish before the next call.
+          await new Promise((r) => setTimeout(r, 120));
+        }
+      }
+      const median = (v: number[]) => [...v].sort((a, b) => a - b)[v.length >> 1] ?? NaN;
+      const [k, u] = [median(times.known), median(times.unknown)];
+      // Generous bound: before the answer went first, a real account took 127–202 ms and an unknown one 5–49 ms.
+      expect(Math.abs(k - u), `medians: known ${k.toFixed(1)} ms, unknown ${u.toFixed(1)} ms`).toBeLessThan(Math.max(15, 0.5 * Math.min(k, u)));
+      // The mail still goes out, after the answer.
+      expect(await latestMailTo(t, known.email)).not.toBeNull();
+    } finally {
+      await t.close();
+    }
   });
 
   it('answers an unknown address exactly like a known one and sends nothing', async () => {

@@ -226,7 +226,7 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     expect(ana.body.error.code).toBe('forbidden');
   });
 
-  it('a station outside the operator\'s scope: 403 naming the stream; unknown station: 422 naming it; good files of the request still succeed', async () => {
+  it('a station outside the operator\'s scope and an unregistered one: the same 403 naming the stream; good files of the request still succeed', async () => {
     const kv01File = encodeMiniSeed3(
       { network: 'XX', station: 'KV01', location: '00', channel: 'HHZ', sampleRateHz: 100, startTimeUs: Date.UTC(2026, 2, 14, 11, 0, 0) * 1000, samples: wave(4000, 3) },
       { encoding: 'int32' },
@@ -245,12 +245,18 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     expect(mixed.status).toBe(201);
     const files = uploadResponseSchema.parse(mixed.body).files;
     expect(files.map((f) => [f.filename, f.status, f.httpStatus])).toEqual([
-      ['kv09.mseed', 'rejected', 422],
+      ['kv09.mseed', 'rejected', 403],
       ['notes.txt', 'rejected', 422],
       ['kv01.mseed', 'created', 201],
     ]);
-    expect(files[0]?.message).toContain('stream XX.KV09.00.HHZ');
-    expect(files[0]?.message).toContain('not registered');
+    expect(files[0]?.message).toBe('kv09.mseed: stream XX.KV09.00.HHZ: station XX.KV09 is not registered or is not one of your stations');
+    // No existence oracle: someone else's registered station gets the very same words.
+    const scopeOutcome = uploadResponseSchema.parse(scope.body).files[0];
+    expect(scopeOutcome?.message).toBe('kv01.mseed: stream XX.KV01.00.HHZ: station XX.KV01 is not registered or is not one of your stations');
+    expect([scopeOutcome?.httpStatus, scopeOutcome?.code]).toEqual([files[0]?.httpStatus, files[0]?.code]);
+    // Nor a duplicate oracle: the same bytes, now stored for KV01, answer the other operator as before.
+    const again = uploadResponseSchema.parse((await post(otherOperator).attach('files', Buffer.from(kv01File), 'kv01.mseed')).body).files[0];
+    expect(again).toEqual(scopeOutcome);
     expect(files[1]?.message).toMatch(/^notes\.txt: /);
   });
 
@@ -294,7 +300,7 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
 
     const other = await request(app).post('/api/uploads').set('Authorization', `Bearer ${secret}`).attach('files', file(11, 'KV02'), 'kv02.mseed');
     expect(other.status).toBe(403);
-    expect(other.body.files[0].message).toContain('stream XX.KV02.00.HHZ: this ingest token is for another station');
+    expect(other.body.files[0].message).toContain("stream XX.KV02.00.HHZ: station XX.KV02 is not this ingest token's station");
 
     const wrong = await request(app).post('/api/uploads').set('Authorization', 'Bearer ssi_not-a-token').attach('files', file(12), 'x.mseed');
     expect(wrong.status).toBe(401);

@@ -187,11 +187,28 @@ describe('station registry API (real MariaDB)', () => {
     expect(kv04p?.status).toBe('changed');
     expect(kv04p?.fields).toEqual([{ field: 'name', from: 'Kestrel Valley pumping station', to: 'Kestrel Valley pump house' }]);
     expect(kv04p?.channels[0]?.fields).toEqual([{ field: 'sampleRateHz', from: 200, to: 250 }]);
-    // An operator not assigned to KV04 may preview but not apply.
+    // An operator not assigned to KV04 may preview but sees nothing stored for it (status refused);
+    // applying leaves it out, so it stays as it was.
     const opPreview = previewSchema.parse((await send('post', operator, '/api/stations/import/preview').attach('file', Buffer.from(edited), 'xx.xml')).body);
-    expect(opPreview.stations.find((s) => s.station === 'XX.KV04')?.allowed).toBe(false);
+    const opKv04 = opPreview.stations.find((s) => s.station === 'XX.KV04');
+    expect(opKv04).toMatchObject({ status: 'refused', allowed: false, fields: [], channels: [] });
+    expect(JSON.stringify(opPreview)).not.toContain('Kestrel Valley pumping station');
     const opApply = await send('post', operator, '/api/stations/import/apply').field('previewHash', opPreview.previewHash).attach('file', Buffer.from(edited), 'xx.xml');
-    expect(opApply.status).toBe(403);
+    expect(opApply.status).toBe(200);
+    const kv04After = previewSchema.parse((await send('post', admin, '/api/stations/import/preview').attach('file', Buffer.from(edited), 'xx.xml')).body);
+    expect(kv04After.stations.find((s) => s.station === 'XX.KV04')?.status).toBe('changed');
+    // The same document naming an unregistered station instead: the operator's answers are the
+    // same but for the code (no existence oracle), and nothing is registered; an admin sees it as new.
+    const unregistered = edited.replace('code="KV04"', 'code="KV97"');
+    const opNew = previewSchema.parse((await send('post', operator, '/api/stations/import/preview').attach('file', Buffer.from(unregistered), 'xx.xml')).body);
+    const opKv97 = opNew.stations.find((s) => s.station === 'XX.KV97');
+    expect({ ...opKv97, station: 'XX.KV04' }).toEqual(opKv04);
+    expect(opNew.counts).toEqual(opPreview.counts);
+    const opApplyNew = await send('post', operator, '/api/stations/import/apply').field('previewHash', opNew.previewHash).attach('file', Buffer.from(unregistered), 'xx.xml');
+    expect(opApplyNew.status).toBe(opApply.status);
+    expect(JSON.stringify(opApplyNew.body).replaceAll('KV97', 'KV04')).toBe(JSON.stringify(opApply.body));
+    const adminNew = previewSchema.parse((await send('post', admin, '/api/stations/import/preview').attach('file', Buffer.from(unregistered), 'xx.xml')).body);
+    expect(adminNew.stations.find((s) => s.station === 'XX.KV97')?.status).toBe('new');
   });
 
   it('StationXML that is not well-formed: 422 naming the problem', async () => {

@@ -11,7 +11,7 @@ export const importPreviewSchema = z.object({
     z.object({
       station: z.string(),
       stationId: z.number().nullable(),
-      status: z.enum(['new', 'changed', 'unchanged', 'invalid']),
+      status: z.enum(['new', 'changed', 'unchanged', 'invalid', 'refused']),
       fields: z.array(diffSchema),
       channels: z.array(z.object({ streamId: z.string(), status: z.enum(['new', 'changed', 'unchanged', 'skipped', 'invalid']), fields: z.array(diffSchema), message: z.string().optional() })),
       message: z.string().optional(),

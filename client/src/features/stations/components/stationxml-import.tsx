@@ -4,7 +4,7 @@ import { Button } from '@client/components/ui/button';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
 import { previewStationXml, useApplyStationXml, type ImportPreview } from '@client/features/stations/api/import-stationxml';
 
-const tone: Record<string, BadgeTone> = { new: 'ok', changed: 'info', unchanged: 'neutral', skipped: 'neutral', invalid: 'danger' };
+const tone: Record<string, BadgeTone> = { new: 'ok', changed: 'info', unchanged: 'neutral', skipped: 'neutral', invalid: 'danger', refused: 'danger' };
 
 const show = (v: unknown) => (v === null || v === undefined ? '—' : typeof v === 'number' ? String(v) : typeof v === 'string' ? v : JSON.stringify(v));
 
@@ -38,7 +38,8 @@ export function StationXmlImport({ onDone }: { onDone: () => void }) {
   };
 
   const changes = preview ? preview.counts.newStations + preview.counts.changedStations : 0;
-  const refused = preview ? preview.stations.filter((s) => !s.allowed) : [];
+  // Stations refused outright (not yours to see) are left out by the server; only visible ones you may not change block the apply.
+  const refused = preview ? preview.stations.filter((s) => !s.allowed && s.status !== 'refused') : [];
 
   return (
     <section aria-labelledby="import-title" className="flex flex-col gap-3 rounded-sm border border-line bg-surface px-4 py-3">
@@ -78,7 +79,7 @@ export function StationXmlImport({ onDone }: { onDone: () => void }) {
                     <Td className="font-mono font-semibold">{s.station}</Td>
                     <Td>
                       <Badge tone={tone[s.status] ?? 'neutral'}>{s.status}</Badge>
-                      {!s.allowed ? <span className="block text-sm text-danger">you may not change this station</span> : null}
+                      {!s.allowed && s.status !== 'refused' ? <span className="block text-sm text-danger">you may not change this station</span> : null}
                     </Td>
                     <Td className="text-sm">{s.message ?? (s.fields.length ? s.fields.map((f) => `${f.field}: ${show(f.from)} → ${show(f.to)}`).join('; ') : '—')}</Td>
                   </Tr>,
