@@ -7,7 +7,7 @@ export const queryKeys = {
   /** The signed-in person (GET /api/auth/session). */
   session: ['auth', 'me'] as const,
   /** A one-time token's check (password reset or invitation). */
-  tokenCheck: (kind: string, token: string) => ['auth', 'token-check', kind, token] as const,
+  tokenCheck: (kind: string, token: string | null) => ['auth', 'token-check', kind, token] as const,
   /** Who is signed in (GET /api/auth/me) as the queue screens read it. */
   queueMe: ['me'] as const,
   queue: {

@@ -158,7 +158,7 @@ export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[])
       needLists = true;
       if (c.kind === 'created') liveArrivals.add(c.id);
     }
-    const open = qc.getQueryData<{ version: number }>(['queue', 'item', c.id]);
+    const open = qc.getQueryData<{ version: number }>(queryKeys.queue.item(c.id));
     if (open && open.version < c.version) void qc.invalidateQueries({ queryKey: queryKeys.queue.item(c.id) });
   }
   if (needLists) scheduleListRefetch(qc);

@@ -30,6 +30,7 @@ import { formatAge, useNow } from './age';
 import { isTypingTarget, KeyHelp, type KeyBinding } from '@client/components/ui/key-help';
 import { UtcTimeInput } from '@client/components/ui/utc-time-input';
 import { EventGroupMembers } from '@client/components/event-group-members';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
 const ROW_PX = 44;
@@ -257,7 +258,7 @@ export function QueueScreen() {
         <p className="text-sm text-ink-muted">
           {total === undefined ? 'Loading…' : `${total.toLocaleString('en')} item${total === 1 ? '' : 's'} in view`} · press <Kbd>?</Kbd> for keys
         </p>
-        <Button size="sm" variant="quiet" className="ml-auto" onClick={() => void qc.invalidateQueries({ queryKey: ['queue', 'list'] })}>
+        <Button size="sm" variant="quiet" className="ml-auto" onClick={() => void qc.invalidateQueries({ queryKey: queryKeys.queue.lists })}>
           Reload list
         </Button>
       </header>

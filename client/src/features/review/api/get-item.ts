@@ -3,11 +3,11 @@ import { z } from 'zod';
 import { channelResultSchema, storedAnalysisSchema } from '@shared/schemas/analysis';
 import { queueItemDetailSchema, tracesResponseSchema } from '@shared/schemas/queue';
 import { apiRequest } from '@client/lib/api-client';
-import { queueKeys } from '@client/api/queue/get-queue';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** Query options of one item's detail (refetched by the live channel when its version moves on). */
 export function itemOptions(id: number) {
-  return queryOptions({ queryKey: queueKeys.item(id), queryFn: ({ signal }) => apiRequest(queueItemDetailSchema, `/api/queue/items/${id}`, { signal }), staleTime: Infinity });
+  return queryOptions({ queryKey: queryKeys.queue.item(id), queryFn: ({ signal }) => apiRequest(queueItemDetailSchema, `/api/queue/items/${id}`, { signal }), staleTime: Infinity });
 }
 
 /** One item's detail. */
@@ -24,7 +24,7 @@ export function useTraces(id: number, from: number | null, to: number | null, po
   if (from !== null) qs.set('from', from.toFixed(3));
   if (to !== null) qs.set('to', to.toFixed(3));
   return useQuery({
-    queryKey: queueKeys.traces(id, from, to, points),
+    queryKey: queryKeys.queue.traces(id, from, to, points),
     queryFn: ({ signal }) => apiRequest(tracesResponseSchema, `/api/queue/items/${id}/traces?${qs.toString()}`, { signal }),
     staleTime: Infinity,
     placeholderData: keepPreviousData,

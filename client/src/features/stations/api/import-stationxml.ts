@@ -1,6 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 const diffSchema = z.object({ field: z.string(), from: z.unknown(), to: z.unknown() });
 
@@ -39,6 +40,6 @@ export function useApplyStationXml() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ file, previewHash }: { file: File; previewHash: string }) => send('/api/stations/import/apply', file, previewHash),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.all }),
   });
 }

@@ -13,18 +13,19 @@ import {
   type StationUpdateInput,
 } from '@shared/schemas/station';
 import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** A station with its profile parsed. */
 export const stationDetailClientSchema = stationDetailSchema.extend({ profile: processingProfileSchema });
 
 /** GET /api/stations. */
 export const stationsQuery = () =>
-  queryOptions({ queryKey: ['stations'], queryFn: () => apiRequest(z.object({ stations: z.array(stationSummarySchema) }), '/api/stations') });
+  queryOptions({ queryKey: queryKeys.stations.all, queryFn: () => apiRequest(z.object({ stations: z.array(stationSummarySchema) }), '/api/stations') });
 
 /** GET /api/stations/:id. */
 export const stationQuery = (id: number) =>
   queryOptions({
-    queryKey: ['stations', id],
+    queryKey: queryKeys.stations.detail(id),
     queryFn: () => apiRequest(z.object({ station: stationDetailClientSchema, baseline: baselineViewSchema }), `/api/stations/${id}`),
   });
 
@@ -56,11 +57,11 @@ export type StationHealthView = z.infer<typeof stationHealthSchema>;
 
 /** GET /api/stations/:id/health. */
 export const stationHealthQuery = (id: number, days = 30) =>
-  queryOptions({ queryKey: ['stations', id, 'health', days], queryFn: () => apiRequest(stationHealthSchema, `/api/stations/${id}/health?days=${days}`) });
+  queryOptions({ queryKey: queryKeys.stations.health(id, days), queryFn: () => apiRequest(stationHealthSchema, `/api/stations/${id}/health?days=${days}`) });
 
 /** GET /api/stations/:id/tokens. */
 export const stationTokensQuery = (id: number) =>
-  queryOptions({ queryKey: ['stations', id, 'tokens'], queryFn: () => apiRequest(z.object({ tokens: z.array(tokenViewSchema) }), `/api/stations/${id}/tokens`) });
+  queryOptions({ queryKey: queryKeys.stations.tokens(id), queryFn: () => apiRequest(z.object({ tokens: z.array(tokenViewSchema) }), `/api/stations/${id}/tokens`) });
 
 /** Hook: the station list. */
 export const useStations = () => useQuery(stationsQuery());
@@ -76,7 +77,7 @@ export function useSaveProfile(id: number) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (profile: ProcessingProfile) => apiRequest(z.object({ profile: processingProfileSchema }), `/api/stations/${id}/profile`, { method: 'PUT', body: profile }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations', id] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.detail(id) }),
   });
 }
 
@@ -85,7 +86,7 @@ export function useUpdateStation(id: number) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (patch: StationUpdateInput) => apiRequest(z.object({ station: stationDetailClientSchema }), `/api/stations/${id}`, { method: 'PATCH', body: patch }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.all }),
   });
 }
 
@@ -94,7 +95,7 @@ export function useCreateToken(id: number) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (label: string) => apiRequest(tokenCreatedSchema, `/api/stations/${id}/tokens`, { method: 'POST', body: { label } }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations', id, 'tokens'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.tokens(id) }),
   });
 }
 
@@ -103,7 +104,7 @@ export function useRevokeToken(id: number) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (tokenId: number) => apiRequest(z.object({ token: tokenViewSchema }), `/api/stations/${id}/tokens/${tokenId}/revoke`, { method: 'POST' }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations', id, 'tokens'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.tokens(id) }),
   });
 }
 
@@ -111,4 +112,4 @@ export function useRevokeToken(id: number) {
 export const meSchema = z.object({ user: z.object({ roles: z.array(roleSchema), stationIds: z.array(z.number()) }) });
 
 /** Hook: who is signed in (roles and assigned stations); only used to hide controls, the server decides. */
-export const useMe = () => useQuery({ queryKey: ['stations', 'me'], queryFn: () => apiRequest(meSchema, '/api/auth/me'), staleTime: 60_000, retry: false });
+export const useMe = () => useQuery({ queryKey: queryKeys.stations.me, queryFn: () => apiRequest(meSchema, '/api/auth/me'), staleTime: 60_000, retry: false });
