@@ -122,4 +122,33 @@ describe("the app's periodic jobs (real MariaDB)", () => {
     }
     expect(await arrivalsOf()).toBe(1);
   });
+
+  it('the reads that used to run the arrivals catch-up leave every table as it was (CHECKSUM TABLE); the export adds only its audit row', async () => {
+    const db = ctx.database.db;
+    const windowStart = new Date('2026-05-03T10:00:00Z');
+    const id = await createItem(db, { station: 'KV02', withSamples: true, burstAtS: 50, windowStart });
+    const supervisor = await createPerson(db, { roles: ['supervisor'] });
+    const app = createApp(ctx, { serveClient: false });
+    // Every table's live checksum (MariaDB CHECKSUM TABLE: a checksum of all its rows).
+    const checksums = async (): Promise<Record<string, unknown>> => {
+      const [tables] = await ctx.database.pool.query('SHOW TABLES');
+      const names = (tables as Array<Record<string, string>>).map((r) => Object.values(r)[0] ?? '');
+      const [rows] = await ctx.database.pool.query(`CHECKSUM TABLE ${names.map((n) => `\`${n}\``).join(', ')}`);
+      return Object.fromEntries((rows as Array<{ Table: string; Checksum: unknown }>).map((r) => [r.Table.split('.').pop() ?? r.Table, r.Checksum]));
+    };
+    // Sign-in wrote its session and audit rows above; from here on only reads.
+    await request(app).get('/api/auth/me').set('Cookie', supervisor.cookie).expect(200);
+    const before = await checksums();
+    const period = 'from=2026-05-03T00:00:00Z&to=2026-05-04T00:00:00Z';
+    await request(app).get(`/api/supervisor/candidate-events?${period}`).set('Cookie', supervisor.cookie).expect(200);
+    await request(app).get('/api/supervisor/review').set('Cookie', supervisor.cookie).expect(200);
+    await request(app).get(`/api/queue/items/${id}`).set('Cookie', supervisor.cookie).expect(200);
+    await request(app).get('/api/queue').set('Cookie', supervisor.cookie).expect(200);
+    expect(await checksums()).toEqual(before);
+    // The export is a read of the catalogue; taking data out is audited (one row), nothing else moves.
+    await request(app).get(`/api/supervisor/export?${period}&format=csv`).set('Cookie', supervisor.cookie).expect(200);
+    const after = await checksums();
+    const changed = Object.keys(after).filter((t) => after[t] !== before[t]);
+    expect(changed).toEqual(['audit_log']);
+  });
 });
