@@ -3,7 +3,7 @@ import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
 import { tokenCreateSchema, type TokenCreated } from '@shared/schemas/station';
 import { useCreateToken, useRevokeToken, useStationTokens } from '@client/features/stations/api/stations';
 import { ApiError } from '@client/lib/api-client';
@@ -94,9 +94,7 @@ export function TokensPanel({ stationId, stationKey }: { stationId: number; stat
                 <Th>Created (UTC)</Th>
                 <Th>Last used (UTC)</Th>
                 <Th>State</Th>
-                <Th>
-                  <span className="sr-only">Actions</span>
-                </Th>
+                <ThActions />
               </Tr>
             </THead>
             <TBody>
