@@ -274,14 +274,15 @@ export function magnitudeFor(
 }
 
 /**
- * The whole chain: picks (the given ones, or automatic suggestions when none are given), location,
+ * The whole chain: picks (the given ones, or automatic suggestions when `givenPicks` is null), location,
  * amplitudes and ML. Notes say where the picks came from, what was left out and the caution.
  * @throws RangeError for a pick on an unknown station or bad model/options (the caller's error).
  */
 export function solveEvent(streams: readonly ChainStream[], stations: readonly ChainStation[], givenPicks: readonly ChainPick[] | null, options: ChainOptions): EventSolution {
   const notes: string[] = [];
-  const pickSource = givenPicks && givenPicks.length > 0 ? 'manual' : 'automatic';
-  const picks = givenPicks && givenPicks.length > 0 ? [...givenPicks] : automaticPicksForStreams(streams, options.profile);
+  const picks = givenPicks ? [...givenPicks] : automaticPicksForStreams(streams, options.profile);
+  const pickSource = picks.some((p) => p.evaluationMode === 'manual') ? 'manual' : 'automatic';
+  if (pickSource === 'manual' && picks.some((p) => p.evaluationMode === 'automatic')) throw new RangeError("analysts' picks and automatic picks are never mixed in one location");
   if (pickSource === 'automatic') notes.push(`${picks.length} automatic pick${picks.length === 1 ? '' : 's'} (suggestions for an analyst to confirm)`);
   if (options.velocityModel.isDefault) notes.push(`velocity model '${options.velocityModel.name}' is Seisift's placeholder: replace it with the network's own model`);
   const loc = locatePicks(stations, picks, options.velocityModel, options);
