@@ -185,6 +185,8 @@ export const eventSummarySchema = z.object({
   evaluationMode: z.enum(['manual', 'automatic']).nullable(),
   locationRefusal: z.string().nullable(),
   candidateEventId: z.number().nullable(),
+  /** The queue items (windows) the event holds: each opens its member window. */
+  memberItemIds: z.array(z.number()),
   version: z.number(),
 });
 

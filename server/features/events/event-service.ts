@@ -511,7 +511,7 @@ export async function listEvents(db: Database, q: { from?: Date | undefined; to?
     .limit(q.limit);
   if (rows.length === 0) return [];
   const mem = await db
-    .select({ eventId: eventMembers.eventId, stationId: queueItems.stationId })
+    .select({ eventId: eventMembers.eventId, stationId: queueItems.stationId, itemId: eventMembers.itemId })
     .from(eventMembers)
     .innerJoin(queueItems, eq(queueItems.id, eventMembers.itemId))
     .where(and(inArray(eventMembers.eventId, rows.map((r) => r.e.id)), isNull(eventMembers.removedAt)));
@@ -519,12 +519,12 @@ export async function listEvents(db: Database, q: { from?: Date | undefined; to?
   for (const { e, o, m } of rows) {
     const st = [...new Set(mem.filter((x) => x.eventId === e.id).map((x) => x.stationId))];
     if (scope !== 'all' && !st.some((s) => scope.includes(s))) continue;
-    out.push(summary(e, o, m, st.length));
+    out.push(summary(e, o, m, st.length, mem.filter((x) => x.eventId === e.id).map((x) => x.itemId)));
   }
   return out;
 }
 
-function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$inferSelect | null, m: typeof eventMagnitudes.$inferSelect | null, stationCount: number): EventSummary {
+function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$inferSelect | null, m: typeof eventMagnitudes.$inferSelect | null, stationCount: number, memberItemIds: number[]): EventSummary {
   return {
     id: e.id,
     network: e.network,
@@ -548,6 +548,7 @@ function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$i
     evaluationMode: o ? (o.evaluationMode === 'manual' ? 'manual' : 'automatic') : null,
     locationRefusal: e.locationRefusal,
     candidateEventId: e.candidateEventId,
+    memberItemIds,
     version: e.version,
   };
 }
@@ -595,7 +596,7 @@ export async function getEventDetail(db: Database, eventId: number, scope: 'all'
   const manual = picks.filter((p) => p.evaluationMode === 'manual');
   return {
     caution: EVENT_CAUTION,
-    event: summary(e, o, m, activeStations.length),
+    event: summary(e, o, m, activeStations.length, members.filter((x) => x.removedAt === null).map((x) => x.itemId)),
     members: members.map((x) => ({ itemId: x.itemId, station: `${x.network}.${x.code}`, stationId: x.stationId, source: x.source, removed: x.removedAt !== null, windowStart: x.windowStart.toISOString() })),
     origin: o
       ? {
@@ -626,4 +627,26 @@ export async function getEventDetail(db: Database, eventId: number, scope: 'all'
     magnitude: m ? { type: m.type, value: m.value, uncertainty: m.uncertainty, stationCount: m.stationCount, method: m.method, evaluationMode: m.evaluationMode === 'manual' ? 'manual' : 'automatic' } : null,
     origins: origins.map((x) => ({ id: x.id, time: iso(x.timeUs), latitude: x.latitude, longitude: x.longitude, depthKm: x.depthKm, rmsS: x.rmsS, evaluationMode: x.evaluationMode, createdAt: x.createdAt.toISOString(), preferred: x.id === e.preferredOriginId })),
   };
+}
+
+/** Which event (if any) holds each item, among `itemIds` (active members only). */
+export async function eventMembershipOf(db: DbOrTx, itemIds: readonly number[]): Promise<Map<number, number>> {
+  if (itemIds.length === 0) return new Map();
+  const rows = await db
+    .select({ itemId: eventMembers.itemId, eventId: eventMembers.eventId })
+    .from(eventMembers)
+    .where(and(inArray(eventMembers.itemId, [...itemIds]), isNull(eventMembers.removedAt)))
+    .orderBy(asc(eventMembers.eventId));
+  return new Map(rows.map((r) => [r.itemId, r.eventId]));
+}
+
+/** Ids of the events whose first arrival lies in [from, to) and whose own evaluation status is one of `statuses`. */
+export async function eventIdsWithStatus(db: DbOrTx, period: { from: Date; to: Date }, statuses: readonly string[]): Promise<number[]> {
+  if (statuses.length === 0) return [];
+  const rows = await db
+    .select({ id: seismicEvents.id })
+    .from(seismicEvents)
+    .where(and(gte(seismicEvents.firstArrivalAt, period.from), lt(seismicEvents.firstArrivalAt, period.to), inArray(seismicEvents.evaluationStatus, [...statuses])))
+    .orderBy(asc(seismicEvents.firstArrivalAt));
+  return rows.map((r) => r.id);
 }
