@@ -12,8 +12,7 @@ import { windowChannels } from '@server/db/schema/uploads';
 import { users } from '@server/db/schema/users';
 import { conflict, notFound, unprocessable } from '@server/errors';
 import { recordChange } from '@server/realtime/change-log';
-import { automaticPicks } from '@server/seismo/auto-picks';
-import { solveEvent, type ChainAmplitude, type ChainPick, type ChainStation, type ChainStream } from '@server/seismo/event-chain';
+import { automaticPicksForStreams, solveEvent, type ChainAmplitude, type ChainPick, type ChainStation, type ChainStream } from '@server/seismo/event-chain';
 import { responseFromSensitivity, type ResponseResult } from '@server/seismo/instrument-response';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import { networkSettings } from './event-settings';
@@ -91,17 +90,36 @@ async function memberResponses(db: DbOrTx, members: readonly Member[]): Promise<
   return out;
 }
 
-/** The automatic picks of some members' windows, stored as suggestions (author none, mode automatic). */
+/**
+ * The automatic picks of some members' windows, stored as suggestions (author none, mode automatic),
+ * consistent across the network (event-chain.ts `automaticPicksForStreams`): near the event's
+ * existing automatic P picks when it has some, else near the median P of these members.
+ */
 async function storeAutomaticPicks(db: DbOrTx, eventId: number, members: readonly Member[], now: Date): Promise<void> {
+  if (members.length === 0) return;
   const streams = await memberStreams(db, members);
-  for (const m of members) {
-    const profile: ProcessingProfile = processingProfileSchema.parse(m.profile ?? {});
-    const picks = automaticPicks(streams.filter((s) => s.itemId === m.itemId), profile);
-    if (picks.length === 0) continue;
-    await db.insert(eventPicks).values(
-      picks.map((p) => ({ eventId, itemId: m.itemId, streamId: p.streamId, phase: p.phase, timeUs: p.timeUs, uncertaintyS: p.uncertaintyS, onset: p.onset, polarity: p.polarity, evaluationMode: 'automatic', method: p.method, createdAt: now, updatedAt: now })),
-    );
-  }
+  const existing = await db.select({ timeUs: eventPicks.timeUs }).from(eventPicks).where(and(eq(eventPicks.eventId, eventId), eq(eventPicks.evaluationMode, 'automatic'), eq(eventPicks.phase, 'P')));
+  const reference = existing.length > 0 ? existing.map((p) => p.timeUs).sort((a, b) => a - b)[existing.length >> 1] : undefined;
+  // Each station's own trigger settings (its profile: band-reject filters, STA/LTA).
+  const profiles = new Map<string, ProcessingProfile>(members.map((m) => [`${m.network}.${m.code}`, processingProfileSchema.parse(m.profile ?? {})]));
+  const picks = automaticPicksForStreams(streams, (key) => profiles.get(key) ?? processingProfileSchema.parse({}), reference);
+  if (picks.length === 0) return;
+  await db.insert(eventPicks).values(
+    picks.map((p) => ({
+      eventId,
+      itemId: streams.find((s) => s.id === p.streamId)?.itemId ?? null,
+      streamId: p.streamId,
+      phase: p.phase,
+      timeUs: p.timeUs,
+      uncertaintyS: p.uncertaintyS,
+      onset: p.onset ?? null,
+      polarity: p.polarity ?? null,
+      evaluationMode: 'automatic',
+      method: p.method ?? null,
+      createdAt: now,
+      updatedAt: now,
+    })),
+  );
 }
 
 /** Locks the event row, checks the version the caller read. @throws 404, 409 */
@@ -303,6 +321,41 @@ export async function syncEventsFromGroups(deps: EventDeps, limit = 100): Promis
   }
   if (touched.length > 0) deps.notify?.();
   return touched;
+}
+
+/**
+ * An event an analyst assembles from windows (queue items) that no candidate group joined: its
+ * members, automatic picks as suggestions, then located (or refused with the reason), in one
+ * transaction with one live update.
+ * @throws AppError 404 for a missing item; 409 when one is already in an event; 422 without items
+ */
+export async function createEventFromItems(deps: EventDeps, actor: EventActor, itemIds: readonly number[]): Promise<number> {
+  const ids = [...new Set(itemIds)];
+  if (ids.length === 0) throw unprocessable('itemIds: an event needs at least one window');
+  const id = await deps.db.transaction(async (tx) => {
+    const items = await tx
+      .select({ id: queueItems.id, windowStart: queueItems.windowStart, network: stations.network })
+      .from(queueItems)
+      .innerJoin(stations, eq(stations.id, queueItems.stationId))
+      .where(inArray(queueItems.id, ids))
+      .for('update');
+    const missing = ids.filter((i) => !items.some((x) => x.id === i));
+    if (missing.length > 0) throw notFound(`Queue item ${missing.join(', ')}`);
+    const taken = await eventMembershipOf(tx, ids);
+    if (taken.size > 0) throw conflict(`Window ${[...taken.keys()].join(', ')} is already in event ${[...new Set(taken.values())].join(', ')}`);
+    const now = new Date();
+    const first = items.reduce((a, b) => (b.windowStart < a.windowStart ? b : a));
+    const [ins] = await tx.insert(seismicEvents).values({ network: first.network, firstArrivalAt: first.windowStart, version: 1, createdAt: now, updatedAt: now }).$returningId();
+    if (!ins) throw new Error('event insert returned no id');
+    await tx.insert(eventMembers).values(ids.map((itemId) => ({ eventId: ins.id, itemId, source: 'analyst', changedByUserId: actor?.id ?? null })));
+    await storeAutomaticPicks(tx, ins.id, await activeMembers(tx, ins.id), now);
+    const p = await tx.select({ t: eventPicks.timeUs }).from(eventPicks).where(and(eq(eventPicks.eventId, ins.id), eq(eventPicks.phase, 'P')));
+    if (p.length > 0) await tx.update(seismicEvents).set({ firstArrivalAt: new Date(Math.min(...p.map((x) => x.t)) / 1000) }).where(eq(seismicEvents.id, ins.id));
+    await relocateLocked(tx, ins.id, actor, now, { kind: 'created', reason: 'assembled from windows' });
+    return ins.id;
+  });
+  deps.notify?.();
+  return id;
 }
 
 /** The station ids of an event's active members (for scope checks). */
