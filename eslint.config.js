@@ -15,7 +15,7 @@ import tseslint from 'typescript-eslint';
 const features = {
   accounts: [],
   audit: ['audit.ts'],
-  events: ['candidate-events.ts'],
+  events: ['candidate-events.ts', 'event-service.ts'],
   health: [],
   ingest: [],
   queue: ['presenters.ts', 'queue-rows.ts', 'queue-traces.ts', 'queue-transitions.ts'],

@@ -13,6 +13,7 @@ import { accountRouter } from './features/accounts/account-router';
 import { adminRouter } from './features/accounts/admin-router';
 import { auditRouter } from './features/audit/router';
 import { authRouter } from './features/accounts/auth-router';
+import { eventsRouter } from './features/events/router';
 import { healthRouter } from './features/health/router';
 import { openApiRouter } from './openapi/router';
 import { queueRouter } from './features/queue/router';
@@ -51,6 +52,7 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api/audit', auditRouter(ctx));
   app.use('/api/queue', queueRouter(ctx));
   app.use('/api/supervisor', supervisorRouter(ctx));
+  app.use('/api/events', eventsRouter(ctx));
   app.use('/api/stations', stationsRouter(ctx));
   app.use('/api/uploads', uploadsRouter(ctx, opts.uploads));
   app.use('/api/openapi.json', openApiRouter(ctx));

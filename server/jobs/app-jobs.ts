@@ -1,6 +1,7 @@
 import { createSessionStore } from '@server/auth/sessions';
 import type { AppContext } from '@server/context';
 import { catchUpArrivals } from '@server/features/events/candidate-events';
+import { syncEventsFromGroups } from '@server/features/events/event-service';
 import { lapseIdleClaims } from '@server/features/queue/queue-transitions';
 import { pruneChanges } from '@server/realtime/change-log';
 import type { PeriodicJob } from './scheduler';
@@ -61,7 +62,12 @@ export function appJobs(ctx: AppContext): PeriodicJob[] {
         for (;;) {
           const n = await catchUpArrivals({ db, notify }, CATCH_UP_BATCH);
           items += n;
-          if (n < CATCH_UP_BATCH) return items > 0 ? { items } : null;
+          if (n < CATCH_UP_BATCH) {
+            // Events are built from the candidate groups here, not on a read (the catalogue export
+            // lists them; no GET writes).
+            const events = (await syncEventsFromGroups({ db, notify })).length;
+            return items > 0 || events > 0 ? { items, events } : null;
+          }
         }
       },
     },

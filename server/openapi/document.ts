@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { apiErrorBodySchema } from '@shared/api-error';
 import { accountOperations } from '@server/features/accounts/openapi';
 import { auditOperations } from '@server/features/audit/openapi';
+import { eventOperations } from '@server/features/events/openapi';
 import { healthOperations } from '@server/features/health/openapi';
 import { ingestOperations } from '@server/features/ingest/openapi';
 import { queueOperations } from '@server/features/queue/openapi';
@@ -26,6 +27,7 @@ export const apiOperations: readonly ApiOperation[] = [
   ...auditOperations,
   ...queueOperations,
   ...supervisionOperations,
+  ...eventOperations,
   ...stationOperations,
   ...ingestOperations,
   ...documentOperations,
