@@ -45,6 +45,7 @@ describe('event workbench (real server, chromium)', () => {
     const toasts = page.locator('[role="alert"], [role="status"]');
     await page
       .waitForFunction((min) => Number(document.querySelector('[data-testid="event-screen"]')?.getAttribute('data-event-version')) > min, v, { timeout: 45_000 })
+      .then(async () => console.log(await page.getByTestId('pick-status').innerText()))
       .catch(async (err: unknown) => {
         throw new Error(`event version stayed at ${v}: ${(await toasts.allInnerTexts()).join(' | ')}`, { cause: err });
       });
@@ -125,7 +126,7 @@ describe('event workbench (real server, chromium)', () => {
     expect(drawn).toMatch(/XX\.KW03\.00\.HHN:S:manual@/);
     expect(drawn).toMatch(/XX\.KW03\.00\.HHE:P:manual@/);
     await screenshot(page, 'event-workbench');
-  });
+  }, 180_000);
 
   it('moving a pick relocates: the origin on screen changes', async () => {
     const d = await detail();
@@ -149,7 +150,7 @@ describe('event workbench (real server, chromium)', () => {
     await page.getByRole('button', { name: /Relocate/ }).click();
     await waitVersionAbove(moved.event.version);
     expect((await detail()).origin?.id).not.toBe(moved.origin?.id);
-  });
+  }, 180_000);
 
   it('draws the map from the shipped outlines with no request outside the test server', async () => {
     const map = page.getByTestId('event-map');
