@@ -30,12 +30,14 @@ import { formatAge, useNow } from './age';
 import { isTypingTarget, KeyHelp, type KeyBinding } from '@client/components/ui/key-help';
 import { UtcTimeInput } from '@client/components/ui/utc-time-input';
 import { EventGroupMembers } from '@client/components/event-group-members';
+import { useEventIdsByGroup } from '@client/api/events/event-index';
+import { collapseEventGroups, type GroupedRow } from '@client/features/queue/lib/event-groups';
 
 /** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
 const ROW_PX = 44;
 
 /** Fixed column widths, px (the reasons column takes the rest), so the table fits 1280–1440 px screens. */
-const columnPx: Record<string, number | undefined> = { flag: 124, score: 52, station: 56, windowStart: 104, createdAt: 60, state: 124, group: 84 };
+const columnPx: Record<string, number | undefined> = { flag: 124, score: 52, station: 56, windowStart: 104, createdAt: 60, state: 124, group: 140 };
 
 /** Columns of figures, codes and times: IBM Plex Mono with tabular digits. */
 const monoColumns = new Set(['score', 'station', 'windowStart', 'createdAt']);
@@ -44,7 +46,8 @@ const monoColumns = new Set(['score', 'station', 'windowStart', 'createdAt']);
 export const queueKeysHelp: readonly KeyBinding[] = [
   { keys: ['J', '↓'], does: 'Next item' },
   { keys: ['K', '↑'], does: 'Previous item' },
-  { keys: ['Enter', 'O'], does: 'Open the item for review' },
+  { keys: ['Enter', 'O'], does: 'Open the item for review (a group’s row: its event)' },
+  { keys: ['X'], does: 'Show or hide the other member windows of the selected group' },
   { keys: ['C'], does: 'Claim the item and open it' },
   { keys: ['G'], does: 'Go to the top (shows new arrivals)' },
   { keys: ['?'], does: 'Show these keys' },
@@ -72,7 +75,20 @@ export function QueueScreen() {
   const action = useItemAction();
   const qc = useQueryClient();
   const now = useNow();
-  const rows = useMemo(() => list.data?.pages.flatMap((p) => p.items) ?? [], [list.data]);
+  const loadedRows = useMemo(() => list.data?.pages.flatMap((p) => p.items) ?? [], [list.data]);
+  // One row per event group; its other members beneath it on demand (issue 18).
+  const [expanded, setExpanded] = useState<ReadonlySet<number>>(() => new Set());
+  const grouped = useMemo(() => collapseEventGroups(loadedRows, expanded), [loadedRows, expanded]);
+  const rows = useMemo(() => grouped.map((g) => g.row), [grouped]);
+  const roleOf = useMemo(() => new Map<number, GroupedRow<QueueRow>>(grouped.map((g) => [g.row.id, g])), [grouped]);
+  const mayViewEvents = can(me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null, 'event.view');
+  const eventIds = useEventIdsByGroup(mayViewEvents && loadedRows.some((r) => r.candidateEvent !== null));
+  const toggleGroup = useCallback((g: number) => setExpanded((s) => {
+    const next = new Set(s);
+    if (next.has(g)) next.delete(g);
+    else next.add(g);
+    return next;
+  }), []);
   const counts = list.data?.pages[0]?.counts;
   const total = list.data?.pages[0]?.total;
   const [selectedId, setSelectedId] = useState<number | null>(null);
@@ -133,21 +149,53 @@ export function QueueScreen() {
         cell: (c) => {
           const g = c.row.original.candidateEvent;
           if (!g) return <span className="text-ink-muted">—</span>;
+          const here = roleOf.get(c.row.original.id);
+          if (here?.role === 'member') return <span className="pl-3 text-xs text-ink-muted">↳ member of group #{g.id}</span>;
+          const eventId = eventIds.data?.get(g.id);
+          const open = expanded.has(g.id);
           return (
-            <button
-              type="button"
-              data-group={g.id}
-              className="rounded-xs border border-line-strong px-1 text-left text-xs leading-tight hover:bg-raised"
-              title={`Candidate event #${g.id}: first triggers at ${g.stationCount} stations within the allowed time. Show its members.`}
-              onClick={(e) => {
-                e.stopPropagation();
-                setGroupOpen(g.id);
-              }}
-            >
-              group #{g.id}
-              <br />
-              {g.stationCount} stations
-            </button>
+            <span className="flex items-center gap-1 text-xs leading-tight" data-group={g.id}>
+              {eventId !== undefined ? (
+                <a
+                  href={`${paths.event.href}/${eventId}`}
+                  className="rounded-xs border border-accent px-1 font-semibold text-accent-ink hover:bg-raised"
+                  title={`Open event ${eventId} on the event screen: ${g.stationCount} stations`}
+                  onClick={(e) => {
+                    e.preventDefault();
+                    e.stopPropagation();
+                    void navigate(`${paths.event.href}/${eventId}`);
+                  }}
+                >
+                  event · {g.stationCount} sta.
+                </a>
+              ) : (
+                <button
+                  type="button"
+                  className="rounded-xs border border-line-strong px-1 text-left hover:bg-raised"
+                  title={`Candidate event #${g.id}: first triggers at ${g.stationCount} stations within the allowed time. Show its members.`}
+                  onClick={(e) => {
+                    e.stopPropagation();
+                    setGroupOpen(g.id);
+                  }}
+                >
+                  group · {g.stationCount} sta.
+                </button>
+              )}
+              {(here?.membersHere ?? 0) > 1 ? (
+                <button
+                  type="button"
+                  aria-expanded={open}
+                  aria-label={`${open ? 'Hide' : 'Show'} the other ${(here?.membersHere ?? 1) - 1} member windows of group ${g.id}`}
+                  className="rounded-xs border border-line px-1 hover:bg-raised"
+                  onClick={(e) => {
+                    e.stopPropagation();
+                    toggleGroup(g.id);
+                  }}
+                >
+                  {open ? '▾' : '▸'} {(here?.membersHere ?? 1) - 1}
+                </button>
+              ) : null}
+            </span>
           );
         },
       }),
@@ -166,7 +214,7 @@ export function QueueScreen() {
     ],
     // `arrivals` re-renders the marker column when the set changes.
     // eslint-disable-next-line react-hooks/exhaustive-deps
-    [now, me?.id, arrivals],
+    [now, me?.id, arrivals, roleOf, eventIds.data, expanded, toggleGroup, navigate],
   );
   const table = useReactTable({ data: rows, columns, getCoreRowModel: getCoreRowModel(), getRowId: (r) => String(r.id) });
   const virtual = useVirtualizer({ count: rows.length, getScrollElement: () => scrollRef.current, estimateSize: () => ROW_PX, overscan: 12 });
@@ -208,18 +256,26 @@ export function QueueScreen() {
     },
     [rows, virtual],
   );
-  const open = useCallback((r: QueueRow) => void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`), [navigate, search]);
+  // A group's leading row opens its event (when it has one); every other row its window's review.
+  const open = useCallback(
+    (r: QueueRow) => {
+      const eventId = r.candidateEvent && roleOf.get(r.id)?.role === 'group' ? eventIds.data?.get(r.candidateEvent.id) : undefined;
+      void navigate(eventId !== undefined ? `${paths.event.href}/${eventId}` : `${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`);
+    },
+    [navigate, search, roleOf, eventIds.data],
+  );
   const claim = useCallback(
     (r: QueueRow) => {
       action.mutate(
         { action: 'claim', id: r.id, version: r.version },
         {
-          onSuccess: () => open(r),
+          // A claim is for the window itself: its review, even from a group's row.
+          onSuccess: () => void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`),
           onError: (err) => toast.notify({ tone: 'danger', title: `Could not claim item ${r.id}`, body: err.message }),
         },
       );
     },
-    [action, open, toast],
+    [action, navigate, search, toast],
   );
 
   useEffect(() => {
@@ -234,6 +290,7 @@ export function QueueScreen() {
         if (mayClaim) claim(current);
         else open(current);
       }
+      else if (e.key === 'x' && current?.candidateEvent) toggleGroup(current.candidateEvent.id);
       else if (e.key === 'g') {
         scrollRef.current?.scrollTo({ top: 0 });
         select(0);
@@ -243,7 +300,7 @@ export function QueueScreen() {
     };
     window.addEventListener('keydown', onKey);
     return () => window.removeEventListener('keydown', onKey);
-  }, [rows, selectedIndex, select, open, claim, mayClaim]);
+  }, [rows, selectedIndex, select, open, claim, mayClaim, toggleGroup]);
 
   const headerGroups = table.getHeaderGroups();
   const items = virtual.getVirtualItems();
