@@ -6,6 +6,7 @@
 import { demoUsers } from '@server/db/seed-demo';
 import type { AppContext } from '@server/context';
 import { ingestDemo } from '@server/demo/ingest-demo';
+import { prepareDemoEvents } from '@server/demo/demo-events';
 import { defaultAnalysisPool } from '@server/jobs/analysis-pool';
 import { escalationListener } from '@server/features/supervision/escalations';
 import { publicBaseUrl } from '@server/email/links';
@@ -59,6 +60,8 @@ async function ingestDemoWindows(ctx: AppContext): Promise<void> {
         ? `seisift: demo windows ingested (${r.created} files, ${r.items} queue items; the demo analyst dismissed ${r.historyDismissed} history windows as the stations' noise baseline, then labelled ${r.labelled}, dismissed ${r.dismissed}, escalated ${r.escalated}) in ${r.seconds.toFixed(1)} s`
         : `seisift: demo windows already ingested (${r.duplicates} of ${r.files} files)`,
     );
+    const ev = await prepareDemoEvents(ctx.database.db, notify);
+    console.log(`seisift: demo events: ${ev.events} built or updated from the candidate groups (located, with ML; ${ev.responses} channel responses from the demo StationXML${ev.modelSet ? ', the demo crust set as the XX velocity model' : ''})`);
   } catch (err) {
     console.warn(`seisift: demo windows not ingested: ${err instanceof Error ? err.message : String(err)}`);
   }

@@ -63,6 +63,11 @@ export interface PickerOptions {
   maxUncertaintyS?: number;
   /** An S pick needs its RMS over 1 s after the onset to exceed the 1 s before by this factor (default 1.5). */
   minSRatio?: number;
+  /**
+   * Only triggers whose trigger-on lies within `windowS` of this time (µs since the epoch) are
+   * considered: the other stations' P times, when they already point at the event.
+   */
+  near?: { timeUs: number; windowS: number };
 }
 
 const isVertical = (code: string): boolean => /Z$/u.test(code);
@@ -145,9 +150,11 @@ export function automaticPicks(channels: readonly PickerChannel[], profile: Pick
   }
   const highSos = design(profile.bands.order, [band.fmin, band.fmax], 'bandpass', fs);
   const chain = triggerChain(z.samples, fs, profile, highSos, design);
-  if (chain.triggers.length === 0) return picks;
-  const strongest = chain.triggers.reduce((a, b) => (b.peak > a.peak ? b : a));
-  const lead = chain.triggers.find((t) => t.onIndex < strongest.onIndex && t.onIndex >= strongest.onIndex - maxSp * fs && t.peak >= 0.3 * strongest.peak) ?? strongest;
+  const near = options.near;
+  const triggers = near ? chain.triggers.filter((t) => Math.abs(z.startTimeUs + (t.onIndex * 1e6) / fs - near.timeUs) <= near.windowS * 1e6) : chain.triggers;
+  if (triggers.length === 0) return picks;
+  const strongest = triggers.reduce((a, b) => (b.peak > a.peak ? b : a));
+  const lead = triggers.find((t) => t.onIndex < strongest.onIndex && t.onIndex >= strongest.onIndex - maxSp * fs && t.peak >= 0.3 * strongest.peak) ?? strongest;
   const sl = profile.staLta;
   const from = Math.max(chain.startIndex, lead.onIndex - Math.round(sl.onsetSearchS * fs));
   const to = Math.min(z.samples.length, lead.onIndex + Math.round(sl.onsetAfterS * fs) + 1);

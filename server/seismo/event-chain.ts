@@ -16,6 +16,7 @@ import { distanceNote, networkMagnitude, stationMagnitude, type MinusLogA0, type
 import { firstArrivalTimeS, prepareVelocityModel } from './travel-time';
 import type { VelocityModel } from './velocity-model';
 import { peakAmplitude } from './wood-anderson';
+import { median } from '@shared/math/median';
 import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 
 /** The caution every location and magnitude carries (BRIEF: triage aid). */
@@ -41,6 +42,8 @@ export interface ChainPick {
   onset?: PickOnset | null;
   polarity?: PickPolarity | null;
   evaluationMode: 'manual' | 'automatic';
+  /** How an automatic pick was made, in words. */
+  method?: string;
 }
 
 /** An amplitude read, or re-picked by an analyst, on a horizontal channel. */
@@ -117,15 +120,43 @@ export interface ChainStream extends PickerChannel {
 const stationKey = (streamId: string): string => streamId.split('.').slice(0, 2).join('.');
 const pickId = (p: ChainPick): string => `${p.streamId}#${p.phase}`;
 
+/** Settings of the network-consistency pass of the automatic picks (our own defaults). */
+export interface ConsistencyOptions {
+  /** A station's P more than this far from the median P of the others is picked again near it, s (default 12). */
+  maxLagS?: number;
+}
+
 /**
- * Automatic picks for every station of the streams (auto-picks.ts), grouped by NET.STA.
+ * Automatic picks for every station of the streams (auto-picks.ts), made consistent across the
+ * network: each station is picked on its own; when at least three stations have a P, a station whose
+ * P lies more than `maxLagS` from the median of all the P times (a traffic or wind trigger louder
+ * than the event there), or that has none, is picked again among its triggers within `maxLagS` of
+ * that median, or left without picks when it has none there. `referenceTimeUs` (e.g. the P times an event already has)
+ * replaces the median when given. `profile` is one profile, or each station's (by NET.STA).
  */
-export function automaticPicksForStreams(streams: readonly ChainStream[], profile: ChainOptions['profile']): ChainPick[] {
+export function automaticPicksForStreams(
+  streams: readonly ChainStream[],
+  profile: ChainOptions['profile'] | ((stationKey: string) => ChainOptions['profile']),
+  referenceTimeUs?: number,
+  consistency: ConsistencyOptions = {},
+): ChainPick[] {
+  const profileOf = (key: string): ChainOptions['profile'] => (typeof profile === 'function' ? profile(key) : profile);
   const byStation = new Map<string, ChainStream[]>();
   for (const s of streams) byStation.set(`${s.network}.${s.station}`, [...(byStation.get(`${s.network}.${s.station}`) ?? []), s]);
+  const maxLagS = consistency.maxLagS ?? 12;
+  const first = new Map<string, ReturnType<typeof automaticPicks>>();
+  for (const [key, chans] of byStation) first.set(key, automaticPicks(chans, profileOf(key)));
   const out: ChainPick[] = [];
-  for (const chans of byStation.values()) {
-    for (const p of automaticPicks(chans, profile)) out.push({ streamId: p.streamId, phase: p.phase, timeUs: p.timeUs, uncertaintyS: p.uncertaintyS, onset: p.onset, polarity: p.polarity, evaluationMode: 'automatic' });
+  // The median over every station's P: with three or more, one station's stray trigger cannot move it far.
+  const allP = [...first.values()].map((ps) => ps.find((x) => x.phase === 'P')?.timeUs).filter((t): t is number => t !== undefined);
+  const reference = referenceTimeUs ?? (allP.length >= 3 ? median(allP) : undefined);
+  for (const [key, picks] of first) {
+    let chosen = picks;
+    const p = picks.find((x) => x.phase === 'P');
+    if (reference !== undefined && (!p || Math.abs(p.timeUs - reference) > maxLagS * 1e6)) {
+      chosen = automaticPicks(byStation.get(key) ?? [], profileOf(key), { near: { timeUs: reference, windowS: maxLagS } });
+    }
+    for (const x of chosen) out.push({ streamId: x.streamId, phase: x.phase, timeUs: x.timeUs, uncertaintyS: x.uncertaintyS, onset: x.onset, polarity: x.polarity, evaluationMode: 'automatic', method: chosen === picks ? x.method : `${x.method}; picked again near the other stations' P` });
   }
   return out;
 }

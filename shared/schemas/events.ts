@@ -91,6 +91,9 @@ export const amplitudeBodySchema = z
 /** POST /api/events/:id/members body. */
 export const memberBodySchema = z.object({ itemId: z.number().int().positive(), eventVersion: z.number().int().positive() }).strict();
 
+/** POST /api/events body: an event assembled from windows no candidate group joined. */
+export const eventCreateBodySchema = z.object({ itemIds: z.array(z.number().int().positive()).min(1).max(100) }).strict();
+
 /** POST /api/events/:id/relocate body. */
 export const relocateBodySchema = z
   .object({
@@ -185,6 +188,8 @@ export const eventSummarySchema = z.object({
   evaluationMode: z.enum(['manual', 'automatic']).nullable(),
   locationRefusal: z.string().nullable(),
   candidateEventId: z.number().nullable(),
+  /** The queue items (windows) the event holds: each opens its member window. */
+  memberItemIds: z.array(z.number()),
   version: z.number(),
 });
 

@@ -12,8 +12,7 @@ import { windowChannels } from '@server/db/schema/uploads';
 import { users } from '@server/db/schema/users';
 import { conflict, notFound, unprocessable } from '@server/errors';
 import { recordChange } from '@server/realtime/change-log';
-import { automaticPicks } from '@server/seismo/auto-picks';
-import { solveEvent, type ChainAmplitude, type ChainPick, type ChainStation, type ChainStream } from '@server/seismo/event-chain';
+import { automaticPicksForStreams, solveEvent, type ChainAmplitude, type ChainPick, type ChainStation, type ChainStream } from '@server/seismo/event-chain';
 import { responseFromSensitivity, type ResponseResult } from '@server/seismo/instrument-response';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import { networkSettings } from './event-settings';
@@ -91,17 +90,36 @@ async function memberResponses(db: DbOrTx, members: readonly Member[]): Promise<
   return out;
 }
 
-/** The automatic picks of some members' windows, stored as suggestions (author none, mode automatic). */
+/**
+ * The automatic picks of some members' windows, stored as suggestions (author none, mode automatic),
+ * consistent across the network (event-chain.ts `automaticPicksForStreams`): near the event's
+ * existing automatic P picks when it has some, else near the median P of these members.
+ */
 async function storeAutomaticPicks(db: DbOrTx, eventId: number, members: readonly Member[], now: Date): Promise<void> {
+  if (members.length === 0) return;
   const streams = await memberStreams(db, members);
-  for (const m of members) {
-    const profile: ProcessingProfile = processingProfileSchema.parse(m.profile ?? {});
-    const picks = automaticPicks(streams.filter((s) => s.itemId === m.itemId), profile);
-    if (picks.length === 0) continue;
-    await db.insert(eventPicks).values(
-      picks.map((p) => ({ eventId, itemId: m.itemId, streamId: p.streamId, phase: p.phase, timeUs: p.timeUs, uncertaintyS: p.uncertaintyS, onset: p.onset, polarity: p.polarity, evaluationMode: 'automatic', method: p.method, createdAt: now, updatedAt: now })),
-    );
-  }
+  const existing = await db.select({ timeUs: eventPicks.timeUs }).from(eventPicks).where(and(eq(eventPicks.eventId, eventId), eq(eventPicks.evaluationMode, 'automatic'), eq(eventPicks.phase, 'P')));
+  const reference = existing.length > 0 ? existing.map((p) => p.timeUs).sort((a, b) => a - b)[existing.length >> 1] : undefined;
+  // Each station's own trigger settings (its profile: band-reject filters, STA/LTA).
+  const profiles = new Map<string, ProcessingProfile>(members.map((m) => [`${m.network}.${m.code}`, processingProfileSchema.parse(m.profile ?? {})]));
+  const picks = automaticPicksForStreams(streams, (key) => profiles.get(key) ?? processingProfileSchema.parse({}), reference);
+  if (picks.length === 0) return;
+  await db.insert(eventPicks).values(
+    picks.map((p) => ({
+      eventId,
+      itemId: streams.find((s) => s.id === p.streamId)?.itemId ?? null,
+      streamId: p.streamId,
+      phase: p.phase,
+      timeUs: p.timeUs,
+      uncertaintyS: p.uncertaintyS,
+      onset: p.onset ?? null,
+      polarity: p.polarity ?? null,
+      evaluationMode: 'automatic',
+      method: p.method ?? null,
+      createdAt: now,
+      updatedAt: now,
+    })),
+  );
 }
 
 /** Locks the event row, checks the version the caller read. @throws 404, 409 */
@@ -303,6 +321,41 @@ export async function syncEventsFromGroups(deps: EventDeps, limit = 100): Promis
   }
   if (touched.length > 0) deps.notify?.();
   return touched;
+}
+
+/**
+ * An event an analyst assembles from windows (queue items) that no candidate group joined: its
+ * members, automatic picks as suggestions, then located (or refused with the reason), in one
+ * transaction with one live update.
+ * @throws AppError 404 for a missing item; 409 when one is already in an event; 422 without items
+ */
+export async function createEventFromItems(deps: EventDeps, actor: EventActor, itemIds: readonly number[]): Promise<number> {
+  const ids = [...new Set(itemIds)];
+  if (ids.length === 0) throw unprocessable('itemIds: an event needs at least one window');
+  const id = await deps.db.transaction(async (tx) => {
+    const items = await tx
+      .select({ id: queueItems.id, windowStart: queueItems.windowStart, network: stations.network })
+      .from(queueItems)
+      .innerJoin(stations, eq(stations.id, queueItems.stationId))
+      .where(inArray(queueItems.id, ids))
+      .for('update');
+    const missing = ids.filter((i) => !items.some((x) => x.id === i));
+    if (missing.length > 0) throw notFound(`Queue item ${missing.join(', ')}`);
+    const taken = await eventMembershipOf(tx, ids);
+    if (taken.size > 0) throw conflict(`Window ${[...taken.keys()].join(', ')} is already in event ${[...new Set(taken.values())].join(', ')}`);
+    const now = new Date();
+    const first = items.reduce((a, b) => (b.windowStart < a.windowStart ? b : a));
+    const [ins] = await tx.insert(seismicEvents).values({ network: first.network, firstArrivalAt: first.windowStart, version: 1, createdAt: now, updatedAt: now }).$returningId();
+    if (!ins) throw new Error('event insert returned no id');
+    await tx.insert(eventMembers).values(ids.map((itemId) => ({ eventId: ins.id, itemId, source: 'analyst', changedByUserId: actor?.id ?? null })));
+    await storeAutomaticPicks(tx, ins.id, await activeMembers(tx, ins.id), now);
+    const p = await tx.select({ t: eventPicks.timeUs }).from(eventPicks).where(and(eq(eventPicks.eventId, ins.id), eq(eventPicks.phase, 'P')));
+    if (p.length > 0) await tx.update(seismicEvents).set({ firstArrivalAt: new Date(Math.min(...p.map((x) => x.t)) / 1000) }).where(eq(seismicEvents.id, ins.id));
+    await relocateLocked(tx, ins.id, actor, now, { kind: 'created', reason: 'assembled from windows' });
+    return ins.id;
+  });
+  deps.notify?.();
+  return id;
 }
 
 /** The station ids of an event's active members (for scope checks). */
@@ -511,7 +564,7 @@ export async function listEvents(db: Database, q: { from?: Date | undefined; to?
     .limit(q.limit);
   if (rows.length === 0) return [];
   const mem = await db
-    .select({ eventId: eventMembers.eventId, stationId: queueItems.stationId })
+    .select({ eventId: eventMembers.eventId, stationId: queueItems.stationId, itemId: eventMembers.itemId })
     .from(eventMembers)
     .innerJoin(queueItems, eq(queueItems.id, eventMembers.itemId))
     .where(and(inArray(eventMembers.eventId, rows.map((r) => r.e.id)), isNull(eventMembers.removedAt)));
@@ -519,12 +572,12 @@ export async function listEvents(db: Database, q: { from?: Date | undefined; to?
   for (const { e, o, m } of rows) {
     const st = [...new Set(mem.filter((x) => x.eventId === e.id).map((x) => x.stationId))];
     if (scope !== 'all' && !st.some((s) => scope.includes(s))) continue;
-    out.push(summary(e, o, m, st.length));
+    out.push(summary(e, o, m, st.length, mem.filter((x) => x.eventId === e.id).map((x) => x.itemId)));
   }
   return out;
 }
 
-function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$inferSelect | null, m: typeof eventMagnitudes.$inferSelect | null, stationCount: number): EventSummary {
+function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$inferSelect | null, m: typeof eventMagnitudes.$inferSelect | null, stationCount: number, memberItemIds: number[]): EventSummary {
   return {
     id: e.id,
     network: e.network,
@@ -548,6 +601,7 @@ function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$i
     evaluationMode: o ? (o.evaluationMode === 'manual' ? 'manual' : 'automatic') : null,
     locationRefusal: e.locationRefusal,
     candidateEventId: e.candidateEventId,
+    memberItemIds,
     version: e.version,
   };
 }
@@ -595,7 +649,7 @@ export async function getEventDetail(db: Database, eventId: number, scope: 'all'
   const manual = picks.filter((p) => p.evaluationMode === 'manual');
   return {
     caution: EVENT_CAUTION,
-    event: summary(e, o, m, activeStations.length),
+    event: summary(e, o, m, activeStations.length, members.filter((x) => x.removedAt === null).map((x) => x.itemId)),
     members: members.map((x) => ({ itemId: x.itemId, station: `${x.network}.${x.code}`, stationId: x.stationId, source: x.source, removed: x.removedAt !== null, windowStart: x.windowStart.toISOString() })),
     origin: o
       ? {
@@ -626,4 +680,26 @@ export async function getEventDetail(db: Database, eventId: number, scope: 'all'
     magnitude: m ? { type: m.type, value: m.value, uncertainty: m.uncertainty, stationCount: m.stationCount, method: m.method, evaluationMode: m.evaluationMode === 'manual' ? 'manual' : 'automatic' } : null,
     origins: origins.map((x) => ({ id: x.id, time: iso(x.timeUs), latitude: x.latitude, longitude: x.longitude, depthKm: x.depthKm, rmsS: x.rmsS, evaluationMode: x.evaluationMode, createdAt: x.createdAt.toISOString(), preferred: x.id === e.preferredOriginId })),
   };
+}
+
+/** Which event (if any) holds each item, among `itemIds` (active members only). */
+export async function eventMembershipOf(db: DbOrTx, itemIds: readonly number[]): Promise<Map<number, number>> {
+  if (itemIds.length === 0) return new Map();
+  const rows = await db
+    .select({ itemId: eventMembers.itemId, eventId: eventMembers.eventId })
+    .from(eventMembers)
+    .where(and(inArray(eventMembers.itemId, [...itemIds]), isNull(eventMembers.removedAt)))
+    .orderBy(asc(eventMembers.eventId));
+  return new Map(rows.map((r) => [r.itemId, r.eventId]));
+}
+
+/** Ids of the events whose first arrival lies in [from, to) and whose own evaluation status is one of `statuses`. */
+export async function eventIdsWithStatus(db: DbOrTx, period: { from: Date; to: Date }, statuses: readonly string[]): Promise<number[]> {
+  if (statuses.length === 0) return [];
+  const rows = await db
+    .select({ id: seismicEvents.id })
+    .from(seismicEvents)
+    .where(and(gte(seismicEvents.firstArrivalAt, period.from), lt(seismicEvents.firstArrivalAt, period.to), inArray(seismicEvents.evaluationStatus, [...statuses])))
+    .orderBy(asc(seismicEvents.firstArrivalAt));
+  return rows.map((r) => r.id);
 }

@@ -1,6 +1,7 @@
 import {
   acceptPicksBodySchema,
   amplitudeBodySchema,
+  eventCreateBodySchema,
   eventDetailSchema,
   eventLabelBodySchema,
   eventListQuerySchema,
@@ -51,6 +52,7 @@ export const eventOperations: ApiOperation[] = [
     query: eventListQuerySchema,
     responses: { 200: jsonResponse(`The events. ${EVENT_CAUTION}`, eventListSchema) },
   },
+  { method: 'post', path: '/api/events', summary: 'Assemble an event from windows (queue items) that no candidate group joined; automatic picks, then located', auth: 'session', permission: 'event.edit', body: { schema: eventCreateBodySchema }, responses: { 201: event, 404: { description: 'not_found: no such queue item' }, 409: { description: 'conflict: a window is already in an event' } } },
   { method: 'get', path: '/api/events/:id', summary: 'One event: origin with its 68 % ellipse, arrivals and residuals, picks, amplitudes, magnitudes, members', description: EVENT_CAUTION, auth: 'session', permission: 'event.view', params: eventParams, responses: { 200: jsonResponse(`The event. ${EVENT_CAUTION}`, eventDetailSchema) } },
   { method: 'post', path: '/api/events/:id/picks', summary: "Add an analyst's pick on a member window's channel; the event relocates from the analysts' picks", auth: 'session', permission: 'event.pick', params: eventParams, body: { schema: pickBodySchema }, responses: { 201: event, ...changeErrors } },
   { method: 'post', path: '/api/events/:id/picks/accept', summary: "Take automatic suggestions over as the analyst's picks (all when pickIds is absent)", auth: 'session', permission: 'event.pick', params: eventParams, body: { schema: acceptPicksBodySchema }, responses: { 200: event, ...changeErrors } },

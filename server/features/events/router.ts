@@ -3,6 +3,7 @@ import { z } from 'zod';
 import {
   acceptPicksBodySchema,
   amplitudeBodySchema,
+  eventCreateBodySchema,
   eventLabelBodySchema,
   eventListQuerySchema,
   memberBodySchema,
@@ -24,6 +25,7 @@ import {
   acceptAutomaticPicks,
   addMember,
   addPick,
+  createEventFromItems,
   deletePick,
   getEventDetail,
   labelEvent,
@@ -56,7 +58,8 @@ export const versionQuery = z.object({ eventVersion: z.coerce.number().int().pos
  * an event outside an operator's stations answers 404.
  * - `GET /` (event.view): events by first arrival `?from=&to=&limit=`, built first from any new
  *   candidate-event group; `GET /:id` (event.view): the event with its origin, arrivals, picks
- *   (analysts' and automatic apart), amplitudes and magnitudes
+ *   (analysts' and automatic apart), amplitudes and magnitudes; `POST /` (event.edit) `{itemIds}`:
+ *   an event assembled from windows no candidate group joined
  * - picks (event.pick): `POST /:id/picks`, `PUT /:id/picks/:pickId`, `DELETE /:id/picks/:pickId?eventVersion=`,
  *   `POST /:id/picks/accept {pickIds?}`
  * - event.edit: `PUT /:id/amplitudes`, `DELETE /:id/amplitudes/:streamId?eventVersion=`,
@@ -102,6 +105,11 @@ export function eventsRouter(ctx: AppContext): Router {
     await syncEventsFromGroups(deps);
     const events = await listEvents(db, { from: q.from ? new Date(q.from) : undefined, to: q.to ? new Date(q.to) : undefined, limit: q.limit }, authorizedStations(currentUser(req), 'event.view'));
     res.json({ caution: EVENT_CAUTION, events });
+  });
+  router.post('/', requirePermission('event.edit'), async (req, res) => {
+    const body = parseInput(eventCreateBodySchema, req.body);
+    const eventId = await createEventFromItems(deps, actor(req), body.itemIds);
+    res.status(201).json(await detail(req, eventId));
   });
   router.get('/:id', requirePermission('event.view'), async (req, res) => {
     const { id: eventId } = parseInput(eventParams, req.params, 'params');

@@ -23,6 +23,7 @@ import { parseInput } from '@server/http/validate';
 import { authorizedStations, requirePermission } from '@server/policies/authorize';
 import { can } from '@shared/auth/policies';
 import { recordAudit } from '@server/features/audit/audit';
+import { syncEventsFromGroups } from '@server/features/events/event-service';
 import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
 import { buildCatalogueCsv } from './catalogue-csv';
 import { listReview, loadCatalogue, reviewNote, setEvaluationStatus } from './catalogue-review';
@@ -194,6 +195,8 @@ export function supervisorRouter(ctx: AppContext): Router {
     const q = parseInput(exportQuerySchema, req.query, 'query');
     const user = currentUser(req);
     await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
+    // Events are built from the candidate groups before the catalogue lists them (one row per event).
+    await syncEventsFromGroups({ db, notify: () => ctx.hub.notify() });
     const period = { from: new Date(q.from), to: new Date(q.to) };
     const events = await loadCatalogue(db, period, q.status);
     const stamp = `${period.from.toISOString().slice(0, 10)}_${period.to.toISOString().slice(0, 10)}`;

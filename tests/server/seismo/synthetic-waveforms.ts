@@ -32,15 +32,15 @@ export function sVelocityMS(hypocentralKm: number): number {
 }
 
 /**
- * Windows of 60 s at 100 sps starting 10 s before the origin (whole seconds) at every station.
+ * Windows of `durationS` (default 60) s at 100 sps starting 10 s before the origin (whole seconds) at every station.
  * Z: noise (σ 2e-8 m/s) + P wavelet 3e-6·sin(2π·6 Hz·τ)·e^(−τ/0.4 s) from the P time.
  * N, E: noise + 0.3 × that P wavelet + from the S time a 2 Hz sine of amplitude `sVelocityMS(r)` with a
  * 0.25 s cosine rise, 3 s flat, 1 s cosine fall (cos phase on E).
  */
-export function syntheticEvent(stations: readonly LocateStation[], truth: TrueHypocentre, model: VelocityModel, seed = 5): SyntheticStation[] {
+export function syntheticEvent(stations: readonly LocateStation[], truth: TrueHypocentre, model: VelocityModel, seed = 5, durationS = 60): SyntheticStation[] {
   const m = prepareVelocityModel(model);
   const fs = 100;
-  const n = 60 * fs;
+  const n = durationS * fs;
   const startUs = Math.floor(truth.timeS - 10) * 1e6;
   const noise = seededNormal(seed);
   return stations.map((s) => {

@@ -250,6 +250,24 @@ describe('events API (real MariaDB, supertest)', () => {
     expect(origins.length).toBeGreaterThan(5);
   });
 
+  it('the catalogue export lists the reviewed event once, with its origin and ML (QuakeML and CSV)', async () => {
+    const q = 'from=2026-03-10T00:00:00.000Z&to=2026-03-11T00:00:00.000Z&status=reviewed';
+    const xml = (await get(sue, `/api/supervisor/export?${q}&format=quakeml`).expect(200)).text;
+    expect(xml.match(/<event publicID=/g)).toHaveLength(1);
+    expect(xml).toContain(`<event publicID="smi:seisift.local/event/event/${eventId}">`);
+    expect(xml).toMatch(/<origin publicID="smi:seisift\.local\/origin\/\d+-\d+">/);
+    expect(xml.match(/<arrival /g)?.length).toBe(9);
+    expect(xml).toMatch(/<magnitude publicID=/);
+    const d = await detail();
+    const csv = (await get(sue, `/api/supervisor/export?${q}&format=csv`).expect(200)).text.trim().split('\r\n');
+    expect(csv).toHaveLength(2);
+    const header = (csv[0] ?? '').split(',');
+    const row = (csv[1] ?? '').split(',');
+    expect(Number(row[header.indexOf('ml')])).toBeCloseTo(d.magnitude.value, 2);
+    expect(Number(row[header.indexOf('depth_km')])).toBe(3);
+    expect(row[header.indexOf('depth_fixed')]).toBe('true');
+  });
+
   it('velocity model: the default is labelled as one; a supervisor edits it; bad layers are refused naming the layer', async () => {
     const other = (await get(ana, '/api/events/velocity-models/ZZ').expect(200)).body;
     expect(other.isDefault).toBe(true);
