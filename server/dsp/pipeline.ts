@@ -3,7 +3,7 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { highBandForRate, validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
-import { detrendLinear, taperInPlace } from './preprocess';
+import { detrendLinearInto, taperInPlace } from './preprocess';
 import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
@@ -11,6 +11,7 @@ import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, 
 import { peakOf, snrAroundTrigger } from './sta-lta';
 import { triggerChain } from './trigger';
 import { bandEnergy, sosfiltInto, sosfiltZeroPhase } from './sosfilt';
+import { workArray } from './work-arrays';
 
 /**
  * The analysis of one window (one station's channels for one time span): the output contract of
@@ -201,9 +202,12 @@ function analyzeChannel(
     throw new AnalysisError(`${s.id}: sensitivity ${flatSensitivity} counts per m/s must be a positive number`);
   }
   // Detrend once: the pre-processed trace is a tapered copy (= preprocessTrace), the trigger's trace
-  // (below) the detrended samples themselves with a start ramp instead of the taper.
-  const detrended = detrendLinear(s.samples);
-  const pre = detrended.slice();
+  // (below) the detrended samples themselves with a start ramp instead of the taper. Every long
+  // intermediate trace lives in a reused work array (see work-arrays.ts); none leaves this function.
+  const detrended = workArray('detrended', n);
+  detrendLinearInto(s.samples, detrended);
+  const pre = workArray('preprocessed', n);
+  pre.set(detrended);
   taperInPlace(pre, profile.preprocess.taperAlpha);
   if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
 
@@ -225,13 +229,13 @@ function analyzeChannel(
       warnings.push(`band-reject ${br.fmin}–${br.fmax} Hz${br.label ? ` (${br.label})` : ''} is not below the Nyquist frequency ${fs / 2} Hz: not applied`);
       continue;
     }
-    rejected = sosfiltInto(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected, rejected === pre ? new Float64Array(n) : rejected);
+    rejected = sosfiltInto(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected, rejected === pre ? workArray('band-reject', n) : rejected);
   }
   const lowSos = design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs);
   const highSos = design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
   const zeroPhaseDisplay = opts.display === true && opts.displayFiltering === 'zero-phase';
-  const lowY = sosfiltInto(lowSos, rejected, new Float64Array(n));
-  const highY = sosfiltInto(highSos, rejected, new Float64Array(n));
+  const lowY = sosfiltInto(lowSos, rejected, workArray('low-band', n));
+  const highY = sosfiltInto(highSos, rejected, workArray('high-band', n));
   const eLow = bandEnergy(lowY, fs);
   const eHigh = bandEnergy(highY, fs);
   const ratio = eLow > 0 ? eHigh / eLow : null;
@@ -239,7 +243,10 @@ function analyzeChannel(
 
   // The trigger reads its own chain (untapered, ramped, band-rejected high band; see triggerChain).
   const sl = profile.staLta;
-  const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity, detrended);
+  const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity, detrended, {
+    highY: workArray('trigger-band', n),
+    cf: workArray('sta-lta', n),
+  });
   const { startIndex, cf, highY: trigY, base: trigBase } = chain;
   const trig = chain.triggers;
   const pk = peakOf(cf, fs);

@@ -33,9 +33,13 @@ export function detrendLinear(x: Float64Array): Float64Array {
   return y;
 }
 
-/** detrendLinear writing into `out` (may be the same array as `x`). */
-function detrendLinearInto(x: Float64Array, out: Float64Array): void {
+/**
+ * `detrendLinear` writing into `out` (same length; may be `x` itself): the same arithmetic, so the same
+ * numbers. @throws RangeError when the lengths differ.
+ */
+export function detrendLinearInto(x: Float64Array, out: Float64Array): void {
   const n = x.length;
+  if (out.length !== n) throw new RangeError(`detrendLinearInto: input of ${n} samples, output of ${out.length}`);
   const c = (n - 1) / 2;
   let sx = 0;
   for (let i = 0; i < n; i++) sx += x[i] as number;

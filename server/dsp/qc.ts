@@ -1,4 +1,5 @@
 import type { DecodeNote, StreamDiscontinuity } from '../formats/types';
+import { workArray } from './work-arrays';
 
 /**
  * Data-quality checks of one channel, in words a technician understands.
@@ -259,7 +260,11 @@ function dcStep(x: Float64Array, block: number): { index: number; size: number }
   const nb = Math.floor(x.length / block);
   if (nb < 6) return null;
   const med = new Float64Array(nb);
-  for (let b = 0; b < nb; b++) med[b] = medianInPlace(x.slice(b * block, (b + 1) * block));
+  const work = workArray('qc-block', block);
+  for (let b = 0; b < nb; b++) {
+    work.set(x.subarray(b * block, (b + 1) * block));
+    med[b] = medianInPlace(work);
+  }
   const diffs = new Float64Array(nb - 1);
   for (let b = 1; b < nb; b++) diffs[b - 1] = (med[b] as number) - (med[b - 1] as number);
   const sigma = 1.4826 * medianAbsoluteDeviation(diffs);
@@ -333,7 +338,8 @@ function median5(a: number, b: number, c: number, d: number, e: number): number 
 function spikes(x: Float64Array, k: number, reach = 10): { count: number; first: number } {
   const n = x.length;
   if (n < 5) return { count: 0, first: -1 };
-  const r = new Float64Array(n);
+  const r = workArray('qc-residual', n);
+  r[0] = r[1] = r[n - 2] = r[n - 1] = 0;
   for (let i = 2; i < n - 2; i++) {
     r[i] = (x[i] as number) - median5(x[i - 2] as number, x[i - 1] as number, x[i] as number, x[i + 1] as number, x[i + 2] as number);
   }

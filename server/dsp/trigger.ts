@@ -39,6 +39,8 @@ export interface TriggerChain {
  * Pure; `design` returns Butterworth sections (a cache may stand behind it). A caller that has
  * already detrended the samples (`detrendLinear(samples)`, as the pipeline does for its tapered trace)
  * passes them as `detrended`: the chain then starts from them, and takes them over as `base`.
+ * `work` (optional) gives the arrays the chain writes its high band and ratio into (each of the
+ * samples' length, contents overwritten), for a caller that reuses them between windows.
  */
 export function triggerChain(
   samples: Float64Array,
@@ -48,6 +50,7 @@ export function triggerChain(
   design: (order: number, edges: [number, number], type: 'bandstop', fs: number) => Sos,
   sensitivity = 1,
   detrended?: Float64Array,
+  work?: { highY: Float64Array; cf: Float64Array },
 ): TriggerChain {
   const fs = sampleRateHz;
   const n = samples.length;
@@ -58,8 +61,9 @@ export function triggerChain(
   for (let i = 0; i < startIndex; i++) base[i] = (base[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / startIndex));
   if (sensitivity !== 1) for (let i = 0; i < n; i++) base[i] = (base[i] as number) / sensitivity;
   for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), base);
-  const highY = sosfiltInto(highSos, base, new Float64Array(n));
-  const cf = delayedStaLta(highY, fs, sl.staS, sl.ltaS, sl.method, { startIndex, minLtaSamples: Math.max(1, Math.round(sl.minLtaS * fs)) });
+  const highY = sosfiltInto(highSos, base, work?.highY ?? new Float64Array(n));
+  const staLtaOpts = { startIndex, minLtaSamples: Math.max(1, Math.round(sl.minLtaS * fs)) };
+  const cf = delayedStaLta(highY, fs, sl.staS, sl.ltaS, sl.method, work ? { ...staLtaOpts, out: work.cf } : staLtaOpts);
   const triggers = detectTriggers(cf, fs, sl.on, sl.off).map((t): ChainTrigger => {
     let peak = 0;
     for (let i = t.onIndex; i < (t.offIndex ?? n); i++) if ((cf[i] as number) > peak) peak = cf[i] as number;
