@@ -3,14 +3,14 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { highBandForRate, validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
-import { detrendLinearInto, taperInPlace } from './preprocess';
+import { detrendLinearInto, taperInPlace, taperTailStart } from './preprocess';
 import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
 import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
 import { peakOf, snrAroundTrigger } from './sta-lta';
 import { triggerChain } from './trigger';
-import { bandEnergy, sosfiltInto, sosfiltZeroPhase } from './sosfilt';
+import { bandEnergy, bandEnergyBeside, filteredEnergy, sosfiltInto, sosfiltZeroPhase } from './sosfilt';
 import { workArray } from './work-arrays';
 
 /**
@@ -234,20 +234,26 @@ function analyzeChannel(
   const lowSos = design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs);
   const highSos = design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
   const zeroPhaseDisplay = opts.display === true && opts.displayFiltering === 'zero-phase';
-  const lowY = sosfiltInto(lowSos, rejected, workArray('low-band', n));
-  const highY = sosfiltInto(highSos, rejected, workArray('high-band', n));
-  const eLow = bandEnergy(lowY, fs);
-  const eHigh = bandEnergy(highY, fs);
-  const ratio = eLow > 0 ? eHigh / eLow : null;
-  const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
+  // Band energies. Only the display shows the band traces; otherwise only their energies are needed:
+  // the low band is summed chunk by chunk without a trace-long array, and the high band is taken from
+  // the trigger's own high band (below), which is the same filter on the same samples except at the
+  // ends (start ramp against taper), so only the ends are filtered again (`bandEnergyBeside`; exact).
+  const shown = opts.display === true ? { low: sosfiltInto(lowSos, rejected, workArray('low-band', n)), high: sosfiltInto(highSos, rejected, workArray('high-band', n)) } : null;
+  const scratch = workArray('energy-chunks', 2048);
+  const eLow = shown ? bandEnergy(shown.low, fs) : filteredEnergy(lowSos, rejected, fs, scratch);
 
   // The trigger reads its own chain (untapered, ramped, band-rejected high band; see triggerChain).
   const sl = profile.staLta;
+  const tailStart = taperTailStart(n, profile.preprocess.taperAlpha);
   const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity, detrended, {
     highY: workArray('trigger-band', n),
     cf: workArray('sta-lta', n),
+    stateAt: tailStart,
   });
   const { startIndex, cf, highY: trigY, base: trigBase } = chain;
+  const eHigh = shown ? bandEnergy(shown.high, fs) : bandEnergyBeside(highSos, rejected, trigBase, trigY, chain.highStateAt ?? new Float64Array(0), tailStart, fs, scratch);
+  const ratio = eLow > 0 ? eHigh / eLow : null;
+  const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
   const trig = chain.triggers;
   const pk = peakOf(cf, fs);
   const onsets = trig.map((t) => t.onsetIndex);
@@ -373,8 +379,8 @@ function analyzeChannel(
     const bucket = Math.max(1, Math.ceil((2 * n) / points));
     const idx = minMaxIndices(pre, bucket);
     const pick = (y: Float64Array): number[] => idx.map((i) => y[i] as number);
-    const lowShown = zeroPhaseDisplay ? sosfiltZeroPhase(lowSos, rejected) : lowY;
-    const highShown = zeroPhaseDisplay ? sosfiltZeroPhase(highSos, rejected) : highY;
+    const lowShown = zeroPhaseDisplay ? sosfiltZeroPhase(lowSos, rejected) : (shown?.low ?? sosfiltInto(lowSos, rejected, workArray('low-band', n)));
+    const highShown = zeroPhaseDisplay ? sosfiltZeroPhase(highSos, rejected) : (shown?.high ?? sosfiltInto(highSos, rejected, workArray('high-band', n)));
     result.display = {
       bucket,
       filtering: zeroPhaseDisplay ? 'zero-phase' : 'causal',

@@ -120,3 +120,14 @@ export function taperInPlace(y: Float64Array, taperAlpha: number): void {
     y[i] = (y[i] as number) * 0.5 * (1 + Math.cos(Math.PI * (-2 / taperAlpha + 1 + (2 * i) / taperAlpha / m1)));
   }
 }
+
+/**
+ * First sample of the taper's tail, the sample from which `taperInPlace(y, α)` changes y up to the end:
+ * n − ⌊α(n−1)/2⌋ − 1 for 0 < α < 1 (the same split as `tukeyWindow`), n when nothing is tapered
+ * (α ≤ 0 or n ≤ 1), 0 when everything is (α ≥ 1, a Hann window). Samples; n ≥ 0.
+ */
+export function taperTailStart(n: number, taperAlpha: number): number {
+  if (n <= 1 || taperAlpha <= 0) return n;
+  if (taperAlpha >= 1) return 0;
+  return n - Math.floor((taperAlpha * (n - 1)) / 2) - 1;
+}

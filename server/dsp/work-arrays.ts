@@ -17,7 +17,7 @@
  */
 
 /** The slots: one long trace each, all alive at the same time within one channel's analysis. */
-export const WORK_SLOTS = ['detrended', 'preprocessed', 'band-reject', 'low-band', 'high-band', 'trigger-band', 'sta-lta', 'qc-residual', 'qc-block'] as const;
+export const WORK_SLOTS = ['detrended', 'preprocessed', 'band-reject', 'low-band', 'high-band', 'trigger-band', 'sta-lta', 'qc-residual', 'qc-block', 'energy-chunks'] as const;
 
 /** A slot's name. */
 export type WorkSlot = (typeof WORK_SLOTS)[number];
