@@ -181,7 +181,7 @@ export function leadChannelIndex(ids: readonly string[]): number {
 }
 
 /** The score knobs' defaults (the profile schema's), for callers that pass older thresholds. */
-const SCORE_DEFAULTS = { signalPeakTolerance: 0.2, minInBandSnr: 4, minInBandShare: 0.5 } as const;
+const SCORE_DEFAULTS = { signalPeakTolerance: 0.2, minInBandSnr: 6.3, minInBandShare: 0.5 } as const;
 
 /** The thresholds the score reads; the newer knobs may be absent (their defaults apply). */
 export type ScoreThresholds = Omit<ProcessingProfile['thresholds'], keyof typeof SCORE_DEFAULTS> &

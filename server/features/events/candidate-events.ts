@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, gt, gte, inArray, lt, lte, max, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, gte, inArray, isNull, lt, lte, max, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { EventLabel } from '@shared/schemas/label';
 import { defaultGroupingSettings, type GroupingSettings, type GroupLabelBody } from '@shared/schemas/supervisor';
@@ -412,6 +412,37 @@ export async function regroupArrivals(deps: CandidateDeps, itemIds: readonly num
     if (ev !== null) touched.add(ev);
   }
   return [...touched];
+}
+
+/**
+ * A window that arrives after a neighbour's lone trigger may be the quiet neighbour that lowers it
+ * (`lowerLoneTrigger`): re-checks the `likely event` items of other stations, still waiting for an
+ * analyst and in no candidate event, whose arrival lies inside one of the new windows with the
+ * network horizon to spare on both sides.
+ * @param spans the new windows: station and time range
+ * @returns the ids lowered
+ */
+export async function recheckLoneTriggers(deps: CandidateDeps, spans: readonly { stationId: number; start: Date; end: Date }[]): Promise<number[]> {
+  if (spans.length === 0) return [];
+  const settings = deps.settings ?? defaultGroupingSettings;
+  const horizonS = await networkHorizonS(deps.db, settings);
+  const lowered: number[] = [];
+  for (const span of spans) {
+    const from = new Date(span.start.getTime() + horizonS * 1000);
+    const to = new Date(span.end.getTime() - horizonS * 1000);
+    if (from > to) continue;
+    const lone = await deps.db
+      .select({ itemId: itemArrivals.itemId, stationId: itemArrivals.stationId, arrivalAt: itemArrivals.arrivalAt })
+      .from(itemArrivals)
+      .innerJoin(queueItems, eq(queueItems.id, itemArrivals.itemId))
+      .where(and(ne(itemArrivals.stationId, span.stationId), isNull(itemArrivals.candidateEventId), gte(itemArrivals.arrivalAt, from), lte(itemArrivals.arrivalAt, to), eq(queueItems.flag, 'likely event'), eq(queueItems.state, 'new')));
+    for (const l of lone) {
+      if (lowered.includes(l.itemId)) continue;
+      if (await deps.db.transaction((tx) => lowerLoneTrigger(tx, l.itemId, l.stationId, l.arrivalAt, horizonS, new Date()))) lowered.push(l.itemId);
+    }
+  }
+  if (lowered.length > 0) deps.notify?.();
+  return lowered;
 }
 
 /** Per database handle: the highest queue item id this process has looked at for arrivals. */

@@ -13,6 +13,9 @@ import type { DbOrTx } from '@server/db/client';
  * - Raise: a member of a candidate event (≥ minStations stations with travel-time consistent
  *   arrivals) that the engine left at `needs eyes` although its own trigger was strong (robust z of
  *   the STA/LTA peak ≥ RAISE_MIN_Z) and free of data problems becomes `likely event`, with the reason.
+ *   A member the engine called `likely noise` (its trigger no stronger than a noisy station's
+ *   ordinary noise: a road, a river) becomes `needs eyes`: the network recorded an event at the
+ *   moment it triggered, so a person should look.
  * - Lower: a `likely event` whose arrival joined no candidate event while at least
  *   LONE_MIN_QUIET_STATIONS other stations recorded that moment (their windows cover the arrival
  *   ± the allowed lag) without an arrival of their own becomes `needs eyes`, with the reason.
@@ -40,22 +43,28 @@ async function reflag(tx: DbOrTx, item: { id: number; version: number; score: nu
 
 /**
  * Raises the members of candidate event `eventId` that the engine left at `needs eyes` with a strong,
- * clean trigger (see the module comment). Runs inside the transaction that stores the group.
+ * clean trigger to `likely event`, and those it left at `likely noise` to `needs eyes` (see the
+ * module comment). Runs inside the transaction that stores the group.
  * @returns the ids raised
  */
 export async function raiseByCoincidence(tx: DbOrTx, eventId: number, itemIds: readonly number[], stationCount: number, now: Date): Promise<number[]> {
   if (itemIds.length === 0) return [];
   const rows = await tx
-    .select({ id: queueItems.id, version: queueItems.version, score: queueItems.score, reasons: queueItems.reasons, z: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.zStaLtaPeak')` })
+    .select({ id: queueItems.id, version: queueItems.version, score: queueItems.score, reasons: queueItems.reasons, flag: queueItems.flag, z: sql<unknown>`JSON_EXTRACT(${windows.analysis}, '$.zStaLtaPeak')` })
     .from(queueItems)
     .innerJoin(windows, eq(windows.id, queueItems.windowId))
-    .where(and(inArray(queueItems.id, [...itemIds]), eq(queueItems.flag, 'needs eyes'), eq(queueItems.state, 'new')));
+    .where(and(inArray(queueItems.id, [...itemIds]), inArray(queueItems.flag, ['needs eyes', 'likely noise']), eq(queueItems.state, 'new')));
   const raised: number[] = [];
   for (const r of rows) {
+    if (r.reasons.some((x) => DATA_PROBLEM_WORDS.test(x))) continue;
+    const group = `network coincidence: part of event group #${eventId} — ${stationCount} stations with arrivals within travel-time limits`;
+    if (r.flag === 'likely noise') {
+      if (await reflag(tx, r, 'needs eyes', `${group}; raised from likely noise: this station's own noise hides its trigger, the network does not`, 1, now)) raised.push(r.id);
+      continue;
+    }
     const z = Number(typeof r.z === 'string' ? JSON.parse(r.z) : r.z);
-    if (!(z >= RAISE_MIN_Z) || r.reasons.some((x) => DATA_PROBLEM_WORDS.test(x))) continue;
-    const reason = `network coincidence: part of event group #${eventId} — ${stationCount} stations with arrivals within travel-time limits; raised from needs eyes`;
-    if (await reflag(tx, r, 'likely event', reason, 2, now)) raised.push(r.id);
+    if (!(z >= RAISE_MIN_Z)) continue;
+    if (await reflag(tx, r, 'likely event', `${group}; raised from needs eyes`, 2, now)) raised.push(r.id);
   }
   return raised;
 }

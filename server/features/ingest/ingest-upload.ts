@@ -22,7 +22,7 @@ import { presentQueueRow } from '@server/features/queue/presenters';
 import { itemArrivals } from '@server/db/schema/supervisor';
 import type { AuthUser, IngestPrincipal } from '@server/auth/principal';
 import { itemAudience, recordChange } from '@server/realtime/change-log';
-import { firstTriggerMs, regroupArrivals } from '@server/features/events/candidate-events';
+import { firstTriggerMs, recheckLoneTriggers, regroupArrivals } from '@server/features/events/candidate-events';
 import { decodeStoredSamples, encodeSamples } from '@server/db/samples-codec';
 import { stationBaseline } from '@server/features/stations/station-baseline';
 import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from '@server/features/stations/station-registry';
@@ -404,18 +404,19 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
         createdAt: now,
       }));
     if (!up) throw new Error('upload insert returned no id');
-    const created: Array<{ itemId: number; w: AnalysedWindow; windowStart: Date; hasArrival: boolean }> = [];
+    const created: Array<{ itemId: number; w: AnalysedWindow; windowStart: Date; windowEnd: Date; hasArrival: boolean }> = [];
     for (const w of analysed) {
       const startUs = Math.min(...w.streams.map((s) => s.startTimeUs));
       const stopUs = Math.max(...w.streams.map((s) => s.endUs));
       const windowStart = new Date(Math.floor(startUs / 1000));
+      const windowEnd = new Date(Math.ceil(stopUs / 1000));
       const [win] = await insertBinary(tx, tx
         .insert(windows)
         .values({
           uploadId: up.id,
           stationId: w.station.id,
           startTime: windowStart,
-          endTime: new Date(Math.ceil(stopUs / 1000)),
+          endTime: windowEnd,
           analysis: w.analysis,
           engineVersion: ENGINE_VERSION,
           createdAt: now,
@@ -468,7 +469,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
       // same rule `recordArrivals` applies to a stored analysis).
       const arrivalMs = firstTriggerMs(w.analysis);
       if (arrivalMs !== null) await tx.insert(itemArrivals).values({ itemId: item.id, stationId: w.station.id, arrivalAt: new Date(arrivalMs) });
-      created.push({ itemId: item.id, w, windowStart, hasArrival: arrivalMs !== null });
+      created.push({ itemId: item.id, w, windowStart, windowEnd, hasArrival: arrivalMs !== null });
     }
     await writeAudit(tx, actor, 'upload.create', { type: 'upload', id: up.id }, {
       filename,
@@ -524,6 +525,11 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   if (withArrival.length > 0) {
     await regroupArrivals({ db: deps.db, notify: deps.notify }, withArrival).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: candidate-event grouping failed'));
   }
+  // A new window may be the quiet neighbour of an earlier lone trigger: re-check those it covers.
+  await recheckLoneTriggers(
+    { db: deps.db, notify: deps.notify },
+    result.created.map((c) => ({ stationId: c.w.station.id, start: c.windowStart, end: c.windowEnd })),
+  ).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: lone-trigger re-check failed'));
   return {
     filename,
     status: 'created',

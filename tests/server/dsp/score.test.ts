@@ -98,10 +98,10 @@ describe('scoreWindow (the rule in server/dsp/score.ts: deciding channel, z of i
     expect(r.score).toBeLessThan(ok.score);
   });
 
-  it('the in-band test: Σ PSD ≥ minInBandSnr (4) × the noise AND ≥ minInBandShare (50 %) of the bins; a profile value moves it', () => {
+  it('the in-band test: Σ PSD ≥ minInBandSnr (6.3, about 8 dB) × the noise AND ≥ minInBandShare (50 %) of the bins; a profile value moves it', () => {
     const flag = (over: Partial<SignalSpectrumFeatures>, profile = defaultProcessingProfile): string => scoreWindow([eventLike({ signalSpectrum: sig(over) })], baseline, profile).flag;
-    expect(flag({ inBandSnr: 4, inBandShare: 0.5 })).toBe('likely event');
-    expect(flag({ inBandSnr: 3.99, inBandShare: 0.9 })).toBe('needs eyes');
+    expect(flag({ inBandSnr: 6.3, inBandShare: 0.5 })).toBe('likely event');
+    expect(flag({ inBandSnr: 6.29, inBandShare: 0.9 })).toBe('needs eyes');
     expect(flag({ inBandSnr: 50, inBandShare: 0.49 })).toBe('needs eyes');
     expect(flag({ inBandSnr: 3, inBandShare: 0.5 }, processingProfileSchema.parse({ thresholds: { minInBandSnr: 2 } }))).toBe('likely event');
     expect(flag({ inBandSnr: 50, inBandShare: 0.3 }, processingProfileSchema.parse({ thresholds: { minInBandShare: 0.25 } }))).toBe('likely event');
@@ -215,11 +215,11 @@ describe('scoreWindow without a usable signal spectrum', () => {
     expect(r2.reasons).toContain(`no signal spectrum: ${note}`);
   });
 
-  it('older thresholds without the newer knobs (as stored evidence is replayed) use the defaults (4, 50 %)', () => {
+  it('older thresholds without the newer knobs (as stored evidence is replayed) use the defaults (6.3, 50 %)', () => {
     const { signalPeakTolerance: _t, minInBandSnr: _s, minInBandShare: _h, ...older } = defaultProcessingProfile.thresholds;
     const profile = { thresholds: older, staLta: defaultProcessingProfile.staLta };
-    expect(scoreWindow([eventLike({ signalSpectrum: sig({ inBandSnr: 4, inBandShare: 0.5 }) })], baseline, profile).flag).toBe('likely event');
-    expect(scoreWindow([eventLike({ signalSpectrum: sig({ inBandSnr: 3.9 }) })], baseline, profile).flag).toBe('needs eyes');
+    expect(scoreWindow([eventLike({ signalSpectrum: sig({ inBandSnr: 6.3, inBandShare: 0.5 }) })], baseline, profile).flag).toBe('likely event');
+    expect(scoreWindow([eventLike({ signalSpectrum: sig({ inBandSnr: 6.2 }) })], baseline, profile).flag).toBe('needs eyes');
     expect(scoreWindow([eventLike({ signalSpectrum: sig({ inBandShare: 0.4 }) })], baseline, profile).flag).toBe('needs eyes');
   });
 });
@@ -237,7 +237,7 @@ describe('processing profile: the signal-spectrum knobs are backward compatible'
       thresholds: { eventZ: 3.5, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5 },
     };
     const p = processingProfileSchema.parse(stored);
-    expect(p.thresholds).toEqual({ eventZ: 3.5, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5, signalPeakTolerance: 0.2, minInBandSnr: 4, minInBandShare: 0.5 });
+    expect(p.thresholds).toEqual({ eventZ: 3.5, noiseZ: 2, minBaselineWindows: 20, centroidMaxFactor: 1.5, signalPeakTolerance: 0.2, minInBandSnr: 6.3, minInBandShare: 0.5 });
     expect(p.signalSpectrum).toEqual({ minS: 2, maxS: 20, noiseMinS: 1.5, noiseMaxS: 30, guardS: 0.25, segmentS: 2.56, minSnr: 2 });
     expect(p.staLta).toEqual({ method: 'classic', staS: 1, ltaS: 30, on: 3.5, off: 1.5, startS: 0.75, minLtaS: 1.25, onsetSearchS: 2.5, onsetAfterS: 0.5, onsetWindowS: 0.5 });
     // a stored signalSpectrum section from before guardS keeps its own values
