@@ -164,8 +164,10 @@ export function qualityChecks(
   let runStart = 0;
   let prev = samples[0] as number;
   let inClip = false;
+  let whole = true;
   for (let i = 0; i < n; i++) {
     const v = samples[i] as number;
+    if ((v | 0) !== v) whole = false;
     const a = Math.abs(v);
     if (a > maxAbs) maxAbs = a;
     sum += v;
@@ -246,7 +248,7 @@ export function qualityChecks(
       time: t(step.index),
     });
   }
-  const sp = spikes(samples, opts.spikeK, Math.max(10, Math.round(0.25 * sampleRateHz)));
+  const sp = spikes(samples, opts.spikeK, Math.max(10, Math.round(0.25 * sampleRateHz)), whole && maxAbs < 2 ** 30);
   if (sp.count > 0) {
     out.push({
       code: 'spikes',
@@ -324,6 +326,36 @@ function median5(a: number, b: number, c: number, d: number, e: number): number 
 }
 
 /**
+ * `median5` for whole numbers whose differences are below 2³¹ in size (|values| < 2³⁰): the same value
+ * without data-dependent branches (on noise every comparison of a running median is a coin toss for
+ * the branch predictor). min(a, b) = b + (d & (d >> 31)) and max(a, b) = a − (d & (d >> 31)) with
+ * d = ToInt32(a − b), exact for such numbers (two's complement sign mask).
+ */
+export function median5OfWholeNumbers(a: number, b: number, c: number, d: number, e: number): number {
+  let t = (a - b) | 0;
+  let m = t & (t >> 31);
+  const minAB = b + m;
+  const maxAB = a - m;
+  t = (c - d) | 0;
+  m = t & (t >> 31);
+  const minCD = d + m;
+  const maxCD = c - m;
+  t = (minAB - minCD) | 0;
+  const lower = minAB - (t & (t >> 31)); // max of the two minima
+  t = (maxAB - maxCD) | 0;
+  const upper = maxCD + (t & (t >> 31)); // min of the two maxima
+  // median3(e, lower, upper) = max(min(e, lower), min(max(e, lower), upper))
+  t = (e - lower) | 0;
+  m = t & (t >> 31);
+  const minEL = lower + m;
+  const maxEL = e - m;
+  t = (maxEL - upper) | 0;
+  const mid = upper + (t & (t >> 31));
+  t = (minEL - mid) | 0;
+  return minEL - (t & (t >> 31));
+}
+
+/**
  * Spike count by the robust MAD rule on the residual r from a 5-sample running median: a sample is a
  * spike when |r_i| > k·1.4826·MAD(r) AND |r_i| > 4·max|r_j| over 2 ≤ |j − i| ≤ 10 (it stands alone:
  * a high-frequency signal, e.g. a tone near fs/4, also has large residuals, but its neighbours have
@@ -338,7 +370,7 @@ function median5(a: number, b: number, c: number, d: number, e: number): number 
  *   sample; r_i is computed where it passes, and the residuals around an outlier as the rule needs them
  *   (each at most once, so the work stays O(n) however many outliers there are).
  */
-function spikes(x: Float64Array, k: number, reach = 10): { count: number; first: number } {
+function spikes(x: Float64Array, k: number, reach = 10, wholeCounts = false): { count: number; first: number } {
   const n = x.length;
   if (n < 5) return { count: 0, first: -1 };
   const resid = (i: number): number =>
@@ -348,7 +380,12 @@ function spikes(x: Float64Array, k: number, reach = 10): { count: number; first:
   const inner = n - 4;
   const stride = Math.max(1, Math.ceil(inner / 4096));
   const sample = new Float64Array(Math.ceil(inner / stride));
-  for (let m = 0; m < sample.length; m++) sample[m] = resid(2 + m * stride);
+  if (wholeCounts) {
+    for (let m = 0; m < sample.length; m++) {
+      const i = 2 + m * stride;
+      sample[m] = (x[i] as number) - median5OfWholeNumbers(x[i - 2] as number, x[i - 1] as number, x[i] as number, x[i + 1] as number, x[i + 2] as number);
+    }
+  } else for (let m = 0; m < sample.length; m++) sample[m] = resid(2 + m * stride);
   let sigma = 1.4826 * medianAbsoluteDeviation(sample);
   if (!(sigma > 0)) {
     // Quantised quiet data can have MAD 0 (most residuals exactly 0): fall back to the mean absolute

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { medianAbsoluteDeviation, medianOfWholeNumbersInPlace, qualityChecks, type QcOptions } from '@server/dsp/qc';
+import { median5OfWholeNumbers, medianAbsoluteDeviation, medianOfWholeNumbersInPlace, qualityChecks, type QcOptions } from '@server/dsp/qc';
 import { lcgUniform } from './fixture-signal';
 
 const opts: QcOptions = { flatTopSamples: 3, spikeK: 20 };
@@ -142,6 +142,18 @@ describe('median of whole numbers (branch-free selection used for the DC-step bl
         expect(medianOfWholeNumbersInPlace(Float64Array.from(v))).toBe(sortedMedian(v));
       }),
       { numRuns: 200 },
+    );
+  });
+});
+
+describe('median of five whole numbers (branch-free, for the spike rule on digitiser counts)', () => {
+  it('equals the middle of the five sorted, for values up to ±(2³⁰ − 1) and with ties', () => {
+    const v = fc.oneof(fc.integer({ min: -(2 ** 30) + 1, max: 2 ** 30 - 1 }), fc.integer({ min: -2, max: 2 }), fc.constantFrom(-(2 ** 30) + 1, 2 ** 30 - 1));
+    fc.assert(
+      fc.property(fc.tuple(v, v, v, v, v), (t) => {
+        expect(median5OfWholeNumbers(...t)).toBe([...t].sort((a, b) => a - b)[2]);
+      }),
+      { numRuns: 3000 },
     );
   });
 });
