@@ -90,6 +90,11 @@ export const envSchema = z.object({
   SEISIFT_MAX_WINDOW_S: positiveInt(3600),
   /** Sessions end after this many hours without a request (sliding expiry). */
   SEISIFT_SESSION_IDLE_HOURS: positiveInt(24),
+  /**
+   * Live-update changes (change_log rows) are kept this many hours (default 7 days), then pruned
+   * hourly; a client away longer reloads its lists instead of replaying what it missed.
+   */
+  SEISIFT_CHANGE_LOG_KEEP_HOURS: positiveInt(168),
   /** A claimed queue item goes back to `new` after this many minutes without activity by its analyst. */
   SEISIFT_CLAIM_IDLE_MINUTES: positiveInt(15),
   /**

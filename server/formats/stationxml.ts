@@ -40,6 +40,28 @@ export const pazSchema = z.object({
   stageGain: z.object({ value: z.number(), frequencyHz: z.number() }).optional(),
 });
 
+/** What a response stage holds (the FDSN StationXML 1.2 stage elements; `Gain` for a stage with only a StageGain). */
+export const STAGE_KINDS = ['PolesZeros', 'Coefficients', 'FIR', 'ResponseList', 'Polynomial', 'Gain'] as const;
+
+/** One stage of a channel's Response, in the order of the document. */
+export const responseStageSchema = z.object({
+  /** The stage's `number` attribute. */
+  number: z.number().int(),
+  kind: z.enum(STAGE_KINDS),
+  inputUnits: z.string().optional(),
+  outputUnits: z.string().optional(),
+  /** The stage's poles and zeros (kind PolesZeros). */
+  paz: pazSchema.optional(),
+  /** Digital filter coefficients: numerator count, denominator count (Coefficients), or FIR taps. */
+  coefficientCounts: z.object({ numerator: z.number().int(), denominator: z.number().int() }).optional(),
+  /** CfTransferFunctionType of a Coefficients stage. */
+  cfTransferFunctionType: z.string().optional(),
+  /** The stage's gain, when given. */
+  gain: z.object({ value: z.number(), frequencyHz: z.number() }).optional(),
+  /** Decimation of a digital stage. */
+  decimation: z.object({ inputSampleRateHz: z.number(), factor: z.number().int() }).optional(),
+});
+
 /** One channel epoch. */
 export const channelSchema = z.object({
   /** Stream id NET.STA.LOC.CHA. */
@@ -62,6 +84,8 @@ export const channelSchema = z.object({
   sampleRateHz: z.number().nonnegative().optional(),
   sensitivity: sensitivitySchema.optional(),
   paz: pazSchema.optional(),
+  /** Every stage of the Response in document order (empty when the channel has no stages). */
+  stages: z.array(responseStageSchema).default([]),
 });
 
 /** One station epoch. */
@@ -101,8 +125,10 @@ export type StationXmlDocument = z.infer<typeof stationXmlDocumentSchema>;
 export type StationXmlChannel = z.infer<typeof channelSchema>;
 /** Poles and zeros of a channel. */
 export type PolesZeros = z.infer<typeof pazSchema>;
+/** One stage of a channel's Response. */
+export type ResponseStage = z.infer<typeof responseStageSchema>;
 
-const ARRAYS = new Set(['Network', 'Station', 'Channel', 'Stage', 'Zero', 'Pole']);
+const ARRAYS = new Set(['Network', 'Station', 'Channel', 'Stage', 'Zero', 'Pole', 'Numerator', 'Denominator', 'NumeratorCoefficient']);
 
 /** A parsed XML element: children by name, attributes as `@_name`, text as `#text`. */
 type Node = Record<string, unknown>;
@@ -113,8 +139,9 @@ const nodeListSchema = z.array(z.unknown());
 /**
  * Parses FDSN StationXML 1.x (schema 1.0–1.2; element names as in the FDSN StationXML 1.2 schema)
  * for the station registry: networks → stations (code, site name, coordinates, epoch) → channels
- * (location, code, coordinates, depth, azimuth/dip, sample rate, InstrumentSensitivity and the
- * first PolesZeros stage of the Response, with its StageGain). Other response stages and elements
+ * (location, code, coordinates, depth, azimuth/dip, sample rate, InstrumentSensitivity, the
+ * first PolesZeros stage of the Response with its StageGain as `paz`, and every stage as `stages`:
+ * its kind, units, poles and zeros, coefficient counts, decimation and StageGain). Other elements
  * are ignored. Namespaces prefixes are dropped. Numbers must be finite decimals.
  *
  * @param xmlText the document text
@@ -222,6 +249,7 @@ function parseChannel(c: Node, network: string, station: string, parent: string)
     azimuthDeg: c.Azimuth === undefined ? undefined : rangedNumber(c, 'Azimuth', path, 0, 360),
     dipDeg: c.Dip === undefined ? undefined : rangedNumber(c, 'Dip', path, -90, 90),
     sampleRateHz: c.SampleRate === undefined ? undefined : rangedNumber(c, 'SampleRate', path, 0, Number.MAX_VALUE),
+    stages: [],
   };
   if (c.Response !== undefined) {
     const resp = asNode(c.Response, `${path} / Response`);
@@ -235,16 +263,64 @@ function parseChannel(c: Node, network: string, station: string, parent: string)
         outputUnits: units(s, 'OutputUnits', sp),
       };
     }
+    const stages: ResponseStage[] = [];
     for (const st of list(resp, 'Stage', `${path} / Response`)) {
       const stage = asNode(st, `${path} / Response / Stage`);
-      if (stage.PolesZeros === undefined) continue;
       const number = attr(stage, 'number');
       const stp = `${path} / Response / Stage ${number ?? '?'}`;
-      channel.paz = parsePaz(asNode(stage.PolesZeros, `${stp} / PolesZeros`), stage, Number(number ?? 0), `${stp} / PolesZeros`);
-      break;
+      const parsed = parseStage(stage, Number(number ?? 0), stp);
+      stages.push(parsed);
+      if (channel.paz === undefined && parsed.paz !== undefined) channel.paz = parsed.paz;
     }
+    channel.stages = stages;
   }
   return channel;
+}
+
+/** One Response stage: what kind it is, its units, its poles and zeros, coefficients, decimation and gain. */
+function parseStage(stage: Node, stageNumber: number, path: string): ResponseStage {
+  const number = Number.isInteger(stageNumber) ? stageNumber : 0;
+  const out: ResponseStage = { number, kind: 'Gain' };
+  const unitsOf = (n: Node, p: string): void => {
+    if (n.InputUnits !== undefined) out.inputUnits = units(n, 'InputUnits', p);
+    if (n.OutputUnits !== undefined) out.outputUnits = units(n, 'OutputUnits', p);
+  };
+  if (stage.PolesZeros !== undefined) {
+    out.kind = 'PolesZeros';
+    out.paz = parsePaz(asNode(stage.PolesZeros, `${path} / PolesZeros`), stage, number, `${path} / PolesZeros`);
+    out.inputUnits = out.paz.inputUnits;
+    out.outputUnits = out.paz.outputUnits;
+  } else if (stage.Coefficients !== undefined) {
+    const p = `${path} / Coefficients`;
+    const c = asNode(stage.Coefficients, p);
+    out.kind = 'Coefficients';
+    unitsOf(c, p);
+    out.cfTransferFunctionType = text(c.CfTransferFunctionType);
+    out.coefficientCounts = { numerator: list(c, 'Numerator', p).length, denominator: list(c, 'Denominator', p).length };
+  } else if (stage.FIR !== undefined) {
+    const p = `${path} / FIR`;
+    const f = asNode(stage.FIR, p);
+    out.kind = 'FIR';
+    unitsOf(f, p);
+    out.coefficientCounts = { numerator: list(f, 'NumeratorCoefficient', p).length, denominator: 0 };
+  } else if (stage.ResponseList !== undefined) {
+    out.kind = 'ResponseList';
+    unitsOf(asNode(stage.ResponseList, `${path} / ResponseList`), `${path} / ResponseList`);
+  } else if (stage.Polynomial !== undefined) {
+    out.kind = 'Polynomial';
+    unitsOf(asNode(stage.Polynomial, `${path} / Polynomial`), `${path} / Polynomial`);
+  }
+  if (stage.Decimation !== undefined) {
+    const p = `${path} / Decimation`;
+    const d = asNode(stage.Decimation, p);
+    out.decimation = { inputSampleRateHz: rangedNumber(d, 'InputSampleRate', p, 0, Number.MAX_VALUE), factor: Math.round(requiredNumber(d, 'Factor', p)) };
+  }
+  if (stage.StageGain !== undefined) {
+    const p = `${path} / StageGain`;
+    const g = asNode(stage.StageGain, p);
+    out.gain = { value: requiredNumber(g, 'Value', p), frequencyHz: requiredNumber(g, 'Frequency', p) };
+  }
+  return out;
 }
 
 function parsePaz(pz: Node, stage: Node, stageNumber: number, path: string): PolesZeros {

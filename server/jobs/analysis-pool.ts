@@ -1,6 +1,5 @@
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
-import { ConfigError, envSchema } from '@server/env';
 import type { DecodeOptions } from '@server/formats/decode';
 import type { DecodedStream } from '@server/formats/types';
 import type { WindowLimits } from '@server/formats/window-limits';
@@ -113,23 +112,26 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
   };
 }
 
-let sharedPool: AnalysisPool | undefined;
-
 /**
- * The process's analysis pool, created on first use with `threads` worker threads (default:
- * SEISIFT_ANALYSIS_THREADS, else one per core: `max(1, availableParallelism())`). One thread
- * analyses a 120 s 3-component window in about 8–20 ms, so the 100 windows/s target needs two on a
- * 2-core machine (docs/PERFORMANCE.md). Idle workers do not keep the process alive.
- * @throws ConfigError when SEISIFT_ANALYSIS_THREADS is not a positive whole number
+ * The app's analysis pool (one per app context, built in `createAppContext`): `threads` worker
+ * threads, SEISIFT_ANALYSIS_THREADS (default one per core). One thread analyses a 120 s 3-component
+ * window in about 8–20 ms, so the 100 windows/s target needs two on a 2-core machine
+ * (docs/PERFORMANCE.md). The workers start with the first task, so a context that never ingests nor
+ * draws traces (most tests, the CLI) starts none.
  */
-export function defaultAnalysisPool(threads: number = analysisThreads()): AnalysisPool {
-  sharedPool ??= createAnalysisPool({ threads });
-  return sharedPool;
-}
-
-/** SEISIFT_ANALYSIS_THREADS from `source` (validated like every setting), else one per core. */
-export function analysisThreads(source: NodeJS.ProcessEnv = process.env): number {
-  const r = envSchema.shape.SEISIFT_ANALYSIS_THREADS.safeParse(source.SEISIFT_ANALYSIS_THREADS);
-  if (!r.success) throw new ConfigError(`SEISIFT_ANALYSIS_THREADS: ${r.error.issues[0]?.message ?? 'invalid'} (got "${source.SEISIFT_ANALYSIS_THREADS ?? ''}")`);
-  return r.data;
+export function createLazyAnalysisPool(threads: number): AnalysisPool {
+  let pool: AnalysisPool | null = null;
+  const open = (): AnalysisPool => (pool ??= createAnalysisPool({ threads }));
+  return {
+    threads,
+    run: (streams, profile, opts) => open().run(streams, profile, opts),
+    runMatched: (streams, profile, opts, bank, match) => open().runMatched(streams, profile, opts, bank, match),
+    decode: (bytes, opts, limits) => open().decode(bytes, opts, limits),
+    traces: (input) => open().traces(input),
+    async close() {
+      const started = pool;
+      pool = null;
+      await started?.close();
+    },
+  };
 }

@@ -3,6 +3,8 @@ import { z } from 'zod';
 import { apiErrorBodySchema } from '@shared/api-error';
 import { accountOperations } from '@server/features/accounts/openapi';
 import { auditOperations } from '@server/features/audit/openapi';
+import { eventOperations } from '@server/features/events/openapi';
+import { eventGeometryOperations } from '@server/features/events/event-geometry';
 import { healthOperations } from '@server/features/health/openapi';
 import { ingestOperations } from '@server/features/ingest/openapi';
 import { queueOperations } from '@server/features/queue/openapi';
@@ -28,6 +30,8 @@ export const apiOperations: readonly ApiOperation[] = [
   ...queueOperations,
   ...supervisionOperations,
   ...similarityOperations,
+  ...eventOperations,
+  ...eventGeometryOperations,
   ...stationOperations,
   ...ingestOperations,
   ...documentOperations,

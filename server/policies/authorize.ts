@@ -23,6 +23,10 @@ const actionWords: Record<Action, string> = {
   'audit.view': 'see the audit log',
   'users.manage': 'manage users',
   'mailbox.view': 'see the mailbox',
+  'event.view': 'see this event',
+  'event.pick': 'pick phases on events',
+  'event.edit': 'change events',
+  'velocity-model.edit': "edit the network's velocity model",
 };
 
 /**

@@ -14,6 +14,8 @@ import type { Role } from './roles';
  *   judging an item), so the Stations page is in an analyst's navigation.
  * - supervisor: every analyst right, plus registering stations, review, thresholds, catalogue
  *   export, audit log.
+ * - events: operators see those involving their stations; analysts and supervisors pick, edit and
+ *   relocate them; only supervisors edit a network's velocity model and ML settings.
  * - admin: people, roles, station assignments, invitations, the station registry and its tokens,
  *   the audit log and the local mailbox. Admin implies no analyst/supervisor right, and no role
  *   implies admin.
@@ -37,6 +39,10 @@ export const actions = [
   'audit.view',
   'users.manage',
   'mailbox.view',
+  'event.view',
+  'event.pick',
+  'event.edit',
+  'velocity-model.edit',
 ] as const;
 
 /** One action name. */
@@ -79,6 +85,12 @@ export const policyTable: Record<Action, Partial<Record<Role, 'all' | 'assigned'
   'audit.view': { supervisor: 'all', admin: 'all' },
   'users.manage': { admin: 'all' },
   'mailbox.view': { admin: 'all' },
+  // Events (issue 17): an operator sees the events that involve one of their stations; analysts pick,
+  // change members, re-pick amplitudes and relocate; a supervisor also edits the network's velocity model.
+  'event.view': { operator: 'assigned', analyst: 'all', supervisor: 'all' },
+  'event.pick': { analyst: 'all', supervisor: 'all' },
+  'event.edit': { analyst: 'all', supervisor: 'all' },
+  'velocity-model.edit': { supervisor: 'all' },
 };
 
 /**

@@ -115,6 +115,13 @@ export const routes: RouteObject[] = [
         },
       },
       {
+        path: paths.event.path.slice(1),
+        lazy: async () => {
+          const { EventRoute } = await import('./routes/event');
+          return { Component: EventRoute };
+        },
+      },
+      {
         path: paths.stations.path.slice(1),
         lazy: async () => {
           const { StationsRoute } = await import('./routes/stations');

@@ -11,6 +11,8 @@ export const paths = {
   queue: { path: '/queue', href: '/queue' },
   /** One queue item on the review screen: `${paths.queueItem.href}/${id}`. */
   queueItem: { path: '/queue/items/:id', href: '/queue/items' },
+  /** One event on the event workbench: `${paths.event.href}/${id}`. */
+  event: { path: '/events/:id', href: '/events' },
   stations: { path: '/stations', href: '/stations' },
   /** One station's page: `${paths.station.href}/${id}`. */
   station: { path: '/stations/:id', href: '/stations' },

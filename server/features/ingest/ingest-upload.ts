@@ -4,7 +4,6 @@ import { z } from 'zod';
 import { can } from '@shared/auth/policies';
 import { capMessage, clipInput, MAX_QUOTED_CHARS } from '@shared/quote-input';
 import { flagSchema } from '@shared/schemas/flags';
-import { channelResponseSchema } from '@shared/schemas/station';
 import type { UploadOutcome } from '@shared/schemas/upload';
 import type { Database, DbOrTx } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
@@ -25,7 +24,7 @@ import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { firstTriggerMs, recheckLoneTriggers, regroupArrivals } from '@server/features/events/candidate-events';
 import { decodeStoredSamples, encodeSamples } from '@server/db/samples-codec';
 import { stationBaseline } from '@server/features/stations/station-baseline';
-import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from '@server/features/stations/station-registry';
+import { channelSensitivity, stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from '@server/features/stations/station-registry';
 import { applyResemblance, type ResemblanceOutcome } from '@server/features/similarity/resemblance';
 import { similaritySettings, type SimilaritySettings } from '@server/features/similarity/settings';
 import { loadStationBank, pruneStationTemplates, resolveMatches, storeTemplateAndMatches, type StationTemplate } from '@server/features/similarity/template-store';
@@ -201,13 +200,10 @@ async function insertBinary(tx: DbOrTx, insert: { toSQL(): { sql: string; params
   return [{ id: parsed.data[0].insertId }];
 }
 
-const VELOCITY_UNITS = /^(m\/s|m\/sec|meters?\/s(ec(ond)?)?)$/i;
-
 /**
- * The engine's sensitivity options for a station's channels: a full poles-and-zeros response when
- * one is stored, else the flat sensitivity (counts per m/s). A sensitivity whose input units are
- * not velocity (e.g. an accelerometer's M/S**2) is not used, since the engine's physical units are
- * m/s; such channels are analysed in counts.
+ * The engine's sensitivity options for a station's channels (`channelSensitivity`: a full
+ * poles-and-zeros response, else a flat velocity sensitivity; none for other input units) and the
+ * registered sample rates.
  */
 export function analysisOptionsFor(station: RegisteredStation, streams: readonly DecodedStream[]): Pick<AnalyzeOptions, 'sensitivity' | 'expectedSampleRateHz'> {
   const sensitivity: Record<string, number | PolesZerosResponse> = {};
@@ -216,12 +212,8 @@ export function analysisOptionsFor(station: RegisteredStation, streams: readonly
     const ch = station.channels.get(s.id);
     if (!ch) continue;
     expectedSampleRateHz[s.id] = ch.sampleRateHz;
-    const units = ch.sensitivityInputUnits;
-    const velocity = units === null || units.trim() === '' || VELOCITY_UNITS.test(units.trim());
-    if (!velocity) continue;
-    const paz = channelResponseSchema.safeParse(ch.response);
-    if (paz.success) sensitivity[s.id] = paz.data;
-    else if (ch.sensitivity !== null && ch.sensitivity > 0) sensitivity[s.id] = ch.sensitivity;
+    const used = channelSensitivity(ch);
+    if (used !== null) sensitivity[s.id] = used;
   }
   return { sensitivity, expectedSampleRateHz };
 }

@@ -12,19 +12,22 @@ import { loadQueueRow } from '@server/features/queue/queue-rows';
 import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { recordAudit } from '@server/features/audit/audit';
 import type { InboxActor, InboxDeps } from './inbox';
-import type { CatalogueEvent, CataloguePick } from './quakeml-export';
+import type { CatalogueEvent, CatalogueLocation, CataloguePick } from './quakeml-export';
+import { eventIdsWithStatus, eventMembershipOf, getEventDetail } from '@server/features/events/event-service';
+import type { EventDetail } from '@shared/schemas/events';
+import { z } from 'zod';
 
 /**
  * Review of labelled events and the reviewed catalogue.
  * - The review list holds items labelled as events (states labelled and confirmed), with their
  *   QuakeML evaluation status (`preliminary` until a supervisor sets one) and candidate event.
- * - The time shown for an event is its earliest P pick, else its earliest trigger (window start +
- *   first trigger-on of the lead channel), else the window start; `eventTimeBasis` says which.
- *   Seisift does not locate events or compute magnitudes; this is a station time, not an origin time.
+ * - The time shown for a window is its earliest P pick, else its earliest trigger (window start +
+ *   first trigger-on of the lead channel), else the window start; `eventTimeBasis` says which (a
+ *   station time). In the catalogue a located event shows its origin time.
  * - Setting confirmed, reviewed or final moves the item to state `confirmed`; `rejected` leaves it
  *   `labelled` (the analyst's label stands, the supervisor does not accept it for the catalogue).
- * - The catalogue merges the members of one candidate event into one event (picks from every
- *   member; the type most members carry, ties to the earliest member); other items are one event each.
+ * - The catalogue lists events (server/features/events): the reviewed windows an event holds merge
+ *   into it, with its location and ML; other reviewed windows are one event each, without a location.
  */
 
 const analyst = alias(users, 'analyst');
@@ -184,57 +187,123 @@ export async function reviewNote(db: Database, itemId: number): Promise<{ evalua
   return r ? { evaluationStatus: r.s, comment: r.c, returnComment: r.rc, returnedBy: r.rb, returnedAt: r.ra?.toISOString() ?? null } : null;
 }
 
+/** The export's location of an event from its detail (preferred origin, arrivals, amplitudes, magnitudes). */
+export function catalogueLocation(d: EventDetail): CatalogueLocation | null {
+  const o = d.origin;
+  if (!o) return null;
+  const ampId = new Map(d.amplitudes.map((a) => [a.streamId, `${d.event.id}-${o.id}-${a.id}`]));
+  return {
+    originId: `${d.event.id}-${o.id}`,
+    time: o.time,
+    latitude: o.latitude,
+    longitude: o.longitude,
+    depthKm: o.depthKm,
+    depthFixed: o.depthFixed,
+    depthFixedReason: o.depthFixedReason,
+    ellipse: o.uncertainty.ellipse,
+    depthKm68: o.uncertainty.depthKm,
+    timeS68: o.uncertainty.timeS,
+    rmsS: o.rmsS,
+    azimuthalGapDeg: o.azimuthalGapDeg,
+    minimumDistanceKm: o.minimumDistanceKm,
+    usedPhases: o.usedPhases,
+    usedStations: o.usedStations,
+    evaluationMode: o.evaluationMode,
+    modelName: o.velocityModel.name,
+    author: o.author,
+    creationTime: o.createdAt,
+    notes: o.notes,
+    arrivals: d.arrivals.map((a) => ({ pickId: a.pickId === null ? null : `event-${d.event.id}-${a.pickId}`, phase: a.phase, modelPhase: a.modelPhase, residualS: a.residualS, distanceKm: a.distanceKm, azimuthDeg: a.azimuthDeg, takeoffAngleDeg: a.takeoffAngleDeg, weight: a.weight })),
+    amplitudes: d.amplitudes.map((a) => ({ id: `${d.event.id}-${o.id}-${a.id}`, streamId: a.streamId, amplitudeMm: a.amplitudeMm, periodS: a.periodS, time: a.time, evaluationMode: a.evaluationMode })),
+    stationMagnitudes: d.stationMagnitudes.map((m, k) => ({ id: `${d.event.id}-${o.id}-${k}`, station: m.station, streamIds: m.streamIds, value: m.value, amplitudeIds: m.streamIds.map((id) => ampId.get(id)).filter((x): x is string => x !== undefined) })),
+    magnitude: d.magnitude ? { id: `${d.event.id}-${o.id}`, value: d.magnitude.value, uncertainty: d.magnitude.uncertainty, stationCount: d.magnitude.stationCount, method: d.magnitude.method, evaluationMode: d.magnitude.evaluationMode } : null,
+  };
+}
+
+const STATUS_ORDER: EvaluationStatus[] = ['rejected', 'preliminary', 'confirmed', 'reviewed', 'final'];
+
 /**
  * The reviewed catalogue for a period (window start in [from, to)) with the given statuses, as
- * export events (see the module comment for how candidate events are merged).
+ * export events, one per event: the reviewed windows an event holds merge into it (with its
+ * preferred origin, arrivals, amplitudes and magnitudes, and the picks its location used), and
+ * events whose own evaluation status is one of `statuses` come in even when no member window was
+ * reviewed. An event's status is its own when a supervisor set one, else the weakest of its reviewed
+ * windows'. A reviewed window no event holds is an event of its own, without a location.
  */
 export async function loadCatalogue(db: Database, period: { from: Date; to: Date }, statuses: readonly EvaluationStatus[]): Promise<CatalogueEvent[]> {
   const rows = await selectReview(db)
-    .where(reviewWhere({ status: [...statuses], from: period.from.toISOString(), to: period.to.toISOString() }))
+    .where(reviewWhere({ status: [...STATUS_ORDER], from: period.from.toISOString(), to: period.to.toISOString() }))
     .orderBy(asc(queueItems.windowStart), asc(queueItems.id))
     .limit(20_000);
   const items = rows.map((r) => ({ view: present(r), updatedAt: r.updatedAt, reviewedAt: r.reviewedAt }));
+  const membership = await eventMembershipOf(db, items.map((i) => i.view.itemId));
   const groups = new Map<string, typeof items>();
   for (const it of items) {
-    const key = it.view.candidateEventId !== null ? `candidate/${it.view.candidateEventId}` : `item/${it.view.itemId}`;
+    const eventId = membership.get(it.view.itemId);
+    const key = eventId !== undefined ? `event/${eventId}` : `item/${it.view.itemId}`;
     groups.set(key, [...(groups.get(key) ?? []), it]);
   }
+  for (const id of await eventIdsWithStatus(db, period, statuses)) if (!groups.has(`event/${id}`)) groups.set(`event/${id}`, []);
   const events: CatalogueEvent[] = [];
   for (const [localId, members] of groups) {
     members.sort((a, b) => Date.parse(a.view.eventTime) - Date.parse(b.view.eventTime) || a.view.itemId - b.view.itemId);
+    const detail = localId.startsWith('event/') ? await getEventDetail(db, Number(localId.slice('event/'.length)), 'all') : null;
     const first = members[0];
-    if (!first) continue;
+    if (!first && !detail) continue;
     const typeCounts = new Map<string, number>();
     for (const m of members) typeCounts.set(m.view.eventType, (typeCounts.get(m.view.eventType) ?? 0) + 1);
-    let eventType = first.view.eventType;
-    for (const [t, n] of typeCounts) if (n > (typeCounts.get(eventType) ?? 0)) eventType = t;
+    let eventType = detail?.event.eventType ?? first?.view.eventType ?? 'not reported';
+    if (!detail?.event.eventType) for (const [t, n] of typeCounts) if (n > (typeCounts.get(eventType) ?? 0)) eventType = t;
     const picks: CataloguePick[] = [];
     const comments: string[] = [];
+    const memberStatuses = members.map((m) => m.view.evaluationStatus);
+    const weakest = memberStatuses.reduce((w, st) => (STATUS_ORDER.indexOf(st) < STATUS_ORDER.indexOf(w) ? st : w), memberStatuses[0] ?? 'preliminary');
+    const own = detail?.event.evaluationStatus;
+    const status: EvaluationStatus = own !== undefined && own !== 'preliminary' ? own : weakest;
+    if (!statuses.includes(status)) continue;
     for (const m of members) {
       const label = m.view.parsedLabel;
       if (label?.kind !== 'event') continue;
-      label.picks.forEach((p, i) => picks.push({ id: `item/${m.view.itemId}/${i}`, phase: p.phase, time: p.time, onset: p.onset, polarity: p.polarity, streamId: p.streamId, evaluationStatus: m.view.evaluationStatus, author: m.view.analyst?.displayName ?? null }));
+      if (!detail) label.picks.forEach((p, i) => picks.push({ id: `item/${m.view.itemId}/${i}`, phase: p.phase, time: p.time, onset: p.onset, polarity: p.polarity, streamId: p.streamId, evaluationStatus: status, author: m.view.analyst?.displayName ?? null }));
       if (label.note) comments.push(`${m.view.station} (item ${m.view.itemId}): ${label.note}`);
       if (m.view.reviewComment) comments.push(`Review of item ${m.view.itemId}: ${m.view.reviewComment}`);
       if (m.view.eventType !== eventType) comments.push(`Item ${m.view.itemId} at ${m.view.station} is labelled ${m.view.eventType}`);
     }
-    const statuses = members.map((m) => m.view.evaluationStatus);
-    const order: EvaluationStatus[] = ['rejected', 'preliminary', 'confirmed', 'reviewed', 'final'];
-    const weakest = statuses.reduce((w, s) => (order.indexOf(s) < order.indexOf(w) ? s : w), statuses[0] ?? 'preliminary');
+    const location = detail ? catalogueLocation(detail) : null;
+    if (detail) {
+      const used = detail.picks.usedForLocation === 'manual' ? detail.picks.analyst : detail.picks.automatic;
+      for (const p of used) {
+        picks.push({
+          id: `event-${detail.event.id}-${p.id}`,
+          phase: p.phase,
+          time: p.time,
+          onset: z.enum(['impulsive', 'emergent', 'questionable']).catch('questionable').parse(p.onset),
+          polarity: z.enum(['positive', 'negative', 'undecidable']).catch('undecidable').parse(p.polarity),
+          streamId: p.streamId,
+          evaluationStatus: status,
+          author: p.author,
+          evaluationMode: p.evaluationMode,
+          uncertaintyS: p.uncertaintyS,
+        });
+      }
+      if (!location && detail.event.locationRefusal) comments.push(`Not located: ${detail.event.locationRefusal}`);
+    }
     const created = members.map((m) => (m.reviewedAt ?? m.updatedAt).getTime());
+    const time = location?.time ?? first?.view.eventTime ?? detail?.event.firstArrival ?? period.from.toISOString();
     events.push({
       localId,
       eventType,
-      certainty: members.every((m) => m.view.certainty === 'known') ? 'known' : 'suspected',
-      evaluationStatus: weakest,
-      time: first.view.eventTime,
-      timeBasis: first.view.eventTimeBasis,
-      author: first.view.analyst?.displayName ?? null,
-      reviewer: first.view.reviewedBy?.displayName ?? null,
-      creationTime: new Date(Math.max(...created)).toISOString(),
-      stations: [...new Set(members.map((m) => m.view.station))],
+      certainty: detail?.event.typeCertainty === 'known' || (members.length > 0 && members.every((m) => m.view.certainty === 'known')) ? 'known' : 'suspected',
+      evaluationStatus: status,
+      time,
+      timeBasis: location ? 'origin time' : (first?.view.eventTimeBasis ?? 'earliest trigger'),
+      author: first?.view.analyst?.displayName ?? location?.author ?? null,
+      reviewer: first?.view.reviewedBy?.displayName ?? null,
+      creationTime: new Date(created.length > 0 ? Math.max(...created) : Date.parse(location?.creationTime ?? time)).toISOString(),
+      stations: detail ? [...new Set(detail.members.filter((m) => !m.removed).map((m) => m.station))] : [...new Set(members.map((m) => m.view.station))],
       picks,
       comments,
+      ...(location ? { location } : {}),
     });
   }
   return events.sort((a, b) => Date.parse(a.time) - Date.parse(b.time));

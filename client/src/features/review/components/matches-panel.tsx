@@ -20,8 +20,8 @@ function Overlay({ m }: { m: ItemMatch }) {
   const path = (ys: number[]) => ys.map((y, i) => `${i === 0 ? 'M' : 'L'}${(((o.times[i] ?? 0) / t1) * w).toFixed(1)},${(h / 2 - (y * h) / 2.2).toFixed(1)}`).join(' ');
   return (
     <svg viewBox={`0 0 ${w} ${h}`} className="h-16 w-full" role="img" aria-label={`${o.channel}: this window (solid) and the match (dashed) from ${m.offsetS.toFixed(2)} s, over ${t1.toFixed(1)} s`}>
-      <path d={path(o.window)} fill="none" stroke="var(--sf-series-1, currentColor)" strokeWidth="1" />
-      <path d={path(o.template)} fill="none" stroke="var(--sf-series-2, currentColor)" strokeWidth="1" strokeDasharray="4 2" />
+      <path d={path(o.window)} fill="none" stroke="var(--sf-plot-1)" strokeWidth="1" />
+      <path d={path(o.template)} fill="none" stroke="var(--sf-plot-2)" strokeWidth="1" strokeDasharray="4 2" />
     </svg>
   );
 }

@@ -5,12 +5,13 @@ import { familiesResponseSchema, type Family } from '@shared/schemas/similarity'
 import { Select } from '@client/components/ui/select';
 import { Table, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
 import { paths } from '@client/config/paths';
-import { fetchJson } from '@client/features/supervisor/api/supervisor-api';
+import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 import { ErrorLine, Section } from './common';
 
 /** Query options of the families at a threshold. */
 export const familiesQuery = (minValue: number) =>
-  queryOptions({ queryKey: ['similarity', 'families', minValue], queryFn: () => fetchJson(familiesResponseSchema, `/api/similarity/families?minValue=${minValue}`) });
+  queryOptions({ queryKey: queryKeys.similarity.families(minValue), queryFn: ({ signal }) => apiRequest(familiesResponseSchema, `/api/similarity/families?minValue=${minValue}`, { signal }) });
 
 /** Windows per UTC hour as a row of 24 bars (height and a text title: never colour alone). */
 function Hours({ hours }: { hours: number[] }) {
