@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { butterworthSos } from '@server/dsp/butterworth';
 import { channelChain } from '@server/dsp/channel-chain';
 import { analyzeWindow } from '@server/dsp/pipeline';
 import { bandEnergy, sosfilt } from '@server/dsp/sosfilt';
@@ -46,7 +47,7 @@ describe('channelChain: band energies with and without band traces', () => {
           expect(fullEnergy.low).toBe(bandEnergy(sosfilt(full.lowSos, full.rejected), fs));
           expect(fullEnergy.high).toBe(bandEnergy(sosfilt(full.highSos, full.rejected), fs));
           expect(Array.from(full.lowY)).toEqual(Array.from(sosfilt(full.lowSos, full.rejected)));
-          const lean = channelChain(x, fs, profile, sens, undefined, { bands: 'energies', workArrays: true });
+          const lean = channelChain(x, fs, profile, sens, butterworthSos, { bands: 'energies', workArrays: true });
           expect(lean.lowY).toBeNull();
           expect(lean.highY).toBeNull();
           expect(Object.is(lean.energy.low, fullEnergy.low)).toBe(true);
