@@ -8,7 +8,8 @@ import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosRespon
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
 import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
 import { peakOf, snrAroundTrigger } from './sta-lta';
-import { bandEnergy, sosfiltZeroPhase } from './sosfilt';
+import { sosfiltInto, sosfiltZeroPhase } from './sosfilt';
+import { workArray } from './work-arrays';
 
 /**
  * The analysis of one window (one station's channels for one time span): the output contract of
@@ -199,13 +200,15 @@ function analyzeChannel(
     throw new AnalysisError(`${s.id}: sensitivity ${flatSensitivity} counts per m/s must be a positive number`);
   }
   // The per-channel chain the trace view runs too (channel-chain.ts): pre-processing, bands,
-  // band-reject, both band-passes and the trigger's own chain.
-  const ch = channelChain(s.samples, fs, profile, flatSensitivity, design);
+  // band-reject, both band-passes and the trigger's own chain. Every long intermediate trace lives in
+  // a reused work array (see work-arrays.ts); none leaves this function. Only the display shows the
+  // band traces; otherwise the chain computes their energies without them.
+  const ch = channelChain(s.samples, fs, profile, flatSensitivity, design, { workArrays: true, bands: opts.display === true ? 'traces' : 'energies' });
   warnings.push(...ch.warnings);
-  const { pre, rejected, low, high, lowSos, highSos, lowY, highY, bandReject } = ch;
+  const { pre, rejected, low, high, lowSos, highSos, bandReject } = ch;
   const zeroPhaseDisplay = opts.display === true && opts.displayFiltering === 'zero-phase';
-  const eLow = bandEnergy(lowY, fs);
-  const eHigh = bandEnergy(highY, fs);
+  const eLow = ch.energy.low;
+  const eHigh = ch.energy.high;
   const ratio = eLow > 0 ? eHigh / eLow : null;
   const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
 
@@ -337,8 +340,8 @@ function analyzeChannel(
     const bucket = Math.max(1, Math.ceil((2 * n) / points));
     const idx = minMaxIndices(pre, bucket);
     const pick = (y: Float64Array): number[] => idx.map((i) => y[i] as number);
-    const lowShown = zeroPhaseDisplay ? sosfiltZeroPhase(lowSos, rejected) : lowY;
-    const highShown = zeroPhaseDisplay ? sosfiltZeroPhase(highSos, rejected) : highY;
+    const lowShown = zeroPhaseDisplay ? sosfiltZeroPhase(lowSos, rejected) : (ch.lowY ?? sosfiltInto(lowSos, rejected, workArray('low-band', n)));
+    const highShown = zeroPhaseDisplay ? sosfiltZeroPhase(highSos, rejected) : (ch.highY ?? sosfiltInto(highSos, rejected, workArray('high-band', n)));
     result.display = {
       bucket,
       filtering: zeroPhaseDisplay ? 'zero-phase' : 'causal',
