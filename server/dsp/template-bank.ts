@@ -260,9 +260,11 @@ function runningSquares(x: Float64Array): Float64Array {
 
 /**
  * The coarse pass for templates sharing block size B (see the module comment): sets each template's
- * `coarseValue`, `coarseLag` and `spacing`. Per template and block, the analytic correlation's band is, moved to 0 Hz: bins kLo … kHi of
- * S_k = Σ_c X_c,k·conj(W_c,k) (the spectrum of the real circular correlation r summed over the
- * template's components present in the window) written to bins 0 … kHi − kLo, the rest 0. The inverse
+ * `coarseValue`, `coarseLag` and `spacing`. Per template and block, the analytic correlation's band
+ * is moved to 0 Hz: bins kLo … kHi of S_k = Σ_c X_c,k·conj(W_c,k) (the spectrum of the real circular
+ * correlation r summed over the template's components present in the window) are written to bins
+ * 0 … kHi − kLo, the rest 0. The data's band bins are transformed once per block and component and
+ * kept in one array; the templates' band bins come prepared (`PreparedCache`). The inverse
  * transform of size Q of these bins is, at every (B/Q)-th lag, the analytic signal z = r + i·H(r) of r
  * (negative frequencies dropped, positive doubled: Bracewell, The Fourier Transform and Its
  * Applications, ch. 12) times a phase ramp — so its magnitude is r's envelope, sampled every B/Q coarse

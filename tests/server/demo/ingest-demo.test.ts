@@ -38,7 +38,7 @@ beforeAll(async () => {
   // The app's escalation hook (inbox entry and e-mail for every supervisor), as npm start passes it.
   const hook = escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, publicUrl: 'http://127.0.0.1:3000' });
   first = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger, escalationListeners: [hook] });
-}, 180_000);
+}, 400_000);
 
 afterAll(async () => {
   await pool?.close();
