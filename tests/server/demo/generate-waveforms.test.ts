@@ -145,7 +145,7 @@ describe('demo files decode', () => {
     } finally {
       rmSync(tool.dir, { recursive: true, force: true });
     }
-  }, 120_000);
+  }, 300_000);
 
   it('every MiniSEED window holds 120 s of Z, N, E at 100 sps (the gap window as two files, before and after the gap), samples as synthesized', () => {
     const find = (station: string, startUs: number) => manifest.files.find((x) => x.station === station && Date.parse(x.start) * 1000 === startUs && x.file.endsWith('.mseed'));
