@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import { and, eq, inArray, isNull } from 'drizzle-orm';
+import { and, eq, isNull } from 'drizzle-orm';
 import { eventReturnBodySchema, type EventReturnResult } from '@shared/schemas/event-return';
 import type { AppContext } from '@server/context';
 import type { DbOrTx } from '@server/db/client';
