@@ -168,10 +168,10 @@ function EventTable({ rows }: { rows: EventSummary[] }) {
                 <Td figure className="text-sm">
                   {ev.azimuthalGapDeg !== null ? `${Math.round(ev.azimuthalGapDeg)}°` : '—'}
                 </Td>
-                <Td figure className="text-sm">
+                <Td figure className="text-sm whitespace-nowrap">
                   {ev.rmsS !== null ? `${ev.rmsS.toFixed(2)} s` : '—'}
                 </Td>
-                <Td className="text-sm">
+                <Td className="text-sm whitespace-nowrap">
                   {ev.eventType ?? <span className="text-ink-muted">not typed</span>}
                   {ev.typeCertainty ? <span className="block text-xs text-ink-muted">{ev.typeCertainty}</span> : null}
                 </Td>
@@ -180,7 +180,7 @@ function EventTable({ rows }: { rows: EventSummary[] }) {
                   {ev.evaluationMode ? <span className="block text-xs text-ink-muted">{ev.evaluationMode} origin</span> : null}
                 </Td>
                 <Td>
-                  <div className="flex flex-wrap gap-1">
+                  <div className="flex items-center gap-1 whitespace-nowrap">
                     <Button size="sm" variant="quiet" aria-expanded={openWindows.has(ev.id)} aria-controls={`event-windows-${ev.id}`} onClick={() => toggle(ev.id)}>
                       {openWindows.has(ev.id) ? 'Hide' : 'Windows'} ({ev.memberItemIds.length})
                     </Button>

@@ -112,7 +112,8 @@ function ModelForm({ network }: { network: string }) {
           Model name
           <Input value={name} onChange={(e) => setName(e.target.value)} />
         </label>
-        <Table caption={`Layers of the ${network} model, from the surface down (the last is a half-space)`} className="w-fit">
+        <div className="max-w-2xl">
+        <Table caption={`Layers of the ${network} model, from the surface down (the last is a half-space)`}>
           <THead>
             <tr>
               <Th>Layer</Th>
@@ -146,6 +147,7 @@ function ModelForm({ network }: { network: string }) {
             ))}
           </TBody>
         </Table>
+        </div>
         <div className="flex flex-wrap gap-2">
           <Button size="sm" onClick={() => setLayers([...layers, { topKm: '', vpKmS: '', vsKmS: '' }])}>
             Add a layer
