@@ -1,15 +1,16 @@
 /**
- * A pause a worker makes in its first attempt at a job, for the cluster tests only (NODE_ENV=test):
- * SEISIFT_TEST_WORKER_HOLD=`before-commit:<ms>` holds inside the ingest transaction, with every row
- * written and nothing committed; `after-commit:<ms>` holds after the commit, before the job is
- * marked done. The worker prints `seisift-worker: holding <where> <job id>` when it starts the
- * pause, so a test can SIGKILL it right then.
+ * A pause a worker makes in its first attempt at a job, for the cluster tests only: with
+ * NODE_ENV=test and SEISIFT_TEST_WORKER_HOLD_MS set, a file named `hold-before-commit-…` is held
+ * inside the ingest transaction (every row written, nothing committed) and one named
+ * `hold-after-commit-…` after the commit, before the job is marked done. The worker prints
+ * `seisift-worker: holding <where> <job id>` as the pause starts, so a test can SIGKILL it then.
+ * Every other file, and every process without both settings, goes straight through.
  */
 export type TestHold = { where: 'before-commit' | 'after-commit'; ms: number };
 
-/** The hold that `value` asks for, or null (unset, malformed, or not NODE_ENV=test). */
-export function parseTestHold(value: string | undefined, nodeEnv: string): TestHold | null {
-  if (nodeEnv !== 'test' || !value) return null;
-  const m = /^(before-commit|after-commit):(\d{1,6})$/.exec(value);
-  return m ? { where: m[1] as TestHold['where'], ms: Number(m[2]) } : null;
+/** The hold for a file named `filename`, or null. */
+export function testHoldFor(filename: string, holdMs: string | undefined, nodeEnv: string): TestHold | null {
+  if (nodeEnv !== 'test' || !holdMs || !/^\d{1,6}$/.test(holdMs)) return null;
+  const m = /^hold-(before-commit|after-commit)-/.exec(filename);
+  return m ? { where: m[1] as TestHold['where'], ms: Number(holdMs) } : null;
 }

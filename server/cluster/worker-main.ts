@@ -19,7 +19,7 @@ import { ANALYSE_QUEUE, analyseJobSchema, processAnalyseJob } from './analyse-jo
 import { createWakeupPublisher } from './change-wakeup';
 import { newInstanceId } from './cluster-link';
 import { closeRedis, openRedis } from './redis-clients';
-import { parseTestHold } from './test-hold';
+import { testHoldFor } from './test-hold';
 
 /** A job's lock lasts this long and is renewed every half of it while the job runs, ms. */
 export const LOCK_MS = 10_000;
@@ -40,7 +40,6 @@ try {
   const publisher = createWakeupPublisher(command, instanceId, logger);
   const concurrency = env.SEISIFT_WORKER_CONCURRENCY;
   const pool = createLazyAnalysisPool(concurrency);
-  const hold = parseTestHold(process.env.SEISIFT_TEST_WORKER_HOLD, env.NODE_ENV);
   const pause = (where: string, job: Job, ms: number) => {
     console.log(`seisift-worker: holding ${where} ${job.id ?? ''}`);
     return new Promise((r) => setTimeout(r, ms));
@@ -50,19 +49,20 @@ try {
     ANALYSE_QUEUE,
     async (job: Job) => {
       const first = job.attemptsStarted <= 1;
+      const parsed = analyseJobSchema.safeParse(job.data);
+      const hold = first && parsed.success ? testHoldFor(parsed.data.filename, process.env.SEISIFT_TEST_WORKER_HOLD_MS, env.NODE_ENV) : null;
       const deps: IngestDeps = {
         db: database.db,
         pool,
         notify: () => publisher.notify(),
         logger,
         limits: { maxSamples: env.SEISIFT_MAX_WINDOW_SAMPLES, maxDurationS: env.SEISIFT_MAX_WINDOW_S },
-        ...(hold?.where === 'before-commit' && first ? { beforeCommit: async () => void (await pause('before-commit', job, hold.ms)) } : {}),
+        ...(hold?.where === 'before-commit' ? { beforeCommit: async () => void (await pause('before-commit', job, hold.ms)) } : {}),
       };
       const outcome = await processAnalyseJob(deps, job);
-      if (hold?.where === 'after-commit' && first) await pause('after-commit', job, hold.ms);
+      if (hold?.where === 'after-commit') await pause('after-commit', job, hold.ms);
       // The file's bytes leave Redis with the job's completion; the outcome stays (a repeated request reads it).
-      const data = analyseJobSchema.safeParse(job.data);
-      if (data.success) await job.updateData({ ...data.data, bytes: '' }).catch(() => {});
+      if (parsed.success) await job.updateData({ ...parsed.data, bytes: '' }).catch(() => {});
       return outcome;
     },
     { connection: blocking, concurrency, lockDuration: LOCK_MS, stalledInterval: STALLED_CHECK_MS, maxStalledCount: 2, name: instanceId },
