@@ -78,8 +78,9 @@ describe('Redis adapters', () => {
     const a = open('command', 'limit-a');
     const b = open('command', 'limit-b');
     await Promise.all([ready(a), ready(b)]);
-    const limitA = createAttemptLimiter({ points: 3, durationS: 60 }, `test-${Date.now()}`, a);
-    const limitB = createAttemptLimiter({ points: 3, durationS: 60 }, `test-${Date.now()}`, b);
+    const prefix = `test-${Date.now()}`;
+    const limitA = createAttemptLimiter({ points: 3, durationS: 60 }, prefix, a);
+    const limitB = createAttemptLimiter({ points: 3, durationS: 60 }, prefix, b);
     await limitA.consume('198.51.100.7');
     await limitB.consume('198.51.100.7');
     await limitA.consume('198.51.100.7');
