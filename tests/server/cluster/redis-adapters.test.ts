@@ -44,11 +44,11 @@ describe('Redis adapters', () => {
   it('the private Redis listens on loopback only, keeps an append-only file and never evicts', async () => {
     const r = open('command', 'config');
     await ready(r);
-    const cfg = (await r.config('GET', 'bind')) as string[];
+    const cfg = await r.config('GET', 'bind');
     expect(cfg[1]).toBe('127.0.0.1');
-    expect(((await r.config('GET', 'appendonly')) as string[])[1]).toBe('yes');
-    expect(((await r.config('GET', 'maxmemory-policy')) as string[])[1]).toBe('noeviction');
-    expect(((await r.config('GET', 'dir')) as string[])[1]).toBe(dir);
+    expect((await r.config('GET', 'appendonly'))[1]).toBe('yes');
+    expect((await r.config('GET', 'maxmemory-policy'))[1]).toBe('noeviction');
+    expect((await r.config('GET', 'dir'))[1]).toBe(dir);
   });
 
   it('of two instances ticking within one period, exactly one takes the turn of a periodic job', async () => {
