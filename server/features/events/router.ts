@@ -34,7 +34,6 @@ import {
   removeMember,
   repickAmplitude,
   revertAmplitude,
-  syncEventsFromGroups,
   updatePick,
   type EventDeps,
 } from './event-service';
@@ -102,7 +101,6 @@ export function eventsRouter(ctx: AppContext): Router {
 
   router.get('/', requirePermission('event.view'), async (req, res) => {
     const q = parseInput(eventListQuerySchema, req.query, 'query');
-    await syncEventsFromGroups(deps);
     const events = await listEvents(db, { from: q.from ? new Date(q.from) : undefined, to: q.to ? new Date(q.to) : undefined, limit: q.limit }, authorizedStations(currentUser(req), 'event.view'));
     res.json({ caution: EVENT_CAUTION, events });
   });
