@@ -37,6 +37,7 @@ import {
   updatePick,
   type EventDeps,
 } from './event-service';
+import { eventGeometry } from './event-geometry';
 import { networkSettings, saveVelocityModel, velocityModelView } from './event-settings';
 
 const id = (what: string) => z.string().regex(/^\d{1,15}$/, `must be ${what} (a whole number)`).transform(Number);
@@ -112,6 +113,12 @@ export function eventsRouter(ctx: AppContext): Router {
   router.get('/:id', requirePermission('event.view'), async (req, res) => {
     const { id: eventId } = parseInput(eventParams, req.params, 'params');
     res.json(await detail(req, eventId));
+  });
+  router.get('/:id/geometry', requirePermission('event.view'), async (req, res) => {
+    const { id } = parseInput(eventParams, req.params, 'params');
+    const g = await eventGeometry(db, id, authorizedStations(currentUser(req), 'event.view'));
+    if (!g) throw notFound(`Event ${id}`);
+    res.json(g);
   });
 
   router.post('/:id/picks', requirePermission('event.pick'), async (req, res) => {
