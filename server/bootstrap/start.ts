@@ -64,7 +64,7 @@ async function ingestDemoWindows(ctx: AppContext): Promise<void> {
         : `seisift: demo windows already ingested (${r.duplicates} of ${r.files} files)`,
     );
     const ev = await prepareDemoEvents(ctx.database.db, () => ctx.hub.notify());
-    console.log(`seisift: demo events: ${ev.events} built or updated from the candidate groups (located, with ML; ${ev.responses} channel responses from the demo StationXML${ev.modelSet ? ', the demo crust set as the XX velocity model' : ''})`);
+    console.log(`seisift: demo events: ${ev.events} built or updated from the candidate groups (located, with ML; ${r.network.responses} channel responses from the demo StationXML${ev.modelSet || r.network.modelSet ? ', the demo crust set as the XX velocity model' : ''})`);
   } catch (err) {
     console.warn(`seisift: demo windows not ingested: ${err instanceof Error ? err.message : String(err)}`);
   }

@@ -29,6 +29,7 @@ import type { Logger } from '@server/logger';
 import { ingestFile, sha256Hex, type IngestCaller } from '@server/features/ingest/ingest-upload';
 import { claimItem, dismissItem, escalateItem, labelItem, type EscalationListener, type QueuePerson } from '@server/features/queue/queue-transitions';
 import { createToken, type Actor } from '@server/features/stations/station-registry';
+import { prepareDemoNetwork } from './demo-events';
 import { DEMO_WAVEFORMS_DIR } from './generate-waveforms';
 
 /** Label of the per-station ingest tokens the demo seed uploads with. */
@@ -101,6 +102,8 @@ export interface DemoIngestReport {
   labelled: number;
   dismissed: number;
   escalated: number;
+  /** The demo network set up before the windows came in (`prepareDemoNetwork`). */
+  network: { responses: number; modelSet: boolean };
   /** Wall time, s. */
   seconds: number;
 }
@@ -219,7 +222,9 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
   const stationId = new Map(stationRows.map((r) => [r.code, r.id]));
   const callers = new Map<string, IngestCaller>();
 
-  const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, historyDismissed: 0, labelled: 0, dismissed: 0, escalated: 0, seconds: 0 };
+  // The responses and the velocity model come first: ingest builds an event as soon as a group forms.
+  const network = await prepareDemoNetwork(db, dir);
+  const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, historyDismissed: 0, labelled: 0, dismissed: 0, escalated: 0, network, seconds: 0 };
   const ingestAll = async (list: typeof files, concurrency = 1, after?: (file: string, itemIds: number[]) => Promise<void>): Promise<Map<string, number[]>> => {
     const createdItems = new Map<string, number[]>();
     // Callers first, one per station (creating a token is not safe to race).

@@ -4,12 +4,11 @@ import { processingProfileSchema } from '@shared/schemas/processing-profile';
 import { similarityCaution, type ItemMatch, type ItemMatchesResponse, type MatchSuggestion } from '@shared/schemas/similarity';
 import type { Database } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
-import { stations } from '@server/db/schema/stations';
 import { waveformTemplates, windowMatches } from '@server/db/schema/templates';
 import { windowChannels } from '@server/db/schema/uploads';
 import { decodeStoredSamples } from '@server/db/samples-codec';
 import { matchingTraces, type MatchingTraces } from '@server/dsp/templates';
-import { notFound } from '@server/errors';
+import { itemWindowInScope } from '@server/features/queue/queue-traces';
 import { decodeTemplateSamples } from './template-store';
 
 /** Points per overlay curve at most (every k-th sample: the band-passed traces are smooth at that scale). */
@@ -57,12 +56,7 @@ export const overlaysInThread: OverlayRunner = (input) => Promise.resolve(matchO
  * @throws AppError 404 when the item is missing or out of `scope`
  */
 export async function itemMatches(db: Database, itemId: number, scope: 'all' | readonly number[], resemblesAt: number, overlays: OverlayRunner = overlaysInThread): Promise<ItemMatchesResponse> {
-  const [item] = await db
-    .select({ windowId: queueItems.windowId, stationId: queueItems.stationId, profile: stations.profile })
-    .from(queueItems)
-    .innerJoin(stations, eq(stations.id, queueItems.stationId))
-    .where(eq(queueItems.id, itemId));
-  if (!item || (scope !== 'all' && !scope.includes(item.stationId))) throw notFound(`Queue item ${itemId}`);
+  const item = await itemWindowInScope(db, itemId, scope);
   const rows = await db
     .select({
       rank: windowMatches.rank,
