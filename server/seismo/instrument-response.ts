@@ -13,7 +13,7 @@
  * Digital stages (Coefficients, FIR) enter as their gain: an anti-alias FIR is flat in its pass band,
  * which is where the Wood-Anderson band (around 1.25 Hz) lies (a note says so).
  */
-import FFT from 'fft.js';
+import { filterBySpectrum, paddedSize } from './spectral-filter';
 import { WOOD_ANDERSON, type Complex } from './wood-anderson';
 
 /** What a stage of the response needs for the calculation (a subset of server/formats StationXML `ResponseStage`). */
@@ -183,20 +183,26 @@ export function responseAt(r: InstrumentResponse, frequencyHz: number): Complex 
   const w = 2 * Math.PI * frequencyHz;
   let re = r.gain;
   let im = 0;
-  const mul = (ar: number, ai: number): void => {
-    const t = re * ar - im * ai;
-    im = re * ai + im * ar;
-    re = t;
-  };
+  // Plain loops, no closure: this runs once per frequency bin of every channel.
   for (const f of r.filters) {
-    mul(f.a0, 0);
-    for (const z of f.zeros) mul(-z.re, w - z.im);
+    re *= f.a0;
+    im *= f.a0;
+    for (const z of f.zeros) {
+      // × (iw − z)
+      const ar = -z.re;
+      const ai = w - z.im;
+      const t = re * ar - im * ai;
+      im = re * ai + im * ar;
+      re = t;
+    }
     for (const p of f.poles) {
       // ÷ (iw − p) = × conj(iw − p)/|iw − p|²
       const ar = -p.re;
       const ai = w - p.im;
       const d = ar * ar + ai * ai;
-      mul(ar / d, -ai / d);
+      const t = (re * ar + im * ai) / d;
+      im = (im * ar - re * ai) / d;
+      re = t;
     }
   }
   return { re, im };
@@ -233,16 +239,6 @@ function taperAt(f: number, p: PreFilter): number {
   return 1;
 }
 
-const plans = new Map<number, FFT>();
-function planFor(size: number): FFT {
-  let plan = plans.get(size);
-  if (!plan) {
-    plan = new FFT(size);
-    plans.set(size, plan);
-  }
-  return plan;
-}
-
 /** Seconds of decay padded after the trace (as wood-anderson.ts: the instrument's memory is below 10⁻¹² after 5 s). */
 const TAIL_S = 5;
 
@@ -276,8 +272,7 @@ export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: numbe
   const my = sx / n;
   const sii = (n * (n * n - 1)) / 12;
   const slope = (sxy - n * mi * my) / sii;
-  let size = 4;
-  while (size < n + Math.ceil(TAIL_S * sampleRateHz)) size *= 2;
+  const size = paddedSize(n, sampleRateHz, TAIL_S);
   const x = new Float64Array(size);
   const taperN = Math.max(1, Math.floor(0.05 * n));
   for (let i = 0; i < n; i++) {
@@ -285,61 +280,39 @@ export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: numbe
     const w = edge < taperN ? 0.5 * (1 - Math.cos((Math.PI * edge) / taperN)) : 1;
     x[i] = ((counts[i] as number) - my - slope * (i - mi)) * w;
   }
-  const fft = planFor(size);
-  const spec = new Float64Array(2 * size);
-  fft.realTransform(spec, x);
-  fft.completeSpectrum(spec);
   const w0 = (2 * Math.PI) / WOOD_ANDERSON.naturalPeriodS;
   const twoHw0 = 2 * WOOD_ANDERSON.damping * w0;
   const g = WOOD_ANDERSON.staticMagnification;
   const power = response.quantity === 'displacement' ? 0 : response.quantity === 'velocity' ? 1 : 2;
   const half = size / 2;
+  const hr = new Float64Array(half + 1);
+  const hi = new Float64Array(half + 1);
   for (let k = 0; k <= half; k++) {
     const f = (k * sampleRateHz) / size;
     const taper = taperAt(f, preFilter);
-    let fr = 0;
-    let fi = 0;
-    if (taper > 0) {
-      const w = 2 * Math.PI * f;
-      // Wood-Anderson displacement response: −Gω² / ((ω₀² − ω²) + i·2hω₀ω).
-      const dr = w0 * w0 - w * w;
-      const di = twoHw0 * w;
-      const den = dr * dr + di * di;
-      const war = (-g * w * w * dr) / den;
-      const wai = (g * w * w * di) / den;
-      // Instrument in counts per SI unit, times (iω)^k.
-      const h = responseAt(response, f);
-      let ir = h.re / response.siPerInputUnit;
-      let ii = h.im / response.siPerInputUnit;
-      for (let p = 0; p < power; p++) {
-        const t = -ii * w;
-        ii = ir * w;
-        ir = t;
-      }
-      const id = ir * ir + ii * ii;
-      if (id > 0 && Number.isFinite(id)) {
-        // (WA / I) · taper · 1000 mm/m
-        const qr = (war * ir + wai * ii) / id;
-        const qi = (wai * ir - war * ii) / id;
-        fr = qr * taper * 1000;
-        fi = qi * taper * 1000;
-      }
+    if (!(taper > 0)) continue;
+    const w = 2 * Math.PI * f;
+    // Wood-Anderson displacement response: −Gω² / ((ω₀² − ω²) + i·2hω₀ω).
+    const dr = w0 * w0 - w * w;
+    const di = twoHw0 * w;
+    const den = dr * dr + di * di;
+    const war = (-g * w * w * dr) / den;
+    const wai = (g * w * w * di) / den;
+    // Instrument in counts per SI unit, times (iω)^k.
+    const h = responseAt(response, f);
+    let ir = h.re / response.siPerInputUnit;
+    let ii = h.im / response.siPerInputUnit;
+    for (let p = 0; p < power; p++) {
+      const t = -ii * w;
+      ii = ir * w;
+      ir = t;
     }
-    let re = spec[2 * k] as number;
-    let im = spec[2 * k + 1] as number;
-    spec[2 * k] = re * fr - im * fi;
-    spec[2 * k + 1] = re * fi + im * fr;
-    if (k > 0 && k < half) {
-      const m = size - k;
-      re = spec[2 * m] as number;
-      im = spec[2 * m + 1] as number;
-      spec[2 * m] = re * fr + im * fi;
-      spec[2 * m + 1] = im * fr - re * fi;
+    const id = ir * ir + ii * ii;
+    if (id > 0 && Number.isFinite(id)) {
+      // (WA / I) · taper · 1000 mm/m
+      hr[k] = (((war * ir + wai * ii) / id) * taper * 1000);
+      hi[k] = (((wai * ir - war * ii) / id) * taper * 1000);
     }
   }
-  const back = new Float64Array(2 * size);
-  fft.inverseTransform(back, spec);
-  const out = new Float64Array(n);
-  for (let i = 0; i < n; i++) out[i] = back[2 * i] as number;
-  return out;
+  return filterBySpectrum(x, n, hr, hi);
 }
