@@ -13,6 +13,7 @@
  * Digital stages (Coefficients, FIR) enter as their gain: an anti-alias FIR is flat in its pass band,
  * which is where the Wood-Anderson band (around 1.25 Hz) lies (a note says so).
  */
+import { z } from 'zod';
 import { filterBySpectrum, paddedSize } from './spectral-filter';
 import { WOOD_ANDERSON, type Complex } from './wood-anderson';
 
@@ -152,6 +153,85 @@ export function responseFromStages(channel: ChannelResponseInput): ResponseResul
     }
   }
   return { ok: true, response };
+}
+
+const complexSchema = z.object({ re: z.number(), im: z.number() });
+
+/**
+ * The response stages as the station registry keeps them beside the channel's first poles and zeros
+ * (the `stages` field of its response JSON, written by the StationXML import): what
+ * {@link responseFromStages} reads, checked at the edge where it comes back from the database.
+ */
+export const registryStagesSchema = z
+  .array(
+    z.object({
+      number: z.number().int(),
+      kind: z.enum(['PolesZeros', 'Coefficients', 'FIR', 'ResponseList', 'Polynomial', 'Gain']),
+      inputUnits: z.string().max(100).optional(),
+      outputUnits: z.string().max(100).optional(),
+      paz: z
+        .object({
+          transferFunctionType: z.string().max(40),
+          normalizationFactor: z.number(),
+          normalizationFrequencyHz: z.number(),
+          zeros: z.array(complexSchema).max(64),
+          poles: z.array(complexSchema).max(64),
+        })
+        .optional(),
+      gain: z.object({ value: z.number(), frequencyHz: z.number() }).optional(),
+    }),
+  )
+  .max(64);
+
+/** The stages of a parsed StationXML channel reduced to what the registry keeps for ML (see {@link registryStagesSchema}). */
+export function registryStages(stages: readonly ResponseStageInput[]): z.infer<typeof registryStagesSchema> {
+  return stages.map((st) => ({
+    number: st.number,
+    kind: st.kind,
+    ...(st.inputUnits === undefined ? {} : { inputUnits: st.inputUnits.slice(0, 100) }),
+    ...(st.outputUnits === undefined ? {} : { outputUnits: st.outputUnits.slice(0, 100) }),
+    ...(st.paz
+      ? { paz: { transferFunctionType: st.paz.transferFunctionType, normalizationFactor: st.paz.normalizationFactor, normalizationFrequencyHz: st.paz.normalizationFrequencyHz, zeros: st.paz.zeros.map((c) => ({ re: c.re, im: c.im })), poles: st.paz.poles.map((c) => ({ re: c.re, im: c.im })) } }
+      : {}),
+    ...(st.gain ? { gain: { value: st.gain.value, frequencyHz: st.gain.frequencyHz } } : {}),
+  }));
+}
+
+/** A registry response JSON with the channel's StationXML stages beside it (null stays null: nothing to read ML from). */
+export function withRegistryStages<T extends object>(response: T | null, stages: readonly ResponseStageInput[]): (T & { stages: z.infer<typeof registryStagesSchema> }) | null {
+  return response === null ? null : { ...response, stages: registryStages(stages) };
+}
+
+/** What the station registry holds for a channel's response (the channels table's columns). */
+export interface RegistryChannelResponse {
+  /** The response JSON: the first poles and zeros (rad/s) with the sensitivity, and `stages` when imported from StationXML. */
+  response: unknown;
+  sensitivity: number | null;
+  sensitivityFrequencyHz: number | null;
+  sensitivityInputUnits: string | null;
+}
+
+const registryPazSchema = z.object({ zeros: z.array(complexSchema).max(64), poles: z.array(complexSchema).max(64), stages: registryStagesSchema.optional() });
+
+/**
+ * The response for ML of a channel in the station registry. With the StationXML stages stored
+ * (every import keeps them) it is {@link responseFromStages} on them, the same reading as
+ * `npm run -s locate` does from the file: every stage gain, each poles-and-zeros stage, the input unit
+ * (m/s, nm/s, m/s², …), refused with the reason where a stage cannot be used. A channel entered by
+ * hand (one poles-and-zeros filter and a sensitivity) is read with {@link responseFromSensitivity},
+ * and a note says so. Refused, with the reason, without poles and zeros or sensitivity.
+ */
+export function responseFromRegistry(id: string, ch: RegistryChannelResponse): ResponseResult {
+  const stored = registryPazSchema.safeParse(ch.response);
+  if (!stored.success) return { ok: false, reason: `${id}: the registry holds no poles and zeros for it (${ch.sensitivity === null ? 'nor a sensitivity' : 'only a flat sensitivity'}); import a StationXML with its poles and zeros and InstrumentSensitivity for ML` };
+  // The registry keeps sensitivities in counts per input unit (its output unit is not stored).
+  const sensitivity =
+    ch.sensitivity !== null && ch.sensitivityInputUnits !== null ? { value: ch.sensitivity, frequencyHz: ch.sensitivityFrequencyHz ?? 1, inputUnits: ch.sensitivityInputUnits, outputUnits: 'counts' } : undefined;
+  if (stored.data.stages && stored.data.stages.length > 0) return responseFromStages({ id, sensitivity, stages: stored.data.stages });
+  if (!sensitivity) return { ok: false, reason: `${id}: the registry holds no sensitivity or no input unit` };
+  const r = responseFromSensitivity(id, stored.data, sensitivity.value, sensitivity.frequencyHz, sensitivity.inputUnits);
+  if (r.ok) r.response.notes.push(`${id}: the registry holds one poles-and-zeros filter and the overall sensitivity (no stages): import the station's StationXML for every stage`);
+  return r;
 }
 
 /**
