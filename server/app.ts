@@ -14,6 +14,7 @@ import { adminRouter } from './features/accounts/admin-router';
 import { auditRouter } from './features/audit/router';
 import { authRouter } from './features/accounts/auth-router';
 import { eventsRouter } from './features/events/router';
+import { eventReturnRouter } from './features/supervision/event-return';
 import { eventGeometryRouter } from './features/events/event-geometry';
 import { healthRouter } from './features/health/router';
 import { openApiRouter } from './openapi/router';
@@ -54,6 +55,7 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api/audit', auditRouter(ctx));
   app.use('/api/queue', queueRouter(ctx));
   app.use('/api/supervisor', supervisorRouter(ctx));
+  app.use('/api/supervisor', eventReturnRouter(ctx));
   app.use('/api/events', eventGeometryRouter(ctx));
   app.use('/api/events', eventsRouter(ctx));
   app.use('/api/stations', stationsRouter(ctx));

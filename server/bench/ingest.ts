@@ -187,6 +187,7 @@ async function stageTimings(db: Parameters<typeof ingestFile>[0]['db'], bases: M
     close: () => pool.close(),
     decode: (bytes, opts, limits) => pool.decode(bytes, opts, limits),
     traces: (input) => pool.traces(input),
+    overlays: (input) => pool.overlays(input),
     async run(streams, profile, opts) {
       const t = performance.now();
       try {
