@@ -1,12 +1,11 @@
-import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
-import { parseArgs } from 'node:util';
 import { pathToFileURL } from 'node:url';
 import { z } from 'zod';
 import { decodeWaveform } from '@server/formats/decode';
 import { WaveformParseError, type DecodedStream } from '@server/formats/types';
 import { analyzeWindow, type AnalysisResult } from '@server/dsp/pipeline';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
+import { decodeMessage, message, parseCli, readJsonFile, readWaveformFile, type CliOutcome } from './cli-files';
 
 /**
  * `npm run analyze -- FILE [--profile profile.json] [--sensitivity N] [--stream NET.STA.LOC.CHA] [--json]`
@@ -24,33 +23,15 @@ import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas
 export const PLACEHOLDER_STREAM_ID = 'XX.NOID..UNK';
 
 /** The outcome of a CLI run (for tests: no process exit inside). */
-export interface CliOutcome {
-  code: 0 | 1 | 2;
-  stdout: string;
-  stderr: string;
-}
+export type { CliOutcome } from './cli-files';
 
 const HELP = 'usage: npm run analyze -- FILE [--profile profile.json] [--sensitivity N] [--stream NET.STA.LOC.CHA] [--json]';
 
 /** Run the command line on arguments (without `node script`); never exits the process. */
 export function runAnalyzeCli(argv: string[]): CliOutcome {
-  let args;
-  try {
-    args = parseArgs({
-      args: argv,
-      allowPositionals: true,
-      options: {
-        profile: { type: 'string' },
-        sensitivity: { type: 'string' },
-        stream: { type: 'string' },
-        json: { type: 'boolean', default: false },
-        help: { type: 'boolean', short: 'h', default: false },
-      },
-    });
-  } catch (err) {
-    return { code: 1, stdout: '', stderr: `${message(err)}\n${HELP}\n` };
-  }
-  if (args.values.help) return { code: 0, stdout: `${HELP}\n`, stderr: '' };
+  const parsed = parseCli(argv, { profile: { type: 'string' }, sensitivity: { type: 'string' }, stream: { type: 'string' }, json: { type: 'boolean', default: false } }, HELP);
+  if (!parsed.args) return parsed.outcome;
+  const args = parsed.args;
   const file = args.positionals[0];
   if (!file || args.positionals.length > 1) return { code: 1, stdout: '', stderr: `give exactly one FILE\n${HELP}\n` };
 
@@ -67,12 +48,9 @@ export function runAnalyzeCli(argv: string[]): CliOutcome {
     sensitivity = parsed.data;
   }
 
-  let bytes: Uint8Array;
-  try {
-    bytes = readFileSync(file);
-  } catch (err) {
-    return { code: 2, stdout: '', stderr: `cannot read ${file}: ${message(err)}\n` };
-  }
+  const read = readWaveformFile(file);
+  if ('outcome' in read) return read.outcome;
+  const bytes = read.bytes;
   let streams: DecodedStream[];
   let note = '';
   try {
@@ -122,29 +100,12 @@ function decode(bytes: Uint8Array, filename: string, streamId: string | undefine
 }
 
 function loadProfile(path: string): ProcessingProfile {
-  let raw: unknown;
-  try {
-    raw = JSON.parse(readFileSync(path, 'utf8'));
-  } catch (err) {
-    throw new Error(`cannot read the profile ${path}: ${message(err)}`);
-  }
-  const parsed = processingProfileSchema.safeParse(raw);
+  const parsed = processingProfileSchema.safeParse(readJsonFile(path, 'the profile'));
   if (!parsed.success) {
     const issue = parsed.error.issues[0];
     throw new Error(`profile ${path}: ${issue ? `${issue.path.join('.') || '(top level)'}: ${issue.message}` : 'invalid'}`);
   }
   return parsed.data;
-}
-
-/** The decoder's message without the file-name prefix it adds (the CLI names the file itself). */
-function decodeMessage(err: unknown, file: string): string {
-  const m = message(err);
-  const prefix = `${basename(file)}: `;
-  return m.startsWith(prefix) ? m.slice(prefix.length) : m;
-}
-
-function message(err: unknown): string {
-  return err instanceof Error ? err.message : String(err);
 }
 
 const num = (v: number | null, digits = 3): string => {

@@ -1,6 +1,5 @@
 import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
-import { parseArgs } from 'node:util';
 import { pathToFileURL } from 'node:url';
 import { z } from 'zod';
 import { decodeWaveform } from '@server/formats/decode';
@@ -13,6 +12,7 @@ import { solutionReport, type SolutionReport } from '@server/seismo/solution-rep
 import { DEFAULT_VELOCITY_MODEL, validateVelocityModel, type VelocityModel } from '@server/seismo/velocity-model';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { streamIdSchema } from '@shared/schemas/label';
+import { decodeMessage, message, parseCli, readJsonFile, readWaveformFile } from './cli-files';
 
 /**
  * `npm run -s locate -- --stationxml STATIONS.xml [--model MODEL.json] [--picks PICKS.json] FILE... [--json]`
@@ -61,21 +61,11 @@ export const picksFileSchema = z
 
 class UsageError extends Error {}
 
-function message(err: unknown): string {
-  return err instanceof Error ? err.message : String(err);
-}
-
 function readJson(path: string, what: string): unknown {
-  let text: string;
   try {
-    text = readFileSync(path, 'utf8');
+    return readJsonFile(path, what);
   } catch (err) {
-    throw new UsageError(`cannot read ${what} ${path}: ${message(err)}`);
-  }
-  try {
-    return JSON.parse(text);
-  } catch (err) {
-    throw new UsageError(`${what} ${path} is not JSON: ${message(err)}`);
+    throw new UsageError(message(err));
   }
 }
 
@@ -162,23 +152,9 @@ function text(rep: SolutionReport): string {
 
 /** Runs the command on its arguments (without `node script`); never exits the process. */
 export function runLocateCli(argv: string[]): LocateCliOutcome {
-  let args;
-  try {
-    args = parseArgs({
-      args: argv,
-      allowPositionals: true,
-      options: {
-        stationxml: { type: 'string' },
-        model: { type: 'string' },
-        picks: { type: 'string' },
-        json: { type: 'boolean', default: false },
-        help: { type: 'boolean', short: 'h', default: false },
-      },
-    });
-  } catch (err) {
-    return { code: 1, stdout: '', stderr: `${message(err)}\n${HELP}\n` };
-  }
-  if (args.values.help) return { code: 0, stdout: `${HELP}\n`, stderr: '' };
+  const parsed = parseCli(argv, { stationxml: { type: 'string' }, model: { type: 'string' }, picks: { type: 'string' }, json: { type: 'boolean', default: false } }, HELP);
+  if (!parsed.args) return parsed.outcome;
+  const args = parsed.args;
   if (!args.values.stationxml) return { code: 1, stdout: '', stderr: `--stationxml is required (station coordinates and responses)\n${HELP}\n` };
   if (args.positionals.length === 0) return { code: 1, stdout: '', stderr: `give at least one FILE\n${HELP}\n` };
   let doc: StationXmlDocument;
@@ -203,18 +179,12 @@ export function runLocateCli(argv: string[]): LocateCliOutcome {
   }
   const streams: DecodedStream[] = [];
   for (const file of args.positionals) {
-    let bytes: Uint8Array;
+    const read = readWaveformFile(file);
+    if ('outcome' in read) return read.outcome;
     try {
-      bytes = readFileSync(file);
+      streams.push(...decodeWaveform(read.bytes, { filename: basename(file) }));
     } catch (err) {
-      return { code: 2, stdout: '', stderr: `cannot read ${file}: ${message(err)}\n` };
-    }
-    try {
-      streams.push(...decodeWaveform(bytes, { filename: basename(file) }));
-    } catch (err) {
-      const m = message(err);
-      const prefix = `${basename(file)}: `;
-      return { code: 2, stdout: '', stderr: `cannot decode ${file}: ${m.startsWith(prefix) ? m.slice(prefix.length) : m}\n` };
+      return { code: 2, stdout: '', stderr: `cannot decode ${file}: ${decodeMessage(err, file)}\n` };
     }
   }
   const meta = metadataFor(doc, streams);

@@ -10,6 +10,7 @@ import { uploads, windows } from '@server/db/schema/uploads';
 import { createEventFromItems, eventMembershipOf, syncEventsFromGroups } from '@server/features/events/event-service';
 import { responseFromStationXml } from '@server/features/stations/stationxml-import';
 import { parseStationXml } from '@server/formats/stationxml';
+import { withRegistryStages } from '@server/seismo/instrument-response';
 import { DEMO_WAVEFORMS_DIR } from './generate-waveforms';
 import { DEMO_NETWORK, VP_KM_S, VS_KM_S } from './scenario';
 
@@ -81,7 +82,7 @@ export async function prepareDemoNetwork(db: Database, dir: string = DEMO_WAVEFO
       const [row] = await db.select({ id: stations.id }).from(stations).where(and(eq(stations.network, net.code), eq(stations.code, st.code)));
       if (!row) continue;
       for (const ch of st.channels) {
-        const response = responseFromStationXml(ch.paz, ch.sensitivity);
+        const response = withRegistryStages(responseFromStationXml(ch.paz, ch.sensitivity), ch.stages);
         if (!response) continue;
         const [r] = await db
           .update(channels)

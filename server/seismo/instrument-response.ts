@@ -13,7 +13,8 @@
  * Digital stages (Coefficients, FIR) enter as their gain: an anti-alias FIR is flat in its pass band,
  * which is where the Wood-Anderson band (around 1.25 Hz) lies (a note says so).
  */
-import FFT from 'fft.js';
+import { z } from 'zod';
+import { filterBySpectrum, paddedSize } from './spectral-filter';
 import { WOOD_ANDERSON, type Complex } from './wood-anderson';
 
 /** What a stage of the response needs for the calculation (a subset of server/formats StationXML `ResponseStage`). */
@@ -154,6 +155,85 @@ export function responseFromStages(channel: ChannelResponseInput): ResponseResul
   return { ok: true, response };
 }
 
+const complexSchema = z.object({ re: z.number(), im: z.number() });
+
+/**
+ * The response stages as the station registry keeps them beside the channel's first poles and zeros
+ * (the `stages` field of its response JSON, written by the StationXML import): what
+ * {@link responseFromStages} reads, checked at the edge where it comes back from the database.
+ */
+export const registryStagesSchema = z
+  .array(
+    z.object({
+      number: z.number().int(),
+      kind: z.enum(['PolesZeros', 'Coefficients', 'FIR', 'ResponseList', 'Polynomial', 'Gain']),
+      inputUnits: z.string().max(100).optional(),
+      outputUnits: z.string().max(100).optional(),
+      paz: z
+        .object({
+          transferFunctionType: z.string().max(40),
+          normalizationFactor: z.number(),
+          normalizationFrequencyHz: z.number(),
+          zeros: z.array(complexSchema).max(64),
+          poles: z.array(complexSchema).max(64),
+        })
+        .optional(),
+      gain: z.object({ value: z.number(), frequencyHz: z.number() }).optional(),
+    }),
+  )
+  .max(64);
+
+/** The stages of a parsed StationXML channel reduced to what the registry keeps for ML (see {@link registryStagesSchema}). */
+export function registryStages(stages: readonly ResponseStageInput[]): z.infer<typeof registryStagesSchema> {
+  return stages.map((st) => ({
+    number: st.number,
+    kind: st.kind,
+    ...(st.inputUnits === undefined ? {} : { inputUnits: st.inputUnits.slice(0, 100) }),
+    ...(st.outputUnits === undefined ? {} : { outputUnits: st.outputUnits.slice(0, 100) }),
+    ...(st.paz
+      ? { paz: { transferFunctionType: st.paz.transferFunctionType, normalizationFactor: st.paz.normalizationFactor, normalizationFrequencyHz: st.paz.normalizationFrequencyHz, zeros: st.paz.zeros.map((c) => ({ re: c.re, im: c.im })), poles: st.paz.poles.map((c) => ({ re: c.re, im: c.im })) } }
+      : {}),
+    ...(st.gain ? { gain: { value: st.gain.value, frequencyHz: st.gain.frequencyHz } } : {}),
+  }));
+}
+
+/** A registry response JSON with the channel's StationXML stages beside it (null stays null: nothing to read ML from). */
+export function withRegistryStages<T extends object>(response: T | null, stages: readonly ResponseStageInput[]): (T & { stages: z.infer<typeof registryStagesSchema> }) | null {
+  return response === null ? null : { ...response, stages: registryStages(stages) };
+}
+
+/** What the station registry holds for a channel's response (the channels table's columns). */
+export interface RegistryChannelResponse {
+  /** The response JSON: the first poles and zeros (rad/s) with the sensitivity, and `stages` when imported from StationXML. */
+  response: unknown;
+  sensitivity: number | null;
+  sensitivityFrequencyHz: number | null;
+  sensitivityInputUnits: string | null;
+}
+
+const registryPazSchema = z.object({ zeros: z.array(complexSchema).max(64), poles: z.array(complexSchema).max(64), stages: registryStagesSchema.optional() });
+
+/**
+ * The response for ML of a channel in the station registry. With the StationXML stages stored
+ * (every import keeps them) it is {@link responseFromStages} on them, the same reading as
+ * `npm run -s locate` does from the file: every stage gain, each poles-and-zeros stage, the input unit
+ * (m/s, nm/s, m/s², …), refused with the reason where a stage cannot be used. A channel entered by
+ * hand (one poles-and-zeros filter and a sensitivity) is read with {@link responseFromSensitivity},
+ * and a note says so. Refused, with the reason, without poles and zeros or sensitivity.
+ */
+export function responseFromRegistry(id: string, ch: RegistryChannelResponse): ResponseResult {
+  const stored = registryPazSchema.safeParse(ch.response);
+  if (!stored.success) return { ok: false, reason: `${id}: the registry holds no poles and zeros for it (${ch.sensitivity === null ? 'nor a sensitivity' : 'only a flat sensitivity'}); import a StationXML with its poles and zeros and InstrumentSensitivity for ML` };
+  // The registry keeps sensitivities in counts per input unit (its output unit is not stored).
+  const sensitivity =
+    ch.sensitivity !== null && ch.sensitivityInputUnits !== null ? { value: ch.sensitivity, frequencyHz: ch.sensitivityFrequencyHz ?? 1, inputUnits: ch.sensitivityInputUnits, outputUnits: 'counts' } : undefined;
+  if (stored.data.stages && stored.data.stages.length > 0) return responseFromStages({ id, sensitivity, stages: stored.data.stages });
+  if (!sensitivity) return { ok: false, reason: `${id}: the registry holds no sensitivity or no input unit` };
+  const r = responseFromSensitivity(id, stored.data, sensitivity.value, sensitivity.frequencyHz, sensitivity.inputUnits);
+  if (r.ok) r.response.notes.push(`${id}: the registry holds one poles-and-zeros filter and the overall sensitivity (no stages): import the station's StationXML for every stage`);
+  return r;
+}
+
 /**
  * A response from one poles-and-zeros filter (rad/s) and an overall sensitivity S at f_s, the form the
  * station registry keeps: H(f) = S·PAZ(f)/|PAZ(f_s)|, input unit as given.
@@ -183,20 +263,26 @@ export function responseAt(r: InstrumentResponse, frequencyHz: number): Complex 
   const w = 2 * Math.PI * frequencyHz;
   let re = r.gain;
   let im = 0;
-  const mul = (ar: number, ai: number): void => {
-    const t = re * ar - im * ai;
-    im = re * ai + im * ar;
-    re = t;
-  };
+  // Plain loops, no closure: this runs once per frequency bin of every channel.
   for (const f of r.filters) {
-    mul(f.a0, 0);
-    for (const z of f.zeros) mul(-z.re, w - z.im);
+    re *= f.a0;
+    im *= f.a0;
+    for (const z of f.zeros) {
+      // × (iw − z)
+      const ar = -z.re;
+      const ai = w - z.im;
+      const t = re * ar - im * ai;
+      im = re * ai + im * ar;
+      re = t;
+    }
     for (const p of f.poles) {
       // ÷ (iw − p) = × conj(iw − p)/|iw − p|²
       const ar = -p.re;
       const ai = w - p.im;
       const d = ar * ar + ai * ai;
-      mul(ar / d, -ai / d);
+      const t = (re * ar + im * ai) / d;
+      im = (im * ar - re * ai) / d;
+      re = t;
     }
   }
   return { re, im };
@@ -233,16 +319,6 @@ function taperAt(f: number, p: PreFilter): number {
   return 1;
 }
 
-const plans = new Map<number, FFT>();
-function planFor(size: number): FFT {
-  let plan = plans.get(size);
-  if (!plan) {
-    plan = new FFT(size);
-    plans.set(size, plan);
-  }
-  return plan;
-}
-
 /** Seconds of decay padded after the trace (as wood-anderson.ts: the instrument's memory is below 10⁻¹² after 5 s). */
 const TAIL_S = 5;
 
@@ -276,8 +352,7 @@ export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: numbe
   const my = sx / n;
   const sii = (n * (n * n - 1)) / 12;
   const slope = (sxy - n * mi * my) / sii;
-  let size = 4;
-  while (size < n + Math.ceil(TAIL_S * sampleRateHz)) size *= 2;
+  const size = paddedSize(n, sampleRateHz, TAIL_S);
   const x = new Float64Array(size);
   const taperN = Math.max(1, Math.floor(0.05 * n));
   for (let i = 0; i < n; i++) {
@@ -285,61 +360,39 @@ export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: numbe
     const w = edge < taperN ? 0.5 * (1 - Math.cos((Math.PI * edge) / taperN)) : 1;
     x[i] = ((counts[i] as number) - my - slope * (i - mi)) * w;
   }
-  const fft = planFor(size);
-  const spec = new Float64Array(2 * size);
-  fft.realTransform(spec, x);
-  fft.completeSpectrum(spec);
   const w0 = (2 * Math.PI) / WOOD_ANDERSON.naturalPeriodS;
   const twoHw0 = 2 * WOOD_ANDERSON.damping * w0;
   const g = WOOD_ANDERSON.staticMagnification;
   const power = response.quantity === 'displacement' ? 0 : response.quantity === 'velocity' ? 1 : 2;
   const half = size / 2;
+  const hr = new Float64Array(half + 1);
+  const hi = new Float64Array(half + 1);
   for (let k = 0; k <= half; k++) {
     const f = (k * sampleRateHz) / size;
     const taper = taperAt(f, preFilter);
-    let fr = 0;
-    let fi = 0;
-    if (taper > 0) {
-      const w = 2 * Math.PI * f;
-      // Wood-Anderson displacement response: −Gω² / ((ω₀² − ω²) + i·2hω₀ω).
-      const dr = w0 * w0 - w * w;
-      const di = twoHw0 * w;
-      const den = dr * dr + di * di;
-      const war = (-g * w * w * dr) / den;
-      const wai = (g * w * w * di) / den;
-      // Instrument in counts per SI unit, times (iω)^k.
-      const h = responseAt(response, f);
-      let ir = h.re / response.siPerInputUnit;
-      let ii = h.im / response.siPerInputUnit;
-      for (let p = 0; p < power; p++) {
-        const t = -ii * w;
-        ii = ir * w;
-        ir = t;
-      }
-      const id = ir * ir + ii * ii;
-      if (id > 0 && Number.isFinite(id)) {
-        // (WA / I) · taper · 1000 mm/m
-        const qr = (war * ir + wai * ii) / id;
-        const qi = (wai * ir - war * ii) / id;
-        fr = qr * taper * 1000;
-        fi = qi * taper * 1000;
-      }
+    if (!(taper > 0)) continue;
+    const w = 2 * Math.PI * f;
+    // Wood-Anderson displacement response: −Gω² / ((ω₀² − ω²) + i·2hω₀ω).
+    const dr = w0 * w0 - w * w;
+    const di = twoHw0 * w;
+    const den = dr * dr + di * di;
+    const war = (-g * w * w * dr) / den;
+    const wai = (g * w * w * di) / den;
+    // Instrument in counts per SI unit, times (iω)^k.
+    const h = responseAt(response, f);
+    let ir = h.re / response.siPerInputUnit;
+    let ii = h.im / response.siPerInputUnit;
+    for (let p = 0; p < power; p++) {
+      const t = -ii * w;
+      ii = ir * w;
+      ir = t;
     }
-    let re = spec[2 * k] as number;
-    let im = spec[2 * k + 1] as number;
-    spec[2 * k] = re * fr - im * fi;
-    spec[2 * k + 1] = re * fi + im * fr;
-    if (k > 0 && k < half) {
-      const m = size - k;
-      re = spec[2 * m] as number;
-      im = spec[2 * m + 1] as number;
-      spec[2 * m] = re * fr + im * fi;
-      spec[2 * m + 1] = im * fr - re * fi;
+    const id = ir * ir + ii * ii;
+    if (id > 0 && Number.isFinite(id)) {
+      // (WA / I) · taper · 1000 mm/m
+      hr[k] = (((war * ir + wai * ii) / id) * taper * 1000);
+      hi[k] = (((wai * ir - war * ii) / id) * taper * 1000);
     }
   }
-  const back = new Float64Array(2 * size);
-  fft.inverseTransform(back, spec);
-  const out = new Float64Array(n);
-  for (let i = 0; i < n; i++) out[i] = back[2 * i] as number;
-  return out;
+  return filterBySpectrum(x, n, hr, hi);
 }

@@ -266,8 +266,15 @@ function gridSearch(model: PreparedVelocityModel, data: readonly PickData[], cen
     return a + (b - a) * (u - i);
   };
 
+  // The picks' fields in typed arrays, read in the innermost loop without property look-ups.
+  const pt = Float64Array.from(data, (d) => d.t);
+  const pw = Float64Array.from(data, (d) => d.w);
+  const pux = Float64Array.from(data, (d) => d.ux);
+  const puy = Float64Array.from(data, (d) => d.uy);
+  const puz = Float64Array.from(data, (d) => d.uz);
+  let sw = 0;
+  for (let k = 0; k < nd; k++) sw += pw[k] as number;
   const dist = new Float64Array(nd);
-  const pickTables: Float64Array[] = new Array<Float64Array>(nd);
   let best: GridBest | null = null;
   const levels = [
     { centre, half: halfWidthKm, nodes: 31, depths: fixedDepthKm !== null ? [0] : [0, 4, 8, 12, 16, 20, 24, 28, 32] },
@@ -275,39 +282,49 @@ function gridSearch(model: PreparedVelocityModel, data: readonly PickData[], cen
   for (let level = 0; level < 2; level++) {
     const lv = levels[level] as (typeof levels)[number];
     const spacing = (2 * lv.half) / (lv.nodes - 1);
-    let levelBest: (GridBest & { depthIndex: number }) | null = null;
+    let bestMisfit = Number.POSITIVE_INFINITY;
+    let bestDepthIndex = -1;
+    let bestT0 = 0;
+    let bestNode: GeoPoint = lv.centre;
     for (let iy = 0; iy < lv.nodes; iy++) {
       for (let ix = 0; ix < lv.nodes; ix++) {
         const node = fromLocalKm(lv.centre, { eastKm: -lv.half + ix * spacing, northKm: -lv.half + iy * spacing });
-        const [nx, ny, nz] = unitVector(node);
+        const f = node.latitudeDeg * DEG;
+        const l = node.longitudeDeg * DEG;
+        const nx = Math.cos(f) * Math.cos(l);
+        const ny = Math.cos(f) * Math.sin(l);
+        const nz = Math.sin(f);
         for (let k = 0; k < nd; k++) {
-          const d = data[k] as PickData;
-          const ex = d.ux - nx;
-          const ey = d.uy - ny;
-          const ez = d.uz - nz;
+          const ex = (pux[k] as number) - nx;
+          const ey = (puy[k] as number) - ny;
+          const ez = (puz[k] as number) - nz;
           dist[k] = 2 * EARTH_RADIUS_KM * Math.asin(Math.min(1, Math.sqrt(ex * ex + ey * ey + ez * ez) / 2));
         }
         for (const j of lv.depths) {
           const depthKm = depthNodes[j] as number;
-          for (let k = 0; k < nd; k++) pickTables[k] = tableFor(j, waveOf[k] as number);
-          let sw = 0;
+          const tableP = tableFor(j, 0);
+          const tableS = tableFor(j, 1);
           let swr = 0;
           let swrr = 0;
           for (let k = 0; k < nd; k++) {
-            const d = data[k] as PickData;
-            const r = d.t - timeAt(pickTables[k] as Float64Array, depthKm, d.pick.phase, dist[k] as number);
-            sw += d.w;
-            swr += d.w * r;
-            swrr += d.w * r * r;
+            const wave = waveOf[k] as number;
+            const r = (pt[k] as number) - timeAt(wave === 0 ? tableP : tableS, depthKm, wave === 0 ? 'P' : 'S', dist[k] as number);
+            const w = pw[k] as number;
+            swr += w * r;
+            swrr += w * r * r;
           }
           const misfit = swrr - (swr * swr) / sw;
-          if (!levelBest || misfit < levelBest.misfit) {
-            levelBest = { misfit, depthIndex: j, hypo: { t0: swr / sw, latitudeDeg: node.latitudeDeg, longitudeDeg: node.longitudeDeg, depthKm } };
+          if (bestDepthIndex < 0 || misfit < bestMisfit) {
+            bestMisfit = misfit;
+            bestDepthIndex = j;
+            bestT0 = swr / sw;
+            bestNode = node;
           }
         }
       }
     }
-    const lb = levelBest as GridBest & { depthIndex: number };
+    const levelBest = { misfit: bestMisfit, depthIndex: bestDepthIndex, hypo: { t0: bestT0, latitudeDeg: bestNode.latitudeDeg, longitudeDeg: bestNode.longitudeDeg, depthKm: depthNodes[bestDepthIndex] as number } };
+    const lb = levelBest;
     best = { misfit: lb.misfit, hypo: lb.hypo };
     const fine: number[] = [];
     if (fixedDepthKm !== null) fine.push(0);

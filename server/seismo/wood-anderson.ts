@@ -10,7 +10,7 @@
  * the issue quotes the same poles). For a velocity input the instrument is H_v(s) = H_d(s)/s
  * = G·s/(s² + 2hω₀·s + ω₀²) in m per (m/s).
  */
-import FFT from 'fft.js';
+import { filterBySpectrum, paddedSize } from './spectral-filter';
 
 /** Wood-Anderson constants (Uhrhammer & Collins 1990). */
 export const WOOD_ANDERSON = Object.freeze({
@@ -60,18 +60,6 @@ export function woodAndersonResponse(frequencyHz: number, input: GroundMotion): 
   return { re: (nr * dr + ni * di) / den, im: (ni * dr - nr * di) / den };
 }
 
-const plans = new Map<number, FFT>();
-
-/** One fft.js plan per size, built once (its twiddle tables are the costly part). */
-function planFor(size: number): FFT {
-  let plan = plans.get(size);
-  if (!plan) {
-    plan = new FFT(size);
-    plans.set(size, plan);
-  }
-  return plan;
-}
-
 /** Seconds of decay padded after the trace: e^(−hω₀·5 s) ≈ 10⁻¹² of the response is left. */
 const TAIL_S = 5;
 
@@ -98,20 +86,17 @@ export function simulateWoodAnderson(trace: Float64Array, sampleRateHz: number, 
     mean += v;
   }
   mean /= n;
-  let size = 4;
-  while (size < n + Math.ceil(TAIL_S * sampleRateHz)) size *= 2;
-  const fft = planFor(size);
+  const size = paddedSize(n, sampleRateHz, TAIL_S);
   const x = new Float64Array(size);
   for (let i = 0; i < n; i++) x[i] = (trace[i] as number) - mean;
-  const spec = new Float64Array(2 * size);
-  fft.realTransform(spec, x);
-  fft.completeSpectrum(spec);
-  // Inline H(f_k) (see woodAndersonResponse): no allocation per bin.
+  // H(f_k) inline (see woodAndersonResponse), with the m → mm factor: no allocation per bin.
   const w0 = (2 * Math.PI) / WOOD_ANDERSON.naturalPeriodS;
   const twoHw0 = 2 * WOOD_ANDERSON.damping * w0;
   const g = WOOD_ANDERSON.staticMagnification;
   const dw = (2 * Math.PI * sampleRateHz) / size;
   const half = size / 2;
+  const hr = new Float64Array(half + 1);
+  const hi = new Float64Array(half + 1);
   for (let k = 0; k <= half; k++) {
     const w = k * dw;
     const dr = w0 * w0 - w * w;
@@ -119,26 +104,10 @@ export function simulateWoodAnderson(trace: Float64Array, sampleRateHz: number, 
     const den = dr * dr + di * di;
     const nr = input === 'displacement' ? -g * w * w : 0;
     const ni = input === 'displacement' ? 0 : g * w;
-    const hr = (nr * dr + ni * di) / den;
-    const hi = (ni * dr - nr * di) / den;
-    let re = spec[2 * k] as number;
-    let im = spec[2 * k + 1] as number;
-    spec[2 * k] = re * hr - im * hi;
-    spec[2 * k + 1] = re * hi + im * hr;
-    if (k > 0 && k < half) {
-      // Negative frequency −f_k: H(−f) = conj H(f).
-      const m = size - k;
-      re = spec[2 * m] as number;
-      im = spec[2 * m + 1] as number;
-      spec[2 * m] = re * hr + im * hi;
-      spec[2 * m + 1] = im * hr - re * hi;
-    }
+    hr[k] = (1000 * (nr * dr + ni * di)) / den;
+    hi[k] = (1000 * (ni * dr - nr * di)) / den;
   }
-  const back = new Float64Array(2 * size);
-  fft.inverseTransform(back, spec);
-  const out = new Float64Array(n);
-  for (let i = 0; i < n; i++) out[i] = (back[2 * i] as number) * 1000;
-  return out;
+  return filterBySpectrum(x, n, hr, hi);
 }
 
 /** The largest zero-to-peak amplitude of a trace and where it is. */

@@ -13,7 +13,7 @@ import { users } from '@server/db/schema/users';
 import { conflict, notFound, unprocessable } from '@server/errors';
 import { recordChange } from '@server/realtime/change-log';
 import { automaticPicksForStreams, solveEvent, type ChainAmplitude, type ChainPick, type ChainStation, type ChainStream } from '@server/seismo/event-chain';
-import { responseFromSensitivity, type ResponseResult } from '@server/seismo/instrument-response';
+import { responseFromRegistry, type ResponseResult } from '@server/seismo/instrument-response';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import { networkSettings } from './event-settings';
 
@@ -36,10 +36,6 @@ export interface EventDeps {
 /** Who acts (null: the system, e.g. building an event from a group). */
 export type EventActor = { id: string; email: string } | null;
 
-const pazSchema = z.object({
-  zeros: z.array(z.object({ re: z.number(), im: z.number() })),
-  poles: z.array(z.object({ re: z.number(), im: z.number() })),
-});
 
 const stationOf = (streamId: string): string => streamId.split('.').slice(0, 2).join('.');
 
@@ -67,25 +63,21 @@ async function memberStreams(db: DbOrTx, members: readonly Member[]): Promise<Ar
   });
 }
 
-/** Responses of the members' channels from the registry: one poles-and-zeros filter and the sensitivity (refused, with why, when missing). */
+/**
+ * Responses of the members' channels from the registry (instrument-response.ts `responseFromRegistry`:
+ * every StationXML stage when imported, as `npm run -s locate` reads them; refused, with why, when missing).
+ */
 async function memberResponses(db: DbOrTx, members: readonly Member[]): Promise<Map<string, ResponseResult>> {
   const out = new Map<string, ResponseResult>();
   if (members.length === 0) return out;
   const rows = await db
-    .select({ network: stations.network, code: stations.code, location: channels.location, channel: channels.code, sensitivity: channels.sensitivity, frequency: channels.sensitivityFrequencyHz, units: channels.sensitivityInputUnits, response: channels.response })
+    .select({ network: stations.network, code: stations.code, location: channels.location, channel: channels.code, sensitivity: channels.sensitivity, sensitivityFrequencyHz: channels.sensitivityFrequencyHz, sensitivityInputUnits: channels.sensitivityInputUnits, response: channels.response })
     .from(channels)
     .innerJoin(stations, eq(stations.id, channels.stationId))
     .where(inArray(channels.stationId, [...new Set(members.map((m) => m.stationId))]));
   for (const r of rows) {
     const id = `${r.network}.${r.code}.${r.location}.${r.channel}`;
-    const paz = pazSchema.safeParse(r.response);
-    if (!paz.success) {
-      out.set(id, { ok: false, reason: `${id}: the registry holds no poles and zeros (only ${r.sensitivity === null ? 'no sensitivity' : 'a flat sensitivity'}); import the station's StationXML for ML` });
-    } else if (r.sensitivity === null || r.units === null) {
-      out.set(id, { ok: false, reason: `${id}: the registry holds no sensitivity or no input unit` });
-    } else {
-      out.set(id, responseFromSensitivity(id, paz.data, r.sensitivity, r.frequency ?? 1, r.units));
-    }
+    out.set(id, responseFromRegistry(id, r));
   }
   return out;
 }

@@ -10,6 +10,7 @@ import { channels, stationAssignments, stations } from '@server/db/schema/statio
 import type { PolesZerosResponse } from '@server/dsp/response';
 import { conflict, forbidden, unprocessable } from '@server/errors';
 import { parseStationXml, StationXmlParseError, type PolesZeros, type StationXmlChannel } from '@server/formats/stationxml';
+import { withRegistryStages } from '@server/seismo/instrument-response';
 import { storedProfile, writeAudit, type Actor } from './station-registry';
 
 /**
@@ -212,7 +213,8 @@ export async function previewStationXml(db: Database, xml: string, actor: Policy
         sensitivity: ch.sensitivity?.value ?? null,
         sensitivityFrequencyHz: ch.sensitivity?.frequencyHz ?? null,
         sensitivityInputUnits: ch.sensitivity?.inputUnits.slice(0, 40) ?? null,
-        response: responseFromStationXml(ch.paz, ch.sensitivity),
+        // Every stage beside the first poles and zeros: ML reads the full response (seismo/instrument-response.ts).
+        response: withRegistryStages(responseFromStationXml(ch.paz, ch.sensitivity), ch.stages),
       };
       const old = existingChannels.find((e) => e.location === loc.data && e.code === cha.data);
       const chFields = diffValues(

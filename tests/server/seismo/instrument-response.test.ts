@@ -3,7 +3,8 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { parseStationXml, type StationXmlChannel } from '@server/formats/stationxml';
-import { groundUnit, responseAt, responseFromSensitivity, responseFromStages, woodAndersonFromCounts, type InstrumentResponse } from '@server/seismo/instrument-response';
+import { groundUnit, responseAt, responseFromRegistry, responseFromSensitivity, responseFromStages, registryStages, withRegistryStages, woodAndersonFromCounts, type InstrumentResponse } from '@server/seismo/instrument-response';
+import { responseFromStationXml } from '@server/features/stations/stationxml-import';
 import { peakAmplitude } from '@server/seismo/wood-anderson';
 
 const dir = join(import.meta.dirname, '..', '..', 'fixtures', 'stationxml');
@@ -93,6 +94,54 @@ describe('response removal checked against scipy.signal.freqs_zpk (multi-stage S
     expect(reason('HH2')).toMatch(/no PolesZeros stage/);
     expect(responseFromStages({ id: 'XX.A.00.HHZ', stages: [] })).toMatchObject({ ok: false, reason: expect.stringMatching(/no response stages/) });
     expect(responseFromSensitivity('XX.A.00.HHZ', { zeros: [], poles: [] }, 1e9, 1, 'counts')).toMatchObject({ ok: false });
+  });
+});
+
+describe('the server reads the same full response from the station registry (multi-stage StationXML)', () => {
+  // What the StationXML import stores for a channel (stationxml-import.ts), through JSON as the
+  // database column gives it back.
+  const stored = (code: string) => {
+    const ch = channel(code);
+    const response: unknown = JSON.parse(JSON.stringify(withRegistryStages(responseFromStationXml(ch.paz, ch.sensitivity), ch.stages)));
+    return { response, sensitivity: ch.sensitivity?.value ?? null, sensitivityFrequencyHz: ch.sensitivity?.frequencyHz ?? null, sensitivityInputUnits: ch.sensitivity?.inputUnits ?? null };
+  };
+  for (const [id, want] of Object.entries(ref.channels)) {
+    const code = id.split('.')[3] as string;
+    it(`${id}: registry → H(f) of all stages within 1e-9 relative of scipy.signal.freqs_zpk (make-response-fixture.py), as the CLI reads it`, () => {
+      const r = responseFromRegistry(id, stored(code));
+      if (!r.ok) throw new Error(r.reason);
+      const cli = usable(code);
+      expect(r.response).toMatchObject({ quantity: cli.quantity, siPerInputUnit: cli.siPerInputUnit, gain: cli.gain });
+      ref.freqsHz.forEach((f, k) => {
+        const h = responseAt(r.response, f);
+        const wr = want.re[k] as number;
+        const wi = want.im[k] as number;
+        expect(Math.hypot(h.re - wr, h.im - wi) / Math.hypot(wr, wi)).toBeLessThan(1e-9);
+      });
+    });
+  }
+  it('units other than m/s are applied on the server path too: nm/s (×1e-9) and m/s² (acceleration)', () => {
+    expect(responseFromRegistry('XX.KVT1.00.HHN', stored('HHN'))).toMatchObject({ ok: true, response: { quantity: 'velocity', siPerInputUnit: 1e-9 } });
+    expect(responseFromRegistry('XX.KVT1.00.HNE', stored('HNE'))).toMatchObject({ ok: true, response: { quantity: 'acceleration', siPerInputUnit: 1 } });
+  });
+  it('refuses with the reason where the stored response cannot be used (missing StageGain, a pressure unit)', () => {
+    // HH1 and BDF have no InstrumentSensitivity, so the import stores no response for them; stored stages without a gain, or from a pressure unit, are refused by name.
+    expect(responseFromRegistry('XX.KVT1.00.HH1', stored('HH1'))).toMatchObject({ ok: false, reason: expect.stringMatching(/registry holds no poles and zeros/) });
+    const noGain = { ...stored('HHZ'), response: { zeros: [], poles: [], stages: registryStages(channel('HH1').stages) } };
+    expect(responseFromRegistry('XX.KVT1.00.HH1', noGain)).toMatchObject({ ok: false, reason: expect.stringMatching(/stage 1 has no StageGain/) });
+    const pressure = { ...stored('HHZ'), response: { zeros: [], poles: [], stages: registryStages(channel('BDF').stages) } };
+    expect(responseFromRegistry('XX.KVT1.00.BDF', pressure)).toMatchObject({ ok: false, reason: expect.stringMatching(/input unit 'Pa' is not a ground motion/) });
+    expect(responseFromRegistry('XX.A.00.HHZ', { response: null, sensitivity: 1e9, sensitivityFrequencyHz: 1, sensitivityInputUnits: 'm/s' })).toMatchObject({ ok: false, reason: expect.stringMatching(/no poles and zeros/) });
+  });
+  it('a channel entered by hand (one filter and the sensitivity, no stages) is read from them, with a note', () => {
+    const ch = channel('HHN');
+    const row = stored('HHN');
+    const byHand = { ...row, response: responseFromStationXml(ch.paz, ch.sensitivity) };
+    const r = responseFromRegistry('XX.KVT1.00.HHN', byHand);
+    expect(r.ok && r.response.notes.join(' ')).toMatch(/no stages/);
+    // Its gain is the InstrumentSensitivity at its frequency (the one-filter form: H = S·PAZ/|PAZ(f_s)|).
+    const f = ch.sensitivity?.frequencyHz ?? 1;
+    expect(r.ok && Math.hypot(responseAt(r.response, f).re, responseAt(r.response, f).im)).toBeCloseTo(ch.sensitivity?.value ?? 0, -1);
   });
 });
 
