@@ -259,6 +259,8 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     // Label the whole group from the review screen: the button asks first (nothing is labelled
     // yet), says only the type is copied, and on confirmation every member is labelled by Ana.
     const page = await openAs(ana, `/queue/items/${ids[0]}`);
+    // No type is chosen by default (Enter must never label an earthquake by itself): choose one first.
+    await page.getByRole('combobox', { name: 'Event type (QuakeML)' }).selectOption('earthquake');
     await page.getByRole('button', { name: /Label the whole group as earthquake/ }).click();
     await page.waitForSelector('dialog[open]:has-text("Only the event type is copied")');
     expect(await page.locator('[data-testid="group-label-plan"] li').count()).toBe(3);

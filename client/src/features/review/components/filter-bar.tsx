@@ -98,6 +98,8 @@ export function FilterBar({ view, onView, filter, onFilter, gain, onGain, normal
           onSubmit={(e) => {
             e.preventDefault();
             apply();
+            // Back to the traces' keys (B, Z, P…): a focused field would take them as text.
+            if (document.activeElement instanceof HTMLElement) document.activeElement.blur();
           }}
         >
           <label htmlFor={filterLowFieldId}>low</label>

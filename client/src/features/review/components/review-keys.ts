@@ -9,7 +9,7 @@ export const reviewKeysHelp: readonly KeyBinding[] = [
   { keys: ['R'], does: 'Release your claim' },
   ...commonEventTypes.map((t, i) => ({ keys: [String(i + 1)], does: `Label as ${t} (claims first if needed) and go to the next item` })),
   ...noiseReasons.map((r, i) => ({ keys: [`Shift+${i + 1}`], does: `Dismiss as noise: ${r} (claims first if needed), then next item` })),
-  { keys: ['Enter'], does: 'Label with the form’s type; with no type chosen (the default) dismiss as noise — never an earthquake by default' },
+  { keys: ['Enter'], does: 'Label with the form’s type; with no type chosen (the default) dismiss as noise with the form’s reason — never an earthquake by default (with picks placed, it asks for a type)' },
   { keys: ['D'], does: 'Dismiss as noise with the form’s noise reason, then next item' },
   { keys: ['M'], does: 'Take the best match’s label into the form (seen before); confirm with Enter, or D for noise' },
   { keys: ['E'], does: 'Escalate to the supervisors (asks for a reason)' },

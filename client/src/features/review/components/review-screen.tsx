@@ -159,6 +159,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
     resetZoom: tv.resetZoom,
     leave: () => go(undefined),
     help: () => setHelp(true),
+    enter: submitLabel,
     cycleView: (step) => setTraceView((v) => cycle(traceViews, v, step)),
     focusFilter: () => {
       setTraceView('filter');

@@ -201,8 +201,8 @@ function curveOf(c: ChannelTraces, view: TraceView, filtering: string): Curve {
   }
 }
 
-/** Plot height of each stacked channel, CSS px (three fit with the spectrogram on a 900 px screen). */
-export const stackedTraceHeightPx = 112;
+/** Plot height of each stacked channel, CSS px (three fit on a 900 px screen; the lowest gets the time axis' 26 px on top). */
+export const stackedTraceHeightPx = 124;
 
 /**
  * Every channel of the item stacked on one time axis (Z, then N/1, E/2: shared/channel-order.ts), one
@@ -298,7 +298,7 @@ function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, p
       ...o,
       scales: { ...o.scales, y: { ...o.scales?.y, range: (_u: uPlot, min: number, max: number) => (half === null ? [0, Math.max(1, max * 1.05)] : symmetricRange(-half, half)) } },
       // Only the lowest trace labels the time axis; the others keep its grid.
-      axes: [last ? (o.axes?.[0] ?? {}) : { ...o.axes?.[0], size: 6, values: () => [], label: '' }, amplitudeAxis(o.axes?.[1], half !== null)],
+      axes: [last ? (o.axes?.[0] ?? {}) : { ...o.axes?.[0], size: 4, values: () => [], label: '', labelSize: 0, labelGap: 0 }, amplitudeAxis(o.axes?.[1], half !== null)],
       cursor: { ...o.cursor, sync: { key: syncKey, setSeries: false } },
       hooks: {
         ...o.hooks,
@@ -342,7 +342,7 @@ function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, p
         x={x}
         y={{ label: drawn.unit || 'ratio', format: (v) => `${formatSi(v)}${drawn.unit ? ` ${drawn.unit}` : ''}` }}
         series={[{ label: curve.from, values: drawn.values, styleIndex, dash: [] }]}
-        height={stackedTraceHeightPx}
+        height={last ? stackedTraceHeightPx + 26 : stackedTraceHeightPx}
         legend={false}
         configure={configure}
       />

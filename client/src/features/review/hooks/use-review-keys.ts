@@ -28,6 +28,8 @@ export interface ReviewKeyHandlers {
   resetZoom: () => void;
   leave: () => void;
   help: () => void;
+  /** Enter with nothing focused: the form's main action (its safe default when no type is chosen). */
+  enter: () => void;
   /** B / Shift+B: the next / previous trace view. */
   cycleView: (step: 1 | -1) => void;
   /** F: to the custom band's low edge. */
@@ -64,7 +66,9 @@ export function useReviewKeys(h: ReviewKeyHandlers): void {
         e.preventDefault();
         return;
       }
-      if (!h.mayWork && /^[crdepsm1-9]$/.test(k)) {
+      // Enter on a focused control is that control's own (a button, a field); on the page itself, the form's.
+      const onPage = e.target === document.body || e.target === document.documentElement;
+      if (!h.mayWork && (/^[crdepsm1-9]$/.test(k) || (k === 'Enter' && onPage))) {
         h.onViewOnly();
         e.preventDefault();
         return;
@@ -84,6 +88,7 @@ export function useReviewKeys(h: ReviewKeyHandlers): void {
       else if (k === '-' || k === '_') h.zoom(2);
       else if (k === '0') h.resetZoom();
       else if (k === 'Escape') h.leave();
+      else if (k === 'Enter' && onPage) h.enter();
       else if (k === '?') h.help();
       else if (k === 'b' || k === 'B') h.cycleView(k === 'b' ? 1 : -1);
       else if (k === 'f') h.focusFilter();
