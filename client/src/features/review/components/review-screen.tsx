@@ -242,7 +242,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
                   <section aria-label="Spectrogram" className="flex flex-col gap-0.5" data-stream-id={sgTraces.streamId}>
                     <div className="flex flex-wrap items-center gap-2 text-sm">
                       <h2 className="font-semibold">Spectrogram</h2>
-                      <div role="radiogroup" aria-label="Spectrogram component (key G)" className="flex gap-0.5">
+                      <div role="radiogroup" aria-label="Spectrogram component (key G)" className="flex gap-1">
                         {orderedTraces.map((c, i) => (
                           <button
                             key={c.streamId}
@@ -250,7 +250,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
                             role="radio"
                             aria-checked={c.streamId === sgTraces.streamId}
                             onClick={() => setSgIndex(i)}
-                            className={`h-6 rounded-xs px-1.5 font-mono text-xs ${c.streamId === sgTraces.streamId ? 'bg-raised font-semibold text-ink underline underline-offset-4' : 'text-ink-muted hover:bg-raised'}`}
+                            className={`h-6 min-w-6 rounded-xs px-1.5 font-mono text-xs ${c.streamId === sgTraces.streamId ? 'bg-raised font-semibold text-ink underline underline-offset-4' : 'text-ink-muted hover:bg-raised'}`}
                           >
                             {c.streamId.slice(-1)}
                           </button>
