@@ -36,6 +36,8 @@ describe('review workbench (chromium, real server)', () => {
   const formPicks = async (page: Page): Promise<string[]> => page.locator('form[aria-label="Label this item"] li').allInnerTexts();
   const pointAt = async (page: Page, channel: string, fraction: number) => {
     const over = page.locator(`section[aria-label="Channel ${channel}"] .u-over`).first();
+    // A pick key changes the click phase, which rebuilds the plots: wait for the new one.
+    await over.waitFor();
     const box = await over.boundingBox();
     if (!box) throw new Error(`no plot area for ${channel}`);
     await page.mouse.move(box.x + box.width * fraction, box.y + box.height / 2, { steps: 3 });
@@ -85,6 +87,7 @@ describe('review workbench (chromium, real server)', () => {
 
     await pointAt(page, 'XX.KV02.00.HHN', 0.35);
     await page.keyboard.press('p');
+    await expect.poll(() => formPicks(page)).toHaveLength(1);
     await pointAt(page, 'XX.KV02.00.HHE', 0.5);
     await page.keyboard.press('s');
     await expect.poll(() => formPicks(page)).toHaveLength(2);
