@@ -396,3 +396,103 @@ export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: numbe
   }
   return filterBySpectrum(x, n, hr, hi);
 }
+
+/** The ground motion a response removal gives. */
+export type RemovalOutput = 'velocity' | 'displacement';
+
+/**
+ * Ground velocity (m/s) or displacement (m) from raw counts, for DISPLAY: the same preparation as
+ * `woodAndersonFromCounts` (mean and least-squares line removed, 5 % cosine taper at each end, zero
+ * padding to a power of two N ≥ n + 5 s·fs), then bin by bin
+ *   G(f) = X(f) · pre(f) / (H(f)/u · (i2πf)^(k_in − k_out)),
+ * X the counts' DFT, H the response (counts per stated unit), u the SI size of the stated unit,
+ * k = 0, 1, 2 for displacement, velocity, acceleration (V = iω·D, A = iω·V; the definition of the
+ * transfer function, common practice), pre the cosine pre-filter that keeps the division from
+ * amplifying noise where H is small. Bins where H is 0 are set to 0. Pure; the input is not modified.
+ * The magnitude and ML never read it (they use `woodAndersonFromCounts`).
+ * @throws RangeError for an empty trace, a rate that is not > 0, a non-finite sample or a bad pre-filter.
+ */
+export function groundMotionFromCounts(counts: Float64Array, sampleRateHz: number, response: InstrumentResponse, output: RemovalOutput, preFilter: PreFilter = defaultPreFilter(sampleRateHz)): Float64Array {
+  const n = counts.length;
+  if (n < 2) throw new RangeError('response removal: the trace needs at least 2 samples');
+  if (!(sampleRateHz > 0) || !Number.isFinite(sampleRateHz)) throw new RangeError(`response removal: sample rate must be > 0 Hz, got ${sampleRateHz}`);
+  const { f1, f2, f3, f4 } = preFilter;
+  if (!(0 <= f1 && f1 < f2 && f2 <= f3 && f3 < f4)) throw new RangeError(`response removal: pre-filter corners must rise, got ${f1}, ${f2}, ${f3}, ${f4} Hz`);
+  let sx = 0;
+  let sxy = 0;
+  for (let i = 0; i < n; i++) {
+    const v = counts[i] as number;
+    if (!Number.isFinite(v)) throw new RangeError(`response removal: sample ${i} is not a finite number`);
+    sx += v;
+    sxy += i * v;
+  }
+  const mi = (n - 1) / 2;
+  const my = sx / n;
+  const sii = (n * (n * n - 1)) / 12;
+  const slope = (sxy - n * mi * my) / sii;
+  let size = 4;
+  while (size < n + Math.ceil(TAIL_S * sampleRateHz)) size *= 2;
+  const x = new Float64Array(size);
+  const taperN = Math.max(1, Math.floor(0.05 * n));
+  for (let i = 0; i < n; i++) {
+    const edge = Math.min(i, n - 1 - i);
+    const w = edge < taperN ? 0.5 * (1 - Math.cos((Math.PI * edge) / taperN)) : 1;
+    x[i] = ((counts[i] as number) - my - slope * (i - mi)) * w;
+  }
+  const fft = planFor(size);
+  const spec = new Float64Array(2 * size);
+  fft.realTransform(spec, x);
+  fft.completeSpectrum(spec);
+  const kIn = response.quantity === 'displacement' ? 0 : response.quantity === 'velocity' ? 1 : 2;
+  const power = kIn - (output === 'displacement' ? 0 : 1);
+  const half = size / 2;
+  for (let k = 0; k <= half; k++) {
+    const f = (k * sampleRateHz) / size;
+    const taper = taperAt(f, preFilter);
+    let fr = 0;
+    let fi = 0;
+    if (taper > 0) {
+      const w = 2 * Math.PI * f;
+      const h = responseAt(response, f);
+      let ir = h.re / response.siPerInputUnit;
+      let ii = h.im / response.siPerInputUnit;
+      // × (iω)^power, power may be negative (a displacement sensor shown as velocity): ÷ iω then.
+      for (let p = 0; p < Math.abs(power); p++) {
+        if (power > 0) {
+          const t = -ii * w;
+          ii = ir * w;
+          ir = t;
+        } else if (w > 0) {
+          const t = ii / w;
+          ii = -ir / w;
+          ir = t;
+        } else {
+          ir = 0;
+          ii = 0;
+        }
+      }
+      const id = ir * ir + ii * ii;
+      if (id > 0 && Number.isFinite(id)) {
+        // taper / I
+        fr = (ir / id) * taper;
+        fi = (-ii / id) * taper;
+      }
+    }
+    let re = spec[2 * k] as number;
+    let im = spec[2 * k + 1] as number;
+    spec[2 * k] = re * fr - im * fi;
+    spec[2 * k + 1] = re * fi + im * fr;
+    if (k > 0 && k < half) {
+      const m = size - k;
+      re = spec[2 * m] as number;
+      im = spec[2 * m + 1] as number;
+      spec[2 * m] = re * fr + im * fi;
+      spec[2 * m + 1] = im * fr - re * fi;
+    }
+  }
+  const back = new Float64Array(2 * size);
+  fft.inverseTransform(back, spec);
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i++) out[i] = back[2 * i] as number;
+  return out;
+}

@@ -33,6 +33,14 @@ const isoTime = z
 
 const finiteNumber = z.preprocess((v) => (typeof v === 'string' && v.trim() !== '' ? Number(v) : v), z.number().finite('must be a number'));
 
+/** Ways the display band may filter. */
+export const displayPhases = ['causal', 'zero-phase'] as const;
+/** What the display trace measures. */
+export const displayUnits = ['counts', 'velocity', 'displacement', 'wood-anderson'] as const;
+/** One display unit choice. */
+export type DisplayUnits = (typeof displayUnits)[number];
+
+
 /**
  * Query of GET /api/queue. Lists are comma-separated (`state=new,in review`). Station codes are
  * `KV01` or `XX.KV01`. Times filter on the window start, `from` inclusive and `to` exclusive.
@@ -139,11 +147,36 @@ export const tracesQuerySchema = z
     from: finiteNumber.optional(),
     to: finiteNumber.optional(),
     points: z.preprocess((v) => (typeof v === 'string' ? Number(v) : v), z.number().int().min(100).max(20_000)).default(2000),
+    /** Display band, Hz (both or neither): a Butterworth band-pass of the profile's order on the display trace. */
+    fmin: finiteNumber.optional(),
+    fmax: finiteNumber.optional(),
+    /** How the display band filters: causal from zero state (as the engine) or forward-backward (zero-phase, display only). */
+    phase: z.enum(displayPhases).optional(),
+    /** The display trace's ground motion (from the station's response; refused per channel with the reason where it cannot be used). */
+    units: z.enum(displayUnits).optional(),
   })
-  .refine((q) => q.from === undefined || q.to === undefined || q.from < q.to, { message: 'from must be before to', path: ['from'] });
+  .refine((q) => q.from === undefined || q.to === undefined || q.from < q.to, { message: 'from must be before to', path: ['from'] })
+  .refine((q) => (q.fmin === undefined) === (q.fmax === undefined), { message: 'give both fmin and fmax, or neither', path: ['fmin'] })
+  .refine((q) => q.fmin === undefined || q.fmax === undefined || (q.fmin > 0 && q.fmin < q.fmax), { message: 'the band needs 0 < fmin < fmax (Hz)', path: ['fmin'] });
 
 /** A parsed traces query. */
 export type TracesQuery = z.infer<typeof tracesQuerySchema>;
+
+/**
+ * The display trace of one channel, as the analyst asked for it (units and band), with the filter
+ * it came from in words: no number of the flag comes from it.
+ */
+export const displayTraceSchema = z.object({
+  /** On the raw trace's points (`times`). */
+  values: z.array(z.number()),
+  /** Physical unit of `values` (counts, m/s, m, mm for Wood-Anderson). */
+  unit: z.string(),
+  units: z.enum(displayUnits),
+  /** The whole chain in words: how the units were reached and the band, e.g. "response removed to velocity (poles and zeros) · Butterworth 1–5 Hz order 4, zero-phase". */
+  chain: z.string(),
+  band: z.tuple([z.number(), z.number()]).nullable(),
+  phase: z.enum(displayPhases),
+});
 
 /** One channel's display traces. */
 export const channelTracesSchema = z.object({
@@ -163,6 +196,10 @@ export const channelTracesSchema = z.object({
   staLtaLevels: z.object({ on: z.number(), off: z.number(), method: z.string() }),
   triggers: z.array(z.object({ on: z.number(), off: z.number().nullable() })),
   spectrogram: z.object({ times: z.array(z.number()), freqs: z.array(z.number()), db: z.array(z.number()) }).nullable(),
+  /** The asked-for display trace (only when units or a band were asked for). */
+  display: displayTraceSchema.nullable().optional(),
+  /** Why the asked-for display trace was refused on this channel (e.g. no poles and zeros for displacement). */
+  displayRefused: z.string().nullable().optional(),
 });
 
 /** Response of GET /api/queue/items/:id/traces. */

@@ -97,7 +97,7 @@ describe('review screen (chromium, real server)', () => {
     expect(await page.getByRole('region', { name: 'Waveforms' }).count()).toBe(1);
 
     // S with the mouse over the east channel's band trace at 60 % of the window.
-    await pointAt(page, 'XX.KV01.00.HHE', 0.6, 1);
+    await pointAt(page, 'XX.KV01.00.HHE', 0.6);
     await page.keyboard.press('s');
     await page.waitForFunction(() => document.querySelectorAll('form[aria-label="Label this item"] li').length === 1);
     // P over the north channel at 40 %.
@@ -177,7 +177,7 @@ describe('review screen (chromium, real server)', () => {
     await pointAt(page, 'XX.KV01.00.HHZ', 0.45);
     await page.keyboard.press('p');
     await page.waitForSelector('form[aria-label="Label this item"] li');
-    const drafts = () => page.evaluate(() => Object.keys(sessionStorage).filter((k) => k.startsWith('seisift.review-draft.')).length);
+    const drafts = () => page.evaluate(() => Object.keys(localStorage).filter((k) => k.startsWith('seisift.review-draft.')).length);
     expect(await drafts()).toBe(1);
     await page.keyboard.press('1');
     await page.waitForURL((u) => !u.pathname.endsWith(`/queue/items/${itemId}`));

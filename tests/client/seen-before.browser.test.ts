@@ -70,7 +70,8 @@ describe('seen before: accept a matched label with one key (chromium, real serve
     expect(await page.getByText(/^resembles 1 quarry blast at ACR, best match 1\.00 \(2026-03-11 11:58\)/).count()).toBe(1);
     const form = page.locator('form[aria-label="Label this item"]');
     const typeSelect = form.locator('select').first();
-    expect(await typeSelect.inputValue()).toBe('earthquake');
+    // No type chosen by default (the safe default: Enter alone dismisses as noise).
+    expect(await typeSelect.inputValue()).toBe('');
     const formBefore = await form.locator('select, textarea, input').evaluateAll((els) => els.map((e) => (e as HTMLInputElement).value));
     await page.locator('body').click({ position: { x: 5, y: 5 } });
     // ONE key: M takes the matched label into the form, and only that.

@@ -7,10 +7,15 @@ import { channels, stations } from '@server/db/schema/stations';
 import { windowChannels } from '@server/db/schema/uploads';
 import { decodeStoredSamples } from '@server/db/samples-codec';
 import { BandError, highBandForRate, validateBand } from '@server/dsp/bands';
+import { butterworthSos } from '@server/dsp/butterworth';
 import { channelChain } from '@server/dsp/channel-chain';
+import { preprocessTrace } from '@server/dsp/preprocess';
+import { sosfilt, sosfiltZeroPhase } from '@server/dsp/sosfilt';
 import { spectrogram } from '@server/dsp/spectrum';
 import { badRequest, notFound, unprocessable } from '@server/errors';
 import { channelSensitivity } from '@server/features/stations/station-registry';
+import { groundMotionFromCounts, responseFromSensitivity, woodAndersonFromCounts, type ResponseResult } from '@server/seismo/instrument-response';
+import { channelResponseSchema } from '@shared/schemas/station';
 
 /**
  * Display traces of a queue item: for each channel of its window the pre-processed trace, both
@@ -111,6 +116,12 @@ export interface TracesInput {
    * Absent: the channel is shown in counts.
    */
   sensitivities: Record<string, number>;
+  /**
+   * Per stream id, the registry's response (one poles-and-zeros filter and the sensitivity, as the
+   * event chain reads it) or why it cannot be used: velocity from it, displacement and Wood-Anderson
+   * (absent: none is known).
+   */
+  responses?: Record<string, ResponseResult>;
   query: TracesQuery;
 }
 
@@ -139,7 +150,14 @@ export async function loadTracesInput(db: Database, itemId: number, q: TracesQue
   const rows = await db.select().from(windowChannels).where(eq(windowChannels.windowId, item.windowId)).orderBy(asc(windowChannels.streamId));
   if (rows.length === 0) throw notFound(`Samples of queue item ${itemId}`);
   const registered = await db
-    .select({ location: channels.location, code: channels.code, sensitivity: channels.sensitivity, sensitivityInputUnits: channels.sensitivityInputUnits, response: channels.response })
+    .select({
+      location: channels.location,
+      code: channels.code,
+      sensitivity: channels.sensitivity,
+      sensitivityFrequencyHz: channels.sensitivityFrequencyHz,
+      sensitivityInputUnits: channels.sensitivityInputUnits,
+      response: channels.response,
+    })
     .from(channels)
     .where(and(eq(channels.stationId, item.stationId)));
   const durationS = windowDurationS(rows);
@@ -147,19 +165,38 @@ export async function loadTracesInput(db: Database, itemId: number, q: TracesQue
   if (from < 0 || from >= durationS) throw badRequest(`from: ${from} s is outside the window (0 to ${durationS.toFixed(3)} s)`, { issues: [{ path: 'from', message: 'outside the window' }] });
   const profile = stationProfile(item.profile);
   const sensitivities: Record<string, number> = {};
+  const responses: Record<string, ResponseResult> = {};
   for (const r of rows) {
     checkBands(r.streamId, r.sampleRateHz, profile);
     const [, , loc = '', cha = ''] = r.streamId.split('.');
     const ch = registered.find((c) => c.location === loc && c.code === cha);
     const s = ch ? channelSensitivity(ch) : null;
     if (s !== null) sensitivities[r.streamId] = typeof s === 'number' ? s : s.sensitivity;
+    responses[r.streamId] = registryResponse(r.streamId, ch);
   }
   return {
     channels: rows.map((r) => ({ streamId: r.streamId, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, sampleCount: r.sampleCount, samples: r.samples })),
     profile: item.profile,
     sensitivities,
+    responses,
     query: q,
   };
+}
+
+/**
+ * A channel's response from the registry (its poles and zeros, sensitivity, frequency and input
+ * unit, as the event chain reads them), or the reason it cannot be used, in words.
+ */
+export function registryResponse(
+  streamId: string,
+  ch: { sensitivity: number | null; sensitivityFrequencyHz: number | null; sensitivityInputUnits: string | null; response: unknown } | undefined,
+): ResponseResult {
+  if (!ch) return { ok: false, reason: `${streamId} is not registered at this station, so its response is unknown` };
+  const paz = channelResponseSchema.safeParse(ch.response);
+  if (!paz.success) return { ok: false, reason: `${streamId}: the registry holds no poles and zeros (${ch.sensitivity === null ? 'no sensitivity either' : 'only a flat sensitivity'}); import the station's StationXML` };
+  const units = ch.sensitivityInputUnits ?? null;
+  if (units === null || units.trim() === '') return { ok: false, reason: `${streamId}: the registry names no input unit for the response` };
+  return responseFromSensitivity(streamId, paz.data, paz.data.sensitivity, paz.data.sensitivityFrequencyHz || (ch.sensitivityFrequencyHz ?? 1), units);
 }
 
 /**
@@ -251,9 +288,79 @@ export function computeTraces(input: TracesInput): TracesResponse {
       staLtaLevels: { on: sl.on, off: sl.off, method: sl.method },
       triggers: triggers.map((t) => ({ on: t.on + offsetS, off: t.off === null ? null : t.off + offsetS })),
       spectrogram: sg,
+      ...displayFor(input, r.streamId, x, fs, s, profile.bands.order, profile.preprocess.taperAlpha, raw.index, i0, i1, bucket),
     });
   }
   return { from, to: Math.min(to, durationS), filtering: 'causal, zero initial state', channels: out };
+}
+
+/**
+ * The display trace the analyst asked for on one channel (nothing when neither units nor a band
+ * were asked for): the units first — counts (demeaned, detrended, tapered as the engine's
+ * pre-processing), velocity (the poles and zeros removed, else the flat sensitivity, said so),
+ * displacement (poles and zeros removed), Wood-Anderson (`woodAndersonFromCounts`, the ML's own
+ * simulation, mm) — then the band: a Butterworth band-pass of the profile's order, causal from zero
+ * state (`sosfilt`, as the engine) or forward-backward (`sosfiltZeroPhase`, display only). A unit or
+ * band that cannot be used on this channel is refused with the reason (`displayRefused`).
+ */
+function displayFor(
+  input: TracesInput,
+  streamId: string,
+  counts: Float64Array,
+  fs: number,
+  flatSensitivity: number | null,
+  order: number,
+  taperAlpha: number,
+  rawIndex: number[],
+  i0: number,
+  i1: number,
+  bucket: number,
+): Pick<TracesResponse['channels'][number], 'display' | 'displayRefused'> {
+  const q = input.query;
+  if (q.units === undefined && q.fmin === undefined) return {};
+  const phase = q.phase ?? 'causal';
+  const units = q.units ?? (flatSensitivity !== null ? 'velocity' : 'counts');
+  const resp = input.responses?.[streamId] ?? { ok: false as const, reason: `${streamId}: no response` };
+  let y: Float64Array;
+  let unit: string;
+  let how: string;
+  if (units === 'counts') {
+    y = preprocessTrace(counts, taperAlpha);
+    unit = 'counts';
+    how = 'counts (demeaned, detrended, tapered)';
+  } else if (units === 'velocity' && resp.ok) {
+    y = groundMotionFromCounts(counts, fs, resp.response, 'velocity');
+    unit = 'm/s';
+    how = 'velocity: response removed (poles and zeros, pre-filter 0.05–0.1 Hz and 0.8–0.9 × Nyquist)';
+  } else if (units === 'velocity' && flatSensitivity !== null) {
+    y = preprocessTrace(counts, taperAlpha).map((v) => v / flatSensitivity);
+    unit = 'm/s';
+    how = `velocity: ÷ flat sensitivity ${flatSensitivity.toPrecision(4)} counts/(m/s) (no poles and zeros registered)`;
+  } else if (!resp.ok) {
+    return { display: null, displayRefused: `${units === 'wood-anderson' ? 'Wood-Anderson' : units} needs the instrument response: ${resp.reason}` };
+  } else if (units === 'displacement') {
+    y = groundMotionFromCounts(counts, fs, resp.response, 'displacement');
+    unit = 'm';
+    how = 'displacement: response removed (poles and zeros, pre-filter 0.05–0.1 Hz and 0.8–0.9 × Nyquist)';
+  } else {
+    y = woodAndersonFromCounts(counts, fs, resp.response);
+    unit = 'mm';
+    how = 'Wood-Anderson (T0 0.8 s, h 0.7, gain 2080) from the response, mm';
+  }
+  let band: [number, number] | null = null;
+  if (q.fmin !== undefined && q.fmax !== undefined) {
+    try {
+      const b = validateBand('display', { fmin: q.fmin, fmax: q.fmax }, fs, 'refuse');
+      band = [b.fmin, b.fmax];
+    } catch (err) {
+      if (err instanceof BandError) return { display: null, displayRefused: `${streamId}: ${err.message}` };
+      throw err;
+    }
+    const sos = butterworthSos(order, band, 'bandpass', fs);
+    y = phase === 'zero-phase' ? sosfiltZeroPhase(sos, y) : sosfilt(sos, y);
+    how += ` · Butterworth band-pass ${band[0]}–${band[1]} Hz, order ${order}, ${phase === 'zero-phase' ? 'zero-phase (forward-backward, display only)' : 'causal, zero initial state'}`;
+  } else how += ' · no band-pass';
+  return { display: { values: bucketExtremes(y, rawIndex, i0, i1, bucket), unit, units, chain: how, band, phase }, displayRefused: null };
 }
 
 /**

@@ -51,6 +51,8 @@ export type PlotFrameProps = {
   configure?: (options: uPlot.Options) => uPlot.Options;
   /** The live chart, e.g. to link cursors between plots. */
   onChart?: (chart: uPlot | null) => void;
+  /** Draw the series legend under the plot (default true); stacked plots that share one legend turn it off. */
+  legend?: boolean;
 };
 
 /** Token colours a plot reads from the nearest themed ancestor. */
@@ -158,7 +160,7 @@ function LineSample({ color, dash }: { color: string; dash: readonly number[] })
  * shows each series' colour and dash, its value under the cursor, and toggles it on click or Enter.
  * Themes: re-reads the tokens when the nearest `data-theme` changes and rebuilds the chart.
  */
-export function PlotFrame({ title, description, x, y, series, height = 220, className, configure, onChart }: PlotFrameProps) {
+export function PlotFrame({ title, description, x, y, series, height = 220, className, configure, onChart, legend = true }: PlotFrameProps) {
   const boxRef = useRef<HTMLDivElement>(null);
   const scopedTheme = useScopedTheme(boxRef);
   const width = useWidth(boxRef);
@@ -295,7 +297,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
         ) : null}
       </div>
       {/* A plot that draws its own picture (a heat map) has no line series and so no legend. */}
-      {series.length === 0 ? null : (
+      {series.length === 0 || !legend ? null : (
         <ul aria-label={`${title}: series`} className="flex flex-wrap gap-x-1 gap-y-0.5 border-t border-line px-2 py-1.5">
           {series.map((s, i) => {
             const look = styleOf(s, i);

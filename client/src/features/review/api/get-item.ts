@@ -1,7 +1,7 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { channelResultSchema, storedAnalysisSchema } from '@shared/schemas/analysis';
-import { queueItemDetailSchema, tracesResponseSchema } from '@shared/schemas/queue';
+import { queueItemDetailSchema, tracesResponseSchema, type DisplayUnits } from '@shared/schemas/queue';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
@@ -15,16 +15,28 @@ export function useItem(id: number) {
   return useQuery(itemOptions(id));
 }
 
+/** The analyst's display filter as the traces endpoint takes it (units, band or none, phase). */
+export type DisplayRequest = { units: DisplayUnits; band: readonly [number, number] | null; phase: 'causal' | 'zero-phase' };
+
 /**
  * Display traces over [from, to) s (the whole window when null), about `points` points per curve;
- * keeps the previous range on screen while a zoom loads.
+ * keeps the previous range on screen while a zoom loads. With `display`, each channel also carries
+ * the analyst's display trace (units and band) or why it was refused.
  */
-export function useTraces(id: number, from: number | null, to: number | null, points: number) {
+export function useTraces(id: number, from: number | null, to: number | null, points: number, display: DisplayRequest | null = null) {
   const qs = new URLSearchParams({ points: String(points) });
   if (from !== null) qs.set('from', from.toFixed(3));
   if (to !== null) qs.set('to', to.toFixed(3));
+  if (display) {
+    qs.set('units', display.units);
+    qs.set('phase', display.phase);
+    if (display.band) {
+      qs.set('fmin', String(display.band[0]));
+      qs.set('fmax', String(display.band[1]));
+    }
+  }
   return useQuery({
-    queryKey: queryKeys.queue.traces(id, from, to, points),
+    queryKey: [...queryKeys.queue.traces(id, from, to, points), display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'],
     queryFn: ({ signal }) => apiRequest(tracesResponseSchema, `/api/queue/items/${id}/traces?${qs.toString()}`, { signal }),
     staleTime: Infinity,
     placeholderData: keepPreviousData,

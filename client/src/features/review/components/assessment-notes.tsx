@@ -3,7 +3,6 @@ import type { z } from 'zod';
 import type { reviewNoteSchema } from '@client/api/queue/candidate-events';
 import { Button } from '@client/components/ui/button';
 import { Select } from '@client/components/ui/select';
-import { TriageCaution } from '@client/components/ui/triage-caution';
 import type { AnalysisView } from '@client/features/review/api/get-item';
 import { describeUnsaved, unsavedWork, type ReviewDraft } from '@client/features/review/lib/review-draft';
 import { reviewFormDefaults } from './label-form';
@@ -14,7 +13,7 @@ export function DraftBanner({ draft, onDiscard }: { draft: ReviewDraft; onDiscar
   return (
     <section aria-label="Unsaved draft" className="flex flex-wrap items-center gap-2 rounded-sm border-[1.5px] border-warn bg-surface p-3 text-sm" data-testid="draft-restored" role="status">
       <p className="min-w-0 flex-1">
-        <strong>Draft put back:</strong> {describeUnsaved(unsavedWork(draft.values, reviewFormDefaults))} not yet saved, kept in this tab since{' '}
+        <strong>Draft put back:</strong> {describeUnsaved(unsavedWork(draft.values, reviewFormDefaults))} not yet saved, kept in this browser since{' '}
         <time className="font-mono" dateTime={draft.savedAt}>{draft.savedAt.slice(11, 19)}Z</time>.
       </p>
       <Button size="sm" variant="quiet" onClick={onDiscard}>
@@ -43,7 +42,7 @@ export function ReturnNote({ note }: { note: NonNullable<z.infer<typeof reviewNo
   );
 }
 
-/** Why the engine flagged the item, with the triage caution. */
+/** Why the engine flagged the item (the triage caution is the screen's banner: session-caution.tsx). */
 export function FlagReasons({ flag, reasons }: { flag: string; reasons: readonly string[] }) {
   return (
     <section className="rounded-sm border border-line bg-surface p-3">
@@ -53,7 +52,6 @@ export function FlagReasons({ flag, reasons }: { flag: string; reasons: readonly
           <li key={r}>{r}</li>
         ))}
       </ul>
-      <TriageCaution className="mt-2" />
     </section>
   );
 }

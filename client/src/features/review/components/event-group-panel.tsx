@@ -40,8 +40,8 @@ export function GroupPanel({ eventId, stationCount, ev, loading, error, currentI
       )}
       {mayLabel && ev ? (
         <div className="mt-2 flex flex-wrap items-center gap-2">
-          <Button size="sm" disabled={busy} onClick={onLabel}>
-            Label the whole group as {eventType}
+          <Button size="sm" disabled={busy || eventType === ''} onClick={onLabel}>
+            {eventType === '' ? 'Label the whole group (choose a type first)' : `Label the whole group as ${eventType}`}
           </Button>
           <span className="text-xs text-ink-muted">Asks first. The others get the type only; this item gets your whole form.</span>
         </div>

@@ -17,8 +17,16 @@ import { FormField } from '@client/components/ui/form-field';
 import { Kbd } from '@client/components/ui/kbd';
 import { Select } from '@client/components/ui/select';
 
+/**
+ * The event type of a form nobody has chosen one in yet. Enter then never labels an event: it
+ * dismisses as noise with the form's noise reason (or, with picks placed, asks for a type), so an
+ * unchosen window is never catalogued as an earthquake by default.
+ */
+export const noTypeChosen = '' as const;
+
 /** The review form: an event label (QuakeML type, certainty, distance class, picks, note) and, for dismissals, a noise reason. */
 export const reviewFormSchema = eventLabelSchema.extend({
+  eventType: z.union([z.enum(quakemlEventTypes), z.literal(noTypeChosen)]),
   distanceClass: z.enum(distanceClasses).nullable().default(null),
   noiseReason: z.enum(noiseReasons).default('unknown noise'),
 });
@@ -29,7 +37,7 @@ export type ReviewFormInput = z.input<typeof reviewFormSchema>;
 export type ReviewFormValues = z.output<typeof reviewFormSchema>;
 
 /** The form's values before anything is entered (also what "unsaved work" is measured against). */
-export const reviewFormDefaults = { eventType: 'earthquake', certainty: 'suspected', distanceClass: null, picks: [], note: '', noiseReason: 'unknown noise' } as const satisfies ReviewFormValues;
+export const reviewFormDefaults = { eventType: noTypeChosen, certainty: 'suspected', distanceClass: null, picks: [], note: '', noiseReason: 'unknown noise' } as const satisfies ReviewFormValues;
 
 /** The form's hook (react-hook-form with the shared zod schema). */
 export function useReviewForm(initial?: Partial<ReviewFormInput>): UseFormReturn<ReviewFormInput, unknown, ReviewFormValues> {
@@ -63,6 +71,7 @@ export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onD
   const picks = useFieldArray({ control, name: 'picks' });
   // Picks are placed from outside the form (keys, clicks) with setValue: read their values, not the field array's snapshots.
   const values = form.watch('picks') ?? [];
+  const eventType = form.watch('eventType');
   const errors = formState.errors;
   return (
     <form onSubmit={handleSubmit(onLabel)} aria-label="Label this item" className="flex flex-col gap-3">
@@ -71,6 +80,7 @@ export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onD
           <FormField label="Event type (QuakeML)" error={errors.eventType?.message}>
             {(p) => (
               <Select {...p} {...register('eventType')}>
+                <option value={noTypeChosen}>not chosen · Enter dismisses as noise</option>
                 <optgroup label="Common (keys 1–6)">
                   {commonEventTypes.map((t, i) => (
                     <option key={t} value={t}>
@@ -163,7 +173,7 @@ export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onD
         </FormField>
         <div className="flex flex-wrap gap-2">
           <Button ref={labelButtonRef} type="submit" variant="primary" shortcut="Enter">
-            Label
+            {eventType === noTypeChosen ? 'Dismiss as noise (no type chosen)' : `Label ${eventType}`}
           </Button>
           <Button variant="secondary" shortcut="D" onClick={handleSubmit(onDismiss)}>
             Dismiss as noise

@@ -23,7 +23,7 @@ export function LeaveDialog({ open, itemId, unsaved, onStay, onDiscardAndLeave, 
       open={open}
       onClose={onStay}
       title={`Leave item ${itemId} without saving?`}
-      description={`${describeUnsaved(unsaved)} on this item ${unsaved.picks + (unsaved.note ? 1 : 0) > 1 ? 'are' : 'is'} not saved. A draft stays in this tab and comes back when you open the item again.`}
+      description={`${describeUnsaved(unsaved)} on this item ${unsaved.picks + (unsaved.note ? 1 : 0) > 1 ? 'are' : 'is'} not saved. A draft stays in this browser (for you and this item) and comes back when you open the item again.`}
       actions={
         <>
           <Button onClick={onStay}>Stay</Button>

@@ -1,4 +1,4 @@
-import { commonEventTypes } from '@shared/schemas/label';
+import { commonEventTypes, noiseReasons } from '@shared/schemas/label';
 import type { KeyBinding } from '@client/components/ui/key-help';
 
 /** The review screen's keys. */
@@ -8,13 +8,21 @@ export const reviewKeysHelp: readonly KeyBinding[] = [
   { keys: ['C'], does: 'Claim this item' },
   { keys: ['R'], does: 'Release your claim' },
   ...commonEventTypes.map((t, i) => ({ keys: [String(i + 1)], does: `Label as ${t} (claims first if needed) and go to the next item` })),
-  { keys: ['Enter'], does: 'Label with the form’s values (inside the form)' },
+  ...noiseReasons.map((r, i) => ({ keys: [`Shift+${i + 1}`], does: `Dismiss as noise: ${r} (claims first if needed), then next item` })),
+  { keys: ['Enter'], does: 'Label with the form’s type; with no type chosen (the default) dismiss as noise with the form’s reason — never an earthquake by default (with picks placed, it asks for a type)' },
   { keys: ['D'], does: 'Dismiss as noise with the form’s noise reason, then next item' },
   { keys: ['M'], does: 'Take the best match’s label into the form (seen before); confirm with Enter, or D for noise' },
   { keys: ['E'], does: 'Escalate to the supervisors (asks for a reason)' },
   { keys: ['P', 'S'], does: 'Place a P or S pick at the mouse, on the channel under it; also sets the phase a click places. Off the traces, P goes to the vertical’s first trigger and S waits for the mouse' },
   { keys: ['+', '−'], does: 'Zoom in / out around the cursor or the middle' },
   { keys: ['0'], does: 'Show the whole window' },
+  { keys: ['B'], does: 'Next trace view: pre-processed, low band, high band, STA/LTA, your filter (Shift+B back)' },
+  { keys: ['F'], does: 'Type a custom band (low and high Hz; Enter applies)' },
+  { keys: ['Z'], does: 'Your filter causal or zero-phase (display only)' },
+  { keys: ['U'], does: 'Your filter’s units: counts, velocity, displacement, Wood-Anderson' },
+  { keys: ['[', ']'], does: 'Gain down / up' },
+  { keys: ['N'], does: 'Each trace to its own peak, or all to the largest (true relative amplitude)' },
+  { keys: ['G'], does: 'Spectrogram of the next component (Z, N, E)' },
   { keys: ['Esc'], does: 'Back to the queue (asks first when picks or a note are not saved)' },
   { keys: ['?'], does: 'Show these keys' },
 ];

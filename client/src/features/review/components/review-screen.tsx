@@ -1,4 +1,7 @@
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useBlocker } from 'react-router';
+import { sortChannels } from '@shared/channel-order';
+import { displayUnits } from '@shared/schemas/queue';
 import { can } from '@shared/auth/policies';
 import { roleSchema, type Role } from '@shared/auth/roles';
 import { noiseReasons, quakemlEventTypes } from '@shared/schemas/label';
@@ -17,7 +20,10 @@ import { useReviewActions } from '@client/features/review/hooks/use-review-actio
 import { useReviewDraft } from '@client/features/review/hooks/use-review-draft';
 import { useReviewKeys } from '@client/features/review/hooks/use-review-keys';
 import { useTraceView } from '@client/features/review/hooks/use-trace-view';
+import { cycle, distanceFromSMinusP, sMinusP, stepGain, traceViews, type DisplayFilter, type TraceView } from '@client/features/review/lib/display-settings';
 import { unsavedWork } from '@client/features/review/lib/review-draft';
+import { FilterBar, filterLowFieldId } from './filter-bar';
+import { SessionCaution } from './session-caution';
 import { DraftBanner, FlagReasons, ReturnNote, SpectrumSection } from './assessment-notes';
 import { GroupLabelDialog, GroupPanel } from './event-group-panel';
 import { LabelForm, reviewFormDefaults, useReviewForm } from './label-form';
@@ -27,7 +33,7 @@ import { EscalateDialog, LeaveDialog } from './review-dialogs';
 import { ReviewHeader, ReviewToolbar } from './review-header';
 import { reviewKeysHelp } from './review-keys';
 import { SpectrogramPanel } from './spectrogram-panel';
-import { TracePanel, type SignalSegments } from './trace-panel';
+import { pickSeconds, TracePanel, type SignalSegments } from './trace-panel';
 
 /**
  * The review screen of one queue item: who holds it, the flag and why, the traces of every
@@ -68,10 +74,28 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
 
   const draft = useReviewDraft(form, me?.id, itemId, detail !== undefined && writable);
   const advance = useCallback(() => go(neighbour(1)?.id), [go, neighbour]);
-  const act = useReviewActions({ detail, mine, claimable, writable, group: group.data }, advance, draft.dropDraft);
+  // Once saved, the form is emptied with the draft (so leaving afterwards does not ask).
+  const act = useReviewActions({ detail, mine, claimable, writable, group: group.data }, advance, draft.discardDraft);
   const tv = useTraceView(form, windowStartMs, durationS);
-  const traces = useTraces(itemId, tv.view?.from ?? null, tv.view?.to ?? null, 1600);
+  // The traces' view, chosen on the fly (lib/display-settings.ts); it stays as the analyst moves on.
+  const [traceView, setTraceView] = useState<TraceView>('trace');
+  const [filter, setFilter] = useState<DisplayFilter>({ band: [1, 5], phase: 'causal', units: 'velocity' });
+  const [gain, setGain] = useState(1);
+  const [normalise, setNormalise] = useState(true);
+  const [sgIndex, setSgIndex] = useState(0);
+  const traces = useTraces(itemId, tv.view?.from ?? null, tv.view?.to ?? null, 1600, traceView === 'filter' ? filter : null);
   const leadTraces = traces.data?.channels.find((c) => c.streamId.endsWith('Z')) ?? traces.data?.channels[0];
+  const orderedTraces = useMemo(() => sortChannels(traces.data?.channels ?? [], (c) => c.streamId), [traces.data?.channels]);
+  const sgTraces = orderedTraces.length > 0 ? orderedTraces[sgIndex % orderedTraces.length] : undefined;
+  const applyFilter = (f: DisplayFilter) => {
+    setFilter(f);
+    setTraceView('filter');
+  };
+
+  // Leaving the item (a link, J/K, Esc, the back button) with unsaved work asks first; the draft is kept either way.
+  const unsavedRef = useRef<() => boolean>(() => false);
+  unsavedRef.current = () => unsavedWork(form.getValues(), reviewFormDefaults).any;
+  const blocker = useBlocker(({ currentLocation, nextLocation }) => currentLocation.pathname !== nextLocation.pathname && unsavedRef.current());
 
   // Keep a claim alive while this screen is open (the server lets idle claims lapse).
   useEffect(() => {
@@ -127,14 +151,32 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
       submitLabel();
     },
     dismiss: submitDismiss,
+    dismissAs: (reason) => {
+      form.setValue('noiseReason', reason);
+      submitDismiss();
+    },
     escalate: () => act.escalation.setOpen(true),
     takeMatchedLabel,
     pick: (phase) => tv.keyPick(phase, leadTraces),
     zoom: tv.zoom,
     resetZoom: tv.resetZoom,
-    leave: () => (unsaved().any ? setLeaving(true) : go(undefined)),
+    leave: () => go(undefined),
     help: () => setHelp(true),
+    enter: submitLabel,
+    cycleView: (step) => setTraceView((v) => cycle(traceViews, v, step)),
+    focusFilter: () => {
+      setTraceView('filter');
+      document.getElementById(filterLowFieldId)?.focus();
+    },
+    togglePhase: () => applyFilter({ ...filter, phase: filter.phase === 'causal' ? 'zero-phase' : 'causal' }),
+    cycleUnits: () => applyFilter({ ...filter, units: cycle(displayUnits, filter.units, 1) }),
+    gain: (step) => setGain((g) => stepGain(g, step)),
+    toggleNormalise: () => setNormalise((n) => !n),
+    cycleSpectrogram: () => setSgIndex((i) => (i + 1) % Math.max(1, orderedTraces.length)),
   });
+  useEffect(() => {
+    if (blocker.state === 'blocked') setLeaving(true);
+  }, [blocker.state]);
 
   if (item.isPending) return <Loading label={`Loading item ${itemId}…`} className="m-6" />;
   if (item.isError || !detail) return <EmptyState title={`Item ${itemId} could not be loaded`} className="m-6">{item.error?.message}</EmptyState>;
@@ -143,9 +185,11 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const next = neighbour(1);
   const prev = neighbour(-1);
   const returned = note.data?.note;
+  const sp = sMinusP(picks.map((p) => ({ phase: p.phase, seconds: pickSeconds(p, windowStartMs) })));
 
   return (
-    <div className="flex flex-col gap-3" data-item-id={detail.id} data-version={detail.version}>
+    <div className="flex flex-col gap-2" data-item-id={detail.id} data-version={detail.version}>
+      <SessionCaution />
       <ReviewHeader detail={detail} durationS={durationS} search={search} meId={me?.id} />
       <ReviewToolbar
         mayWork={mayWork}
@@ -164,9 +208,24 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         onNext={() => go(next?.id)}
         onHelp={() => setHelp(true)}
       />
-      <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_26rem]">
+      <div className="grid gap-3 xl:grid-cols-[minmax(0,1fr)_24rem]">
         {/* The app shell's <main> holds the whole screen: one main landmark per page. */}
-        <section className="flex min-w-0 flex-col gap-3" aria-label="Waveforms">
+        <section className="flex min-w-0 flex-col gap-1.5" aria-label="Waveforms">
+          <FilterBar
+            view={traceView}
+            onView={setTraceView}
+            filter={filter}
+            onFilter={applyFilter}
+            gain={gain}
+            onGain={(step) => setGain((g) => stepGain(g, step))}
+            normalise={normalise}
+            onNormalise={setNormalise}
+          />
+          {sp !== null ? (
+            <p className="text-sm" data-testid="s-minus-p">
+              <strong>S–P {sp.toFixed(2)} s</strong> <span className="text-ink-muted">· about {distanceFromSMinusP(sp).toFixed(0)} km from this station (≈ 8 km per second of S–P, a crustal rule of thumb, not a location)</span>
+            </p>
+          ) : null}
           {traces.data ? (
             <TracePanel
               traces={traces.data}
@@ -178,11 +237,31 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
               onCursor={tv.onCursor}
               syncKey={`item-${detail.id}`}
               segments={segments}
-              afterLead={
-                leadTraces?.spectrogram ? (
-                  <section aria-label="Spectrogram" className="rounded-sm border border-line bg-surface p-2">
-                    <h2 className="pb-1 text-md font-semibold">Spectrogram · {leadTraces.streamId}</h2>
-                    <SpectrogramPanel sg={leadTraces.spectrogram} streamId={leadTraces.streamId} units={leadTraces.units} times={leadTraces.times} syncKey={`item-${detail.id}`} onZoom={tv.onZoom} />
+              view={traceView}
+              gain={gain}
+              normalise={normalise}
+              below={
+                sgTraces?.spectrogram ? (
+                  <section aria-label="Spectrogram" className="flex flex-col gap-0.5" data-stream-id={sgTraces.streamId}>
+                    <div className="flex flex-wrap items-center gap-2 text-sm">
+                      <h2 className="font-semibold">Spectrogram</h2>
+                      <div role="radiogroup" aria-label="Spectrogram component (key G)" className="flex gap-1">
+                        {orderedTraces.map((c, i) => (
+                          <button
+                            key={c.streamId}
+                            type="button"
+                            role="radio"
+                            aria-checked={c.streamId === sgTraces.streamId}
+                            onClick={() => setSgIndex(i)}
+                            className={`h-6 min-w-6 rounded-xs px-1.5 font-mono text-xs ${c.streamId === sgTraces.streamId ? 'bg-raised font-semibold text-ink underline underline-offset-4' : 'text-ink-muted hover:bg-raised'}`}
+                          >
+                            {c.streamId.slice(-1)}
+                          </button>
+                        ))}
+                      </div>
+                      <span className="font-mono text-xs text-ink-muted">{sgTraces.streamId} · engine pre-processed trace · key G</span>
+                    </div>
+                    <SpectrogramPanel sg={sgTraces.spectrogram} streamId={sgTraces.streamId} units={sgTraces.units} times={sgTraces.times} syncKey={`item-${detail.id}`} onZoom={tv.onZoom} />
                   </section>
                 ) : null
               }
@@ -243,15 +322,18 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
         open={leaving}
         itemId={detail.id}
         unsaved={unsaved()}
-        onStay={() => setLeaving(false)}
+        onStay={() => {
+          setLeaving(false);
+          if (blocker.state === 'blocked') blocker.reset();
+        }}
         onDiscardAndLeave={() => {
           draft.discardDraft();
           setLeaving(false);
-          go(undefined);
+          if (blocker.state === 'blocked') blocker.proceed();
         }}
         onLeave={() => {
           setLeaving(false);
-          go(undefined);
+          if (blocker.state === 'blocked') blocker.proceed();
         }}
       />
       <EscalateDialog

@@ -112,7 +112,7 @@ export function SpectrogramPanel({ sg, streamId, units, times, syncKey, onZoom }
         x={x}
         y={{ label: 'Frequency', unit: 'Hz' }}
         series={[]}
-        height={150}
+        height={104}
         configure={configure}
       />
       <p className="flex items-center gap-2 pl-[3.75rem] text-xs text-ink-muted">

@@ -1,9 +1,10 @@
-import { Fragment, useCallback, useEffect, useMemo, useRef, type ReactNode } from 'react';
+import { useCallback, useEffect, useMemo, useRef, type ReactNode } from 'react';
 import type uPlot from 'uplot';
 import { sortChannels } from '@shared/channel-order';
 import type { TracesResponse } from '@shared/schemas/queue';
 import { PlotFrame } from '@client/components/ui/plot-frame';
 import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '@client/features/review/lib/amplitude';
+import { amplitudeHalfRange, traceViewNames, type TraceView } from '@client/features/review/lib/display-settings';
 import { selectToZoom } from '@client/features/review/lib/select-zoom';
 
 type ChannelTraces = TracesResponse['channels'][number];
@@ -30,8 +31,16 @@ export type TracePanelProps = {
    */
   onCursor: (at: TraceCursor | null) => void;
   syncKey: string;
-  /** Shown right after the lead (vertical) channel, e.g. its spectrogram. */
-  afterLead?: ReactNode;
+  /** Shown under the stacked traces, e.g. a spectrogram (on the same time axis). */
+  below?: ReactNode;
+  /** The curve drawn on every channel (one key away: B). */
+  view: TraceView;
+  /** Amplitude gain, ×: the axis spans the reference peak ÷ gain (clipped beyond). */
+  gain: number;
+  /** Each trace scaled to its own peak (true) or every trace to the largest peak (true relative amplitude). */
+  normalise: boolean;
+  /** What the analyst's filter is, in words, when the view is 'filter' and it is still loading. */
+  filterPending?: boolean;
   /** Per stream id: the engine's signal and noise segments, shaded on vertical (Z) traces. */
   segments?: Readonly<Record<string, SignalSegments | null>>;
 };
@@ -172,61 +181,131 @@ function amplitudeAxis(axis: uPlot.Axis | undefined, amplitude: boolean): uPlot.
   };
 }
 
+/** One channel's curve for the chosen view, with the words saying which filter it came from. */
+type Curve = { values: number[]; unit: string; from: string; refused: string | null };
+
+function curveOf(c: ChannelTraces, view: TraceView, filtering: string): Curve {
+  const f = (v: number) => String(v);
+  switch (view) {
+    case 'low':
+      return { values: c.low, unit: c.units, from: `engine low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz, Butterworth, ${filtering}`, refused: null };
+    case 'high':
+      return { values: c.high, unit: c.units, from: `engine high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz, Butterworth, ${filtering}`, refused: null };
+    case 'sta/lta':
+      return { values: c.staLta, unit: '', from: `STA/LTA of the engine high band (${c.staLtaLevels.method}; on ${c.staLtaLevels.on}, off ${c.staLtaLevels.off})`, refused: null };
+    case 'filter':
+      if (c.display) return { values: c.display.values, unit: c.display.unit, from: `your filter: ${c.display.chain}`, refused: null };
+      return { values: c.raw.map(() => 0), unit: c.units, from: 'your filter', refused: c.displayRefused ?? 'loading your filter…' };
+    default:
+      return { values: c.raw, unit: c.units, from: 'engine pre-processing: demeaned, detrended, tapered, no band-pass', refused: null };
+  }
+}
+
+/** Plot height of each stacked channel, CSS px (three fit on a 900 px screen; the lowest gets the time axis' 26 px on top). */
+export const stackedTraceHeightPx = 124;
+
 /**
- * All channels of the item, each as its pre-processed trace and both causal band-pass traces, plus
- * the STA/LTA curve of every channel with its trigger-on/off levels. Every plot shares one cursor
- * (uPlot sync) and one zoom: drag across any plot to zoom all of them (the server then sends full
- * resolution for short spans). Every trace is a solid line (each band has its own titled panel);
- * the y-axes carry SI-prefixed amplitude ticks in the channel's units (counts, or m/s with a
- * sensitivity). Picks are full-height lines in their phase's colour with the letter on top, on
- * every channel; STA/LTA trigger spans are shaded grey; on Z traces the signal-spectrum segments
- * are tinted and labelled.
+ * Every channel of the item stacked on one time axis (Z, then N/1, E/2: shared/channel-order.ts), one
+ * curve per channel — the view chosen with B: the engine's pre-processed trace, its low or high band,
+ * STA/LTA, or the analyst's own filter (units and band on the fly) — with one legend for all of them
+ * above the stack, not one per panel. Each channel's title says which filter its peak came from.
+ * Shared cursor and zoom (drag across any trace zooms every trace and the spectrogram); picks are
+ * full-height lines in their phase's colour with the letter on top, on every channel; STA/LTA trigger
+ * spans shaded grey; on Z traces the signal-spectrum segments are tinted and labelled. Amplitude:
+ * per-trace normalisation or true relative amplitude (the largest peak of the channels shown), times
+ * the gain; the ticks always read in the trace's own units (SI prefixes, lib/amplitude.ts).
  */
-export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, onPick, onCursor, syncKey, afterLead, segments }: TracePanelProps) {
-  // Vertical first, then the horizontals N/1 and E/2 (the usual Z, N, E reading order, common practice).
-  // The same channel order as everywhere else (shared/channel-order.ts: by location, then Z, N/1, E/2).
+export function TracePanel({ traces, windowStartMs, picks, activePhase, onZoom, onPick, onCursor, syncKey, below, segments, view, gain, normalise }: TracePanelProps) {
   const ordered = useMemo(() => sortChannels(traces.channels, (c) => c.streamId), [traces.channels]);
+  const curves = useMemo(() => ordered.map((c) => curveOf(c, view, traces.filtering)), [ordered, view, traces.filtering]);
+  const scaled = useMemo(() => curves.map((k) => (k.unit === '' ? { values: k.values, unit: '', peak: k.values.reduce((m, v) => Math.max(m, Math.abs(v)), 0) } : displayScaled(k.values, k.unit))), [curves]);
+  // True relative amplitude compares peaks in one unit: the SI base unit of each curve.
+  const basePeaks = curves.map((k) => k.values.reduce((m, v) => Math.max(m, Math.abs(v)), 0));
+  const allBase = Math.max(0, ...basePeaks);
+  const lineStyle = view === 'low' ? 1 : view === 'high' ? 2 : view === 'sta/lta' ? 3 : view === 'filter' ? 5 : 0;
   return (
-    <div className="flex flex-col gap-2" data-testid="trace-panel">
-      <p className="text-sm text-ink-muted">
-        Drag across a trace to zoom all of them; click to place a <strong className="text-ink">{activePhase}</strong> pick, or point and press <kbd>P</kbd>/<kbd>S</kbd>{' '}
-        (the pick goes on the channel under the mouse). Band traces: Butterworth band-pass, {traces.filtering}. {ordered[0] && ordered[0].bucket > 1 ? `Shown as min/max of ${ordered[0].bucket} samples per point.` : 'Every sample shown.'}
-      </p>
-      {ordered.map((c, i) => (
-        <Fragment key={c.streamId}>
-          <ChannelPlots c={c} windowStartMs={windowStartMs} picks={picks} onZoom={onZoom} onPick={onPick} onCursor={onCursor} syncKey={syncKey} segment={c.streamId.endsWith('Z') ? (segments?.[c.streamId] ?? null) : null} />
-          {i === 0 ? afterLead : null}
-        </Fragment>
-      ))}
+    <div className="flex flex-col gap-1" data-testid="trace-panel" data-view={view}>
+      <div className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-ink-muted" aria-label="Legend of the traces" role="note">
+        <span className="inline-flex items-center gap-1.5">
+          <svg width="24" height="8" aria-hidden="true">
+            <line x1="1" y1="4" x2="23" y2="4" stroke={`var(--sf-plot-${lineStyle + 1})`} strokeWidth="2" />
+          </svg>
+          <strong className="text-ink">{traceViewNames[view]}</strong>
+        </span>
+        <span>grey: STA/LTA trigger</span>
+        <span>
+          <span className="font-mono font-bold text-ink">P</span>/<span className="font-mono font-bold text-ink">S</span> line: pick
+        </span>
+        <span>Z: noise / signal parts of the spectrum</span>
+        <span>{ordered[0] && ordered[0].bucket > 1 ? `min/max of ${ordered[0].bucket} samples per point` : 'every sample'}</span>
+        <span>
+          drag: zoom · click: <strong className="text-ink">{activePhase}</strong> · point + P/S: pick on that channel
+        </span>
+      </div>
+      {ordered.map((c, i) => {
+        const k = curves[i] as Curve;
+        const d = scaled[i] as Scaled;
+        const ownBase = basePeaks[i] ?? 0;
+        // The axis half-range in the drawn (prefixed) unit.
+        const factor = ownBase > 0 ? d.peak / ownBase : 1;
+        const half = amplitudeHalfRange(ownBase, allBase, normalise, gain) * factor;
+        return (
+          <ChannelPlot
+            key={c.streamId}
+            c={c}
+            curve={k}
+            drawn={d}
+            half={view === 'sta/lta' ? null : half}
+            styleIndex={lineStyle}
+            last={i === ordered.length - 1}
+            windowStartMs={windowStartMs}
+            picks={picks}
+            onZoom={onZoom}
+            onPick={onPick}
+            onCursor={onCursor}
+            syncKey={syncKey}
+            segment={c.streamId.endsWith('Z') ? (segments?.[c.streamId] ?? null) : null}
+          />
+        );
+      })}
+      {below}
     </div>
   );
 }
 
-function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncKey, segment }: Omit<TracePanelProps, 'traces' | 'activePhase' | 'afterLead' | 'segments'> & { c: ChannelTraces; segment: SignalSegments | null }) {
+type ChannelPlotProps = Pick<TracePanelProps, 'windowStartMs' | 'picks' | 'onZoom' | 'onPick' | 'onCursor' | 'syncKey'> & {
+  c: ChannelTraces;
+  curve: Curve;
+  drawn: Scaled;
+  /** Amplitude half-range in the drawn unit; null: automatic (STA/LTA from 0). */
+  half: number | null;
+  styleIndex: number;
+  /** The last channel carries the time axis' labels. */
+  last: boolean;
+  segment: SignalSegments | null;
+};
+
+function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, picks, onZoom, onPick, onCursor, syncKey, segment }: ChannelPlotProps) {
   const picksRef = useRef(picks);
   picksRef.current = picks;
-  // Picks change without rebuilding the plots: redraw the existing charts' marks.
   const charts = useRef(new Set<uPlot>());
   useEffect(() => {
     for (const u of charts.current) u.redraw(false, false);
   }, [picks]);
   const x = useMemo(() => ({ label: 'Time from window start', unit: 's', values: c.times }), [c.times]);
   const configure = useCallback(
-    (withTriggers: boolean, withSegments: boolean, amplitude: boolean) => (o: uPlot.Options): uPlot.Options => ({
+    (o: uPlot.Options): uPlot.Options => ({
       ...o,
-      // Traces: a range symmetric about 0 that ends on a tick (lib/amplitude.ts symmetricRange).
-      scales: amplitude ? { ...o.scales, y: { ...o.scales?.y, range: (_u: uPlot, min: number, max: number) => symmetricRange(min, max) } } : o.scales,
-      axes: [o.axes?.[0] ?? {}, amplitudeAxis(o.axes?.[1], amplitude)],
+      scales: { ...o.scales, y: { ...o.scales?.y, range: (_u: uPlot, min: number, max: number) => (half === null ? [0, Math.max(1, max * 1.05)] : symmetricRange(-half, half)) } },
+      // Only the lowest trace labels the time axis; the others keep its grid.
+      axes: [last ? (o.axes?.[0] ?? {}) : { ...o.axes?.[0], size: 4, values: () => [], label: '', labelSize: 0, labelGap: 0 }, amplitudeAxis(o.axes?.[1], half !== null)],
       cursor: { ...o.cursor, sync: { key: syncKey, setSeries: false } },
       hooks: {
         ...o.hooks,
-        setSelect: [
-          selectToZoom(onZoom),
-        ],
+        setSelect: [selectToZoom(onZoom)],
         draw: [
           (u: uPlot) => {
-            drawMarks(u, { picks: picksRef.current, windowStartMs, triggers: withTriggers ? c.triggers : null, segments: withSegments ? segment : null });
-            // The time range drawn, s (tests compare it with the spectrogram's; the canvas cannot be read).
+            drawMarks(u, { picks: picksRef.current, windowStartMs, triggers: c.triggers, segments: segment });
             u.root.dataset.xRange = `${u.scales.x?.min ?? ''} ${u.scales.x?.max ?? ''}`;
           },
         ],
@@ -236,7 +315,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
             charts.current.add(u);
             let downX = 0;
             // The mouse itself, not uPlot's setCursor hook: with linked cursors every channel's
-            // plots get setCursor, so the last one to run (not the one under the mouse) would win.
+            // plot gets setCursor, so the last one to run (not the one under the mouse) would win.
             const timeAt = (e: MouseEvent) => u.posToVal(e.clientX - u.over.getBoundingClientRect().left, 'x');
             u.over.addEventListener('mousemove', (e) => onCursor({ streamId: c.streamId, timeS: timeAt(e) }));
             u.over.addEventListener('mouseleave', () => onCursor(null));
@@ -251,63 +330,27 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
         ],
       },
     }),
-    [syncKey, onZoom, onCursor, onPick, c.streamId, c.triggers, windowStartMs, segment],
+    [syncKey, onZoom, onCursor, onPick, c.streamId, c.triggers, windowStartMs, segment, half, last],
   );
-  const plain = useMemo(() => configure(false, false, true), [configure]);
-  const rawConfig = useMemo(() => configure(true, true, true), [configure]);
-  const withTriggers = useMemo(() => configure(true, false, false), [configure]);
-  const on = useMemo(() => c.times.map(() => c.staLtaLevels.on), [c.times, c.staLtaLevels.on]);
-  const off = useMemo(() => c.times.map(() => c.staLtaLevels.off), [c.times, c.staLtaLevels.off]);
-  const f = (v: number) => String(v);
-  const raw = useMemo(() => displayScaled(c.raw, c.units), [c.raw, c.units]);
-  const low = useMemo(() => displayScaled(c.low, c.units), [c.low, c.units]);
-  const high = useMemo(() => displayScaled(c.high, c.units), [c.high, c.units]);
-  const peak = (d: Scaled) => `${formatSi(d.peak)} ${d.unit}`;
+  const peak = drawn.unit === '' ? formatSi(drawn.peak) : `${formatSi(drawn.peak)} ${drawn.unit}`;
+  const title = curve.refused ? `${c.streamId} · ${c.sampleRateHz} Hz · not shown` : `${c.streamId} · ${c.sampleRateHz} Hz · peak ${peak} from ${curve.from}`;
   return (
-    <section aria-label={`Channel ${c.streamId}`} className="rounded-sm border border-line bg-surface p-2">
-      <h3 className="pb-1 font-mono text-sm font-medium">
-        {c.streamId} <span className="font-sans font-normal text-ink-muted">· {c.sampleRateHz} Hz · {c.units}</span>
-      </h3>
+    <section aria-label={`Channel ${c.streamId}`} data-stream-id={c.streamId} data-filter={curve.from}>
       <PlotFrame
-        title={`${c.streamId} pre-processed trace · peak |x| ${peak(raw)}`}
-        description={`Demeaned, detrended and tapered trace of ${c.streamId} in ${c.units}`}
+        title={title}
+        description={`${curve.from} of ${c.streamId}${drawn.unit ? ` in ${drawn.unit}` : ''}`}
         x={x}
-        y={{ label: raw.unit, format: (v) => `${formatSi(v)} ${raw.unit}` }}
-        series={[{ label: 'trace (demeaned, detrended)', values: raw.values, styleIndex: 0, dash: [] }]}
-        height={130}
-        configure={rawConfig}
+        y={{ label: drawn.unit || 'ratio', format: (v) => `${formatSi(v)}${drawn.unit ? ` ${drawn.unit}` : ''}` }}
+        series={[{ label: curve.from, values: drawn.values, styleIndex, dash: [] }]}
+        height={last ? stackedTraceHeightPx + 26 : stackedTraceHeightPx}
+        legend={false}
+        configure={configure}
       />
-      <PlotFrame
-        title={`${c.streamId} low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz · peak |x| ${peak(low)}`}
-        description={`Low band ${c.bands.low[0]} to ${c.bands.low[1]} Hz of ${c.streamId}`}
-        x={x}
-        y={{ label: low.unit, format: (v) => `${formatSi(v)} ${low.unit}` }}
-        series={[{ label: `low band ${f(c.bands.low[0])}–${f(c.bands.low[1])} Hz`, values: low.values, styleIndex: 1, dash: [] }]}
-        height={100}
-        configure={plain}
-      />
-      <PlotFrame
-        title={`${c.streamId} high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz · peak |x| ${peak(high)}`}
-        description={`High band ${c.bands.high[0]} to ${c.bands.high[1]} Hz of ${c.streamId}`}
-        x={x}
-        y={{ label: high.unit, format: (v) => `${formatSi(v)} ${high.unit}` }}
-        series={[{ label: `high band ${f(c.bands.high[0])}–${f(c.bands.high[1])} Hz`, values: high.values, styleIndex: 2, dash: [] }]}
-        height={100}
-        configure={plain}
-      />
-      <PlotFrame
-        title={`${c.streamId} STA/LTA (${c.staLtaLevels.method}; 0 until the LTA window is full; shaded: triggered)`}
-        description={`STA/LTA ratio of the high band with trigger-on level ${c.staLtaLevels.on} and off level ${c.staLtaLevels.off}; trigger spans shaded`}
-        x={x}
-        y={{ label: 'STA/LTA' }}
-        series={[
-          { label: 'STA/LTA ratio', values: c.staLta, styleIndex: 3 },
-          { label: `on level ${c.staLtaLevels.on}`, values: on, styleIndex: 4 },
-          { label: `off level ${c.staLtaLevels.off}`, values: off, styleIndex: 5 },
-        ]}
-        height={110}
-        configure={withTriggers}
-      />
+      {curve.refused ? (
+        <p className="px-1 text-sm text-ink" data-testid="filter-refused" role="status">
+          <strong>Not shown:</strong> {curve.refused}
+        </p>
+      ) : null}
     </section>
   );
 }

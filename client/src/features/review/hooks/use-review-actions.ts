@@ -21,7 +21,8 @@ export interface ReviewTarget {
 /**
  * The review screen's actions on its item — claim, release, label, dismiss, escalate and label the
  * whole event group — each a POST with the version the analyst saw (item-actions.ts), a toast
- * naming the outcome, the draft dropped once saved, and the next item opened after a decision.
+ * naming the outcome, the draft dropped once saved, and then the next item opened after a decision
+ * (in that order: leaving with a draft asks first).
  * @param advance opens the next workable item (or the queue)
  * @param dropDraft forgets the item's draft (use-review-draft.ts)
  */
@@ -63,32 +64,53 @@ export function useReviewActions(target: ReviewTarget, advance: () => void, drop
   const claim = () => detail && void run({ action: 'claim', id: detail.id, version: detail.version }, 'claimed', false);
   const release = () => detail && void run({ action: 'release', id: detail.id, version: detail.version }, 'released', false);
 
-  const label = useCallback(
-    async (v: ReviewFormValues) => {
-      const version = await ensureClaim();
-      if (version === null || !detail) return;
-      const row = await run({ action: 'label', id: detail.id, version, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } }, `labelled ${v.eventType}`, true);
-      if (row) dropDraft();
-    },
-    [ensureClaim, run, detail, dropDraft],
-  );
   const dismiss = useCallback(
     async (v: ReviewFormValues) => {
       const version = await ensureClaim();
       if (version === null || !detail) return;
-      const row = await run({ action: 'dismiss', id: detail.id, version, noiseReason: v.noiseReason, note: v.note }, `dismissed (${v.noiseReason})`, true);
-      if (row) dropDraft();
+      const row = await run({ action: 'dismiss', id: detail.id, version, noiseReason: v.noiseReason, note: v.note }, `dismissed (${v.noiseReason})`, false);
+      if (row) {
+        dropDraft();
+        advance();
+      }
     },
-    [ensureClaim, run, detail, dropDraft],
+    [ensureClaim, run, detail, dropDraft, advance],
+  );
+  /**
+   * Enter / the form's main button. With a type chosen, labels the item with it. With none chosen
+   * (the form's default), the safe default: dismiss as noise with the form's noise reason — never an
+   * event label — unless picks were placed, which a dismissal would drop: then it asks for a type.
+   */
+  const label = useCallback(
+    async (v: ReviewFormValues) => {
+      const type = v.eventType;
+      if (type === '') {
+        if (v.picks.length > 0) {
+          toast.notify({ tone: 'warn', title: 'Choose an event type to keep the picks', body: 'No type is chosen, so Enter would dismiss as noise and drop the picks. Press 1–6 or choose a type; D dismisses anyway.', durationMs: 5000 });
+          return;
+        }
+        await dismiss(v);
+        return;
+      }
+      const version = await ensureClaim();
+      if (version === null || !detail) return;
+      const row = await run({ action: 'label', id: detail.id, version, label: { eventType: type, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } }, `labelled ${type}`, false);
+      if (row) {
+        dropDraft();
+        advance();
+      }
+    },
+    [ensureClaim, run, detail, dropDraft, advance, dismiss, toast],
   );
 
   /** After the confirmation: every member gets the type only, this item (when it can be written) its whole form. */
   const labelWholeGroup = async (v: ReviewFormValues) => {
     const ev = group;
-    if (!ev || !detail) return;
+    const type = v.eventType;
+    if (!ev || !detail || type === '') return;
     try {
-      const current = writable ? { itemId: detail.id, label: { eventType: v.eventType, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } } : undefined;
-      const res = await labelGroup.mutateAsync({ eventId: ev.id, body: { eventType: v.eventType, current } });
+      const current = writable ? { itemId: detail.id, label: { eventType: type, certainty: v.certainty, distanceClass: v.distanceClass, picks: v.picks, note: v.note } } : undefined;
+      const res = await labelGroup.mutateAsync({ eventId: ev.id, body: { eventType: type, current } });
       if (res.members.some((m) => m.itemId === detail.id && m.result === 'labelled')) dropDraft();
       const done = res.members.filter((m) => m.result === 'labelled').length;
       const skipped = res.members.filter((m) => m.result === 'skipped');

@@ -1,12 +1,16 @@
 import { useCallback, useEffect, useRef, useState } from 'react';
 import type { UseFormReturn } from 'react-hook-form';
-import { clearDraft, readDraft, writeDraft, type DraftStorage, type ReviewDraft } from '@client/features/review/lib/review-draft';
+import { clearDraft, draftKey, readDraft, writeDraft, type DraftStorage, type ReviewDraft } from '@client/features/review/lib/review-draft';
 import { reviewFormDefaults, type ReviewFormInput, type ReviewFormValues } from '@client/features/review/components/label-form';
 
-/** The tab's sessionStorage, or null where there is none (drafts are then not kept). */
+/**
+ * The browser's localStorage, or null where there is none (drafts are then not kept). Local, not
+ * session storage: a draft must survive a reload, a closed tab and the next shift's sign-in on the
+ * same workstation; it is keyed by person and item, so one analyst never gets another's draft.
+ */
 function draftStorage(): DraftStorage | null {
   try {
-    return typeof window !== 'undefined' ? window.sessionStorage : null;
+    return typeof window !== 'undefined' ? window.localStorage : null;
   } catch {
     return null;
   }
@@ -20,10 +24,12 @@ export interface ReviewDraftControl {
   dropDraft: () => void;
   /** Empties the form and forgets the draft. */
   discardDraft: () => void;
+  /** A draft of this item is stored now (leaving asks first; a reload or closing the tab warns). */
+  hasDraft: boolean;
 }
 
 /**
- * Unsaved work survives leaving the item: a draft of the form is kept in this tab and put back
+ * Unsaved work survives leaving the item: a draft of the form is kept in this browser and put back
  * when the item is opened again while it can still be labelled (lib/review-draft.ts).
  * @param meId the signed-in person (drafts are per person and item); undefined while loading
  * @param ready the item is loaded and the viewer may write it (only then is a draft put back)
@@ -31,6 +37,11 @@ export interface ReviewDraftControl {
 export function useReviewDraft(form: UseFormReturn<ReviewFormInput, unknown, ReviewFormValues>, meId: string | undefined, itemId: number, ready: boolean): ReviewDraftControl {
   const draftsReady = useRef(false);
   const [restoredDraft, setRestoredDraft] = useState<ReviewDraft | null>(null);
+  const [hasDraft, setHasDraft] = useState(false);
+  const sync = useCallback(() => {
+    const storage = draftStorage();
+    setHasDraft(storage !== null && meId !== undefined && storage.getItem(draftKey(meId, itemId)) !== null);
+  }, [meId, itemId]);
   useEffect(() => {
     const storage = draftStorage();
     if (draftsReady.current || meId === undefined || !ready || !storage) return;
@@ -46,19 +57,31 @@ export function useReviewDraft(form: UseFormReturn<ReviewFormInput, unknown, Rev
     const sub = form.watch((values) => {
       if (!draftsReady.current) return;
       writeDraft(storage, meId, itemId, values, reviewFormDefaults, new Date().toISOString());
+      sync();
     });
     return () => sub.unsubscribe();
-  }, [form, meId, itemId]);
+  }, [form, meId, itemId, sync]);
   const dropDraft = useCallback(() => {
     const storage = draftStorage();
     if (storage && meId !== undefined) clearDraft(storage, meId, itemId);
     setRestoredDraft(null);
+    setHasDraft(false);
   }, [meId, itemId]);
+  useEffect(sync, [sync]);
+  // A reload or a closed tab keeps the draft, but the browser asks first (its own words).
+  useEffect(() => {
+    if (!hasDraft) return;
+    const warn = (e: BeforeUnloadEvent) => {
+      e.preventDefault();
+    };
+    window.addEventListener('beforeunload', warn);
+    return () => window.removeEventListener('beforeunload', warn);
+  }, [hasDraft]);
   const discardDraft = () => {
     draftsReady.current = false;
     form.reset(reviewFormDefaults);
     dropDraft();
     draftsReady.current = true;
   };
-  return { restoredDraft, dropDraft, discardDraft };
+  return { restoredDraft, dropDraft, discardDraft, hasDraft };
 }

@@ -1,5 +1,5 @@
 import { useEffect } from 'react';
-import { commonEventTypes } from '@shared/schemas/label';
+import { commonEventTypes, noiseReasons, type NoiseReason } from '@shared/schemas/label';
 import { isTypingTarget } from '@client/components/ui/key-help';
 
 /** What each key of the review screen does (client/src/features/review/components/review-keys.ts lists them for people). */
@@ -18,6 +18,8 @@ export interface ReviewKeyHandlers {
   /** 1–9: label with that common event type and go on. */
   labelAs: (type: (typeof commonEventTypes)[number]) => void;
   dismiss: () => void;
+  /** Shift+1–5: dismiss as that noise reason (shared/schemas/label.ts order) and go on. */
+  dismissAs: (reason: NoiseReason) => void;
   escalate: () => void;
   /** M: take the best labelled match's label into the form (seen before). */
   takeMatchedLabel: () => void;
@@ -26,6 +28,22 @@ export interface ReviewKeyHandlers {
   resetZoom: () => void;
   leave: () => void;
   help: () => void;
+  /** Enter with nothing focused: the form's main action (its safe default when no type is chosen). */
+  enter: () => void;
+  /** B / Shift+B: the next / previous trace view. */
+  cycleView: (step: 1 | -1) => void;
+  /** F: to the custom band's low edge. */
+  focusFilter: () => void;
+  /** Z: causal ↔ zero-phase display filter. */
+  togglePhase: () => void;
+  /** U: the next display unit. */
+  cycleUnits: () => void;
+  /** [ and ]: gain down / up. */
+  gain: (step: 1 | -1) => void;
+  /** N: per-trace normalisation on/off. */
+  toggleNormalise: () => void;
+  /** G: the spectrogram of the next component. */
+  cycleSpectrogram: () => void;
 }
 
 /**
@@ -38,7 +56,19 @@ export function useReviewKeys(h: ReviewKeyHandlers): void {
       if (e.ctrlKey || e.metaKey || e.altKey || isTypingTarget(e.target) || !h.loaded || document.querySelector('dialog[open]')) return;
       const k = e.key;
       const n = Number(k);
-      if (!h.mayWork && /^[crdepsm1-9]$/.test(k)) {
+      // Shift+digit by its key, not its character (Shift+1 is '!' on one layout, '+' on another).
+      const noiseKey = e.shiftKey ? /^Digit([1-9])$/.exec(e.code) : null;
+      if (noiseKey) {
+        const reason = noiseReasons[Number(noiseKey[1]) - 1];
+        if (!reason) return;
+        if (h.mayWork) h.dismissAs(reason);
+        else h.onViewOnly();
+        e.preventDefault();
+        return;
+      }
+      // Enter on a focused control is that control's own (a button, a field); on the page itself, the form's.
+      const onPage = e.target === document.body || e.target === document.documentElement;
+      if (!h.mayWork && (/^[crdepsm1-9]$/.test(k) || (k === 'Enter' && onPage))) {
         h.onViewOnly();
         e.preventDefault();
         return;
@@ -58,7 +88,15 @@ export function useReviewKeys(h: ReviewKeyHandlers): void {
       else if (k === '-' || k === '_') h.zoom(2);
       else if (k === '0') h.resetZoom();
       else if (k === 'Escape') h.leave();
+      else if (k === 'Enter' && onPage) h.enter();
       else if (k === '?') h.help();
+      else if (k === 'b' || k === 'B') h.cycleView(k === 'b' ? 1 : -1);
+      else if (k === 'f') h.focusFilter();
+      else if (k === 'z') h.togglePhase();
+      else if (k === 'u') h.cycleUnits();
+      else if (k === '[' || k === ']') h.gain(k === ']' ? 1 : -1);
+      else if (k === 'n') h.toggleNormalise();
+      else if (k === 'g') h.cycleSpectrogram();
       else return;
       e.preventDefault();
     };

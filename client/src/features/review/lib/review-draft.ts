@@ -3,14 +3,16 @@ import { distanceClasses, MAX_NOTE_CHARS, MAX_PICKS, noiseReasons, pickSchema, q
 
 /**
  * Review work not yet saved (picks placed, a note, the form's choices), kept per person and item in
- * the tab's sessionStorage so that leaving an item (Esc, J/K, a link, a reload) does not lose it;
- * it comes back when the item is opened again and is removed once the item is labelled, dismissed
- * or escalated.
+ * the browser's localStorage (key `seisift.review-draft.<user>.<item>`) so that leaving an item
+ * (Esc, J/K, a link, a reload, closing the tab) does not lose it; it comes back when the same person
+ * opens the item again on this browser and is removed once the item is labelled, dismissed or
+ * escalated, or the draft is discarded.
  */
 export const reviewDraftSchema = z.object({
   savedAt: z.string(),
   values: z.object({
-    eventType: z.enum(quakemlEventTypes),
+    /** '' = no type chosen yet (the form's safe default). */
+    eventType: z.union([z.enum(quakemlEventTypes), z.literal('')]),
     certainty: z.enum(typeCertainties),
     distanceClass: z.enum(distanceClasses).nullable(),
     picks: z.array(pickSchema).max(MAX_PICKS),
