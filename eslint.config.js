@@ -19,6 +19,7 @@ const features = {
   health: [],
   ingest: [],
   queue: ['presenters.ts', 'queue-rows.ts', 'queue-traces.ts', 'queue-transitions.ts'],
+  similarity: ['resemblance.ts', 'settings.ts', 'template-store.ts', 'window-matching.ts'],
   stations: ['station-registry.ts', 'station-baseline.ts'],
   supervision: ['escalations.ts'],
 };
@@ -27,8 +28,11 @@ const publicFilesOf = (except) =>
     .filter(([name]) => name !== except)
     .flatMap(([name, files]) => files.map((f) => `./${name}/${f}`));
 
-/** The kernel: what features build on. It never imports a feature. */
-const kernel = ['server/db', 'server/realtime', 'server/auth', 'server/policies', 'server/http', 'server/email', 'server/errors.ts', 'server/env.ts', 'server/logger.ts', 'server/context.ts', 'server/version.ts'];
+/**
+ * The kernel: what features build on. It never imports a feature. (The composition root —
+ * server/index.ts, app.ts, context.ts — and the periodic jobs wire features together.)
+ */
+const kernel = ['server/db', 'server/realtime', 'server/auth', 'server/policies', 'server/http', 'server/email', 'server/errors.ts', 'server/env.ts', 'server/logger.ts', 'server/version.ts'];
 /** Pure code: numbers in, numbers out. */
 const pure = ['server/dsp', 'server/formats', 'server/seismo'];
 

@@ -20,9 +20,8 @@ import { openApiRouter } from './openapi/router';
 import { queueRouter } from './features/queue/router';
 import { stationsRouter } from './features/stations/router';
 import { supervisorRouter } from './features/supervision/router';
+import { similarityRouter } from './features/similarity/router';
 import { uploadsRouter, type UploadsRouterOptions } from './features/ingest/router';
-import { publicBaseUrl } from './email/links';
-import { escalationListener } from './features/supervision/escalations';
 import { ingestTokenResolver } from './features/stations/station-registry';
 
 /** The built client (vite build output). */
@@ -53,13 +52,12 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api/account', accountRouter(ctx, auth));
   app.use('/api/admin', adminRouter(ctx, auth));
   app.use('/api/audit', auditRouter(ctx));
-  // Escalations reach every supervisor by e-mail and in the inbox (issue 7).
-  const onEscalation = escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify: () => ctx.hub.notify(), publicUrl: publicBaseUrl(ctx.env) });
-  app.use('/api/queue', queueRouter(ctx, { escalationListeners: [onEscalation], ...(opts.uploads?.pool ? { pool: opts.uploads.pool } : {}) }));
+  app.use('/api/queue', queueRouter(ctx));
   app.use('/api/supervisor', supervisorRouter(ctx));
   app.use('/api/events', eventGeometryRouter(ctx));
   app.use('/api/events', eventsRouter(ctx));
   app.use('/api/stations', stationsRouter(ctx));
+  app.use('/api/similarity', similarityRouter(ctx));
   app.use('/api/uploads', uploadsRouter(ctx, opts.uploads));
   app.use('/api/openapi.json', openApiRouter(ctx));
   app.use('/api', apiNotFound);

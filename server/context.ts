@@ -1,10 +1,15 @@
 import type { DatabaseClient } from './db/client';
 import type { Mailer } from './email/mailer';
 import type { Env } from './env';
+import type { EscalationListener } from './features/queue/queue-transitions';
+import type { AnalysisPool } from './jobs/analysis-pool';
 import type { Logger } from './logger';
 import type { RealtimeHub } from './realtime/hub';
 
-/** What every route and service may use; built once at start (or per test). */
+/**
+ * What every route, service and job may use. Built in one place, `createAppContext`
+ * (server/index.ts), by the server, the start script, the tests and the benchmarks alike.
+ */
 export interface AppContext {
   env: Env;
   database: DatabaseClient;
@@ -15,4 +20,8 @@ export interface AppContext {
   hub: RealtimeHub;
   /** Outgoing mail (SMTP_URL, or the local fake SMTP server whose messages the mailbox page shows). */
   mailer: Mailer;
+  /** The analysis worker threads (they start with the first window). */
+  analysisPool: AnalysisPool;
+  /** What runs after an escalation commits, in order (the supervisors' inbox entries and e-mail). */
+  escalationListeners: readonly EscalationListener[];
 }

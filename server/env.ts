@@ -16,6 +16,13 @@ const positiveInt = (fallback: number) =>
     .refine((v) => /^\d+$/.test(v) && Number(v) > 0, 'must be a positive whole number')
     .transform(Number);
 
+const fraction = (fallback: number) =>
+  z
+    .string()
+    .default(String(fallback))
+    .refine((v) => /^(0(\.\d+)?|1(\.0+)?)$/.test(v), 'must be a number from 0 to 1')
+    .transform(Number);
+
 const nonNegativeInt = (fallback: number) =>
   z
     .string()
@@ -83,6 +90,11 @@ export const envSchema = z.object({
   SEISIFT_MAX_WINDOW_S: positiveInt(3600),
   /** Sessions end after this many hours without a request (sliding expiry). */
   SEISIFT_SESSION_IDLE_HOURS: positiveInt(24),
+  /**
+   * Live-update changes (change_log rows) are kept this many hours (default 7 days), then pruned
+   * hourly; a client away longer reloads its lists instead of replaying what it missed.
+   */
+  SEISIFT_CHANGE_LOG_KEEP_HOURS: positiveInt(168),
   /** A claimed queue item goes back to `new` after this many minutes without activity by its analyst. */
   SEISIFT_CLAIM_IDLE_MINUTES: positiveInt(15),
   /**
@@ -102,6 +114,12 @@ export const envSchema = z.object({
   SEISIFT_SIGNIN_WINDOW_S: positiveInt(900),
   /** Worker threads of the analysis pool (default: one per core, `max(1, availableParallelism())`). */
   SEISIFT_ANALYSIS_THREADS: positiveInt(Math.max(1, availableParallelism())),
+  /** Waveform templates kept per station (issue 19); over it the oldest unlabelled go first, then the oldest labelled. */
+  SEISIFT_TEMPLATES_PER_STATION: positiveInt(500),
+  /** Correlation at or above which a window "resembles" a template (flag reasons, families by default). */
+  SEISIFT_RESEMBLES_AT: fraction(0.7),
+  /** Correlation at or above which a match to a labelled blast or noise keeps a window from rising as a new event. */
+  SEISIFT_NEAR_IDENTICAL_AT: fraction(0.9),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 

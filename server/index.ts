@@ -3,16 +3,20 @@ import type { AddressInfo } from 'node:net';
 import type { IncomingMessage } from 'node:http';
 import { createApp } from './app';
 import { createSessionStore } from './auth/sessions';
-import type { Database } from './db/client';
+import type { Database, DatabaseClient } from './db/client';
 import { loadActiveRights, loadAuthUser } from './auth/principal';
-import { startClaimLapseJob } from './jobs/claim-lapse';
+import { appJobs } from './jobs/app-jobs';
+import { createLazyAnalysisPool, type AnalysisPool } from './jobs/analysis-pool';
+import { startScheduler } from './jobs/scheduler';
 import { createHub, type HubVerdict, type RealtimeHub } from './realtime/hub';
 import type { Logger } from './logger';
 import type { AppContext } from './context';
 import { createDatabaseClient } from './db/client';
 import type { Mailer } from './email/mailer';
 import { setUpMail } from './email/setup';
-import { ConfigError, loadEnv } from './env';
+import { ConfigError, loadEnv, type Env } from './env';
+import { publicBaseUrl } from './email/links';
+import { escalationListener } from './features/supervision/escalations';
 import { createLogger } from './logger';
 import { appVersion } from './version';
 
@@ -28,12 +32,15 @@ export class ListenError extends Error {
   override readonly name = 'ListenError';
 }
 
-/** Starts the HTTP server for `ctx` on host:port (port 0 picks a free one). */
+/**
+ * Starts the HTTP server for `ctx` on host:port (port 0 picks a free one), with the live-update
+ * hub on its upgrades and the one scheduler of periodic jobs (server/jobs/app-jobs.ts).
+ */
 export async function startServer(ctx: AppContext, opts: { host: string; port: number; serveClient?: boolean }): Promise<RunningServer> {
   const app = createApp(ctx, { serveClient: opts.serveClient });
   const server = createServer(app);
   ctx.hub.attach(server);
-  const claimLapse = startClaimLapseJob(ctx);
+  const jobs = startScheduler(appJobs(ctx), ctx.logger);
   await new Promise<void>((resolve, reject) => {
     server.once('error', (err: NodeJS.ErrnoException) => {
       if (err.code === 'EADDRINUSE') reject(new ListenError(`port ${opts.port} on ${opts.host} is already in use: stop the other program or set PORT`));
@@ -50,7 +57,7 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
     close: () =>
       new Promise<void>((resolve) => {
         void ctx.hub.close();
-        void claimLapse.stop();
+        void jobs.stop();
         server.close(() => resolve());
         server.closeAllConnections();
       }),
@@ -62,7 +69,7 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
  * user) and allowed only from our own origin — the one the Host header names (http or https) or
  * SEISIFT_PUBLIC_URL.
  */
-export function createAppHub(db: Database, logger: Logger, env: ReturnType<typeof loadEnv>): RealtimeHub {
+export function createAppHub(db: Database, logger: Logger, env: Env): RealtimeHub {
   const sessions = createSessionStore(db, { idleHours: env.SEISIFT_SESSION_IDLE_HOURS });
   const publicOrigin = env.SEISIFT_PUBLIC_URL ? new URL(env.SEISIFT_PUBLIC_URL).origin : null;
   const same = (a: readonly (string | number)[], b: readonly (string | number)[]) => a.length === b.length && a.every((v, i) => v === b[i]);
@@ -99,11 +106,45 @@ export function createAppHub(db: Database, logger: Logger, env: ReturnType<typeo
   });
 }
 
-/** Builds the app context from validated settings, a database URL and the mailer. */
-export function createContext(env: ReturnType<typeof loadEnv>, databaseUrl: string, mailer: Mailer): AppContext {
-  const database = createDatabaseClient(databaseUrl);
-  const logger = createLogger(env.LOG_LEVEL);
-  return { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env), mailer };
+/** What the caller brings to `createAppContext`; the database and the mail setup stay the caller's to close. */
+export interface AppContextParts {
+  env: Env;
+  database: DatabaseClient;
+  mailer: Mailer;
+  /** Default: a logger at LOG_LEVEL. */
+  logger?: Logger;
+  /** Default: SEISIFT_ANALYSIS_THREADS worker threads, started with the first window. */
+  analysisPool?: AnalysisPool;
+}
+
+/** An app context and how to stop what it started (the hub and the analysis workers). */
+export type OwnedAppContext = AppContext & { close(): Promise<void> };
+
+/**
+ * The composition root: the one place an app context is built and its listeners wired (the
+ * server, `npm start`, the tests and the benchmarks all come here).
+ */
+export function createAppContext(parts: AppContextParts): OwnedAppContext {
+  const { env, database, mailer } = parts;
+  const logger = parts.logger ?? createLogger(env.LOG_LEVEL);
+  const hub = createAppHub(database.db, logger, env);
+  const analysisPool = parts.analysisPool ?? createLazyAnalysisPool(env.SEISIFT_ANALYSIS_THREADS);
+  // Escalations reach every supervisor by e-mail and in the inbox.
+  const escalationListeners = [escalationListener({ db: database.db, mailer, logger, notify: () => hub.notify(), publicUrl: publicBaseUrl(env) })];
+  return {
+    env,
+    database,
+    logger,
+    version: appVersion,
+    hub,
+    mailer,
+    analysisPool,
+    escalationListeners,
+    async close() {
+      await hub.close();
+      await analysisPool.close();
+    },
+  };
 }
 
 // `tsx watch server/index.ts` (npm run dev): serve the API against DATABASE_URL.
@@ -113,7 +154,7 @@ if (import.meta.url === `file://${process.argv[1]}`) {
     if (!env.DATABASE_URL) throw new ConfigError('DATABASE_URL: required when the server runs on its own (npm run dev sets it)');
     // SMTP_URL unset: the local fake SMTP server keeps mail for the admin mailbox page.
     const mail = await setUpMail(env, createDatabaseClient(env.DATABASE_URL, { connectionLimit: 2 }).db);
-    const ctx = createContext(env, env.DATABASE_URL, mail.mailer);
+    const ctx = createAppContext({ env, database: createDatabaseClient(env.DATABASE_URL), mailer: mail.mailer });
     const running = await startServer(ctx, { host: env.HOST, port: env.PORT, serveClient: false });
     console.log(`seisift: API on ${running.url}${mail.fake ? `; local test mail server on ${mail.fake.url} (admin page: Mailbox)` : ''}`);
   } catch (err) {

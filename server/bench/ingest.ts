@@ -29,7 +29,7 @@
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { Agent, request as httpRequest } from 'node:http';
-import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { cpus, loadavg, totalmem } from 'node:os';
 import { join, resolve } from 'node:path';
 import { eq } from 'drizzle-orm';
@@ -40,7 +40,7 @@ import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { startChildServer, type ChildServer } from '@tests/faults/support/child-server';
 import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
 import { freePort } from '@server/bootstrap/common';
-import { provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from '@server/bootstrap/mariadb';
+import { benchDatabase, cleanupsOnExit } from './bench-setup';
 import { createDatabaseClient } from '@server/db/client';
 import { migrateDatabase } from '@server/db/migrate';
 import { channels, ingestTokens, stations } from '@server/db/schema/stations';
@@ -195,6 +195,14 @@ async function stageTimings(db: Parameters<typeof ingestFile>[0]['db'], bases: M
         analysisMs.push(performance.now() - t);
       }
     },
+    async runMatched(streams, profile, opts, bank, match) {
+      const t = performance.now();
+      try {
+        return await pool.runMatched(streams, profile, opts, bank, match);
+      } finally {
+        analysisMs.push(performance.now() - t);
+      }
+    },
   };
   const code = CODES[0] ?? 'KV01';
   const [station] = (await stationsByKeys(db, [`XX.${code}`])).values();
@@ -235,21 +243,11 @@ async function stageTimings(db: Parameters<typeof ingestFile>[0]['db'], bases: M
 }
 
 async function main(): Promise<number> {
-  const cleanups: Array<() => Promise<void>> = [];
-  const cleanup = async () => {
-    while (cleanups.length > 0) await cleanups.pop()?.().catch(() => {});
-  };
-  process.once('SIGINT', () => void cleanup().then(() => process.exit(130)));
-  process.once('SIGTERM', () => void cleanup().then(() => process.exit(143)));
+  const { cleanups, cleanup } = cleanupsOnExit();
   try {
     log(machineLine());
     log(`bench:ingest — ${CONCURRENCY} concurrent uploaders, ${WS_CLIENTS} websocket clients, ${SECONDS} s measured after ${WARMUP_S} s warm-up`);
-    mkdirSync(resolve('.data'), { recursive: true });
-    const dataDir = mkdtempSync(join(resolve('.data'), 'bench-ingest-'));
-    cleanups.push(async () => rmSync(dataDir, { recursive: true, force: true }));
-    const maria: PrivateMariaDb = await startPrivateMariaDb({ dataDir, port: await freePort(), log: () => {} });
-    cleanups.push(() => maria.stop());
-    const url = await provisionDatabase(maria, { database: 'seisift_bench', user: 'seisift_bench', password: 'seisift-bench-pass' });
+    const { maria, url } = await benchDatabase('bench-ingest-', cleanups);
     // Diagnosis only: BENCH_INNODB_FLUSH=2 writes the redo log at commit but syncs it once a second
     // (a MariaDB or OS crash may lose the last second); the default 1 syncs at every commit.
     const flush = process.env.BENCH_INNODB_FLUSH;

@@ -33,10 +33,9 @@ import { createDatabaseClient, schema } from '@server/db/client';
 import { migrateDatabase } from '@server/db/migrate';
 import { setUpMail } from '@server/email/setup';
 import { loadEnv } from '@server/env';
-import { createAppHub, startServer, type RunningServer } from '@server/index';
+import { createAppContext, startServer, type RunningServer } from '@server/index';
 import { createLogger } from '@server/logger';
 import { listQueue } from '@server/features/queue/queue-query';
-import { appVersion } from '@server/version';
 import { percentile } from './timing';
 
 const ITEMS = Number(process.env.BENCH_QUEUE_ITEMS ?? 1_000_000);
@@ -209,11 +208,12 @@ async function main(): Promise<number> {
     const env = loadEnv({ NODE_ENV: 'production', LOG_LEVEL: 'silent' });
     const logger = createLogger('silent');
     const mail = await setUpMail({ ...env, SMTP_URL: undefined }, client.db, { fakePort: 0 });
-    const hub = createAppHub(client.db, logger, env);
-    running = await startServer({ env, database: client, logger, version: appVersion, hub, mailer: mail.mailer }, { host: '127.0.0.1', port: 0, serveClient: false });
+    const ctx = createAppContext({ env, database: client, mailer: mail.mailer, logger });
+    running = await startServer(ctx, { host: '127.0.0.1', port: 0, serveClient: false });
     const r = running;
     cleanups.unshift(async () => {
       await r.close();
+      await ctx.close();
       await mail.close();
     });
 

@@ -25,16 +25,16 @@
  * missed. Every process it started is stopped on every exit path.
  */
 import { createHash, randomBytes } from 'node:crypto';
-import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { Agent, request as httpRequest } from 'node:http';
 import { cpus, loadavg, totalmem } from 'node:os';
-import { join, resolve } from 'node:path';
+import { resolve } from 'node:path';
 import { z } from 'zod';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { startChildServer, type ChildServer } from '@tests/faults/support/child-server';
 import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
 import { freePort } from '@server/bootstrap/common';
-import { provisionDatabase, startPrivateMariaDb, type PrivateMariaDb } from '@server/bootstrap/mariadb';
+import { benchDatabase, cleanupsOnExit } from './bench-setup';
 import { createDatabaseClient } from '@server/db/client';
 import { migrateDatabase } from '@server/db/migrate';
 import { channels, ingestTokens, stations } from '@server/db/schema/stations';
@@ -143,21 +143,11 @@ function lagLine(label: string, lags: Lag[]): string {
 }
 
 async function main(): Promise<number> {
-  const cleanups: Array<() => Promise<void>> = [];
-  const cleanup = async () => {
-    while (cleanups.length > 0) await cleanups.pop()?.().catch(() => {});
-  };
-  process.once('SIGINT', () => void cleanup().then(() => process.exit(130)));
-  process.once('SIGTERM', () => void cleanup().then(() => process.exit(143)));
+  const { cleanups, cleanup } = cleanupsOnExit();
   try {
     log(machineLine());
     log(`bench:traces — largest allowed window (3 × ${SAMPLES} samples at ${RATE_HZ} sps = ${SAMPLES / RATE_HZ} s); reference ${REF_S} s of health probes alone, then ${LOAD_S} s with ${CLIENTS} clients requesting its traces back to back`);
-    mkdirSync(resolve('.data'), { recursive: true });
-    const dataDir = mkdtempSync(join(resolve('.data'), 'bench-traces-'));
-    cleanups.push(async () => rmSync(dataDir, { recursive: true, force: true }));
-    const maria: PrivateMariaDb = await startPrivateMariaDb({ dataDir, port: await freePort(), log: () => {} });
-    cleanups.push(() => maria.stop());
-    const url = await provisionDatabase(maria, { database: 'seisift_bench', user: 'seisift_bench', password: 'seisift-bench-pass' });
+    const { url } = await benchDatabase('bench-traces-', cleanups);
     const client = createDatabaseClient(url, { connectionLimit: 2 });
     cleanups.push(() => client.close());
     await migrateDatabase(client.db);

@@ -7,15 +7,11 @@ import { demoUsers } from '@server/db/seed-demo';
 import type { AppContext } from '@server/context';
 import { ingestDemo } from '@server/demo/ingest-demo';
 import { prepareDemoEvents } from '@server/demo/demo-events';
-import { defaultAnalysisPool } from '@server/jobs/analysis-pool';
-import { escalationListener } from '@server/features/supervision/escalations';
-import { publicBaseUrl } from '@server/email/links';
 import { ConfigError, loadEnv } from '@server/env';
 import { FakeSmtpError } from '@server/email/fake-smtp';
 import { setUpMail } from '@server/email/setup';
-import { createSessionStore } from '@server/auth/sessions';
 import { createLogger } from '@server/logger';
-import { createAppHub, ListenError, startServer } from '@server/index';
+import { createAppContext, ListenError, startServer } from '@server/index';
 import { appVersion } from '@server/version';
 import { buildClient, prepareApp, secondsSince } from './common';
 import { BootstrapError, type PrivateMariaDb } from './mariadb';
@@ -46,13 +42,12 @@ process.on('SIGTERM', () => void shutdown(0));
  */
 async function ingestDemoWindows(ctx: AppContext): Promise<void> {
   try {
-    const notify = (): void => ctx.hub.notify();
     const r = await ingestDemo({
       db: ctx.database.db,
-      pool: defaultAnalysisPool(),
-      notify,
+      pool: ctx.analysisPool,
+      notify: () => ctx.hub.notify(),
       logger: ctx.logger,
-      escalationListeners: [escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, notify, publicUrl: publicBaseUrl(ctx.env) })],
+      escalationListeners: ctx.escalationListeners,
     });
     for (const f of r.rejected) console.warn(`seisift: demo file ${f.filename} was refused: ${f.message}`);
     console.log(
@@ -60,7 +55,7 @@ async function ingestDemoWindows(ctx: AppContext): Promise<void> {
         ? `seisift: demo windows ingested (${r.created} files, ${r.items} queue items; the demo analyst dismissed ${r.historyDismissed} history windows as the stations' noise baseline, then labelled ${r.labelled}, dismissed ${r.dismissed}, escalated ${r.escalated}) in ${r.seconds.toFixed(1)} s`
         : `seisift: demo windows already ingested (${r.duplicates} of ${r.files} files)`,
     );
-    const ev = await prepareDemoEvents(ctx.database.db, notify);
+    const ev = await prepareDemoEvents(ctx.database.db, () => ctx.hub.notify());
     console.log(`seisift: demo events: ${ev.events} built or updated from the candidate groups (located, with ML; ${ev.responses} channel responses from the demo StationXML${ev.modelSet ? ', the demo crust set as the XX velocity model' : ''})`);
   } catch (err) {
     console.warn(`seisift: demo windows not ingested: ${err instanceof Error ? err.message : String(err)}`);
@@ -85,14 +80,9 @@ try {
   // No SMTP_URL: start the local fake SMTP server (loopback only); the admin Mailbox page shows its mail.
   const mail = await setUpMail(env, database.db, { onError: (err) => logger.error({ err }, 'fake SMTP server error') });
   cleanups.push(() => mail.close());
-  // Expired sessions are refused when presented; this also removes the ones nobody presents again.
-  const sessionStore = createSessionStore(database.db, { idleHours: env.SEISIFT_SESSION_IDLE_HOURS });
-  const sweep = () => sessionStore.deleteExpired().catch((err: unknown) => logger.warn({ err }, 'could not delete expired sessions'));
-  await sweep();
-  const sweeper = setInterval(() => void sweep(), 3600_000);
-  sweeper.unref();
-  cleanups.push(async () => clearInterval(sweeper));
-  const ctx = { env, database, logger, version: appVersion, hub: createAppHub(database.db, logger, env), mailer: mail.mailer };
+  // Periodic work (expired sessions, claim lapse, change-log pruning…) runs in startServer's scheduler.
+  const ctx = createAppContext({ env, database, mailer: mail.mailer, logger });
+  cleanups.push(() => ctx.close());
   if (env.SEISIFT_SEED_DEMO === '1') await ingestDemoWindows(ctx);
   const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
   cleanups.push(() => running.close());

@@ -1,16 +1,15 @@
 import type { DecodedStream } from '../formats/types';
 import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
-import { highBandForRate, validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
+import { channelChain } from './channel-chain';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
-import { detrendLinear, taperInPlace } from './preprocess';
 import { qualityChecks, type QcFinding } from './qc';
 import { countsPsdToVelocity, velocityPsdToAccelerationDb, type PolesZerosResponse } from './response';
 import { scoreWindow, type SignalSpectrumFeatures, type StationBaseline, type WindowScore } from './score';
 import { planSignalSegments, snrSpectrum, spectralStats, spectrogram, welchPsd, type Spectrogram } from './spectrum';
 import { peakOf, snrAroundTrigger } from './sta-lta';
-import { triggerChain } from './trigger';
-import { bandEnergy, sosfiltInto, sosfiltZeroPhase } from './sosfilt';
+import { sosfiltInto, sosfiltZeroPhase } from './sosfilt';
+import { workArray } from './work-arrays';
 
 /**
  * The analysis of one window (one station's channels for one time span): the output contract of
@@ -200,46 +199,21 @@ function analyzeChannel(
   if (!(flatSensitivity > 0) || !Number.isFinite(flatSensitivity)) {
     throw new AnalysisError(`${s.id}: sensitivity ${flatSensitivity} counts per m/s must be a positive number`);
   }
-  // Detrend once: the pre-processed trace is a tapered copy (= preprocessTrace), the trigger's trace
-  // (below) the detrended samples themselves with a start ramp instead of the taper.
-  const detrended = detrendLinear(s.samples);
-  const pre = detrended.slice();
-  taperInPlace(pre, profile.preprocess.taperAlpha);
-  if (flatSensitivity !== 1) for (let i = 0; i < n; i++) pre[i] = (pre[i] as number) / flatSensitivity;
-
-  const fitted = highBandForRate(profile.bands.high, fs);
-  const low = validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
-  if (fitted.warning) warnings.push(fitted.warning);
-  const high = validateBand('high', fitted.band, fs, profile.bands.nyquistPolicy);
-  if (low.warning) warnings.push(low.warning);
-  if (high.warning) warnings.push(high.warning);
-
-  // Band-reject first (one shared trace: `pre` itself until a filter applies), then both band-passes
-  // on it, each filtered straight into its own array (`rejected` is not changed after this).
-  let rejected: Float64Array = pre;
-  const bandReject: ChannelResult['bandReject'] = [];
-  for (const br of profile.bandReject) {
-    const ok = br.fmax < fs / 2;
-    bandReject.push({ fmin: br.fmin, fmax: br.fmax, applied: ok });
-    if (!ok) {
-      warnings.push(`band-reject ${br.fmin}–${br.fmax} Hz${br.label ? ` (${br.label})` : ''} is not below the Nyquist frequency ${fs / 2} Hz: not applied`);
-      continue;
-    }
-    rejected = sosfiltInto(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected, rejected === pre ? new Float64Array(n) : rejected);
-  }
-  const lowSos = design(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs);
-  const highSos = design(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
+  // The per-channel chain the trace view runs too (channel-chain.ts): pre-processing, bands,
+  // band-reject, both band-passes and the trigger's own chain. Every long intermediate trace lives in
+  // a reused work array (see work-arrays.ts); none leaves this function. Only the display shows the
+  // band traces; otherwise the chain computes their energies without them.
+  const ch = channelChain(s.samples, fs, profile, flatSensitivity, design, { workArrays: true, bands: opts.display === true ? 'traces' : 'energies' });
+  warnings.push(...ch.warnings);
+  const { pre, rejected, low, high, lowSos, highSos, bandReject } = ch;
   const zeroPhaseDisplay = opts.display === true && opts.displayFiltering === 'zero-phase';
-  const lowY = sosfiltInto(lowSos, rejected, new Float64Array(n));
-  const highY = sosfiltInto(highSos, rejected, new Float64Array(n));
-  const eLow = bandEnergy(lowY, fs);
-  const eHigh = bandEnergy(highY, fs);
+  const eLow = ch.energy.low;
+  const eHigh = ch.energy.high;
   const ratio = eLow > 0 ? eHigh / eLow : null;
   const log10Ratio = ratio !== null && ratio > 0 ? Math.log10(ratio) : null;
 
-  // The trigger reads its own chain (untapered, ramped, band-rejected high band; see triggerChain).
   const sl = profile.staLta;
-  const chain = triggerChain(s.samples, fs, profile, highSos, design, flatSensitivity, detrended);
+  const chain = ch.trigger;
   const { startIndex, cf, highY: trigY, base: trigBase } = chain;
   const trig = chain.triggers;
   const pk = peakOf(cf, fs);
@@ -366,8 +340,8 @@ function analyzeChannel(
     const bucket = Math.max(1, Math.ceil((2 * n) / points));
     const idx = minMaxIndices(pre, bucket);
     const pick = (y: Float64Array): number[] => idx.map((i) => y[i] as number);
-    const lowShown = zeroPhaseDisplay ? sosfiltZeroPhase(lowSos, rejected) : lowY;
-    const highShown = zeroPhaseDisplay ? sosfiltZeroPhase(highSos, rejected) : highY;
+    const lowShown = zeroPhaseDisplay ? sosfiltZeroPhase(lowSos, rejected) : (ch.lowY ?? sosfiltInto(lowSos, rejected, workArray('low-band', n)));
+    const highShown = zeroPhaseDisplay ? sosfiltZeroPhase(highSos, rejected) : (ch.highY ?? sosfiltInto(highSos, rejected, workArray('high-band', n)));
     result.display = {
       bucket,
       filtering: zeroPhaseDisplay ? 'zero-phase' : 'causal',

@@ -33,9 +33,13 @@ export function detrendLinear(x: Float64Array): Float64Array {
   return y;
 }
 
-/** detrendLinear writing into `out` (may be the same array as `x`). */
-function detrendLinearInto(x: Float64Array, out: Float64Array): void {
+/**
+ * `detrendLinear` writing into `out` (same length; may be `x` itself): the same arithmetic, so the same
+ * numbers. @throws RangeError when the lengths differ.
+ */
+export function detrendLinearInto(x: Float64Array, out: Float64Array): void {
   const n = x.length;
+  if (out.length !== n) throw new RangeError(`detrendLinearInto: input of ${n} samples, output of ${out.length}`);
   const c = (n - 1) / 2;
   let sx = 0;
   for (let i = 0; i < n; i++) sx += x[i] as number;
@@ -115,4 +119,15 @@ export function taperInPlace(y: Float64Array, taperAlpha: number): void {
   for (let i = n - width - 1; i < n; i++) {
     y[i] = (y[i] as number) * 0.5 * (1 + Math.cos(Math.PI * (-2 / taperAlpha + 1 + (2 * i) / taperAlpha / m1)));
   }
+}
+
+/**
+ * First sample of the taper's tail, the sample from which `taperInPlace(y, α)` changes y up to the end:
+ * n − ⌊α(n−1)/2⌋ − 1 for 0 < α < 1 (the same split as `tukeyWindow`), n when nothing is tapered
+ * (α ≤ 0 or n ≤ 1), 0 when everything is (α ≥ 1, a Hann window). Samples; n ≥ 0.
+ */
+export function taperTailStart(n: number, taperAlpha: number): number {
+  if (n <= 1 || taperAlpha <= 0) return n;
+  if (taperAlpha >= 1) return 0;
+  return n - Math.floor((taperAlpha * (n - 1)) / 2) - 1;
 }

@@ -162,6 +162,8 @@ export interface DelayedStaLtaOptions {
   startIndex: number;
   /** The LTA must hold at least this many samples before a ratio is given, samples (≥ 1). */
   minLtaSamples: number;
+  /** Where to write the ratio (length of y; every element is written); default a new array. */
+  out?: Float64Array;
 }
 
 /**
@@ -202,7 +204,9 @@ export function delayedStaLta(
   if (!(Number.isInteger(a) && a >= 0)) throw new RangeError(`startIndex ${a} must be a whole number ≥ 0`);
   if (!(Number.isInteger(minLta) && minLta >= 1)) throw new RangeError(`minLtaSamples ${minLta} must be a whole number ≥ 1`);
   const n = y.length;
-  const out = new Float64Array(n);
+  if (opts.out !== undefined && opts.out.length !== n) throw new RangeError(`delayedStaLta: output of ${opts.out.length} samples for ${n} samples`);
+  const out = opts.out ?? new Float64Array(n);
+  if (opts.out !== undefined) out.fill(0, 0, Math.min(a, n));
   const sq = (j: number): number => (y[j] as number) * (y[j] as number);
   if (method === 'recursive') {
     let sta = 0;

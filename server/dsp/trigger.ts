@@ -2,7 +2,7 @@ import type { ProcessingProfile } from '../../shared/schemas/processing-profile'
 import { aicOnsetIndex } from './aic-picker';
 import type { Sos } from './butterworth';
 import { detrendLinear } from './preprocess';
-import { sosfiltInPlace, sosfiltInto } from './sosfilt';
+import { sosfiltInPlace, sosfiltInto, sosfiltIntoWithState } from './sosfilt';
 import { delayedStaLta, detectTriggers, type Trigger } from './sta-lta';
 
 /** A trigger with its AIC onset and its own peak. */
@@ -24,6 +24,8 @@ export interface TriggerChain {
   triggers: ChainTrigger[];
   /** First sample the characteristic function reads. */
   startIndex: number;
+  /** With `work.stateAt`: the high band filter's state on `base` just before that sample (see `bandEnergyBeside`). */
+  highStateAt?: Float64Array;
 }
 
 /**
@@ -39,6 +41,9 @@ export interface TriggerChain {
  * Pure; `design` returns Butterworth sections (a cache may stand behind it). A caller that has
  * already detrended the samples (`detrendLinear(samples)`, as the pipeline does for its tapered trace)
  * passes them as `detrended`: the chain then starts from them, and takes them over as `base`.
+ * `work` (optional) gives the arrays the chain writes its high band and ratio into (each of the
+ * samples' length, contents overwritten), for a caller that reuses them between windows, and with
+ * `stateAt` asks for the high band filter's state before that sample (`highStateAt`).
  */
 export function triggerChain(
   samples: Float64Array,
@@ -48,6 +53,7 @@ export function triggerChain(
   design: (order: number, edges: [number, number], type: 'bandstop', fs: number) => Sos,
   sensitivity = 1,
   detrended?: Float64Array,
+  work?: { highY: Float64Array; cf: Float64Array; stateAt?: number },
 ): TriggerChain {
   const fs = sampleRateHz;
   const n = samples.length;
@@ -58,8 +64,11 @@ export function triggerChain(
   for (let i = 0; i < startIndex; i++) base[i] = (base[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / startIndex));
   if (sensitivity !== 1) for (let i = 0; i < n; i++) base[i] = (base[i] as number) / sensitivity;
   for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(design(br.order, [br.fmin, br.fmax], 'bandstop', fs), base);
-  const highY = sosfiltInto(highSos, base, new Float64Array(n));
-  const cf = delayedStaLta(highY, fs, sl.staS, sl.ltaS, sl.method, { startIndex, minLtaSamples: Math.max(1, Math.round(sl.minLtaS * fs)) });
+  const highY = work?.highY ?? new Float64Array(n);
+  const highStateAt = work?.stateAt === undefined ? undefined : sosfiltIntoWithState(highSos, base, highY, work.stateAt);
+  if (highStateAt === undefined) sosfiltInto(highSos, base, highY);
+  const staLtaOpts = { startIndex, minLtaSamples: Math.max(1, Math.round(sl.minLtaS * fs)) };
+  const cf = delayedStaLta(highY, fs, sl.staS, sl.ltaS, sl.method, work ? { ...staLtaOpts, out: work.cf } : staLtaOpts);
   const triggers = detectTriggers(cf, fs, sl.on, sl.off).map((t): ChainTrigger => {
     let peak = 0;
     for (let i = t.onIndex; i < (t.offIndex ?? n); i++) if ((cf[i] as number) > peak) peak = cf[i] as number;
@@ -68,5 +77,5 @@ export function triggerChain(
     const k = aicOnsetIndex(highY, from, to);
     return { ...t, peak, onsetIndex: k === null ? t.onIndex : Math.min(k, t.onIndex) };
   });
-  return { base, highY, cf, triggers, startIndex };
+  return highStateAt === undefined ? { base, highY, cf, triggers, startIndex } : { base, highY, cf, triggers, startIndex, highStateAt };
 }

@@ -1,13 +1,13 @@
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
-import { ConfigError, envSchema } from '@server/env';
 import type { DecodeOptions } from '@server/formats/decode';
 import type { DecodedStream } from '@server/formats/types';
 import type { WindowLimits } from '@server/formats/window-limits';
 import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import type { AnalysisResult, AnalyzeOptions } from '@server/dsp/pipeline';
 import type { TracesInput } from '@server/features/queue/queue-traces';
-import type { AnalysisTask, DecodeOutcome, DecodeTask } from './analysis-worker';
+import type { BankTemplate } from '@server/dsp/template-bank';
+import type { AnalysisTask, DecodeOutcome, DecodeTask, MatchedOutcome, MatchedTask } from './analysis-worker';
 
 /**
  * A pool of worker threads for the heavy work of the server — decoding uploads, `analyzeWindow`,
@@ -20,6 +20,11 @@ export interface AnalysisPool {
    * Rejects with the analysis error's message (e.g. a refused band).
    */
   run(streams: DecodedStream[], profile: ProcessingProfile, opts?: AnalyzeOptions): Promise<AnalysisResult>;
+  /**
+   * `run`, then the window's template and its matches against `bank` (issue 19), in the same worker
+   * task (the streams' buffers are transferred as in `run`; the bank's samples are copied).
+   */
+  runMatched(streams: DecodedStream[], profile: ProcessingProfile, opts: AnalyzeOptions, bank: BankTemplate[], match: { topK: number; minValue: number }): Promise<MatchedOutcome>;
   /**
    * Decodes an uploaded file in a worker (the bytes are copied there; the caller keeps its own)
    * and checks the window limits: the streams, or the refusal (422 undecodable, 413 over a limit).
@@ -42,6 +47,9 @@ const isObject = (v: unknown): v is object => typeof v === 'object' && v !== nul
 function isAnalysisResult(v: unknown): v is AnalysisResult {
   return isObject(v) && 'channels' in v && 'score' in v;
 }
+function isMatchedOutcome(v: unknown): v is MatchedOutcome {
+  return isObject(v) && 'analysis' in v && 'matching' in v && isAnalysisResult(v.analysis);
+}
 function isDecodeOutcome(v: unknown): v is DecodeOutcome {
   return isObject(v) && 'ok' in v && typeof v.ok === 'boolean';
 }
@@ -56,7 +64,7 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
   const here = import.meta.url;
   const isTs = here.endsWith('.ts');
   const filename = new URL(isTs ? './analysis-worker.ts' : './analysis-worker.js', here).href;
-  const pool = new Piscina<AnalysisTask | DecodeTask | TracesInput, unknown>({
+  const pool = new Piscina<AnalysisTask | MatchedTask | DecodeTask | TracesInput, unknown>({
     filename,
     minThreads: threads,
     maxThreads: threads,
@@ -73,6 +81,17 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
       }
       const out = await pool.run({ streams, profile, opts }, { transferList: [...buffers] });
       if (!isAnalysisResult(out)) throw new Error('analysis worker: unexpected answer to an analysis');
+      return out;
+    },
+    async runMatched(streams, profile, opts, bank, match) {
+      const buffers = new Set<ArrayBuffer>();
+      for (const s of streams) {
+        const b = s.samples.buffer;
+        if (b instanceof ArrayBuffer && b.byteLength > 0) buffers.add(b);
+      }
+      const task: MatchedTask = { streams, profile, opts, bank, match };
+      const out = await pool.run(task, { name: 'matched', transferList: [...buffers] });
+      if (!isMatchedOutcome(out)) throw new Error('analysis worker: unexpected answer to a matched analysis');
       return out;
     },
     async decode(bytes, opts, limits) {
@@ -93,23 +112,26 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
   };
 }
 
-let sharedPool: AnalysisPool | undefined;
-
 /**
- * The process's analysis pool, created on first use with `threads` worker threads (default:
- * SEISIFT_ANALYSIS_THREADS, else one per core: `max(1, availableParallelism())`). One thread
- * analyses a 120 s 3-component window in about 8–20 ms, so the 100 windows/s target needs two on a
- * 2-core machine (docs/PERFORMANCE.md). Idle workers do not keep the process alive.
- * @throws ConfigError when SEISIFT_ANALYSIS_THREADS is not a positive whole number
+ * The app's analysis pool (one per app context, built in `createAppContext`): `threads` worker
+ * threads, SEISIFT_ANALYSIS_THREADS (default one per core). One thread analyses a 120 s 3-component
+ * window in about 8–20 ms, so the 100 windows/s target needs two on a 2-core machine
+ * (docs/PERFORMANCE.md). The workers start with the first task, so a context that never ingests nor
+ * draws traces (most tests, the CLI) starts none.
  */
-export function defaultAnalysisPool(threads: number = analysisThreads()): AnalysisPool {
-  sharedPool ??= createAnalysisPool({ threads });
-  return sharedPool;
-}
-
-/** SEISIFT_ANALYSIS_THREADS from `source` (validated like every setting), else one per core. */
-export function analysisThreads(source: NodeJS.ProcessEnv = process.env): number {
-  const r = envSchema.shape.SEISIFT_ANALYSIS_THREADS.safeParse(source.SEISIFT_ANALYSIS_THREADS);
-  if (!r.success) throw new ConfigError(`SEISIFT_ANALYSIS_THREADS: ${r.error.issues[0]?.message ?? 'invalid'} (got "${source.SEISIFT_ANALYSIS_THREADS ?? ''}")`);
-  return r.data;
+export function createLazyAnalysisPool(threads: number): AnalysisPool {
+  let pool: AnalysisPool | null = null;
+  const open = (): AnalysisPool => (pool ??= createAnalysisPool({ threads }));
+  return {
+    threads,
+    run: (streams, profile, opts) => open().run(streams, profile, opts),
+    runMatched: (streams, profile, opts, bank, match) => open().runMatched(streams, profile, opts, bank, match),
+    decode: (bytes, opts, limits) => open().decode(bytes, opts, limits),
+    traces: (input) => open().traces(input),
+    async close() {
+      const started = pool;
+      pool = null;
+      await started?.close();
+    },
+  };
 }

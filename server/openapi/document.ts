@@ -10,6 +10,7 @@ import { ingestOperations } from '@server/features/ingest/openapi';
 import { queueOperations } from '@server/features/queue/openapi';
 import { stationOperations } from '@server/features/stations/openapi';
 import { supervisionOperations } from '@server/features/supervision/openapi';
+import { similarityOperations } from '@server/features/similarity/openapi';
 import { openApiPath, type ApiOperation, type ApiResponse } from './operation';
 
 /** GET /api/openapi.json itself. */
@@ -28,6 +29,7 @@ export const apiOperations: readonly ApiOperation[] = [
   ...auditOperations,
   ...queueOperations,
   ...supervisionOperations,
+  ...similarityOperations,
   ...eventOperations,
   ...eventGeometryOperations,
   ...stationOperations,

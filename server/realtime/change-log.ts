@@ -79,7 +79,16 @@ function readAudience(raw: unknown): ChangeAudience | null {
   return parsed.success ? parsed.data : null;
 }
 
-/** Deletes changes older than `before` (the counter is kept, so sequence numbers never repeat). */
-export async function pruneChanges(db: Database, before: Date): Promise<void> {
-  await db.delete(changeLog).where(lt(changeLog.createdAt, before));
+/**
+ * Deletes changes older than `before`, `batch` rows per statement (found along the created_at
+ * index, so no statement holds its locks for long), and returns how many went. The counter is
+ * kept, so sequence numbers never repeat; a client that resumes from a pruned seq is told to refetch.
+ */
+export async function pruneChanges(db: Database, before: Date, batch = 5000): Promise<number> {
+  let deleted = 0;
+  for (;;) {
+    const [header] = await db.delete(changeLog).where(lt(changeLog.createdAt, before)).limit(batch);
+    deleted += header.affectedRows;
+    if (header.affectedRows < batch) return deleted;
+  }
 }

@@ -225,9 +225,7 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
         await b.context.addCookies([{ name: 'seisift_session', value: ana.sessionId, url: server.url }]);
         const page = b.context.pages()[0] ?? (await b.context.newPage());
         await page.goto(`${server.url}/queue?station=KV03,KV04,KV05`);
-        // The group is one row (the leading member's), with its event one click away.
-        await page.waitForSelector(`[data-group="${groupId}"] a[href^="/events/"]`);
-        expect(await page.locator(`tr:has([data-group="${groupId}"])`).count()).toBe(1);
+        await page.waitForSelector(`tr[data-item-id="${ids[0]}"] [data-group="${groupId}"]`);
         // The table fits the screen: no horizontal scroll in the queue region.
         const overflow = await page.$eval('[aria-label="Queue items"]', (el) => el.scrollWidth - el.clientWidth);
         expect(overflow, `${width} px`).toBeLessThanOrEqual(1);
@@ -236,13 +234,11 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
           const queueA11y = await checkA11y(page);
           expect(queueA11y, JSON.stringify(queueA11y, null, 1)).toEqual([]);
         }
-        // Its other member windows beneath it on demand.
-        await page.click(`[data-group="${groupId}"] button[aria-expanded="false"]`);
-        for (const id of ids) await page.waitForSelector(`tr[data-item-id="${id}"]`);
+        await page.click(`tr[data-item-id="${ids[1]}"] [data-group="${groupId}"]`);
+        await page.waitForSelector(`dialog[open] tbody tr:nth-child(3)`);
+        expect(await page.locator('dialog[open] tbody tr').count()).toBe(3);
         await screenshot(page, `analyst-queue-group-${width}-${colorScheme}`);
-        // The group's row opens the event screen.
-        await page.click(`[data-group="${groupId}"] a[href^="/events/"]`);
-        await page.waitForSelector('[data-testid="event-screen"]');
+        await page.keyboard.press('Escape');
         await page.goto(`${server.url}/queue/items/${ids[0]}`);
         await page.waitForSelector('[data-testid="group-panel"] tbody tr:nth-child(3)');
         await page.waitForSelector('[data-testid="trace-panel"] canvas');

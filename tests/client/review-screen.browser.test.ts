@@ -5,9 +5,9 @@ import { queueItemDetailSchema } from '@shared/schemas/queue';
 import { uploadResponseSchema } from '@shared/schemas/upload';
 import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
-import { launchBrowser, screenshot, type LaunchedBrowser } from '../setup/browser';
-import { createItem, createPerson, syntheticStreams, type TestPerson } from '../setup/queue-fixtures';
-import { startTestServer, type TestServer } from '../setup/test-server';
+import { launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { createItem, createPerson, syntheticStreams, type TestPerson } from '@tests/setup/queue-fixtures';
+import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
 /**
  * The review screen as an analyst works it (bugs found in use): keyboard picks land on the channel
@@ -66,7 +66,9 @@ describe('review screen (chromium, real server)', () => {
     }
     ana = await createPerson(db, { roles: ['analyst'], displayName: 'Ana Kestrel' });
     operator = await createPerson(db, { roles: ['operator'], stationIds: [stationId] });
-    waitingId = await createItem(db, { station: 'KV01', withSamples: true, burstAtS: 40, score: 50 });
+    // Its window starts before the upload's, so the station page's latest spectrum is the upload's
+    // (analysed with the channels' sensitivity); by default a fixture window starts two minutes ago.
+    waitingId = await createItem(db, { station: 'KV01', withSamples: true, burstAtS: 40, score: 50, windowStart: new Date(Date.UTC(2026, 2, 14, 9, 0, 0)) });
     // A synthetic KV01 window with a 5 Hz burst at 50 s on the vertical (test input, not check values).
     const streams = syntheticStreams('KV01', Date.UTC(2026, 2, 14, 10, 11, 53) * 1000, { durationS: 120, burstAtS: 50 });
     const file = Buffer.concat(streams.map((st) => Buffer.from(encodeMiniSeed2({ ...st, samples: Int32Array.from(st.samples) }, { encoding: 'steim2', recordLength: 512 }))));

@@ -199,8 +199,9 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     const [csvDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download CSV' }).click()]);
     const csv = (await readFile(await csvDownload.path(), 'utf8')).trim().split(/\r?\n/);
     expect(csv.length).toBeGreaterThanOrEqual(2);
-    // Header and first columns: event_id,event_time,event_time_basis,event_type,type_certainty,evaluation_status (server/features/supervision/catalogue-csv.ts).
-    expect(csv[0]).toMatch(/^event_id,event_time,event_time_basis,event_type,type_certainty,evaluation_status,stations,/);
+    // Header: the event, its origin and ML, then type, certainty and status (server/features/supervision/catalogue-csv.ts).
+    expect(csv[0]).toMatch(/^event_id,event_time,event_time_basis,origin_time,latitude,longitude,depth_km,/);
+    expect(csv[0]).toContain(',event_type,type_certainty,evaluation_status,stations,');
     const line = csv.find((l) => l.startsWith(`smi:seisift.local/event/item/${kv01Item},`));
     expect(line, csv.join('\n')).toBeDefined();
     expect(line).toContain(',earthquake,suspected,confirmed,');

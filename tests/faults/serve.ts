@@ -12,13 +12,13 @@ import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { createDatabaseClient } from '@server/db/client';
 import { setUpMail } from '@server/email/setup';
 import { ConfigError, loadEnv } from '@server/env';
-import { createContext, startServer } from '@server/index';
+import { createAppContext, startServer } from '@server/index';
 
 try {
   const env = loadEnv();
   if (!env.DATABASE_URL) throw new ConfigError('DATABASE_URL: required');
   const mail = await setUpMail({ ...env, SMTP_URL: undefined }, createDatabaseClient(env.DATABASE_URL, { connectionLimit: 2 }).db, { fakePort: 0 });
-  const ctx = createContext(env, env.DATABASE_URL, mail.mailer);
+  const ctx = createAppContext({ env, database: createDatabaseClient(env.DATABASE_URL), mailer: mail.mailer });
   const running = await startServer(ctx, { host: env.HOST, port: env.PORT, serveClient: false });
   console.log(`seisift-fault-server listening ${running.url} pid ${process.pid}`);
   const lagEveryMs = Number(process.env.BENCH_LOOP_LAG_MS ?? 0);

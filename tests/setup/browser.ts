@@ -95,8 +95,8 @@ async function loadAxe(): Promise<string> {
  */
 export async function checkA11y(page: Page): Promise<A11yViolation[]> {
   const hasAxe = await page.evaluate(() => 'axe' in window);
-  // Evaluated through the DevTools protocol, not as an inline <script>: Seisift's CSP (script-src
-  // 'self' and one hash) rightly blocks inline scripts, and the checker must not need a looser policy.
+  // Evaluated through the browser's protocol, not added as an inline <script>: the app's CSP
+  // (server/http/security-headers.ts) rightly refuses inline scripts it has no hash for.
   if (!hasAxe) await page.evaluate(await loadAxe());
   const raw: unknown = await page.evaluate(async () => {
     if (!window.axe) throw new Error('axe-core did not load into the page');

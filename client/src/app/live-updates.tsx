@@ -3,7 +3,7 @@ import { createContext, useContext, useEffect, useState, type ReactNode } from '
 import type { ConnectionState } from '@client/components/ui/connection-indicator';
 import { applyChanges, refetchAll } from '@client/api/queue/live-patch';
 import { createLiveClient, liveUrl } from '@client/lib/ws-client';
-import { meKey } from '@client/features/auth/api/session';
+import { queryKeys } from '@client/lib/query-keys';
 
 const LiveContext = createContext<ConnectionState | undefined>(undefined);
 
@@ -21,7 +21,7 @@ export function LiveUpdatesProvider({ children }: { children: ReactNode }) {
       onChanges: (changes) => applyChanges(qc, changes),
       onRefetch: () => refetchAll(qc),
       // The session ended (signed out elsewhere, deactivated, roles changed): ask who is signed in.
-      onSessionEnded: () => void qc.invalidateQueries({ queryKey: meKey }),
+      onSessionEnded: () => void qc.invalidateQueries({ queryKey: queryKeys.session }),
       onState: setState,
     });
     const online = () => client.reconnectNow();

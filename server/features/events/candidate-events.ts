@@ -11,6 +11,7 @@ import { AppError, badRequest, notFound } from '@server/errors';
 import { recordChange } from '@server/realtime/change-log';
 import { claimItem, labelItem, type QueuePerson, type QueueServiceDeps } from '@server/features/queue/queue-transitions';
 import { lowerLoneTrigger, raiseByCoincidence } from './coincidence';
+import { channelResultSchema, detectionSchema, staLtaResultSchema, storedAnalysisSchema } from '@shared/schemas/analysis';
 
 /**
  * Candidate events: items from at least `minStations` distinct stations whose first triggers fall
@@ -185,17 +186,12 @@ export function maxAllowedLagS(stations: ReadonlyArray<{ latitude: number; longi
   return allowedLagS(maxKm, settings);
 }
 
-const storedAnalysisSchema = z.object({
-  leadChannel: z.string().optional(),
-  detection: z.object({ channel: z.string(), onset: z.number() }).nullable().optional(),
+/** The fields of the stored analysis (shared/schemas/analysis.ts) the first trigger is read from. */
+const arrivalAnalysisSchema = z.object({
+  leadChannel: storedAnalysisSchema.shape.leadChannel.optional(),
+  detection: detectionSchema.pick({ channel: true, onset: true }).nullable().optional(),
   channels: z
-    .array(
-      z.object({
-        id: z.string(),
-        startTime: z.string(),
-        staLta: z.object({ triggers: z.array(z.object({ on: z.number(), off: z.number().nullable() })) }),
-      }),
-    )
+    .array(channelResultSchema.pick({ id: true, startTime: true }).extend({ staLta: staLtaResultSchema.pick({ triggers: true }) }))
     .min(1),
 });
 
@@ -206,7 +202,7 @@ const storedAnalysisSchema = z.object({
  *   not have the engine's shape
  */
 export function firstTriggerMs(analysis: unknown): number | null {
-  const parsed = storedAnalysisSchema.safeParse(analysis);
+  const parsed = arrivalAnalysisSchema.safeParse(analysis);
   if (!parsed.success) return null;
   const { channels, leadChannel, detection } = parsed.data;
   if (detection) {

@@ -4,7 +4,6 @@ import { z } from 'zod';
 import { can } from '@shared/auth/policies';
 import { capMessage, clipInput, MAX_QUOTED_CHARS } from '@shared/quote-input';
 import { flagSchema } from '@shared/schemas/flags';
-import { channelResponseSchema } from '@shared/schemas/station';
 import type { UploadOutcome } from '@shared/schemas/upload';
 import type { Database, DbOrTx } from '@server/db/client';
 import { queueItems } from '@server/db/schema/queue-items';
@@ -25,7 +24,11 @@ import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { firstTriggerMs, recheckLoneTriggers, regroupArrivals } from '@server/features/events/candidate-events';
 import { decodeStoredSamples, encodeSamples } from '@server/db/samples-codec';
 import { stationBaseline } from '@server/features/stations/station-baseline';
-import { stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from '@server/features/stations/station-registry';
+import { channelSensitivity, stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from '@server/features/stations/station-registry';
+import { applyResemblance, type ResemblanceOutcome } from '@server/features/similarity/resemblance';
+import { similaritySettings, type SimilaritySettings } from '@server/features/similarity/settings';
+import { loadStationBank, pruneStationTemplates, resolveMatches, storeTemplateAndMatches, type StationTemplate } from '@server/features/similarity/template-store';
+import type { MatchingOutcome } from '@server/features/similarity/window-matching';
 
 /**
  * Ingest of uploaded waveform files: sha256 → duplicate? → decode → stations known and in the
@@ -60,6 +63,8 @@ export interface IngestDeps {
   /** The largest window accepted (default `defaultWindowLimits`: 1 h, 720 000 samples per channel). */
   limits?: WindowLimits;
   logger: Logger;
+  /** Template matching settings (default: from the environment, `similaritySettings`). */
+  similarity?: SimilaritySettings;
   /**
    * Test-only: runs inside the transaction after every row is written and before the commit; a
    * throw here must roll everything back.
@@ -195,13 +200,10 @@ async function insertBinary(tx: DbOrTx, insert: { toSQL(): { sql: string; params
   return [{ id: parsed.data[0].insertId }];
 }
 
-const VELOCITY_UNITS = /^(m\/s|m\/sec|meters?\/s(ec(ond)?)?)$/i;
-
 /**
- * The engine's sensitivity options for a station's channels: a full poles-and-zeros response when
- * one is stored, else the flat sensitivity (counts per m/s). A sensitivity whose input units are
- * not velocity (e.g. an accelerometer's M/S**2) is not used, since the engine's physical units are
- * m/s; such channels are analysed in counts.
+ * The engine's sensitivity options for a station's channels (`channelSensitivity`: a full
+ * poles-and-zeros response, else a flat velocity sensitivity; none for other input units) and the
+ * registered sample rates.
  */
 export function analysisOptionsFor(station: RegisteredStation, streams: readonly DecodedStream[]): Pick<AnalyzeOptions, 'sensitivity' | 'expectedSampleRateHz'> {
   const sensitivity: Record<string, number | PolesZerosResponse> = {};
@@ -210,12 +212,8 @@ export function analysisOptionsFor(station: RegisteredStation, streams: readonly
     const ch = station.channels.get(s.id);
     if (!ch) continue;
     expectedSampleRateHz[s.id] = ch.sampleRateHz;
-    const units = ch.sensitivityInputUnits;
-    const velocity = units === null || units.trim() === '' || VELOCITY_UNITS.test(units.trim());
-    if (!velocity) continue;
-    const paz = channelResponseSchema.safeParse(ch.response);
-    if (paz.success) sensitivity[s.id] = paz.data;
-    else if (ch.sensitivity !== null && ch.sensitivity > 0) sensitivity[s.id] = ch.sensitivity;
+    const used = channelSensitivity(ch);
+    if (used !== null) sensitivity[s.id] = used;
   }
   return { sensitivity, expectedSampleRateHz };
 }
@@ -258,6 +256,11 @@ interface AnalysedWindow {
   station: RegisteredStation;
   streams: StoredChannel[];
   analysis: AnalysisResult;
+  /** Template matching (null when it could not run). */
+  matching: MatchingOutcome | null;
+  bank: StationTemplate[];
+  /** The queue item's score, flag and reasons: the engine's, after the resemblance rule. */
+  triage: ResemblanceOutcome;
 }
 
 /** `samples` when it spans its whole buffer (so the buffer can be transferred alone), else a copy of it. */
@@ -366,6 +369,7 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
 
   // Analyse each station window in the pool (before any transaction opens).
   const analysed: AnalysedWindow[] = [];
+  const sim = deps.similarity ?? similaritySettings();
   for (const [key, list] of groups) {
     const station = registry.get(key) as RegisteredStation;
     const { baseline } = await stationBaseline(deps.db, station.id, station.profile.thresholds.minBaselineWindows);
@@ -374,14 +378,19 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
     const stored: StoredChannel[] = list.map((s) => ({ id: s.id, sampleRateHz: s.sampleRateHz, startTimeUs: s.startTimeUs, endUs: endUs(s), sampleCount: s.samples.length, samples: encodeSamples(s.samples) }));
     const options = { ...analysisOptionsFor(station, list), baseline };
     const toWorker = list.map((s) => ({ ...s, samples: ownBuffer(s.samples), discontinuities: [...s.discontinuities] }));
+    // The station's templates go to the worker with the window: matching runs right after the analysis.
+    const bank = await loadStationBank(deps.db, station.id);
     let analysis: AnalysisResult;
+    let matching: MatchingOutcome | null;
     try {
-      analysis = await deps.pool.run(toWorker, station.profile, options);
+      ({ analysis, matching } = await deps.pool.runMatched(toWorker, station.profile, options, bank, { topK: sim.topK, minValue: sim.storeMin }));
     } catch (err) {
       const msg = err instanceof Error ? err.message : String(err);
       throw new FileRefused(422, 'unprocessable', `${shownName(filename)}: station ${key}: analysis refused: ${capMessage(msg)}`);
     }
-    analysed.push({ station, streams: stored, analysis });
+    const resolved = matching ? resolveMatches(matching.matches, bank) : [];
+    const triage = applyResemblance(analysis, resolved, station.code, sim);
+    analysed.push({ station, streams: stored, analysis, matching, bank, triage });
   }
 
   const actor = actorOf(caller);
@@ -434,6 +443,9 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
           qc: w.analysis.channels.find((c) => c.id === s.id)?.qc ?? null,
         })),
       ));
+      if (w.matching) {
+        await storeTemplateAndMatches(tx, { windowId: win.id, stationId: w.station.id, windowStart, now }, w.matching.template, resolveMatches(w.matching.matches, w.bank), w.matching, sim);
+      }
       const lead = w.analysis.channels.find((c) => c.id === w.analysis.leadChannel) ?? w.analysis.channels[0];
       if (!lead) throw new Error('analysis has no channel');
       const level = noiseLevel(lead);
@@ -455,9 +467,9 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
           windowId: win.id,
           stationId: w.station.id,
           state: 'new',
-          score: w.analysis.score,
-          flag: w.analysis.flag,
-          reasons: w.analysis.reasons,
+          score: w.triage.score,
+          flag: w.triage.flag,
+          reasons: w.triage.reasons,
           windowStart,
           version: 1,
           createdAt: now,
@@ -492,9 +504,9 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
         summary: presentQueueRow({
           id: c.itemId,
           state: 'new',
-          score: c.w.analysis.score,
-          flag: c.w.analysis.flag,
-          reasons: c.w.analysis.reasons,
+          score: c.w.triage.score,
+          flag: c.w.triage.flag,
+          reasons: c.w.triage.reasons,
           network: c.w.station.network,
           stationCode: c.w.station.code,
           stationId: c.w.station.id,
@@ -530,6 +542,11 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
     { db: deps.db, notify: deps.notify },
     result.created.map((c) => ({ stationId: c.w.station.id, start: c.windowStart, end: c.windowEnd })),
   ).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: lone-trigger re-check failed'));
+  // Keep each station's bank under its cap (after the commit: a failure here never undoes the upload).
+  for (const w of analysed) {
+    if (!w.matching?.template) continue;
+    await pruneStationTemplates(deps.db, w.station.id, sim.templatesPerStation).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: template pruning failed'));
+  }
   return {
     filename,
     status: 'created',
@@ -539,8 +556,8 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
     items: result.created.map((c) => ({
       id: c.itemId,
       station: stationKey(c.w.station.network, c.w.station.code),
-      flag: c.w.analysis.flag,
-      score: c.w.analysis.score,
+      flag: c.w.triage.flag,
+      score: c.w.triage.score,
       windowStart: c.windowStart.toISOString(),
       channels: c.w.streams.map((s) => s.id),
     })),

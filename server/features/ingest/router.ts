@@ -5,7 +5,6 @@ import { clipInput } from '@shared/quote-input';
 import { uploadFieldsSchema } from '@shared/schemas/upload';
 import type { AppContext } from '@server/context';
 import { badRequest, forbidden, tooLarge, unauthorized, type AppError } from '@server/errors';
-import { defaultAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import { clientAddress, getRequestAuth } from '@server/auth/authenticate';
 import { parseIsoTimeUs } from '@server/formats/iso-time';
 import { parseInput } from '@server/http/validate';
@@ -13,9 +12,8 @@ import { ingestFiles, type IngestCaller, type IngestDeps } from './ingest-upload
 
 const mb = (bytes: number) => `${Math.round((bytes / 1024 / 1024) * 100) / 100} MB`;
 
-/** Options of the uploads router (tests pass their own pool or a failure hook). */
+/** Options of the uploads router (tests pass a failure hook; the analysis pool is the context's). */
 export interface UploadsRouterOptions {
-  pool?: AnalysisPool;
   beforeCommit?: IngestDeps['beforeCommit'];
 }
 
@@ -145,7 +143,7 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
     if (files.length === 0) throw badRequest('files: attach at least one file in the multipart field "files"');
     const deps: IngestDeps = {
       db: ctx.database.db,
-      pool: opts.pool ?? defaultAnalysisPool(),
+      pool: ctx.analysisPool,
       notify: () => ctx.hub.notify(),
       logger: ctx.logger,
       limits: { maxSamples: ctx.env.SEISIFT_MAX_WINDOW_SAMPLES, maxDurationS: ctx.env.SEISIFT_MAX_WINDOW_S },

@@ -6,19 +6,18 @@ import { queueItems } from '@server/db/schema/queue-items';
 import { channels, stations } from '@server/db/schema/stations';
 import { windowChannels } from '@server/db/schema/uploads';
 import { decodeStoredSamples } from '@server/db/samples-codec';
-import { highBandForRate, validateBand } from '@server/dsp/bands';
-import { butterworthSos } from '@server/dsp/butterworth';
-import { preprocessTrace } from '@server/dsp/preprocess';
-import { sosfiltInPlace } from '@server/dsp/sosfilt';
+import { BandError, highBandForRate, validateBand } from '@server/dsp/bands';
+import { channelChain } from '@server/dsp/channel-chain';
 import { spectrogram } from '@server/dsp/spectrum';
-import { triggerChain } from '@server/dsp/trigger';
-import { badRequest, notFound } from '@server/errors';
+import { badRequest, notFound, unprocessable } from '@server/errors';
+import { channelSensitivity } from '@server/features/stations/station-registry';
 
 /**
  * Display traces of a queue item: for each channel of its window the pre-processed trace, both
- * causal band-pass traces, the STA/LTA curve of the high band and a spectrogram — the same steps
- * and profile as the engine (server/dsp/pipeline.ts), recomputed from the stored samples so a zoom
- * can return any range at full resolution.
+ * causal band-pass traces, the STA/LTA curve of the high band and a spectrogram — computed by the
+ * engine's own per-channel chain (server/dsp/channel-chain.ts, which `analyzeWindow` runs) with
+ * the station's profile and the sensitivity the ingest uses, recomputed from the stored samples so
+ * a zoom can return any range at full resolution.
  */
 
 /** A decimated curve: x positions (sample indices) and values. */
@@ -106,8 +105,12 @@ export interface TracesInput {
   channels: StoredTraceChannel[];
   /** The station's stored profile (null: the defaults). */
   profile: unknown;
-  /** The station's channels' flat sensitivities (counts per m/s). */
-  sensitivities: Array<{ location: string; code: string; sensitivity: number | null }>;
+  /**
+   * Per stream id, the flat sensitivity the engine divides by (counts per m/s; from a velocity
+   * sensitivity or a poles-and-zeros response, as the ingest chooses: `channelSensitivity`).
+   * Absent: the channel is shown in counts.
+   */
+  sensitivities: Record<string, number>;
   query: TracesQuery;
 }
 
@@ -125,19 +128,44 @@ export async function loadTracesInput(db: Database, itemId: number, q: TracesQue
   if (!item || (scope !== 'all' && !scope.includes(item.stationId))) throw notFound(`Queue item ${itemId}`);
   const rows = await db.select().from(windowChannels).where(eq(windowChannels.windowId, item.windowId)).orderBy(asc(windowChannels.streamId));
   if (rows.length === 0) throw notFound(`Samples of queue item ${itemId}`);
-  const sensitivities = await db
-    .select({ location: channels.location, code: channels.code, sensitivity: channels.sensitivity })
+  const registered = await db
+    .select({ location: channels.location, code: channels.code, sensitivity: channels.sensitivity, sensitivityInputUnits: channels.sensitivityInputUnits, response: channels.response })
     .from(channels)
     .where(and(eq(channels.stationId, item.stationId)));
   const durationS = windowDurationS(rows);
   const from = q.from ?? 0;
   if (from < 0 || from >= durationS) throw badRequest(`from: ${from} s is outside the window (0 to ${durationS.toFixed(3)} s)`, { issues: [{ path: 'from', message: 'outside the window' }] });
+  const profile = stationProfile(item.profile);
+  const sensitivities: Record<string, number> = {};
+  for (const r of rows) {
+    checkBands(r.streamId, r.sampleRateHz, profile);
+    const [, , loc = '', cha = ''] = r.streamId.split('.');
+    const ch = registered.find((c) => c.location === loc && c.code === cha);
+    const s = ch ? channelSensitivity(ch) : null;
+    if (s !== null) sensitivities[r.streamId] = typeof s === 'number' ? s : s.sensitivity;
+  }
   return {
     channels: rows.map((r) => ({ streamId: r.streamId, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, sampleCount: r.sampleCount, samples: r.samples })),
     profile: item.profile,
     sensitivities,
     query: q,
   };
+}
+
+/**
+ * The engine's band checks for one channel, here on the main thread so a band the station's
+ * profile no longer fits (the profile changed after the window was analysed) is a clear 422, not
+ * an error in a worker.
+ * @throws AppError 422 naming the channel and the band
+ */
+function checkBands(streamId: string, fs: number, profile: ProcessingProfile): void {
+  try {
+    validateBand('low', profile.bands.low, fs, profile.bands.nyquistPolicy);
+    validateBand('high', highBandForRate(profile.bands.high, fs).band, fs, profile.bands.nyquistPolicy);
+  } catch (err) {
+    if (err instanceof BandError) throw unprocessable(`${streamId}: ${err.message}; the station's processing profile does not fit this channel`);
+    throw err;
+  }
 }
 
 /** The window's length, s: from its earliest first sample to the end of its longest channel. */
@@ -178,23 +206,12 @@ export function computeTraces(input: TracesInput): TracesResponse {
   for (const r of rows) {
     const fs = r.sampleRateHz;
     const x = decodeStoredSamples(r.samples, r.sampleCount);
-    const [, , loc = '', cha = ''] = r.streamId.split('.');
-    const s = sens.find((c) => c.location === loc && c.code === cha)?.sensitivity ?? null;
-    const pre = preprocessTrace(x, profile.preprocess.taperAlpha);
-    if (s !== null && s > 0) for (let i = 0; i < pre.length; i++) pre[i] = (pre[i] as number) / s;
-    const low = validateBand('low', profile.bands.low, fs, 'cap');
-    const high = validateBand('high', highBandForRate(profile.bands.high, fs).band, fs, 'cap');
-    const rejected = Float64Array.from(pre);
-    for (const br of profile.bandReject) if (br.fmax < fs / 2) sosfiltInPlace(butterworthSos(br.order, [br.fmin, br.fmax], 'bandstop', fs), rejected);
-    const lowY = Float64Array.from(rejected);
-    sosfiltInPlace(butterworthSos(profile.bands.order, [low.fmin, low.fmax], 'bandpass', fs), lowY);
-    const highY = rejected;
-    const highSos = butterworthSos(profile.bands.order, [high.fmin, high.fmax], 'bandpass', fs);
-    sosfiltInPlace(highSos, highY);
-    // The STA/LTA curve and triggers come from the engine's own trigger chain (the flag's numbers).
-    const chain = triggerChain(x, fs, profile, highSos, (o, e, t, f) => butterworthSos(o, e, t, f), s !== null && s > 0 ? s : 1);
-    const cf = chain.cf;
-    const triggers = chain.triggers.map((t) => ({ on: t.on, off: t.off }));
+    const s = sens[r.streamId] ?? null;
+    // The engine's chain itself: the traces shown are the ones the flag was computed from.
+    const chain = channelChain(x, fs, profile, s ?? 1);
+    const { pre, lowY, highY, low, high } = chain;
+    const cf = chain.trigger.cf;
+    const triggers = chain.trigger.triggers.map((t) => ({ on: t.on, off: t.off }));
     const offsetS = (r.startTimeUs - t0Us) / 1e6;
     const i0 = Math.max(0, Math.floor((from - offsetS) * fs));
     const i1 = Math.min(pre.length, Math.ceil((to - offsetS) * fs));
@@ -219,7 +236,7 @@ export function computeTraces(input: TracesInput): TracesResponse {
       low: bucketExtremes(lowY, raw.index, i0, i1, bucket),
       high: bucketExtremes(highY, raw.index, i0, i1, bucket),
       staLta: bucketMax(cf, raw.index, i0, i1, bucket),
-      units: s !== null && s > 0 ? 'm/s' : 'counts',
+      units: s !== null ? 'm/s' : 'counts',
       bands: { low: [low.fmin, low.fmax], high: [high.fmin, high.fmax] },
       staLtaLevels: { on: sl.on, off: sl.off, method: sl.method },
       triggers: triggers.map((t) => ({ on: t.on + offsetS, off: t.off === null ? null : t.off + offsetS })),

@@ -11,8 +11,6 @@ import { getItemDetail } from './queue-detail';
 import { listQueue } from './queue-query';
 import { itemStationId } from './queue-rows';
 import { loadTracesInput } from './queue-traces';
-import { defaultAnalysisPool } from '@server/jobs/analysis-pool';
-import type { AnalysisPool } from '@server/jobs/analysis-pool';
 import {
   claimItem,
   dismissItem,
@@ -20,20 +18,11 @@ import {
   keepClaimAlive,
   labelItem,
   releaseItem,
-  type EscalationListener,
   type QueueServiceDeps,
 } from './queue-transitions';
 
 /** Params `:id` of the queue item routes: a queue item id. */
 export const idParams = z.object({ id: z.string().regex(/^\d{1,15}$/, 'must be a queue item id (a whole number)').transform(Number) });
-
-/** Options of the queue router. */
-export interface QueueRouterOptions {
-  /** Run after an escalation commits (the supervisor issue adds e-mail and the inbox). */
-  escalationListeners?: readonly EscalationListener[];
-  /** The worker pool that computes display traces (default: the process's analysis pool, made on first use). */
-  pool?: AnalysisPool;
-}
 
 /**
  * The review queue API (issue 6), mounted at /api/queue:
@@ -43,7 +32,7 @@ export interface QueueRouterOptions {
  *   a stale version or a state that does not allow the action answers 409 naming who changed it.
  * Every route needs a session (401) and the action's permission (403).
  */
-export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Router {
+export function queueRouter(ctx: AppContext): Router {
   const router = Router();
   const db = ctx.database.db;
   const deps = (req: Request): QueueServiceDeps => ({ db, notify: () => ctx.hub.notify(), ipAddress: clientAddress(req) });
@@ -77,7 +66,7 @@ export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Rou
     // Read here, computed and serialised in a worker: a window of an hour at 200 sps is tens of
     // megabytes of filtering, which must not hold the event loop (docs/RELIABILITY.md, bench:traces).
     const input = await loadTracesInput(db, id, q, authorizedStations(user, 'queue.view'));
-    const json = await (opts.pool ?? defaultAnalysisPool()).traces(input);
+    const json = await ctx.analysisPool.traces(input);
     res.type('application/json').send(Buffer.from(json.buffer, json.byteOffset, json.byteLength));
   });
 
@@ -127,7 +116,7 @@ export function queueRouter(ctx: AppContext, opts: QueueRouterOptions = {}): Rou
     const body = parseInput(escalateBodySchema, req.body);
     await authorizeOnItem(user, 'queue.escalate', id);
     const onError = (err: unknown) => ctx.logger.error({ err, itemId: id }, 'escalation listener failed');
-    res.json(await escalateItem({ ...deps(req), onError }, person(user), id, body.version, { reason: body.reason }, opts.escalationListeners ?? []));
+    res.json(await escalateItem({ ...deps(req), onError }, person(user), id, body.version, { reason: body.reason }, ctx.escalationListeners));
   });
 
   return router;

@@ -7,6 +7,7 @@ import { windowChannels, windows } from '@server/db/schema/uploads';
 import { windowFeatures } from '@server/db/schema/window-features';
 import { nhnmDb, nlnmDb } from '@server/dsp/noise-models';
 import { stationBaseline } from './station-baseline';
+import { channelResultSchema } from '@shared/schemas/analysis';
 
 /**
  * What the station page's health panel shows: the latest PSD per channel against Peterson's
@@ -14,17 +15,9 @@ import { stationBaseline } from './station-baseline';
  * findings of recent windows, the baseline the score uses, and the recent queue items.
  */
 
-/** The subset of the stored analysis JSON (server/dsp/pipeline.ts AnalysisResult) the page reads. */
-const storedAnalysisSchema = z.object({
-  channels: z.array(
-    z.object({
-      id: z.string(),
-      sampleRate: z.number(),
-      units: z.string(),
-      psd: z.object({ freqs: z.array(z.number()), values: z.array(z.number().nullable()), units: z.string() }),
-      noiseModels: z.object({ accelerationDb: z.array(z.number().nullable()) }).nullable(),
-    }),
-  ),
+/** The fields of the stored analysis (shared/schemas/analysis.ts) the page reads. */
+const healthAnalysisSchema = z.object({
+  channels: z.array(channelResultSchema.pick({ id: true, sampleRate: true, units: true, psd: true, noiseModels: true })),
 });
 
 /** The latest PSD of one channel. */
@@ -86,7 +79,7 @@ export async function stationHealth(db: Database, stationId: number, opts: { day
   const psd: ChannelPsd[] = [];
   const seen = new Set<string>();
   for (const w of recent) {
-    const parsed = storedAnalysisSchema.safeParse(w.analysis);
+    const parsed = healthAnalysisSchema.safeParse(w.analysis);
     if (!parsed.success) continue;
     for (const ch of parsed.data.channels) {
       if (seen.has(ch.id)) continue;

@@ -2,6 +2,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { and, count, desc, eq, inArray, isNull, max, sql } from 'drizzle-orm';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import {
+  channelResponseSchema,
   profileNyquistIssues,
   stationCreateSchema,
   stationUpdateSchema,
@@ -21,6 +22,7 @@ import { users } from '@server/db/schema/users';
 import { windows } from '@server/db/schema/uploads';
 import { AppError, badRequest, conflict, notFound } from '@server/errors';
 import type { IngestPrincipal } from '@server/auth/principal';
+import type { PolesZerosResponse } from '@server/dsp/response';
 
 /**
  * The station registry: stations, channels, processing profiles and per-station ingest tokens.
@@ -356,6 +358,23 @@ export interface RegisteredStation {
   code: string;
   profile: ProcessingProfile;
   channels: Map<string, RegisteredChannel>;
+}
+
+const VELOCITY_UNITS = /^(m\/s|m\/sec|meters?\/s(ec(ond)?)?)$/i;
+
+/**
+ * What the engine divides a channel by: its full poles-and-zeros response when one is stored, else
+ * its flat sensitivity (counts per m/s), else null (the channel is analysed in counts). A
+ * sensitivity whose input units are not velocity (e.g. an accelerometer's M/S**2) is not used,
+ * since the engine's physical units are m/s. The ingest (analysis) and the trace view both ask here.
+ */
+export function channelSensitivity(ch: Pick<RegisteredChannel, 'sensitivity' | 'sensitivityInputUnits' | 'response'>): number | PolesZerosResponse | null {
+  const units = ch.sensitivityInputUnits;
+  const velocity = units === null || units.trim() === '' || VELOCITY_UNITS.test(units.trim());
+  if (!velocity) return null;
+  const paz = channelResponseSchema.safeParse(ch.response);
+  if (paz.success) return paz.data;
+  return ch.sensitivity !== null && ch.sensitivity > 0 ? ch.sensitivity : null;
 }
 
 /** Stations by `NET.STA` key among `keys` (unknown keys are absent from the map). */

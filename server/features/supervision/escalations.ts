@@ -1,4 +1,5 @@
 import { eq, inArray } from 'drizzle-orm';
+import { storedAnalysisSchema } from '@shared/schemas/analysis';
 import type { Escalation } from '@shared/schemas/label';
 import type { QueueRow } from '@shared/schemas/queue';
 import type { Database } from '@server/db/client';
@@ -41,12 +42,14 @@ export function itemLink(publicUrl: string, itemId: number): string {
 
 const htmlEscape = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 
+/** The one field of the stored analysis (shared/schemas/analysis.ts) the e-mail subject needs. */
+const leadChannelSchema = storedAnalysisSchema.pick({ leadChannel: true });
+
 /** The lead stream id of an item's window (from the analysis), else NET.STA of the row. */
 async function leadStream(db: Database, itemId: number, fallback: string): Promise<string> {
   const [row] = await db.select({ analysis: windows.analysis }).from(queueItems).innerJoin(windows, eq(windows.id, queueItems.windowId)).where(eq(queueItems.id, itemId));
-  const a: unknown = row?.analysis;
-  if (typeof a === 'object' && a !== null && 'leadChannel' in a && typeof a.leadChannel === 'string' && a.leadChannel !== '') return a.leadChannel;
-  return fallback;
+  const parsed = leadChannelSchema.safeParse(row?.analysis);
+  return parsed.success && parsed.data.leadChannel !== '' ? parsed.data.leadChannel : fallback;
 }
 
 /**

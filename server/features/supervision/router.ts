@@ -24,7 +24,7 @@ import { authorizedStations, requirePermission } from '@server/policies/authoriz
 import { can } from '@shared/auth/policies';
 import { recordAudit } from '@server/features/audit/audit';
 import { syncEventsFromGroups } from '@server/features/events/event-service';
-import { catchUpArrivals, getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
+import { getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
 import { buildCatalogueCsv } from './catalogue-csv';
 import { listReview, loadCatalogue, reviewNote, setEvaluationStatus } from './catalogue-review';
 import { dashboard } from './dashboard';
@@ -110,7 +110,6 @@ export function supervisorRouter(ctx: AppContext): Router {
   // Review of labelled events.
   router.get('/review', requirePermission('review.evaluate'), async (req, res) => {
     const q = parseInput(reviewQuerySchema, req.query, 'query');
-    await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
     res.json({ items: await listReview(db, q) });
   });
   router.post('/review/items/:id/status', requirePermission('review.evaluate'), async (req, res) => {
@@ -136,7 +135,6 @@ export function supervisorRouter(ctx: AppContext): Router {
   // Candidate events.
   router.get('/candidate-events', requirePermission('queue.view'), async (req, res) => {
     const q = parseInput(candidateQuery, req.query, 'query');
-    await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
     const scope = authorizedStations(currentUser(req), 'queue.view');
     const events = await listCandidateEvents(db, { from: new Date(q.from), to: new Date(q.to) });
     res.json({ events: events.map((e) => inScope(e, scope)).filter((e) => e !== null) });
@@ -194,8 +192,8 @@ export function supervisorRouter(ctx: AppContext): Router {
   router.get('/export', requirePermission('catalogue.export'), async (req, res) => {
     const q = parseInput(exportQuerySchema, req.query, 'query');
     const user = currentUser(req);
-    await catchUpArrivals({ db, notify: () => ctx.hub.notify() });
     // Events are built from the candidate groups before the catalogue lists them (one row per event).
+    // The scheduler's catch-up job builds them too; this keeps an export taken right after an upload whole.
     await syncEventsFromGroups({ db, notify: () => ctx.hub.notify() });
     const period = { from: new Date(q.from), to: new Date(q.to) };
     const events = await loadCatalogue(db, period, q.status);

@@ -14,6 +14,7 @@ import { recordAudit } from '@server/features/audit/audit';
 import { stationBaseline } from '@server/features/stations/station-baseline';
 import type { Evaluation, ThresholdValues } from '@shared/schemas/supervisor';
 import { scoreWindow, type ChannelFeatures, type StationBaseline } from '@server/dsp/score';
+import { bandResultSchema, channelResultSchema, qcFindingSchema, staLtaResultSchema, storedAnalysisSchema } from '@shared/schemas/analysis';
 
 /**
  * Thresholds from labelled history (pure part).
@@ -147,48 +148,26 @@ export function precisionRecallCurve(
   return out;
 }
 
-const channelSchema = z.object({
-  id: z.string(),
-  log10Ratio: z.number().nullable(),
-  ratio: z.number().nullable(),
-  /** ISO time of the first sample (compares onsets across channels; absent in older analyses). */
-  startTime: z.string().optional(),
-  staLta: z.object({
-    peak: z.number(),
-    peakTime: z.number(),
-    triggers: z.array(z.object({ on: z.number(), off: z.number().nullable(), onset: z.number().optional(), peak: z.number().optional() })),
-    main: z.number().nullable().optional(),
-  }),
-  snr: z.number().nullable().optional(),
-  dominantFrequency: z.number().nullable(),
-  spectralCentroid: z.number().nullable(),
-  bands: z.object({ high: z.object({ fmin: z.number(), fmax: z.number() }) }),
-  qc: z.array(z.object({ severity: z.enum(['info', 'warning', 'error']), message: z.string(), code: z.string(), time: z.number().optional() })),
-  /** Where the triggered part rises above the pre-trigger noise (absent in older analyses). */
-  signalSpectrum: z
-    .object({
-      peakFrequency: z.number().nullable(),
-      peakSnr: z.number().nullable(),
-      centroid: z.number().nullable(),
-      inBandSnr: z.number().nullable().optional(),
-      inBandShare: z.number().nullable().optional(),
-      minSnr: z.number(),
-      fromS: z.number(),
-      toS: z.number(),
-      noiseFromS: z.number(),
-      noiseToS: z.number(),
-      nperseg: z.number(),
-    })
-    .nullable()
-    .optional(),
-  signalSpectrumNote: z.string().nullable().optional(),
-});
+/**
+ * The fields of a stored channel (shared/schemas/analysis.ts) the score reads. `startTime` and
+ * `snr` may be missing: older analyses lack the one, the extract of `scoreExtract` the other.
+ */
+const channelSchema = channelResultSchema
+  .pick({ id: true, log10Ratio: true, ratio: true, dominantFrequency: true, spectralCentroid: true, signalSpectrum: true, signalSpectrumNote: true })
+  .extend({
+    startTime: channelResultSchema.shape.startTime.optional(),
+    snr: channelResultSchema.shape.snr.optional(),
+    staLta: staLtaResultSchema.pick({ peak: true, peakTime: true, triggers: true, main: true }),
+    bands: z.object({ high: bandResultSchema.pick({ fmin: true, fmax: true }) }),
+    qc: z.array(qcFindingSchema.pick({ severity: true, message: true, code: true, time: true })),
+  });
 
 /** The parts of a stored analysis (the engine's output contract) the score reads. */
 export const storedScoreInputSchema = z.object({
-  leadChannel: z.string(),
-  zLog10Ratio: z.number().nullable(),
-  zStaLtaPeak: z.number(),
+  leadChannel: storedAnalysisSchema.shape.leadChannel,
+  zLog10Ratio: storedAnalysisSchema.shape.zLog10Ratio,
+  // Without a stored STA/LTA z the rule cannot be replayed: such an analysis counts as unreadable.
+  zStaLtaPeak: storedAnalysisSchema.shape.zStaLtaPeak.unwrap(),
   channels: z.array(channelSchema).min(1),
 });
 

@@ -8,7 +8,6 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { clipInput, MAX_QUOTED_CHARS, quoteInput } from '@shared/quote-input';
 import { createApp } from '@server/app';
-import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import { seedIngestToken, seedPerson, seedStation } from '@tests/faults/support/fixtures';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
@@ -31,20 +30,17 @@ describe('clipInput / quoteInput', () => {
 
 describe('refusals quote at most 80 characters of the bad input (real MariaDB)', () => {
   let ctx: TestContext;
-  let pool: AnalysisPool;
   let app: ReturnType<typeof createApp>;
   let token: string;
   let adminCookie: string;
 
   beforeAll(async () => {
     ctx = await createTestContext();
-    pool = createAnalysisPool({ threads: 1 });
-    app = createApp(ctx, { serveClient: false, uploads: { pool } });
+    app = createApp(ctx, { serveClient: false });
     token = await seedIngestToken(ctx.database.db, await seedStation(ctx.database.db, 'KV01'));
     adminCookie = (await seedPerson(ctx.database.db, { roles: ['admin'] })).cookie;
   });
   afterAll(async () => {
-    await pool.close();
     await ctx.close();
   });
 

@@ -67,7 +67,7 @@ describe('analysis pool (piscina worker threads)', () => {
     const input: TracesInput = {
       channels: [{ streamId: x.id, sampleRateHz: 100, startTimeUs: x.startTimeUs, sampleCount: x.samples.length, samples: encodeSamples(x.samples) }],
       profile: null,
-      sensitivities: [],
+      sensitivities: {},
       query: { points: 2000 },
     };
     const here = computeTraces(input);

@@ -2,6 +2,7 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { z } from 'zod';
 import { candidateEventSchema as sharedCandidateEventSchema, candidateMemberSchema as sharedCandidateMemberSchema, groupLabelResultSchema as sharedGroupLabelResultSchema, type groupLabelBodySchema } from '@shared/schemas/supervisor';
 import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** One member of a candidate event as GET /api/supervisor/candidate-events/:id sends it (shared with the server). */
 export const candidateMemberSchema = sharedCandidateMemberSchema;
@@ -15,12 +16,9 @@ export const candidateEventSchema = sharedCandidateEventSchema;
 /** A candidate event. */
 export type CandidateEvent = z.infer<typeof candidateEventSchema>;
 
-/** Query key of one candidate event (under 'queue', so the live channel's refetches reach it). */
-export const candidateEventKey = (id: number) => ['queue', 'candidate-event', id] as const;
-
 /** Query options of GET /api/supervisor/candidate-events/:id (policy: queue.view). */
 export function candidateEventOptions(id: number) {
-  return queryOptions({ queryKey: candidateEventKey(id), queryFn: ({ signal }) => apiRequest(candidateEventSchema, `/api/supervisor/candidate-events/${id}`, { signal }), staleTime: 30_000 });
+  return queryOptions({ queryKey: queryKeys.queue.candidateEvent(id), queryFn: ({ signal }) => apiRequest(candidateEventSchema, `/api/supervisor/candidate-events/${id}`, { signal }), staleTime: 30_000 });
 }
 
 /** One candidate event, or nothing while `id` is null. */
@@ -46,7 +44,7 @@ export function useLabelGroup() {
   return useMutation({
     mutationFn: ({ eventId, body }: { eventId: number; body: GroupLabelBodyInput }) =>
       apiRequest(groupLabelResultSchema, `/api/supervisor/candidate-events/${eventId}/label`, { method: 'POST', body }),
-    onSettled: () => qc.invalidateQueries({ queryKey: ['queue'] }),
+    onSettled: () => qc.invalidateQueries({ queryKey: queryKeys.queue.all }),
   });
 }
 
@@ -66,7 +64,7 @@ export const reviewNoteSchema = z.object({
 /** An item's review note (null when no supervisor has reviewed or returned it). */
 export function useReviewNote(itemId: number, enabled: boolean) {
   return useQuery({
-    queryKey: ['queue', 'review-note', itemId],
+    queryKey: queryKeys.queue.reviewNote(itemId),
     queryFn: ({ signal }) => apiRequest(reviewNoteSchema, `/api/supervisor/items/${itemId}/review-note`, { signal }),
     enabled,
     staleTime: 30_000,

@@ -2,21 +2,13 @@ import { infiniteQueryOptions, queryOptions, useInfiniteQuery, useQuery, type In
 import { z } from 'zod';
 import { queuePageSchema, type QueuePage, type QueueQuery } from '@shared/schemas/queue';
 import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** The list filters a screen holds (everything of GET /api/queue but the cursor and page size). */
 export type QueueFilters = Omit<Partial<QueueQuery>, 'cursor' | 'limit'> & { sort: QueueQuery['sort'] };
 
 /** Page size of the queue screen's list. */
 export const QUEUE_PAGE_SIZE = 500;
-
-/** Query keys of the queue feature: every key starts with 'queue', so one invalidation reaches all. */
-export const queueKeys = {
-  all: ['queue'] as const,
-  lists: () => ['queue', 'list'] as const,
-  list: (f: QueueFilters) => ['queue', 'list', f] as const,
-  item: (id: number) => ['queue', 'item', id] as const,
-  traces: (id: number, from: number | null, to: number | null, points: number) => ['queue', 'traces', id, from, to, points] as const,
-};
 
 /** The query string of GET /api/queue for `f` (lists comma-separated; empty values left out). */
 export function queueSearch(f: QueueFilters, extra: { cursor?: string; limit?: number } = {}): string {
@@ -46,7 +38,7 @@ export function getQueuePage(f: QueueFilters, cursor: string | undefined, limit 
 /** Query options of the queue list: pages of QUEUE_PAGE_SIZE, fetched on as the analyst scrolls. */
 export function queueListOptions(f: QueueFilters) {
   return infiniteQueryOptions({
-    queryKey: queueKeys.list(f),
+    queryKey: queryKeys.queue.list(f),
     queryFn: ({ pageParam, signal }) => getQueuePage(f, pageParam, QUEUE_PAGE_SIZE, signal),
     initialPageParam: undefined as string | undefined,
     getNextPageParam: (last: QueuePage) => last.nextCursor ?? undefined,
@@ -67,7 +59,7 @@ const meSchema = z.object({ user: z.object({ id: z.string(), displayName: z.stri
 
 /** Who is signed in (GET /api/auth/me): the queue needs the id to know whose claim an item is. */
 export function meOptions() {
-  return queryOptions({ queryKey: ['me'], queryFn: ({ signal }) => apiRequest(meSchema, '/api/auth/me', { signal, allowUnauthenticated: true }), staleTime: 5 * 60_000, retry: false });
+  return queryOptions({ queryKey: queryKeys.queueMe, queryFn: ({ signal }) => apiRequest(meSchema, '/api/auth/me', { signal, allowUnauthenticated: true }), staleTime: 5 * 60_000, retry: false });
 }
 
 /** The signed-in user (id, name, roles), or undefined while loading / signed out. */

@@ -3,6 +3,7 @@ import { queueRowSchema, type QueueRow } from '@shared/schemas/queue';
 import type { EventLabelInput, NoiseReason } from '@shared/schemas/label';
 import { apiRequest, noContent } from '@client/lib/api-client';
 import { patchRow } from './live-patch';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** One analyst action and what it sends. */
 export type ItemActionInput =
@@ -36,7 +37,7 @@ export function useItemAction() {
     mutationFn: postItemAction,
     onSuccess: (row) => applyRow(qc, row),
     onError: (_err, input) => {
-      void qc.invalidateQueries({ queryKey: ['queue', 'item', input.id] });
+      void qc.invalidateQueries({ queryKey: queryKeys.queue.item(input.id) });
     },
   });
 }
@@ -44,5 +45,5 @@ export function useItemAction() {
 /** Applies a row the server returned to the cache (lists and the item detail). */
 export function applyRow(qc: QueryClient, row: QueueRow): void {
   patchRow(qc, row, 'updated');
-  void qc.invalidateQueries({ queryKey: ['queue', 'item', row.id] });
+  void qc.invalidateQueries({ queryKey: queryKeys.queue.item(row.id) });
 }

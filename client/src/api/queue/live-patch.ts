@@ -3,6 +3,7 @@ import { z } from 'zod';
 import type { ChangeMessage } from '@shared/realtime';
 import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '@shared/schemas/queue';
 import { getQueuePage, type QueueFilters, type QueueListData } from './get-queue';
+import { queryKeys } from '@client/lib/query-keys';
 
 /**
  * Feeding live changes into the TanStack Query cache:
@@ -57,7 +58,7 @@ export function scheduleCountRefresh(qc: QueryClient): void {
   if (countTimer) return;
   countTimer = setTimeout(() => {
     countTimer = null;
-    for (const [key] of qc.getQueriesData<QueueListData>({ queryKey: ['queue', 'list'] })) {
+    for (const [key] of qc.getQueriesData<QueueListData>({ queryKey: queryKeys.queue.lists })) {
       const f = filtersOf(key);
       if (!f) continue;
       getQueuePage(f, undefined, 1)
@@ -76,7 +77,7 @@ export function scheduleCountRefresh(qc: QueryClient): void {
  * @param kind 'created' rows are remembered as new arrivals (marked on the queue screen)
  */
 export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['kind']): void {
-  for (const [key, data] of qc.getQueriesData<QueueListData>({ queryKey: ['queue', 'list'] })) {
+  for (const [key, data] of qc.getQueriesData<QueueListData>({ queryKey: queryKeys.queue.lists })) {
     const f = filtersOf(key);
     if (!f || !data) continue;
     let found = false;
@@ -127,7 +128,7 @@ const groupSummarySchema = z.object({ itemIds: z.array(z.number().int()), statio
 export function patchGroup(qc: QueryClient, eventId: number, group: z.infer<typeof groupSummarySchema>): void {
   const members = new Set(group.itemIds);
   const mark = { id: eventId, stationCount: group.stationCount };
-  for (const [key, data] of qc.getQueriesData<QueueListData>({ queryKey: ['queue', 'list'] })) {
+  for (const [key, data] of qc.getQueriesData<QueueListData>({ queryKey: queryKeys.queue.lists })) {
     if (!data) continue;
     let changed = false;
     const pages = data.pages.map((p) => {
@@ -137,7 +138,7 @@ export function patchGroup(qc: QueryClient, eventId: number, group: z.infer<type
     });
     if (changed) qc.setQueryData<QueueListData>(key, { ...data, pages });
   }
-  for (const id of members) if (qc.getQueryData(['queue', 'item', id])) void qc.invalidateQueries({ queryKey: ['queue', 'item', id] });
+  for (const id of members) if (qc.getQueryData(queryKeys.queue.item(id))) void qc.invalidateQueries({ queryKey: queryKeys.queue.item(id) });
 }
 
 /** Applies a batch of live changes to the cache. */
@@ -147,7 +148,7 @@ export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[])
     if (c.resource === 'candidate_event') {
       const g = groupSummarySchema.safeParse(c.summary);
       if (c.kind !== 'deleted' && g.success) patchGroup(qc, c.id, g.data);
-      void qc.invalidateQueries({ queryKey: ['queue', 'candidate-event', c.id] });
+      void qc.invalidateQueries({ queryKey: queryKeys.queue.candidateEvent(c.id) });
       continue;
     }
     if (c.resource !== 'item') continue;
@@ -157,8 +158,8 @@ export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[])
       needLists = true;
       if (c.kind === 'created') liveArrivals.add(c.id);
     }
-    const open = qc.getQueryData<{ version: number }>(['queue', 'item', c.id]);
-    if (open && open.version < c.version) void qc.invalidateQueries({ queryKey: ['queue', 'item', c.id] });
+    const open = qc.getQueryData<{ version: number }>(queryKeys.queue.item(c.id));
+    if (open && open.version < c.version) void qc.invalidateQueries({ queryKey: queryKeys.queue.item(c.id) });
   }
   if (needLists) scheduleListRefetch(qc);
   scheduleCountRefresh(qc);
@@ -171,11 +172,11 @@ function scheduleListRefetch(qc: QueryClient): void {
   if (listTimer) return;
   listTimer = setTimeout(() => {
     listTimer = null;
-    void qc.invalidateQueries({ queryKey: ['queue', 'list'] });
+    void qc.invalidateQueries({ queryKey: queryKeys.queue.lists });
   }, 500);
 }
 
 /** The server could not replay what was missed: every queue query is refetched. */
 export function refetchAll(qc: QueryClient): void {
-  void qc.invalidateQueries({ queryKey: ['queue'] });
+  void qc.invalidateQueries({ queryKey: queryKeys.queue.all });
 }

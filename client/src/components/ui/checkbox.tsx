@@ -1,5 +1,6 @@
 import { useId, type ComponentPropsWithRef, type ReactNode } from 'react';
 import { cx } from '@client/lib/cx';
+import { FieldHint } from './form-field';
 
 /** Props of <Checkbox>: every native checkbox prop plus its label and an optional hint. */
 export type CheckboxProps = Omit<ComponentPropsWithRef<'input'>, 'type'> & {
@@ -28,11 +29,7 @@ export function Checkbox({ label, hint, className, id, ...rest }: CheckboxProps)
         <label htmlFor={inputId} className="text-base text-ink">
           {label}
         </label>
-        {hint ? (
-          <p id={hintId} className="text-sm text-ink-muted">
-            {hint}
-          </p>
-        ) : null}
+        <FieldHint id={hintId} hint={hint} />
       </div>
     </div>
   );

@@ -37,11 +37,7 @@ export function FormField({ label, error, hint, optional, className, children }:
         {label}
         {optional ? <span className="ml-1 font-normal text-ink-muted">(optional)</span> : null}
       </label>
-      {hint ? (
-        <p id={hintId} className="text-sm text-ink-muted">
-          {hint}
-        </p>
-      ) : null}
+      <FieldHint id={hintId} hint={hint} />
       {children({ id, 'aria-describedby': describedBy, 'aria-invalid': error ? true : undefined })}
       {error ? (
         <p id={errorId} className="flex items-center gap-1 text-sm text-danger">
@@ -51,4 +47,13 @@ export function FormField({ label, error, hint, optional, className, children }:
       ) : null}
     </div>
   );
+}
+
+/** A field's help text under its label (nothing without a hint); `id` is what the control's aria-describedby names. */
+export function FieldHint({ id, hint }: { id: string | undefined; hint: ReactNode }) {
+  return hint ? (
+    <p id={id} className="text-sm text-ink-muted">
+      {hint}
+    </p>
+  ) : null;
 }

@@ -82,3 +82,12 @@ export function Th({ figure, className, scope = 'col', ...rest }: CellProps<'th'
 export function Td({ figure, className, ...rest }: CellProps<'td'>) {
   return <td className={cx('px-2 py-0.5 align-middle', figure && 'text-right font-mono tabular text-sm', className)} {...rest} />;
 }
+
+/** The header of a column of row actions (buttons): named for screen readers, blank on screen. */
+export function ThActions() {
+  return (
+    <Th>
+      <span className="sr-only">Actions</span>
+    </Th>
+  );
+}

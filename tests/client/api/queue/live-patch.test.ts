@@ -1,7 +1,8 @@
 import { QueryClient } from '@tanstack/react-query';
 import { describe, expect, it } from 'vitest';
 import type { QueuePage, QueueRow } from '@shared/schemas/queue';
-import { queueKeys, type QueueFilters, type QueueListData } from '@client/api/queue/get-queue';
+import type { QueueFilters, QueueListData } from '@client/api/queue/get-queue';
+import { queryKeys } from '@client/lib/query-keys';
 import { applyChanges, liveArrivals, patchRow } from '@client/api/queue/live-patch';
 
 const row = (id: number, score: number, over: Partial<QueueRow> = {}): QueueRow => ({
@@ -29,13 +30,13 @@ const page = (items: QueueRow[], nextCursor: string | null): QueuePage => ({
   counts: { new: items.length, 'in review': 0, labelled: 0, dismissed: 0, escalated: 0, confirmed: 0, returned: 0 },
   total: items.length,
 });
-const ids = (qc: QueryClient, f: QueueFilters) => qc.getQueryData<QueueListData>(queueKeys.list(f))?.pages.flatMap((p) => p.items.map((r) => r.id));
+const ids = (qc: QueryClient, f: QueueFilters) => qc.getQueryData<QueueListData>(queryKeys.queue.list(f))?.pages.flatMap((p) => p.items.map((r) => r.id));
 
 describe('live changes into the query cache', () => {
   const f: QueueFilters = { sort: 'score', state: ['new', 'in review'] };
   const seed = (next: string | null) => {
     const qc = new QueryClient();
-    qc.setQueryData<QueueListData>(queueKeys.list(f), { pages: [page([row(1, 9), row(2, 7)], 'c1'), page([row(3, 5), row(4, 3)], next)], pageParams: [undefined, 'c1'] });
+    qc.setQueryData<QueueListData>(queryKeys.queue.list(f), { pages: [page([row(1, 9), row(2, 7)], 'c1'), page([row(3, 5), row(4, 3)], next)], pageParams: [undefined, 'c1'] });
     return qc;
   };
 
@@ -59,17 +60,17 @@ describe('live changes into the query cache', () => {
     const qc = seed(null);
     patchRow(qc, row(2, 7, { state: 'in review', version: 2, claimedBy: { id: 'u1', displayName: 'Ana' } }), 'updated');
     patchRow(qc, row(2, 7, { version: 1 }), 'updated');
-    const data = qc.getQueryData<QueueListData>(queueKeys.list(f));
+    const data = qc.getQueryData<QueueListData>(queryKeys.queue.list(f));
     expect(data?.pages[0]?.items[1]).toMatchObject({ id: 2, state: 'in review', version: 2, claimedBy: { displayName: 'Ana' } });
     expect(ids(qc, f)).toEqual([1, 2, 3, 4]);
   });
 
   it('applyChanges patches from summaries and marks an open item stale when its version moves on', async () => {
     const qc = seed(null);
-    qc.setQueryData(queueKeys.item(3), { version: 1 });
+    qc.setQueryData(queryKeys.queue.item(3), { version: 1 });
     applyChanges(qc, [{ seq: 5, resource: 'item', id: 3, kind: 'updated', version: 2, summary: row(3, 5, { version: 2, state: 'in review' }), at: '2026-03-14T09:00:00.000Z' }]);
-    expect(qc.getQueryState(queueKeys.item(3))?.isInvalidated).toBe(true);
-    expect(qc.getQueryData<QueueListData>(queueKeys.list(f))?.pages[1]?.items[0]?.state).toBe('in review');
+    expect(qc.getQueryState(queryKeys.queue.item(3))?.isInvalidated).toBe(true);
+    expect(qc.getQueryData<QueueListData>(queryKeys.queue.list(f))?.pages[1]?.items[0]?.state).toBe('in review');
   });
 
   it('a candidate_event change marks its members in place, order kept, without a version step', () => {
@@ -77,7 +78,7 @@ describe('live changes into the query cache', () => {
     applyChanges(qc, [
       { seq: 9, resource: 'candidate_event', id: 12, kind: 'created', version: 1, summary: { anchorItemId: 2, itemIds: [2, 4], stationCount: 2, firstArrival: '2026-03-14T09:00:20.000Z' }, at: '2026-03-14T09:00:30.000Z' },
     ]);
-    const rows = qc.getQueryData<QueueListData>(queueKeys.list(f))?.pages.flatMap((p) => p.items) ?? [];
+    const rows = qc.getQueryData<QueueListData>(queryKeys.queue.list(f))?.pages.flatMap((p) => p.items) ?? [];
     expect(rows.map((r) => r.id)).toEqual([1, 2, 3, 4]);
     expect(rows.map((r) => r.candidateEvent?.id ?? null)).toEqual([null, 12, null, 12]);
     expect(rows.find((r) => r.id === 4)?.candidateEvent?.stationCount).toBe(2);

@@ -16,7 +16,6 @@ import { itemArrivals } from '@server/db/schema/supervisor';
 import { uploads, windowChannels, windows } from '@server/db/schema/uploads';
 import { windowFeatures } from '@server/db/schema/window-features';
 import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
-import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import { bytesToSamples } from '@server/features/ingest/ingest-upload';
 import { createStation, TOKEN_LAST_USED_RESOLUTION_MS, upsertChannel, type Actor } from '@server/features/stations/station-registry';
 import { createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
@@ -52,7 +51,6 @@ function wave(n: number, seed: number): Int32Array {
 describe('POST /api/uploads (real MariaDB, worker pool)', () => {
   let ctx: TestContext;
   let app: Express;
-  let pool: AnalysisPool;
   let kv01: number;
   let kv02: number;
   let kv03: number;
@@ -81,8 +79,7 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
 
   beforeAll(async () => {
     ctx = await createTestContext();
-    pool = createAnalysisPool({ threads: 1 });
-    app = createApp(ctx, { serveClient: false, uploads: { pool } });
+    app = createApp(ctx, { serveClient: false });
     const db = ctx.database.db;
     const base = { latitude: 46.3, longitude: 11.05, elevationM: 900 };
     kv01 = await createStation(db, { network: 'XX', code: 'KV01', name: 'Kestrel Valley north ridge', ...base }, system);
@@ -95,7 +92,6 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     analyst = await createPerson(db, { roles: ['analyst'] });
   });
   afterAll(async () => {
-    await pool.close();
     await ctx.close();
   });
 
@@ -317,7 +313,7 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     const small = await createTestContext({ SEISIFT_MAX_UPLOAD_BYTES: '4096', SEISIFT_MAX_UPLOAD_FILES: '2' });
     try {
       const p2 = await createPerson(small.database.db, { roles: ['operator'] });
-      const a = createApp(small, { serveClient: false, uploads: { pool } });
+      const a = createApp(small, { serveClient: false });
       const big = await post(p2, a).attach('files', readFileSync(fixture('steim2-be-8192.mseed')), 'big.mseed');
       expect(big.status).toBe(413);
       expect(big.body.error.message).toContain('limit of');
@@ -336,7 +332,6 @@ describe('POST /api/uploads (real MariaDB, worker pool)', () => {
     const failing = createApp(ctx, {
       serveClient: false,
       uploads: {
-        pool,
         beforeCommit: async () => {
           throw new Error('injected failure before commit');
         },

@@ -5,11 +5,10 @@
  * (SEISIFT_MAX_WINDOW_SAMPLES, SEISIFT_MAX_WINDOW_S) move the limit, for CSV as for MiniSEED.
  */
 import request from 'supertest';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { uploadResponseSchema } from '@shared/schemas/upload';
 import { createApp } from '@server/app';
 import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
-import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import { ingestRowCounts, seedIngestToken, seedStation } from '@tests/faults/support/fixtures';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
 
@@ -26,20 +25,15 @@ const mseed = (n: number, fs: number, seed: number, startUs = T0) =>
   Buffer.from(encodeMiniSeed3({ network: 'XX', station: 'KV01', location: '00', channel: 'HHZ', sampleRateHz: fs, startTimeUs: startUs, samples: noise(n, seed) }, { encoding: 'int32' }));
 
 describe('per-window limits on upload (real MariaDB, worker pool)', () => {
-  let pool: AnalysisPool;
   const contexts: TestContext[] = [];
-  beforeAll(() => {
-    pool = createAnalysisPool({ threads: 1 });
-  });
   afterAll(async () => {
-    await pool.close();
     for (const c of contexts) await c.close();
   });
   async function setUp(env: Record<string, string> = {}) {
     const ctx = await createTestContext(env);
     contexts.push(ctx);
     const token = await seedIngestToken(ctx.database.db, await seedStation(ctx.database.db, 'KV01', 200));
-    const app = createApp(ctx, { serveClient: false, uploads: { pool } });
+    const app = createApp(ctx, { serveClient: false });
     const post = (bytes: Buffer, name: string, fields: Record<string, string> = {}) => {
       let r = request(app).post('/api/uploads').set('Authorization', `Bearer ${token}`);
       for (const [k, v] of Object.entries(fields)) r = r.field(k, v);

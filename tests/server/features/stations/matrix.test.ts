@@ -5,7 +5,6 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { createApp } from '@server/app';
 import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
-import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import { createStation, createToken, upsertChannel, type Actor } from '@server/features/stations/station-registry';
 import { createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
@@ -24,7 +23,6 @@ const xml = readFileSync(new URL('../../../fixtures/stationxml/xx-kestrel-valley
 describe('role × route matrix: stations, tokens, import, uploads, OpenAPI', () => {
   let ctx: TestContext;
   let app: Express;
-  let pool: AnalysisPool;
   let stationId = 0;
   const people = {} as Record<Exclude<Who, 'anonymous'>, TestPerson>;
   let n = 0;
@@ -32,8 +30,7 @@ describe('role × route matrix: stations, tokens, import, uploads, OpenAPI', () 
 
   beforeAll(async () => {
     ctx = await createTestContext();
-    pool = createAnalysisPool({ threads: 1 });
-    app = createApp(ctx, { serveClient: false, uploads: { pool } });
+    app = createApp(ctx, { serveClient: false });
     const db = ctx.database.db;
     stationId = await createStation(db, { network: 'XX', code: 'KV03', name: 'Kestrel Valley highway bridge', latitude: 46.25, longitude: 11.06, elevationM: 540 }, system);
     await upsertChannel(db, stationId, { location: '00', code: 'HHZ', sampleRateHz: 100 }, system);
@@ -48,7 +45,6 @@ describe('role × route matrix: stations, tokens, import, uploads, OpenAPI', () 
     await applyStationXml(db, xml, preview.previewHash, { roles: ['admin'], stationIds: [], isOperator: false }, system);
   });
   afterAll(async () => {
-    await pool.close();
     await ctx.close();
   });
 

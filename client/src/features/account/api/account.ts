@@ -2,13 +2,11 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { z } from 'zod';
 import { sessionRowSchema } from '@shared/auth/schemas';
 import { apiRequest, noContent } from '@client/lib/api-client';
-
-/** Query key of your own sessions. */
-export const sessionsKey = ['account', 'sessions'] as const;
+import { queryKeys } from '@client/lib/query-keys';
 
 /** GET /api/account/sessions */
 export const sessionsQueryOptions = () =>
-  queryOptions({ queryKey: sessionsKey, queryFn: () => apiRequest(z.object({ sessions: z.array(sessionRowSchema) }), '/api/account/sessions').then((r) => r.sessions) });
+  queryOptions({ queryKey: queryKeys.account.sessions, queryFn: () => apiRequest(z.object({ sessions: z.array(sessionRowSchema) }), '/api/account/sessions').then((r) => r.sessions) });
 
 /** Your sessions, newest first. */
 export function useSessions() {
@@ -20,7 +18,7 @@ export function useEndSessions() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (which: { id: string } | 'others') => apiRequest(noContent, which === 'others' ? '/api/account/sessions' : `/api/account/sessions/${which.id}`, { method: 'DELETE' }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: sessionsKey }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.account.sessions }),
   });
 }
 
@@ -29,6 +27,6 @@ export function useChangePassword() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: { currentPassword: string; newPassword: string }) => apiRequest(noContent, '/api/account/password', { method: 'PUT', body: input }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: sessionsKey }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.account.sessions }),
   });
 }

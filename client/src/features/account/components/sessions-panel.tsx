@@ -2,7 +2,7 @@ import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { EmptyState } from '@client/components/ui/empty-state';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
 import { useToast } from '@client/components/ui/toast';
 import { useEndSessions, useSessions } from '@client/features/account/api/account';
 
@@ -43,9 +43,7 @@ export function SessionsPanel() {
                 <Th>Address</Th>
                 <Th figure>Started</Th>
                 <Th figure>Lapses if idle until</Th>
-                <Th>
-                  <span className="sr-only">Actions</span>
-                </Th>
+                <ThActions />
               </Tr>
             </THead>
             <TBody>

@@ -3,24 +3,16 @@ import { z } from 'zod';
 import type { Role } from '@shared/auth/roles';
 import { adminUserSchema, invitationRowSchema, mailMessageSchema, mailSummarySchema, stationOptionSchema } from '@shared/auth/schemas';
 import { apiRequest, noContent } from '@client/lib/api-client';
-
-/** Query keys of the admin screens. */
-export const adminKeys = {
-  users: ['admin', 'users'] as const,
-  invitations: ['admin', 'invitations'] as const,
-  stations: ['admin', 'stations'] as const,
-  mailbox: (offset: number) => ['admin', 'mailbox', offset] as const,
-  message: (id: number) => ['admin', 'mailbox', 'message', id] as const,
-};
+import { queryKeys } from '@client/lib/query-keys';
 
 /** GET /api/admin/users */
-export const usersQueryOptions = () => queryOptions({ queryKey: adminKeys.users, queryFn: () => apiRequest(z.object({ users: z.array(adminUserSchema) }), '/api/admin/users').then((r) => r.users) });
+export const usersQueryOptions = () => queryOptions({ queryKey: queryKeys.admin.users, queryFn: () => apiRequest(z.object({ users: z.array(adminUserSchema) }), '/api/admin/users').then((r) => r.users) });
 /** GET /api/admin/invitations */
 export const invitationsQueryOptions = () =>
-  queryOptions({ queryKey: adminKeys.invitations, queryFn: () => apiRequest(z.object({ invitations: z.array(invitationRowSchema) }), '/api/admin/invitations').then((r) => r.invitations) });
+  queryOptions({ queryKey: queryKeys.admin.invitations, queryFn: () => apiRequest(z.object({ invitations: z.array(invitationRowSchema) }), '/api/admin/invitations').then((r) => r.invitations) });
 /** GET /api/admin/stations */
 export const stationOptionsQueryOptions = () =>
-  queryOptions({ queryKey: adminKeys.stations, queryFn: () => apiRequest(z.object({ stations: z.array(stationOptionSchema) }), '/api/admin/stations').then((r) => r.stations), staleTime: 300_000 });
+  queryOptions({ queryKey: queryKeys.admin.stations, queryFn: () => apiRequest(z.object({ stations: z.array(stationOptionSchema) }), '/api/admin/stations').then((r) => r.stations), staleTime: 300_000 });
 
 /** Every user. */
 export const useUsers = () => useQuery(usersQueryOptions());
@@ -37,7 +29,7 @@ export function useInvite() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (input: InviteInput) => apiRequest(z.object({ invitation: invitationRowSchema }), '/api/admin/invitations', { method: 'POST', body: input }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['admin'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.admin.all }),
   });
 }
 
@@ -46,7 +38,7 @@ export function useRevokeInvitation() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (id: number) => apiRequest(noContent, `/api/admin/invitations/${id}`, { method: 'DELETE' }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: adminKeys.invitations }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.admin.invitations }),
   });
 }
 
@@ -59,7 +51,7 @@ export function useSetAccess() {
       if (input.roles) await apiRequest(noContent, `/api/admin/users/${id}/roles`, { method: 'PUT', body: { roles: input.roles } });
       if (input.stationIds) await apiRequest(noContent, `/api/admin/users/${id}/stations`, { method: 'PUT', body: { stationIds: input.stationIds } });
     },
-    onSuccess: () => qc.invalidateQueries({ queryKey: adminKeys.users }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.admin.users }),
   });
 }
 
@@ -69,7 +61,7 @@ export function useSetActive() {
   return useMutation({
     mutationFn: (input: { userId: string; active: boolean }) =>
       apiRequest(noContent, `/api/admin/users/${encodeURIComponent(input.userId)}/${input.active ? 'reactivate' : 'deactivate'}`, { method: 'POST' }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: adminKeys.users }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.admin.users }),
   });
 }
 
@@ -79,7 +71,7 @@ export const mailboxPageSize = 25;
 /** GET /api/admin/mailbox?offset= */
 export function useMailbox(offset: number) {
   return useQuery({
-    queryKey: adminKeys.mailbox(offset),
+    queryKey: queryKeys.admin.mailbox(offset),
     queryFn: () => apiRequest(z.object({ messages: z.array(mailSummarySchema), total: z.number() }), '/api/admin/mailbox', { query: { limit: mailboxPageSize, offset } }),
     refetchInterval: 10_000,
   });
@@ -88,7 +80,7 @@ export function useMailbox(offset: number) {
 /** GET /api/admin/mailbox/:id */
 export function useMailMessage(id: number | null) {
   return useQuery({
-    queryKey: adminKeys.message(id ?? 0),
+    queryKey: queryKeys.admin.message(id ?? 0),
     enabled: id !== null,
     queryFn: () => apiRequest(z.object({ message: mailMessageSchema }), `/api/admin/mailbox/${id ?? 0}`).then((r) => r.message),
   });

@@ -3,7 +3,7 @@ import type { InvitationRow, StationOption } from '@shared/auth/schemas';
 import { Badge, type BadgeTone } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { EmptyState } from '@client/components/ui/empty-state';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
 
 const statusTone: Record<InvitationRow['status'], BadgeTone> = { pending: 'info', accepted: 'ok', expired: 'warn', revoked: 'neutral' };
 
@@ -23,9 +23,7 @@ export function InvitationsList({ invitations, stations, onRevoke, busy }: { inv
             <Th>Status</Th>
             <Th figure>Sent</Th>
             <Th figure>Link works until</Th>
-            <Th>
-              <span className="sr-only">Actions</span>
-            </Th>
+            <ThActions />
           </Tr>
         </THead>
         <TBody>

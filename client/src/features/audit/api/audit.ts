@@ -2,6 +2,7 @@ import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { auditRowSchema } from '@shared/auth/schemas';
 import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** Filters of the audit page; empty strings mean "any". */
 /** The audit page's filters; `from` and `to` are ISO 8601 UTC times (both ends included) or ''. */
@@ -15,7 +16,7 @@ const pageSchema = z.object({ rows: z.array(auditRowSchema), total: z.number(), 
 /** GET /api/audit with filters and an offset; the previous page stays shown while the next loads. */
 export function useAuditPage(filters: AuditFilters, offset: number) {
   return useQuery({
-    queryKey: ['audit', filters, offset],
+    queryKey: queryKeys.audit.list(filters, offset),
     placeholderData: keepPreviousData,
     queryFn: () =>
       apiRequest(pageSchema, '/api/audit', {

@@ -3,9 +3,7 @@ import { z } from 'zod';
 import { roleSchema } from '@shared/auth/roles';
 import { meSchema, type Me } from '@shared/auth/schemas';
 import { ApiError, apiRequest, noContent } from '@client/lib/api-client';
-
-/** Query key of the signed-in user. */
-export const meKey = ['auth', 'me'] as const;
+import { queryKeys } from '@client/lib/query-keys';
 
 /**
  * GET /api/auth/session: the signed-in user, or null when nobody is or the server cannot say (no
@@ -21,7 +19,7 @@ export async function fetchMe(): Promise<Me | null> {
 }
 
 /** Query options of the signed-in user (refetched on focus so a session ended elsewhere shows). */
-export const meQueryOptions = () => queryOptions({ queryKey: meKey, queryFn: fetchMe, staleTime: 60_000, refetchOnWindowFocus: true, retry: false });
+export const meQueryOptions = () => queryOptions({ queryKey: queryKeys.session, queryFn: fetchMe, staleTime: 60_000, refetchOnWindowFocus: true, retry: false });
 
 /** The signed-in user (undefined while loading, null when signed out). */
 export function useMe() {
@@ -33,8 +31,8 @@ export function useMe() {
  * query itself (whose observer must stay attached), then stores the new session.
  */
 async function switchPerson(qc: ReturnType<typeof useQueryClient>, me: Me | null | 'refetch'): Promise<void> {
-  qc.removeQueries({ predicate: (q) => q.queryKey[0] !== meKey[0] || q.queryKey[1] !== meKey[1] });
-  qc.setQueryData(meKey, me === 'refetch' ? await fetchMe() : me);
+  qc.removeQueries({ predicate: (q) => q.queryKey[0] !== queryKeys.session[0] || q.queryKey[1] !== queryKeys.session[1] });
+  qc.setQueryData(queryKeys.session, me === 'refetch' ? await fetchMe() : me);
 }
 
 /** POST /api/auth/sign-in; on success the session query is refetched. */
@@ -70,7 +68,7 @@ export const invitationCheckSchema = z.object({ email: z.string(), displayName: 
 /** POST /api/auth/reset-password/check or /api/auth/invitations/check for a fragment token. */
 export function useTokenCheck<S extends z.ZodType>(kind: 'reset' | 'invitation', schema: S, token: string | null) {
   return useQuery({
-    queryKey: ['auth', 'token-check', kind, token],
+    queryKey: queryKeys.tokenCheck(kind, token),
     enabled: token !== null,
     retry: false,
     staleTime: Infinity,

@@ -4,7 +4,8 @@ import type { Me } from '@shared/auth/schemas';
 import { setUnauthenticatedHandler } from '@client/lib/api-client';
 import { SessionProvider } from '@client/lib/session-context';
 import { Loading } from '@client/components/ui/skeleton';
-import { meKey, useMe } from '@client/features/auth/api/session';
+import { useMe } from '@client/features/auth/api/session';
+import { queryKeys } from '@client/lib/query-keys';
 
 const MeContext = createContext<Me | null>(null);
 
@@ -23,7 +24,7 @@ export function AuthSessionProvider({ children }: { children: ReactNode }) {
   const qc = useQueryClient();
   useEffect(() => {
     setUnauthenticatedHandler(() => {
-      qc.setQueryData(meKey, null);
+      qc.setQueryData(queryKeys.session, null);
       const here = `${window.location.pathname}${window.location.search}`;
       if (window.location.pathname !== '/sign-in') window.location.assign(`/sign-in?next=${encodeURIComponent(here)}`);
     });

@@ -4,6 +4,7 @@ import type { TracesResponse } from '@shared/schemas/queue';
 import { PlotFrame } from '@client/components/ui/plot-frame';
 import { colormapGradient, colormapTable } from '@client/features/review/lib/colormap';
 import { spectrogramExtent } from '@client/features/review/lib/spectrogram-geometry';
+import { selectToZoom } from '@client/features/review/lib/select-zoom';
 import { traceYAxisSizePx } from '@client/features/review/components/trace-panel';
 
 type Sg = NonNullable<TracesResponse['channels'][number]['spectrogram']>;
@@ -97,14 +98,7 @@ export function SpectrogramPanel({ sg, streamId, units, times, syncKey, onZoom }
           },
         ],
         setSelect: [
-          (u: uPlot) => {
-            if (u.select.width > 4) {
-              const from = u.posToVal(u.select.left, 'x');
-              const to = u.posToVal(u.select.left + u.select.width, 'x');
-              u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
-              onZoom(Math.max(0, from), to);
-            }
-          },
+          selectToZoom(onZoom),
         ],
       },
     }),

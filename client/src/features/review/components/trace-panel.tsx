@@ -4,6 +4,7 @@ import { sortChannels } from '@shared/channel-order';
 import type { TracesResponse } from '@shared/schemas/queue';
 import { PlotFrame } from '@client/components/ui/plot-frame';
 import { formatSi, niceTicks, siPrefixFor, siTickLabels, symmetricRange } from '@client/features/review/lib/amplitude';
+import { selectToZoom } from '@client/features/review/lib/select-zoom';
 
 type ChannelTraces = TracesResponse['channels'][number];
 
@@ -220,14 +221,7 @@ function ChannelPlots({ c, windowStartMs, picks, onZoom, onPick, onCursor, syncK
       hooks: {
         ...o.hooks,
         setSelect: [
-          (u: uPlot) => {
-            if (u.select.width > 4) {
-              const from = u.posToVal(u.select.left, 'x');
-              const to = u.posToVal(u.select.left + u.select.width, 'x');
-              u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
-              onZoom(Math.max(0, from), to);
-            }
-          },
+          selectToZoom(onZoom),
         ],
         draw: [
           (u: uPlot) => {

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
-import { apiErrorBodySchema } from '@shared/api-error';
-import { StationApiError } from './stations';
+import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 const diffSchema = z.object({ field: z.string(), from: z.unknown(), to: z.unknown() });
 
@@ -29,13 +29,7 @@ async function send(path: string, file: File, previewHash?: string): Promise<Imp
   const form = new FormData();
   if (previewHash) form.append('previewHash', previewHash);
   form.append('file', file, file.name);
-  const res = await fetch(path, { method: 'POST', body: form, credentials: 'same-origin', headers: { Accept: 'application/json' } });
-  const json: unknown = await res.json().catch(() => null);
-  if (!res.ok) {
-    const err = apiErrorBodySchema.safeParse(json);
-    throw new StationApiError(res.status, err.success ? err.data.error.code : 'http_error', err.success ? err.data.error.message : `The server answered ${res.status}`, []);
-  }
-  return importPreviewSchema.parse(json);
+  return apiRequest(importPreviewSchema, path, { method: 'POST', body: form });
 }
 
 /** POST /api/stations/import/preview: what the document would change (nothing is written). */
@@ -46,6 +40,6 @@ export function useApplyStationXml() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ file, previewHash }: { file: File; previewHash: string }) => send('/api/stations/import/apply', file, previewHash),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations'] }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.all }),
   });
 }

@@ -6,7 +6,9 @@ import { channelInputSchema, type ChannelInput } from '@shared/schemas/station';
 import { Button } from '@client/components/ui/button';
 import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
-import { StationApiError, stationDetailClientSchema, stationFetch } from '@client/features/stations/api/stations';
+import { stationDetailClientSchema } from '@client/features/stations/api/stations';
+import { ApiError, apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 type Output = z.output<typeof channelInputSchema>;
 const num = { valueAsNumber: true } as const;
@@ -19,8 +21,8 @@ export function ChannelForm({ stationId }: { stationId: number }) {
   const { register, handleSubmit, formState, setError, reset } = form;
   const qc = useQueryClient();
   const save = useMutation({
-    mutationFn: (body: Output) => stationFetch(z.object({ station: stationDetailClientSchema }), `/api/stations/${stationId}/channels`, { method: 'POST', body }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations'] }),
+    mutationFn: (body: Output) => apiRequest(z.object({ station: stationDetailClientSchema }), `/api/stations/${stationId}/channels`, { method: 'POST', body }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.all }),
   });
   const e = formState.errors;
   const onSubmit = handleSubmit(async (value) => {
@@ -28,7 +30,7 @@ export function ChannelForm({ stationId }: { stationId: number }) {
       await save.mutateAsync(value);
       reset();
     } catch (err) {
-      if (err instanceof StationApiError && err.issues.length) {
+      if (err instanceof ApiError && err.issues.length) {
         for (const i of err.issues) setError(i.path as FieldPath<ChannelInput>, { type: 'server', message: i.message });
       } else setError('root', { message: err instanceof Error ? err.message : String(err) });
     }
@@ -73,7 +75,7 @@ export function ChannelForm({ stationId }: { stationId: number }) {
 export function useDeleteChannel(stationId: number) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (channelId: number) => stationFetch(z.null(), `/api/stations/${stationId}/channels/${channelId}`, { method: 'DELETE' }),
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['stations'] }),
+    mutationFn: (channelId: number) => apiRequest(z.null(), `/api/stations/${stationId}/channels/${channelId}`, { method: 'DELETE' }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: queryKeys.stations.all }),
   });
 }

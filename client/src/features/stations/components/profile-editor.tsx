@@ -9,7 +9,8 @@ import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
 import { Select } from '@client/components/ui/select';
 import { useToast } from '@client/components/ui/toast';
-import { StationApiError, useSaveProfile } from '@client/features/stations/api/stations';
+import { useSaveProfile } from '@client/features/stations/api/stations';
+import { ApiError } from '@client/lib/api-client';
 
 type ProfileInput = z.input<typeof processingProfileSchema>;
 
@@ -46,7 +47,7 @@ export function ProfileEditor({ stationId, profile, channels, canEdit }: { stati
       await save.mutateAsync(value);
       toast.notify({ tone: 'ok', title: 'Profile saved', body: 'New uploads are analysed with it.' });
     } catch (err) {
-      if (err instanceof StationApiError && err.issues.length > 0) {
+      if (err instanceof ApiError && err.issues.length > 0) {
         for (const issue of err.issues) {
           const path = issue.path.replace(/^profile\./, '') as FieldPath<ProfileInput>;
           setError(path, { type: 'server', message: issue.message });

@@ -8,7 +8,9 @@ import { Button } from '@client/components/ui/button';
 import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
 import { paths } from '@client/config/paths';
-import { StationApiError, stationDetailClientSchema, stationFetch } from '@client/features/stations/api/stations';
+import { stationDetailClientSchema } from '@client/features/stations/api/stations';
+import { ApiError, apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 type Output = z.output<typeof stationCreateSchema>;
 const num = { valueAsNumber: true } as const;
@@ -20,9 +22,9 @@ export function StationCreateForm({ onCancel }: { onCancel: () => void }) {
   const qc = useQueryClient();
   const navigate = useNavigate();
   const create = useMutation({
-    mutationFn: (body: Output) => stationFetch(z.object({ station: stationDetailClientSchema }), '/api/stations', { method: 'POST', body }),
+    mutationFn: (body: Output) => apiRequest(z.object({ station: stationDetailClientSchema }), '/api/stations', { method: 'POST', body }),
     onSuccess: async (res) => {
-      await qc.invalidateQueries({ queryKey: ['stations'] });
+      await qc.invalidateQueries({ queryKey: queryKeys.stations.all });
       await navigate(`${paths.station.href}/${res.station.id}`);
     },
   });
@@ -31,7 +33,7 @@ export function StationCreateForm({ onCancel }: { onCancel: () => void }) {
     try {
       await create.mutateAsync(value);
     } catch (err) {
-      if (err instanceof StationApiError) {
+      if (err instanceof ApiError) {
         const issues = err.issues.length ? err.issues : [{ path: err.code === 'conflict' ? 'code' : 'root', message: err.message }];
         for (const i of issues) setError(i.path as FieldPath<StationCreateInput>, { type: 'server', message: i.message });
       } else setError('root', { message: err instanceof Error ? err.message : String(err) });

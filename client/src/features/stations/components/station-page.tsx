@@ -2,7 +2,7 @@ import { Link } from 'react-router';
 import { sortChannels } from '@shared/channel-order';
 import { EmptyState } from '@client/components/ui/empty-state';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import { paths } from '@client/config/paths';
 import { can } from '@shared/auth/policies';
@@ -81,9 +81,7 @@ export function StationPage({ stationId }: { stationId: number }) {
                   <Th>Input units</Th>
                   <Th>Response</Th>
                   {canEdit ? (
-                    <Th>
-                      <span className="sr-only">Actions</span>
-                    </Th>
+                    <ThActions />
                   ) : null}
                 </Tr>
               </THead>

@@ -3,9 +3,10 @@ import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
 import { tokenCreateSchema, type TokenCreated } from '@shared/schemas/station';
-import { StationApiError, useCreateToken, useRevokeToken, useStationTokens } from '@client/features/stations/api/stations';
+import { useCreateToken, useRevokeToken, useStationTokens } from '@client/features/stations/api/stations';
+import { ApiError } from '@client/lib/api-client';
 
 /**
  * A station's ingest tokens: create one (the secret is shown once, with a copy button and a curl
@@ -21,7 +22,7 @@ export function TokensPanel({ stationId, stationKey }: { stationId: number; stat
   const [copied, setCopied] = useState(false);
   const secretId = useId();
 
-  if (tokens.error instanceof StationApiError && tokens.error.status === 403) {
+  if (tokens.error instanceof ApiError && tokens.error.status === 403) {
     return <p className="text-sm text-ink-muted">Only this station’s operators and admins manage its ingest tokens.</p>;
   }
 
@@ -93,9 +94,7 @@ export function TokensPanel({ stationId, stationKey }: { stationId: number; stat
                 <Th>Created (UTC)</Th>
                 <Th>Last used (UTC)</Th>
                 <Th>State</Th>
-                <Th>
-                  <span className="sr-only">Actions</span>
-                </Th>
+                <ThActions />
               </Tr>
             </THead>
             <TBody>

@@ -1,44 +1,15 @@
 import { queryOptions } from '@tanstack/react-query';
 import { z } from 'zod';
-import { apiErrorBodySchema } from '@shared/api-error';
 import { latestWindowsSchema } from '@shared/schemas/data-period';
 import { evaluationSchema, inboxEntryViewSchema, inboxViewSchema, reviewRowSchema, type confirmLabelSchema, type ThresholdValues } from '@shared/schemas/supervisor';
+import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /**
  * The supervisor screens' calls to /api/supervisor (server/features/supervision/router.ts), each with
- * a zod schema of its answer and, for reads, a TanStack Query options factory.
+ * a zod schema of its answer and, for reads, a TanStack Query options factory; requests go through
+ * the one API client (lib/api-client.ts).
  */
-
-/** An API answer other than 2xx: status, stable code and the server's message. */
-export class SupervisorApiError extends Error {
-  override readonly name = 'SupervisorApiError';
-  constructor(
-    readonly status: number,
-    readonly code: string,
-    message: string,
-  ) {
-    super(message);
-  }
-}
-
-/** Fetches JSON and parses it with `schema`; non-2xx answers throw with the server's message. */
-export async function fetchJson<S extends z.ZodType>(schema: S, path: string, init: { method?: 'GET' | 'POST'; body?: unknown } = {}): Promise<z.infer<S>> {
-  const res = await fetch(path, {
-    method: init.method ?? 'GET',
-    credentials: 'same-origin',
-    headers: init.body === undefined ? { Accept: 'application/json' } : { Accept: 'application/json', 'Content-Type': 'application/json' },
-    body: init.body === undefined ? undefined : JSON.stringify(init.body),
-  });
-  const json: unknown = await res.json().catch(() => null);
-  if (!res.ok) {
-    const err = apiErrorBodySchema.safeParse(json);
-    if (err.success) throw new SupervisorApiError(res.status, err.data.error.code, err.data.error.message);
-    throw new SupervisorApiError(res.status, 'http_error', `${path}: the server answered ${res.status}`);
-  }
-  const parsed = schema.safeParse(json);
-  if (!parsed.success) throw new SupervisorApiError(500, 'bad_response', `${path}: unexpected answer (${parsed.error.issues[0]?.path.join('.') ?? ''}: ${parsed.error.issues[0]?.message ?? ''})`);
-  return parsed.data;
-}
 
 const qs = (params: Record<string, string | number | undefined>) => {
   const u = new URLSearchParams();
@@ -55,7 +26,7 @@ export type InboxEntry = z.infer<typeof inboxEntrySchema>;
 const inboxSchema = inboxViewSchema;
 
 /** The signed-in supervisor's inbox. */
-export const inboxQuery = () => queryOptions({ queryKey: ['supervisor', 'inbox'], queryFn: () => fetchJson(inboxSchema, '/api/supervisor/inbox') });
+export const inboxQuery = () => queryOptions({ queryKey: queryKeys.supervisor.inbox, queryFn: () => apiRequest(inboxSchema, '/api/supervisor/inbox') });
 
 /**
  * An inbox action: read, acknowledge, confirm (with `label` when the item has no event label yet),
@@ -63,7 +34,7 @@ export const inboxQuery = () => queryOptions({ queryKey: ['supervisor', 'inbox']
  */
 export function inboxAction(id: number, action: 'read' | 'acknowledge' | 'confirm' | 'return', extra: { comment?: string; label?: ConfirmLabelInput } = {}) {
   const body = action === 'return' ? { comment: extra.comment } : action === 'confirm' && extra.label ? { label: extra.label } : {};
-  return fetchJson(inboxSchema, `/api/supervisor/inbox/${id}/${action}`, { method: 'POST', body });
+  return apiRequest(inboxSchema, `/api/supervisor/inbox/${id}/${action}`, { method: 'POST', body });
 }
 
 /** The label a supervisor gives when confirming an escalation that has none. */
@@ -84,18 +55,18 @@ export interface ReviewFilters {
 /** The review list under `f`. */
 export const reviewQuery = (f: ReviewFilters) =>
   queryOptions({
-    queryKey: ['supervisor', 'review', f],
-    queryFn: () => fetchJson(z.object({ items: z.array(reviewRowSchema) }), `/api/supervisor/review?${qs({ ...f })}`),
+    queryKey: queryKeys.supervisor.review(f),
+    queryFn: () => apiRequest(z.object({ items: z.array(reviewRowSchema) }), `/api/supervisor/review?${qs({ ...f })}`),
   });
 
 /** Sets a labelled item's evaluation status. */
 export function setStatus(itemId: number, version: number, status: string, comment: string) {
-  return fetchJson(z.object({ ok: z.boolean() }), `/api/supervisor/review/items/${itemId}/status`, { method: 'POST', body: { version, status, comment } });
+  return apiRequest(z.object({ ok: z.boolean() }), `/api/supervisor/review/items/${itemId}/status`, { method: 'POST', body: { version, status, comment } });
 }
 
 /** Returns a labelled item to the queue with a comment. */
 export function returnItem(itemId: number, version: number, comment: string) {
-  return fetchJson(z.object({ ok: z.boolean() }), `/api/supervisor/review/items/${itemId}/return`, { method: 'POST', body: { version, comment } });
+  return apiRequest(z.object({ ok: z.boolean() }), `/api/supervisor/review/items/${itemId}/return`, { method: 'POST', body: { version, comment } });
 }
 
 // Candidate events.
@@ -114,13 +85,13 @@ export type CandidateEvent = z.infer<typeof candidateSchema>;
 /** Candidate events whose first arrival is in [from, to). */
 export const candidateEventsQuery = (from: string, to: string) =>
   queryOptions({
-    queryKey: ['supervisor', 'candidates', from, to],
-    queryFn: () => fetchJson(z.object({ events: z.array(candidateSchema) }), `/api/supervisor/candidate-events?${qs({ from, to })}`),
+    queryKey: queryKeys.supervisor.candidates(from, to),
+    queryFn: () => apiRequest(z.object({ events: z.array(candidateSchema) }), `/api/supervisor/candidate-events?${qs({ from, to })}`),
   });
 
 /** Labels every member of a candidate event. */
 export function labelCandidate(id: number, label: { eventType: string; certainty: string; note: string }) {
-  return fetchJson(z.object({ members: z.array(z.object({ itemId: z.number(), result: z.string(), reason: z.string().optional() })) }), `/api/supervisor/candidate-events/${id}/label`, { method: 'POST', body: { label } });
+  return apiRequest(z.object({ members: z.array(z.object({ itemId: z.number(), result: z.string(), reason: z.string().optional() })) }), `/api/supervisor/candidate-events/${id}/label`, { method: 'POST', body: { label } });
 }
 
 // Thresholds.
@@ -144,26 +115,26 @@ export type ThresholdReport = z.infer<typeof reportSchema>;
 /** The thresholds report of a station, with proposed values when given. */
 export const thresholdsQuery = (stationId: number, proposed: ThresholdValues | null) =>
   queryOptions({
-    queryKey: ['supervisor', 'thresholds', stationId, proposed],
-    queryFn: () => fetchJson(reportSchema, `/api/supervisor/thresholds/${stationId}?${proposed ? qs({ ...proposed }) : ''}`),
+    queryKey: queryKeys.supervisor.thresholds(stationId, proposed),
+    queryFn: () => apiRequest(reportSchema, `/api/supervisor/thresholds/${stationId}?${proposed ? qs({ ...proposed }) : ''}`),
   });
 
 /** Applies thresholds to a station (no re-scoring). */
 export function applyThresholds(stationId: number, thresholds: ThresholdValues) {
-  return fetchJson(reportSchema, `/api/supervisor/thresholds/${stationId}/apply`, { method: 'POST', body: { thresholds } });
+  return apiRequest(reportSchema, `/api/supervisor/thresholds/${stationId}/apply`, { method: 'POST', body: { thresholds } });
 }
 
 /** Re-scores a station's items in [from, to). */
 export function rescore(stationId: number, from: string, to: string) {
-  return fetchJson(z.object({ rescored: z.number(), flagChanged: z.number(), skipped: z.number() }), `/api/supervisor/thresholds/${stationId}/rescore`, { method: 'POST', body: { from, to } });
+  return apiRequest(z.object({ rescored: z.number(), flagChanged: z.number(), skipped: z.number() }), `/api/supervisor/thresholds/${stationId}/rescore`, { method: 'POST', body: { from, to } });
 }
 
 /** The station list (id and codes) for the station picker. */
 export const stationsQuery = () =>
   queryOptions({
-    queryKey: ['supervisor', 'stations'],
+    queryKey: queryKeys.supervisor.stations,
     queryFn: async () => {
-      const body = await fetchJson(z.unknown(), '/api/stations');
+      const body = await apiRequest(z.unknown(), '/api/stations');
       const list = z.array(z.object({ id: z.number(), network: z.string(), code: z.string() }));
       const direct = list.safeParse(body);
       if (direct.success) return direct.data;
@@ -188,13 +159,13 @@ export type Dashboard = z.infer<typeof dashboardSchema>;
 
 /** The dashboard for [from, to). */
 export const dashboardQuery = (from: string, to: string) =>
-  queryOptions({ queryKey: ['supervisor', 'dashboard', from, to], queryFn: () => fetchJson(dashboardSchema, `/api/supervisor/dashboard?${qs({ from, to })}`) });
+  queryOptions({ queryKey: queryKeys.supervisor.dashboard(from, to), queryFn: () => apiRequest(dashboardSchema, `/api/supervisor/dashboard?${qs({ from, to })}`) });
 
 /** Window starts of the latest item and latest labelled event (all stations, or one), for default periods. */
 export const latestWindowsQuery = (stationId?: number) =>
   queryOptions({
-    queryKey: ['supervisor', 'latest-windows', stationId ?? 'all'],
-    queryFn: () => fetchJson(latestWindowsSchema, `/api/supervisor/latest-windows${stationId === undefined ? '' : `?${qs({ stationId: String(stationId) })}`}`),
+    queryKey: queryKeys.supervisor.latestWindows(stationId),
+    queryFn: () => apiRequest(latestWindowsSchema, `/api/supervisor/latest-windows${stationId === undefined ? '' : `?${qs({ stationId: String(stationId) })}`}`),
   });
 
 /** The export download URL. */

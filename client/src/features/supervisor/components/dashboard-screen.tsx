@@ -7,6 +7,7 @@ import { TriageCaution } from '@client/components/ui/triage-caution';
 import { UtcTimeInput } from '@client/components/ui/utc-time-input';
 import { dashboardQuery } from '@client/features/supervisor/api/supervisor-api';
 import { daysAgoIso, ErrorLine, Section, SupervisorPage, withDayAxis, withDayAxisShare } from './common';
+import { FamiliesPanel } from './families-panel';
 
 const dayFormat = (v: number) => new Date(v * 1000).toISOString().slice(5, 10);
 
@@ -93,6 +94,7 @@ export function DashboardScreen() {
           </Section>
         </div>
       )}
+      <FamiliesPanel />
     </SupervisorPage>
   );
 }

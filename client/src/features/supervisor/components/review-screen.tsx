@@ -18,6 +18,7 @@ import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuer
 import { usePeriod } from '@client/features/supervisor/hooks/use-period';
 import { useSupervisorLive } from '@client/features/supervisor/hooks/use-supervisor-live';
 import { ErrorLine, noLocationText, periodText, Section, SupervisorPage } from './common';
+import { queryKeys } from '@client/lib/query-keys';
 
 /**
  * /review: labelled events to confirm, review, finalise or reject (QuakeML evaluation status) or
@@ -101,7 +102,7 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
   const done = () => {
     setOpen(null);
     setComment('');
-    void qc.invalidateQueries({ queryKey: ['supervisor', 'review'] });
+    void qc.invalidateQueries({ queryKey: queryKeys.supervisor.part('review') });
   };
   const status = useMutation({ mutationFn: (r: ReviewRow) => setStatus(r.itemId, r.version, choice, comment), onSuccess: done });
   const ret = useMutation({ mutationFn: (r: ReviewRow) => returnItem(r.itemId, r.version, comment), onSuccess: done });
@@ -194,7 +195,7 @@ function CandidateEvents({ from, to }: { from: string; to: string }) {
   const [type, setType] = useState('earthquake');
   const label = useMutation({
     mutationFn: (id: number) => labelCandidate(id, { eventType: type, certainty: 'suspected', note: '' }),
-    onSuccess: () => void qc.invalidateQueries({ queryKey: ['supervisor'] }),
+    onSuccess: () => void qc.invalidateQueries({ queryKey: queryKeys.supervisor.all }),
   });
   return (
     <Section title="Event groups (candidate events: several stations, one source?)">

@@ -12,6 +12,7 @@ import { TriageCaution } from '@client/components/ui/triage-caution';
 import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '@client/features/supervisor/api/supervisor-api';
 import { usePeriod } from '@client/features/supervisor/hooks/use-period';
 import { ErrorLine, periodText, Section, SupervisorPage, withPointsShare } from './common';
+import { queryKeys } from '@client/lib/query-keys';
 
 const pct = (v: number | null) => (v === null ? 'n/a' : `${(v * 100).toFixed(1)} %`);
 
@@ -39,7 +40,7 @@ export function ThresholdsScreen() {
     onSuccess: (data) => {
       setProposed(null);
       setDraft(data.current);
-      void qc.invalidateQueries({ queryKey: ['supervisor', 'thresholds'] });
+      void qc.invalidateQueries({ queryKey: queryKeys.supervisor.part('thresholds') });
     },
   });
   // Re-score period, by default the 7 UTC days up to this station's latest window.

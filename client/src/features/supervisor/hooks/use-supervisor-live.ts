@@ -1,6 +1,7 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useEffect, useState } from 'react';
 import { createLiveClient, liveUrl, type LiveState } from '@client/lib/ws-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /**
  * Keeps the supervisor screens live: a live-channel client of their own that refetches the inbox
@@ -13,10 +14,10 @@ export function useSupervisorLive(): LiveState {
   const [state, setState] = useState<LiveState>('connecting');
   useEffect(() => {
     let timer: ReturnType<typeof setTimeout> | null = null;
-    const pending = new Set<string>();
+    const pending = new Set<Parameters<typeof queryKeys.supervisor.part>[0]>();
     const flush = () => {
       timer = null;
-      for (const key of pending) void qc.invalidateQueries({ queryKey: ['supervisor', key] });
+      for (const key of pending) void qc.invalidateQueries({ queryKey: queryKeys.supervisor.part(key) });
       pending.clear();
     };
     const client = createLiveClient({
@@ -35,7 +36,7 @@ export function useSupervisorLive(): LiveState {
         // One refetch per burst of changes.
         if (pending.size > 0 && !timer) timer = setTimeout(flush, 150);
       },
-      onRefetch: () => void qc.invalidateQueries({ queryKey: ['supervisor'] }),
+      onRefetch: () => void qc.invalidateQueries({ queryKey: queryKeys.supervisor.all }),
       onState: setState,
     });
     return () => {
