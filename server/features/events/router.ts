@@ -27,6 +27,7 @@ import {
   addPick,
   createEventFromItems,
   deletePick,
+  eventStationIds,
   getEventDetail,
   labelEvent,
   listEvents,
@@ -81,9 +82,15 @@ export function eventsRouter(ctx: AppContext): Router {
     if (!d) throw notFound(`Event ${eventId}`);
     return d;
   };
-  /** 404 unless the viewer may see the event (an operator: one of its stations). */
+  /**
+   * 404 unless the viewer may see the event (an operator: one of its stations). The same rule as
+   * `getEventDetail`'s scope, from the member stations alone: a change is answered with the full
+   * detail once, after it, not read twice.
+   */
   const visible = async (req: Request, eventId: number): Promise<void> => {
-    await detail(req, eventId);
+    const scope = authorizedStations(currentUser(req), 'event.view');
+    const ids = await eventStationIds(db, eventId);
+    if (!ids || (scope !== 'all' && !ids.some((s) => scope.includes(s)))) throw notFound(`Event ${eventId}`);
   };
 
   router.use(requireUser);

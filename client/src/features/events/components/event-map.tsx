@@ -1,23 +1,56 @@
-import { useEffect, useMemo, useState } from 'react';
-import { geoDistance, geoGraticule, geoMercator, geoPath, type GeoPermissibleObjects } from 'd3-geo';
+import { memo, useEffect, useMemo, useState } from 'react';
+import { geoBounds, geoDistance, geoGraticule, geoMercator, geoPath, type GeoPermissibleObjects, type GeoProjection } from 'd3-geo';
 import { feature, mesh } from 'topojson-client';
-import type { Feature, FeatureCollection, Geometry, MultiLineString } from 'geojson';
+import type { Feature, FeatureCollection, Geometry, MultiLineString, MultiPolygon, Position } from 'geojson';
 import type { GeometryCollection, Topology } from 'topojson-specification';
 import type { EventGeometry } from '@shared/schemas/event-geometry';
 import type { EventDetail } from '@shared/schemas/events';
 import { Button } from '@client/components/ui/button';
 import { ellipseFeature, niceScaleKm } from '@client/features/events/lib/map-geometry';
 
-type Outlines = { land: Feature<Geometry> | FeatureCollection; borders: MultiLineString };
+/** A piece of outline with its bounds, [[west, south], [east, north]] in degrees (geoBounds). */
+type Piece<T> = { coords: T; bounds: [[number, number], [number, number]] };
+/** Land polygons and border lines, each with its bounds, so a view projects only what it shows. */
+type Outlines = { land: Piece<Position[][]>[]; borders: Piece<Position[]>[] };
 
+const polygonsOf = (g: Feature<Geometry> | FeatureCollection): Position[][][] => {
+  const geoms = g.type === 'FeatureCollection' ? g.features.map((f) => f.geometry) : [g.geometry];
+  return geoms.flatMap((x) => (x.type === 'Polygon' ? [x.coordinates] : x.type === 'MultiPolygon' ? x.coordinates : []));
+};
+
+let outlinesOnce: Promise<Outlines> | null = null;
 /**
  * Natural Earth 1:50m outlines from the world-atlas package, loaded on first use as a separate
- * chunk of the build: the map needs no online service.
+ * chunk of the build (the map needs no online service), split into pieces with their bounds once
+ * per page: the whole world at 1:50m is ~100 000 points, which must not be projected again on
+ * every relocation.
  */
-async function loadOutlines(): Promise<Outlines> {
-  const mod = await import('world-atlas/countries-50m.json');
-  const topo = mod.default as unknown as Topology<{ countries: GeometryCollection; land: GeometryCollection }>;
-  return { land: feature(topo, topo.objects.land), borders: mesh(topo, topo.objects.countries, (a, b) => a !== b) };
+function loadOutlines(): Promise<Outlines> {
+  outlinesOnce ??= import('world-atlas/countries-50m.json').then((mod) => {
+    const topo = mod.default as unknown as Topology<{ countries: GeometryCollection; land: GeometryCollection }>;
+    const land = polygonsOf(feature(topo, topo.objects.land)).map((coords) => ({ coords, bounds: geoBounds({ type: 'Polygon', coordinates: coords }) }));
+    const borders = mesh(topo, topo.objects.countries, (a, b) => a !== b).coordinates.map((coords) => ({ coords, bounds: geoBounds({ type: 'LineString', coordinates: coords }) }));
+    return { land, borders };
+  });
+  return outlinesOnce;
+}
+
+/** Whether a piece's bounds meet the box [[w, s], [e, n]] (pieces across the antimeridian always do). */
+function meets<T>(p: Piece<T>, [[w, s], [e, n]]: [[number, number], [number, number]]): boolean {
+  const [[pw, ps], [pe, pn]] = p.bounds;
+  if (pw > pe) return true;
+  return pe >= w && pw <= e && pn >= s && ps <= n;
+}
+
+/** The SVG paths of the outlines inside the projection's view (a 1° margin), clipped to the map. */
+function outlinePaths(outlines: Outlines, projection: GeoProjection): { land: string; borders: string } {
+  const a = projection.invert?.([0, H]);
+  const b = projection.invert?.([W, 0]);
+  const box: [[number, number], [number, number]] = a && b ? [[a[0] - 1, a[1] - 1], [b[0] + 1, b[1] + 1]] : [[-180, -90], [180, 90]];
+  const path = geoPath(projection);
+  const land: MultiPolygon = { type: 'MultiPolygon', coordinates: outlines.land.filter((p) => meets(p, box)).map((p) => p.coords) };
+  const borders: MultiLineString = { type: 'MultiLineString', coordinates: outlines.borders.filter((p) => meets(p, box)).map((p) => p.coords) };
+  return { land: path(land) ?? '', borders: path(borders) ?? '' };
 }
 
 const W = 360;
@@ -32,7 +65,7 @@ export type EventMapProps = { geometry: EventGeometry; origin: EventDetail['orig
  * the others hollow), the epicentre (a cross in a circle) and its 68 % confidence ellipse, a km
  * scale bar. Mercator fitted to the network and the ellipse; "Region" zooms out to ±300 km.
  */
-export function EventMap({ geometry, origin }: EventMapProps) {
+export const EventMap = memo(function EventMap({ geometry, origin }: EventMapProps) {
   const [outlines, setOutlines] = useState<Outlines | null>(null);
   const [failed, setFailed] = useState<string | null>(null);
   const [view, setView] = useState<'network' | 'region'>('network');
@@ -62,10 +95,10 @@ export function EventMap({ geometry, origin }: EventMapProps) {
       const dLon = 2.7 / Math.max(0.1, Math.cos((lat * Math.PI) / 180));
       fitTo = { type: 'MultiPoint', coordinates: [[lon - dLon, lat - 2.7], [lon + dLon, lat + 2.7]] };
     }
-    const p = geoMercator().fitExtent([[28, 24], [W - 28, H - 34]], fitTo);
-    return p;
+    return geoMercator().fitExtent([[28, 24], [W - 28, H - 34]], fitTo).clipExtent([[0, 0], [W, H]]);
   }, [geometry.stations, origin, ellipse, view]);
   const path = geoPath(projection);
+  const drawnOutlines = useMemo(() => (outlines ? outlinePaths(outlines, projection) : null), [outlines, projection]);
   const graticule = useMemo(() => geoGraticule().step(view === 'region' ? [1, 1] : [0.1, 0.1])(), [view]);
   // Scale bar: km per px along the map's middle row.
   const a = projection.invert?.([W / 2 - 50, H / 2]);
@@ -97,10 +130,10 @@ export function EventMap({ geometry, origin }: EventMapProps) {
         data-outlines={outlines ? 'drawn' : failed ? 'failed' : 'loading'}
       >
         <path d={path(graticule) ?? ''} fill="none" stroke="var(--sf-plot-grid)" strokeWidth={0.5} />
-        {outlines ? (
+        {drawnOutlines ? (
           <g data-layer="outlines">
-            <path d={path(outlines.land) ?? ''} fill="var(--sf-raised)" stroke="var(--sf-line-strong)" strokeWidth={0.8} />
-            <path d={path(outlines.borders) ?? ''} fill="none" stroke="var(--sf-ink-muted)" strokeWidth={0.8} strokeDasharray="4 2" />
+            <path d={drawnOutlines.land} fill="var(--sf-raised)" stroke="var(--sf-line-strong)" strokeWidth={0.8} />
+            <path d={drawnOutlines.borders} fill="none" stroke="var(--sf-ink-muted)" strokeWidth={0.8} strokeDasharray="4 2" />
           </g>
         ) : null}
         {ellipse ? <path d={path(ellipse) ?? ''} fill="var(--sf-plot-4)" fillOpacity={0.15} stroke="var(--sf-plot-4)" strokeWidth={1.5} data-layer="ellipse" /> : null}
@@ -138,4 +171,4 @@ export function EventMap({ geometry, origin }: EventMapProps) {
       </p>
     </figure>
   );
-}
+});

@@ -156,6 +156,10 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
     return m;
   }, [geometry.data]);
 
+  // The distances as the rows show them (0.1 km): the rows are rebuilt when these change, not on
+  // every new origin object (a relocation that moves nothing visible redraws nothing but predictions).
+  const hasOrigin = detail.origin !== null;
+  const distanceKey = useMemo(() => (hasOrigin ? [...stationInfo].map(([k, s]) => `${k}:${s.distanceKm?.toFixed(1) ?? ''}`).join(' ') : ''), [stationInfo, hasOrigin]);
   const loaded = traces.filter((t) => t.data).map((t) => t.data as Traces);
   const loadedKey = loaded.map((t) => t.itemId).join(',');
   const rows: RecordRow[] = useMemo(() => {
@@ -168,7 +172,7 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
     };
     const keys = [...byStation.keys()].map((st) => ({
       station: st,
-      distanceKm: detail.origin ? (stationInfo.get(st)?.distanceKm ?? null) : null,
+      distanceKm: hasOrigin ? (stationInfo.get(st)?.distanceKm ?? null) : null,
       firstArrival: firstPick(st) ?? (byStation.get(st)?.[0]?.times[0] ?? null),
     }));
     const ordered = orderStations(keys, order).flatMap((k) => {
@@ -189,7 +193,7 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
     });
     // drawnPicks only matter for the first-arrival order.
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [loadedKey, components, order, scale, stationInfo, detail.origin, order === 'arrival' ? drawnPicks : null]);
+  }, [loadedKey, components, order, scale, distanceKey, order === 'arrival' ? drawnPicks : null]);
 
   /** Places (or moves) the station's pick of `phase` on the channel under the mouse. */
   const place = useCallback(

@@ -12,6 +12,7 @@ import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
 import { analysisViewSchema, useItem, useTraces } from '@client/features/review/api/get-item';
 import { useItemMatches } from '@client/features/review/api/get-matches';
+import { usePrefetchQueueItem } from '@client/features/queue/hooks/use-prefetch-item';
 import { useQueueNeighbours } from '@client/features/review/hooks/use-queue-neighbours';
 import { useReviewActions } from '@client/features/review/hooks/use-review-actions';
 import { useReviewDraft } from '@client/features/review/hooks/use-review-draft';
@@ -71,6 +72,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const act = useReviewActions({ detail, mine, claimable, writable, group: group.data }, advance, draft.dropDraft);
   const tv = useTraceView(form, windowStartMs, durationS);
   const traces = useTraces(itemId, tv.view?.from ?? null, tv.view?.to ?? null, 1600);
+  usePrefetchQueueItem(neighbour(1)?.id);
   const leadTraces = traces.data?.channels.find((c) => c.streamId.endsWith('Z')) ?? traces.data?.channels[0];
 
   // Keep a claim alive while this screen is open (the server lets idle claims lapse).
