@@ -25,11 +25,25 @@ export type SeededEvent = { eventId: number; itemIds: number[]; stationIds: numb
  * and built into an event with its automatic picks, location and ML (as the events API test does).
  * Synthetic windows are test input, not check values.
  */
-export async function seedSyntheticEvent(db: Database, opts: { codes: readonly string[]; placements: ReadonlyArray<readonly [number, number]>; truth: TrueHypocentre; network?: string; supervisor: { id: string; email: string } }): Promise<SeededEvent> {
+export async function seedSyntheticEvent(
+  db: Database,
+  opts: {
+    codes: readonly string[];
+    placements: ReadonlyArray<readonly [number, number]>;
+    truth: TrueHypocentre;
+    network?: string;
+    supervisor: { id: string; email: string };
+    /** Window length, s (default 60). */
+    durationS?: number;
+    /** Store the test half-space as the network's velocity model (default true; false keeps the network's own). */
+    saveModel?: boolean;
+  },
+): Promise<SeededEvent> {
   const network = opts.network ?? 'XX';
   const centre = { latitudeDeg: opts.truth.latitudeDeg, longitudeDeg: opts.truth.longitudeDeg };
   const ring = ringStations(centre, opts.placements).map((s, i) => ({ ...s, code: opts.codes[i] as string }));
-  const synth = syntheticEvent(ring, opts.truth, fixtureModel, 21);
+  const durationS = opts.durationS ?? 60;
+  const synth = syntheticEvent(ring, opts.truth, fixtureModel, 21, durationS);
   const now = new Date();
   const w = 2 * Math.PI;
   const p = 0.0444;
@@ -62,7 +76,7 @@ export async function seedSyntheticEvent(db: Database, opts: { codes: readonly s
     const start = new Date((streams[0]?.startTimeUs ?? 0) / 1000);
     const id = await db.transaction(async (tx) => {
       const [up] = await tx.insert(uploads).values({ sha256: createHash('sha256').update(bytes).digest('hex'), filename: `${s.code}.mseed`, sizeBytes: bytes.length, format: 'mseed2', original: Buffer.from(bytes), stationId, createdAt: now });
-      const [win] = await tx.insert(windows).values({ uploadId: up.insertId, stationId, startTime: start, endTime: new Date(start.getTime() + 60_000), analysis, engineVersion: 'test', createdAt: now });
+      const [win] = await tx.insert(windows).values({ uploadId: up.insertId, stationId, startTime: start, endTime: new Date(start.getTime() + durationS * 1000), analysis, engineVersion: 'test', createdAt: now });
       for (const c of streams) {
         const buf = Buffer.alloc(c.samples.length * 8);
         c.samples.forEach((v, i) => buf.writeDoubleLE(v, i * 8));
@@ -73,7 +87,7 @@ export async function seedSyntheticEvent(db: Database, opts: { codes: readonly s
     });
     itemIds.push(id);
   }
-  await db.transaction((tx) => saveVelocityModel(tx, opts.supervisor, network, { name: fixtureModel.name, layers: fixtureModel.layers, stationCorrections: {} }, null));
+  if (opts.saveModel !== false) await db.transaction((tx) => saveVelocityModel(tx, opts.supervisor, network, { name: fixtureModel.name, layers: fixtureModel.layers, stationCorrections: {} }, null));
   await onItemsCreated({ db }, itemIds);
   const [eventId] = await syncEventsFromGroups({ db });
   if (eventId === undefined) throw new Error('the synthetic windows did not form an event');
