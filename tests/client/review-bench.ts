@@ -164,6 +164,15 @@ try {
       await painted(page);
       firstQueue.push(performance.now() - t);
     }
+    // The last view's timeline, from the page's own clock (ms after navigation start).
+    console.log(
+      `   timeline of the last: ${await page.evaluate<string>(`(() => {
+        const n = performance.getEntriesByType('navigation')[0];
+        const res = performance.getEntriesByType('resource').sort((a, b) => b.responseEnd - a.responseEnd).slice(0, 4);
+        const paint = performance.getEntriesByType('paint').map((p) => p.name + ' ' + p.startTime.toFixed(0)).join(', ');
+        return 'document ' + n.responseEnd.toFixed(0) + ', DOMContentLoaded ' + n.domContentLoadedEventEnd.toFixed(0) + ', load ' + n.loadEventEnd.toFixed(0) + ', ' + paint + ', now ' + performance.now().toFixed(0) + '; last responses: ' + res.map((r) => r.name.replace(location.origin, '') + ' ' + r.startTime.toFixed(0) + '→' + r.responseEnd.toFixed(0)).join(', ');
+      })()`)}`,
+    );
     report('first queue view (navigation to rows painted)', firstQueue, 800, before);
     printRequests();
     await screenshot(page, 'bench-review-queue');
@@ -235,7 +244,13 @@ try {
     await page.waitForFunction((min) => Number(document.querySelector('[data-testid="event-screen"]')?.getAttribute('data-event-version')) > min, v, { timeout: 60_000 });
     await page.waitForTimeout(500);
     /** Runs `act` and waits until the screen shows a newer event version with a new origin and the predictions of that origin painted. */
+    // The page's main-thread work during each round trip: the long tasks (over 50 ms) it ran.
+    await page.evaluate(`(() => { window.__longTasks = 0; new PerformanceObserver((l) => { for (const e of l.getEntries()) window.__longTasks += e.duration; }).observe({ type: 'longtask' }); })()`);
+    const longTaskMs: number[] = [];
+    const serverMs: number[] = [];
     const roundTrip = async (act: () => Promise<void>): Promise<number> => {
+      await page.evaluate('window.__longTasks = 0');
+      const change = page.waitForResponse((r) => r.request().method() !== 'GET' && r.url().includes(`/api/events/${seeded.eventId}`), { timeout: 60_000 });
       v = await version();
       const o = await originId();
       const geometry = page.waitForResponse((r) => r.url().includes(`/api/events/${seeded.eventId}/geometry`), { timeout: 60_000 });
@@ -248,7 +263,10 @@ try {
       );
       await geometry;
       await painted(page);
-      return performance.now() - t0;
+      const ms = performance.now() - t0;
+      serverMs.push((await change).request().timing().responseEnd);
+      longTaskMs.push(await page.evaluate<number>('window.__longTasks'));
+      return ms;
     };
     const box = await page.getByTestId('record-section').locator('.u-over').boundingBox();
     if (!box) throw new Error('no plot area');
@@ -273,6 +291,7 @@ try {
     }
     report('relocation round trip: P pick moved', pickMs, 300, before);
     report('relocation round trip: relocate key (L)', relocateMs, 300, before);
+    console.log(`   of which the change request (sent to answered): p50 ${quantile(serverMs, 0.5).toFixed(0)} ms; the page's long tasks: p50 ${quantile(longTaskMs, 0.5).toFixed(0)} ms, max ${Math.max(...longTaskMs).toFixed(0)} ms`);
     printRequests();
     if (problems.length > 0) console.log(`page errors: ${problems.join(' | ')}`);
   } finally {

@@ -3,6 +3,8 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '@server/app';
 import { eventGeometrySchema } from '@shared/schemas/event-geometry';
+import { eventTracesSchema } from '@shared/schemas/event-traces';
+import { tracesResponseSchema } from '@shared/schemas/queue';
 import { eventDetailSchema } from '@shared/schemas/events';
 import { seedSyntheticEvent, fixtureModel, type SeededEvent } from '@tests/setup/event-fixtures';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
@@ -71,6 +73,34 @@ describe('GET /api/events/:id/geometry (real MariaDB)', () => {
       if (!pick || !st) continue;
       const predicted = a.phase === 'S' ? st.predicted.S : st.predicted.P;
       expect(Math.abs((Date.parse(pick.time) - Date.parse(predicted ?? '')) / 1000 - a.residualS)).toBeLessThan(0.003);
+    }
+  });
+
+  it('GET /api/events/:id/traces: 401, 400 for bad points, 404 out of scope; every member channel, the same pre-processed trace the engine gives the review screen', async () => {
+    await request(app).get(`/api/events/${seeded.eventId}/traces`).expect(401);
+    const bad = await request(app).get(`/api/events/${seeded.eventId}/traces?points=5`).set('Cookie', ana.cookie).expect(400);
+    expect(bad.body.error.message).toMatch(/points/);
+    await request(app).get(`/api/events/${seeded.eventId}/traces`).set('Cookie', opFar.cookie).expect(404);
+    await request(app).get('/api/events/999999/traces').set('Cookie', ana.cookie).expect(404);
+    const t = eventTracesSchema.parse((await request(app).get(`/api/events/${seeded.eventId}/traces?points=2000`).set('Cookie', ana.cookie).expect(200)).body);
+    expect(t.members.map((m) => m.itemId).sort((a, b) => a - b)).toEqual([...seeded.itemIds].sort((a, b) => a - b));
+    for (const m of t.members) {
+      expect(m.channels.map((c) => c.streamId.split('.')[3])).toEqual(['HHE', 'HHN', 'HHZ']);
+      // The review screen's traces of the same window (the engine's own chain, server/dsp/channel-chain.ts):
+      // the same pre-processed samples at the same decimation, in m/s from the registry's sensitivity.
+      const q = tracesResponseSchema.parse((await request(app).get(`/api/queue/items/${m.itemId}/traces?points=2000`).set('Cookie', ana.cookie).expect(200)).body);
+      for (const c of m.channels) {
+        const r = q.channels.find((x) => x.streamId === c.streamId);
+        if (!r) throw new Error(`no review trace of ${c.streamId}`);
+        expect(c.units).toBe('m/s');
+        expect(c.bucket).toBe(r.bucket);
+        expect(c.values).toHaveLength(r.raw.length);
+        const peak = Math.max(...r.raw.map(Math.abs));
+        c.values.forEach((v, i) => expect(Math.abs(v - (r.raw[i] as number))).toBeLessThanOrEqual(peak * 1e-12));
+        // Times: the first sample's instant plus the offset of each point (both screens on one clock).
+        const start = Date.parse(c.startTime);
+        expect(Math.abs(start + (c.times.at(-1) ?? 0) * 1000 - (Date.parse(r.startTime) + (r.times.at(-1) ?? 0) * 1000))).toBeLessThanOrEqual(1);
+      }
     }
   });
 });

@@ -146,11 +146,19 @@ export function QueueScreen() {
   }, [rows, selectedIndex, select, open, claim, mayClaim, toTop, toggleGroup, placeOf]);
 
   return (
-    <div className="flex h-full min-h-0 flex-col gap-3">
+    <div className="flex h-full min-h-0 flex-col gap-2">
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">Review queue</h1>
         <p className="text-sm text-ink-muted">
           {total === undefined ? 'Loading…' : `${total.toLocaleString('en')} item${total === 1 ? '' : 's'} in view`} · press <Kbd>?</Kbd> for keys
+        </p>
+        {/* Live arrivals above the analyst's place: in the header line, so the table keeps the height. */}
+        <p className="text-sm" aria-live="polite">
+          {newAbove > 0 ? (
+            <button type="button" onClick={toTop} className="rounded-full border border-accent bg-surface px-3 py-0.5 font-medium text-accent-ink">
+              ↑ {newAbove} just in above <Kbd>G</Kbd>
+            </button>
+          ) : null}
         </p>
         <Button size="sm" variant="quiet" className="ml-auto" onClick={() => void qc.invalidateQueries({ queryKey: queryKeys.queue.lists })}>
           Reload list
@@ -159,13 +167,6 @@ export function QueueScreen() {
       <TriageCaution variant="line" />
       <QueueFilterBar filters={filters} setFilters={setFilters} setStateParam={setStateParam} counts={counts} />
       <div className="relative flex min-h-0 flex-1 flex-col">
-        <p className="h-6 text-sm" aria-live="polite">
-          {newAbove > 0 ? (
-            <button type="button" onClick={toTop} className="rounded-full border border-accent bg-surface px-3 py-0.5 font-medium text-accent-ink">
-              ↑ {newAbove} just in above <Kbd>G</Kbd>
-            </button>
-          ) : null}
-        </p>
         {list.isPending ? (
           <Loading label="Loading the queue…" />
         ) : list.isError ? (

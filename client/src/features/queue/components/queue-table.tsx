@@ -52,7 +52,7 @@ export function QueueTable({ rows, placeOf, columns, selectedId, sort, virtual, 
           {table.getHeaderGroups().map((g) => (
             <tr key={g.id}>
               {g.headers.map((h) => (
-                <th key={h.id} scope="col" className={h.column.id === 'flag' ? 'h-8 px-2 text-left text-sm leading-tight font-semibold text-ink' : 'h-8 px-2 text-left text-sm leading-tight font-medium text-ink-muted'}>
+                <th key={h.id} scope="col" className={h.column.id === 'flag' ? 'h-7 px-2 text-left text-sm leading-tight font-semibold text-ink' : 'h-7 px-2 text-left text-sm leading-tight font-medium text-ink-muted'}>
                   {flexRender(h.column.columnDef.header, h.getContext())}
                 </th>
               ))}
