@@ -1,5 +1,5 @@
 import { memo, useEffect, useMemo, useState } from 'react';
-import { geoBounds, geoDistance, geoGraticule, geoMercator, geoPath, type GeoPermissibleObjects, type GeoProjection } from 'd3-geo';
+import { geoDistance, geoGraticule, geoMercator, geoPath, type GeoPermissibleObjects, type GeoProjection } from 'd3-geo';
 import { feature, mesh } from 'topojson-client';
 import type { Feature, FeatureCollection, Geometry, MultiLineString, MultiPolygon, Position } from 'geojson';
 import type { GeometryCollection, Topology } from 'topojson-specification';
@@ -8,7 +8,7 @@ import type { EventDetail } from '@shared/schemas/events';
 import { Button } from '@client/components/ui/button';
 import { ellipseFeature, niceScaleKm } from '@client/features/events/lib/map-geometry';
 
-/** A piece of outline with its bounds, [[west, south], [east, north]] in degrees (geoBounds). */
+/** A piece of outline with its box, [[west, south], [east, north]] in degrees (`boxOf`). */
 type Piece<T> = { coords: T; bounds: [[number, number], [number, number]] };
 /** Land polygons and border lines, each with its bounds, so a view projects only what it shows. */
 type Outlines = { land: Piece<Position[][]>[]; borders: Piece<Position[]>[] };
@@ -18,21 +18,46 @@ const polygonsOf = (g: Feature<Geometry> | FeatureCollection): Position[][][] =>
   return geoms.flatMap((x) => (x.type === 'Polygon' ? [x.coordinates] : x.type === 'MultiPolygon' ? x.coordinates : []));
 };
 
+/** Longitude/latitude box of a ring or line, [[west, south], [east, north]] (a piece wider than 180° of longitude crosses the antimeridian: marked west > east). */
+function boxOf(points: readonly Position[]): [[number, number], [number, number]] {
+  let w = Infinity;
+  let s = Infinity;
+  let e = -Infinity;
+  let n = -Infinity;
+  for (const [x = 0, y = 0] of points) {
+    if (x < w) w = x;
+    if (x > e) e = x;
+    if (y < s) s = y;
+    if (y > n) n = y;
+  }
+  return e - w > 180 ? [[180, s], [-180, n]] : [[w, s], [e, n]];
+}
+
 let outlinesOnce: Promise<Outlines> | null = null;
 /**
  * Natural Earth 1:50m outlines from the world-atlas package, loaded on first use as a separate
- * chunk of the build (the map needs no online service), split into pieces with their bounds once
+ * chunk of the build (the map needs no online service), split into pieces with their boxes once
  * per page: the whole world at 1:50m is ~100 000 points, which must not be projected again on
  * every relocation.
  */
 function loadOutlines(): Promise<Outlines> {
   outlinesOnce ??= import('world-atlas/countries-50m.json').then((mod) => {
     const topo = mod.default as unknown as Topology<{ countries: GeometryCollection; land: GeometryCollection }>;
-    const land = polygonsOf(feature(topo, topo.objects.land)).map((coords) => ({ coords, bounds: geoBounds({ type: 'Polygon', coordinates: coords }) }));
-    const borders = mesh(topo, topo.objects.countries, (a, b) => a !== b).coordinates.map((coords) => ({ coords, bounds: geoBounds({ type: 'LineString', coordinates: coords }) }));
+    const land = polygonsOf(feature(topo, topo.objects.land)).map((coords) => ({ coords, bounds: boxOf(coords[0] ?? []) }));
+    const borders = mesh(topo, topo.objects.countries, (a, b) => a !== b).coordinates.map((coords) => ({ coords, bounds: boxOf(coords) }));
     return { land, borders };
   });
   return outlinesOnce;
+}
+
+/** Runs `f` when the page is idle (at the latest after `timeoutMs`): the outlines wait for the traces' first draw. */
+function whenIdle(f: () => void, timeoutMs: number): () => void {
+  if (typeof window.requestIdleCallback === 'function') {
+    const h = window.requestIdleCallback(f, { timeout: timeoutMs });
+    return () => window.cancelIdleCallback(h);
+  }
+  const h = window.setTimeout(f, 200);
+  return () => window.clearTimeout(h);
 }
 
 /** Whether a piece's bounds meet the box [[w, s], [e, n]] (pieces across the antimeridian always do). */
@@ -42,11 +67,17 @@ function meets<T>(p: Piece<T>, [[w, s], [e, n]]: [[number, number], [number, num
   return pe >= w && pw <= e && pn >= s && ps <= n;
 }
 
-/** The SVG paths of the outlines inside the projection's view (a 1° margin), clipped to the map. */
-function outlinePaths(outlines: Outlines, projection: GeoProjection): { land: string; borders: string } {
+/** The longitude/latitude box the map shows, [[west, south], [east, north]] (Mercator: the corners'). */
+function viewBox(projection: GeoProjection): [[number, number], [number, number]] {
   const a = projection.invert?.([0, H]);
   const b = projection.invert?.([W, 0]);
-  const box: [[number, number], [number, number]] = a && b ? [[a[0] - 1, a[1] - 1], [b[0] + 1, b[1] + 1]] : [[-180, -90], [180, 90]];
+  return a && b ? [[a[0], a[1]], [b[0], b[1]]] : [[-180, -85], [180, 85]];
+}
+
+/** The SVG paths of the outlines inside the projection's view (a 1° margin), clipped to the map. */
+function outlinePaths(outlines: Outlines, projection: GeoProjection): { land: string; borders: string } {
+  const [[w, s], [e, n]] = viewBox(projection);
+  const box: [[number, number], [number, number]] = [[w - 1, s - 1], [e + 1, n + 1]];
   const path = geoPath(projection);
   const land: MultiPolygon = { type: 'MultiPolygon', coordinates: outlines.land.filter((p) => meets(p, box)).map((p) => p.coords) };
   const borders: MultiLineString = { type: 'MultiLineString', coordinates: outlines.borders.filter((p) => meets(p, box)).map((p) => p.coords) };
@@ -71,12 +102,15 @@ export const EventMap = memo(function EventMap({ geometry, origin }: EventMapPro
   const [view, setView] = useState<'network' | 'region'>('network');
   useEffect(() => {
     let live = true;
-    loadOutlines().then(
-      (o) => live && setOutlines(o),
-      (e: unknown) => live && setFailed(e instanceof Error ? e.message : String(e)),
-    );
+    const cancel = whenIdle(() => {
+      loadOutlines().then(
+        (o) => live && setOutlines(o),
+        (e: unknown) => live && setFailed(e instanceof Error ? e.message : String(e)),
+      );
+    }, 3000);
     return () => {
       live = false;
+      cancel();
     };
   }, []);
 
@@ -99,7 +133,17 @@ export const EventMap = memo(function EventMap({ geometry, origin }: EventMapPro
   }, [geometry.stations, origin, ellipse, view]);
   const path = geoPath(projection);
   const drawnOutlines = useMemo(() => (outlines ? outlinePaths(outlines, projection) : null), [outlines, projection]);
-  const graticule = useMemo(() => geoGraticule().step(view === 'region' ? [1, 1] : [0.1, 0.1])(), [view]);
+  // The graticule over the view only: a 0.1° graticule of the whole globe is ~5 000 lines, far too
+  // many to project on every relocation.
+  const graticulePath = useMemo(() => {
+    const box = viewBox(projection);
+    const step = view === 'region' ? 1 : 0.1;
+    const snap = (v: number, up: boolean) => (up ? Math.ceil(v / step) : Math.floor(v / step)) * step;
+    const g = geoGraticule()
+      .extent([[snap(box[0][0], false), snap(Math.max(-89.9, box[0][1]), false)], [snap(box[1][0], true), snap(Math.min(89.9, box[1][1]), true)]])
+      .step([step, step])();
+    return geoPath(projection)(g) ?? '';
+  }, [projection, view]);
   // Scale bar: km per px along the map's middle row.
   const a = projection.invert?.([W / 2 - 50, H / 2]);
   const b = projection.invert?.([W / 2 + 50, H / 2]);
@@ -129,7 +173,7 @@ export const EventMap = memo(function EventMap({ geometry, origin }: EventMapPro
         data-testid="event-map"
         data-outlines={outlines ? 'drawn' : failed ? 'failed' : 'loading'}
       >
-        <path d={path(graticule) ?? ''} fill="none" stroke="var(--sf-plot-grid)" strokeWidth={0.5} />
+        <path d={graticulePath} fill="none" stroke="var(--sf-plot-grid)" strokeWidth={0.5} />
         {drawnOutlines ? (
           <g data-layer="outlines">
             <path d={drawnOutlines.land} fill="var(--sf-raised)" stroke="var(--sf-line-strong)" strokeWidth={0.8} />

@@ -16,6 +16,7 @@ import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import { paths } from '@client/config/paths';
+import { usePrefetchQueueItem } from '@client/features/queue/hooks/use-prefetch-item';
 import { useQueueFilters } from '@client/features/queue/hooks/use-queue-filters';
 import { useQueueScroll } from '@client/features/queue/hooks/use-queue-scroll';
 import { distinguishingReasons } from '@client/features/queue/lib/distinguishing-reason';
@@ -73,6 +74,9 @@ export function QueueScreen() {
   const { scrollRef, virtual, onScroll, newAbove } = useQueueScroll(rows, list);
 
   const selectedIndex = selectedId === null ? -1 : rows.findIndex((r) => r.id === selectedId);
+  // The selected window's review, fetched while the analyst reads its row: C or Enter draws it at once.
+  const selectedOpensItem = selectedId !== null && !(placeOf.get(selectedId)?.role === 'group' && eventMap?.has(rows[selectedIndex]?.candidateEvent?.id ?? -1));
+  usePrefetchQueueItem(selectedOpensItem ? (selectedId ?? undefined) : undefined, 300);
   const meId = me?.id;
   const openEvent = useCallback((eventId: number) => void navigate(`${paths.event.href}/${eventId}`), [navigate]);
   const columns = useMemo(

@@ -26,19 +26,20 @@ export function wholeWindowTracesOptions(id: number) {
  * Fetches, in the background, what the review screen of item `id` needs first (its detail, its
  * whole-window traces, its matches), so that J draws the next item from the cache instead of
  * waiting on three requests and the server's trace computation. Does nothing for undefined, or for
- * what is already cached and fresh (prefetchQuery's own rule). Call it from the review screen with
- * the next item's id: `usePrefetchQueueItem(neighbour(1)?.id)`.
+ * what is already cached and fresh (prefetchQuery's own rule). Called by the review screen with the
+ * next item's id (`usePrefetchQueueItem(neighbour(1)?.id)`) and by the queue with the selected row's,
+ * after it has stayed selected for `afterMs` (so J/K through the list does not fetch every row).
+ * @param afterMs wait before fetching, ms (default 150: after the current screen's own requests)
  */
-export function usePrefetchQueueItem(id: number | undefined): void {
+export function usePrefetchQueueItem(id: number | undefined, afterMs = 150): void {
   const qc = useQueryClient();
   useEffect(() => {
     if (id === undefined) return;
-    // After the current screen's own requests: an idle moment, not competing for the first draw.
     const t = window.setTimeout(() => {
       void qc.prefetchQuery(itemOptions(id));
       void qc.prefetchQuery(wholeWindowTracesOptions(id));
       void qc.prefetchQuery(itemMatchesOptions(id));
-    }, 150);
+    }, afterMs);
     return () => window.clearTimeout(t);
-  }, [qc, id]);
+  }, [qc, id, afterMs]);
 }
