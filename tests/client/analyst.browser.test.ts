@@ -324,7 +324,7 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await page.waitForSelector('[data-testid="return-note"]:has-text("S onset at KV05 looks early")');
     await page.goto(`${server.url}/queue?station=KV05`);
     await page.waitForSelector(`tr[data-item-id="${ids[2]}"][data-state="returned"]:has-text("comment")`);
-  }, 180_000);
+  }, 360_000);
 
   it('the queue at 1440×900 shows 20+ one-line rows, each with the reason that sets it apart, and passes axe', async () => {
     const db = server.ctx.database.db;

@@ -8,7 +8,10 @@ import { tracesResponseSchema } from '@shared/schemas/queue';
 import { eventDetailSchema } from '@shared/schemas/events';
 import { seedSyntheticEvent, fixtureModel, type SeededEvent } from '@tests/setup/event-fixtures';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
-import { createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
+import { onItemsCreated } from '@server/features/events/candidate-events';
+import { syncEventsFromGroups } from '@server/features/events/event-service';
+import { eventListSchema } from '@shared/schemas/events';
+import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 
 /** Haversine great-circle distance (Sinnott 1984, Sky & Telescope 68:159) on a 6371 km sphere, km. */
 function haversineKm(lat1: number, lon1: number, lat2: number, lon2: number): number {
@@ -102,5 +105,21 @@ describe('GET /api/events/:id/geometry (real MariaDB)', () => {
         expect(Math.abs(start + (c.times.at(-1) ?? 0) * 1000 - (Date.parse(r.startTime) + (r.times.at(-1) ?? 0) * 1000))).toBeLessThanOrEqual(1);
       }
     }
+  });
+
+  it('a group the picks cannot locate (three stations at one place) becomes an event refused with why, and the list still answers', async () => {
+    const db = ctx.database.db;
+    // createItem's stations share one position: the epicentre is unconstrained (test input).
+    const windowStart = new Date(Date.UTC(2026, 2, 9, 7, 0, 0));
+    const ids: number[] = [];
+    for (const code of ['GZ01', 'GZ02', 'GZ03']) ids.push(await createItem(db, { station: code, withSamples: true, burstAtS: 50, durationS: 120, windowStart, score: 5 }));
+    await onItemsCreated({ db }, ids);
+    await syncEventsFromGroups({ db });
+    const list = eventListSchema.parse((await request(app).get('/api/events').set('Cookie', ana.cookie).expect(200)).body);
+    const ev = list.events.find((e) => e.memberItemIds.some((id) => ids.includes(id)));
+    if (!ev) throw new Error('no event built from the co-located group');
+    const d = eventDetailSchema.parse((await request(app).get(`/api/events/${ev.id}`).set('Cookie', ana.cookie).expect(200)).body);
+    expect(d.origin).toBeNull();
+    expect(d.event.locationRefusal).toMatch(/do not constrain the epicentre/);
   });
 });
