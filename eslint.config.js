@@ -86,12 +86,6 @@ export default tseslint.config(
     },
   },
   {
-    // The engine and the decoders are being rewritten on other branches: their import specifiers
-    // move to the aliases, and the two assertions go, when those land (see the final step of issue 15).
-    files: ['server/dsp/**', 'server/formats/**', 'tests/server/dsp/**', 'tests/server/formats/**'],
-    rules: { 'no-restricted-imports': 'off', '@typescript-eslint/no-unnecessary-type-assertion': 'off' },
-  },
-  {
     files: pure.map((dir) => `${dir}/**/*.ts`),
     rules: {
       'no-restricted-imports': ['error', { patterns: [{ group: impureModules, message: 'Pure code has no I/O, no server libraries and no Node built-ins.' }] }],

@@ -14,7 +14,7 @@ import { adminRouter } from './features/accounts/admin-router';
 import { auditRouter } from './features/audit/router';
 import { authRouter } from './features/accounts/auth-router';
 import { eventsRouter } from './features/events/router';
-import { eventGeometryRouter } from './features/events/event-geometry';
+import { eventReturnRouter } from './features/supervision/event-return';
 import { healthRouter } from './features/health/router';
 import { openApiRouter } from './openapi/router';
 import { queueRouter } from './features/queue/router';
@@ -54,7 +54,7 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api/audit', auditRouter(ctx));
   app.use('/api/queue', queueRouter(ctx));
   app.use('/api/supervisor', supervisorRouter(ctx));
-  app.use('/api/events', eventGeometryRouter(ctx));
+  app.use('/api/supervisor', eventReturnRouter(ctx));
   app.use('/api/events', eventsRouter(ctx));
   app.use('/api/stations', stationsRouter(ctx));
   app.use('/api/similarity', similarityRouter(ctx));

@@ -1,3 +1,4 @@
+import type { ClusterLink } from './cluster/cluster-link';
 import type { DatabaseClient } from './db/client';
 import type { Mailer } from './email/mailer';
 import type { Env } from './env';
@@ -24,4 +25,10 @@ export interface AppContext {
   analysisPool: AnalysisPool;
   /** What runs after an escalation commits, in order (the supervisors' inbox entries and e-mail). */
   escalationListeners: readonly EscalationListener[];
+  /**
+   * The multi-instance mode's link to Redis (issue 20): uploads go to the analysis job queue, the
+   * hub's wake-ups to the other instances, the rate limits and the periodic jobs' turns to Redis.
+   * Absent in the single-process mode (the default of `npm start` and `npm test`).
+   */
+  cluster?: ClusterLink;
 }

@@ -120,6 +120,23 @@ export const envSchema = z.object({
   SEISIFT_RESEMBLES_AT: fraction(0.7),
   /** Correlation at or above which a match to a labelled blast or noise keeps a window from rising as a new event. */
   SEISIFT_NEAR_IDENTICAL_AT: fraction(0.9),
+  /**
+   * Redis of the multi-instance mode (issue 20): redis://host:port[/db]. Read only by the processes of
+   * that mode (`npm start -- --instances N --workers M`, `npm run instance`, `npm run worker`); when
+   * unset there, `npm start` starts a private Redis on 127.0.0.1:SEISIFT_REDIS_PORT under
+   * SEISIFT_DATA_DIR. The single-process `npm start` and `npm test` never use Redis.
+   */
+  SEISIFT_REDIS_URL: z.string().regex(/^rediss?:\/\//, 'must start with redis:// or rediss://').optional(),
+  /** Port of the private Redis on 127.0.0.1 (multi-instance mode without SEISIFT_REDIS_URL). */
+  SEISIFT_REDIS_PORT: port(6391),
+  /**
+   * Longest wait of an app instance for the analysis of one uploaded file by a worker, seconds; past
+   * it the upload is answered 503 with Retry-After (the job goes on, and the repeated request gets
+   * its result).
+   */
+  SEISIFT_INGEST_WAIT_S: positiveInt(120),
+  /** Analysis jobs one `npm run worker` process runs at once (each in its own worker thread). */
+  SEISIFT_WORKER_CONCURRENCY: positiveInt(1),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 

@@ -2,6 +2,8 @@ import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import type { IncomingMessage } from 'node:http';
 import { createApp } from './app';
+import type { ClusterLink } from './cluster/cluster-link';
+import { oncePerCluster } from './cluster/periodic-lock';
 import { createSessionStore } from './auth/sessions';
 import type { Database, DatabaseClient } from './db/client';
 import { loadActiveRights, loadAuthUser } from './auth/principal';
@@ -40,7 +42,9 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
   const app = createApp(ctx, { serveClient: opts.serveClient });
   const server = createServer(app);
   ctx.hub.attach(server);
-  const jobs = startScheduler(appJobs(ctx), ctx.logger);
+  // In the multi-instance mode every instance ticks, and the one that takes a job's turn in Redis runs it.
+  const periodic = ctx.cluster ? oncePerCluster(appJobs(ctx), ctx.cluster.redis, ctx.cluster.instanceId, ctx.logger) : appJobs(ctx);
+  const jobs = startScheduler(periodic, ctx.logger);
   await new Promise<void>((resolve, reject) => {
     server.once('error', (err: NodeJS.ErrnoException) => {
       if (err.code === 'EADDRINUSE') reject(new ListenError(`port ${opts.port} on ${opts.host} is already in use: stop the other program or set PORT`));
@@ -69,13 +73,16 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
  * user) and allowed only from our own origin — the one the Host header names (http or https) or
  * SEISIFT_PUBLIC_URL.
  */
-export function createAppHub(db: Database, logger: Logger, env: Env): RealtimeHub {
+export function createAppHub(db: Database, logger: Logger, env: Env, cluster?: ClusterLink): RealtimeHub {
   const sessions = createSessionStore(db, { idleHours: env.SEISIFT_SESSION_IDLE_HOURS });
   const publicOrigin = env.SEISIFT_PUBLIC_URL ? new URL(env.SEISIFT_PUBLIC_URL).origin : null;
   const same = (a: readonly (string | number)[], b: readonly (string | number)[]) => a.length === b.length && a.every((v, i) => v === b[i]);
   return createHub({
     db,
     logger,
+    // Multi-instance mode: each commit is published to the other processes' hubs, which are woken
+    // by Redis pub/sub; the change-log poll stays as the safety net, less often.
+    ...(cluster ? { onNotify: () => cluster.publisher.notify(), pollMs: 5000 } : {}),
     async authenticate(req: IncomingMessage) {
       const id = sessions.readCookie(req.headers.cookie);
       if (!id) return null;
@@ -115,6 +122,8 @@ export interface AppContextParts {
   logger?: Logger;
   /** Default: SEISIFT_ANALYSIS_THREADS worker threads, started with the first window. */
   analysisPool?: AnalysisPool;
+  /** The multi-instance mode's link to Redis (`openClusterLink`); the caller's to close. Absent: single-process mode. */
+  cluster?: ClusterLink;
 }
 
 /** An app context and how to stop what it started (the hub and the analysis workers). */
@@ -127,7 +136,11 @@ export type OwnedAppContext = AppContext & { close(): Promise<void> };
 export function createAppContext(parts: AppContextParts): OwnedAppContext {
   const { env, database, mailer } = parts;
   const logger = parts.logger ?? createLogger(env.LOG_LEVEL);
-  const hub = createAppHub(database.db, logger, env);
+  const { cluster } = parts;
+  const hub = createAppHub(database.db, logger, env, cluster);
+  if (cluster) {
+    cluster.subscribe(() => hub.wake()).catch((err: unknown) => logger.warn({ err }, 'live wake-ups: subscribe failed; the hub reads the change log every 5 s until Redis is back'));
+  }
   const analysisPool = parts.analysisPool ?? createLazyAnalysisPool(env.SEISIFT_ANALYSIS_THREADS);
   // Escalations reach every supervisor by e-mail and in the inbox.
   const escalationListeners = [escalationListener({ db: database.db, mailer, logger, notify: () => hub.notify(), publicUrl: publicBaseUrl(env) })];
@@ -140,6 +153,7 @@ export function createAppContext(parts: AppContextParts): OwnedAppContext {
     mailer,
     analysisPool,
     escalationListeners,
+    ...(cluster ? { cluster } : {}),
     async close() {
       await hub.close();
       await analysisPool.close();

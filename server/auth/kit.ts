@@ -16,6 +16,6 @@ export function createAuthKit(ctx: AppContext): AuthKit {
       perAddress: ctx.env.SEISIFT_SIGNIN_MAX_PER_ADDRESS,
       windowS: ctx.env.SEISIFT_SIGNIN_WINDOW_S,
       slowdown: { freeFailures: ctx.env.SEISIFT_SIGNIN_SLOWDOWN_AFTER, baseDelayMs: ctx.env.SEISIFT_SIGNIN_DELAY_MS, maxDelayMs: ctx.env.SEISIFT_SIGNIN_MAX_DELAY_MS },
-    }),
+    }, ctx.cluster?.redis),
   };
 }

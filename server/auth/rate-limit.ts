@@ -1,12 +1,14 @@
-import { RateLimiterMemory, RateLimiterRes } from 'rate-limiter-flexible';
+import type { Redis } from 'ioredis';
+import { RateLimiterMemory, RateLimiterRedis, RateLimiterRes, type RateLimiterAbstract } from 'rate-limiter-flexible';
 import { tooManyRequests } from '@server/errors';
 
 /** Limits for one kind of attempt: `points` attempts per `durationS` seconds per key. */
 export type AttemptLimit = { points: number; durationS: number };
 
 /**
- * Counts attempts per key (an address or an account) with rate-limiter-flexible, in memory (one
- * Seisift process serves the network; a restart forgets the counts).
+ * Counts attempts per key (an address or an account) with rate-limiter-flexible: in memory in the
+ * single-process mode (a restart forgets the counts), in Redis in the multi-instance mode, so an
+ * attempt on one instance counts on every other.
  */
 export interface AttemptLimiter {
   /** Counts one attempt for `key`; throws 429 with Retry-After once the key is over its limit. */
@@ -21,9 +23,22 @@ function retryAfterS(res: RateLimiterRes): number {
   return Math.max(1, Math.ceil(res.msBeforeNext / 1000));
 }
 
-/** Builds an attempt limiter. Keys are lower-cased and trimmed. */
-export function createAttemptLimiter(limit: AttemptLimit, keyPrefix: string): AttemptLimiter {
-  const limiter = new RateLimiterMemory({ points: limit.points, duration: limit.durationS, keyPrefix });
+/**
+ * The counter behind a limiter: in memory, or with `redis` in Redis (rate-limiter-flexible's
+ * RateLimiterRedis, one atomic script per attempt), keys prefixed `seisift-`. While Redis is away
+ * the Redis counter answers at once (`rejectIfRedisNotReady`) and its in-memory insurance limiter
+ * counts instead, so a sign-in never fails with 500 for want of Redis (the counts are then per
+ * instance until Redis is back).
+ */
+function counter(points: number, durationS: number, keyPrefix: string, redis?: Redis): RateLimiterAbstract {
+  const memory = new RateLimiterMemory({ points, duration: durationS, keyPrefix });
+  if (!redis) return memory;
+  return new RateLimiterRedis({ storeClient: redis, points, duration: durationS, keyPrefix: `seisift-${keyPrefix}`, rejectIfRedisNotReady: true, insuranceLimiter: memory });
+}
+
+/** Builds an attempt limiter (in Redis when `redis` is given). Keys are lower-cased and trimmed. */
+export function createAttemptLimiter(limit: AttemptLimit, keyPrefix: string, redis?: Redis): AttemptLimiter {
+  const limiter = counter(limit.points, limit.durationS, keyPrefix, redis);
   const norm = (key: string) => key.trim().toLowerCase();
   return {
     async consume(key) {
@@ -57,10 +72,10 @@ export interface FailureCounter {
   remove(key: string): Promise<void>;
 }
 
-/** Builds a failure counter over a window of `durationS` seconds. Keys are lower-cased and trimmed. */
-export function createFailureCounter(durationS: number, keyPrefix: string): FailureCounter {
+/** Builds a failure counter over a window of `durationS` seconds (in Redis when `redis` is given). Keys are lower-cased and trimmed. */
+export function createFailureCounter(durationS: number, keyPrefix: string, redis?: Redis): FailureCounter {
   // Points far above any real count: this limiter only counts, it never blocks.
-  const limiter = new RateLimiterMemory({ points: Number.MAX_SAFE_INTEGER, duration: durationS, keyPrefix });
+  const limiter = counter(Number.MAX_SAFE_INTEGER, durationS, keyPrefix, redis);
   const norm = (key: string) => key.trim().toLowerCase();
   return {
     async count(key) {
@@ -118,14 +133,17 @@ export type AuthLimiters = {
   resetByAccount: AttemptLimiter;
 };
 
-/** Builds the auth limiters from settings (per app instance, so each test app starts fresh). */
-export function createAuthLimiters(cfg: { perAccountAddress: number; perAddress: number; windowS: number; slowdown: SlowdownSettings }): AuthLimiters {
+/**
+ * Builds the auth limiters from settings: per app instance in memory (so each test app starts
+ * fresh), or shared by every instance in `redis` (multi-instance mode).
+ */
+export function createAuthLimiters(cfg: { perAccountAddress: number; perAddress: number; windowS: number; slowdown: SlowdownSettings }, redis?: Redis): AuthLimiters {
   return {
-    signInByAddress: createAttemptLimiter({ points: cfg.perAddress, durationS: cfg.windowS }, 'signin-addr'),
-    signInByAccountAddress: createAttemptLimiter({ points: cfg.perAccountAddress, durationS: cfg.windowS }, 'signin-acct-addr'),
-    signInFailuresByAccount: createFailureCounter(cfg.windowS, 'signin-acct'),
+    signInByAddress: createAttemptLimiter({ points: cfg.perAddress, durationS: cfg.windowS }, 'signin-addr', redis),
+    signInByAccountAddress: createAttemptLimiter({ points: cfg.perAccountAddress, durationS: cfg.windowS }, 'signin-acct-addr', redis),
+    signInFailuresByAccount: createFailureCounter(cfg.windowS, 'signin-acct', redis),
     slowdown: cfg.slowdown,
-    resetByAddress: createAttemptLimiter({ points: cfg.perAddress, durationS: cfg.windowS }, 'reset-addr'),
-    resetByAccount: createAttemptLimiter({ points: Math.max(1, Math.ceil(cfg.perAccountAddress / 2)), durationS: cfg.windowS }, 'reset-acct'),
+    resetByAddress: createAttemptLimiter({ points: cfg.perAddress, durationS: cfg.windowS }, 'reset-addr', redis),
+    resetByAccount: createAttemptLimiter({ points: Math.max(1, Math.ceil(cfg.perAccountAddress / 2)), durationS: cfg.windowS }, 'reset-acct', redis),
   };
 }

@@ -187,6 +187,7 @@ async function stageTimings(db: Parameters<typeof ingestFile>[0]['db'], bases: M
     close: () => pool.close(),
     decode: (bytes, opts, limits) => pool.decode(bytes, opts, limits),
     traces: (input) => pool.traces(input),
+    overlays: (input) => pool.overlays(input),
     async run(streams, profile, opts) {
       const t = performance.now();
       try {
@@ -466,7 +467,10 @@ async function main(): Promise<number> {
   }
 }
 
-const code = await main().catch((err: unknown) => {
+// `-- --instances N --workers M`: the single process beside the multi-instance mode (ingest-cluster.ts).
+const modeArgs = process.argv.slice(2);
+const run = modeArgs.length > 0 ? async () => (await import('./ingest-cluster')).compareModes(modeArgs) : main;
+const code = await run().catch((err: unknown) => {
   console.error(`bench:ingest: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`);
   return 1;
 });

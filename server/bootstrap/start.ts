@@ -13,11 +13,15 @@ import { setUpMail } from '@server/email/setup';
 import { createLogger } from '@server/logger';
 import { createAppContext, ListenError, startServer } from '@server/index';
 import { appVersion } from '@server/version';
+import { parseStartArgs } from '@server/cluster/mode';
 import { buildClient, prepareApp, secondsSince } from './common';
+import { openClusterRedis, startClusterProcesses } from './cluster-start';
 import { BootstrapError, type PrivateMariaDb } from './mariadb';
+import type { PrivateRedis } from './redis';
 
 const t0 = performance.now();
 let mariadb: PrivateMariaDb | undefined;
+let redis: PrivateRedis | undefined;
 let stopping = false;
 const cleanups: (() => Promise<void>)[] = [];
 
@@ -25,6 +29,10 @@ async function shutdown(code: number): Promise<never> {
   if (!stopping) {
     stopping = true;
     for (const fn of cleanups.reverse()) await fn().catch(() => {});
+    if (redis?.startedHere) {
+      console.log('seisift: stopping Redis…');
+      await redis.stop();
+    }
     if (mariadb?.startedHere) {
       console.log('seisift: stopping MariaDB…');
       await mariadb.stop();
@@ -56,13 +64,15 @@ async function ingestDemoWindows(ctx: AppContext): Promise<void> {
         : `seisift: demo windows already ingested (${r.duplicates} of ${r.files} files)`,
     );
     const ev = await prepareDemoEvents(ctx.database.db, () => ctx.hub.notify());
-    console.log(`seisift: demo events: ${ev.events} built or updated from the candidate groups (located, with ML; ${ev.responses} channel responses from the demo StationXML${ev.modelSet ? ', the demo crust set as the XX velocity model' : ''})`);
+    console.log(`seisift: demo events: ${ev.events} built or updated from the candidate groups (located, with ML; ${r.network.responses} channel responses from the demo StationXML${ev.modelSet || r.network.modelSet ? ', the demo crust set as the XX velocity model' : ''})`);
   } catch (err) {
     console.warn(`seisift: demo windows not ingested: ${err instanceof Error ? err.message : String(err)}`);
   }
 }
 
 try {
+  // No arguments: the single-process mode. --instances N / --workers M: the multi-instance mode.
+  const mode = parseStartArgs(process.argv.slice(2));
   const env = loadEnv({ NODE_ENV: 'production', ...process.env });
   const prepared = await prepareApp(env);
   mariadb = prepared.server;
@@ -84,13 +94,34 @@ try {
   const ctx = createAppContext({ env, database, mailer: mail.mailer, logger });
   cleanups.push(() => ctx.close());
   if (env.SEISIFT_SEED_DEMO === '1') await ingestDemoWindows(ctx);
-  const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
-  cleanups.push(() => running.close());
+  let url: string;
+  let clusterLines: string[] = [];
+  if (mode.mode === 'single') {
+    const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
+    cleanups.push(() => running.close());
+    url = running.url;
+  } else {
+    // The demo windows went in through this process; from here on the children serve and analyse.
+    await ctx.close();
+    const opened = await openClusterRedis(env);
+    redis = opened.server;
+    const childEnv: Record<string, string> = { DATABASE_URL: prepared.databaseUrl, SEISIFT_REDIS_URL: opened.url, NODE_ENV: env.NODE_ENV };
+    // Every instance sends mail to this process's fake SMTP server (one mailbox for all).
+    if (mail.fake) childEnv.SMTP_URL = mail.fake.url;
+    const cluster = await startClusterProcesses(env, mode, childEnv);
+    cleanups.push(() => cluster.stop());
+    url = cluster.urls[0] ?? '';
+    clusterLines = [
+      `Multi-instance mode: ${mode.instances} app instance${mode.instances === 1 ? '' : 's'} (${cluster.urls.join(', ')}), ${mode.workers} analysis worker${mode.workers === 1 ? '' : 's'}, Redis ${opened.url}${redis ? ` (private, data in ${redis.dataDir})` : ''}.`,
+      '',
+    ];
+  }
 
   const lines = [
     '',
-    `Seisift ${appVersion} is ready in ${secondsSince(t0)} s: ${running.url}`,
+    `Seisift ${appVersion} is ready in ${secondsSince(t0)} s: ${url}`,
     '',
+    ...clusterLines,
     ...(env.SEISIFT_SEED_DEMO === '1'
       ? [
           `Demo sign-ins (demo only; password "${env.SEISIFT_DEMO_PASSWORD}"):`,
@@ -99,7 +130,7 @@ try {
         ]
       : []),
     ...(mail.fake
-      ? [`Mail: no SMTP_URL set, so a local test mail server on ${mail.fake.url} keeps every message; sign in as an admin and open ${running.url}/mailbox to read them.`, '']
+      ? [`Mail: no SMTP_URL set, so a local test mail server on ${mail.fake.url} keeps every message; sign in as an admin and open ${url}/mailbox to read them.`, '']
       : [`Mail: sent through ${env.SMTP_URL?.replace(/\/\/[^@/]*@/, '//…@') ?? ''}`, '']),
     'Press Ctrl-C to stop.',
   ];

@@ -25,7 +25,8 @@ const reportSchema = z.object({
 const t0 = performance.now();
 try {
   ensureMariaDbInstalled();
-  ensureDebianPackages(['chromium', 'libmseed-dev', 'gcc', 'libc6-dev', 'python3-scipy']);
+  // redis-server: the Redis adapter tests of the multi-instance mode (tests/server/cluster).
+  ensureDebianPackages(['chromium', 'libmseed-dev', 'gcc', 'libc6-dev', 'python3-scipy', 'redis-server']);
   const vitestArgs = process.argv.slice(2);
   if (vitestArgs.length === 0) checkTypesAndLint();
   else console.log('seisift: a targeted run: type check and lint skipped (npm run lint)');

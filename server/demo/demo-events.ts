@@ -29,36 +29,14 @@ export interface DemoEventsReport {
 }
 
 /**
- * Turns the demo day's candidate groups into located events with ML (the npm start demo step after
- * the windows are ingested): the demo channels get the poles and zeros of the demo StationXML
- * (demo-waveforms/stationxml, the sensor the demo waveforms were made with), the demo network gets
- * the scenario's crust as its velocity model unless a supervisor set one, then every candidate group
- * becomes an event (automatic picks, location, Wood-Anderson amplitudes, ML), and the demo analyst
- * assembles each scenario source that no group joined from the windows that recorded it. Invented
- * data, for the demo only. Safe to run again.
+ * Makes sure the demo day's events stand (the npm start demo step after the windows are ingested):
+ * the demo network is set up (`prepareDemoNetwork`, a no-op when ingestDemo did it), every candidate
+ * group the ingest has not yet turned into an event becomes one (automatic picks, location,
+ * Wood-Anderson amplitudes, ML), and the demo analyst assembles each scenario source that no group
+ * joined from the windows that recorded it. Invented data, for the demo only. Safe to run again.
  */
 export async function prepareDemoEvents(db: Database, notify: () => void, dir: string = DEMO_WAVEFORMS_DIR): Promise<DemoEventsReport> {
-  const doc = parseStationXml(readFileSync(join(dir, 'stationxml', `${DEMO_NETWORK}.xml`), 'utf8'));
-  let responses = 0;
-  for (const net of doc.networks) {
-    for (const st of net.stations) {
-      const [row] = await db.select({ id: stations.id }).from(stations).where(and(eq(stations.network, net.code), eq(stations.code, st.code)));
-      if (!row) continue;
-      for (const ch of st.channels) {
-        const response = responseFromStationXml(ch.paz, ch.sensitivity);
-        if (!response) continue;
-        const [r] = await db
-          .update(channels)
-          .set({ response, sensitivityInputUnits: ch.sensitivity?.inputUnits ?? 'm/s', updatedAt: new Date() })
-          .where(and(eq(channels.stationId, row.id), eq(channels.location, ch.locationCode), eq(channels.code, ch.code)));
-        responses += r.affectedRows;
-      }
-    }
-  }
-  const [model] = await db.select({ network: networkEventSettings.network }).from(networkEventSettings).where(eq(networkEventSettings.network, DEMO_NETWORK));
-  if (!model) {
-    await db.insert(networkEventSettings).values({ network: DEMO_NETWORK, modelName: DEMO_MODEL_NAME, layers: [{ topKm: 0, vpKmS: VP_KM_S, vsKmS: VS_KM_S }], stationCorrections: {}, version: 1, updatedAt: new Date() });
-  }
+  const { responses, modelSet } = await prepareDemoNetwork(db, dir);
   let events = 0;
   for (let round = 0; round < 50; round++) {
     const touched = await syncEventsFromGroups({ db, notify });
@@ -83,5 +61,39 @@ export async function prepareDemoEvents(db: Database, notify: () => void, dir: s
     await createEventFromItems({ db, notify }, null, items.map((i) => i.id));
     events += 1;
   }
-  return { responses, modelSet: !model, events };
+  return { responses, modelSet, events };
+}
+
+/**
+ * The demo network as its operators would have it before any data comes in: the demo channels get
+ * the poles and zeros of the demo StationXML (demo-waveforms/stationxml, the sensor the demo
+ * waveforms were made with), and the network gets the scenario's crust as its velocity model unless
+ * a supervisor set one. Ingest builds events as soon as a candidate group forms, so this runs before
+ * the demo windows are ingested (`ingestDemo`), and again, harmlessly, in `prepareDemoEvents`.
+ * Invented data, for the demo only.
+ * @returns the channels whose response the StationXML gave, and whether the model was set now
+ */
+export async function prepareDemoNetwork(db: Database, dir: string = DEMO_WAVEFORMS_DIR): Promise<{ responses: number; modelSet: boolean }> {
+  const doc = parseStationXml(readFileSync(join(dir, 'stationxml', `${DEMO_NETWORK}.xml`), 'utf8'));
+  let responses = 0;
+  for (const net of doc.networks) {
+    for (const st of net.stations) {
+      const [row] = await db.select({ id: stations.id }).from(stations).where(and(eq(stations.network, net.code), eq(stations.code, st.code)));
+      if (!row) continue;
+      for (const ch of st.channels) {
+        const response = responseFromStationXml(ch.paz, ch.sensitivity);
+        if (!response) continue;
+        const [r] = await db
+          .update(channels)
+          .set({ response, sensitivityInputUnits: ch.sensitivity?.inputUnits ?? 'm/s', updatedAt: new Date() })
+          .where(and(eq(channels.stationId, row.id), eq(channels.location, ch.locationCode), eq(channels.code, ch.code)));
+        responses += r.affectedRows;
+      }
+    }
+  }
+  const [model] = await db.select({ network: networkEventSettings.network }).from(networkEventSettings).where(eq(networkEventSettings.network, DEMO_NETWORK));
+  if (!model) {
+    await db.insert(networkEventSettings).values({ network: DEMO_NETWORK, modelName: DEMO_MODEL_NAME, layers: [{ topKm: 0, vpKmS: VP_KM_S, vsKmS: VS_KM_S }], stationCorrections: {}, version: 1, updatedAt: new Date() });
+  }
+  return { responses, modelSet: !model };
 }

@@ -5,16 +5,10 @@
  */
 import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { formatIsoTimeUs } from '@server/formats/iso-time';
+import type { StreamHeader } from '@server/formats/types';
 
-/** A contiguous run of samples of one channel. */
-export interface CountsPiece {
-  network: string;
-  station: string;
-  location: string;
-  channel: string;
-  sampleRateHz: number;
-  /** First sample, µs since epoch (an integer). */
-  startTimeUs: number;
+/** A contiguous run of samples of one channel (the start an integer number of µs). */
+export interface CountsPiece extends StreamHeader {
   samples: Int32Array;
 }
 

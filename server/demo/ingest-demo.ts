@@ -6,9 +6,11 @@
  *    demo day), each dismissed at once by the demo analyst through the real queue services (claim,
  *    then dismiss with the noise reason the generator knows; audit rows are written), so that every
  *    station has its own dismissed-noise baseline (server/features/stations/station-baseline.ts).
- * 2. The demo day, scored at ingest against that baseline; then — only for the items this run
- *    created — the demo analyst works a handful: a few labelled (earthquake, quarry blast), a few
- *    dismissed as noise, two escalated.
+ * 2. The demo day, in time order, scored at ingest against that baseline; the demo analyst works a
+ *    handful of its items as they arrive — only items this run created: a few labelled (earthquake,
+ *    quarry blast), a few dismissed as noise, two escalated — so a later window of a repeating source
+ *    is matched at ingest against a template whose label is already known (its flag says what it
+ *    resembles), as on a station's ordinary day.
  * Idempotent: files whose SHA-256 is already stored are skipped, so a second start adds nothing; a
  * history item a broken earlier run left undismissed (still `new`) is dismissed on the next.
  */
@@ -27,6 +29,7 @@ import type { Logger } from '@server/logger';
 import { ingestFile, sha256Hex, type IngestCaller } from '@server/features/ingest/ingest-upload';
 import { claimItem, dismissItem, escalateItem, labelItem, type EscalationListener, type QueuePerson } from '@server/features/queue/queue-transitions';
 import { createToken, type Actor } from '@server/features/stations/station-registry';
+import { prepareDemoNetwork } from './demo-events';
 import { DEMO_WAVEFORMS_DIR } from './generate-waveforms';
 
 /** Label of the per-station ingest tokens the demo seed uploads with. */
@@ -99,6 +102,8 @@ export interface DemoIngestReport {
   labelled: number;
   dismissed: number;
   escalated: number;
+  /** The demo network set up before the windows came in (`prepareDemoNetwork`). */
+  network: { responses: number; modelSet: boolean };
   /** Wall time, s. */
   seconds: number;
 }
@@ -217,8 +222,10 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
   const stationId = new Map(stationRows.map((r) => [r.code, r.id]));
   const callers = new Map<string, IngestCaller>();
 
-  const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, historyDismissed: 0, labelled: 0, dismissed: 0, escalated: 0, seconds: 0 };
-  const ingestAll = async (list: typeof files, concurrency = 1): Promise<Map<string, number[]>> => {
+  // The responses and the velocity model come first: ingest builds an event as soon as a group forms.
+  const network = await prepareDemoNetwork(db, dir);
+  const report: DemoIngestReport = { files: files.length, created: 0, duplicates: 0, rejected: [], items: 0, historyDismissed: 0, labelled: 0, dismissed: 0, escalated: 0, network, seconds: 0 };
+  const ingestAll = async (list: typeof files, concurrency = 1, after?: (file: string, itemIds: number[]) => Promise<void>): Promise<Map<string, number[]>> => {
     const createdItems = new Map<string, number[]>();
     // Callers first, one per station (creating a token is not safe to race).
     for (const f of list) {
@@ -241,6 +248,7 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
         const ids = outcome.itemIds ?? outcome.items?.map((i) => i.id) ?? [];
         report.items += ids.length;
         createdItems.set(f.entry.file, ids);
+        if (after) await after(f.entry.file, ids);
       } else if (outcome.status === 'duplicate') {
         report.duplicates++;
       } else {
@@ -259,9 +267,17 @@ export async function ingestDemo(deps: DemoIngestDeps, opts: { dir?: string; wor
   await ingestAll(history, HISTORY_CONCURRENCY);
   if (analyst && history.length > 0) report.historyDismissed = await dismissHistory(deps, analyst, history);
 
-  // 2. The demo day.
-  const createdItems = await ingestAll(files.filter((f) => f.entry.reason !== 'history'));
-  if (analyst && createdItems.size > 0) await workItems(deps, analyst, demoActions(manifest), createdItems, report);
+  // 2. The demo day, one file at a time in the manifest's (time) order, each worked as it arrives.
+  const actions = demoActions(manifest);
+  await ingestAll(
+    files.filter((f) => f.entry.reason !== 'history'),
+    1,
+    async (file, itemIds) => {
+      const action = actions.get(file);
+      const itemId = itemIds[0];
+      if (analyst && action && itemId !== undefined) await workItem(deps, analyst, action, itemId, report);
+    },
+  );
   report.seconds = (performance.now() - t0) / 1000;
   return report;
 }
@@ -309,23 +325,20 @@ async function eachLimited<T>(items: readonly T[], limit: number, fn: (item: T) 
   await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, items.length)) }, worker));
 }
 
-async function workItems(deps: DemoIngestDeps, analyst: QueuePerson, actions: Map<string, DemoAction>, createdItems: Map<string, number[]>, report: DemoIngestReport): Promise<void> {
+/** The demo analyst works one item: claim, then label, dismiss or escalate it. */
+async function workItem(deps: DemoIngestDeps, analyst: QueuePerson, action: DemoAction, itemId: number, report: DemoIngestReport): Promise<void> {
   const qdeps = { db: deps.db, notify: deps.notify, ipAddress: null };
-  for (const [file, action] of actions) {
-    const itemId = createdItems.get(file)?.[0];
-    if (itemId === undefined) continue;
-    const [item] = await deps.db.select({ version: queueItems.version, state: queueItems.state }).from(queueItems).where(eq(queueItems.id, itemId));
-    if (!item) continue;
-    const claimed = await claimItem(qdeps, analyst, itemId, item.version);
-    if (action.kind === 'label') {
-      await labelItem(qdeps, analyst, itemId, claimed.version, eventLabelSchema.parse(action.label));
-      report.labelled++;
-    } else if (action.kind === 'dismiss') {
-      await dismissItem(qdeps, analyst, itemId, claimed.version, { noiseReason: action.noiseReason, note: action.note });
-      report.dismissed++;
-    } else {
-      await escalateItem({ ...qdeps, onError: (err) => deps.logger.error({ err, itemId }, 'demo seed: escalation hook failed') }, analyst, itemId, claimed.version, { reason: action.reason }, deps.escalationListeners ?? []);
-      report.escalated++;
-    }
+  const [item] = await deps.db.select({ version: queueItems.version, state: queueItems.state }).from(queueItems).where(eq(queueItems.id, itemId));
+  if (!item) return;
+  const claimed = await claimItem(qdeps, analyst, itemId, item.version);
+  if (action.kind === 'label') {
+    await labelItem(qdeps, analyst, itemId, claimed.version, eventLabelSchema.parse(action.label));
+    report.labelled++;
+  } else if (action.kind === 'dismiss') {
+    await dismissItem(qdeps, analyst, itemId, claimed.version, { noiseReason: action.noiseReason, note: action.note });
+    report.dismissed++;
+  } else {
+    await escalateItem({ ...qdeps, onError: (err) => deps.logger.error({ err, itemId }, 'demo seed: escalation hook failed') }, analyst, itemId, claimed.version, { reason: action.reason }, deps.escalationListeners ?? []);
+    report.escalated++;
   }
 }

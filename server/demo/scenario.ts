@@ -63,7 +63,23 @@ export interface DemoEvent {
   strengthMS: number;
   /** Corner frequency of the source spectrum, Hz (the ground velocity spectrum peaks there). */
   cornerHz: number;
+  /**
+   * The repeating source the event belongs to, if any: events of one source (the quarry's bench
+   * blasts with the same shot pattern; a cluster of quakes on one fault patch) share their source
+   * wavelet and, being within a few hundred metres of each other, their paths — so one station
+   * records them nearly alike (synth.ts draws their waveforms from the source and station, not from
+   * the event). Undefined: a one-off source with its own waveform.
+   */
+  source?: DemoSourceId;
 }
+
+/** The demo's repeating sources (invented). */
+export const DEMO_SOURCES = {
+  'kv-quarry': 'the valley quarry: bench blasts of one shot pattern (eight holes, 40 ms apart)',
+  'kv-south-cluster': 'a small cluster of quakes 3.8 km deep under the south of the valley, on one fault patch',
+} as const;
+/** A repeating source's id. */
+export type DemoSourceId = keyof typeof DEMO_SOURCES;
 
 /** Time on the demo day as µs since epoch; `hms` is `HH:MM:SS` or `HH:MM:SS.sss`. */
 export function demoTimeUs(hms: string): number {
@@ -72,15 +88,22 @@ export function demoTimeUs(hms: string): number {
   return ms * 1000;
 }
 
-/** The demo day's sources (invented): five small local earthquakes at 3–8 km depth, two blasts near midday. */
+/**
+ * The demo day's sources (invented): seven small local earthquakes at 3–8 km depth — three of them a
+ * tight cluster (kv-eq-4, kv-eq-6, kv-eq-7: one fault patch, within about 100 m, one source wavelet)
+ * — and three quarry blasts near midday from the same quarry face and shot pattern.
+ */
 export const DEMO_EVENTS: readonly DemoEvent[] = [
   { id: 'kv-eq-1', type: 'earthquake', originTimeUs: demoTimeUs('03:17:22.400'), latitude: 46.242, longitude: 11.09, depthKm: 5.2, strengthMS: 2.88e-6, cornerHz: 7 },
   { id: 'kv-eq-2', type: 'earthquake', originTimeUs: demoTimeUs('07:42:05.150'), latitude: 46.271, longitude: 11.135, depthKm: 7.1, strengthMS: 3.2e-6, cornerHz: 9 },
   { id: 'kv-eq-3', type: 'earthquake', originTimeUs: demoTimeUs('10:12:33.820'), latitude: 46.2585, longitude: 11.0521, depthKm: 4.4, strengthMS: 2.56e-6, cornerHz: 8 },
-  { id: 'kv-bl-1', type: 'quarry blast', originTimeUs: demoTimeUs('11:58:30.000'), latitude: QUARRY.latitude, longitude: QUARRY.longitude, depthKm: 0.02, strengthMS: 1.2e-5, cornerHz: 12 },
-  { id: 'kv-bl-2', type: 'quarry blast', originTimeUs: demoTimeUs('12:34:10.000'), latitude: QUARRY.latitude + 0.0006, longitude: QUARRY.longitude - 0.0009, depthKm: 0.02, strengthMS: 9.0e-6, cornerHz: 12 },
-  { id: 'kv-eq-4', type: 'earthquake', originTimeUs: demoTimeUs('16:05:48.700'), latitude: 46.215, longitude: 11.105, depthKm: 3.8, strengthMS: 9.6e-6, cornerHz: 6.5 },
+  { id: 'kv-bl-1', type: 'quarry blast', originTimeUs: demoTimeUs('11:58:30.000'), latitude: QUARRY.latitude, longitude: QUARRY.longitude, depthKm: 0.02, strengthMS: 1.2e-5, cornerHz: 12, source: 'kv-quarry' },
+  { id: 'kv-bl-2', type: 'quarry blast', originTimeUs: demoTimeUs('12:34:10.000'), latitude: QUARRY.latitude + 0.0006, longitude: QUARRY.longitude - 0.0009, depthKm: 0.02, strengthMS: 9.0e-6, cornerHz: 12, source: 'kv-quarry' },
+  { id: 'kv-bl-3', type: 'quarry blast', originTimeUs: demoTimeUs('12:57:20.000'), latitude: QUARRY.latitude - 0.0004, longitude: QUARRY.longitude + 0.0005, depthKm: 0.02, strengthMS: 1.05e-5, cornerHz: 12, source: 'kv-quarry' },
+  { id: 'kv-eq-4', type: 'earthquake', originTimeUs: demoTimeUs('16:05:48.700'), latitude: 46.215, longitude: 11.105, depthKm: 3.8, strengthMS: 9.6e-6, cornerHz: 6.5, source: 'kv-south-cluster' },
+  { id: 'kv-eq-6', type: 'earthquake', originTimeUs: demoTimeUs('18:47:12.300'), latitude: 46.2154, longitude: 11.1056, depthKm: 3.85, strengthMS: 6.4e-6, cornerHz: 6.5, source: 'kv-south-cluster' },
   { id: 'kv-eq-5', type: 'earthquake', originTimeUs: demoTimeUs('21:48:10.900'), latitude: 46.295, longitude: 11.07, depthKm: 6.0, strengthMS: 3.2e-6, cornerHz: 7.5 },
+  { id: 'kv-eq-7', type: 'earthquake', originTimeUs: demoTimeUs('23:31:05.600'), latitude: 46.2147, longitude: 11.1046, depthKm: 3.75, strengthMS: 7.7e-6, cornerHz: 6.5, source: 'kv-south-cluster' },
 ];
 
 /**

@@ -176,14 +176,38 @@ function addHorizontal(c: Components, radial: Float64Array | undefined, transver
   }
 }
 
+/** Share of a repeating source's wavelet that differs from one event to the next (the small changes of rupture and shot from event to event; invented). */
+const REPEAT_VARIATION = 0.12;
+
+/**
+ * The generators of an event's waveform at a station. A one-off event draws from its own generator
+ * (`key`/event). Events of one repeating source (`DemoEvent.source`) draw their wavelets from the
+ * source's generator at that station, so they share source and path there, and add a small
+ * {@link REPEAT_VARIATION} share from the event's own (`variation`, null for one-off events).
+ */
+function eventGenerators(ev: DemoEvent, station: DemoStationCode, key: string): { rng: Prng; variation: Prng | null } {
+  if (!ev.source) return { rng: prngFor(`${key}/${ev.id}`), variation: null };
+  return { rng: prngFor(`${station}/source/${ev.source}`), variation: prngFor(`${key}/${ev.id}/variation`) };
+}
+
+/** `x` plus {@link REPEAT_VARIATION}·(a transient of the same shape from `variation`), when given. */
+function varied(x: Float64Array, variation: Prng | null, make: (rng: Prng) => Float64Array): Float64Array {
+  if (!variation) return x;
+  const v = make(variation);
+  const y = Float64Array.from(x);
+  addScaled(y, v, REPEAT_VARIATION);
+  return y;
+}
+
 /**
  * An earthquake at a station: a P pulse mostly on the vertical (projected by the straight-ray
  * incidence angle), an S pulse about 3.5 times larger mostly on the horizontals (SV radial, SH
  * transverse), then an S coda on all three; spectra peaking at the corner frequency (common practice
- * shapes; invented constants).
+ * shapes; invented constants). Events of a repeating source share their wavelets at a station
+ * ({@link eventGenerators}).
  */
-function addEarthquake(c: Components, ev: DemoEvent, at: EventAtStation, startUs: number, key: string): void {
-  const rng = prngFor(`${key}/${ev.id}`);
+function addEarthquake(c: Components, ev: DemoEvent, at: EventAtStation, startUs: number, station: DemoStationCode, key: string): void {
+  const { rng, variation } = eventGenerators(ev, station, key);
   const r = at.hypocentralKm;
   const sinI = at.epicentralKm / r;
   const cosI = ev.depthKm / r;
@@ -195,13 +219,15 @@ function addEarthquake(c: Components, ev: DemoEvent, at: EventAtStation, startUs
   // falls off on both sides (the ω² source model of Brune 1970 falls as 1/f above the corner in
   // velocity; the steeper low side here is a simplification of the demo).
   const band: [number, number] = [0.6 * ev.cornerHz, Math.min(2 * ev.cornerHz, 30)];
-  const p = transient(rng, 6, band, 0.03, 0.35 + 0.03 * r);
+  const pShape = (g: Prng): Float64Array => transient(g, 6, band, 0.03, 0.35 + 0.03 * r);
+  const p = varied(pShape(rng), variation, pShape);
   addScaled(c.HHZ, p, aP * cosI, p0);
   addHorizontal(c, p, undefined, at.azimuthDeg, aP * sinI, 0, p0);
   // S carries somewhat lower frequencies than P (common practice).
   const sBand: [number, number] = [0.5 * ev.cornerHz, Math.min(1.6 * ev.cornerHz, 30)];
-  const sv = transient(rng, 10, sBand, 0.08, 0.7 + 0.05 * r);
-  const sh = transient(rng, 10, sBand, 0.08, 0.7 + 0.05 * r);
+  const sShape = (g: Prng): Float64Array => transient(g, 10, sBand, 0.08, 0.7 + 0.05 * r);
+  const sv = varied(sShape(rng), variation, sShape);
+  const sh = varied(sShape(rng), variation, sShape);
   addScaled(c.HHZ, sv, -aS * 0.6 * Math.max(sinI, 0.5), s0);
   addHorizontal(c, sv, sh, at.azimuthDeg, aS * 0.8 * cosI + 0.2 * aS, aS, s0);
   const codaS = 30;
@@ -215,10 +241,11 @@ function addEarthquake(c: Components, ev: DemoEvent, at: EventAtStation, startUs
  * A ripple-fired quarry blast at a station: eight charges 40 ms apart (the delay comb of a bench
  * blast), an impulsive high-frequency P with its first motion up (compression), a weak S and a
  * short-period surface wave (Rg) on the vertical and radial (common practice character of quarry
- * blasts; invented constants).
+ * blasts; invented constants). Blasts of one quarry share their wavelets at a station
+ * ({@link eventGenerators}): same face, same shot pattern.
  */
-function addBlast(c: Components, ev: DemoEvent, at: EventAtStation, startUs: number, key: string): void {
-  const rng = prngFor(`${key}/${ev.id}`);
+function addBlast(c: Components, ev: DemoEvent, at: EventAtStation, startUs: number, station: DemoStationCode, key: string): void {
+  const { rng, variation } = eventGenerators(ev, station, key);
   const a = at.peakVelocityMS;
   const holes = 8;
   const delay = Math.round(0.04 * FS);
@@ -233,7 +260,8 @@ function addBlast(c: Components, ev: DemoEvent, at: EventAtStation, startUs: num
   const p0 = Math.round((at.pArrivalUs - startUs) / (1e6 / FS));
   const s0 = Math.round((at.sArrivalUs - startUs) / (1e6 / FS));
   const rg0 = Math.round(((at.rgArrivalUs ?? at.sArrivalUs) - startUs) / (1e6 / FS));
-  const p = ripple(transient(rng, 3, [4, Math.min(2 * ev.cornerHz, 30)], 0.01, 0.2, true));
+  const pShape = (g: Prng): Float64Array => transient(g, 3, [4, Math.min(2 * ev.cornerHz, 30)], 0.01, 0.2, true);
+  const p = ripple(varied(pShape(rng), variation, pShape));
   const sinI = at.epicentralKm / Math.max(at.hypocentralKm, 1e-6);
   addScaled(c.HHZ, p, a, p0);
   addHorizontal(c, p, undefined, at.azimuthDeg, a * 0.5 * sinI, 0, p0);
@@ -338,8 +366,8 @@ export function synthesizeWindow(station: DemoStationCode, startUs: number, glit
   const events = eventsInWindow(station, startUs);
   for (const { event, at } of events) {
     contents.push(`${event.type} ${event.id} (hypocentral distance ${at.hypocentralKm.toFixed(1)} km)`);
-    if (event.type === 'earthquake') addEarthquake(c, event, at, startUs, key);
-    else addBlast(c, event, at, startUs, key);
+    if (event.type === 'earthquake') addEarthquake(c, event, at, startUs, station, key);
+    else addBlast(c, event, at, startUs, station, key);
   }
 
   const digitiserRms = station === 'KV06' ? 3 : 1.2;

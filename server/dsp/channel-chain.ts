@@ -1,4 +1,4 @@
-import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
+import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import { highBandForRate, validateBand } from './bands';
 import { butterworthSos, type Sos } from './butterworth';
 import { detrendLinearInto, taperInPlace, taperTailStart } from './preprocess';

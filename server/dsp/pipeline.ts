@@ -1,5 +1,5 @@
 import type { DecodedStream } from '../formats/types';
-import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
+import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import { butterworthSos, type Sos } from './butterworth';
 import { channelChain } from './channel-chain';
 import { nlnmDb, nhnmDb, noiseModelPosition } from './noise-models';
@@ -180,7 +180,7 @@ function analyzeChannel(
   if (n < MIN_SAMPLES) throw new AnalysisError(`${s.id}: only ${n} samples, at least ${MIN_SAMPLES} are needed`);
   const raw = s.samples;
   for (let i = 0; i < n; i++) {
-    if (!Number.isFinite(raw[i] as number)) {
+    if (!Number.isFinite(raw[i])) {
       throw new AnalysisError(`${s.id}: sample ${i} (${(i / fs).toFixed(3)} s) is ${raw[i]}, not a finite number`);
     }
   }

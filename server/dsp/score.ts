@@ -1,4 +1,4 @@
-import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
+import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 
 /**
  * Scoring of one window against a station's own noise baseline.

@@ -138,7 +138,7 @@ export function spectralStats(
   excludeBands: ReadonlyArray<{ fmin: number; fmax: number }> = [],
 ): SpectralStats {
   const { best, bestWeight, weightSum, weightedFreqSum } = peakAndCentroid(freqs, (k, f) =>
-    f < fminHz || inBands(f, excludeBands) ? undefined : (values[k] as number),
+    f < fminHz || inBands(f, excludeBands) ? undefined : values[k],
   );
   return {
     dominantFrequency: best >= 0 && bestWeight > 0 ? (freqs[best] as number) : null,

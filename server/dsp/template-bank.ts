@@ -63,14 +63,20 @@ export interface MatchBankOptions {
   cache?: PreparedCache;
 }
 
-/** A template's coarse spectra for one (coarse step, block size). */
+/** A template's coarse spectra for one (coarse step, block size, band bins). */
 interface Prepared {
   step: number;
   block: number;
+  /** The band's first and last bins (of B) kept. */
+  kLo: number;
+  kHi: number;
   /** Coarse length M'. */
   m: number;
-  /** Per component: conj-free spectrum bins 0 … B/2 interleaved (re, im). */
-  spectra: Float32Array[];
+  /**
+   * Bins kLo … kHi of each component's spectrum (size B, no conjugate), interleaved (re, im),
+   * component after component: only the band's bins enter the coarse pass, so only they are kept.
+   */
+  band: Float32Array;
   /** Σ of the coarse samples squared over components. */
   energy: number;
   bytes: number;
@@ -81,9 +87,9 @@ export class PreparedCache {
   private readonly map = new Map<number, Prepared>();
   private total = 0;
   constructor(readonly maxBytes = 64 * 1024 * 1024) {}
-  get(id: number, step: number, block: number): Prepared | undefined {
+  get(id: number, step: number, block: number, kLo: number, kHi: number): Prepared | undefined {
     const p = this.map.get(id);
-    return p && p.step === step && p.block === block ? p : undefined;
+    return p && p.step === step && p.block === block && p.kLo === kLo && p.kHi === kHi ? p : undefined;
   }
   set(id: number, p: Prepared): void {
     const old = this.map.get(id);
@@ -115,14 +121,28 @@ export function coarseStep(sampleRateHz: number, fmaxHz: number): number {
 /** Coarse length of an M-sample sequence taken every k-th sample. */
 const coarseLength = (m: number, k: number) => Math.ceil(m / k);
 
-/** Coarse spectra of a template for step k and block B. */
-export function prepareTemplate(t: BankTemplate, step: number, block: number): Prepared {
+/** The band's bins of a size-B transform: band edges in cycles per coarse sample. */
+function bandBins(block: number, band: { lo: number; hi: number }): { kLo: number; kHi: number } {
+  return { kLo: Math.max(1, Math.floor(band.lo * block)), kHi: Math.min(block / 2, Math.ceil(band.hi * block)) };
+}
+
+/** Work buffers of the matcher, kept for the thread's life and grown on demand (no allocation per template). */
+const work = { input: new Float64Array(0), spectrum: new Float64Array(0), base: new Float64Array(0), out: new Float64Array(0) };
+function buffer(name: keyof typeof work, n: number): Float64Array {
+  if (work[name].length < n) work[name] = new Float64Array(n);
+  return work[name];
+}
+
+/** Coarse band spectra of a template for step k, block B and bins kLo … kHi. */
+export function prepareTemplate(t: BankTemplate, step: number, block: number, kLo: number, kHi: number): Prepared {
   const plan = fftPlan(block);
   const m = coarseLength(t.samples[0]?.length ?? 0, step);
-  const input = new Float64Array(block);
-  const out = new Float64Array(2 * block);
+  const input = buffer('input', block).subarray(0, block);
+  const out = buffer('spectrum', 2 * block).subarray(0, 2 * block);
+  const nb = kHi - kLo + 1;
+  const band = new Float32Array(t.samples.length * nb * 2);
   let energy = 0;
-  const spectra = t.samples.map((w) => {
+  t.samples.forEach((w, c) => {
     input.fill(0);
     for (let j = 0; j < m; j++) {
       const v = w[j * step] as number;
@@ -130,9 +150,25 @@ export function prepareTemplate(t: BankTemplate, step: number, block: number): P
       energy += v * v;
     }
     plan.realTransform(out, input);
-    return Float32Array.from(out.subarray(0, block + 2));
+    band.set(out.subarray(2 * kLo, 2 * (kHi + 1)), c * nb * 2);
   });
-  return { step, block, m, spectra, energy, bytes: spectra.length * (block + 2) * 4 };
+  return { step, block, kLo, kHi, m, band, energy, bytes: band.byteLength };
+}
+
+/** A usable template of one call: its component → window trace mapping and length. */
+interface Usable {
+  t: BankTemplate;
+  /** Window trace index of each template component (−1: absent from the window). */
+  map: number[];
+  /** Bit mask of the window traces it uses (for the shared segment energies). */
+  mask: number;
+  /** Full-rate length M. */
+  m: number;
+  p: Prepared | null;
+  /** Coarse pass: largest normalised envelope, its coarse lag and the lag spacing it was sampled at. */
+  coarseValue: number;
+  coarseLag: number;
+  spacing: number;
 }
 
 /**
@@ -140,22 +176,25 @@ export function prepareTemplate(t: BankTemplate, step: number, block: number): P
  * `templates`: the best `topK` matches with C ≥ `minValue`, best first, each with its exact C and lag
  * (see the module comment). Templates at another rate, or sharing no component with the window, or
  * longer than it, are skipped. A template's components missing from the window are left out of both
- * the sums and the norms. Pure apart from filling `opts.cache`.
+ * the sums and the norms. Pure apart from filling `opts.cache` and reusing the thread's work buffers.
  */
 export function matchBank(window: { ids: readonly string[]; sampleRateHz: number; traces: readonly Float64Array[] }, templates: readonly BankTemplate[], opts: MatchBankOptions): BankMatch[] {
   const fs = window.sampleRateHz;
   const n = window.traces[0]?.length ?? 0;
   const step = coarseStep(fs, opts.fmaxHz);
   const index = new Map(window.ids.map((id, i) => [id, i]));
+  if (window.traces.length > 30) throw new RangeError(`matchBank: ${window.traces.length} components (at most 30)`);
   // Usable templates and their component → window trace mapping.
-  const usable: Array<{ t: BankTemplate; map: number[]; m: number }> = [];
+  const usable: Usable[] = [];
   for (const t of templates) {
     if (t.sampleRateHz !== fs) continue;
     const m = t.samples[0]?.length ?? 0;
     if (m < 2 * step || m > n) continue;
     const map = t.ids.map((id) => index.get(id) ?? -1);
-    if (map.every((i) => i < 0)) continue;
-    usable.push({ t, map, m });
+    let mask = 0;
+    for (const i of map) if (i >= 0) mask |= 1 << i;
+    if (mask === 0) continue;
+    usable.push({ t, map, mask, m, p: null, coarseValue: -Infinity, coarseLag: 0, spacing: 1 });
   }
   if (usable.length === 0 || n === 0) return [];
 
@@ -166,30 +205,26 @@ export function matchBank(window: { ids: readonly string[]; sampleRateHz: number
     for (let j = 0; j < nc; j++) d[j] = x[j * step] as number;
     return d;
   });
-  const cumsq = coarse.map((d) => {
-    const s = new Float64Array(nc + 1);
-    for (let j = 0; j < nc; j++) s[j + 1] = (s[j] as number) + (d[j] as number) * (d[j] as number);
-    return s;
-  });
+  const cumsq = coarse.map((d) => runningSquares(d));
 
   // Group by block size (templates of similar length share the data's block spectra).
-  const groups = new Map<number, Array<{ t: BankTemplate; map: number[]; m: number; p: Prepared }>>();
+  const band = { lo: opts.fminHz / (fs / step), hi: Math.min(0.5, opts.fmaxHz / (fs / step)) };
+  const groups = new Map<number, Usable[]>();
   for (const u of usable) {
     const mc = coarseLength(u.m, step);
     const block = Math.max(64, nextPowerOfTwo(4 * mc));
-    let p = opts.cache?.get(u.t.id, step, block);
+    const { kLo, kHi } = bandBins(block, band);
+    let p = opts.cache?.get(u.t.id, step, block, kLo, kHi);
     if (!p) {
-      p = prepareTemplate(u.t, step, block);
+      p = prepareTemplate(u.t, step, block, kLo, kHi);
       opts.cache?.set(u.t.id, p);
     }
-    const g = groups.get(block) ?? [];
-    g.push({ ...u, p });
-    groups.set(block, g);
+    u.p = p;
+    let g = groups.get(block);
+    if (!g) groups.set(block, (g = []));
+    g.push(u);
   }
-
-  const coarseBest = new Map<number, { value: number; lag: number; spacing: number }>();
-  const band = { lo: opts.fminHz / (fs / step), hi: Math.min(0.5, opts.fmaxHz / (fs / step)) };
-  for (const [block, group] of groups) coarsePass(block, group, coarse, cumsq, nc, band, coarseBest);
+  for (const [block, group] of groups) coarsePass(block, group, coarse, cumsq, nc, band);
 
   // Refine the best-ranked at full rate.
   const refineCount = opts.refine ?? Math.max(4 * opts.topK, 24);
@@ -197,201 +232,246 @@ export function matchBank(window: { ids: readonly string[]; sampleRateHz: number
   // period of the band's lowest frequency (and a coarse step or two) of there.
   const halfCycle = Math.ceil(fs / (2 * opts.fminHz));
   const ranked = usable
-    .map((u) => ({ u, c: coarseBest.get(u.t.id) }))
-    .filter((r): r is { u: (typeof usable)[number]; c: { value: number; lag: number; spacing: number } } => r.c !== undefined)
-    .sort((a, b) => b.c.value - a.c.value)
+    .filter((u) => u.coarseValue > -Infinity)
+    .sort((a, b) => b.coarseValue - a.coarseValue)
     .slice(0, refineCount);
+  // Full-rate running sums of squares, once per window: every refined lag's data energy is a difference of two.
+  const fullCumsq = window.traces.map((x) => runningSquares(x));
   const matches: BankMatch[] = [];
-  for (const { u, c } of ranked) {
-    const exact = refineAround(u.t, u.map, window.traces, u.m, c.lag * step, step * (2 + Math.ceil(c.spacing / 2)) + halfCycle);
+  for (const u of ranked) {
+    const exact = refineAround(u.t, u.map, window.traces, fullCumsq, u.m, u.coarseLag * step, step * (2 + Math.ceil(u.spacing / 2)) + halfCycle);
     if (exact && exact.value >= opts.minValue) matches.push({ templateId: u.t.id, ...exact });
   }
   matches.sort((a, b) => b.value - a.value || a.templateId - b.templateId);
   return matches.slice(0, opts.topK);
 }
 
-/** The coarse pass for templates sharing block size B (see the module comment). */
-function coarsePass(
-  block: number,
-  group: ReadonlyArray<{ t: BankTemplate; map: number[]; p: Prepared }>,
-  coarse: readonly Float64Array[],
-  cumsq: readonly Float64Array[],
-  nc: number,
-  band: { lo: number; hi: number },
-  best: Map<number, { value: number; lag: number; spacing: number }>,
-): void {
+/** s[j] = Σ_{i<j} x[i]² (length n + 1): the energy of x[a … b) is s[b] − s[a]. */
+function runningSquares(x: Float64Array): Float64Array {
+  const s = new Float64Array(x.length + 1);
+  let acc = 0;
+  for (let j = 0; j < x.length; j++) {
+    const v = x[j] as number;
+    acc += v * v;
+    s[j + 1] = acc;
+  }
+  return s;
+}
+
+/**
+ * The coarse pass for templates sharing block size B (see the module comment): sets each template's
+ * `coarseValue`, `coarseLag` and `spacing`. Per template and block, the analytic correlation's band
+ * is moved to 0 Hz: bins kLo … kHi of S_k = Σ_c X_c,k·conj(W_c,k) (the spectrum of the real circular
+ * correlation r summed over the template's components present in the window) are written to bins
+ * 0 … kHi − kLo, the rest 0. The data's band bins are transformed once per block and component and
+ * kept in one array; the templates' band bins come prepared (`PreparedCache`). The inverse
+ * transform of size Q of these bins is, at every (B/Q)-th lag, the analytic signal z = r + i·H(r) of r
+ * (negative frequencies dropped, positive doubled: Bracewell, The Fourier Transform and Its
+ * Applications, ch. 12) times a phase ramp — so its magnitude is r's envelope, sampled every B/Q coarse
+ * lags (the envelope is as smooth as the band is narrow, so this loses little), and its peak does not
+ * depend on where the lags fall within the band's cycles.
+ */
+function coarsePass(block: number, group: readonly Usable[], coarse: readonly Float64Array[], cumsq: readonly Float64Array[], nc: number, band: { lo: number; hi: number }): void {
   const plan = fftPlan(block);
   // The band's bins (band edges in cycles per coarse sample) and the baseband transform's size.
-  const kLo = Math.max(1, Math.floor(band.lo * block));
-  const kHi = Math.min(block / 2, Math.ceil(band.hi * block));
-  const q = nextPowerOfTwo(kHi - kLo + 1);
+  const { kLo, kHi } = bandBins(block, band);
+  const nb = kHi - kLo + 1;
+  const q = nextPowerOfTwo(nb);
   const dec = block / q;
   const basePlan = fftPlan(q);
   let mMax = 0;
   let mMin = Infinity;
   for (const g of group) {
-    mMax = Math.max(mMax, g.p.m);
-    mMin = Math.min(mMin, g.p.m);
+    const m = (g.p as Prepared).m;
+    mMax = Math.max(mMax, m);
+    mMin = Math.min(mMin, m);
   }
   const hop = block - mMax + 1;
   const lagsTotal = nc - mMin + 1;
   const blocks = Math.ceil(lagsTotal / hop);
-  // Data spectra per block and component.
-  const input = new Float64Array(block);
-  const tmp = new Float64Array(2 * block);
-  const dataSpectra: Float64Array[][] = [];
+  const nx = coarse.length;
+  // The data's band bins, per block and component: [block][component][bin (re, im)], one array.
+  const stride = nb * 2;
+  const dataBand = new Float64Array(blocks * nx * stride);
+  const input = buffer('input', block).subarray(0, block);
+  const tmp = buffer('spectrum', 2 * block).subarray(0, 2 * block);
   for (let b = 0; b < blocks; b++) {
-    dataSpectra.push(
-      coarse.map((d) => {
-        input.fill(0);
-        const from = b * hop;
-        const to = Math.min(nc, from + block);
-        for (let j = from; j < to; j++) input[j - from] = d[j] as number;
-        plan.realTransform(tmp, input);
-        return tmp.slice(0, block + 2);
-      }),
-    );
+    for (let c = 0; c < nx; c++) {
+      const d = coarse[c] as Float64Array;
+      input.fill(0);
+      const from = b * hop;
+      const to = Math.min(nc, from + block);
+      for (let j = from; j < to; j++) input[j - from] = d[j] as number;
+      plan.realTransform(tmp, input);
+      dataBand.set(tmp.subarray(2 * kLo, 2 * (kHi + 1)), (b * nx + c) * stride);
+    }
   }
-  // Segment energies per (component subset, coarse length), shared by templates alike.
-  const energies = new Map<string, Float64Array>();
-  const energyOf = (map: number[], m: number): Float64Array => {
-    const key = `${map.join(',')}|${m}`;
+  // 1/√(segment energy) per (component subset, coarse length), shared by templates alike; 0 for an
+  // empty segment (dead channel, zero padding), as in normalizedXcorr.
+  const energies = new Map<number, Float64Array>();
+  const invEnergyOf = (mask: number, m: number): Float64Array => {
+    const key = mask * 1_000_000 + m;
     let e = energies.get(key);
     if (!e) {
-      const lags = nc - m + 1;
-      e = new Float64Array(Math.max(0, lags));
+      const lags = Math.max(0, nc - m + 1);
+      e = new Float64Array(lags);
       let eMax = 0;
-      for (let l = 0; l < lags; l++) {
-        let s = 0;
-        for (const ci of map) if (ci >= 0) s += ((cumsq[ci] as Float64Array)[l + m] as number) - ((cumsq[ci] as Float64Array)[l] as number);
-        e[l] = s;
-        if (s > eMax) eMax = s;
+      for (let ci = 0; ci < nx; ci++) {
+        if (!(mask & (1 << ci))) continue;
+        const cs = cumsq[ci] as Float64Array;
+        for (let l = 0; l < lags; l++) e[l] = (e[l] as number) + (cs[l + m] as number) - (cs[l] as number);
       }
-      // Empty segments (dead channel, zero padding) read as 0, as in normalizedXcorr.
+      for (let l = 0; l < lags; l++) if ((e[l] as number) > eMax) eMax = e[l] as number;
       const floor = eMax * 1e-12;
       for (let l = 0; l < lags; l++) e[l] = (e[l] as number) > floor ? 1 / Math.sqrt(e[l] as number) : 0;
       energies.set(key, e);
     }
     return e;
   };
-  const full = new Float64Array(2 * q);
-  const out = new Float64Array(2 * q);
+  const full = buffer('base', 2 * q).subarray(0, 2 * q);
+  const out = buffer('out', 2 * q).subarray(0, 2 * q);
+  // fft.js's inverse divides by q; the block's correlation needs 1/B, and the analytic signal 2×.
+  const gain = (2 * q) / block;
+  const pairsX: number[] = [];
+  const pairsW: number[] = [];
   for (const g of group) {
-    const inv = energyOf(g.map, g.p.m);
-    const wInv = g.p.energy > 0 ? 1 / Math.sqrt(g.p.energy) : 0;
+    const p = g.p as Prepared;
+    const inv = invEnergyOf(g.mask, p.m);
+    const wInv = p.energy > 0 ? 1 / Math.sqrt(p.energy) : 0;
+    // (window component, template component) offsets of the pairs present in the window.
+    pairsX.length = 0;
+    pairsW.length = 0;
+    for (let c = 0; c < g.map.length; c++) {
+      const ci = g.map[c] as number;
+      if (ci < 0) continue;
+      pairsX.push(ci * stride);
+      pairsW.push(c * stride);
+    }
+    const np = pairsX.length;
+    const w = p.band;
     let bestEnv = -Infinity;
     let bestLag = 0;
     for (let b = 0; b < blocks; b++) {
-      basebandSpectrum(full, dataSpectra[b] as Float64Array[], g.p.spectra, g.map, kLo, kHi);
+      const base = b * nx * stride;
+      // S_k = Σ_c X_c,k·conj(W_c,k) over the band's bins, moved to bins 0 … nb − 1 (see the doc comment).
+      if (np === 3) {
+        // The usual case (three components present), in one pass over the bins.
+        const x0 = base + (pairsX[0] as number);
+        const x1 = base + (pairsX[1] as number);
+        const x2 = base + (pairsX[2] as number);
+        const w0 = pairsW[0] as number;
+        const w1 = pairsW[1] as number;
+        const w2 = pairsW[2] as number;
+        for (let k = 0; k < stride; k += 2) {
+          const ar = dataBand[x0 + k] as number;
+          const ai = dataBand[x0 + k + 1] as number;
+          const br = dataBand[x1 + k] as number;
+          const bi = dataBand[x1 + k + 1] as number;
+          const cr = dataBand[x2 + k] as number;
+          const ci = dataBand[x2 + k + 1] as number;
+          const ur = w[w0 + k] as number;
+          const ui = w[w0 + k + 1] as number;
+          const vr = w[w1 + k] as number;
+          const vi = w[w1 + k + 1] as number;
+          const tr = w[w2 + k] as number;
+          const ti = w[w2 + k + 1] as number;
+          // (a + ib)(c − id) = (ac + bd) + i(bc − ad), summed over the three.
+          full[k] = ar * ur + ai * ui + br * vr + bi * vi + cr * tr + ci * ti;
+          full[k + 1] = ai * ur - ar * ui + bi * vr - br * vi + ci * tr - cr * ti;
+        }
+      } else {
+        full.fill(0, 0, stride);
+        for (let pi = 0; pi < np; pi++) {
+          const xo = base + (pairsX[pi] as number);
+          const wo = pairsW[pi] as number;
+          for (let k = 0; k < stride; k += 2) {
+            const xr = dataBand[xo + k] as number;
+            const xi = dataBand[xo + k + 1] as number;
+            const wr = w[wo + k] as number;
+            const wi = w[wo + k + 1] as number;
+            full[k] = (full[k] as number) + xr * wr + xi * wi;
+            full[k + 1] = (full[k + 1] as number) + xi * wr - xr * wi;
+          }
+        }
+      }
+      full.fill(0, stride);
       basePlan.inverseTransform(out, full);
       const from = b * hop;
-      for (let j = 0; j < q; j++) {
-        const l = j * dec;
-        if (l >= hop || from + l >= lagsTotal || from + l >= inv.length) break;
+      const jEnd = Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, inv.length) - from) / dec), q);
+      for (let j = 0; j < jEnd; j++) {
         const re = out[2 * j] as number;
         const im = out[2 * j + 1] as number;
         // Envelope² scaled by the data energy; compared squared (no square root per lag).
-        const scale = inv[from + l] as number;
+        const scale = inv[from + j * dec] as number;
         const env2 = (re * re + im * im) * scale * scale;
         if (env2 > bestEnv) {
           bestEnv = env2;
-          bestLag = from + l;
+          bestLag = from + j * dec;
         }
       }
     }
-    // fft.js's inverse divides by q; the block's correlation needs 1/B, and the analytic signal 2×.
-    if (bestEnv > -Infinity) best.set(g.t.id, { value: ((2 * q) / block) * Math.sqrt(bestEnv) * wInv, lag: bestLag, spacing: dec });
+    if (bestEnv > -Infinity) {
+      g.coarseValue = gain * Math.sqrt(bestEnv) * wInv;
+      g.coarseLag = bestLag;
+      g.spacing = dec;
+    }
   }
 }
 
-/**
- * The analytic correlation's band, moved to 0 Hz: bins kLo … kHi of S_k = Σ_c X_c,k·conj(W_c,k)
- * ((a + ib)(c − id) = (ac + bd) + i(bc − ad); the spectrum of the real circular correlation r summed
- * over the template's components present in the window) written to bins 0 … kHi − kLo of `full`,
- * the rest 0. The inverse transform of size Q of these bins is, at every (B/Q)-th lag, the analytic
- * signal z = r + i·H(r) of r (negative frequencies dropped, positive doubled: Bracewell, The Fourier
- * Transform and Its Applications, ch. 12) times a phase ramp — so its magnitude is r's envelope,
- * sampled every B/Q coarse lags (the envelope is as smooth as the band is narrow, so this loses
- * little), and its peak does not depend on where the lags fall within the band's cycles.
- */
-function basebandSpectrum(full: Float64Array, xs: readonly Float64Array[], ws: readonly Float32Array[], map: readonly number[], kLo: number, kHi: number): void {
-  const xsUsed: Float64Array[] = [];
-  const wsUsed: Float32Array[] = [];
-  for (let c = 0; c < ws.length; c++) {
-    const ci = map[c] as number;
-    if (ci >= 0) {
-      xsUsed.push(xs[ci] as Float64Array);
-      wsUsed.push(ws[c] as Float32Array);
-    }
-  }
-  const nc = xsUsed.length;
-  for (let k = kLo; k <= kHi; k++) {
-    const re = 2 * k;
-    const im = re + 1;
-    let ar = 0;
-    let ai = 0;
-    for (let c = 0; c < nc; c++) {
-      const x = xsUsed[c] as Float64Array;
-      const w = wsUsed[c] as Float32Array;
-      const xr = x[re] as number;
-      const xi = x[im] as number;
-      const wr = w[re] as number;
-      const wi = w[im] as number;
-      ar += xr * wr + xi * wi;
-      ai += xi * wr - xr * wi;
-    }
-    const o = 2 * (k - kLo);
-    full[o] = ar;
-    full[o + 1] = ai;
-  }
-  full.fill(0, 2 * (kHi - kLo + 1));
-}
 
 /**
  * The exact C (definition, full rate) at every lag within ±`radius` of `center`, and its best lag;
- * with each component's own C there. Null when no lag is valid or the segments have no energy.
+ * with each component's own C there. The data energy of each lag is a difference of the window's
+ * running sums of squares (`cumsq`, once per window), so each lag costs one inner product per
+ * component. Segments below 1e-12 of the used components' whole energy count as empty (as in
+ * normalizedXcorr: round-off is not divided by almost nothing). Null when no lag is valid or the
+ * segments have no energy.
  */
-function refineAround(t: BankTemplate, map: readonly number[], traces: readonly Float64Array[], m: number, center: number, radius: number): { value: number; lag: number; perChannel: Array<number | null> } | null {
+function refineAround(t: BankTemplate, map: readonly number[], traces: readonly Float64Array[], cumsq: readonly Float64Array[], m: number, center: number, radius: number): { value: number; lag: number; perChannel: Array<number | null> } | null {
   const n = traces[0]?.length ?? 0;
   const lo = Math.max(0, center - radius);
   const hi = Math.min(n - m, center + radius);
   let ww = 0;
+  let total = 0;
   for (let c = 0; c < t.samples.length; c++) {
-    if ((map[c] as number) < 0) continue;
+    const ci = map[c] as number;
+    if (ci < 0) continue;
     const w = t.samples[c] as ArrayLike<number>;
     for (let i = 0; i < m; i++) ww += (w[i] as number) * (w[i] as number);
+    total += (cumsq[ci] as Float64Array)[n] as number;
   }
   if (!(ww > 0)) return null;
+  const floor = total * 1e-12;
   let best: { value: number; lag: number } | null = null;
   for (let lag = lo; lag <= hi; lag++) {
-    let dot = 0;
     let xx = 0;
     for (let c = 0; c < t.samples.length; c++) {
       const ci = map[c] as number;
       if (ci < 0) continue;
-      const w = t.samples[c] as ArrayLike<number>;
-      const x = traces[ci] as Float64Array;
-      for (let i = 0; i < m; i++) {
-        const b = x[lag + i] as number;
-        dot += (w[i] as number) * b;
-        xx += b * b;
-      }
+      const cs = cumsq[ci] as Float64Array;
+      xx += (cs[lag + m] as number) - (cs[lag] as number);
     }
-    if (!(xx > 0)) continue;
+    if (!(xx > floor)) continue;
+    let dot = 0;
+    for (let c = 0; c < t.samples.length; c++) {
+      const ci = map[c] as number;
+      if (ci < 0) continue;
+      dot += innerProduct(t.samples[c] as ArrayLike<number>, traces[ci] as Float64Array, lag, m);
+    }
     const v = dot / Math.sqrt(ww * xx);
     if (!best || v > best.value) best = { value: Math.max(-1, Math.min(1, v)), lag };
   }
   if (!best) return null;
-  const perChannel = t.samples.map((wAny, c) => {
+  const at = best.lag;
+  const perChannel = t.samples.map((w, c) => {
     const ci = map[c] as number;
     if (ci < 0) return null;
-    const w = wAny;
     const x = traces[ci] as Float64Array;
     let dot = 0;
     let xx = 0;
     let wc = 0;
     for (let i = 0; i < m; i++) {
-      const b = x[(best as { lag: number }).lag + i] as number;
+      const b = x[at + i] as number;
       dot += (w[i] as number) * b;
       xx += b * b;
       wc += (w[i] as number) * (w[i] as number);
@@ -399,4 +479,21 @@ function refineAround(t: BankTemplate, map: readonly number[], traces: readonly 
     return xx > 0 && wc > 0 ? dot / Math.sqrt(xx * wc) : null;
   });
   return { ...best, perChannel };
+}
+
+/** Σ_{i<m} w[i]·x[from + i], four partial sums (independent chains run in parallel on the CPU). */
+function innerProduct(w: ArrayLike<number>, x: Float64Array, from: number, m: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let i = 0;
+  for (; i + 3 < m; i += 4) {
+    s0 += (w[i] as number) * (x[from + i] as number);
+    s1 += (w[i + 1] as number) * (x[from + i + 1] as number);
+    s2 += (w[i + 2] as number) * (x[from + i + 2] as number);
+    s3 += (w[i + 3] as number) * (x[from + i + 3] as number);
+  }
+  for (; i < m; i++) s0 += (w[i] as number) * (x[from + i] as number);
+  return s0 + s1 + (s2 + s3);
 }

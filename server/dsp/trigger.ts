@@ -1,4 +1,4 @@
-import type { ProcessingProfile } from '../../shared/schemas/processing-profile';
+import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import { aicOnsetIndex } from './aic-picker';
 import type { Sos } from './butterworth';
 import { detrendLinear } from './preprocess';

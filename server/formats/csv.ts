@@ -1,7 +1,7 @@
 import { parseIsoTimeUs } from './iso-time';
 import { parseStreamId } from './stream-id';
 import { WaveformParseError, type DecodedStream } from './types';
-import { clipInput, quoteInput } from '../../shared/quote-input';
+import { clipInput, quoteInput } from '@shared/quote-input';
 
 /** Options for {@link decodeCsv}. */
 export interface CsvOptions {

@@ -4,7 +4,7 @@ import { decodeMiniSeed3 } from './mseed3';
 import { assertExactPlacement } from './placement';
 import { describeNonCsvText, quoteStart, sniffFile } from './sniff';
 import { WaveformParseError, type DecodedStream } from './types';
-import { clipInput, MAX_QUOTED_CHARS } from '../../shared/quote-input';
+import { clipInput, MAX_QUOTED_CHARS } from '@shared/quote-input';
 
 /** Options for {@link decodeWaveform}. */
 export interface DecodeOptions {

@@ -1,16 +1,12 @@
 import { formatIsoTimeUs } from './iso-time';
-import { WaveformParseError, type DecodeNote, type DecodedStream, type StreamDiscontinuity } from './types';
+import { WaveformParseError, type DecodeNote, type DecodedStream, type StreamDiscontinuity, type StreamHeader } from './types';
 
-/** One decoded data record, before records are merged into streams. */
-export interface DecodedRecord {
-  network: string;
-  station: string;
-  location: string;
-  channel: string;
-  /** Sample rate, Hz (0 for records without a rate, which carry no samples worth merging). */
-  sampleRateHz: number;
-  /** Time of the record's first sample, µs since epoch, after corrections. */
-  startTimeUs: number;
+/**
+ * One decoded data record, before records are merged into streams: `sampleRateHz` is 0 for records
+ * without a rate (they carry no samples worth merging), `startTimeUs` the record's first sample's
+ * time after corrections.
+ */
+export interface DecodedRecord extends StreamHeader {
   samples: Float64Array;
   encoding: string;
   /** 0-based position of the record in the file, for messages. */

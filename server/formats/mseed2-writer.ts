@@ -1,19 +1,12 @@
 import { encodeSteim } from './steim-encode';
+import type { StreamHeader } from './types';
 
-/** A stream to write: codes, rate, start and samples. */
-export interface MiniSeed2Input {
-  /** Network code, 1–2 characters (SEED 2 field width). */
-  network: string;
-  /** Station code, 1–5 characters. */
-  station: string;
-  /** Location code, 0–2 characters. */
-  location: string;
-  /** Channel code, 3 characters or fewer. */
-  channel: string;
-  /** Sample rate, Hz (> 0; must be exact as factor/multiplier, see below). */
-  sampleRateHz: number;
-  /** Time of the first sample, µs since epoch (UTC), an integer. */
-  startTimeUs: number;
+/**
+ * A stream to write: codes, rate, start and samples. The codes fit the SEED 2 field widths (network
+ * 1–2 characters, station 1–5, location 0–2, channel 3 or fewer); the rate is > 0 and must be exact
+ * as factor/multiplier (see below); the start is an integer number of µs.
+ */
+export interface MiniSeed2Input extends StreamHeader {
   /** Samples: counts (Int32Array) or floats (Float32Array; integer encodings need integral values). */
   samples: Int32Array | Float32Array;
 }

@@ -1,18 +1,13 @@
 import { crc32c } from './crc32c';
 import { MS3_FIXED_HEADER_LENGTH } from './mseed3';
 import { encodeSteim } from './steim-encode';
+import type { StreamHeader } from './types';
 
-/** A stream to write as miniSEED 3. */
-export interface MiniSeed3Input {
-  network: string;
-  station: string;
-  location: string;
-  /** SEED channel code of 3 characters (band, source, subsource), e.g. `HHZ`. */
-  channel: string;
-  /** Sample rate, Hz (> 0). */
-  sampleRateHz: number;
-  /** Time of the first sample, µs since epoch (UTC), an integer. */
-  startTimeUs: number;
+/**
+ * A stream to write as miniSEED 3: the channel a SEED code of 3 characters (band, source,
+ * subsource), e.g. `HHZ`; the rate > 0; the start an integer number of µs.
+ */
+export interface MiniSeed3Input extends StreamHeader {
   /** Counts (Int32Array) or floats (Float32Array / Float64Array for float encodings). */
   samples: Int32Array | Float32Array | Float64Array;
 }

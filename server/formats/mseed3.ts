@@ -5,7 +5,7 @@ import { decodeSamples, latin1, SEED_ENCODINGS, skipZeroPadding } from './mseed2
 import { seedTimeToUs } from './seed-time';
 import { headerCode } from './stream-id';
 import { WaveformParseError, type DecodedStream } from './types';
-import { quoteInput } from '../../shared/quote-input';
+import { quoteInput } from '@shared/quote-input';
 
 /** Fixed header length of a miniSEED 3 record, bytes (FDSN miniSEED 3 specification, 2022). */
 export const MS3_FIXED_HEADER_LENGTH = 40;

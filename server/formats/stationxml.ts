@@ -1,7 +1,7 @@
 import { XMLParser, XMLValidator } from 'fast-xml-parser';
 import { z } from 'zod';
 import { parseIsoTimeUs } from './iso-time';
-import { clipInput, quoteInput } from '../../shared/quote-input';
+import { clipInput, quoteInput } from '@shared/quote-input';
 
 /** The error parseStationXml throws: names the element path and what is wrong. */
 export class StationXmlParseError extends Error {

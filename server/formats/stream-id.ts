@@ -1,5 +1,5 @@
 import { WaveformParseError } from './types';
-import { quoteInput } from '../../shared/quote-input';
+import { quoteInput } from '@shared/quote-input';
 
 /** The parts of an FDSN stream id `NET.STA.LOC.CHA`. */
 export interface StreamIdParts {

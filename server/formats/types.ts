@@ -42,18 +42,27 @@ export interface DecodeNote {
   count: number;
 }
 
-/** One continuous-or-gapped stream after merging all its records, in time order. */
-export interface DecodedStream {
-  /** FDSN stream id `NET.STA.LOC.CHA` (location may be empty: `XX.KV03..HHZ`). */
-  id: string;
+/**
+ * Where a run of samples belongs and when it starts: the FDSN codes (network, station, location,
+ * channel), the sample rate in Hz and the time of the first sample in µs since the epoch (UTC). The
+ * decoded streams and records, the writers' inputs and the demo's pieces all carry it.
+ */
+export interface StreamHeader {
   network: string;
   station: string;
   location: string;
   channel: string;
-  /** Nominal sample rate, Hz. */
   sampleRateHz: number;
-  /** Time of the first sample, µs since epoch (UTC), after time corrections. */
   startTimeUs: number;
+}
+
+/**
+ * One continuous-or-gapped stream after merging all its records, in time order: `sampleRateHz` is
+ * the nominal rate, `startTimeUs` the first sample's time after time corrections.
+ */
+export interface DecodedStream extends StreamHeader {
+  /** FDSN stream id `NET.STA.LOC.CHA` (location may be empty: `XX.KV03..HHZ`). */
+  id: string;
   /**
    * Samples in the file's units (counts for integer/Steim data), concatenated across records. May
    * view a larger buffer (room that dropped repeats did not fill): use byteOffset/byteLength.

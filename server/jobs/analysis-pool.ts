@@ -7,6 +7,8 @@ import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import type { AnalysisResult, AnalyzeOptions } from '@server/dsp/pipeline';
 import type { TracesInput } from '@server/features/queue/queue-traces';
 import type { BankTemplate } from '@server/dsp/template-bank';
+import type { OverlayInput } from '@server/features/similarity/item-matches';
+import type { ItemMatch } from '@shared/schemas/similarity';
 import type { AnalysisTask, DecodeOutcome, DecodeTask, MatchedOutcome, MatchedTask } from './analysis-worker';
 
 /**
@@ -35,6 +37,11 @@ export interface AnalysisPool {
    * sample blobs are copied once and their copies transferred.
    */
   traces(input: TracesInput): Promise<Uint8Array>;
+  /**
+   * The overlays of a queue item's matches (`matchOverlays` in a worker: the window's band-pass is the
+   * heavy part). The input's blobs are copied to the worker.
+   */
+  overlays(input: OverlayInput): Promise<Array<ItemMatch['overlay']>>;
   /** Number of worker threads. */
   readonly threads: number;
   /** Stop the workers (pending tasks are rejected). */
@@ -64,7 +71,7 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
   const here = import.meta.url;
   const isTs = here.endsWith('.ts');
   const filename = new URL(isTs ? './analysis-worker.ts' : './analysis-worker.js', here).href;
-  const pool = new Piscina<AnalysisTask | MatchedTask | DecodeTask | TracesInput, unknown>({
+  const pool = new Piscina<AnalysisTask | MatchedTask | DecodeTask | TracesInput | OverlayInput, unknown>({
     filename,
     minThreads: threads,
     maxThreads: threads,
@@ -106,6 +113,11 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
       if (!(out instanceof Uint8Array)) throw new Error('analysis worker: unexpected answer to traces');
       return out;
     },
+    async overlays(input) {
+      const out: unknown = await pool.run(input, { name: 'overlays' });
+      if (!Array.isArray(out) || out.length !== input.matches.length) throw new Error('analysis worker: unexpected answer to overlays');
+      return out as Array<ItemMatch['overlay']>;
+    },
     async close() {
       await pool.destroy();
     },
@@ -128,6 +140,7 @@ export function createLazyAnalysisPool(threads: number): AnalysisPool {
     runMatched: (streams, profile, opts, bank, match) => open().runMatched(streams, profile, opts, bank, match),
     decode: (bytes, opts, limits) => open().decode(bytes, opts, limits),
     traces: (input) => open().traces(input),
+    overlays: (input) => open().overlays(input),
     async close() {
       const started = pool;
       pool = null;

@@ -10,6 +10,7 @@ import { computeTraces, type TracesInput } from '@server/features/queue/queue-tr
 import { windowLimitProblem, type WindowLimits } from '@server/formats/window-limits';
 import { PreparedCache, type BankTemplate } from '@server/dsp/template-bank';
 import { matchWindow, type MatchingOutcome } from '@server/features/similarity/window-matching';
+import { matchOverlays, type OverlayInput } from '@server/features/similarity/item-matches';
 
 /**
  * Runs this worker thread below the event loop's priority: Linux nice +`WORKER_NICE` for this thread
@@ -132,4 +133,9 @@ export function decode(task: DecodeTask): unknown {
 export function traces(task: TracesInput): unknown {
   const bytes = new TextEncoder().encode(JSON.stringify(computeTraces(task)));
   return moved(bytes, [bytes.buffer]);
+}
+
+/** The overlays of a queue item's matches (`matchOverlays`): the window's band-pass off the event loop. */
+export function overlays(task: OverlayInput): unknown {
+  return matchOverlays(task);
 }

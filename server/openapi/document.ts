@@ -4,7 +4,6 @@ import { apiErrorBodySchema } from '@shared/api-error';
 import { accountOperations } from '@server/features/accounts/openapi';
 import { auditOperations } from '@server/features/audit/openapi';
 import { eventOperations } from '@server/features/events/openapi';
-import { eventGeometryOperations } from '@server/features/events/event-geometry';
 import { healthOperations } from '@server/features/health/openapi';
 import { ingestOperations } from '@server/features/ingest/openapi';
 import { queueOperations } from '@server/features/queue/openapi';
@@ -31,7 +30,6 @@ export const apiOperations: readonly ApiOperation[] = [
   ...supervisionOperations,
   ...similarityOperations,
   ...eventOperations,
-  ...eventGeometryOperations,
   ...stationOperations,
   ...ingestOperations,
   ...documentOperations,

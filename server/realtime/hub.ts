@@ -49,6 +49,11 @@ export interface HubOptions {
   recheck?: (principals: readonly HubPrincipal[]) => Promise<Map<string, HubVerdict>>;
   /** Interval of the periodic re-check, ms (default 2000); `recheckNow()` runs one at once. */
   recheckMs?: number;
+  /**
+   * Called by `notify()` besides waking this hub: in the multi-instance mode it publishes the
+   * wake-up to the other processes' hubs (server/cluster/change-wakeup.ts).
+   */
+  onNotify?: () => void;
 }
 
 interface Client {
@@ -63,8 +68,10 @@ interface Client {
 export interface RealtimeHub {
   /** Handles upgrades on `path` (default /ws) of `server`. */
   attach(server: Server, path?: string): void;
-  /** A change was committed: send what is new to every client. Cheap to call often. */
+  /** A change was committed: send what is new to every client (and tell the other processes, `onNotify`). Cheap to call often. */
   notify(): void;
+  /** Another process committed a change: read the change log and send what is new, telling nobody. */
+  wake(): void;
   /** Resolves once every change committed before the call has been handed to the sockets. */
   flush(): Promise<void>;
   /**
@@ -170,7 +177,7 @@ export function createHub(opts: HubOptions): RealtimeHub {
     }
   };
 
-  const notify = () => {
+  const wake = () => {
     if (pumpQueued || closed) return;
     pumpQueued = true;
     // Every pump that returns has read the change log at least once: the read works (again).
@@ -178,6 +185,10 @@ export function createHub(opts: HubOptions): RealtimeHub {
       await pump();
       readOutage.ok();
     });
+  };
+  const notify = () => {
+    wake();
+    if (!closed) opts.onNotify?.();
   };
 
   const join = (ws: WebSocket, principal: HubPrincipal, since: number | undefined) =>
@@ -224,7 +235,7 @@ export function createHub(opts: HubOptions): RealtimeHub {
     }
   }, heartbeatMs);
   heartbeat.unref();
-  const poll = setInterval(notify, opts.pollMs ?? 1000);
+  const poll = setInterval(wake, opts.pollMs ?? 1000);
   poll.unref();
 
   /** Closes a socket whose principal no longer holds, and stops sending to it at once. */
@@ -307,8 +318,9 @@ export function createHub(opts: HubOptions): RealtimeHub {
       });
     },
     notify,
+    wake,
     flush() {
-      notify();
+      wake();
       return enqueue(async () => {});
     },
     recheckNow,

@@ -178,6 +178,8 @@ export const eventSummarySchema = z.object({
   magnitude: z.number().nullable(),
   magnitudeUncertainty: z.number().nullable(),
   magnitudeType: z.string().nullable(),
+  /** Stations whose ML went into the network ML (null without a magnitude). */
+  magnitudeStationCount: z.number().nullable(),
   stationCount: z.number(),
   usedStations: z.number().nullable(),
   azimuthalGapDeg: z.number().nullable(),
@@ -190,6 +192,8 @@ export const eventSummarySchema = z.object({
   candidateEventId: z.number().nullable(),
   /** The queue items (windows) the event holds: each opens its member window. */
   memberItemIds: z.array(z.number()),
+  /** The member windows' stations (NET.STA), sorted. */
+  stations: z.array(z.string()),
   version: z.number(),
 });
 

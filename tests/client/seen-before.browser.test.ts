@@ -16,7 +16,8 @@ import { startTestServer, type TestServer } from '../setup/test-server';
  * "Seen before" on the review screen (issue 19): a real local earthquake window (BG.ACR,
  * tests/fixtures/real-windows, manifest.csv) is uploaded twice with different start times; the first
  * is labelled a quarry blast. On the second item the panel shows the match and its overlay, and ONE
- * key (M) takes the matched label into the form; the analyst confirms it (the Label button). Real server and
+ * key (M) takes the matched label into the form (nothing else changes, nothing is saved) and moves the
+ * focus to the Label button; the analyst confirms it with Enter. Real server and
  * sessions, Debian's chromium; needs the built client.
  */
 describe('seen before: accept a matched label with one key (chromium, real server)', () => {
@@ -55,7 +56,7 @@ describe('seen before: accept a matched label with one key (chromium, real serve
     await server?.close();
   });
 
-  it('shows the match with its overlay; M takes “quarry blast” into the form; the Label button (Enter) confirms it', async () => {
+  it('shows the match with its overlay; one key (M) takes “quarry blast” into the form and nothing else; Enter on the Label button confirms it', async () => {
     const b = await launchBrowser({ width: 1440, height: 900, colorScheme: 'light' });
     browsers.push(b);
     await b.context.addCookies([{ name: 'seisift_session', value: ana.sessionId, url: server.url }]);
@@ -67,16 +68,23 @@ describe('seen before: accept a matched label with one key (chromium, real serve
     expect(await panel.locator('svg[role="img"]').count()).toBeGreaterThan(0);
     // The flag's reasons say it too.
     expect(await page.getByText(/^resembles 1 quarry blast at ACR, best match 1\.00 \(2026-03-11 11:58\)/).count()).toBe(1);
-    const typeSelect = page.locator('form[aria-label="Label this item"] select').first();
+    const form = page.locator('form[aria-label="Label this item"]');
+    const typeSelect = form.locator('select').first();
     expect(await typeSelect.inputValue()).toBe('earthquake');
+    const formBefore = await form.locator('select, textarea, input').evaluateAll((els) => els.map((e) => (e as HTMLInputElement).value));
     await page.locator('body').click({ position: { x: 5, y: 5 } });
+    // ONE key: M takes the matched label into the form, and only that.
     await page.keyboard.press('m');
     await expect.poll(() => typeSelect.inputValue()).toBe('quarry blast');
+    const formAfter = await form.locator('select, textarea, input').evaluateAll((els) => els.map((e) => (e as HTMLInputElement).value));
+    expect(formAfter).toEqual(formBefore.map((v, i) => (i === 0 ? 'quarry blast' : v)));
     await screenshot(page, 'seen-before-review');
     // Nothing saved yet: the analyst confirms.
     const before = queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${secondId}`).set('Cookie', ana.cookie)).body);
     expect(before.state).toBe('new');
-    await page.locator('form[aria-label="Label this item"] button[type="submit"]').click();
+    // M left the focus on the Label button: Enter confirms the taken label.
+    expect(await page.evaluate(() => document.activeElement?.textContent ?? '')).toMatch(/^Label/);
+    await page.keyboard.press('Enter');
     await expect
       .poll(async () => queueItemDetailSchema.parse((await request(server.url).get(`/api/queue/items/${secondId}`).set('Cookie', ana.cookie)).body).labelType, { timeout: 15_000 })
       .toBe('quarry blast');

@@ -1,12 +1,15 @@
 import { readFile } from 'node:fs/promises';
+import { eq } from 'drizzle-orm';
 import { XMLParser } from 'fast-xml-parser';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { queueItemDetailSchema } from '@shared/schemas/queue';
+import { users } from '@server/db/schema/users';
 import { seedDemo } from '@server/db/seed-demo';
 import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { seedSyntheticEvent } from '@tests/setup/event-fixtures';
 import { syntheticStreams } from '@tests/setup/queue-fixtures';
 import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
@@ -17,8 +20,9 @@ import { startTestServer, type TestServer } from '@tests/setup/test-server';
  * 1. the demo operator uploads two MiniSEED windows (KV01, KV02) on the upload page;
  * 2. the demo analyst finds both in the queue, labels the KV01 one as an earthquake with a P pick
  *    and escalates the KV02 one with a reason;
- * 3. the demo supervisor finds the escalation in the inbox and confirms it, sets the labelled event
- *    to `confirmed` on the review page, and downloads the catalogue as QuakeML and as CSV.
+ * 3. the demo supervisor finds the escalation in the inbox and confirms it, publishes a located
+ *    five-station event (synthetic, seeded meanwhile) as final, sets the lone labelled window to
+ *    `confirmed` on the review page, and downloads the catalogue as QuakeML and as CSV.
  * The checks read the server's state over the API and parse the downloads (QuakeML 1.2 element
  * names per the QuakeML 1.2 BED schema: eventParameters/event/type, pick/time/value).
  * The windows are synthetic test input (noise plus a 5 Hz burst), not check values.
@@ -172,7 +176,32 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     expect(confirmed.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
     await screenshot(page, 'story-3-supervisor-inbox');
 
+    // Meanwhile five stations of a ring recorded a local event, built into a located event (synthetic
+    // windows from tests/setup/event-fixtures.ts: test input, not check values).
+    const db = server.ctx.database.db;
+    const [sup] = await db.select({ id: users.id, email: users.email }).from(users).where(eq(users.email, 'supervisor@kestrel.example'));
+    if (!sup) throw new Error('the demo supervisor is missing');
+    const seeded = await seedSyntheticEvent(db, {
+      codes: ['KS01', 'KS02', 'KS03', 'KS04', 'KS05'],
+      placements: [[20, 10], [95, 18], [170, 14], [240, 22], [310, 16]],
+      truth: { latitudeDeg: 46.262, longitudeDeg: 11.07, depthKm: 6, timeS: Math.floor(startKv01.getTime() / 1000) - 3600 },
+      supervisor: sup,
+    });
+
     await page.goto(`${server.url}/review`);
+    // The supervisor publishes the event: earthquake, known, final.
+    const eventRow = page.getByTestId(`event-row-${seeded.eventId}`);
+    await eventRow.waitFor({ timeout: 30_000 });
+    expect(await eventRow.textContent()).toMatch(/ML \d\.\d ± \d\.\d/);
+    await eventRow.getByRole('button', { name: 'Review…' }).click();
+    const eventForm = page.getByRole('form', { name: `Review event ${seeded.eventId}` });
+    await eventForm.getByLabel('Event type').selectOption('earthquake');
+    await eventForm.getByLabel('Type certainty').selectOption('known');
+    await eventForm.getByLabel('Evaluation status').selectOption('final');
+    await eventForm.getByRole('button', { name: `Save event ${seeded.eventId}` }).click();
+    await eventRow.getByText('final', { exact: true }).waitFor({ timeout: 20_000 });
+
+    // The labelled window that no event holds, reviewed on its own.
     const reviewRow = page.getByTestId(`review-row-${kv01Item}`);
     await reviewRow.waitFor({ timeout: 30_000 });
     expect(await reviewRow.textContent()).toContain('earthquake');
@@ -194,6 +223,7 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     expect(exported?.typeCertainty).toBe('suspected');
     expect(exported?.pick[0]?.time.value).toBe(pick?.time);
     expect(exported?.pick[0]?.evaluationStatus).toBe('confirmed');
+    expect(events.some((e) => e['@_publicID'] === `smi:seisift.local/event/event/${seeded.eventId}`), 'the published event is in the export').toBe(true);
 
     await page.getByRole('combobox', { name: 'Format' }).selectOption('csv');
     const [csvDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download CSV' }).click()]);
@@ -206,6 +236,9 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     expect(line, csv.join('\n')).toBeDefined();
     expect(line).toContain(',earthquake,suspected,confirmed,');
     expect(line).toContain('XX.KV01');
+    const eventLine = csv.find((l) => l.startsWith(`smi:seisift.local/event/event/${seeded.eventId},`));
+    expect(eventLine, csv.join('\n')).toBeDefined();
+    expect(eventLine).toContain(',earthquake,known,final,');
     expect(problems.filter((p) => !/favicon/.test(p))).toEqual([]);
-  }, 180_000);
+  }, 300_000);
 });

@@ -207,7 +207,8 @@ async function takeScreenshots(): Promise<void> {
       await page.goto(`${url}/review`);
       await page.getByRole('heading', { name: 'Review & catalogue' }).waitFor({ timeout: 15_000 });
       await setPeriod();
-      await page.locator('[data-testid^="review-row-"]').first().waitFor({ timeout: 15_000 });
+      // The demo's quakes and blasts are events (one row each) once the period is set.
+      await page.locator('[data-testid^="event-row-"]').first().waitFor({ timeout: 30_000 });
       await shoot('07-supervisor-review');
     });
 

@@ -1,24 +1,14 @@
 import { and, asc, eq, isNull } from 'drizzle-orm';
-import { Router } from 'express';
 import { EVENT_CAUTION } from '@shared/schemas/events';
-import { eventGeometrySchema, type EventGeometry } from '@shared/schemas/event-geometry';
-import { eventTracesQuerySchema, eventTracesSchema } from '@shared/schemas/event-traces';
-import type { AppContext } from '@server/context';
+import type { EventGeometry } from '@shared/schemas/event-geometry';
 import type { DbOrTx } from '@server/db/client';
 import { eventMembers, eventOrigins, seismicEvents } from '@server/db/schema/events';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
-import { currentUser, requireUser } from '@server/auth/authenticate';
-import { notFound } from '@server/errors';
 import { formatIsoTimeUs } from '@server/formats/iso-time';
-import { parseInput } from '@server/http/validate';
-import { jsonResponse, type ApiOperation } from '@server/openapi/operation';
-import { authorizedStations, requirePermission } from '@server/policies/authorize';
 import { azimuthDeg, greatCircleDistanceKm } from '@server/seismo/geodesy';
 import { firstArrivalTimeS, prepareVelocityModel } from '@server/seismo/travel-time';
 import { networkSettings } from './event-settings';
-import { eventTraces } from './event-traces';
-import { eventParams } from './router';
 
 /**
  * The stations of an event's network, its members, and the predicted first P and S arrivals from the
@@ -67,48 +57,3 @@ export async function eventGeometry(db: DbOrTx, eventId: number, scope: 'all' | 
     }),
   };
 }
-
-/**
- * `GET /api/events/:id/geometry` and `GET /api/events/:id/traces?points=` (event.view; 404 outside
- * an operator's stations). Mounted before the events router.
- */
-export function eventGeometryRouter(ctx: AppContext): Router {
-  const router = Router();
-  router.get('/:id/traces', requireUser, requirePermission('event.view'), async (req, res) => {
-    const { id } = parseInput(eventParams, req.params, 'params');
-    const q = parseInput(eventTracesQuerySchema, req.query, 'query');
-    const t = await eventTraces(ctx.database.db, id, q.points, authorizedStations(currentUser(req), 'event.view'));
-    if (!t) throw notFound(`Event ${id}`);
-    res.json(t);
-  });
-  router.get('/:id/geometry', requireUser, requirePermission('event.view'), async (req, res) => {
-    const { id } = parseInput(eventParams, req.params, 'params');
-    const g = await eventGeometry(ctx.database.db, id, authorizedStations(currentUser(req), 'event.view'));
-    if (!g) throw notFound(`Event ${id}`);
-    res.json(g);
-  });
-  return router;
-}
-
-/** The geometry route as the OpenAPI document lists it. */
-export const eventGeometryOperations: ApiOperation[] = [
-  {
-    method: 'get',
-    path: '/api/events/:id/geometry',
-    summary: "The event network's stations, its members, and each station's distance, azimuth and predicted first P and S arrivals from the preferred origin",
-    auth: 'session',
-    permission: 'event.view',
-    params: eventParams,
-    responses: { 200: jsonResponse(`Stations and predictions. ${EVENT_CAUTION}`, eventGeometrySchema) },
-  },
-  {
-    method: 'get',
-    path: '/api/events/:id/traces',
-    summary: "Every channel of the event's member windows in one answer: the engine's pre-processed trace (detrended, tapered, ÷ flat sensitivity), min/max-decimated to about `points` points",
-    auth: 'session',
-    permission: 'event.view',
-    params: eventParams,
-    query: eventTracesQuerySchema,
-    responses: { 200: jsonResponse('The member windows\' traces', eventTracesSchema) },
-  },
-];

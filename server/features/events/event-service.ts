@@ -570,20 +570,22 @@ export async function listEvents(db: Database, q: { from?: Date | undefined; to?
     .limit(q.limit);
   if (rows.length === 0) return [];
   const mem = await db
-    .select({ eventId: eventMembers.eventId, stationId: queueItems.stationId, itemId: eventMembers.itemId })
+    .select({ eventId: eventMembers.eventId, stationId: queueItems.stationId, itemId: eventMembers.itemId, network: stations.network, code: stations.code })
     .from(eventMembers)
     .innerJoin(queueItems, eq(queueItems.id, eventMembers.itemId))
+    .innerJoin(stations, eq(stations.id, queueItems.stationId))
     .where(and(inArray(eventMembers.eventId, rows.map((r) => r.e.id)), isNull(eventMembers.removedAt)));
   const out: EventSummary[] = [];
   for (const { e, o, m } of rows) {
     const st = [...new Set(mem.filter((x) => x.eventId === e.id).map((x) => x.stationId))];
     if (scope !== 'all' && !st.some((s) => scope.includes(s))) continue;
-    out.push(summary(e, o, m, st.length, mem.filter((x) => x.eventId === e.id).map((x) => x.itemId)));
+    const own = mem.filter((x) => x.eventId === e.id);
+    out.push(summary(e, o, m, st.length, own.map((x) => x.itemId), own.map((x) => `${x.network}.${x.code}`)));
   }
   return out;
 }
 
-function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$inferSelect | null, m: typeof eventMagnitudes.$inferSelect | null, stationCount: number, memberItemIds: number[]): EventSummary {
+function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$inferSelect | null, m: typeof eventMagnitudes.$inferSelect | null, stationCount: number, memberItemIds: number[], stationCodes: string[]): EventSummary {
   return {
     id: e.id,
     network: e.network,
@@ -597,6 +599,7 @@ function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$i
     magnitude: m?.value ?? null,
     magnitudeUncertainty: m?.uncertainty ?? null,
     magnitudeType: m?.type ?? null,
+    magnitudeStationCount: m?.stationCount ?? null,
     stationCount,
     usedStations: o?.usedStations ?? null,
     azimuthalGapDeg: o?.azimuthalGapDeg ?? null,
@@ -608,6 +611,7 @@ function summary(e: typeof seismicEvents.$inferSelect, o: typeof eventOrigins.$i
     locationRefusal: e.locationRefusal,
     candidateEventId: e.candidateEventId,
     memberItemIds,
+    stations: [...new Set(stationCodes)].sort(),
     version: e.version,
   };
 }
@@ -655,7 +659,14 @@ export async function getEventDetail(db: Database, eventId: number, scope: 'all'
   const manual = picks.filter((p) => p.evaluationMode === 'manual');
   return {
     caution: EVENT_CAUTION,
-    event: summary(e, o, m, activeStations.length, members.filter((x) => x.removedAt === null).map((x) => x.itemId)),
+    event: summary(
+      e,
+      o,
+      m,
+      activeStations.length,
+      members.filter((x) => x.removedAt === null).map((x) => x.itemId),
+      members.filter((x) => x.removedAt === null).map((x) => `${x.network}.${x.code}`),
+    ),
     members: members.map((x) => ({ itemId: x.itemId, station: `${x.network}.${x.code}`, stationId: x.stationId, source: x.source, removed: x.removedAt !== null, windowStart: x.windowStart.toISOString() })),
     origin: o
       ? {

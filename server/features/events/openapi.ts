@@ -1,20 +1,6 @@
-import {
-  acceptPicksBodySchema,
-  amplitudeBodySchema,
-  eventCreateBodySchema,
-  eventDetailSchema,
-  eventLabelBodySchema,
-  eventListQuerySchema,
-  eventListSchema,
-  memberBodySchema,
-  networkParamsSchema,
-  pickBodySchema,
-  pickUpdateBodySchema,
-  relocateBodySchema,
-  velocityModelBodySchema,
-  velocityModelViewSchema,
-  EVENT_CAUTION,
-} from '@shared/schemas/events';
+import { acceptPicksBodySchema, amplitudeBodySchema, eventCreateBodySchema, eventDetailSchema, eventLabelBodySchema, eventListQuerySchema, eventListSchema, memberBodySchema, networkParamsSchema, pickBodySchema, pickUpdateBodySchema, relocateBodySchema, velocityModelBodySchema, velocityModelViewSchema, EVENT_CAUTION } from '@shared/schemas/events';
+import { eventGeometrySchema } from '@shared/schemas/event-geometry';
+import { eventTracesQuerySchema, eventTracesSchema } from '@shared/schemas/event-traces';
 import { jsonResponse, type ApiOperation } from '@server/openapi/operation';
 import { amplitudeParams, eventParams, memberParams, pickParams, versionQuery } from './router';
 
@@ -64,4 +50,23 @@ export const eventOperations: ApiOperation[] = [
   { method: 'delete', path: '/api/events/:id/members/:itemId', summary: 'Take a window out of the event', auth: 'session', permission: 'event.edit', params: memberParams, query: versionQuery, responses: { 200: event, ...changeErrors } },
   { method: 'post', path: '/api/events/:id/relocate', summary: 'Locate the event again (optionally with the depth fixed)', auth: 'session', permission: 'event.edit', params: eventParams, body: { schema: relocateBodySchema }, responses: { 200: event, ...changeErrors } },
   { method: 'put', path: '/api/events/:id/label', summary: "Set the event's type and certainty (and, for a supervisor, its evaluation status)", auth: 'session', permission: 'event.edit', params: eventParams, body: { schema: eventLabelBodySchema }, responses: { 200: event, 409: changeErrors[409] } },
+  {
+    method: 'get',
+    path: '/api/events/:id/geometry',
+    summary: "The event network's stations, its members, and each station's distance, azimuth and predicted first P and S arrivals from the preferred origin",
+    auth: 'session',
+    permission: 'event.view',
+    params: eventParams,
+    responses: { 200: jsonResponse(`Stations and predictions. ${EVENT_CAUTION}`, eventGeometrySchema) },
+  },
+  {
+    method: 'get',
+    path: '/api/events/:id/traces',
+    summary: "Every channel of the event's member windows in one answer: the engine's pre-processed trace (detrended, tapered, ÷ flat sensitivity), min/max-decimated to about `points` points",
+    auth: 'session',
+    permission: 'event.view',
+    params: eventParams,
+    query: eventTracesQuerySchema,
+    responses: { 200: jsonResponse("The member windows' traces", eventTracesSchema) },
+  },
 ];

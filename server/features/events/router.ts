@@ -14,6 +14,7 @@ import {
   velocityModelBodySchema,
   EVENT_CAUTION,
 } from '@shared/schemas/events';
+import { eventTracesQuerySchema } from '@shared/schemas/event-traces';
 import { streamIdSchema } from '@shared/schemas/label';
 import { can } from '@shared/auth/policies';
 import type { AppContext } from '@server/context';
@@ -35,10 +36,11 @@ import {
   removeMember,
   repickAmplitude,
   revertAmplitude,
-  syncEventsFromGroups,
   updatePick,
   type EventDeps,
 } from './event-service';
+import { eventGeometry } from './event-geometry';
+import { eventTraces } from './event-traces';
 import { networkSettings, saveVelocityModel, velocityModelView } from './event-settings';
 
 const id = (what: string) => z.string().regex(/^\d{1,15}$/, `must be ${what} (a whole number)`).transform(Number);
@@ -109,7 +111,6 @@ export function eventsRouter(ctx: AppContext): Router {
 
   router.get('/', requirePermission('event.view'), async (req, res) => {
     const q = parseInput(eventListQuerySchema, req.query, 'query');
-    await syncEventsFromGroups(deps);
     const events = await listEvents(db, { from: q.from ? new Date(q.from) : undefined, to: q.to ? new Date(q.to) : undefined, limit: q.limit }, authorizedStations(currentUser(req), 'event.view'));
     res.json({ caution: EVENT_CAUTION, events });
   });
@@ -121,6 +122,19 @@ export function eventsRouter(ctx: AppContext): Router {
   router.get('/:id', requirePermission('event.view'), async (req, res) => {
     const { id: eventId } = parseInput(eventParams, req.params, 'params');
     res.json(await detail(req, eventId));
+  });
+  router.get('/:id/traces', requirePermission('event.view'), async (req, res) => {
+    const { id } = parseInput(eventParams, req.params, 'params');
+    const q = parseInput(eventTracesQuerySchema, req.query, 'query');
+    const t = await eventTraces(db, id, q.points, authorizedStations(currentUser(req), 'event.view'));
+    if (!t) throw notFound(`Event ${id}`);
+    res.json(t);
+  });
+  router.get('/:id/geometry', requirePermission('event.view'), async (req, res) => {
+    const { id } = parseInput(eventParams, req.params, 'params');
+    const g = await eventGeometry(db, id, authorizedStations(currentUser(req), 'event.view'));
+    if (!g) throw notFound(`Event ${id}`);
+    res.json(g);
   });
 
   router.post('/:id/picks', requirePermission('event.pick'), async (req, res) => {

@@ -22,6 +22,7 @@ import { itemArrivals } from '@server/db/schema/supervisor';
 import type { AuthUser, IngestPrincipal } from '@server/auth/principal';
 import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { firstTriggerMs, recheckLoneTriggers, regroupArrivals } from '@server/features/events/candidate-events';
+import { syncEventsFromGroups } from '@server/features/events/event-service';
 import { decodeStoredSamples, encodeSamples } from '@server/db/samples-codec';
 import { stationBaseline } from '@server/features/stations/station-baseline';
 import { channelSensitivity, stationKey, stationsByKeys, writeAudit, type Actor, type RegisteredStation } from '@server/features/stations/station-registry';
@@ -534,14 +535,23 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
   // logged and never undoes the upload: the arrival row is stored, and the next arrival nearby
   // regroups its whole neighbourhood, this item included.
   const withArrival = result.created.filter((c) => c.hasArrival).map((c) => c.itemId);
-  if (withArrival.length > 0) {
-    await regroupArrivals({ db: deps.db, notify: deps.notify }, withArrival).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: candidate-event grouping failed'));
-  }
+  const grouped =
+    withArrival.length > 0
+      ? await regroupArrivals({ db: deps.db, notify: deps.notify }, withArrival).catch((err: unknown) => {
+          deps.logger.error({ err, filename }, 'upload: candidate-event grouping failed');
+          return [];
+        })
+      : [];
   // A new window may be the quiet neighbour of an earlier lone trigger: re-check those it covers.
   await recheckLoneTriggers(
     { db: deps.db, notify: deps.notify },
     result.created.map((c) => ({ stationId: c.w.station.id, start: c.windowStart, end: c.windowEnd })),
   ).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: lone-trigger re-check failed'));
+  // A group that formed or grew becomes (part of) an event now, not at the next catch-up round of
+  // the scheduler (server/jobs/app-jobs.ts), which remains the safety net if this fails.
+  if (grouped.length > 0) {
+    await syncEventsFromGroups({ db: deps.db, notify: deps.notify }).catch((err: unknown) => deps.logger.error({ err, filename }, 'upload: building events from candidate groups failed'));
+  }
   // Keep each station's bank under its cap (after the commit: a failure here never undoes the upload).
   for (const w of analysed) {
     if (!w.matching?.template) continue;

@@ -149,12 +149,11 @@ export function uploadsRouter(ctx: AppContext, opts: UploadsRouterOptions = {}):
       limits: { maxSamples: ctx.env.SEISIFT_MAX_WINDOW_SAMPLES, maxDurationS: ctx.env.SEISIFT_MAX_WINDOW_S },
       ...(opts.beforeCommit ? { beforeCommit: opts.beforeCommit } : {}),
     };
-    const result = await ingestFiles(
-      deps,
-      files.map((f) => ({ filename: f.originalname || 'upload', contentType: f.mimetype, bytes: f.buffer })),
-      caller,
-      { ...(fields.streamId ? { streamId: fields.streamId } : {}), ...(startTimeUs !== undefined ? { startTimeUs } : {}) },
-    );
+    const received = files.map((f) => ({ filename: f.originalname || 'upload', contentType: f.mimetype, bytes: f.buffer }));
+    const ingestOptions = { ...(fields.streamId ? { streamId: fields.streamId } : {}), ...(startTimeUs !== undefined ? { startTimeUs } : {}) };
+    // Multi-instance mode: the files go to the analysis job queue and a worker process ingests
+    // each; this request waits for their outcomes (server/cluster/analyse-jobs.ts).
+    const result = ctx.cluster ? await ctx.cluster.uploads.ingest(received, caller, ingestOptions) : await ingestFiles(deps, received, caller, ingestOptions);
     res.status(result.status).json({ files: result.files });
   });
 

@@ -115,17 +115,27 @@ export interface TracesInput {
 }
 
 /**
- * Reads what the traces of item `itemId` are computed from, after checking scope and range.
- * @param scope station ids the viewer may see ('all' or assigned ids)
- * @throws AppError 404 when the item is missing or out of scope; 400 when `from` is outside the window
+ * A queue item's window, station and the station's processing profile, for a viewer whose scope is
+ * `scope` (station ids, or 'all').
+ * @throws AppError 404 when the item is missing or out of scope (one answer: no leak of existence)
  */
-export async function loadTracesInput(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<TracesInput> {
+export async function itemWindowInScope(db: Database, itemId: number, scope: 'all' | readonly number[]): Promise<{ windowId: number; stationId: number; profile: unknown }> {
   const [item] = await db
     .select({ windowId: queueItems.windowId, stationId: queueItems.stationId, profile: stations.profile })
     .from(queueItems)
     .innerJoin(stations, eq(stations.id, queueItems.stationId))
     .where(eq(queueItems.id, itemId));
   if (!item || (scope !== 'all' && !scope.includes(item.stationId))) throw notFound(`Queue item ${itemId}`);
+  return item;
+}
+
+/**
+ * Reads what the traces of item `itemId` are computed from, after checking scope and range.
+ * @param scope station ids the viewer may see ('all' or assigned ids)
+ * @throws AppError 404 when the item is missing or out of scope; 400 when `from` is outside the window
+ */
+export async function loadTracesInput(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<TracesInput> {
+  const item = await itemWindowInScope(db, itemId, scope);
   const rows = await db.select().from(windowChannels).where(eq(windowChannels.windowId, item.windowId)).orderBy(asc(windowChannels.streamId));
   if (rows.length === 0) throw notFound(`Samples of queue item ${itemId}`);
   const registered = await db

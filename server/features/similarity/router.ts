@@ -27,7 +27,8 @@ export function similarityRouter(ctx: AppContext): Router {
   router.get('/items/:id/matches', requirePermission('queue.view'), async (req, res) => {
     const user = currentUser(req);
     const { id } = parseInput(idParams, req.params, 'params');
-    res.json(await itemMatches(db, id, authorizedStations(user, 'queue.view'), settings.resemblesAt));
+    // The rows are read here; the window's band-pass for the overlays runs in the analysis pool.
+    res.json(await itemMatches(db, id, authorizedStations(user, 'queue.view'), settings.resemblesAt, (input) => ctx.analysisPool.overlays(input)));
   });
 
   router.get('/families', requirePermission('dashboard.view'), async (req, res) => {

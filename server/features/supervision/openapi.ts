@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { latestWindowsQuerySchema, latestWindowsSchema } from '@shared/schemas/data-period';
+import { eventReturnBodySchema, eventReturnResultSchema } from '@shared/schemas/event-return';
 import {
   applyThresholdsBodySchema,
   candidateEventSchema,
@@ -98,6 +99,16 @@ export const supervisionOperations: ApiOperation[] = [
     params: idParams,
     body: { schema: returnBodySchema },
     responses: { 200: jsonResponse('Returned', okSchema), 409: { description: 'Stale version or a state that cannot be returned' } },
+  },
+  {
+    method: 'post',
+    path: '/api/supervisor/events/:id/return',
+    summary: "Return an event to the analysts: status back to preliminary, the comment on each member window, labelled members back to the queue",
+    auth: 'session',
+    permission: 'review.evaluate',
+    params: idParams,
+    body: { schema: eventReturnBodySchema },
+    responses: { 200: jsonResponse('Returned', eventReturnResultSchema), 404: { description: 'No such event (or none the supervisor may review)' }, 409: { description: 'The event changed since the version given' } },
   },
   {
     method: 'get',

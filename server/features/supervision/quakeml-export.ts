@@ -1,3 +1,5 @@
+import type { z } from 'zod';
+import type { originViewSchema } from '@shared/schemas/events';
 import type { EvaluationStatus } from '@shared/schemas/supervisor';
 
 /**
@@ -53,35 +55,23 @@ export interface CataloguePick {
   uncertaintyS?: number;
 }
 
-/** The location and magnitude of an exported event (its preferred origin). */
-export interface CatalogueLocation {
+/**
+ * The location and magnitude of an exported event (its preferred origin): the API's origin view
+ * (shared/schemas/events.ts, `time` ISO 8601 UTC) with the uncertainty flattened as QuakeML has it.
+ */
+export type CatalogueLocation = Pick<z.infer<typeof originViewSchema>, 'time' | 'latitude' | 'longitude' | 'depthKm' | 'depthFixed' | 'depthFixedReason' | 'rmsS' | 'azimuthalGapDeg' | 'minimumDistanceKm' | 'usedPhases' | 'usedStations' | 'evaluationMode' | 'author' | 'notes'> & {
   /** Local id of the origin (unique in the export). */
   originId: string;
-  /** ISO 8601 UTC. */
-  time: string;
-  latitude: number;
-  longitude: number;
-  depthKm: number;
-  depthFixed: boolean;
-  depthFixedReason: string | null;
   ellipse: { semiMajorKm: number; semiMinorKm: number; azimuthDeg: number };
   depthKm68: number | null;
   timeS68: number;
-  rmsS: number;
-  azimuthalGapDeg: number;
-  minimumDistanceKm: number;
-  usedPhases: number;
-  usedStations: number;
-  evaluationMode: 'manual' | 'automatic';
   modelName: string;
-  author: string | null;
   creationTime: string;
-  notes: string[];
   arrivals: Array<{ pickId: string | null; phase: string; modelPhase: string; residualS: number; distanceKm: number; azimuthDeg: number; takeoffAngleDeg: number; weight: number }>;
   amplitudes: Array<{ id: string; streamId: string; amplitudeMm: number; periodS: number | null; time: string; evaluationMode: 'manual' | 'automatic' }>;
   stationMagnitudes: Array<{ id: string; station: string; streamIds: string[]; value: number; amplitudeIds: string[] }>;
   magnitude: { id: string; value: number; uncertainty: number | null; stationCount: number; method: string; evaluationMode: 'manual' | 'automatic' } | null;
-}
+};
 
 /** One exported event: a reviewed item, or a candidate event across stations. */
 export interface CatalogueEvent {

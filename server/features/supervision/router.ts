@@ -23,7 +23,6 @@ import { parseInput } from '@server/http/validate';
 import { authorizedStations, requirePermission } from '@server/policies/authorize';
 import { can } from '@shared/auth/policies';
 import { recordAudit } from '@server/features/audit/audit';
-import { syncEventsFromGroups } from '@server/features/events/event-service';
 import { getCandidateEvent, labelCandidateEvent, listCandidateEvents, type CandidateEventView } from '@server/features/events/candidate-events';
 import { buildCatalogueCsv } from './catalogue-csv';
 import { listReview, loadCatalogue, reviewNote, setEvaluationStatus } from './catalogue-review';
@@ -192,9 +191,6 @@ export function supervisorRouter(ctx: AppContext): Router {
   router.get('/export', requirePermission('catalogue.export'), async (req, res) => {
     const q = parseInput(exportQuerySchema, req.query, 'query');
     const user = currentUser(req);
-    // Events are built from the candidate groups before the catalogue lists them (one row per event).
-    // The scheduler's catch-up job builds them too; this keeps an export taken right after an upload whole.
-    await syncEventsFromGroups({ db, notify: () => ctx.hub.notify() });
     const period = { from: new Date(q.from), to: new Date(q.to) };
     const events = await loadCatalogue(db, period, q.status);
     const stamp = `${period.from.toISOString().slice(0, 10)}_${period.to.toISOString().slice(0, 10)}`;

@@ -18,6 +18,8 @@ import { DEMO_EVENTS } from '@server/demo/scenario';
 import { listEvents } from '@server/features/events/event-service';
 import { greatCircleDistanceKm } from '@server/seismo/geodesy';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { waveformTemplates, windowMatches } from '@server/db/schema/templates';
+import { loadFamilies } from '@server/features/similarity/families';
 
 let ctx: TestContext;
 let pool: AnalysisPool;
@@ -25,8 +27,8 @@ let first: DemoIngestReport;
 
 async function counts(): Promise<Record<string, number>> {
   const db = ctx.database.db;
-  const n = async (table: typeof uploads | typeof windows | typeof queueItems | typeof auditLog | typeof changeLog): Promise<number> => (await db.select({ n: count() }).from(table))[0]?.n ?? -1;
-  return { uploads: await n(uploads), windows: await n(windows), items: await n(queueItems), audit: await n(auditLog), changes: await n(changeLog) };
+  const n = async (table: typeof uploads | typeof windows | typeof queueItems | typeof auditLog | typeof changeLog | typeof waveformTemplates | typeof windowMatches): Promise<number> => (await db.select({ n: count() }).from(table))[0]?.n ?? -1;
+  return { uploads: await n(uploads), windows: await n(windows), items: await n(queueItems), audit: await n(auditLog), changes: await n(changeLog), templates: await n(waveformTemplates), matches: await n(windowMatches) };
 }
 
 beforeAll(async () => {
@@ -36,7 +38,7 @@ beforeAll(async () => {
   // The app's escalation hook (inbox entry and e-mail for every supervisor), as npm start passes it.
   const hook = escalationListener({ db: ctx.database.db, mailer: ctx.mailer, logger: ctx.logger, publicUrl: 'http://127.0.0.1:3000' });
   first = await ingestDemo({ db: ctx.database.db, pool, notify: () => {}, logger: ctx.logger, escalationListeners: [hook] });
-}, 180_000);
+}, 400_000);
 
 afterAll(async () => {
   await pool?.close();
@@ -105,6 +107,54 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
         .where(and(eq(windows.stationId, st.id), gte(windows.startTime, new Date('2026-03-14T00:00:00Z'))));
       expect(day.length, st.code).toBeGreaterThan(0);
       for (const w of day) expect((w.analysis as { baseline?: string }).baseline, st.code).toBe('station');
+    }
+  });
+
+  it('every labelled demo item keeps a template, and so does every dismissed one that triggered (a template is cut around the trigger)', async () => {
+    const db = ctx.database.db;
+    const rows = await db
+      .select({ id: queueItems.id, state: queueItems.state, analysis: windows.analysis, template: waveformTemplates.id })
+      .from(queueItems)
+      .innerJoin(windows, eq(windows.id, queueItems.windowId))
+      .leftJoin(waveformTemplates, eq(waveformTemplates.windowId, queueItems.windowId))
+      .where(sql`${queueItems.state} in ('labelled', 'dismissed')`);
+    const labelled = rows.filter((r) => r.state === 'labelled');
+    expect(labelled).toHaveLength(3);
+    for (const r of labelled) expect(r.template, `item ${r.id}`).not.toBeNull();
+    // A dismissed window without a detection, or with its onset less than the shortest template
+    // (4 s) before its end, has nothing to cut around.
+    for (const r of rows.filter((x) => x.state === 'dismissed')) {
+      const det = (r.analysis as { detection?: { onset: number } | null }).detection;
+      if (det && det.onset <= 120 - 4) expect(r.template, `item ${r.id}`).not.toBeNull();
+    }
+    expect(rows.filter((r) => r.state === 'dismissed' && r.template !== null).length).toBeGreaterThan(100);
+  });
+
+  it('the repeating sources are found as families: the quarry blasts at KV02 (with the labelled one) and the quake cluster at several stations, in the hours they happened', async () => {
+    const db = ctx.database.db;
+    const families = await loadFamilies(db, { minValue: 0.7, minSize: 2 }, 'all');
+    const hoursOf = (f: (typeof families)[number]): number[] => f.hours.flatMap((n, h) => (n > 0 ? [h] : []));
+    const blasts = DEMO_EVENTS.filter((e) => e.source === 'kv-quarry');
+    const cluster = DEMO_EVENTS.filter((e) => e.source === 'kv-south-cluster');
+    const kv02Blasts = families.find((f) => f.station === 'XX.KV02' && hoursOf(f).every((h) => h === 11 || h === 12));
+    expect(kv02Blasts?.size).toBe(blasts.length);
+    expect(kv02Blasts?.labelMix['quarry blast']).toBe(1);
+    expect(kv02Blasts?.weakestLink ?? 0).toBeGreaterThanOrEqual(0.9);
+    const clusterHours = [...new Set(cluster.map((e) => new Date(e.originTimeUs / 1000).getUTCHours()))].sort((a, b) => a - b);
+    const clusterFamilies = families.filter((f) => f.size === cluster.length && JSON.stringify(hoursOf(f)) === JSON.stringify(clusterHours));
+    expect(clusterFamilies.length).toBeGreaterThanOrEqual(4);
+    for (const f of clusterFamilies) expect(f.weakestLink, f.station).toBeGreaterThanOrEqual(0.9);
+    // Labelled before the later blasts arrived, the first blast makes their flags say so.
+    const later = await db
+      .select({ flag: queueItems.flag, reasons: queueItems.reasons })
+      .from(queueItems)
+      .innerJoin(windows, eq(windows.id, queueItems.windowId))
+      .innerJoin(stations, eq(stations.id, queueItems.stationId))
+      .where(and(eq(stations.code, 'KV02'), gte(queueItems.windowStart, new Date('2026-03-14T12:00:00Z')), sql`${queueItems.windowStart} < '2026-03-14 13:00:00'`));
+    expect(later).toHaveLength(blasts.length - 1);
+    for (const w of later) {
+      expect(w.flag).not.toBe('likely event');
+      expect(JSON.stringify(w.reasons)).toMatch(/resembles 1 quarry blast at KV02/);
     }
   });
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
-import { aicOnsetIndex } from '../../../server/dsp/aic-picker';
+import { aicOnsetIndex } from '@server/dsp/aic-picker';
 import { makeSignal, maxAbsDiff, readFixture, signalSpecSchema } from './fixture-signal';
 
 /**

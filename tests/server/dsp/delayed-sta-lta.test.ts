@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { delayedStaLta } from '../../../server/dsp/sta-lta';
+import { delayedStaLta } from '@server/dsp/sta-lta';
 
 /**
  * The running sums of `delayedStaLta` (its warm-up loop, its steady-state loop, the exact re-sums after

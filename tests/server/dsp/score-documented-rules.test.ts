@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { analyzeWindow } from '../../../server/dsp/pipeline';
-import { computeBaseline, scoreWindow, type ChannelFeatures } from '../../../server/dsp/score';
-import { defaultProcessingProfile } from '../../../shared/schemas/processing-profile';
+import { analyzeWindow } from '@server/dsp/pipeline';
+import { computeBaseline, scoreWindow, type ChannelFeatures } from '@server/dsp/score';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { makeSignal, stream, type SignalSpec } from './fixture-signal';
 
 /**

@@ -1,11 +1,11 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { encodeMiniSeed3 } from '../../../server/formats/mseed3-writer';
-import { headerCode } from '../../../server/formats/stream-id';
-import { WaveformParseError } from '../../../server/formats/types';
-import { concatBytes, fixMs3Crc, ms3Records } from '../../fixtures/hostile/make-corpus';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { headerCode } from '@server/formats/stream-id';
+import { WaveformParseError } from '@server/formats/types';
+import { concatBytes, fixMs3Crc, ms3Records } from '@tests/fixtures/hostile/make-corpus';
 import { libmseedDumpSchema } from './libmseed-json';
 
 /**

@@ -1,11 +1,11 @@
 import { readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { decodeWaveform } from '../../../server/formats/decode';
-import { encodeMiniSeed3 } from '../../../server/formats/mseed3-writer';
-import { placementProblems } from '../../../server/formats/placement';
-import { WaveformParseError, type DecodedStream } from '../../../server/formats/types';
-import { concatBytes, fixMs3Crc, ms3Records } from '../../fixtures/hostile/make-corpus';
+import { decodeWaveform } from '@server/formats/decode';
+import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
+import { placementProblems } from '@server/formats/placement';
+import { WaveformParseError, type DecodedStream } from '@server/formats/types';
+import { concatBytes, fixMs3Crc, ms3Records } from '@tests/fixtures/hostile/make-corpus';
 import { libmseedDumpSchema, type LibmseedDump } from './libmseed-json';
 import { buildLibmseedDump } from './libmseed-tool';
 

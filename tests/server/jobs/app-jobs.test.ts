@@ -5,11 +5,13 @@ import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest
 import { createApp } from '@server/app';
 import { changeLog } from '@server/db/schema/change-log';
 import { itemArrivals } from '@server/db/schema/supervisor';
+import { onItemsCreated } from '@server/features/events/candidate-events';
 import { appJobs } from '@server/jobs/app-jobs';
 import { startScheduler, type PeriodicJob } from '@server/jobs/scheduler';
 import { createLogger } from '@server/logger';
 import { itemAudience, recordChange } from '@server/realtime/change-log';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
+import { seedSyntheticWindows } from '@tests/setup/event-fixtures';
 import { createItem, createPerson } from '@tests/setup/queue-fixtures';
 
 /** A logger whose JSON lines land in `lines`. */
@@ -123,10 +125,17 @@ describe("the app's periodic jobs (real MariaDB)", () => {
     expect(await arrivalsOf()).toBe(1);
   });
 
-  it('the reads that used to run the arrivals catch-up leave every table as it was (CHECKSUM TABLE); the export adds only its audit row', async () => {
+  it('the reads that used to run the arrivals catch-up or build events leave every table as it was (CHECKSUM TABLE); the export adds only its audit row; the job builds the event', async () => {
     const db = ctx.database.db;
     const windowStart = new Date('2026-05-03T10:00:00Z');
     const id = await createItem(db, { station: 'KV02', withSamples: true, burstAtS: 50, windowStart });
+    // A candidate group with no event yet (the catch-up job or the ingest builds it, not a read).
+    const seeded = await seedSyntheticWindows(db, {
+      codes: ['JBA1', 'JBA2', 'JBA3', 'JBA4'],
+      placements: [[30, 12], [120, 16], [210, 14], [300, 18]],
+      truth: { latitudeDeg: 46.3, longitudeDeg: 11.1, depthKm: 6, timeS: Date.parse('2026-05-03T11:00:00Z') / 1000 },
+    });
+    expect(await onItemsCreated({ db }, seeded.itemIds)).toHaveLength(1);
     const supervisor = await createPerson(db, { roles: ['supervisor'] });
     const app = createApp(ctx, { serveClient: false });
     // Every table's live checksum (MariaDB CHECKSUM TABLE: a checksum of all its rows).
@@ -144,11 +153,22 @@ describe("the app's periodic jobs (real MariaDB)", () => {
     await request(app).get('/api/supervisor/review').set('Cookie', supervisor.cookie).expect(200);
     await request(app).get(`/api/queue/items/${id}`).set('Cookie', supervisor.cookie).expect(200);
     await request(app).get('/api/queue').set('Cookie', supervisor.cookie).expect(200);
+    expect((await request(app).get('/api/events').set('Cookie', supervisor.cookie).expect(200)).body.events).toEqual([]);
     expect(await checksums()).toEqual(before);
     // The export is a read of the catalogue; taking data out is audited (one row), nothing else moves.
     await request(app).get(`/api/supervisor/export?${period}&format=csv`).set('Cookie', supervisor.cookie).expect(200);
     const after = await checksums();
     const changed = Object.keys(after).filter((t) => after[t] !== before[t]);
     expect(changed).toEqual(['audit_log']);
+    // The job builds the event from the group.
+    const scheduler = startScheduler(appJobs(ctx), ctx.logger);
+    try {
+      await scheduler.runNow('arrivals catch-up');
+    } finally {
+      await scheduler.stop();
+    }
+    const events = (await request(app).get('/api/events').set('Cookie', supervisor.cookie).expect(200)).body.events;
+    expect(events).toHaveLength(1);
+    expect(events[0].stationCount).toBe(4);
   });
 });

@@ -2,7 +2,7 @@ import { useMemo, useState } from 'react';
 import { FlagMarker } from '@client/components/ui/flag-marker';
 import { formatPlotNumber, PlotFrame, type PlotSeries } from '@client/components/ui/plot-frame';
 import { StateMarker } from '@client/components/ui/state-marker';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { Tabs } from '@client/components/ui/tabs';
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import type { Theme } from '@client/lib/theme';
@@ -47,38 +47,36 @@ export function TablePreview() {
   return (
     <div className="flex flex-col gap-2">
       <TriageCaution variant="line" />
-      <TableScroll label="Sample windows">
-        <Table caption="Sample windows (invented, display only)" captionHidden>
-          <THead>
-            <Tr>
-              <Th>Stream</Th>
-              <Th>Start (UTC)</Th>
-              <Th figure>High/low ratio</Th>
-              <Th figure>STA/LTA peak</Th>
-              <Th>Flag</Th>
-              <Th>State</Th>
-            </Tr>
-          </THead>
-          <TBody>
-            {sampleRows.map((row) => (
-              <Tr key={row.id} selected={row.id === selectedRow} onClick={() => setSelectedRow(row.id)}>
-                <Td className="font-mono text-sm whitespace-nowrap">{row.stream}</Td>
-                <Td className="text-sm whitespace-nowrap">
-                  <time dateTime={row.start}>{row.start}</time>
-                </Td>
-                <Td figure>{row.ratio.toFixed(2)}</Td>
-                <Td figure>{row.staLta.toFixed(1)}</Td>
-                <Td>
-                  <FlagMarker flag={row.flag} />
-                </Td>
-                <Td>
-                  <StateMarker state={row.state} />
-                </Td>
-              </Tr>
-            ))}
-          </TBody>
-        </Table>
-      </TableScroll>
+      <ScrollTable
+        label="Sample windows" caption="Sample windows (invented, display only)" captionHidden
+        head={
+          <Tr>
+            <Th>Stream</Th>
+            <Th>Start (UTC)</Th>
+            <Th figure>High/low ratio</Th>
+            <Th figure>STA/LTA peak</Th>
+            <Th>Flag</Th>
+            <Th>State</Th>
+          </Tr>
+        }
+      >
+        {sampleRows.map((row) => (
+          <Tr key={row.id} selected={row.id === selectedRow} onClick={() => setSelectedRow(row.id)}>
+            <Td className="font-mono text-sm whitespace-nowrap">{row.stream}</Td>
+            <Td className="text-sm whitespace-nowrap">
+              <time dateTime={row.start}>{row.start}</time>
+            </Td>
+            <Td figure>{row.ratio.toFixed(2)}</Td>
+            <Td figure>{row.staLta.toFixed(1)}</Td>
+            <Td>
+              <FlagMarker flag={row.flag} />
+            </Td>
+            <Td>
+              <StateMarker state={row.state} />
+            </Td>
+          </Tr>
+        ))}
+      </ScrollTable>
     </div>
   );
 }

@@ -8,7 +8,7 @@ import { FormField } from '@client/components/ui/form-field';
 import { CheckIcon } from '@client/components/ui/icons';
 import { Select } from '@client/components/ui/select';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { useToast } from '@client/components/ui/toast';
 import { navFor, navItems } from '@client/config/paths';
 import { SessionProvider, type SessionUser } from '@client/lib/session-context';
@@ -93,42 +93,40 @@ export function ShellPreview() {
 /** Which navigation sections each role sees. */
 export function RoleTable() {
   return (
-    <TableScroll className="max-w-3xl" label="Navigation by role">
-      <Table caption="Who sees which section in the navigation (the server checks every request regardless)">
-        <THead>
-          <Tr>
-            <Th>Section</Th>
-            {roles.map((r) => (
-              <Th key={r} className="text-center">
-                <span title={roleLabels[r]}>{r}</span>
-              </Th>
-            ))}
-          </Tr>
-        </THead>
-        <TBody>
-          {navItems.map((item) => (
-            <Tr key={item.key}>
-              <Th scope="row" className="font-normal text-ink">
-                {item.label}
-              </Th>
-              {roles.map((r) => {
-                const yes = navFor([r], false, true).some((n) => n.key === item.key);
-                return (
-                  <Td key={r} className="text-center">
-                    {yes ? (
-                      <CheckIcon size={14} className="inline text-ok" title={`${r}: yes`} />
-                    ) : (
-                      <span className="text-ink-muted">
-                        –<span className="sr-only">{`${r}: no`}</span>
-                      </span>
-                    )}
-                  </Td>
-                );
-              })}
-            </Tr>
+    <ScrollTable
+      scrollClassName="max-w-3xl" label="Navigation by role" caption="Who sees which section in the navigation (the server checks every request regardless)"
+      head={
+        <Tr>
+          <Th>Section</Th>
+          {roles.map((r) => (
+            <Th key={r} className="text-center">
+              <span title={roleLabels[r]}>{r}</span>
+            </Th>
           ))}
-        </TBody>
-      </Table>
-    </TableScroll>
+        </Tr>
+      }
+    >
+      {navItems.map((item) => (
+        <Tr key={item.key}>
+          <Th scope="row" className="font-normal text-ink">
+            {item.label}
+          </Th>
+          {roles.map((r) => {
+            const yes = navFor([r], false, true).some((n) => n.key === item.key);
+            return (
+              <Td key={r} className="text-center">
+                {yes ? (
+                  <CheckIcon size={14} className="inline text-ok" title={`${r}: yes`} />
+                ) : (
+                  <span className="text-ink-muted">
+                    –<span className="sr-only">{`${r}: no`}</span>
+                  </span>
+                )}
+              </Td>
+            );
+          })}
+        </Tr>
+      ))}
+    </ScrollTable>
   );
 }

@@ -1,4 +1,4 @@
-import type { ComponentPropsWithRef } from 'react';
+import type { ComponentPropsWithRef, ReactNode } from 'react';
 import { cx } from '@client/lib/cx';
 
 /**
@@ -29,6 +29,24 @@ export type TableScrollProps = ComponentPropsWithRef<'div'> & { label: string };
 export function TableScroll({ className, label, ...rest }: TableScrollProps) {
   return (
     <div role="region" aria-label={label} tabIndex={0} className={cx('overflow-auto rounded-sm border border-line bg-surface', className)} {...rest} />
+  );
+}
+
+/** Props of <ScrollTable>: those of <Table>, the scroll region's `label`, the header row(s) in `head`. */
+export type ScrollTableProps = TableProps & { label: string; head: ReactNode; scrollClassName?: string };
+
+/**
+ * The usual data table: a <Table> with its sticky <THead> (`head`) and its <TBody> (the children,
+ * its rows) inside a labelled <TableScroll>.
+ */
+export function ScrollTable({ label, head, scrollClassName, children, ...table }: ScrollTableProps) {
+  return (
+    <TableScroll label={label} className={scrollClassName}>
+      <Table {...table}>
+        <THead>{head}</THead>
+        <TBody>{children}</TBody>
+      </Table>
+    </TableScroll>
   );
 }
 

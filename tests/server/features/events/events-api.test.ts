@@ -1,30 +1,27 @@
-import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import type { Express } from 'express';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '@server/app';
+import { appJobs } from '@server/jobs/app-jobs';
+import { startScheduler } from '@server/jobs/scheduler';
 import { changeLog } from '@server/db/schema/change-log';
 import { eventOrigins, eventPicks } from '@server/db/schema/events';
-import { queueItems } from '@server/db/schema/queue-items';
-import { channels, stations } from '@server/db/schema/stations';
-import { uploads, windowChannels, windows } from '@server/db/schema/uploads';
-import { analyzeWindow } from '@server/dsp/pipeline';
+import { stations } from '@server/db/schema/stations';
 import { onItemsCreated } from '@server/features/events/candidate-events';
-import { decodeWaveform } from '@server/formats/decode';
 import { formatIsoTimeUs } from '@server/formats/iso-time';
 import { greatCircleDistanceKm } from '@server/seismo/geodesy';
-import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
-import { ringStations, type TrueHypocentre } from '@tests/server/seismo/synthetic';
-import { S_FREQUENCY_HZ, SYNTH_SENSITIVITY, sVelocityMS, stationMiniSeed, syntheticEvent } from '@tests/server/seismo/synthetic-waveforms';
+import type { TrueHypocentre } from '@tests/server/seismo/synthetic';
+import { S_FREQUENCY_HZ, sVelocityMS, type SyntheticStation } from '@tests/server/seismo/synthetic-waveforms';
+import { fixtureModel, seedSyntheticWindows } from '@tests/setup/event-fixtures';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
 import { createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 
 const origin = 'http://127.0.0.1';
-const model = { name: 'Kestrel test half-space', layers: [{ topKm: 0, vpKmS: 6.0, vsKmS: 3.46 }] };
+const model = fixtureModel;
 const codes = ['EVA1', 'EVA2', 'EVA3', 'EVA4', 'EVA5'];
 const centre = { latitudeDeg: 46.25, longitudeDeg: 11.08 };
-const ring = ringStations(centre, [[20, 10], [95, 18], [170, 14], [240, 22], [310, 16]]).map((s, i) => ({ ...s, code: codes[i] as string }));
+const placements: ReadonlyArray<readonly [number, number]> = [[20, 10], [95, 18], [170, 14], [240, 22], [310, 16]];
 const truth: TrueHypocentre = { latitudeDeg: 46.262, longitudeDeg: 11.07, depthKm: 6, timeS: Date.parse('2026-03-10T04:12:33.250Z') / 1000 };
 
 /**
@@ -50,7 +47,7 @@ describe('events API (real MariaDB, supertest)', () => {
   const itemIds: number[] = [];
   const stationIds: number[] = [];
   let eventId = 0;
-  const synth = syntheticEvent(ring, truth, model, 21);
+  let synth: SyntheticStation[] = [];
 
   const send = (method: 'post' | 'put' | 'delete', p: TestPerson | null, url: string, body?: object) => {
     const r = request(app)[method](url).set('Origin', origin).set('Host', '127.0.0.1');
@@ -64,55 +61,20 @@ describe('events API (real MariaDB, supertest)', () => {
     ctx = await createTestContext();
     app = createApp(ctx, { serveClient: false });
     const db = ctx.database.db;
+    // Stations on a ring with a broadband response in the registry, one window per station stored as
+    // ingest stores it (tests/setup/event-fixtures.ts).
+    const seeded = await seedSyntheticWindows(db, { codes, placements, centre, truth, stationName: 'Event test' });
+    stationIds.push(...seeded.stationIds);
+    itemIds.push(...seeded.itemIds);
+    synth = seeded.synth;
     const now = new Date();
-    // Stations on a ring with a broadband response in the registry (poles and zeros + sensitivity).
-    const w = 2 * Math.PI;
-    const p = 0.0444;
-    const a0 = (Math.hypot(p, w - p) * Math.hypot(p, w + p)) / (w * w);
-    for (const s of ring) {
-      const [st] = await db.insert(stations).values({ network: 'XX', code: s.code, name: `Event test ${s.code}`, latitude: s.latitudeDeg, longitude: s.longitudeDeg, elevationM: 500, profile: defaultProcessingProfile, createdAt: now, updatedAt: now });
-      stationIds.push(st.insertId);
-      for (const code of ['HHZ', 'HHN', 'HHE']) {
-        await db.insert(channels).values({
-          stationId: st.insertId,
-          location: '00',
-          code,
-          sampleRateHz: 100,
-          sensitivity: SYNTH_SENSITIVITY,
-          sensitivityFrequencyHz: 1,
-          sensitivityInputUnits: 'm/s',
-          response: { zeros: [{ re: 0, im: 0 }, { re: 0, im: 0 }], poles: [{ re: -p, im: p }, { re: -p, im: -p }], normalizationFactor: a0, sensitivity: SYNTH_SENSITIVITY, sensitivityFrequencyHz: 1 },
-          createdAt: now,
-          updatedAt: now,
-        });
-      }
-    }
-    // One window per station, stored as ingest stores it.
-    for (const [k, s] of synth.entries()) {
-      const bytes = stationMiniSeed(s);
-      const streams = decodeWaveform(bytes);
-      const analysis = analyzeWindow(streams, defaultProcessingProfile);
-      const stationId = stationIds[k] as number;
-      const start = new Date((streams[0]?.startTimeUs ?? 0) / 1000);
-      const id = await db.transaction(async (tx) => {
-        const [up] = await tx.insert(uploads).values({ sha256: createHash('sha256').update(bytes).digest('hex'), filename: `${s.code}.mseed`, sizeBytes: bytes.length, format: 'mseed2', original: Buffer.from(bytes), stationId, createdAt: now });
-        const [win] = await tx.insert(windows).values({ uploadId: up.insertId, stationId, startTime: start, endTime: new Date(start.getTime() + 60_000), analysis, engineVersion: 'test', createdAt: now });
-        for (const c of streams) {
-          const buf = Buffer.alloc(c.samples.length * 8);
-          c.samples.forEach((v, i) => buf.writeDoubleLE(v, i * 8));
-          await tx.insert(windowChannels).values({ windowId: win.insertId, streamId: c.id, sampleRateHz: c.sampleRateHz, startTimeUs: c.startTimeUs, sampleCount: c.samples.length, samples: buf, qc: [] });
-        }
-        const [item] = await tx.insert(queueItems).values({ windowId: win.insertId, stationId, state: 'new', score: analysis.score, flag: analysis.flag, reasons: analysis.reasons, windowStart: start, version: 1, createdAt: now, updatedAt: now });
-        return item.insertId;
-      });
-      itemIds.push(id);
-    }
     ana = await createPerson(db, { roles: ['analyst'] });
     sue = await createPerson(db, { roles: ['supervisor'] });
     op = await createPerson(db, { roles: ['operator'], stationIds: [stationIds[0] as number] });
     const far = await db.insert(stations).values({ network: 'XX', code: 'EVZ9', name: 'Far away', latitude: 40, longitude: 5, elevationM: 0, createdAt: now, updatedAt: now });
     opFar = await createPerson(db, { roles: ['operator'], stationIds: [far[0].insertId] });
-    // The windows form one candidate event (grouping by time and distance).
+    // The windows form one candidate event (grouping by time and distance); the event is built from
+    // it by the scheduler's catch-up job or the ingest, never by a read (the first test).
     await onItemsCreated({ db }, itemIds);
     // The network's model, as a supervisor sets it.
     await send('put', sue, '/api/events/velocity-models/XX', model).expect(200);
@@ -128,7 +90,14 @@ describe('events API (real MariaDB, supertest)', () => {
     expect(bad.body.error.message).toMatch(/^limit: /);
   });
 
-  it('builds the event from the candidate group: automatic picks, located near the truth, ML from Wood-Anderson + Hutton & Boore', async () => {
+  it('builds the event from the candidate group in the catch-up job (the list, a read, builds nothing): automatic picks, located near the truth, ML from Wood-Anderson + Hutton & Boore', async () => {
+    expect((await get(ana, '/api/events').expect(200)).body.events).toEqual([]);
+    const scheduler = startScheduler(appJobs(ctx), ctx.logger);
+    try {
+      await scheduler.runNow('arrivals catch-up');
+    } finally {
+      await scheduler.stop();
+    }
     const list = await get(ana, '/api/events').expect(200);
     expect(list.body.caution).toMatch(/triage aids/);
     expect(list.body.events).toHaveLength(1);

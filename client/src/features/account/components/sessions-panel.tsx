@@ -2,7 +2,7 @@ import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { EmptyState } from '@client/components/ui/empty-state';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, ThActions, Tr } from '@client/components/ui/table';
 import { useToast } from '@client/components/ui/toast';
 import { useEndSessions, useSessions } from '@client/features/account/api/account';
 
@@ -35,38 +35,36 @@ export function SessionsPanel() {
       ) : sessions.isError ? (
         <EmptyState title="Sessions could not be loaded">{sessions.error.message}</EmptyState>
       ) : (
-        <TableScroll label="Your sessions">
-          <Table caption="Signed-in sessions of your account, newest first (times in UTC)" captionHidden>
-            <THead>
-              <Tr>
-                <Th>Client</Th>
-                <Th>Address</Th>
-                <Th figure>Started</Th>
-                <Th figure>Lapses if idle until</Th>
-                <ThActions />
-              </Tr>
-            </THead>
-            <TBody>
-              {sessions.data.map((s) => (
-                <Tr key={s.id}>
-                  <Td>
-                    {browserName(s.userAgent)} {s.current ? <Badge tone="accent">this session</Badge> : null}
-                  </Td>
-                  <Td className="font-mono text-sm">{s.ipAddress ?? '—'}</Td>
-                  <Td figure>{s.createdAt}</Td>
-                  <Td figure>{s.expiresAt}</Td>
-                  <Td className="text-right">
-                    {s.current ? null : (
-                      <Button size="sm" variant="quiet" onClick={() => endOne(s.id)} disabled={end.isPending} aria-label={`End session from ${browserName(s.userAgent)} started ${s.createdAt}`}>
-                        End
-                      </Button>
-                    )}
-                  </Td>
-                </Tr>
-              ))}
-            </TBody>
-          </Table>
-        </TableScroll>
+        <ScrollTable
+          label="Your sessions" caption="Signed-in sessions of your account, newest first (times in UTC)" captionHidden
+          head={
+            <Tr>
+              <Th>Client</Th>
+              <Th>Address</Th>
+              <Th figure>Started</Th>
+              <Th figure>Lapses if idle until</Th>
+              <ThActions />
+            </Tr>
+          }
+        >
+          {sessions.data.map((s) => (
+            <Tr key={s.id}>
+              <Td>
+                {browserName(s.userAgent)} {s.current ? <Badge tone="accent">this session</Badge> : null}
+              </Td>
+              <Td className="font-mono text-sm">{s.ipAddress ?? '—'}</Td>
+              <Td figure>{s.createdAt}</Td>
+              <Td figure>{s.expiresAt}</Td>
+              <Td className="text-right">
+                {s.current ? null : (
+                  <Button size="sm" variant="quiet" onClick={() => endOne(s.id)} disabled={end.isPending} aria-label={`End session from ${browserName(s.userAgent)} started ${s.createdAt}`}>
+                    End
+                  </Button>
+                )}
+              </Td>
+            </Tr>
+          ))}
+        </ScrollTable>
       )}
     </section>
   );

@@ -17,7 +17,7 @@ import { Button } from '@client/components/ui/button';
 import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
 import { Select } from '@client/components/ui/select';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 
 /** Props of <UsersTable>. */
 export type UsersTableProps = {
@@ -156,9 +156,10 @@ export function UsersTable({ users, stations, selfId, onEditAccess, onSetActive,
           {rows.length} of {users.length} users
         </p>
       </div>
-      <TableScroll label="Users">
-        <Table caption="Users of this Seisift, with roles, stations and status" captionHidden>
-          <THead>
+      <ScrollTable
+        label="Users" caption="Users of this Seisift, with roles, stations and status" captionHidden
+        head={
+          <>
             {table.getHeaderGroups().map((hg) => (
               <Tr key={hg.id}>
                 {hg.headers.map((h) => {
@@ -179,28 +180,27 @@ export function UsersTable({ users, stations, selfId, onEditAccess, onSetActive,
                 })}
               </Tr>
             ))}
-          </THead>
-          <TBody>
-            {rows.length === 0 ? (
-              <Tr>
-                <Td colSpan={columns.length} className="py-3 text-ink-muted">
-                  No user matches these filters.
+          </>
+        }
+      >
+        {rows.length === 0 ? (
+          <Tr>
+            <Td colSpan={columns.length} className="py-3 text-ink-muted">
+              No user matches these filters.
+            </Td>
+          </Tr>
+        ) : (
+          rows.map((row) => (
+            <Tr key={row.id}>
+              {row.getVisibleCells().map((cell) => (
+                <Td key={cell.id} figure={isFigure(cell.column.columnDef.meta)}>
+                  {flexRender(cell.column.columnDef.cell, cell.getContext())}
                 </Td>
-              </Tr>
-            ) : (
-              rows.map((row) => (
-                <Tr key={row.id}>
-                  {row.getVisibleCells().map((cell) => (
-                    <Td key={cell.id} figure={isFigure(cell.column.columnDef.meta)}>
-                      {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                    </Td>
-                  ))}
-                </Tr>
-              ))
-            )}
-          </TBody>
-        </Table>
-      </TableScroll>
+              ))}
+            </Tr>
+          ))
+        )}
+      </ScrollTable>
     </div>
   );
 }

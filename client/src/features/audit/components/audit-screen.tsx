@@ -5,7 +5,7 @@ import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
 import { Select } from '@client/components/ui/select';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { UtcTimeInput } from '@client/components/ui/utc-time-input';
 import { auditPageSize, useAuditPage, type AuditFilters } from '@client/features/audit/api/audit';
 
@@ -93,34 +93,32 @@ export function AuditScreen() {
         <EmptyState title="No rows match">Widen the filters or clear them.</EmptyState>
       ) : (
         <>
-          <TableScroll label="Audit log rows">
-            <Table caption={`Audit rows ${offset + 1} to ${offset + page.data.rows.length} of ${page.data.total}, newest first`}>
-              <THead>
-                <Tr>
-                  <Th figure>When (UTC)</Th>
-                  <Th>Who</Th>
-                  <Th>What</Th>
-                  <Th>On what</Th>
-                  <Th>Details</Th>
-                  <Th>From</Th>
-                </Tr>
-              </THead>
-              <TBody>
-                {page.data.rows.map((r) => (
-                  <Tr key={r.id}>
-                    <Td figure>{r.createdAt}</Td>
-                    <Td className="font-mono text-sm">{r.actorLabel ?? r.actorUserId ?? '—'}</Td>
-                    <Td className="font-mono text-sm">{r.action}</Td>
-                    <Td className="font-mono text-sm">{r.targetType ? `${r.targetType}${r.targetId ? ` ${r.targetId}` : ''}` : '—'}</Td>
-                    <Td className="max-w-md truncate text-sm" title={detailsText(r.details)}>
-                      {detailsText(r.details)}
-                    </Td>
-                    <Td className="font-mono text-sm">{r.ipAddress ?? '—'}</Td>
-                  </Tr>
-                ))}
-              </TBody>
-            </Table>
-          </TableScroll>
+          <ScrollTable
+            label="Audit log rows" caption={`Audit rows ${offset + 1} to ${offset + page.data.rows.length} of ${page.data.total}, newest first`}
+            head={
+              <Tr>
+                <Th figure>When (UTC)</Th>
+                <Th>Who</Th>
+                <Th>What</Th>
+                <Th>On what</Th>
+                <Th>Details</Th>
+                <Th>From</Th>
+              </Tr>
+            }
+          >
+            {page.data.rows.map((r) => (
+              <Tr key={r.id}>
+                <Td figure>{r.createdAt}</Td>
+                <Td className="font-mono text-sm">{r.actorLabel ?? r.actorUserId ?? '—'}</Td>
+                <Td className="font-mono text-sm">{r.action}</Td>
+                <Td className="font-mono text-sm">{r.targetType ? `${r.targetType}${r.targetId ? ` ${r.targetId}` : ''}` : '—'}</Td>
+                <Td className="max-w-md truncate text-sm" title={detailsText(r.details)}>
+                  {detailsText(r.details)}
+                </Td>
+                <Td className="font-mono text-sm">{r.ipAddress ?? '—'}</Td>
+              </Tr>
+            ))}
+          </ScrollTable>
           <div className="flex items-center gap-2 text-sm">
             <Button size="sm" disabled={offset === 0} onClick={() => setOffset(Math.max(0, offset - auditPageSize))}>
               Newer

@@ -1,4 +1,5 @@
 import { zodResolver } from '@hookform/resolvers/zod';
+import type { Ref } from 'react';
 import { useFieldArray, useForm, type UseFormReturn } from 'react-hook-form';
 import { z } from 'zod';
 import {
@@ -48,6 +49,8 @@ export type LabelFormProps = {
   busy: boolean;
   onLabel: (v: ReviewFormValues) => void;
   onDismiss: (v: ReviewFormValues) => void;
+  /** The Label button (the review screen focuses it after key M, so Enter confirms the taken label). */
+  labelButtonRef?: Ref<HTMLButtonElement>;
 };
 
 /**
@@ -55,7 +58,7 @@ export type LabelFormProps = {
  * number keys 1–6 outside the form pick a common type and label at once; D dismisses with the
  * noise reason chosen here. Picks are placed on the traces and edited here (onset, polarity).
  */
-export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onDismiss }: LabelFormProps) {
+export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onDismiss, labelButtonRef }: LabelFormProps) {
   const { register, handleSubmit, control, formState } = form;
   const picks = useFieldArray({ control, name: 'picks' });
   // Picks are placed from outside the form (keys, clicks) with setValue: read their values, not the field array's snapshots.
@@ -159,7 +162,7 @@ export function LabelForm({ form, canWrite, viewOnly = false, busy, onLabel, onD
           {(p) => <textarea {...p} {...register('note')} rows={2} className="rounded-sm border border-line-strong bg-sunken px-2 py-1 text-base text-ink" />}
         </FormField>
         <div className="flex flex-wrap gap-2">
-          <Button type="submit" variant="primary" shortcut="Enter">
+          <Button ref={labelButtonRef} type="submit" variant="primary" shortcut="Enter">
             Label
           </Button>
           <Button variant="secondary" shortcut="D" onClick={handleSubmit(onDismiss)}>

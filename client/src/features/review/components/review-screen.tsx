@@ -1,4 +1,4 @@
-import { useCallback, useEffect, useMemo, useState } from 'react';
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { can } from '@shared/auth/policies';
 import { roleSchema, type Role } from '@shared/auth/roles';
 import { noiseReasons, quakemlEventTypes } from '@shared/schemas/label';
@@ -85,10 +85,12 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   /** What leaving now would lose (drives the Esc warning). */
   const unsaved = () => unsavedWork(form.getValues(), reviewFormDefaults);
   const submitLabel = () => void form.handleSubmit(act.label)();
+  const labelButton = useRef<HTMLButtonElement>(null);
   const submitDismiss = () => void form.handleSubmit(act.dismiss)();
   /**
    * Key M: the best labelled match's label goes into the form (event type, or the noise reason for
-   * a match to dismissed noise). Nothing is saved: the analyst confirms with Enter (or D).
+   * a match to dismissed noise). Nothing is saved: for an event type the Label button takes the focus,
+   * so the analyst confirms with Enter (or changes the form first); for noise, D dismisses.
    */
   const takeMatchedLabel = () => {
     const s = matches.data?.suggestion;
@@ -100,6 +102,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
       const type = quakemlEventTypes.find((t) => t === s.eventType);
       if (!type) return;
       form.setValue('eventType', type, { shouldDirty: true });
+      labelButton.current?.focus();
       toast.notify({ tone: 'info', title: `Label set to ${type}`, body: `From the best match (${s.value.toFixed(2)}). Press Enter to label, or change it first.`, durationMs: 4000 });
     } else {
       const reason = noiseReasons.find((r) => r === s.noiseReason);
@@ -214,7 +217,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           <MatchesPanel data={matches.data} loading={matches.isPending} error={matches.error?.message ?? null} canTake={mayWork} onTake={takeMatchedLabel} />
           <section className="rounded-sm border border-line bg-surface p-3">
             <h2 className="pb-1 text-md font-semibold">Label</h2>
-            <LabelForm form={form} canWrite={writable} viewOnly={me !== undefined && !mayWork} busy={act.busy} onLabel={(v) => void act.label(v)} onDismiss={(v) => void act.dismiss(v)} />
+            <LabelForm labelButtonRef={labelButton} form={form} canWrite={writable} viewOnly={me !== undefined && !mayWork} busy={act.busy} onLabel={(v) => void act.label(v)} onDismiss={(v) => void act.dismiss(v)} />
           </section>
           {analysis ? <Metrics analysis={analysis} /> : null}
           {analysis && analysis.channels.length > 0 ? <SpectrumSection analysis={analysis} /> : null}

@@ -7,7 +7,7 @@ import { FlagMarker } from '@client/components/ui/flag-marker';
 import { noiseModelSeries } from '@client/components/ui/noise-model-series';
 import { PlotFrame } from '@client/components/ui/plot-frame';
 import { StateMarker } from '@client/components/ui/state-marker';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { paths } from '@client/config/paths';
 import type { StationHealthView } from '@client/features/stations/api/stations';
 
@@ -91,32 +91,30 @@ export function NoiseTrend({ health }: { health: StationHealthView }) {
 export function QcFindings({ health }: { health: StationHealthView }) {
   if (health.qc.length === 0) return <p className="text-sm text-ink-muted">No gaps, clipping, dead channels or other findings in the {health.days} days up to the latest window.</p>;
   return (
-    <TableScroll label="QC findings">
-      <Table caption="Quality findings of recent windows" captionHidden>
-        <THead>
-          <Tr>
-            <Th>Window start (UTC)</Th>
-            <Th>Channel</Th>
-            <Th>Finding</Th>
-            <Th>What</Th>
-          </Tr>
-        </THead>
-        <TBody>
-          {health.qc.slice(0, 100).map((f, i) => (
-            <Tr key={`${f.windowId}-${f.streamId}-${f.code}-${i}`}>
-              <Td className="font-mono text-sm">{f.windowStart}</Td>
-              <Td className="font-mono text-sm">{f.streamId}</Td>
-              <Td>
-                <Badge tone={f.severity === 'error' ? 'danger' : 'warn'}>
-                  {f.severity}: {f.code}
-                </Badge>
-              </Td>
-              <Td className="text-sm">{f.message}</Td>
-            </Tr>
-          ))}
-        </TBody>
-      </Table>
-    </TableScroll>
+    <ScrollTable
+      label="QC findings" caption="Quality findings of recent windows" captionHidden
+      head={
+        <Tr>
+          <Th>Window start (UTC)</Th>
+          <Th>Channel</Th>
+          <Th>Finding</Th>
+          <Th>What</Th>
+        </Tr>
+      }
+    >
+      {health.qc.slice(0, 100).map((f, i) => (
+        <Tr key={`${f.windowId}-${f.streamId}-${f.code}-${i}`}>
+          <Td className="font-mono text-sm">{f.windowStart}</Td>
+          <Td className="font-mono text-sm">{f.streamId}</Td>
+          <Td>
+            <Badge tone={f.severity === 'error' ? 'danger' : 'warn'}>
+              {f.severity}: {f.code}
+            </Badge>
+          </Td>
+          <Td className="text-sm">{f.message}</Td>
+        </Tr>
+      ))}
+    </ScrollTable>
   );
 }
 
@@ -124,35 +122,33 @@ export function QcFindings({ health }: { health: StationHealthView }) {
 export function RecentItems({ health }: { health: StationHealthView }) {
   if (health.items.length === 0) return <p className="text-sm text-ink-muted">No queue items for this station yet.</p>;
   return (
-    <TableScroll label="Recent items">
-      <Table caption="Recent queue items of this station" captionHidden>
-        <THead>
-          <Tr>
-            <Th>Item</Th>
-            <Th>Window start (UTC)</Th>
-            <Th>Flag</Th>
-            <Th figure>Score</Th>
-            <Th>State</Th>
-          </Tr>
-        </THead>
-        <TBody>
-          {health.items.map((it) => (
-            <Tr key={it.id}>
-              <Td className="font-mono">
-                <Link to={`${paths.queueItem.href}/${it.id}`}>{it.id}</Link>
-              </Td>
-              <Td className="font-mono text-sm">{it.windowStart}</Td>
-              <Td>
-                <FlagMarker flag={it.flag} />
-              </Td>
-              <Td figure>{it.score.toFixed(1)}</Td>
-              <Td>
-                <StateMarker state={it.state} />
-              </Td>
-            </Tr>
-          ))}
-        </TBody>
-      </Table>
-    </TableScroll>
+    <ScrollTable
+      label="Recent items" caption="Recent queue items of this station" captionHidden
+      head={
+        <Tr>
+          <Th>Item</Th>
+          <Th>Window start (UTC)</Th>
+          <Th>Flag</Th>
+          <Th figure>Score</Th>
+          <Th>State</Th>
+        </Tr>
+      }
+    >
+      {health.items.map((it) => (
+        <Tr key={it.id}>
+          <Td className="font-mono">
+            <Link to={`${paths.queueItem.href}/${it.id}`}>{it.id}</Link>
+          </Td>
+          <Td className="font-mono text-sm">{it.windowStart}</Td>
+          <Td>
+            <FlagMarker flag={it.flag} />
+          </Td>
+          <Td figure>{it.score.toFixed(1)}</Td>
+          <Td>
+            <StateMarker state={it.state} />
+          </Td>
+        </Tr>
+      ))}
+    </ScrollTable>
   );
 }

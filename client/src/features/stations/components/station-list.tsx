@@ -3,7 +3,7 @@ import { Link } from 'react-router';
 import { Button } from '@client/components/ui/button';
 import { EmptyState } from '@client/components/ui/empty-state';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { paths } from '@client/config/paths';
 import { can } from '@shared/auth/policies';
 import { useMe, useStations } from '@client/features/stations/api/stations';
@@ -47,36 +47,34 @@ export function StationList() {
         <EmptyState title="No stations yet">Register a station or import its StationXML; an admin may also assign you existing stations.</EmptyState>
       ) : null}
       {data && data.stations.length > 0 ? (
-        <TableScroll label="Stations">
-          <Table caption="Stations you may see" captionHidden>
-            <THead>
-              <Tr>
-                <Th>Station</Th>
-                <Th>Name</Th>
-                <Th>Position</Th>
-                <Th figure>Elevation (m)</Th>
-                <Th figure>Channels</Th>
-                <Th>Latest window (UTC)</Th>
-              </Tr>
-            </THead>
-            <TBody>
-              {data.stations.map((s) => (
-                <Tr key={s.id}>
-                  <Td className="font-mono">
-                    <Link to={`${paths.stations.href}/${s.id}`}>
-                      {s.network}.{s.code}
-                    </Link>
-                  </Td>
-                  <Td>{s.name}</Td>
-                  <Td className="font-mono text-sm">{formatCoordinates(s.latitude, s.longitude)}</Td>
-                  <Td figure>{s.elevationM.toFixed(0)}</Td>
-                  <Td figure>{s.channelCount}</Td>
-                  <Td className="font-mono text-sm">{s.lastWindowAt ?? '—'}</Td>
-                </Tr>
-              ))}
-            </TBody>
-          </Table>
-        </TableScroll>
+        <ScrollTable
+          label="Stations" caption="Stations you may see" captionHidden
+          head={
+            <Tr>
+              <Th>Station</Th>
+              <Th>Name</Th>
+              <Th>Position</Th>
+              <Th figure>Elevation (m)</Th>
+              <Th figure>Channels</Th>
+              <Th>Latest window (UTC)</Th>
+            </Tr>
+          }
+        >
+          {data.stations.map((s) => (
+            <Tr key={s.id}>
+              <Td className="font-mono">
+                <Link to={`${paths.stations.href}/${s.id}`}>
+                  {s.network}.{s.code}
+                </Link>
+              </Td>
+              <Td>{s.name}</Td>
+              <Td className="font-mono text-sm">{formatCoordinates(s.latitude, s.longitude)}</Td>
+              <Td figure>{s.elevationM.toFixed(0)}</Td>
+              <Td figure>{s.channelCount}</Td>
+              <Td className="font-mono text-sm">{s.lastWindowAt ?? '—'}</Td>
+            </Tr>
+          ))}
+        </ScrollTable>
       ) : null}
     </div>
   );

@@ -2,7 +2,7 @@ import { Link } from 'react-router';
 import { sortChannels } from '@shared/channel-order';
 import { EmptyState } from '@client/components/ui/empty-state';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, ThActions, Tr } from '@client/components/ui/table';
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import { paths } from '@client/config/paths';
 import { can } from '@shared/auth/policies';
@@ -70,42 +70,40 @@ export function StationPage({ stationId }: { stationId: number }) {
         {s.channels.length === 0 ? (
           <p className="text-sm text-ink-muted">No channels registered. Import the station’s StationXML, or uploads are analysed in counts without expected rates.</p>
         ) : (
-          <TableScroll label="Channels">
-            <Table caption={`Channels of ${key}`} captionHidden>
-              <THead>
-                <Tr>
-                  <Th>Stream id</Th>
-                  <Th figure>Rate (Hz)</Th>
-                  <Th figure>Sensitivity</Th>
-                  <Th>at</Th>
-                  <Th>Input units</Th>
-                  <Th>Response</Th>
-                  {canEdit ? (
-                    <ThActions />
-                  ) : null}
-                </Tr>
-              </THead>
-              <TBody>
-                {sortChannels(s.channels, (c) => c.streamId).map((c) => (
-                  <Tr key={c.id}>
-                    <Td className="font-mono">{c.streamId}</Td>
-                    <Td figure>{c.sampleRateHz}</Td>
-                    <Td figure>{c.sensitivity === null ? '—' : c.sensitivity.toExponential(4)}</Td>
-                    <Td className="font-mono text-sm">{c.sensitivityFrequencyHz === null ? '—' : `${c.sensitivityFrequencyHz} Hz`}</Td>
-                    <Td className="font-mono text-sm">{c.sensitivityInputUnits ?? '—'}</Td>
-                    <Td className="text-sm">{c.hasResponse ? 'poles and zeros' : 'flat sensitivity only'}</Td>
-                    {canEdit ? (
-                      <Td>
-                        <Button size="sm" variant="quiet" disabled={removeChannel.isPending} onClick={() => removeChannel.mutate(c.id)} aria-label={`Remove channel ${c.streamId}`}>
-                          Remove
-                        </Button>
-                      </Td>
-                    ) : null}
-                  </Tr>
-                ))}
-              </TBody>
-            </Table>
-          </TableScroll>
+          <ScrollTable
+            label="Channels" caption={`Channels of ${key}`} captionHidden
+            head={
+              <Tr>
+                <Th>Stream id</Th>
+                <Th figure>Rate (Hz)</Th>
+                <Th figure>Sensitivity</Th>
+                <Th>at</Th>
+                <Th>Input units</Th>
+                <Th>Response</Th>
+                {canEdit ? (
+                  <ThActions />
+                ) : null}
+              </Tr>
+            }
+          >
+            {sortChannels(s.channels, (c) => c.streamId).map((c) => (
+              <Tr key={c.id}>
+                <Td className="font-mono">{c.streamId}</Td>
+                <Td figure>{c.sampleRateHz}</Td>
+                <Td figure>{c.sensitivity === null ? '—' : c.sensitivity.toExponential(4)}</Td>
+                <Td className="font-mono text-sm">{c.sensitivityFrequencyHz === null ? '—' : `${c.sensitivityFrequencyHz} Hz`}</Td>
+                <Td className="font-mono text-sm">{c.sensitivityInputUnits ?? '—'}</Td>
+                <Td className="text-sm">{c.hasResponse ? 'poles and zeros' : 'flat sensitivity only'}</Td>
+                {canEdit ? (
+                  <Td>
+                    <Button size="sm" variant="quiet" disabled={removeChannel.isPending} onClick={() => removeChannel.mutate(c.id)} aria-label={`Remove channel ${c.streamId}`}>
+                      Remove
+                    </Button>
+                  </Td>
+                ) : null}
+              </Tr>
+            ))}
+          </ScrollTable>
         )}
         {canEdit ? (
           <details className="rounded-sm border border-line px-3 py-2">

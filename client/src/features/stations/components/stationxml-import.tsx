@@ -1,7 +1,7 @@
 import { useId, useState } from 'react';
 import { Badge, type BadgeTone } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { previewStationXml, useApplyStationXml, type ImportPreview } from '@client/features/stations/api/import-stationxml';
 
 const tone: Record<string, BadgeTone> = { new: 'ok', changed: 'info', unchanged: 'neutral', skipped: 'neutral', invalid: 'danger', refused: 'danger' };
@@ -64,38 +64,36 @@ export function StationXmlImport({ onDone }: { onDone: () => void }) {
             {preview.counts.newStations} new and {preview.counts.changedStations} changed stations, {preview.counts.unchangedStations} unchanged; {preview.counts.newChannels} new and{' '}
             {preview.counts.changedChannels} changed channels{preview.counts.invalid ? `; ${preview.counts.invalid} entries cannot be imported` : ''}. Nothing is written until you apply.
           </p>
-          <TableScroll label="Import preview">
-            <Table caption="What the import would change" captionHidden>
-              <THead>
-                <Tr>
-                  <Th>Station or channel</Th>
-                  <Th>Change</Th>
-                  <Th>Fields (before → after)</Th>
+          <ScrollTable
+            label="Import preview" caption="What the import would change" captionHidden
+            head={
+              <Tr>
+                <Th>Station or channel</Th>
+                <Th>Change</Th>
+                <Th>Fields (before → after)</Th>
+              </Tr>
+            }
+          >
+            {preview.stations.flatMap((s) => [
+              <Tr key={s.station}>
+                <Td className="font-mono font-semibold">{s.station}</Td>
+                <Td>
+                  <Badge tone={tone[s.status] ?? 'neutral'}>{s.status}</Badge>
+                  {!s.allowed && s.status !== 'refused' ? <span className="block text-sm text-danger">you may not change this station</span> : null}
+                </Td>
+                <Td className="text-sm">{s.message ?? (s.fields.length ? s.fields.map((f) => `${f.field}: ${show(f.from)} → ${show(f.to)}`).join('; ') : '—')}</Td>
+              </Tr>,
+              ...s.channels.map((c) => (
+                <Tr key={`${s.station}-${c.streamId}`}>
+                  <Td className="pl-6 font-mono text-sm">{c.streamId}</Td>
+                  <Td>
+                    <Badge tone={tone[c.status] ?? 'neutral'}>{c.status}</Badge>
+                  </Td>
+                  <Td className="text-sm">{c.message ?? (c.fields.length ? c.fields.map((f) => `${f.field}: ${show(f.from)} → ${show(f.to)}`).join('; ') : '—')}</Td>
                 </Tr>
-              </THead>
-              <TBody>
-                {preview.stations.flatMap((s) => [
-                  <Tr key={s.station}>
-                    <Td className="font-mono font-semibold">{s.station}</Td>
-                    <Td>
-                      <Badge tone={tone[s.status] ?? 'neutral'}>{s.status}</Badge>
-                      {!s.allowed && s.status !== 'refused' ? <span className="block text-sm text-danger">you may not change this station</span> : null}
-                    </Td>
-                    <Td className="text-sm">{s.message ?? (s.fields.length ? s.fields.map((f) => `${f.field}: ${show(f.from)} → ${show(f.to)}`).join('; ') : '—')}</Td>
-                  </Tr>,
-                  ...s.channels.map((c) => (
-                    <Tr key={`${s.station}-${c.streamId}`}>
-                      <Td className="pl-6 font-mono text-sm">{c.streamId}</Td>
-                      <Td>
-                        <Badge tone={tone[c.status] ?? 'neutral'}>{c.status}</Badge>
-                      </Td>
-                      <Td className="text-sm">{c.message ?? (c.fields.length ? c.fields.map((f) => `${f.field}: ${show(f.from)} → ${show(f.to)}`).join('; ') : '—')}</Td>
-                    </Tr>
-                  )),
-                ])}
-              </TBody>
-            </Table>
-          </TableScroll>
+              )),
+            ])}
+          </ScrollTable>
           {applied ? (
             <p role="status" className="text-sm">
               Applied. The stations and channels above are in the registry.

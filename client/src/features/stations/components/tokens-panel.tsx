@@ -3,7 +3,7 @@ import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { FormField } from '@client/components/ui/form-field';
 import { Input } from '@client/components/ui/input';
-import { Table, TableScroll, TBody, Td, Th, ThActions, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, ThActions, Tr } from '@client/components/ui/table';
 import { tokenCreateSchema, type TokenCreated } from '@shared/schemas/station';
 import { useCreateToken, useRevokeToken, useStationTokens } from '@client/features/stations/api/stations';
 import { ApiError } from '@client/lib/api-client';
@@ -86,39 +86,37 @@ export function TokensPanel({ stationId, stationKey }: { stationId: number; stat
       ) : null}
 
       {tokens.data && tokens.data.tokens.length > 0 ? (
-        <TableScroll label="Ingest tokens">
-          <Table caption="Ingest tokens of this station" captionHidden>
-            <THead>
-              <Tr>
-                <Th>Label</Th>
-                <Th>Created (UTC)</Th>
-                <Th>Last used (UTC)</Th>
-                <Th>State</Th>
-                <ThActions />
-              </Tr>
-            </THead>
-            <TBody>
-              {tokens.data.tokens.map((t) => (
-                <Tr key={t.id}>
-                  <Td>{t.label}</Td>
-                  <Td className="font-mono text-sm">
-                    {t.createdAt}
-                    {t.createdBy ? <span className="block font-sans text-ink-muted">by {t.createdBy}</span> : null}
-                  </Td>
-                  <Td className="font-mono text-sm">{t.lastUsedAt ?? 'never'}</Td>
-                  <Td>{t.revokedAt ? <Badge tone="neutral">revoked {t.revokedAt.slice(0, 10)}</Badge> : <Badge tone="ok">active</Badge>}</Td>
-                  <Td>
-                    {t.revokedAt ? null : (
-                      <Button size="sm" variant="danger" disabled={revoke.isPending} onClick={() => revoke.mutate(t.id)} aria-label={`Revoke token ${t.label}`}>
-                        Revoke
-                      </Button>
-                    )}
-                  </Td>
-                </Tr>
-              ))}
-            </TBody>
-          </Table>
-        </TableScroll>
+        <ScrollTable
+          label="Ingest tokens" caption="Ingest tokens of this station" captionHidden
+          head={
+            <Tr>
+              <Th>Label</Th>
+              <Th>Created (UTC)</Th>
+              <Th>Last used (UTC)</Th>
+              <Th>State</Th>
+              <ThActions />
+            </Tr>
+          }
+        >
+          {tokens.data.tokens.map((t) => (
+            <Tr key={t.id}>
+              <Td>{t.label}</Td>
+              <Td className="font-mono text-sm">
+                {t.createdAt}
+                {t.createdBy ? <span className="block font-sans text-ink-muted">by {t.createdBy}</span> : null}
+              </Td>
+              <Td className="font-mono text-sm">{t.lastUsedAt ?? 'never'}</Td>
+              <Td>{t.revokedAt ? <Badge tone="neutral">revoked {t.revokedAt.slice(0, 10)}</Badge> : <Badge tone="ok">active</Badge>}</Td>
+              <Td>
+                {t.revokedAt ? null : (
+                  <Button size="sm" variant="danger" disabled={revoke.isPending} onClick={() => revoke.mutate(t.id)} aria-label={`Revoke token ${t.label}`}>
+                    Revoke
+                  </Button>
+                )}
+              </Td>
+            </Tr>
+          ))}
+        </ScrollTable>
       ) : tokens.data ? (
         <p className="text-sm text-ink-muted">No tokens yet. Scripts on the acquisition computer need one to upload for this station.</p>
       ) : null}

@@ -2,9 +2,6 @@ import type { ReactNode } from 'react';
 import type uPlot from 'uplot';
 import type { LiveState } from '@client/lib/ws-client';
 
-/** The sentence every supervisor screen that shows event times carries. */
-export const noLocationText = 'Seisift does not yet locate events or compute magnitudes: times shown are station times (earliest P pick, else earliest trigger), not origin times.';
-
 /**
  * A supervisor screen's frame: title, one line of purpose, then the content. The shell shows the
  * live connection; a screen with a live client of its own says only when that one is not live.

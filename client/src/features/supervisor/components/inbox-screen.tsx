@@ -4,7 +4,7 @@ import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { EmptyState } from '@client/components/ui/empty-state';
 import { Loading } from '@client/components/ui/skeleton';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import { commonEventTypes, quakemlEventTypes, typeCertainties } from '@shared/schemas/label';
 import { Select } from '@client/components/ui/select';
@@ -53,82 +53,80 @@ export function InboxScreen() {
       ) : (inbox.data?.entries.length ?? 0) === 0 ? (
         <EmptyState title="No escalations">When an analyst escalates an item it appears here at once, and you get an e-mail.</EmptyState>
       ) : (
-        <TableScroll label="Escalations">
-          <Table caption="Escalations, newest first">
-            <THead>
-              <tr>
-                <Th>Received</Th>
-                <Th>Item</Th>
-                <Th>Reason</Th>
-                <Th>Status</Th>
-                <Th>Actions</Th>
-              </tr>
-            </THead>
-            <TBody>
-              {inbox.data?.entries.map((e) => (
-                <Tr key={e.id} data-testid={`inbox-entry-${e.id}`} className={e.readAt ? undefined : 'font-semibold'}>
-                  <Td className="font-mono text-sm whitespace-nowrap">{e.createdAt}</Td>
-                  <Td>
-                    <a className="underline" href={`/queue/items/${e.itemId}`} onClick={() => !e.readAt && act.mutate({ id: e.id, action: 'read' })}>
-                      <SubjectText subject={e.subject} />
-                    </a>
-                    <div className="text-sm text-ink-muted">escalated by {e.escalatedBy ?? 'someone'}</div>
-                  </Td>
-                  <Td className="max-w-[28rem] text-sm">{e.reason}</Td>
-                  <Td>
-                    <EntryStatus entry={e} />
-                  </Td>
-                  <Td>
-                    {e.resolution ? null : confirming === e.id ? (
-                      <ConfirmLabelForm entryId={e.id} busy={act.isPending} onCancel={() => setConfirming(null)} onConfirm={(label) => act.mutate({ id: e.id, action: 'confirm', label })} />
-                    ) : returning === e.id ? (
-                      <form
-                        className="flex flex-col gap-1"
-                        onSubmit={(ev) => {
-                          ev.preventDefault();
-                          act.mutate({ id: e.id, action: 'return', comment });
-                        }}
-                      >
-                        <label className="text-sm" htmlFor={`ret-${e.id}`}>
-                          Comment for the analyst
-                        </label>
-                        <textarea id={`ret-${e.id}`} className="rounded-xs border border-line bg-surface p-1 text-sm" rows={2} value={comment} onChange={(ev) => setComment(ev.target.value)} />
-                        <div className="flex gap-2">
-                          <Button size="sm" type="submit" variant="primary" disabled={comment.trim().length < 3}>
-                            Return to queue
-                          </Button>
-                          <Button size="sm" variant="quiet" onClick={() => setReturning(null)}>
-                            Cancel
-                          </Button>
-                        </div>
-                      </form>
+        <ScrollTable
+          label="Escalations" caption="Escalations, newest first"
+          head={
+            <tr>
+              <Th>Received</Th>
+              <Th>Item</Th>
+              <Th>Reason</Th>
+              <Th>Status</Th>
+              <Th>Actions</Th>
+            </tr>
+          }
+        >
+          {inbox.data?.entries.map((e) => (
+            <Tr key={e.id} data-testid={`inbox-entry-${e.id}`} className={e.readAt ? undefined : 'font-semibold'}>
+              <Td className="font-mono text-sm whitespace-nowrap">{e.createdAt}</Td>
+              <Td>
+                <a className="underline" href={`/queue/items/${e.itemId}`} onClick={() => !e.readAt && act.mutate({ id: e.id, action: 'read' })}>
+                  <SubjectText subject={e.subject} />
+                </a>
+                <div className="text-sm text-ink-muted">escalated by {e.escalatedBy ?? 'someone'}</div>
+              </Td>
+              <Td className="max-w-[28rem] text-sm">{e.reason}</Td>
+              <Td>
+                <EntryStatus entry={e} />
+              </Td>
+              <Td>
+                {e.resolution ? null : confirming === e.id ? (
+                  <ConfirmLabelForm entryId={e.id} busy={act.isPending} onCancel={() => setConfirming(null)} onConfirm={(label) => act.mutate({ id: e.id, action: 'confirm', label })} />
+                ) : returning === e.id ? (
+                  <form
+                    className="flex flex-col gap-1"
+                    onSubmit={(ev) => {
+                      ev.preventDefault();
+                      act.mutate({ id: e.id, action: 'return', comment });
+                    }}
+                  >
+                    <label className="text-sm" htmlFor={`ret-${e.id}`}>
+                      Comment for the analyst
+                    </label>
+                    <textarea id={`ret-${e.id}`} className="rounded-xs border border-line bg-surface p-1 text-sm" rows={2} value={comment} onChange={(ev) => setComment(ev.target.value)} />
+                    <div className="flex gap-2">
+                      <Button size="sm" type="submit" variant="primary" disabled={comment.trim().length < 3}>
+                        Return to queue
+                      </Button>
+                      <Button size="sm" variant="quiet" onClick={() => setReturning(null)}>
+                        Cancel
+                      </Button>
+                    </div>
+                  </form>
+                ) : (
+                  <div className="flex flex-wrap gap-2">
+                    {!e.acknowledgedAt ? (
+                      <Button size="sm" onClick={() => act.mutate({ id: e.id, action: 'acknowledge' })}>
+                        Acknowledge
+                      </Button>
+                    ) : null}
+                    {e.itemLabelType === null ? (
+                      <Button size="sm" variant="primary" onClick={() => setConfirming(e.id)}>
+                        Confirm…
+                      </Button>
                     ) : (
-                      <div className="flex flex-wrap gap-2">
-                        {!e.acknowledgedAt ? (
-                          <Button size="sm" onClick={() => act.mutate({ id: e.id, action: 'acknowledge' })}>
-                            Acknowledge
-                          </Button>
-                        ) : null}
-                        {e.itemLabelType === null ? (
-                          <Button size="sm" variant="primary" onClick={() => setConfirming(e.id)}>
-                            Confirm…
-                          </Button>
-                        ) : (
-                          <Button size="sm" variant="primary" onClick={() => act.mutate({ id: e.id, action: 'confirm' })}>
-                            Confirm as {e.itemLabelType}
-                          </Button>
-                        )}
-                        <Button size="sm" variant="secondary" onClick={() => setReturning(e.id)}>
-                          Return…
-                        </Button>
-                      </div>
+                      <Button size="sm" variant="primary" onClick={() => act.mutate({ id: e.id, action: 'confirm' })}>
+                        Confirm as {e.itemLabelType}
+                      </Button>
                     )}
-                  </Td>
-                </Tr>
-              ))}
-            </TBody>
-          </Table>
-        </TableScroll>
+                    <Button size="sm" variant="secondary" onClick={() => setReturning(e.id)}>
+                      Return…
+                    </Button>
+                  </div>
+                )}
+              </Td>
+            </Tr>
+          ))}
+        </ScrollTable>
       )}
     </SupervisorPage>
   );

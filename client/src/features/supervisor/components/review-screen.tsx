@@ -1,6 +1,5 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
-import { Link } from 'react-router';
 import { quakemlEventTypes } from '@shared/schemas/label';
 import { evaluationStatuses, reviewStatuses, type ReviewRow } from '@shared/schemas/supervisor';
 import { Badge } from '@client/components/ui/badge';
@@ -13,43 +12,80 @@ import { Select } from '@client/components/ui/select';
 import { Loading } from '@client/components/ui/skeleton';
 import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
 import { TriageCaution } from '@client/components/ui/triage-caution';
-import { paths } from '@client/config/paths';
-import { candidateEventsQuery, exportUrl, labelCandidate, returnItem, reviewQuery, setStatus, type ReviewFilters } from '@client/features/supervisor/api/supervisor-api';
+import { eventCatalogueQuery } from '@client/features/supervisor/api/event-catalogue-api';
+import { exportUrl, returnItem, reviewQuery, setStatus, type ReviewFilters } from '@client/features/supervisor/api/supervisor-api';
 import { usePeriod } from '@client/features/supervisor/hooks/use-period';
 import { useSupervisorLive } from '@client/features/supervisor/hooks/use-supervisor-live';
-import { ErrorLine, noLocationText, periodText, Section, SupervisorPage } from './common';
+import { ErrorLine, periodText, Section, SupervisorPage } from './common';
+import { EventCatalogue } from './event-catalogue';
 import { queryKeys } from '@client/lib/query-keys';
 
 /**
- * /review: labelled events to confirm, review, finalise or reject (QuakeML evaluation status) or
- * return to the queue with a comment; the candidate events of the period (several stations, one
- * source); and the catalogue export.
+ * /review: the catalogue of the period, one row per event (origin, ML, quality, type, evaluation
+ * status; its windows on demand; the supervisor's review or return to the analysts, in
+ * event-catalogue.tsx), then the labelled windows no event holds (single-station events, each
+ * reviewed on its own), and the catalogue export.
  */
 export function ReviewScreen() {
   const live = useSupervisorLive();
-  // Default: the 7 UTC days up to the latest labelled event's window (so the demo, dated
-  // 2026-03-14, opens on its events), until the person sets a period of their own.
-  const period = usePeriod(7, 'labelled');
+  // Default: the 7 UTC days up to the latest window with items (so the demo, dated 2026-03-14,
+  // opens on its events), until the person sets a period of their own.
+  const period = usePeriod(7, 'any');
   const periodOk = period.from !== undefined && period.to !== undefined && Date.parse(period.from) < Date.parse(period.to);
-  const [station, setStation] = useState('');
-  const [type, setType] = useState('');
-  const [analyst, setAnalyst] = useState('');
-  const [status, setStatusFilter] = useState('');
-  const filters: ReviewFilters = { from: period.from, to: period.to, station: station.trim().toUpperCase() || undefined, type: type || undefined, analyst: analyst.trim() || undefined, status: status || undefined };
-  const list = useQuery({ ...reviewQuery(filters), enabled: periodOk });
   return (
-    <SupervisorPage title="Review & catalogue" summary="Labelled events by window time; set their evaluation status or return them to the queue." live={live}>
+    <SupervisorPage title="Review & catalogue" summary="Events of the period with their origin and ML: review, publish or return them; then export the catalogue." live={live}>
       <TriageCaution variant="line" />
-      <p role="note" className="text-sm text-ink-muted">
-        {noLocationText}
-      </p>
-      <form className="flex flex-wrap items-end gap-3" aria-label="Review filters" onSubmit={(e) => e.preventDefault()}>
+      <form className="flex flex-wrap items-end gap-3" aria-label="Period" onSubmit={(e) => e.preventDefault()}>
         {period.from !== undefined && period.to !== undefined ? (
           <>
             <UtcTimeInput label="From (UTC)" value={period.from} onChange={period.setFrom} error={periodOk ? undefined : 'must be before To'} />
             <UtcTimeInput label="To (UTC, exclusive)" value={period.to} onChange={period.setTo} />
           </>
         ) : null}
+      </form>
+      {period.defaultPeriod && !period.edited ? (
+        <p className="text-sm text-ink-muted" data-testid="default-period">
+          Period: {periodText(period.defaultPeriod)}.
+        </p>
+      ) : null}
+      <ErrorLine error={period.error} />
+      {periodOk && period.from !== undefined && period.to !== undefined ? (
+        <>
+          <EventCatalogue from={period.from} to={period.to} membershipTo={membershipEnd(period.to)} />
+          <LoneWindows from={period.from} to={period.to} />
+          <ExportForm from={period.from} to={period.to} />
+        </>
+      ) : null}
+    </SupervisorPage>
+  );
+}
+
+/**
+ * The end of the event query that tells which windows of the period an event holds: an event's
+ * first arrival comes after its windows start, so one hour past the period's end covers windows
+ * (a few minutes long) that start just before it.
+ */
+function membershipEnd(to: string): string {
+  return new Date(Date.parse(to) + 3_600_000).toISOString();
+}
+
+/** Labelled windows whose start lies in the period and that no event holds, with their own filters. */
+function LoneWindows({ from, to }: { from: string; to: string }) {
+  const [station, setStation] = useState('');
+  const [type, setType] = useState('');
+  const [analyst, setAnalyst] = useState('');
+  const [status, setStatusFilter] = useState('');
+  const filters: ReviewFilters = { from, to, station: station.trim().toUpperCase() || undefined, type: type || undefined, analyst: analyst.trim() || undefined, status: status || undefined };
+  const list = useQuery(reviewQuery(filters));
+  const events = useQuery(eventCatalogueQuery(from, membershipEnd(to)));
+  const held = new Set((events.data?.events ?? []).flatMap((e) => e.memberItemIds));
+  const rows = (list.data?.items ?? []).filter((r) => !held.has(r.itemId));
+  return (
+    <Section title="Labelled windows no event holds">
+      <p className="mb-2 text-sm text-ink-muted">
+        Windows labelled as events that no multi-station event holds (often one station alone): each is a catalogue entry of its own, with its station time (earliest P pick, else earliest trigger) and no location.
+      </p>
+      <form className="mb-2 flex flex-wrap items-end gap-3" aria-label="Review filters" onSubmit={(e) => e.preventDefault()}>
         <label className="flex flex-col text-sm">
           Station
           <Input placeholder="KV01" value={station} onChange={(e) => setStation(e.target.value)} className="w-28" />
@@ -77,20 +113,9 @@ export function ReviewScreen() {
           </Select>
         </label>
       </form>
-      {period.defaultPeriod && !period.edited ? (
-        <p className="text-sm text-ink-muted" data-testid="default-period">
-          Period: {periodText(period.defaultPeriod)}.
-        </p>
-      ) : null}
-      <ErrorLine error={list.error ?? period.error} />
-      {!periodOk ? null : list.isPending ? <Loading label="Loading labelled events…" /> : <ReviewTable rows={list.data?.items ?? []} />}
-      {periodOk && period.from !== undefined && period.to !== undefined ? (
-        <>
-          <CandidateEvents from={period.from} to={period.to} />
-          <ExportForm from={period.from} to={period.to} />
-        </>
-      ) : null}
-    </SupervisorPage>
+      <ErrorLine error={list.error ?? events.error} />
+      {list.isPending || events.isPending ? <Loading label="Loading labelled windows…" /> : <ReviewTable rows={rows} />}
+    </Section>
   );
 }
 
@@ -106,11 +131,11 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
   };
   const status = useMutation({ mutationFn: (r: ReviewRow) => setStatus(r.itemId, r.version, choice, comment), onSuccess: done });
   const ret = useMutation({ mutationFn: (r: ReviewRow) => returnItem(r.itemId, r.version, comment), onSuccess: done });
-  if (rows.length === 0) return <EmptyState title="No labelled events">Nothing labelled as an event matches these filters.</EmptyState>;
+  if (rows.length === 0) return <EmptyState title="No lone labelled windows">Every labelled window matching these filters belongs to an event above.</EmptyState>;
   return (
-    <TableScroll label="Labelled events">
+    <TableScroll label="Labelled windows no event holds">
       <ErrorLine error={status.error ?? ret.error} />
-      <Table caption="Labelled events, newest window first">
+      <Table caption="Labelled windows no event holds, newest window first">
         <THead>
           <tr>
             <Th>Event time (basis)</Th>
@@ -189,62 +214,6 @@ function ReviewTable({ rows }: { rows: ReviewRow[] }) {
   );
 }
 
-function CandidateEvents({ from, to }: { from: string; to: string }) {
-  const qc = useQueryClient();
-  const q = useQuery(candidateEventsQuery(from, to));
-  const [type, setType] = useState('earthquake');
-  const label = useMutation({
-    mutationFn: (id: number) => labelCandidate(id, { eventType: type, certainty: 'suspected', note: '' }),
-    onSuccess: () => void qc.invalidateQueries({ queryKey: queryKeys.supervisor.all }),
-  });
-  return (
-    <Section title="Event groups (candidate events: several stations, one source?)">
-      <p className="mb-2 text-sm text-ink-muted">
-        Items from at least 3 stations whose first triggers lie within the inter-station distance at 3 km/s plus 2 s. Labelling a group labels each member that is still waiting; each stays correctable on its own.
-      </p>
-      <ErrorLine error={q.error ?? label.error} />
-      {(q.data?.events.length ?? 0) === 0 ? (
-        <p className="text-sm">No event groups in this period.</p>
-      ) : (
-        <ul className="flex flex-col gap-2">
-          {q.data?.events.map((ev) => (
-            <li key={ev.id} className="rounded-sm border border-line bg-surface p-2" aria-label={`Event group ${ev.id}`}>
-              <div className="flex flex-wrap items-baseline gap-3">
-                <strong>Event group #{ev.id}</strong>
-                <span className="font-mono text-sm">first trigger {ev.firstArrival}</span>
-                <span className="text-sm">{ev.stationCount} stations</span>
-                <label className="ml-auto text-sm">
-                  Label all as{' '}
-                  <Select value={type} onChange={(e) => setType(e.target.value)}>
-                    {quakemlEventTypes.map((t) => (
-                      <option key={t}>{t}</option>
-                    ))}
-                  </Select>
-                </label>
-                <Button size="sm" onClick={() => label.mutate(ev.id)}>
-                  Label group
-                </Button>
-              </div>
-              <ul className="mt-1 text-sm">
-                {ev.members.map((m) => (
-                  <li key={m.itemId} className="flex gap-3">
-                    <Link className="underline" to={`${paths.queueItem.href}/${m.itemId}`}>
-                      {m.station}
-                    </Link>
-                    <span className="font-mono">{m.arrival}</span>
-                    <span>{m.state}</span>
-                    <span>{m.labelType ?? 'no label'}</span>
-                  </li>
-                ))}
-              </ul>
-            </li>
-          ))}
-        </ul>
-      )}
-    </Section>
-  );
-}
-
 function ExportForm({ from, to }: { from: string; to: string }) {
   const [format, setFormat] = useState<'quakeml' | 'csv'>('quakeml');
   const [withPreliminary, setWithPreliminary] = useState(false);
@@ -252,7 +221,7 @@ function ExportForm({ from, to }: { from: string; to: string }) {
   return (
     <Section title="Export the reviewed catalogue">
       <p className="mb-2 text-sm text-ink-muted">
-        Events whose window starts in the period above (<span className="font-mono whitespace-nowrap">{from}</span> to <span className="font-mono whitespace-nowrap">{to}</span>, UTC). QuakeML 1.2 or CSV; no origins or magnitudes, since Seisift does not locate events. Resource ids use smi:seisift.local — a network publishing the catalogue sets its own authority id.
+        One entry per event of the period above (<span className="font-mono whitespace-nowrap">{from}</span> to <span className="font-mono whitespace-nowrap">{to}</span>, UTC) with the chosen statuses: its preferred origin with its uncertainty and quality, arrivals, picks, amplitudes, station magnitudes and ML; a lone labelled window is an entry with its station time and no location. QuakeML 1.2 or CSV; both carry the caution that locations and magnitudes are triage aids to be reviewed, and that public information follows the network&rsquo;s procedures and local authorities. Resource ids use smi:seisift.local — a network publishing the catalogue sets its own authority id.
       </p>
       <div className="flex flex-wrap items-end gap-3">
         <label className="flex flex-col text-sm">

@@ -12,6 +12,7 @@ import { TriageCaution } from '@client/components/ui/triage-caution';
 import { applyThresholds, rescore, stationsQuery, thresholdsQuery } from '@client/features/supervisor/api/supervisor-api';
 import { usePeriod } from '@client/features/supervisor/hooks/use-period';
 import { ErrorLine, periodText, Section, SupervisorPage, withPointsShare } from './common';
+import { VelocityModelSection } from './velocity-model-section';
 import { queryKeys } from '@client/lib/query-keys';
 
 const pct = (v: number | null) => (v === null ? 'n/a' : `${(v * 100).toFixed(1)} %`);
@@ -57,7 +58,7 @@ export function ThresholdsScreen() {
     return { recall: pts.map((p) => p.recall ?? 0), precision: pts.map((p) => p.precision), eventZ: pts.map((p) => p.eventZ) };
   }, [curve]);
   return (
-    <SupervisorPage title="Thresholds" summary="The flagging rule against each station's labelled history.">
+    <SupervisorPage title="Thresholds" summary="The flagging rule against each station's labelled history, and the network's velocity model for locating events.">
       <TriageCaution variant="line" />
       <ErrorLine error={stations.error ?? report.error ?? apply.error ?? rs.error} />
       <label className="flex w-fit flex-col text-sm">
@@ -170,6 +171,7 @@ export function ThresholdsScreen() {
           </Section>
         </>
       )}
+      <VelocityModelSection />
     </SupervisorPage>
   );
 }

@@ -32,6 +32,8 @@ export function useSupervisorLive(): LiveState {
             pending.add('latest-windows');
           }
           if (c.resource === 'candidate_event' || c.resource === 'item') pending.add('candidates');
+          // An event built, relocated, labelled or returned changes the catalogue rows.
+          if (c.resource === 'event' || c.resource === 'candidate_event') pending.add('review');
         }
         // One refetch per burst of changes.
         if (pending.size > 0 && !timer) timer = setTimeout(flush, 150);

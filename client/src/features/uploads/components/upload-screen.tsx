@@ -5,7 +5,7 @@ import { Badge } from '@client/components/ui/badge';
 import { Button } from '@client/components/ui/button';
 import { FlagMarker } from '@client/components/ui/flag-marker';
 import { Input } from '@client/components/ui/input';
-import { Table, TableScroll, TBody, Td, Th, THead, Tr } from '@client/components/ui/table';
+import { ScrollTable, Td, Th, Tr } from '@client/components/ui/table';
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import { paths } from '@client/config/paths';
 import { cx } from '@client/lib/cx';
@@ -179,54 +179,52 @@ export function UploadScreen() {
             Results
           </h2>
           <TriageCaution variant="line" />
-          <TableScroll label="Upload results">
-            <Table caption="Outcome of each uploaded file" captionHidden>
-              <THead>
-                <Tr>
-                  <Th>File</Th>
-                  <Th>Outcome</Th>
-                  <Th>Queue items</Th>
-                </Tr>
-              </THead>
-              <TBody>
-                {done.map(({ entry, outcome }) => (
-                  <Tr key={entry.key}>
-                    <Td className="font-mono">{outcome.filename}</Td>
-                    <Td>
-                      {outcome.status === 'created' ? (
-                        <Badge tone="ok">Queued</Badge>
-                      ) : outcome.status === 'duplicate' ? (
-                        <Badge tone="info">Already uploaded</Badge>
-                      ) : (
-                        <span className="flex flex-col gap-0.5">
-                          <Badge tone="danger">{refusalHeading(outcome.httpStatus)}</Badge>
-                          <span className="text-sm">{outcome.message}</span>
-                        </span>
-                      )}
-                    </Td>
-                    <Td>
-                      {outcome.items && outcome.items.length > 0 ? (
-                        <ul className="flex flex-col gap-1">
-                          {outcome.items.map((it) => (
-                            <li key={it.id} className="flex flex-wrap items-center gap-2">
-                              <Link to={`${paths.queueItem.href}/${it.id}`} className="font-mono">
-                                Item {it.id}
-                              </Link>
-                              <span className="font-mono text-sm">{it.station}</span>
-                              <FlagMarker flag={it.flag} />
-                              <span className="text-sm text-ink-muted">score {it.score.toFixed(1)}</span>
-                            </li>
-                          ))}
-                        </ul>
-                      ) : (
-                        <span className="text-ink-muted">—</span>
-                      )}
-                    </Td>
-                  </Tr>
-                ))}
-              </TBody>
-            </Table>
-          </TableScroll>
+          <ScrollTable
+            label="Upload results" caption="Outcome of each uploaded file" captionHidden
+            head={
+              <Tr>
+                <Th>File</Th>
+                <Th>Outcome</Th>
+                <Th>Queue items</Th>
+              </Tr>
+            }
+          >
+            {done.map(({ entry, outcome }) => (
+              <Tr key={entry.key}>
+                <Td className="font-mono">{outcome.filename}</Td>
+                <Td>
+                  {outcome.status === 'created' ? (
+                    <Badge tone="ok">Queued</Badge>
+                  ) : outcome.status === 'duplicate' ? (
+                    <Badge tone="info">Already uploaded</Badge>
+                  ) : (
+                    <span className="flex flex-col gap-0.5">
+                      <Badge tone="danger">{refusalHeading(outcome.httpStatus)}</Badge>
+                      <span className="text-sm">{outcome.message}</span>
+                    </span>
+                  )}
+                </Td>
+                <Td>
+                  {outcome.items && outcome.items.length > 0 ? (
+                    <ul className="flex flex-col gap-1">
+                      {outcome.items.map((it) => (
+                        <li key={it.id} className="flex flex-wrap items-center gap-2">
+                          <Link to={`${paths.queueItem.href}/${it.id}`} className="font-mono">
+                            Item {it.id}
+                          </Link>
+                          <span className="font-mono text-sm">{it.station}</span>
+                          <FlagMarker flag={it.flag} />
+                          <span className="text-sm text-ink-muted">score {it.score.toFixed(1)}</span>
+                        </li>
+                      ))}
+                    </ul>
+                  ) : (
+                    <span className="text-ink-muted">—</span>
+                  )}
+                </Td>
+              </Tr>
+            ))}
+          </ScrollTable>
         </section>
       ) : null}
     </div>
