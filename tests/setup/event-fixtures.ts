@@ -20,7 +20,16 @@ export type SeededWindows = { itemIds: number[]; stationIds: number[]; synth: Sy
 /** What `seedSyntheticEvent` made. */
 export type SeededEvent = SeededWindows & { eventId: number; truth: TrueHypocentre };
 
-type RingOptions = { codes: readonly string[]; placements: ReadonlyArray<readonly [number, number]>; truth: TrueHypocentre; network?: string; stationName?: string; centre?: { latitudeDeg: number; longitudeDeg: number } };
+type RingOptions = {
+  codes: readonly string[];
+  placements: ReadonlyArray<readonly [number, number]>;
+  truth: TrueHypocentre;
+  network?: string;
+  stationName?: string;
+  centre?: { latitudeDeg: number; longitudeDeg: number };
+  /** Window length, s (default 60). */
+  durationS?: number;
+};
 
 /**
  * Stations on a ring (around `centre`, by default the epicentre of a known hypocentre) with a
@@ -32,7 +41,7 @@ export async function seedSyntheticStations(db: Database, opts: RingOptions): Pr
   const network = opts.network ?? 'XX';
   const centre = opts.centre ?? { latitudeDeg: opts.truth.latitudeDeg, longitudeDeg: opts.truth.longitudeDeg };
   const ring = ringStations(centre, opts.placements).map((s, i) => ({ ...s, code: opts.codes[i] as string }));
-  const synth = syntheticEvent(ring, opts.truth, fixtureModel, 21);
+  const synth = syntheticEvent(ring, opts.truth, fixtureModel, 21, opts.durationS ?? 60);
   const now = new Date();
   const w = 2 * Math.PI;
   const p = 0.0444;
@@ -75,7 +84,7 @@ export async function seedSyntheticWindows(db: Database, opts: RingOptions): Pro
     const start = new Date((streams[0]?.startTimeUs ?? 0) / 1000);
     const id = await db.transaction(async (tx) => {
       const [up] = await tx.insert(uploads).values({ sha256: createHash('sha256').update(bytes).digest('hex'), filename: `${s.code}.mseed`, sizeBytes: bytes.length, format: 'mseed2', original: Buffer.from(bytes), stationId, createdAt: now });
-      const [win] = await tx.insert(windows).values({ uploadId: up.insertId, stationId, startTime: start, endTime: new Date(start.getTime() + 60_000), analysis, engineVersion: 'test', createdAt: now });
+      const [win] = await tx.insert(windows).values({ uploadId: up.insertId, stationId, startTime: start, endTime: new Date(start.getTime() + (opts.durationS ?? 60) * 1000), analysis, engineVersion: 'test', createdAt: now });
       for (const c of streams) {
         const buf = Buffer.alloc(c.samples.length * 8);
         c.samples.forEach((v, i) => buf.writeDoubleLE(v, i * 8));
@@ -94,10 +103,17 @@ export async function seedSyntheticWindows(db: Database, opts: RingOptions): Pro
  * into a candidate event and built into an event with its automatic picks, location and ML, as the
  * scheduler's catch-up job builds it (server/jobs/app-jobs.ts).
  */
-export async function seedSyntheticEvent(db: Database, opts: RingOptions & { supervisor: { id: string; email: string } }): Promise<SeededEvent> {
+export async function seedSyntheticEvent(
+  db: Database,
+  opts: RingOptions & {
+    supervisor: { id: string; email: string };
+    /** Store the test half-space as the network's velocity model (default true; false keeps the network's own). */
+    saveModel?: boolean;
+  },
+): Promise<SeededEvent> {
   const network = opts.network ?? 'XX';
   const seeded = await seedSyntheticWindows(db, opts);
-  await db.transaction((tx) => saveVelocityModel(tx, opts.supervisor, network, { name: fixtureModel.name, layers: fixtureModel.layers, stationCorrections: {} }, null));
+  if (opts.saveModel !== false) await db.transaction((tx) => saveVelocityModel(tx, opts.supervisor, network, { name: fixtureModel.name, layers: fixtureModel.layers, stationCorrections: {} }, null));
   await onItemsCreated({ db }, seeded.itemIds);
   const [eventId] = await syncEventsFromGroups({ db });
   if (eventId === undefined) throw new Error('the synthetic windows did not form an event');

@@ -133,6 +133,8 @@ export interface ItemOptions {
   withSamples?: boolean;
   burstAtS?: number;
   durationS?: number;
+  /** The "why flagged" reasons of a placeholder analysis (default ['test fixture']). */
+  reasons?: string[];
 }
 
 /**
@@ -189,7 +191,7 @@ export async function createItem(db: Database, opts: ItemOptions = {}): Promise<
       state: opts.state ?? 'new',
       score: opts.score ?? analysis?.score ?? 0,
       flag: opts.flag ?? analysis?.flag ?? 'needs eyes',
-      reasons: analysis?.reasons ?? ['test fixture'],
+      reasons: analysis?.reasons ?? opts.reasons ?? ['test fixture'],
       windowStart,
       version: 1,
       labelType: opts.labelType ?? null,

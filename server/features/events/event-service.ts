@@ -162,7 +162,13 @@ async function relocateLocked(db: DbOrTx, eventId: number, actor: EventActor, no
   const stationIds = [...new Set(members.map((m) => m.stationId))];
   let originId: number | null = null;
   let magnitudeId: number | null = null;
-  const o = solution.origin;
+  // A solution the picks do not constrain (stations all at one place, say) comes with unbounded
+  // uncertainties: no usable location, and no number the database can store. Refused with why,
+  // like any other location the picks cannot give; the event itself stays.
+  const u = solution.origin?.uncertainty;
+  const unbounded = u !== undefined && ![u.horizontalKm68, u.ellipse.semiMajorKm, u.ellipse.semiMinorKm, u.ellipse.azimuthDeg, u.timeS68, u.depthKm68 ?? 0, solution.origin?.rmsS ?? 0].every(Number.isFinite);
+  const refusal = unbounded ? 'the picks do not constrain the epicentre (its uncertainty is unbounded): pick stations on more sides of it' : (solution.refusal?.reason ?? null);
+  const o = unbounded ? null : solution.origin;
   if (o) {
     const [ins] = await db
       .insert(eventOrigins)
@@ -233,7 +239,7 @@ async function relocateLocked(db: DbOrTx, eventId: number, actor: EventActor, no
   const version = ev.version + (opts.kind === 'created' ? 0 : 1);
   await db
     .update(seismicEvents)
-    .set({ preferredOriginId: originId ?? ev.preferredOriginId, preferredMagnitudeId: originId !== null ? magnitudeId : ev.preferredMagnitudeId, locationRefusal: solution.refusal?.reason ?? null, version, updatedAt: now })
+    .set({ preferredOriginId: originId ?? ev.preferredOriginId, preferredMagnitudeId: originId !== null ? magnitudeId : ev.preferredMagnitudeId, locationRefusal: refusal, version, updatedAt: now })
     .where(eq(seismicEvents.id, eventId));
   await recordChange(db, {
     resource: 'event',
@@ -244,7 +250,7 @@ async function relocateLocked(db: DbOrTx, eventId: number, actor: EventActor, no
       reason: opts.reason,
       located: o !== null,
       ...(o ? { origin: new Date(Math.round(o.timeS * 1000)).toISOString(), latitude: Number(o.latitudeDeg.toFixed(4)), longitude: Number(o.longitudeDeg.toFixed(4)), depthKm: Number(o.depthKm.toFixed(1)) } : {}),
-      ...(solution.magnitude ? { ml: Number(solution.magnitude.value.toFixed(1)) } : {}),
+      ...(o && solution.magnitude ? { ml: Number(solution.magnitude.value.toFixed(1)) } : {}),
     },
     audience: { action: 'event.view', stationIds },
   });

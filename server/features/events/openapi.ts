@@ -1,5 +1,6 @@
 import { acceptPicksBodySchema, amplitudeBodySchema, eventCreateBodySchema, eventDetailSchema, eventLabelBodySchema, eventListQuerySchema, eventListSchema, memberBodySchema, networkParamsSchema, pickBodySchema, pickUpdateBodySchema, relocateBodySchema, velocityModelBodySchema, velocityModelViewSchema, EVENT_CAUTION } from '@shared/schemas/events';
 import { eventGeometrySchema } from '@shared/schemas/event-geometry';
+import { eventTracesQuerySchema, eventTracesSchema } from '@shared/schemas/event-traces';
 import { jsonResponse, type ApiOperation } from '@server/openapi/operation';
 import { amplitudeParams, eventParams, memberParams, pickParams, versionQuery } from './router';
 
@@ -57,5 +58,15 @@ export const eventOperations: ApiOperation[] = [
     permission: 'event.view',
     params: eventParams,
     responses: { 200: jsonResponse(`Stations and predictions. ${EVENT_CAUTION}`, eventGeometrySchema) },
+  },
+  {
+    method: 'get',
+    path: '/api/events/:id/traces',
+    summary: "Every channel of the event's member windows in one answer: the engine's pre-processed trace (detrended, tapered, ÷ flat sensitivity), min/max-decimated to about `points` points",
+    auth: 'session',
+    permission: 'event.view',
+    params: eventParams,
+    query: eventTracesQuerySchema,
+    responses: { 200: jsonResponse("The member windows' traces", eventTracesSchema) },
   },
 ];

@@ -14,6 +14,7 @@ import {
   velocityModelBodySchema,
   EVENT_CAUTION,
 } from '@shared/schemas/events';
+import { eventTracesQuerySchema } from '@shared/schemas/event-traces';
 import { streamIdSchema } from '@shared/schemas/label';
 import { can } from '@shared/auth/policies';
 import type { AppContext } from '@server/context';
@@ -27,6 +28,7 @@ import {
   addPick,
   createEventFromItems,
   deletePick,
+  eventStationIds,
   getEventDetail,
   labelEvent,
   listEvents,
@@ -38,6 +40,7 @@ import {
   type EventDeps,
 } from './event-service';
 import { eventGeometry } from './event-geometry';
+import { eventTraces } from './event-traces';
 import { networkSettings, saveVelocityModel, velocityModelView } from './event-settings';
 
 const id = (what: string) => z.string().regex(/^\d{1,15}$/, `must be ${what} (a whole number)`).transform(Number);
@@ -81,9 +84,15 @@ export function eventsRouter(ctx: AppContext): Router {
     if (!d) throw notFound(`Event ${eventId}`);
     return d;
   };
-  /** 404 unless the viewer may see the event (an operator: one of its stations). */
+  /**
+   * 404 unless the viewer may see the event (an operator: one of its stations). The same rule as
+   * `getEventDetail`'s scope, from the member stations alone: a change is answered with the full
+   * detail once, after it, not read twice.
+   */
   const visible = async (req: Request, eventId: number): Promise<void> => {
-    await detail(req, eventId);
+    const scope = authorizedStations(currentUser(req), 'event.view');
+    const ids = await eventStationIds(db, eventId);
+    if (!ids || (scope !== 'all' && !ids.some((s) => scope.includes(s)))) throw notFound(`Event ${eventId}`);
   };
 
   router.use(requireUser);
@@ -113,6 +122,13 @@ export function eventsRouter(ctx: AppContext): Router {
   router.get('/:id', requirePermission('event.view'), async (req, res) => {
     const { id: eventId } = parseInput(eventParams, req.params, 'params');
     res.json(await detail(req, eventId));
+  });
+  router.get('/:id/traces', requirePermission('event.view'), async (req, res) => {
+    const { id } = parseInput(eventParams, req.params, 'params');
+    const q = parseInput(eventTracesQuerySchema, req.query, 'query');
+    const t = await eventTraces(db, id, q.points, authorizedStations(currentUser(req), 'event.view'));
+    if (!t) throw notFound(`Event ${id}`);
+    res.json(t);
   });
   router.get('/:id/geometry', requirePermission('event.view'), async (req, res) => {
     const { id } = parseInput(eventParams, req.params, 'params');

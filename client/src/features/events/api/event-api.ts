@@ -1,6 +1,7 @@
-import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { eventDetailSchema, type EventDetail } from '@shared/schemas/events';
 import { eventGeometrySchema } from '@shared/schemas/event-geometry';
+import { eventTracesSchema } from '@shared/schemas/event-traces';
 import { apiRequest } from '@client/lib/api-client';
 
 /** Query keys of the event screen (one factory; every event key starts with `['events']`). */
@@ -8,7 +9,23 @@ export const eventKeys = {
   all: ['events'] as const,
   detail: (id: number) => ['events', 'detail', id] as const,
   geometry: (id: number) => ['events', 'geometry', id] as const,
+  traces: (id: number, members: string, points: number) => ['events', 'traces', id, members, points] as const,
 };
+
+/**
+ * Every member window's pre-processed traces in one request (GET /api/events/:id/traces), kept
+ * while the members stay the same (`members`: their item ids, the key): picks and relocations
+ * never fetch the waveforms again.
+ */
+export function useEventTraces(id: number, members: readonly number[], points: number) {
+  const key = members.join(',');
+  return useQuery({
+    queryKey: eventKeys.traces(id, key, points),
+    queryFn: ({ signal }) => apiRequest(eventTracesSchema, `/api/events/${id}/traces`, { query: { points }, signal }),
+    staleTime: Infinity,
+    placeholderData: keepPreviousData,
+  });
+}
 
 /** Query options of one event (origin, arrivals, picks, amplitudes, magnitudes). */
 export function eventOptions(id: number) {

@@ -1,23 +1,87 @@
-import { useEffect, useMemo, useState } from 'react';
-import { geoDistance, geoGraticule, geoMercator, geoPath, type GeoPermissibleObjects } from 'd3-geo';
+import { memo, useEffect, useMemo, useState } from 'react';
+import { geoDistance, geoGraticule, geoMercator, geoPath, type GeoPermissibleObjects, type GeoProjection } from 'd3-geo';
 import { feature, mesh } from 'topojson-client';
-import type { Feature, FeatureCollection, Geometry, MultiLineString } from 'geojson';
+import type { Feature, FeatureCollection, Geometry, MultiLineString, MultiPolygon, Position } from 'geojson';
 import type { GeometryCollection, Topology } from 'topojson-specification';
 import type { EventGeometry } from '@shared/schemas/event-geometry';
 import type { EventDetail } from '@shared/schemas/events';
 import { Button } from '@client/components/ui/button';
 import { ellipseFeature, niceScaleKm } from '@client/features/events/lib/map-geometry';
 
-type Outlines = { land: Feature<Geometry> | FeatureCollection; borders: MultiLineString };
+/** A piece of outline with its box, [[west, south], [east, north]] in degrees (`boxOf`). */
+type Piece<T> = { coords: T; bounds: [[number, number], [number, number]] };
+/** Land polygons and border lines, each with its bounds, so a view projects only what it shows. */
+type Outlines = { land: Piece<Position[][]>[]; borders: Piece<Position[]>[] };
 
+const polygonsOf = (g: Feature<Geometry> | FeatureCollection): Position[][][] => {
+  const geoms = g.type === 'FeatureCollection' ? g.features.map((f) => f.geometry) : [g.geometry];
+  return geoms.flatMap((x) => (x.type === 'Polygon' ? [x.coordinates] : x.type === 'MultiPolygon' ? x.coordinates : []));
+};
+
+/** Longitude/latitude box of a ring or line, [[west, south], [east, north]] (a piece wider than 180° of longitude crosses the antimeridian: marked west > east). */
+function boxOf(points: readonly Position[]): [[number, number], [number, number]] {
+  let w = Infinity;
+  let s = Infinity;
+  let e = -Infinity;
+  let n = -Infinity;
+  for (const [x = 0, y = 0] of points) {
+    if (x < w) w = x;
+    if (x > e) e = x;
+    if (y < s) s = y;
+    if (y > n) n = y;
+  }
+  return e - w > 180 ? [[180, s], [-180, n]] : [[w, s], [e, n]];
+}
+
+let outlinesOnce: Promise<Outlines> | null = null;
 /**
  * Natural Earth 1:50m outlines from the world-atlas package, loaded on first use as a separate
- * chunk of the build: the map needs no online service.
+ * chunk of the build (the map needs no online service), split into pieces with their boxes once
+ * per page: the whole world at 1:50m is ~100 000 points, which must not be projected again on
+ * every relocation.
  */
-async function loadOutlines(): Promise<Outlines> {
-  const mod = await import('world-atlas/countries-50m.json');
-  const topo = mod.default as unknown as Topology<{ countries: GeometryCollection; land: GeometryCollection }>;
-  return { land: feature(topo, topo.objects.land), borders: mesh(topo, topo.objects.countries, (a, b) => a !== b) };
+function loadOutlines(): Promise<Outlines> {
+  outlinesOnce ??= import('world-atlas/countries-50m.json').then((mod) => {
+    const topo = mod.default as unknown as Topology<{ countries: GeometryCollection; land: GeometryCollection }>;
+    const land = polygonsOf(feature(topo, topo.objects.land)).map((coords) => ({ coords, bounds: boxOf(coords[0] ?? []) }));
+    const borders = mesh(topo, topo.objects.countries, (a, b) => a !== b).coordinates.map((coords) => ({ coords, bounds: boxOf(coords) }));
+    return { land, borders };
+  });
+  return outlinesOnce;
+}
+
+/** Runs `f` when the page is idle (at the latest after `timeoutMs`): the outlines wait for the traces' first draw. */
+function whenIdle(f: () => void, timeoutMs: number): () => void {
+  if (typeof window.requestIdleCallback === 'function') {
+    const h = window.requestIdleCallback(f, { timeout: timeoutMs });
+    return () => window.cancelIdleCallback(h);
+  }
+  const h = window.setTimeout(f, 200);
+  return () => window.clearTimeout(h);
+}
+
+/** Whether a piece's bounds meet the box [[w, s], [e, n]] (pieces across the antimeridian always do). */
+function meets<T>(p: Piece<T>, [[w, s], [e, n]]: [[number, number], [number, number]]): boolean {
+  const [[pw, ps], [pe, pn]] = p.bounds;
+  if (pw > pe) return true;
+  return pe >= w && pw <= e && pn >= s && ps <= n;
+}
+
+/** The longitude/latitude box the map shows, [[west, south], [east, north]] (Mercator: the corners'). */
+function viewBox(projection: GeoProjection): [[number, number], [number, number]] {
+  const a = projection.invert?.([0, H]);
+  const b = projection.invert?.([W, 0]);
+  return a && b ? [[a[0], a[1]], [b[0], b[1]]] : [[-180, -85], [180, 85]];
+}
+
+/** The SVG paths of the outlines inside the projection's view (a 1° margin), clipped to the map. */
+function outlinePaths(outlines: Outlines, projection: GeoProjection): { land: string; borders: string } {
+  const [[w, s], [e, n]] = viewBox(projection);
+  const box: [[number, number], [number, number]] = [[w - 1, s - 1], [e + 1, n + 1]];
+  const path = geoPath(projection);
+  const land: MultiPolygon = { type: 'MultiPolygon', coordinates: outlines.land.filter((p) => meets(p, box)).map((p) => p.coords) };
+  const borders: MultiLineString = { type: 'MultiLineString', coordinates: outlines.borders.filter((p) => meets(p, box)).map((p) => p.coords) };
+  return { land: path(land) ?? '', borders: path(borders) ?? '' };
 }
 
 const W = 360;
@@ -32,18 +96,21 @@ export type EventMapProps = { geometry: EventGeometry; origin: EventDetail['orig
  * the others hollow), the epicentre (a cross in a circle) and its 68 % confidence ellipse, a km
  * scale bar. Mercator fitted to the network and the ellipse; "Region" zooms out to ±300 km.
  */
-export function EventMap({ geometry, origin }: EventMapProps) {
+export const EventMap = memo(function EventMap({ geometry, origin }: EventMapProps) {
   const [outlines, setOutlines] = useState<Outlines | null>(null);
   const [failed, setFailed] = useState<string | null>(null);
   const [view, setView] = useState<'network' | 'region'>('network');
   useEffect(() => {
     let live = true;
-    loadOutlines().then(
-      (o) => live && setOutlines(o),
-      (e: unknown) => live && setFailed(e instanceof Error ? e.message : String(e)),
-    );
+    const cancel = whenIdle(() => {
+      loadOutlines().then(
+        (o) => live && setOutlines(o),
+        (e: unknown) => live && setFailed(e instanceof Error ? e.message : String(e)),
+      );
+    }, 3000);
     return () => {
       live = false;
+      cancel();
     };
   }, []);
 
@@ -62,11 +129,21 @@ export function EventMap({ geometry, origin }: EventMapProps) {
       const dLon = 2.7 / Math.max(0.1, Math.cos((lat * Math.PI) / 180));
       fitTo = { type: 'MultiPoint', coordinates: [[lon - dLon, lat - 2.7], [lon + dLon, lat + 2.7]] };
     }
-    const p = geoMercator().fitExtent([[28, 24], [W - 28, H - 34]], fitTo);
-    return p;
+    return geoMercator().fitExtent([[28, 24], [W - 28, H - 34]], fitTo).clipExtent([[0, 0], [W, H]]);
   }, [geometry.stations, origin, ellipse, view]);
   const path = geoPath(projection);
-  const graticule = useMemo(() => geoGraticule().step(view === 'region' ? [1, 1] : [0.1, 0.1])(), [view]);
+  const drawnOutlines = useMemo(() => (outlines ? outlinePaths(outlines, projection) : null), [outlines, projection]);
+  // The graticule over the view only: a 0.1° graticule of the whole globe is ~5 000 lines, far too
+  // many to project on every relocation.
+  const graticulePath = useMemo(() => {
+    const box = viewBox(projection);
+    const step = view === 'region' ? 1 : 0.1;
+    const snap = (v: number, up: boolean) => (up ? Math.ceil(v / step) : Math.floor(v / step)) * step;
+    const g = geoGraticule()
+      .extent([[snap(box[0][0], false), snap(Math.max(-89.9, box[0][1]), false)], [snap(box[1][0], true), snap(Math.min(89.9, box[1][1]), true)]])
+      .step([step, step])();
+    return geoPath(projection)(g) ?? '';
+  }, [projection, view]);
   // Scale bar: km per px along the map's middle row.
   const a = projection.invert?.([W / 2 - 50, H / 2]);
   const b = projection.invert?.([W / 2 + 50, H / 2]);
@@ -96,11 +173,11 @@ export function EventMap({ geometry, origin }: EventMapProps) {
         data-testid="event-map"
         data-outlines={outlines ? 'drawn' : failed ? 'failed' : 'loading'}
       >
-        <path d={path(graticule) ?? ''} fill="none" stroke="var(--sf-plot-grid)" strokeWidth={0.5} />
-        {outlines ? (
+        <path d={graticulePath} fill="none" stroke="var(--sf-plot-grid)" strokeWidth={0.5} />
+        {drawnOutlines ? (
           <g data-layer="outlines">
-            <path d={path(outlines.land) ?? ''} fill="var(--sf-raised)" stroke="var(--sf-line-strong)" strokeWidth={0.8} />
-            <path d={path(outlines.borders) ?? ''} fill="none" stroke="var(--sf-ink-muted)" strokeWidth={0.8} strokeDasharray="4 2" />
+            <path d={drawnOutlines.land} fill="var(--sf-raised)" stroke="var(--sf-line-strong)" strokeWidth={0.8} />
+            <path d={drawnOutlines.borders} fill="none" stroke="var(--sf-ink-muted)" strokeWidth={0.8} strokeDasharray="4 2" />
           </g>
         ) : null}
         {ellipse ? <path d={path(ellipse) ?? ''} fill="var(--sf-plot-4)" fillOpacity={0.15} stroke="var(--sf-plot-4)" strokeWidth={1.5} data-layer="ellipse" /> : null}
@@ -138,4 +215,4 @@ export function EventMap({ geometry, origin }: EventMapProps) {
       </p>
     </figure>
   );
-}
+});

@@ -1,11 +1,10 @@
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Link } from 'react-router';
-import { useQueries } from '@tanstack/react-query';
 import { can } from '@shared/auth/policies';
-import { tracesResponseSchema } from '@shared/schemas/queue';
+import type { EventTraces } from '@shared/schemas/event-traces';
 import type { EventDetail } from '@shared/schemas/events';
 import { paths } from '@client/config/paths';
-import { apiRequest, ApiError } from '@client/lib/api-client';
+import { ApiError } from '@client/lib/api-client';
 import { useSession } from '@client/lib/session-context';
 import { Button } from '@client/components/ui/button';
 import { EmptyState } from '@client/components/ui/empty-state';
@@ -13,7 +12,7 @@ import { Kbd } from '@client/components/ui/kbd';
 import { KeyHelp, isTypingTarget, type KeyBinding } from '@client/components/ui/key-help';
 import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
-import { useEvent, useEventChange, useEventGeometry, type EventChange, type PickInput } from '@client/features/events/api/event-api';
+import { useEvent, useEventChange, useEventGeometry, useEventTraces, type EventChange, type PickInput } from '@client/features/events/api/event-api';
 import {
   componentOf,
   defaultUncertaintyS,
@@ -56,16 +55,15 @@ export const eventKeyBindings: readonly KeyBinding[] = [
 
 type Traces = { itemId: number; channels: { streamId: string; units: string; times: Float64Array; values: Float64Array }[] };
 
-/** One member window's display traces in absolute time (the pre-processed trace, min/max buckets). */
-async function loadMemberTraces(itemId: number, signal: AbortSignal): Promise<Traces> {
-  const t = await apiRequest(tracesResponseSchema, `/api/queue/items/${itemId}/traces`, { query: { points: TRACE_POINTS }, signal });
-  return {
-    itemId,
-    channels: t.channels.map((c) => {
+/** The member windows' traces in absolute time (s since the epoch), Float64Array for the plot. */
+function toTraces(t: EventTraces): Traces[] {
+  return t.members.map((m) => ({
+    itemId: m.itemId,
+    channels: m.channels.map((c) => {
       const start = isoToEpoch(c.startTime);
-      return { streamId: c.streamId, units: c.units, times: Float64Array.from(c.times, (s) => start + s), values: Float64Array.from(c.raw) };
+      return { streamId: c.streamId, units: c.units, times: Float64Array.from(c.times, (s) => start + s), values: Float64Array.from(c.values) };
     }),
-  };
+  }));
 }
 
 /** Props of <EventScreen>. */
@@ -102,9 +100,9 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
   const geometry = useEventGeometry(eventId, detail.origin?.id ?? null);
   const change = useEventChange(eventId);
   const members = useMemo(() => detail.members.filter((m) => !m.removed), [detail.members]);
-  const traces = useQueries({
-    queries: members.map((m) => ({ queryKey: ['events', 'member-traces', m.itemId, TRACE_POINTS] as const, queryFn: ({ signal }: { signal: AbortSignal }) => loadMemberTraces(m.itemId, signal), staleTime: Infinity })),
-  });
+  const memberIds = useMemo(() => members.map((m) => m.itemId).sort((a, b) => a - b), [members]);
+  const traces = useEventTraces(eventId, memberIds, TRACE_POINTS);
+  const loaded = useMemo(() => (traces.data ? toTraces(traces.data) : []), [traces.data]);
 
   const [components, setComponents] = useState<ComponentMode>('Z');
   const [order, setOrder] = useState<OrderMode>('distance');
@@ -156,8 +154,10 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
     return m;
   }, [geometry.data]);
 
-  const loaded = traces.filter((t) => t.data).map((t) => t.data as Traces);
-  const loadedKey = loaded.map((t) => t.itemId).join(',');
+  // The distances as the rows show them (0.1 km): the rows are rebuilt when these change, not on
+  // every new origin object (a relocation that moves nothing visible redraws nothing but predictions).
+  const hasOrigin = detail.origin !== null;
+  const distanceKey = useMemo(() => (hasOrigin ? [...stationInfo].map(([k, s]) => `${k}:${s.distanceKm?.toFixed(1) ?? ''}`).join(' ') : ''), [stationInfo, hasOrigin]);
   const rows: RecordRow[] = useMemo(() => {
     const channels = loaded.flatMap((t) => t.channels).filter((c) => showsChannel(components, c.streamId));
     const byStation = new Map<string, typeof channels>();
@@ -168,7 +168,7 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
     };
     const keys = [...byStation.keys()].map((st) => ({
       station: st,
-      distanceKm: detail.origin ? (stationInfo.get(st)?.distanceKm ?? null) : null,
+      distanceKm: hasOrigin ? (stationInfo.get(st)?.distanceKm ?? null) : null,
       firstArrival: firstPick(st) ?? (byStation.get(st)?.[0]?.times[0] ?? null),
     }));
     const ordered = orderStations(keys, order).flatMap((k) => {
@@ -189,7 +189,7 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
     });
     // drawnPicks only matter for the first-arrival order.
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [loadedKey, components, order, scale, stationInfo, detail.origin, order === 'arrival' ? drawnPicks : null]);
+  }, [loaded, components, order, scale, distanceKey, order === 'arrival' ? drawnPicks : null]);
 
   /** Places (or moves) the station's pick of `phase` on the channel under the mouse. */
   const place = useCallback(
@@ -281,8 +281,8 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
   const onClickTrace = useCallback((at: RecordCursor) => place(armed, at), [place, armed]);
 
   const e = detail.event;
-  const loading = traces.some((t) => t.isPending);
-  const failed = traces.find((t) => t.isError);
+  const loading = traces.isPending;
+  const failed = traces.isError ? traces.error : null;
   const title = detail.origin ? `Event ${e.id} · ${detail.origin.time.slice(0, 19).replace('T', ' ')} UTC` : `Event ${e.id} · first arrival ${e.firstArrival.slice(0, 19).replace('T', ' ')} UTC`;
   return (
     <div className="flex flex-col gap-3 p-4" data-testid="event-screen" data-event-version={e.version}>
@@ -339,7 +339,7 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
             Pre-processed traces (demeaned, detrended, tapered), UTC on the time axis. Solid line with a letter: an analyst’s pick (shaded ±1 σ, residual beside it); dotted “P?”/“S?”: automatic
             suggestion; dashed with a lower-case letter: first arrival predicted from the current origin. Point at a trace and press <Kbd>P</Kbd> or <Kbd>S</Kbd>: the pick goes on that channel.
           </p>
-          {failed ? <p className="text-sm text-danger">Some traces could not be loaded: {failed.error?.message}</p> : null}
+          {failed ? <p className="text-sm text-danger">The traces could not be loaded: {failed.message}</p> : null}
           {loading && rows.length === 0 ? <Loading label="Loading the traces…" /> : null}
           {rows.length > 0 ? (
             <RecordSection rows={rows} picks={drawnPicks} predicted={predicted} selectedPickId={selectedPick?.id ?? null} zoom={zoom} onZoom={setZoom} onCursor={onCursor} onClickTrace={onClickTrace} onSelectPick={onSelectPick} />

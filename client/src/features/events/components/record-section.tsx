@@ -257,13 +257,14 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
   }, []);
 
   const n = rows.length;
+  const shape = rows.map((r) => r.streamId).sort().join(' ');
   const heightPx = Math.max(240, n * rowHeightPx(n));
 
   useEffect(() => {
     const el = host.current;
     if (!el || n === 0) return;
     const theme = readPlotTheme(el);
-    const [a, b] = fullRange(rows);
+    const [a, b] = fullRange(state.current.rows);
     const axisFont = `12px ${plotFontFamily}`;
     const opts: uPlot.Options = {
       width,
@@ -271,7 +272,7 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
       legend: { show: false },
       tzDate: (ts: number) => uPlot.tzDate(new Date(ts * 1e3), 'Etc/UTC'),
       scales: {
-        x: { time: true, range: () => (zoomRef.current ? [zoomRef.current[0], zoomRef.current[1]] : [a, b]) },
+        x: { time: true, range: () => (zoomRef.current ? [zoomRef.current[0], zoomRef.current[1]] : fullRange(state.current.rows)) },
         y: { auto: false, range: [-0.5, n - 0.5] },
       },
       axes: [
@@ -282,9 +283,10 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
           font: axisFont,
           size: 132,
           gap: 6,
-          splits: () => rows.map((_, r) => n - 1 - r),
+          splits: () => Array.from({ length: n }, (_, r) => n - 1 - r),
+          // From the latest rows: a relocation changes the distances without rebuilding the plot.
           values: (_u: uPlot, splits: number[]) => splits.map((v) => {
-            const row = rows[n - 1 - v];
+            const row = state.current.rows[n - 1 - v];
             return row ? `${row.label}\n${row.detail}` : '';
           }),
         },
@@ -316,7 +318,7 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
             let downX = 0;
             u.over.addEventListener('mousemove', (e) => {
               const p = at(e);
-              const row = rows[p.row];
+              const row = state.current.rows[p.row];
               if (!row) return;
               if (state.current.hoverRow !== p.row) {
                 state.current.hoverRow = p.row;
@@ -335,7 +337,7 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
             u.over.addEventListener('click', (e) => {
               if (Math.abs(e.clientX - downX) > 3) return;
               const p = at(e);
-              const row = rows[p.row];
+              const row = state.current.rows[p.row];
               if (!row) return;
               const near = state.current.picks.find((k) => k.kind === 'manual' && k.streamId === row.streamId && Math.abs(u.valToPos(k.time, 'x') - p.px) <= 5);
               if (near) handlers.current.onSelectPick(near.id);
@@ -352,9 +354,14 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
       u.destroy();
       chart.current = null;
     };
-  }, [rows, width, heightPx, n]);
+    // Rebuilt only when the set of rows (or the size) changes: new values, labels or order of the
+    // same streams after a relocation are a redraw (below), not a new plot.
+  }, [shape, width, heightPx, n]);
 
-  // Picks, predictions and selection change without rebuilding the plot.
+  // Rows' data and labels, picks, predictions and selection change without rebuilding the plot.
+  useEffect(() => {
+    chart.current?.redraw(false, true);
+  }, [rows]);
   useEffect(() => {
     chart.current?.redraw(false, false);
   }, [picks, predicted, selectedPickId]);

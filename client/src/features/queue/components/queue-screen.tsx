@@ -4,6 +4,7 @@ import { useNavigate } from 'react-router';
 import { can } from '@shared/auth/policies';
 import { roleSchema, type Role } from '@shared/auth/roles';
 import type { QueueRow } from '@shared/schemas/queue';
+import { useEventIdsByGroup } from '@client/api/events/event-index';
 import { useMe, useQueueList } from '@client/api/queue/get-queue';
 import { useItemAction } from '@client/api/queue/item-actions';
 import { liveArrivals } from '@client/api/queue/live-patch';
@@ -15,8 +16,11 @@ import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
 import { TriageCaution } from '@client/components/ui/triage-caution';
 import { paths } from '@client/config/paths';
+import { usePrefetchQueueItem } from '@client/features/queue/hooks/use-prefetch-item';
 import { useQueueFilters } from '@client/features/queue/hooks/use-queue-filters';
 import { useQueueScroll } from '@client/features/queue/hooks/use-queue-scroll';
+import { distinguishingReasons } from '@client/features/queue/lib/distinguishing-reason';
+import { collapseEventGroups, type GroupedRow } from '@client/features/queue/lib/event-groups';
 import { queryKeys } from '@client/lib/query-keys';
 import { useNow } from './age';
 import { queueColumns } from './queue-columns';
@@ -28,7 +32,9 @@ import { QueueTable } from './queue-table';
 /**
  * The live review queue: filters in the URL, counts per state, a virtualised table that stays
  * smooth at 10 000 rows, rows arriving live without moving the analyst's place ("N new above"),
- * and keyboard-first work (J/K, Enter, C, ?).
+ * and keyboard-first work (J/K, Enter, C, X, ?). An event group is one row (where its highest-ranked
+ * loaded member sits) that opens its event; its other member windows show beneath it on demand (X or
+ * the ▸ button), and J/K walk over them like any row.
  */
 export function QueueScreen() {
   const { filters, setFilters, setStateParam, search } = useQueueFilters();
@@ -40,7 +46,25 @@ export function QueueScreen() {
   const action = useItemAction();
   const qc = useQueryClient();
   const now = useNow();
-  const rows = useMemo(() => list.data?.pages.flatMap((p) => p.items) ?? [], [list.data]);
+  const loadedRows = useMemo(() => list.data?.pages.flatMap((p) => p.items) ?? [], [list.data]);
+  const [expanded, setExpanded] = useState<ReadonlySet<number>>(() => new Set());
+  const grouped = useMemo(() => collapseEventGroups(loadedRows, expanded), [loadedRows, expanded]);
+  const rows = useMemo(() => grouped.map((g) => g.row), [grouped]);
+  const placeOf = useMemo(() => new Map<number, GroupedRow<QueueRow>>(grouped.map((g) => [g.row.id, g])), [grouped]);
+  const shownReason = useMemo(() => distinguishingReasons(loadedRows), [loadedRows]);
+  const mayViewEvents = can(me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null, 'event.view');
+  const eventIds = useEventIdsByGroup(mayViewEvents && loadedRows.some((r) => r.candidateEvent !== null));
+  const eventMap = eventIds.data;
+  const toggleGroup = useCallback(
+    (g: number) =>
+      setExpanded((s) => {
+        const next = new Set(s);
+        if (next.has(g)) next.delete(g);
+        else next.add(g);
+        return next;
+      }),
+    [],
+  );
   const counts = list.data?.pages[0]?.counts;
   const total = list.data?.pages[0]?.total;
   const [selectedId, setSelectedId] = useState<number | null>(null);
@@ -50,10 +74,17 @@ export function QueueScreen() {
   const { scrollRef, virtual, onScroll, newAbove } = useQueueScroll(rows, list);
 
   const selectedIndex = selectedId === null ? -1 : rows.findIndex((r) => r.id === selectedId);
+  // The selected window's review, fetched while the analyst reads its row: C or Enter draws it at once.
+  const selectedOpensItem = selectedId !== null && !(placeOf.get(selectedId)?.role === 'group' && eventMap?.has(rows[selectedIndex]?.candidateEvent?.id ?? -1));
+  usePrefetchQueueItem(selectedOpensItem ? (selectedId ?? undefined) : undefined, 300);
   const meId = me?.id;
-  // `arrivals` re-renders the marker column when the set changes.
-  // eslint-disable-next-line react-hooks/exhaustive-deps
-  const columns = useMemo(() => queueColumns(now, meId, setGroupOpen), [now, meId, arrivals]);
+  const openEvent = useCallback((eventId: number) => void navigate(`${paths.event.href}/${eventId}`), [navigate]);
+  const columns = useMemo(
+    () => queueColumns({ now, meId, placeOf, eventIdOf: (g) => eventMap?.get(g), expanded, onToggle: toggleGroup, onOpenEvent: openEvent, onGroup: setGroupOpen, shownReason }),
+    // `arrivals` re-renders the marker column when the set changes.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+    [now, meId, arrivals, placeOf, eventMap, expanded, toggleGroup, openEvent, shownReason],
+  );
 
   const select = useCallback(
     (i: number) => {
@@ -69,18 +100,28 @@ export function QueueScreen() {
     scrollRef.current?.scrollTo({ top: 0 });
     select(0);
   }, [scrollRef, select]);
-  const open = useCallback((r: QueueRow) => void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`), [navigate, search]);
+  const openItem = useCallback((r: QueueRow) => void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`), [navigate, search]);
+  // An event group's row opens its event (once it has one); every other row its window's review.
+  const open = useCallback(
+    (r: QueueRow) => {
+      const eventId = r.candidateEvent && placeOf.get(r.id)?.role === 'group' ? eventMap?.get(r.candidateEvent.id) : undefined;
+      if (eventId !== undefined) openEvent(eventId);
+      else openItem(r);
+    },
+    [placeOf, eventMap, openEvent, openItem],
+  );
   const claim = useCallback(
     (r: QueueRow) => {
       action.mutate(
         { action: 'claim', id: r.id, version: r.version },
         {
-          onSuccess: () => open(r),
+          // A claim is for the window itself: its review, even from an event group's row.
+          onSuccess: () => openItem(r),
           onError: (err) => toast.notify({ tone: 'danger', title: `Could not claim item ${r.id}`, body: err.message }),
         },
       );
     },
-    [action, open, toast],
+    [action, openItem, toast],
   );
 
   useEffect(() => {
@@ -94,6 +135,11 @@ export function QueueScreen() {
         // Only roles that work the queue claim (the policy module; the server refuses the rest too).
         if (mayClaim) claim(current);
         else open(current);
+      } else if (e.key === 'x' && current?.candidateEvent) {
+        const g = current.candidateEvent.id;
+        // Hiding the members from one of them: the selection goes to the event's row.
+        if (placeOf.get(current.id)?.role === 'member') setSelectedId(rows.find((r) => r.candidateEvent?.id === g && placeOf.get(r.id)?.role === 'group')?.id ?? null);
+        toggleGroup(g);
       } else if (e.key === 'g') toTop();
       else if (e.key === '?') setHelp(true);
       else return;
@@ -101,14 +147,22 @@ export function QueueScreen() {
     };
     window.addEventListener('keydown', onKey);
     return () => window.removeEventListener('keydown', onKey);
-  }, [rows, selectedIndex, select, open, claim, mayClaim, toTop]);
+  }, [rows, selectedIndex, select, open, claim, mayClaim, toTop, toggleGroup, placeOf]);
 
   return (
-    <div className="flex h-full min-h-0 flex-col gap-3">
+    <div className="flex h-full min-h-0 flex-col gap-2">
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">Review queue</h1>
         <p className="text-sm text-ink-muted">
           {total === undefined ? 'Loading…' : `${total.toLocaleString('en')} item${total === 1 ? '' : 's'} in view`} · press <Kbd>?</Kbd> for keys
+        </p>
+        {/* Live arrivals above the analyst's place: in the header line, so the table keeps the height. */}
+        <p className="text-sm" aria-live="polite">
+          {newAbove > 0 ? (
+            <button type="button" onClick={toTop} className="rounded-full border border-accent bg-surface px-3 py-0.5 font-medium text-accent-ink">
+              ↑ {newAbove} just in above <Kbd>G</Kbd>
+            </button>
+          ) : null}
         </p>
         <Button size="sm" variant="quiet" className="ml-auto" onClick={() => void qc.invalidateQueries({ queryKey: queryKeys.queue.lists })}>
           Reload list
@@ -117,13 +171,6 @@ export function QueueScreen() {
       <TriageCaution variant="line" />
       <QueueFilterBar filters={filters} setFilters={setFilters} setStateParam={setStateParam} counts={counts} />
       <div className="relative flex min-h-0 flex-1 flex-col">
-        <p className="h-6 text-sm" aria-live="polite">
-          {newAbove > 0 ? (
-            <button type="button" onClick={toTop} className="rounded-full border border-accent bg-surface px-3 py-0.5 font-medium text-accent-ink">
-              ↑ {newAbove} just in above <Kbd>G</Kbd>
-            </button>
-          ) : null}
-        </p>
         {list.isPending ? (
           <Loading label="Loading the queue…" />
         ) : list.isError ? (
@@ -133,6 +180,7 @@ export function QueueScreen() {
         ) : (
           <QueueTable
             rows={rows}
+            placeOf={placeOf}
             columns={columns}
             selectedId={selectedId}
             sort={filters.sort}

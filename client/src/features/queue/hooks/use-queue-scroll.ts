@@ -3,8 +3,8 @@ import { useCallback, useLayoutEffect, useRef } from 'react';
 import type { QueueRow } from '@shared/schemas/queue';
 import { liveArrivals } from '@client/api/queue/live-patch';
 
-/** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring). */
-export const QUEUE_ROW_PX = 44;
+/** Height of one queue row, px (fixed, so the virtualiser can place rows without measuring; one line, so 20+ rows fit 1440×900). */
+export const QUEUE_ROW_PX = 28;
 
 /** The list's paging, as the infinite query gives it. */
 type Paging = { hasNextPage: boolean; isFetchingNextPage: boolean; fetchNextPage: () => Promise<unknown> };

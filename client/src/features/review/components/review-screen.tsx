@@ -15,6 +15,7 @@ import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
 import { analysisViewSchema, useItem, useTraces } from '@client/features/review/api/get-item';
 import { useItemMatches } from '@client/features/review/api/get-matches';
+import { usePrefetchQueueItem } from '@client/features/queue/hooks/use-prefetch-item';
 import { useQueueNeighbours } from '@client/features/review/hooks/use-queue-neighbours';
 import { useReviewActions } from '@client/features/review/hooks/use-review-actions';
 import { useReviewDraft } from '@client/features/review/hooks/use-review-draft';
@@ -84,6 +85,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const [normalise, setNormalise] = useState(true);
   const [sgIndex, setSgIndex] = useState(0);
   const traces = useTraces(itemId, tv.view?.from ?? null, tv.view?.to ?? null, 1600, traceView === 'filter' ? filter : null);
+  usePrefetchQueueItem(neighbour(1)?.id);
   const leadTraces = traces.data?.channels.find((c) => c.streamId.endsWith('Z')) ?? traces.data?.channels[0];
   const orderedTraces = useMemo(() => sortChannels(traces.data?.channels ?? [], (c) => c.streamId), [traces.data?.channels]);
   const sgTraces = orderedTraces.length > 0 ? orderedTraces[sgIndex % orderedTraces.length] : undefined;
