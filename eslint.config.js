@@ -19,7 +19,7 @@ const features = {
   health: [],
   ingest: [],
   queue: ['presenters.ts', 'queue-rows.ts', 'queue-traces.ts', 'queue-transitions.ts'],
-  similarity: ['resemblance.ts', 'settings.ts', 'template-store.ts', 'window-matching.ts'],
+  similarity: ['item-matches.ts', 'resemblance.ts', 'settings.ts', 'template-store.ts', 'window-matching.ts'],
   stations: ['station-registry.ts', 'station-baseline.ts'],
   supervision: ['escalations.ts'],
 };

@@ -323,6 +323,35 @@ function taperAt(f: number, p: PreFilter): number {
 const TAIL_S = 5;
 
 /**
+ * The counts with their mean and least-squares line through (i, x_i) removed and a 5 % cosine taper
+ * at each end (Tukey α = 0.1, common practice before a deconvolution), zero-padded to `size`.
+ * @throws RangeError naming `what` for a sample that is not a finite number
+ */
+function detrendTaperPad(counts: Float64Array, size: number, what: string): Float64Array {
+  const n = counts.length;
+  let sx = 0;
+  let sxy = 0;
+  for (let i = 0; i < n; i++) {
+    const v = counts[i] as number;
+    if (!Number.isFinite(v)) throw new RangeError(`${what}: sample ${i} is not a finite number`);
+    sx += v;
+    sxy += i * v;
+  }
+  const mi = (n - 1) / 2;
+  const my = sx / n;
+  const sii = (n * (n * n - 1)) / 12;
+  const slope = (sxy - n * mi * my) / sii;
+  const x = new Float64Array(size);
+  const taperN = Math.max(1, Math.floor(0.05 * n));
+  for (let i = 0; i < n; i++) {
+    const edge = Math.min(i, n - 1 - i);
+    const w = edge < taperN ? 0.5 * (1 - Math.cos((Math.PI * edge) / taperN)) : 1;
+    x[i] = ((counts[i] as number) - my - slope * (i - mi)) * w;
+  }
+  return x;
+}
+
+/**
  * Wood-Anderson trace in mm from raw counts: the mean and the least-squares line removed, a 5 % cosine
  * taper at each end (Tukey α = 0.1, common practice before a deconvolution), zero padding to a power
  * of two N ≥ n + 5 s·fs, then bin by bin
@@ -339,27 +368,8 @@ export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: numbe
   if (!(sampleRateHz > 0) || !Number.isFinite(sampleRateHz)) throw new RangeError(`Wood-Anderson from counts: sample rate must be > 0 Hz, got ${sampleRateHz}`);
   const { f1, f2, f3, f4 } = preFilter;
   if (!(0 <= f1 && f1 < f2 && f2 <= f3 && f3 < f4)) throw new RangeError(`Wood-Anderson from counts: pre-filter corners must rise, got ${f1}, ${f2}, ${f3}, ${f4} Hz`);
-  // Least-squares line through (i, x_i), then the taper.
-  let sx = 0;
-  let sxy = 0;
-  for (let i = 0; i < n; i++) {
-    const v = counts[i] as number;
-    if (!Number.isFinite(v)) throw new RangeError(`Wood-Anderson from counts: sample ${i} is not a finite number`);
-    sx += v;
-    sxy += i * v;
-  }
-  const mi = (n - 1) / 2;
-  const my = sx / n;
-  const sii = (n * (n * n - 1)) / 12;
-  const slope = (sxy - n * mi * my) / sii;
   const size = paddedSize(n, sampleRateHz, TAIL_S);
-  const x = new Float64Array(size);
-  const taperN = Math.max(1, Math.floor(0.05 * n));
-  for (let i = 0; i < n; i++) {
-    const edge = Math.min(i, n - 1 - i);
-    const w = edge < taperN ? 0.5 * (1 - Math.cos((Math.PI * edge) / taperN)) : 1;
-    x[i] = ((counts[i] as number) - my - slope * (i - mi)) * w;
-  }
+  const x = detrendTaperPad(counts, size, 'Wood-Anderson from counts');
   const w0 = (2 * Math.PI) / WOOD_ANDERSON.naturalPeriodS;
   const twoHw0 = 2 * WOOD_ANDERSON.damping * w0;
   const g = WOOD_ANDERSON.staticMagnification;
@@ -418,34 +428,13 @@ export function groundMotionFromCounts(counts: Float64Array, sampleRateHz: numbe
   if (!(sampleRateHz > 0) || !Number.isFinite(sampleRateHz)) throw new RangeError(`response removal: sample rate must be > 0 Hz, got ${sampleRateHz}`);
   const { f1, f2, f3, f4 } = preFilter;
   if (!(0 <= f1 && f1 < f2 && f2 <= f3 && f3 < f4)) throw new RangeError(`response removal: pre-filter corners must rise, got ${f1}, ${f2}, ${f3}, ${f4} Hz`);
-  let sx = 0;
-  let sxy = 0;
-  for (let i = 0; i < n; i++) {
-    const v = counts[i] as number;
-    if (!Number.isFinite(v)) throw new RangeError(`response removal: sample ${i} is not a finite number`);
-    sx += v;
-    sxy += i * v;
-  }
-  const mi = (n - 1) / 2;
-  const my = sx / n;
-  const sii = (n * (n * n - 1)) / 12;
-  const slope = (sxy - n * mi * my) / sii;
-  let size = 4;
-  while (size < n + Math.ceil(TAIL_S * sampleRateHz)) size *= 2;
-  const x = new Float64Array(size);
-  const taperN = Math.max(1, Math.floor(0.05 * n));
-  for (let i = 0; i < n; i++) {
-    const edge = Math.min(i, n - 1 - i);
-    const w = edge < taperN ? 0.5 * (1 - Math.cos((Math.PI * edge) / taperN)) : 1;
-    x[i] = ((counts[i] as number) - my - slope * (i - mi)) * w;
-  }
-  const fft = planFor(size);
-  const spec = new Float64Array(2 * size);
-  fft.realTransform(spec, x);
-  fft.completeSpectrum(spec);
+  const size = paddedSize(n, sampleRateHz, TAIL_S);
+  const x = detrendTaperPad(counts, size, 'response removal');
   const kIn = response.quantity === 'displacement' ? 0 : response.quantity === 'velocity' ? 1 : 2;
   const power = kIn - (output === 'displacement' ? 0 : 1);
   const half = size / 2;
+  const hr = new Float64Array(half + 1);
+  const hi = new Float64Array(half + 1);
   for (let k = 0; k <= half; k++) {
     const f = (k * sampleRateHz) / size;
     const taper = taperAt(f, preFilter);
@@ -478,21 +467,8 @@ export function groundMotionFromCounts(counts: Float64Array, sampleRateHz: numbe
         fi = (-ii / id) * taper;
       }
     }
-    let re = spec[2 * k] as number;
-    let im = spec[2 * k + 1] as number;
-    spec[2 * k] = re * fr - im * fi;
-    spec[2 * k + 1] = re * fi + im * fr;
-    if (k > 0 && k < half) {
-      const m = size - k;
-      re = spec[2 * m] as number;
-      im = spec[2 * m + 1] as number;
-      spec[2 * m] = re * fr + im * fi;
-      spec[2 * m + 1] = im * fr - re * fi;
-    }
+    hr[k] = fr;
+    hi[k] = fi;
   }
-  const back = new Float64Array(2 * size);
-  fft.inverseTransform(back, spec);
-  const out = new Float64Array(n);
-  for (let i = 0; i < n; i++) out[i] = back[2 * i] as number;
-  return out;
+  return filterBySpectrum(x, n, hr, hi);
 }
