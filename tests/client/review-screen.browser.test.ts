@@ -50,6 +50,8 @@ describe('review screen (chromium, real server)', () => {
   /** Moves the mouse to `fraction` across the first plot of one channel. */
   const pointAt = async (page: Page, channel: string, fraction: number, plot = 0) => {
     const over = page.locator(`section[aria-label="Channel ${channel}"] .u-over`).nth(plot);
+    // A claim or a new view may replace the plot: wait for the one on the page now.
+    await over.waitFor();
     await over.scrollIntoViewIfNeeded();
     const box = await over.boundingBox();
     if (!box) throw new Error(`no plot area for ${channel}`);
@@ -89,8 +91,11 @@ describe('review screen (chromium, real server)', () => {
   it('keyboard picks go to the channel under the mouse; off the traces P goes to the first trigger and S is not placed', async () => {
     const page = await openAs(ana, `/queue/items/${itemId}`);
     await page.waitForSelector('[data-testid="trace-panel"] .u-over');
+    await page.mouse.move(700, 20);
     await page.keyboard.press('c');
     await page.waitForSelector(`[data-item-id="${itemId}"] [data-testid="claim-holder"]:has-text("you")`);
+    // The claim refetches the item (and may redraw its plots): point once that has settled.
+    await page.waitForLoadState('networkidle');
 
     // One main landmark on the page (the shell's); the waveforms are a region inside it.
     expect(await page.locator('main, [role="main"]').count()).toBe(1);

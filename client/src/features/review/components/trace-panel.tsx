@@ -288,10 +288,17 @@ type ChannelPlotProps = Pick<TracePanelProps, 'windowStartMs' | 'picks' | 'onZoo
 function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, picks, onZoom, onPick, onCursor, syncKey, segment }: ChannelPlotProps) {
   const picksRef = useRef(picks);
   picksRef.current = picks;
+  // The handlers through a ref: a new handler (a pick key changes the click phase) must not rebuild the plot under the mouse.
+  const handlers = useRef({ onZoom, onPick, onCursor });
+  handlers.current = { onZoom, onPick, onCursor };
   const charts = useRef(new Set<uPlot>());
+  // The signal/noise parts come with the item's detail, which a claim refetches: drawn from a ref
+  // and redrawn, so a claim does not rebuild the plot under the mouse.
+  const segmentRef = useRef(segment);
+  segmentRef.current = segment;
   useEffect(() => {
     for (const u of charts.current) u.redraw(false, false);
-  }, [picks]);
+  }, [picks, segment]);
   const x = useMemo(() => ({ label: 'Time from window start', unit: 's', values: c.times }), [c.times]);
   const configure = useCallback(
     (o: uPlot.Options): uPlot.Options => ({
@@ -302,10 +309,10 @@ function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, p
       cursor: { ...o.cursor, sync: { key: syncKey, setSeries: false } },
       hooks: {
         ...o.hooks,
-        setSelect: [selectToZoom(onZoom)],
+        setSelect: [selectToZoom((from, to) => handlers.current.onZoom(from, to))],
         draw: [
           (u: uPlot) => {
-            drawMarks(u, { picks: picksRef.current, windowStartMs, triggers: c.triggers, segments: segment });
+            drawMarks(u, { picks: picksRef.current, windowStartMs, triggers: c.triggers, segments: segmentRef.current });
             u.root.dataset.xRange = `${u.scales.x?.min ?? ''} ${u.scales.x?.max ?? ''}`;
           },
         ],
@@ -317,20 +324,20 @@ function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, p
             // The mouse itself, not uPlot's setCursor hook: with linked cursors every channel's
             // plot gets setCursor, so the last one to run (not the one under the mouse) would win.
             const timeAt = (e: MouseEvent) => u.posToVal(e.clientX - u.over.getBoundingClientRect().left, 'x');
-            u.over.addEventListener('mousemove', (e) => onCursor({ streamId: c.streamId, timeS: timeAt(e) }));
-            u.over.addEventListener('mouseleave', () => onCursor(null));
+            u.over.addEventListener('mousemove', (e) => handlers.current.onCursor({ streamId: c.streamId, timeS: timeAt(e) }));
+            u.over.addEventListener('mouseleave', () => handlers.current.onCursor(null));
             u.over.addEventListener('mousedown', (e) => {
               downX = e.clientX;
             });
             u.over.addEventListener('click', (e) => {
               if (Math.abs(e.clientX - downX) > 3) return;
-              onPick(c.streamId, timeAt(e));
+              handlers.current.onPick(c.streamId, timeAt(e));
             });
           },
         ],
       },
     }),
-    [syncKey, onZoom, onCursor, onPick, c.streamId, c.triggers, windowStartMs, segment, half, last],
+    [syncKey, c.streamId, c.triggers, windowStartMs, half, last],
   );
   const peak = drawn.unit === '' ? formatSi(drawn.peak) : `${formatSi(drawn.peak)} ${drawn.unit}`;
   const title = curve.refused ? `${c.streamId} · ${c.sampleRateHz} Hz · not shown` : `${c.streamId} · ${c.sampleRateHz} Hz · peak ${peak} from ${curve.from}`;
