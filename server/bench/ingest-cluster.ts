@@ -15,83 +15,33 @@
  * docs/PERFORMANCE.md is made from.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { createHash, randomBytes } from 'node:crypto';
-import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { randomBytes } from 'node:crypto';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { Agent, request as httpRequest } from 'node:http';
 import { cpus, loadavg } from 'node:os';
 import { join, resolve } from 'node:path';
 import { createInterface } from 'node:readline';
 import { WebSocket } from 'ws';
 import { z } from 'zod';
-import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
-import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
 import { freePort } from '@server/bootstrap/common';
 import { ensureRedisInstalled, startPrivateRedis } from '@server/bootstrap/redis';
 import { parseStartArgs } from '@server/cluster/mode';
 import { createDatabaseClient } from '@server/db/client';
 import { migrateDatabase } from '@server/db/migrate';
-import { channels, ingestTokens, stations } from '@server/db/schema/stations';
-import { userRoles, users } from '@server/db/schema/users';
-import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { startChildServer } from '@tests/faults/support/child-server';
 import { benchDatabase, cleanupsOnExit } from './bench-setup';
 import { percentile } from './timing';
+import { CODES, baseWindow, cpuSeconds, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 20);
 const WS_CLIENTS = Number(process.env.BENCH_WS_CLIENTS ?? 4);
 const WARMUP_S = 5;
-const CODES = ['KV01', 'KV02', 'KV03', 'KV04', 'KV05', 'KV06'];
-const BASE_START_US = 1_784_000_000_000_000;
-const RECORD = 4096;
 const log = (line: string) => console.log(line);
 
-/** Deterministic noise (32-bit LCG, Numerical Recipes constants; common practice) plus a 0.2 Hz swell. */
-function channelSamples(seed: number, n: number): Int32Array {
-  let s = seed >>> 0;
-  const out = new Int32Array(n);
-  for (let i = 0; i < n; i++) {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    out[i] = Math.round(400 * (s / 2 ** 32 - 0.5) + 150 * Math.sin((2 * Math.PI * 0.2 * i) / 100));
-  }
-  return out;
-}
 
-/** One station's 120 s HHZ/HHN/HHE window as MiniSEED 2 Steim-2 (as bench:ingest makes it). */
-function baseWindow(code: string, seed: number): Uint8Array {
-  const parts = ['HHZ', 'HHN', 'HHE'].map((channel, k) =>
-    encodeMiniSeed2({ network: 'XX', station: code, location: '00', channel, sampleRateHz: 100, startTimeUs: BASE_START_US, samples: channelSamples(seed * 7 + k, 12_000) }, { encoding: 'steim2', recordLength: RECORD }),
-  );
-  return Buffer.concat(parts);
-}
 
-/** The file with every record's BTIME start (bytes 20–29; FDSN SEED manual 2.4 ch. 8) moved by `deltaS` s. */
-function shiftStart(file: Uint8Array, deltaS: number): Uint8Array {
-  const out = Uint8Array.from(file);
-  const v = new DataView(out.buffer);
-  for (let at = 0; at + 48 <= out.length; at += RECORD) {
-    const ms = Date.UTC(v.getUint16(at + 20), 0, 1) + (v.getUint16(at + 22) - 1) * 86_400_000 + v.getUint8(at + 24) * 3_600_000 + v.getUint8(at + 25) * 60_000 + v.getUint8(at + 26) * 1000 + deltaS * 1000;
-    const d = new Date(ms);
-    const y = d.getUTCFullYear();
-    v.setUint16(at + 20, y);
-    v.setUint16(at + 22, Math.floor((ms - Date.UTC(y, 0, 1)) / 86_400_000) + 1);
-    v.setUint8(at + 24, d.getUTCHours());
-    v.setUint8(at + 25, d.getUTCMinutes());
-    v.setUint8(at + 26, d.getUTCSeconds());
-  }
-  return out;
-}
 
-/** CPU seconds (user + system) of a process from /proc/PID/stat fields 14–15 in 100 Hz ticks (proc(5)); NaN when gone. */
-function cpuSeconds(pid: number): number {
-  try {
-    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
-    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-    return (Number(f[11]) + Number(f[12])) / 100;
-  } catch {
-    return NaN;
-  }
-}
 
 /** What one mode measured. */
 interface ModeResult {
@@ -258,23 +208,7 @@ export async function compareModes(args: readonly string[]): Promise<number> {
     const client = createDatabaseClient(url, { connectionLimit: 2 });
     cleanups.push(() => client.close());
     await migrateDatabase(client.db);
-    const now = new Date();
-    const tokens = new Map<string, string>();
-    for (const code of CODES) {
-      const [res] = await client.db.insert(stations).values({ network: 'XX', code, name: `Kestrel Valley ${code}`, latitude: 46.5, longitude: 8.1, elevationM: 900, profile: defaultProcessingProfile, createdAt: now, updatedAt: now });
-      for (const cha of ['HHZ', 'HHN', 'HHE']) await client.db.insert(channels).values({ stationId: res.insertId, location: '00', code: cha, sampleRateHz: 100, createdAt: now, updatedAt: now });
-      const token = `kvi_${randomBytes(24).toString('base64url')}`;
-      await client.db.insert(ingestTokens).values({ stationId: res.insertId, label: 'bench', tokenHash: createHash('sha256').update(token).digest('hex'), createdAt: now });
-      tokens.set(code, token);
-    }
-    const sessions = createSessionStore(client.db, { idleHours: 24 });
-    const cookies: string[] = [];
-    for (let i = 0; i < WS_CLIENTS; i++) {
-      const id = `bench-analyst-${i}`;
-      await client.db.insert(users).values({ id, email: `${id}@kestrel.example`, displayName: `Bench analyst ${i}`, passwordHash: null, active: true, createdAt: now, updatedAt: now });
-      await client.db.insert(userRoles).values({ userId: id, role: 'analyst' });
-      cookies.push(`${sessionCookieName}=${(await sessions.create(id, { ipAddress: '127.0.0.1', userAgent: 'bench:ingest' })).id}`);
-    }
+    const { tokens, cookies } = await seedBenchNetwork(client.db, WS_CLIENTS);
     const bases = new Map(CODES.map((code, k) => [code, baseWindow(code, k + 1)]));
 
     // 1. The single-process mode.

@@ -27,7 +27,7 @@
  * relaxes MariaDB's per-commit redo-log sync to show how much of the database time is that sync.
  * Every process it started is stopped on every exit path.
  */
-import { createHash, randomBytes } from 'node:crypto';
+import { randomBytes } from 'node:crypto';
 import { Agent, request as httpRequest } from 'node:http';
 import { mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { cpus, loadavg, totalmem } from 'node:os';
@@ -38,22 +38,20 @@ import { WebSocket } from 'ws';
 import { z } from 'zod';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { startChildServer, type ChildServer } from '@tests/faults/support/child-server';
-import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
 import { freePort } from '@server/bootstrap/common';
 import { benchDatabase, cleanupsOnExit } from './bench-setup';
 import { createDatabaseClient } from '@server/db/client';
 import { migrateDatabase } from '@server/db/migrate';
-import { channels, ingestTokens, stations } from '@server/db/schema/stations';
-import { userRoles, users } from '@server/db/schema/users';
+import { ingestTokens } from '@server/db/schema/stations';
 import { analyzeWindow } from '@server/dsp/pipeline';
 import { decodeWaveform } from '@server/formats/decode';
-import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { createAnalysisPool, type AnalysisPool } from '@server/jobs/analysis-pool';
 import { createLogger } from '@server/logger';
 import { ingestFile } from '@server/features/ingest/ingest-upload';
 import { stationsByKeys } from '@server/features/stations/station-registry';
 import { median } from '@shared/math/median';
 import { percentile, timeRuns } from './timing';
+import { CODES, baseWindow, cpuSeconds, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);
@@ -61,79 +59,17 @@ const WARMUP_S = 5;
 const WS_CLIENTS = 20;
 const CPU_PROF = process.env.BENCH_CPU_PROF === '1';
 const TARGETS = { windowsPerS: 100, wsP95Ms: 250, rssMb: 500 };
-const CODES = ['KV01', 'KV02', 'KV03', 'KV04', 'KV05', 'KV06'];
-const BASE_START_US = 1_784_000_000_000_000;
-const RECORD = 4096;
 
 const log = (line: string) => console.log(line);
 
-/** Deterministic noise (32-bit LCG, Numerical Recipes constants; common practice) plus a 0.2 Hz swell. */
-function channelSamples(seed: number, n: number): Int32Array {
-  let s = seed >>> 0;
-  const out = new Int32Array(n);
-  for (let i = 0; i < n; i++) {
-    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
-    out[i] = Math.round(400 * (s / 2 ** 32 - 0.5) + 150 * Math.sin((2 * Math.PI * 0.2 * i) / 100));
-  }
-  return out;
-}
 
-/** One station's 120 s HHZ/HHN/HHE window as MiniSEED 2 Steim-2, starting at BASE_START_US. */
-function baseWindow(code: string, seed: number): Uint8Array {
-  const parts = ['HHZ', 'HHN', 'HHE'].map((channel, k) =>
-    encodeMiniSeed2({ network: 'XX', station: code, location: '00', channel, sampleRateHz: 100, startTimeUs: BASE_START_US, samples: channelSamples(seed * 7 + k, 12_000) }, { encoding: 'steim2', recordLength: RECORD }),
-  );
-  const out = new Uint8Array(parts.reduce((s, p) => s + p.length, 0));
-  let o = 0;
-  for (const p of parts) {
-    out.set(p, o);
-    o += p.length;
-  }
-  return out;
-}
 
-/**
- * A copy of a big-endian MiniSEED 2 file with every record's start time (BTIME at bytes 20–29 of
- * the fixed header: year, day of year, hour, minute, second, unused, 0.0001 s; FDSN SEED manual 2.4
- * ch. 8) moved by `deltaS` whole seconds. Samples, blockettes and sub-second parts are untouched.
- */
-function shiftStart(file: Uint8Array, deltaS: number): Uint8Array {
-  const out = Uint8Array.from(file);
-  const v = new DataView(out.buffer);
-  for (let at = 0; at + 48 <= out.length; at += RECORD) {
-    const year = v.getUint16(at + 20);
-    const day = v.getUint16(at + 22);
-    const ms = Date.UTC(year, 0, 1) + (day - 1) * 86_400_000 + v.getUint8(at + 24) * 3_600_000 + v.getUint8(at + 25) * 60_000 + v.getUint8(at + 26) * 1000 + deltaS * 1000;
-    const d = new Date(ms);
-    const y = d.getUTCFullYear();
-    v.setUint16(at + 20, y);
-    v.setUint16(at + 22, Math.floor((ms - Date.UTC(y, 0, 1)) / 86_400_000) + 1);
-    v.setUint8(at + 24, d.getUTCHours());
-    v.setUint8(at + 25, d.getUTCMinutes());
-    v.setUint8(at + 26, d.getUTCSeconds());
-  }
-  return out;
-}
 
 /** The machine and its load, printed with the figures (others share this machine). */
 function machineLine(): string {
   return `machine: ${cpus().length} cores (${cpus()[0]?.model ?? '?'}), ${(totalmem() / 2 ** 30).toFixed(1)} GiB, node ${process.version}, load average ${loadavg().map((x) => x.toFixed(2)).join(' ')}, ${new Date().toISOString()}`;
 }
 
-/**
- * CPU seconds (user + system, all threads) a process has used so far, from fields 14 and 15 of
- * /proc/PID/stat in clock ticks (proc(5); 100 ticks per second on Linux x86_64, common practice).
- * NaN when the process is gone.
- */
-function cpuSeconds(pid: number): number {
-  try {
-    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
-    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-    return (Number(fields[11]) + Number(fields[12])) / 100;
-  } catch {
-    return NaN;
-  }
-}
 
 /**
  * The machine's speed now, as a reference for comparing runs (this machine is shared, and the same
@@ -263,24 +199,7 @@ async function main(): Promise<number> {
     await migrateDatabase(client.db);
 
     // Stations, tokens, analysts with sessions.
-    const now = new Date();
-    const tokens = new Map<string, string>();
-    for (const code of CODES) {
-      const [res] = await client.db.insert(stations).values({ network: 'XX', code, name: `Kestrel Valley ${code}`, latitude: 46.5, longitude: 8.1, elevationM: 900, profile: defaultProcessingProfile, createdAt: now, updatedAt: now });
-      for (const cha of ['HHZ', 'HHN', 'HHE']) await client.db.insert(channels).values({ stationId: res.insertId, location: '00', code: cha, sampleRateHz: 100, createdAt: now, updatedAt: now });
-      const token = `kvi_${randomBytes(24).toString('base64url')}`;
-      await client.db.insert(ingestTokens).values({ stationId: res.insertId, label: 'bench', tokenHash: createHash('sha256').update(token).digest('hex'), createdAt: now });
-      tokens.set(code, token);
-    }
-    const sessionStore = createSessionStore(client.db, { idleHours: 24 });
-    const cookies: string[] = [];
-    for (let i = 0; i < WS_CLIENTS; i++) {
-      const id = `bench-analyst-${i}`;
-      await client.db.insert(users).values({ id, email: `${id}@kestrel.example`, displayName: `Bench analyst ${i}`, passwordHash: null, active: true, createdAt: now, updatedAt: now });
-      await client.db.insert(userRoles).values({ userId: id, role: 'analyst' });
-      const s = await sessionStore.create(id, { ipAddress: '127.0.0.1', userAgent: 'bench:ingest' });
-      cookies.push(`${sessionCookieName}=${s.id}`);
-    }
+    const { tokens, cookies } = await seedBenchNetwork(client.db, WS_CLIENTS);
 
     const bases = new Map(CODES.map((code, k) => [code, baseWindow(code, k + 1)]));
     const refBefore = referenceMs(bases.get('KV01') ?? new Uint8Array());

@@ -50,14 +50,20 @@ export function ensureDebianPackages(packages: string[], log: (line: string) => 
   if (install.status !== 0) throw new BootstrapError(`apt-get install ${missing.join(' ')} failed; see the messages above`);
 }
 
-/** Installs Debian's mariadb-server when `mariadbd` is absent. */
-export function ensureMariaDbInstalled(log: (line: string) => void = console.log): void {
-  if (existsSync(MARIADBD)) return;
-  ensureDebianPackages(['mariadb-server'], log);
-  if (!existsSync(MARIADBD)) throw new BootstrapError(`mariadb-server installed but ${MARIADBD} is missing`);
+/** Installs the Debian package `pkg` when the program at `binary` is absent; throws when it is still absent after. */
+export function ensureDebianBinary(binary: string, pkg: string, log: (line: string) => void = console.log): void {
+  if (existsSync(binary)) return;
+  ensureDebianPackages([pkg], log);
+  if (!existsSync(binary)) throw new BootstrapError(`${pkg} installed but ${binary} is missing`);
 }
 
-function processAlive(pid: number): boolean {
+/** Installs Debian's mariadb-server when `mariadbd` is absent. */
+export function ensureMariaDbInstalled(log: (line: string) => void = console.log): void {
+  ensureDebianBinary(MARIADBD, 'mariadb-server', log);
+}
+
+/** True when a process with this id exists (signal 0 checks without sending anything). */
+export function processAlive(pid: number): boolean {
   try {
     process.kill(pid, 0);
     return true;
@@ -77,13 +83,15 @@ async function answers(socketPath: string): Promise<boolean> {
   }
 }
 
-function readPid(pidFile: string): number | undefined {
+/** The process id in a pid file, or undefined when there is none or it is not a positive integer. */
+export function readPid(pidFile: string): number | undefined {
   if (!existsSync(pidFile)) return undefined;
   const pid = Number(readFileSync(pidFile, 'utf8').trim());
   return Number.isInteger(pid) && pid > 0 ? pid : undefined;
 }
 
-async function waitUntil(check: () => Promise<boolean> | boolean, timeoutMs: number, intervalMs = 100): Promise<boolean> {
+/** Polls `check` every `intervalMs` until it holds or `timeoutMs` passes; the last check's answer. */
+export async function waitUntil(check: () => Promise<boolean> | boolean, timeoutMs: number, intervalMs = 100): Promise<boolean> {
   const deadline = Date.now() + timeoutMs;
   while (Date.now() < deadline) {
     if (await check()) return true;

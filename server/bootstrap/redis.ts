@@ -2,7 +2,7 @@ import { spawn } from 'node:child_process';
 import { closeSync, existsSync, mkdirSync, openSync, readFileSync } from 'node:fs';
 import { createConnection } from 'node:net';
 import { join, resolve } from 'node:path';
-import { BootstrapError, ensureDebianPackages } from './mariadb';
+import { BootstrapError, ensureDebianBinary, processAlive, readPid, waitUntil } from './mariadb';
 
 /** A private Redis server with its data, log and pid file in one folder, on 127.0.0.1. */
 export interface PrivateRedis {
@@ -21,18 +21,7 @@ const REDIS_SERVER = '/usr/bin/redis-server';
 
 /** Installs Debian's redis-server when the binary is absent (as `ensureMariaDbInstalled` does for MariaDB). */
 export function ensureRedisInstalled(log: (line: string) => void = console.log): void {
-  if (existsSync(REDIS_SERVER)) return;
-  ensureDebianPackages(['redis-server'], log);
-  if (!existsSync(REDIS_SERVER)) throw new BootstrapError(`redis-server installed but ${REDIS_SERVER} is missing`);
-}
-
-function processAlive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
+  ensureDebianBinary(REDIS_SERVER, 'redis-server', log);
 }
 
 /**
@@ -55,21 +44,6 @@ export function redisAnswers(port: number, host = '127.0.0.1'): Promise<boolean>
       if (reply.includes('\r\n')) done(reply.startsWith('+PONG'));
     });
   });
-}
-
-async function waitUntil(check: () => Promise<boolean> | boolean, timeoutMs: number, intervalMs = 100): Promise<boolean> {
-  const deadline = Date.now() + timeoutMs;
-  while (Date.now() < deadline) {
-    if (await check()) return true;
-    await new Promise((r) => setTimeout(r, intervalMs));
-  }
-  return check();
-}
-
-function readPid(pidFile: string): number | undefined {
-  if (!existsSync(pidFile)) return undefined;
-  const pid = Number(readFileSync(pidFile, 'utf8').trim());
-  return Number.isInteger(pid) && pid > 0 ? pid : undefined;
 }
 
 /**

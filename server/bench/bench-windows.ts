@@ -1,0 +1,109 @@
+/**
+ * The ingest benchmarks' synthetic inputs and process meters, shared by `bench:ingest`'s single
+ * process run (ingest.ts) and its multi-instance comparison (ingest-cluster.ts). Test inputs, not
+ * check values.
+ */
+import { createHash, randomBytes } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
+import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
+import type { Database } from '@server/db/client';
+import { channels, ingestTokens, stations } from '@server/db/schema/stations';
+import { userRoles, users } from '@server/db/schema/users';
+import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+
+/** The bench stations (invented, network XX). */
+export const CODES = ['KV01', 'KV02', 'KV03', 'KV04', 'KV05', 'KV06'];
+/** The bench windows' start, µs since the epoch. */
+export const BASE_START_US = 1_784_000_000_000_000;
+/** MiniSEED record length of the bench files, bytes. */
+export const RECORD = 4096;
+
+/** Deterministic noise (32-bit LCG, Numerical Recipes constants; common practice) plus a 0.2 Hz swell. */
+export function channelSamples(seed: number, n: number): Int32Array {
+  let s = seed >>> 0;
+  const out = new Int32Array(n);
+  for (let i = 0; i < n; i++) {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    out[i] = Math.round(400 * (s / 2 ** 32 - 0.5) + 150 * Math.sin((2 * Math.PI * 0.2 * i) / 100));
+  }
+  return out;
+}
+
+/** One station's 120 s HHZ/HHN/HHE window as MiniSEED 2 Steim-2, starting at BASE_START_US. */
+export function baseWindow(code: string, seed: number): Uint8Array {
+  const parts = ['HHZ', 'HHN', 'HHE'].map((channel, k) =>
+    encodeMiniSeed2({ network: 'XX', station: code, location: '00', channel, sampleRateHz: 100, startTimeUs: BASE_START_US, samples: channelSamples(seed * 7 + k, 12_000) }, { encoding: 'steim2', recordLength: RECORD }),
+  );
+  const out = new Uint8Array(parts.reduce((s, p) => s + p.length, 0));
+  let o = 0;
+  for (const p of parts) {
+    out.set(p, o);
+    o += p.length;
+  }
+  return out;
+}
+
+/**
+ * A copy of a big-endian MiniSEED 2 file with every record's start time (BTIME at bytes 20–29 of
+ * the fixed header: year, day of year, hour, minute, second, unused, 0.0001 s; FDSN SEED manual 2.4
+ * ch. 8) moved by `deltaS` whole seconds. Samples, blockettes and sub-second parts are untouched.
+ */
+export function shiftStart(file: Uint8Array, deltaS: number): Uint8Array {
+  const out = Uint8Array.from(file);
+  const v = new DataView(out.buffer);
+  for (let at = 0; at + 48 <= out.length; at += RECORD) {
+    const year = v.getUint16(at + 20);
+    const day = v.getUint16(at + 22);
+    const ms = Date.UTC(year, 0, 1) + (day - 1) * 86_400_000 + v.getUint8(at + 24) * 3_600_000 + v.getUint8(at + 25) * 60_000 + v.getUint8(at + 26) * 1000 + deltaS * 1000;
+    const d = new Date(ms);
+    const y = d.getUTCFullYear();
+    v.setUint16(at + 20, y);
+    v.setUint16(at + 22, Math.floor((ms - Date.UTC(y, 0, 1)) / 86_400_000) + 1);
+    v.setUint8(at + 24, d.getUTCHours());
+    v.setUint8(at + 25, d.getUTCMinutes());
+    v.setUint8(at + 26, d.getUTCSeconds());
+  }
+  return out;
+}
+
+/**
+ * CPU seconds (user + system, all threads) a process has used so far, from fields 14 and 15 of
+ * /proc/PID/stat in clock ticks (proc(5); 100 ticks per second on Linux x86_64, common practice).
+ * NaN when the process is gone.
+ */
+export function cpuSeconds(pid: number): number {
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    return (Number(fields[11]) + Number(fields[12])) / 100;
+  } catch {
+    return NaN;
+  }
+}
+
+/**
+ * The bench network in a fresh database: the {@link CODES} stations with HHZ/HHN/HHE and an ingest
+ * token each, and `analysts` analysts with a session each (for the websocket clients).
+ * @returns the tokens by station code and the analysts' session cookies
+ */
+export async function seedBenchNetwork(db: Database, analysts: number): Promise<{ tokens: Map<string, string>; cookies: string[] }> {
+  const now = new Date();
+  const tokens = new Map<string, string>();
+  for (const code of CODES) {
+    const [res] = await db.insert(stations).values({ network: 'XX', code, name: `Kestrel Valley ${code}`, latitude: 46.5, longitude: 8.1, elevationM: 900, profile: defaultProcessingProfile, createdAt: now, updatedAt: now });
+    for (const cha of ['HHZ', 'HHN', 'HHE']) await db.insert(channels).values({ stationId: res.insertId, location: '00', code: cha, sampleRateHz: 100, createdAt: now, updatedAt: now });
+    const token = `kvi_${randomBytes(24).toString('base64url')}`;
+    await db.insert(ingestTokens).values({ stationId: res.insertId, label: 'bench', tokenHash: createHash('sha256').update(token).digest('hex'), createdAt: now });
+    tokens.set(code, token);
+  }
+  const sessions = createSessionStore(db, { idleHours: 24 });
+  const cookies: string[] = [];
+  for (let i = 0; i < analysts; i++) {
+    const id = `bench-analyst-${i}`;
+    await db.insert(users).values({ id, email: `${id}@kestrel.example`, displayName: `Bench analyst ${i}`, passwordHash: null, active: true, createdAt: now, updatedAt: now });
+    await db.insert(userRoles).values({ userId: id, role: 'analyst' });
+    cookies.push(`${sessionCookieName}=${(await sessions.create(id, { ipAddress: '127.0.0.1', userAgent: 'bench:ingest' })).id}`);
+  }
+  return { tokens, cookies };
+}
