@@ -5,6 +5,7 @@
  */
 import { createHash, randomBytes } from 'node:crypto';
 import { readFileSync } from 'node:fs';
+import { request as httpRequest, type Agent } from 'node:http';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { createSessionStore, sessionCookieName } from '@server/auth/sessions';
 import type { Database } from '@server/db/client';
@@ -106,4 +107,32 @@ export async function seedBenchNetwork(db: Database, analysts: number): Promise<
     cookies.push(`${sessionCookieName}=${(await sessions.create(id, { ipAddress: '127.0.0.1', userAgent: 'bench:ingest' })).id}`);
   }
   return { tokens, cookies };
+}
+
+/**
+ * POSTs one file to `base`/api/uploads as multipart/form-data (RFC 7578) with a station's ingest
+ * token, as an acquisition script would; the body is written by hand, so the load generator costs
+ * as little as it can on the cores it shares with the server.
+ * @returns the answer's status and body
+ */
+export function postUpload(agent: Agent, base: string, token: string, filename: string, file: Uint8Array): Promise<{ status: number; body: string }> {
+  return new Promise((ok, fail) => {
+    const u = new URL(base);
+    const boundary = `seisift-bench-${randomBytes(8).toString('hex')}`;
+    const head = Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="files"; filename="${filename}"\r\nContent-Type: application/octet-stream\r\n\r\n`);
+    const tail = Buffer.from(`\r\n--${boundary}--\r\n`);
+    const req = httpRequest(
+      { agent, host: u.hostname, port: u.port, method: 'POST', path: '/api/uploads', headers: { Authorization: `Bearer ${token}`, 'Content-Type': `multipart/form-data; boundary=${boundary}`, 'Content-Length': head.length + file.length + tail.length } },
+      (res) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => ok({ status: res.statusCode ?? 0, body: Buffer.concat(chunks).toString('utf8') }));
+        res.on('error', fail);
+      },
+    );
+    req.on('error', fail);
+    req.write(head);
+    req.write(file);
+    req.end(tail);
+  });
 }

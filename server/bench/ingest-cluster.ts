@@ -15,9 +15,8 @@
  * docs/PERFORMANCE.md is made from.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
-import { Agent, request as httpRequest } from 'node:http';
+import { Agent } from 'node:http';
 import { cpus, loadavg } from 'node:os';
 import { join, resolve } from 'node:path';
 import { createInterface } from 'node:readline';
@@ -31,7 +30,7 @@ import { migrateDatabase } from '@server/db/migrate';
 import { startChildServer } from '@tests/faults/support/child-server';
 import { benchDatabase, cleanupsOnExit } from './bench-setup';
 import { percentile } from './timing';
-import { CODES, baseWindow, cpuSeconds, seedBenchNetwork, shiftStart } from './bench-windows';
+import { CODES, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 20);
@@ -82,26 +81,7 @@ async function measure(label: string, uploadUrls: string[], wsUrls: string[], pi
     ),
   );
   const agent = new Agent({ keepAlive: true, maxSockets: CONCURRENCY });
-  const post = (base: string, token: string, filename: string, file: Uint8Array) =>
-    new Promise<{ status: number; body: string }>((ok, fail) => {
-      const u = new URL(base);
-      const boundary = `seisift-bench-${randomBytes(8).toString('hex')}`;
-      const head = Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="files"; filename="${filename}"\r\nContent-Type: application/octet-stream\r\n\r\n`);
-      const tail = Buffer.from(`\r\n--${boundary}--\r\n`);
-      const req = httpRequest(
-        { agent, host: u.hostname, port: u.port, method: 'POST', path: '/api/uploads', headers: { Authorization: `Bearer ${token}`, 'Content-Type': `multipart/form-data; boundary=${boundary}`, 'Content-Length': head.length + file.length + tail.length } },
-        (res) => {
-          const chunks: Buffer[] = [];
-          res.on('data', (c: Buffer) => chunks.push(c));
-          res.on('end', () => ok({ status: res.statusCode ?? 0, body: Buffer.concat(chunks).toString('utf8') }));
-          res.on('error', fail);
-        },
-      );
-      req.on('error', fail);
-      req.write(head);
-      req.write(file);
-      req.end(tail);
-    });
+  const post = (base: string, token: string, filename: string, file: Uint8Array) => postUpload(agent, base, token, filename, file);
   const uploadSchema = z.object({ files: z.array(z.object({ itemIds: z.array(z.number()).optional() })).optional() });
   const samples: Array<{ sentAt: number; answeredAt: number; status: number; itemIds: number[] }> = [];
   const t0 = performance.now();

@@ -27,8 +27,7 @@
  * relaxes MariaDB's per-commit redo-log sync to show how much of the database time is that sync.
  * Every process it started is stopped on every exit path.
  */
-import { randomBytes } from 'node:crypto';
-import { Agent, request as httpRequest } from 'node:http';
+import { Agent } from 'node:http';
 import { mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { cpus, loadavg, totalmem } from 'node:os';
 import { join, resolve } from 'node:path';
@@ -51,7 +50,7 @@ import { ingestFile } from '@server/features/ingest/ingest-upload';
 import { stationsByKeys } from '@server/features/stations/station-registry';
 import { median } from '@shared/math/median';
 import { percentile, timeRuns } from './timing';
-import { CODES, baseWindow, cpuSeconds, seedBenchNetwork, shiftStart } from './bench-windows';
+import { CODES, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);
@@ -273,33 +272,7 @@ async function main(): Promise<number> {
     // generator shares the two cores with the server, so it should cost as little as it can.
     const agent = new Agent({ keepAlive: true, maxSockets: CONCURRENCY });
     cleanups.push(async () => agent.destroy());
-    const serverUrl = new URL(server.url);
-    const post = (token: string, filename: string, file: Uint8Array) =>
-      new Promise<{ status: number; body: string }>((ok, fail) => {
-        const boundary = `seisift-bench-${randomBytes(8).toString('hex')}`;
-        const head = Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="files"; filename="${filename}"\r\nContent-Type: application/octet-stream\r\n\r\n`);
-        const tail = Buffer.from(`\r\n--${boundary}--\r\n`);
-        const req = httpRequest(
-          {
-            agent,
-            host: serverUrl.hostname,
-            port: serverUrl.port,
-            method: 'POST',
-            path: '/api/uploads',
-            headers: { Authorization: `Bearer ${token}`, 'Content-Type': `multipart/form-data; boundary=${boundary}`, 'Content-Length': head.length + file.length + tail.length },
-          },
-          (res) => {
-            const chunks: Buffer[] = [];
-            res.on('data', (c: Buffer) => chunks.push(c));
-            res.on('end', () => ok({ status: res.statusCode ?? 0, body: Buffer.concat(chunks).toString('utf8') }));
-            res.on('error', fail);
-          },
-        );
-        req.on('error', fail);
-        req.write(head);
-        req.write(file);
-        req.end(tail);
-      });
+    const post = (token: string, filename: string, file: Uint8Array) => postUpload(agent, server.url, token, filename, file);
     const uploader = async (w: number) => {
       while (performance.now() < end) {
         const n = counter++;
