@@ -136,3 +136,26 @@ export function postUpload(agent: Agent, base: string, token: string, filename: 
     req.end(tail);
   });
 }
+
+/**
+ * Upload → socket latency: for every item of every measured upload, the time from the upload's
+ * start to the LAST socket that heard of it (ms, sorted), and how many (item, socket) pairs never
+ * arrived. `arrivals` holds one map per socket, item id → arrival time (same clock as `sentAt`).
+ */
+export function arrivalLatencies(measured: ReadonlyArray<{ sentAt: number; itemIds: readonly number[] }>, arrivals: ReadonlyArray<ReadonlyMap<number, number>>): { toAll: number[]; missing: number } {
+  const toAll: number[] = [];
+  let missing = 0;
+  for (const s of measured) {
+    for (const id of s.itemIds) {
+      let last = -Infinity;
+      for (const m of arrivals) {
+        const t = m.get(id);
+        if (t === undefined) missing++;
+        else last = Math.max(last, t);
+      }
+      if (last > -Infinity) toAll.push(last - s.sentAt);
+    }
+  }
+  toAll.sort((a, b) => a - b);
+  return { toAll, missing };
+}

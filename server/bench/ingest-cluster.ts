@@ -30,7 +30,7 @@ import { migrateDatabase } from '@server/db/migrate';
 import { startChildServer } from '@tests/faults/support/child-server';
 import { benchDatabase, cleanupsOnExit } from './bench-setup';
 import { percentile } from './timing';
-import { CODES, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
+import { CODES, arrivalLatencies, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 20);
@@ -109,19 +109,7 @@ async function measure(label: string, uploadUrls: string[], wsUrls: string[], pi
   const wanted = measured.flatMap((s) => s.itemIds);
   const deadline = performance.now() + 10_000;
   while (performance.now() < deadline && !arrivals.every((m) => wanted.every((id) => m.has(id)))) await new Promise((r) => setTimeout(r, 50));
-  const toAll: number[] = [];
-  let missing = 0;
-  for (const s of measured)
-    for (const id of s.itemIds) {
-      let last = -Infinity;
-      for (const m of arrivals) {
-        const t = m.get(id);
-        if (t === undefined) missing++;
-        else last = Math.max(last, t);
-      }
-      if (last > -Infinity) toAll.push(last - s.sentAt);
-    }
-  toAll.sort((a, b) => a - b);
+  const { toAll, missing } = arrivalLatencies(measured, arrivals);
   for (const ws of sockets) ws.terminate();
   agent.destroy();
   return {

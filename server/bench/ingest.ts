@@ -50,7 +50,7 @@ import { ingestFile } from '@server/features/ingest/ingest-upload';
 import { stationsByKeys } from '@server/features/stations/station-registry';
 import { median } from '@shared/math/median';
 import { percentile, timeRuns } from './timing';
-import { CODES, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
+import { CODES, arrivalLatencies, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);
@@ -294,20 +294,7 @@ async function main(): Promise<number> {
     while (performance.now() < deadline && !arrivals.every((m) => wanted.every((id) => m.has(id)))) await new Promise((r) => setTimeout(r, 50));
 
     const toAnswer = measured.map((s) => s.answeredAt - s.sentAt).sort((a, b) => a - b);
-    const toAll: number[] = [];
-    let missing = 0;
-    for (const s of measured) {
-      for (const id of s.itemIds) {
-        let last = -Infinity;
-        for (const m of arrivals) {
-          const t = m.get(id);
-          if (t === undefined) missing++;
-          else last = Math.max(last, t);
-        }
-        if (last > -Infinity) toAll.push(last - s.sentAt);
-      }
-    }
-    toAll.sort((a, b) => a - b);
+    const { toAll, missing } = arrivalLatencies(measured, arrivals);
     const rssMb = server.peakRssMb();
     const windowsPerS = measured.length / SECONDS;
     const failedUploads = samples.filter((s) => s.status !== 201).length;
