@@ -36,13 +36,7 @@ export function baseWindow(code: string, seed: number): Uint8Array {
   const parts = ['HHZ', 'HHN', 'HHE'].map((channel, k) =>
     encodeMiniSeed2({ network: 'XX', station: code, location: '00', channel, sampleRateHz: 100, startTimeUs: BASE_START_US, samples: channelSamples(seed * 7 + k, 12_000) }, { encoding: 'steim2', recordLength: RECORD }),
   );
-  const out = new Uint8Array(parts.reduce((s, p) => s + p.length, 0));
-  let o = 0;
-  for (const p of parts) {
-    out.set(p, o);
-    o += p.length;
-  }
-  return out;
+  return Buffer.concat(parts);
 }
 
 /**
