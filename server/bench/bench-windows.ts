@@ -12,6 +12,8 @@ import type { Database } from '@server/db/client';
 import { channels, ingestTokens, stations } from '@server/db/schema/stations';
 import { userRoles, users } from '@server/db/schema/users';
 import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
+import { WebSocket } from 'ws';
+import { z } from 'zod';
 
 /** The bench stations (invented, network XX). */
 export const CODES = ['KV01', 'KV02', 'KV03', 'KV04', 'KV05', 'KV06'];
@@ -152,4 +154,45 @@ export function arrivalLatencies(measured: ReadonlyArray<{ sentAt: number; itemI
   }
   toAll.sort((a, b) => a - b);
   return { toAll, missing };
+}
+
+/** Only what the measurement needs of a hub message (the full shape is the hub tests' job). */
+const benchMessageSchema = z.object({ type: z.string(), changes: z.array(z.object({ resource: z.string(), kind: z.string(), id: z.number() })).optional() });
+
+/**
+ * Opens one websocket per cookie (client i on `baseUrls[i % length]`) and resolves once every one
+ * has said hello. `arrivals[i]` maps item id → arrival time (performance.now()) of its "created"
+ * change on client i; `close()` terminates them all. Parsing is kept to the fields above: 20
+ * clients on the same two cores as the server should cost it as little as browsers elsewhere.
+ */
+export async function openArrivalSockets(baseUrls: readonly string[], cookies: readonly string[]): Promise<{ arrivals: Array<Map<number, number>>; close: () => void }> {
+  const arrivals: Array<Map<number, number>> = [];
+  const sockets: WebSocket[] = [];
+  const close = () => {
+    for (const ws of sockets) ws.terminate();
+  };
+  await Promise.all(
+    cookies.map(
+      (cookie, i) =>
+        new Promise<void>((ok, fail) => {
+          const seen = new Map<number, number>();
+          arrivals[i] = seen;
+          const url = baseUrls[i % baseUrls.length] ?? '';
+          const ws = new WebSocket(`${url.replace(/^http/, 'ws')}/ws`, { headers: { Cookie: cookie, Origin: url } });
+          sockets.push(ws);
+          ws.on('message', (data: Buffer) => {
+            const t = performance.now();
+            const msg = benchMessageSchema.parse(JSON.parse(data.toString('utf8')));
+            if (msg.type === 'hello') ok();
+            if (msg.type === 'changes') for (const c of msg.changes ?? []) if (c.resource === 'item' && c.kind === 'created') seen.set(c.id, t);
+          });
+          ws.on('error', fail);
+          ws.on('close', (code) => fail(new Error(`websocket ${i} closed (${code})`)));
+        }),
+    ),
+  ).catch((err: unknown) => {
+    close();
+    throw err;
+  });
+  return { arrivals, close };
 }

@@ -20,7 +20,6 @@ import { Agent } from 'node:http';
 import { cpus, loadavg } from 'node:os';
 import { join, resolve } from 'node:path';
 import { createInterface } from 'node:readline';
-import { WebSocket } from 'ws';
 import { z } from 'zod';
 import { freePort } from '@server/bootstrap/common';
 import { ensureRedisInstalled, startPrivateRedis } from '@server/bootstrap/redis';
@@ -30,7 +29,7 @@ import { migrateDatabase } from '@server/db/migrate';
 import { startChildServer } from '@tests/faults/support/child-server';
 import { benchDatabase, cleanupsOnExit } from './bench-setup';
 import { percentile } from './timing';
-import { CODES, arrivalLatencies, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
+import { CODES, arrivalLatencies, baseWindow, cpuSeconds, openArrivalSockets, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 20);
@@ -58,28 +57,7 @@ let fileCounter = 0;
 
 /** Runs the load against `uploadUrls` (round-robin per uploader) with sockets on `wsUrls`, measuring the processes `pids`. */
 async function measure(label: string, uploadUrls: string[], wsUrls: string[], pids: Array<[string, number]>, tokens: Map<string, string>, cookies: string[], bases: Map<string, Uint8Array>): Promise<ModeResult> {
-  const msgSchema = z.object({ type: z.string(), changes: z.array(z.object({ resource: z.string(), kind: z.string(), id: z.number() })).optional() });
-  const arrivals: Array<Map<number, number>> = [];
-  const sockets: WebSocket[] = [];
-  await Promise.all(
-    cookies.map(
-      (cookie, i) =>
-        new Promise<void>((ok, fail) => {
-          const seen = new Map<number, number>();
-          arrivals[i] = seen;
-          const url = wsUrls[i % wsUrls.length] ?? '';
-          const ws = new WebSocket(`${url.replace(/^http/, 'ws')}/ws`, { headers: { Cookie: cookie, Origin: url } });
-          sockets.push(ws);
-          ws.on('message', (data: Buffer) => {
-            const t = performance.now();
-            const msg = msgSchema.parse(JSON.parse(data.toString('utf8')));
-            if (msg.type === 'hello') ok();
-            for (const c of msg.changes ?? []) if (c.resource === 'item' && c.kind === 'created') seen.set(c.id, t);
-          });
-          ws.on('error', fail);
-        }),
-    ),
-  );
+  const { arrivals, close: closeSockets } = await openArrivalSockets(wsUrls, cookies);
   const agent = new Agent({ keepAlive: true, maxSockets: CONCURRENCY });
   const post = (base: string, token: string, filename: string, file: Uint8Array) => postUpload(agent, base, token, filename, file);
   const uploadSchema = z.object({ files: z.array(z.object({ itemIds: z.array(z.number()).optional() })).optional() });
@@ -110,7 +88,7 @@ async function measure(label: string, uploadUrls: string[], wsUrls: string[], pi
   const deadline = performance.now() + 10_000;
   while (performance.now() < deadline && !arrivals.every((m) => wanted.every((id) => m.has(id)))) await new Promise((r) => setTimeout(r, 50));
   const { toAll, missing } = arrivalLatencies(measured, arrivals);
-  for (const ws of sockets) ws.terminate();
+  closeSockets();
   agent.destroy();
   return {
     label,

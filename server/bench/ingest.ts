@@ -33,7 +33,6 @@ import { cpus, loadavg, totalmem } from 'node:os';
 import { join, resolve } from 'node:path';
 import { eq } from 'drizzle-orm';
 import mysql from 'mysql2/promise';
-import { WebSocket } from 'ws';
 import { z } from 'zod';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { startChildServer, type ChildServer } from '@tests/faults/support/child-server';
@@ -50,7 +49,7 @@ import { ingestFile } from '@server/features/ingest/ingest-upload';
 import { stationsByKeys } from '@server/features/stations/station-registry';
 import { median } from '@shared/math/median';
 import { percentile, timeRuns } from './timing';
-import { CODES, arrivalLatencies, baseWindow, cpuSeconds, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
+import { CODES, arrivalLatencies, baseWindow, cpuSeconds, openArrivalSockets, postUpload, seedBenchNetwork, shiftStart } from './bench-windows';
 
 const CONCURRENCY = Number(process.env.BENCH_INGEST_CONCURRENCY ?? 8);
 const SECONDS = Number(process.env.BENCH_INGEST_SECONDS ?? 60);
@@ -219,34 +218,8 @@ async function main(): Promise<number> {
     log(`server pid ${server.pid} on ${server.url}`);
 
     // Websocket clients: arrival time of every created item, per client.
-    const benchMessageSchema = z.object({ type: z.string(), changes: z.array(z.object({ resource: z.string(), kind: z.string(), id: z.number() })).optional() });
-    const arrivals: Array<Map<number, number>> = [];
-    const sockets: WebSocket[] = [];
-    await Promise.all(
-      cookies.map(
-        (cookie, i) =>
-          new Promise<void>((ok, fail) => {
-            const seen = new Map<number, number>();
-            arrivals[i] = seen;
-            const ws = new WebSocket(`${server.url.replace(/^http/, 'ws')}/ws`, { headers: { Cookie: cookie, Origin: server.url } });
-            sockets.push(ws);
-            ws.on('message', (data: Buffer) => {
-              const t = performance.now();
-              // Only what the measurement needs (the full message shape is the hub tests' job):
-              // 20 clients on the same two cores as the server should cost it as little as a
-              // browser elsewhere would.
-              const msg = benchMessageSchema.parse(JSON.parse(data.toString('utf8')));
-              if (msg.type === 'hello') ok();
-              if (msg.type === 'changes') for (const c of msg.changes ?? []) if (c.resource === 'item' && c.kind === 'created') seen.set(c.id, t);
-            });
-            ws.on('error', fail);
-            ws.on('close', (code) => fail(new Error(`websocket ${i} closed (${code})`)));
-          }),
-      ),
-    );
-    cleanups.push(async () => {
-      for (const ws of sockets) ws.terminate();
-    });
+    const { arrivals, close: closeSockets } = await openArrivalSockets([server.url], cookies);
+    cleanups.push(async () => closeSockets());
     log(`${WS_CLIENTS} websocket clients connected`);
 
     // Upload files: one encoded window per station (above), moved in time for each upload.

@@ -323,12 +323,18 @@ function taperAt(f: number, p: PreFilter): number {
 const TAIL_S = 5;
 
 /**
- * The counts with their mean and least-squares line through (i, x_i) removed and a 5 % cosine taper
- * at each end (Tukey α = 0.1, common practice before a deconvolution), zero-padded to `size`.
- * @throws RangeError naming `what` for a sample that is not a finite number
+ * The counts checked (≥ 2 samples, a rate > 0 Hz, pre-filter corners that rise), then with their mean
+ * and least-squares line through (i, x_i) removed and a 5 % cosine taper at each end (Tukey α = 0.1,
+ * common practice before a deconvolution), zero-padded to size = a power of two ≥ n + 5 s·fs.
+ * @throws RangeError naming `what` for a short trace, a bad rate or pre-filter, or a sample that is not a finite number
  */
-function detrendTaperPad(counts: Float64Array, size: number, what: string): Float64Array {
+function prepareForDeconvolution(counts: Float64Array, sampleRateHz: number, preFilter: PreFilter, what: string): { n: number; size: number; x: Float64Array } {
   const n = counts.length;
+  if (n < 2) throw new RangeError(`${what}: the trace needs at least 2 samples`);
+  if (!(sampleRateHz > 0) || !Number.isFinite(sampleRateHz)) throw new RangeError(`${what}: sample rate must be > 0 Hz, got ${sampleRateHz}`);
+  const { f1, f2, f3, f4 } = preFilter;
+  if (!(0 <= f1 && f1 < f2 && f2 <= f3 && f3 < f4)) throw new RangeError(`${what}: pre-filter corners must rise, got ${f1}, ${f2}, ${f3}, ${f4} Hz`);
+  const size = paddedSize(n, sampleRateHz, TAIL_S);
   let sx = 0;
   let sxy = 0;
   for (let i = 0; i < n; i++) {
@@ -348,7 +354,7 @@ function detrendTaperPad(counts: Float64Array, size: number, what: string): Floa
     const w = edge < taperN ? 0.5 * (1 - Math.cos((Math.PI * edge) / taperN)) : 1;
     x[i] = ((counts[i] as number) - my - slope * (i - mi)) * w;
   }
-  return x;
+  return { n, size, x };
 }
 
 /**
@@ -363,13 +369,7 @@ function detrendTaperPad(counts: Float64Array, size: number, what: string): Floa
  * @throws RangeError for an empty trace, a rate that is not > 0, a non-finite sample or a bad pre-filter.
  */
 export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: number, response: InstrumentResponse, preFilter: PreFilter = defaultPreFilter(sampleRateHz)): Float64Array {
-  const n = counts.length;
-  if (n < 2) throw new RangeError('Wood-Anderson from counts: the trace needs at least 2 samples');
-  if (!(sampleRateHz > 0) || !Number.isFinite(sampleRateHz)) throw new RangeError(`Wood-Anderson from counts: sample rate must be > 0 Hz, got ${sampleRateHz}`);
-  const { f1, f2, f3, f4 } = preFilter;
-  if (!(0 <= f1 && f1 < f2 && f2 <= f3 && f3 < f4)) throw new RangeError(`Wood-Anderson from counts: pre-filter corners must rise, got ${f1}, ${f2}, ${f3}, ${f4} Hz`);
-  const size = paddedSize(n, sampleRateHz, TAIL_S);
-  const x = detrendTaperPad(counts, size, 'Wood-Anderson from counts');
+  const { n, size, x } = prepareForDeconvolution(counts, sampleRateHz, preFilter, 'Wood-Anderson from counts');
   const w0 = (2 * Math.PI) / WOOD_ANDERSON.naturalPeriodS;
   const twoHw0 = 2 * WOOD_ANDERSON.damping * w0;
   const g = WOOD_ANDERSON.staticMagnification;
@@ -423,13 +423,7 @@ export type RemovalOutput = 'velocity' | 'displacement';
  * @throws RangeError for an empty trace, a rate that is not > 0, a non-finite sample or a bad pre-filter.
  */
 export function groundMotionFromCounts(counts: Float64Array, sampleRateHz: number, response: InstrumentResponse, output: RemovalOutput, preFilter: PreFilter = defaultPreFilter(sampleRateHz)): Float64Array {
-  const n = counts.length;
-  if (n < 2) throw new RangeError('response removal: the trace needs at least 2 samples');
-  if (!(sampleRateHz > 0) || !Number.isFinite(sampleRateHz)) throw new RangeError(`response removal: sample rate must be > 0 Hz, got ${sampleRateHz}`);
-  const { f1, f2, f3, f4 } = preFilter;
-  if (!(0 <= f1 && f1 < f2 && f2 <= f3 && f3 < f4)) throw new RangeError(`response removal: pre-filter corners must rise, got ${f1}, ${f2}, ${f3}, ${f4} Hz`);
-  const size = paddedSize(n, sampleRateHz, TAIL_S);
-  const x = detrendTaperPad(counts, size, 'response removal');
+  const { n, size, x } = prepareForDeconvolution(counts, sampleRateHz, preFilter, 'response removal');
   const kIn = response.quantity === 'displacement' ? 0 : response.quantity === 'velocity' ? 1 : 2;
   const power = kIn - (output === 'displacement' ? 0 : 1);
   const half = size / 2;

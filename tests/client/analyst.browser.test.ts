@@ -4,7 +4,7 @@ import type { Page } from 'playwright-core';
 import { queueItemDetailSchema } from '@shared/schemas/queue';
 import { uploadResponseSchema } from '@shared/schemas/upload';
 import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { checkA11y, launchBrowser, screenshot, steadyBox, type LaunchedBrowser } from '@tests/setup/browser';
 import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { createItem, createPerson, syntheticStreams, type TestPerson } from '@tests/setup/queue-fixtures';
 import { startTestServer, type TestServer } from '@tests/setup/test-server';
@@ -379,8 +379,7 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await page.waitForSelector('text=Point at a trace to place an S pick');
     expect(await page.locator('form[aria-label="Label this item"] li').count()).toBe(0);
     const over = page.locator('section[aria-label="Channel XX.KV01.00.HHZ"] .u-over').first();
-    const box = await over.boundingBox();
-    if (!box) throw new Error('no plot area for the vertical channel');
+    const box = await steadyBox(page, over, 'the vertical channel');
     // 70 % across the 90 s window: about 63 s.
     await page.mouse.click(box.x + box.width * 0.7, box.y + box.height / 2);
     await page.locator('form[aria-label="Label this item"] li').first().waitFor();

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { eventDetailSchema } from '@shared/schemas/events';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { checkA11y, launchBrowser, screenshot, steadyBox, type LaunchedBrowser } from '@tests/setup/browser';
 import { seedSyntheticEvent, type SeededEvent } from '@tests/setup/event-fixtures';
 import { createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 import { startTestServer, type TestServer } from '@tests/setup/test-server';
@@ -33,8 +33,7 @@ describe('event workbench (real server, chromium)', () => {
     expect(r, `row of ${streamId} among ${rows.join(', ')}`).toBeGreaterThanOrEqual(0);
     const [from = '', to = ''] = ((await section.locator('.uplot').getAttribute('data-x-range')) ?? '').split(' ');
     const over = section.locator('.u-over');
-    const box = await over.boundingBox();
-    if (!box) throw new Error('no plot area');
+    const box = await steadyBox(page, over, 'the record section');
     const f = (Date.parse(timeIso) - Date.parse(from)) / (Date.parse(to) - Date.parse(from));
     const rowH = box.height / rows.length;
     await page.mouse.move(box.x + f * box.width, box.y + (r + 0.5) * rowH);

@@ -5,7 +5,7 @@ import { queueItemDetailSchema } from '@shared/schemas/queue';
 import { uploadResponseSchema } from '@shared/schemas/upload';
 import { encodeMiniSeed2 } from '@server/formats/mseed2-writer';
 import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
-import { launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { launchBrowser, screenshot, steadyBox, type LaunchedBrowser } from '@tests/setup/browser';
 import { createItem, createPerson, syntheticStreams, type TestPerson } from '@tests/setup/queue-fixtures';
 import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
@@ -53,8 +53,7 @@ describe('review screen (chromium, real server)', () => {
     // A claim or a new view may replace the plot: wait for the one on the page now.
     await over.waitFor();
     await over.scrollIntoViewIfNeeded();
-    const box = await over.boundingBox();
-    if (!box) throw new Error(`no plot area for ${channel}`);
+    const box = await steadyBox(page, over, channel);
     await page.mouse.move(box.x + box.width * fraction, box.y + box.height / 2, { steps: 3 });
   };
 

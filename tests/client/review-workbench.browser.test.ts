@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { queueItemDetailSchema, type QueueItemDetail } from '@shared/schemas/queue';
 import { createStation, upsertChannel, type Actor } from '@server/features/stations/station-registry';
-import { checkA11y, launchBrowser, screenshot, type LaunchedBrowser } from '@tests/setup/browser';
+import { checkA11y, launchBrowser, screenshot, steadyBox, type LaunchedBrowser } from '@tests/setup/browser';
 import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 import { startTestServer, type TestServer } from '@tests/setup/test-server';
 
@@ -36,10 +36,7 @@ describe('review workbench (chromium, real server)', () => {
   const formPicks = async (page: Page): Promise<string[]> => page.locator('form[aria-label="Label this item"] li').allInnerTexts();
   const pointAt = async (page: Page, channel: string, fraction: number) => {
     const over = page.locator(`section[aria-label="Channel ${channel}"] .u-over`).first();
-    // A pick key changes the click phase, which rebuilds the plots: wait for the new one.
-    await over.waitFor();
-    const box = await over.boundingBox();
-    if (!box) throw new Error(`no plot area for ${channel}`);
+    const box = await steadyBox(page, over, channel);
     await page.mouse.move(box.x + box.width * fraction, box.y + box.height / 2, { steps: 3 });
   };
   const claim = async (page: Page, id: number) => {

@@ -2,7 +2,7 @@ import { mkdir, mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { createRequire } from 'node:module';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { chromium, type BrowserContext, type Locator, type Page } from 'playwright-core';
 import { z } from 'zod';
 
 /** Debian's chromium (apt package `chromium`); playwright-core never downloads a browser here. */
@@ -128,4 +128,20 @@ export async function screenshot(page: Page, name: string, fullPage = false): Pr
   const path = join(screenshotDir, `${name}.png`);
   await writeFile(path, await page.screenshot({ fullPage }));
   return path;
+}
+
+/**
+ * The box of a plot area that stays on the page long enough to be measured. A claim, a pick key or
+ * a new view can redraw a plot between Playwright's wait and its measurement (the old element is
+ * gone and boundingBox() answers null): wait for the element again, up to `attempts` times.
+ * @param what names the plot in the error when none stays
+ */
+export async function steadyBox(page: Page, plot: Locator, what: string, attempts = 20): Promise<{ x: number; y: number; width: number; height: number }> {
+  for (let attempt = 0; attempt < attempts; attempt += 1) {
+    await plot.waitFor();
+    const box = await plot.boundingBox();
+    if (box && box.width > 0 && box.height > 0) return box;
+    await page.waitForTimeout(100);
+  }
+  throw new Error(`no plot area for ${what}`);
 }
