@@ -4,6 +4,7 @@ import { XMLParser } from 'fast-xml-parser';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { z } from 'zod';
+import { eventDetailSchema } from '@shared/schemas/events';
 import { queueItemDetailSchema } from '@shared/schemas/queue';
 import { users } from '@server/db/schema/users';
 import { seedDemo } from '@server/db/seed-demo';
@@ -20,8 +21,9 @@ import { startTestServer, type TestServer } from '@tests/setup/test-server';
  * 1. the demo operator uploads two MiniSEED windows (KV01, KV02) on the upload page;
  * 2. the demo analyst finds both in the queue, labels the KV01 one as an earthquake with a P pick
  *    and escalates the KV02 one with a reason;
- * 3. the demo supervisor finds the escalation in the inbox and confirms it, publishes a located
- *    five-station event (synthetic, seeded meanwhile) as final, sets the lone labelled window to
+ * 3. five stations record a local event (synthetic, seeded meanwhile); the analyst reviews it across
+ *    the stations on the event screen, accepts the automatic picks and relocates it;
+ * 4. the demo supervisor finds the escalation in the inbox and confirms it, publishes that event as final, sets the lone labelled window to
  *    `confirmed` on the review page, and downloads the catalogue as QuakeML and as CSV.
  * The checks read the server's state over the API and parse the downloads (QuakeML 1.2 element
  * names per the QuakeML 1.2 BED schema: eventParameters/event/type, pick/time/value).
@@ -75,7 +77,7 @@ function windowFile(code: string, start: Date): Buffer {
   return Buffer.concat(streams.map((st) => Buffer.from(encodeMiniSeed2({ ...st, samples: Int32Array.from(st.samples) }, { encoding: 'steim2', recordLength: 512 }))));
 }
 
-describe('the whole story: operator uploads, analyst labels and escalates, supervisor confirms and exports (browser)', () => {
+describe('the whole story: operator uploads, analyst labels, escalates and relocates an event, supervisor confirms, publishes and exports (browser)', () => {
   beforeAll(async () => {
     server = await startTestServer();
     await seedDemo(server.ctx.database.db, { demoPassword });
@@ -160,7 +162,45 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     const escalated = queueItemDetailSchema.parse(await apiGet(`/api/queue/items/${kv02Item}`));
     expect(escalated.state).toBe('escalated');
 
-    // 3. The supervisor confirms the escalation, reviews the labelled event, and exports.
+    // Meanwhile five stations of a ring recorded a local event, built into a located event (synthetic
+    // windows from tests/setup/event-fixtures.ts: test input, not check values).
+    const db = server.ctx.database.db;
+    const [sup] = await db.select({ id: users.id, email: users.email }).from(users).where(eq(users.email, 'supervisor@kestrel.example'));
+    if (!sup) throw new Error('the demo supervisor is missing');
+    const seeded = await seedSyntheticEvent(db, {
+      codes: ['KS01', 'KS02', 'KS03', 'KS04', 'KS05'],
+      placements: [[20, 10], [95, 18], [170, 14], [240, 22], [310, 16]],
+      truth: { latitudeDeg: 46.262, longitudeDeg: 11.07, depthKm: 6, timeS: Math.floor(startKv01.getTime() / 1000) - 3600 },
+      supervisor: sup,
+    });
+
+
+    // The analyst reviews the event across its five stations on the event screen, accepts the
+    // automatic picks and relocates it: a new preferred origin, with the caution beside it.
+    await page.goto(`${server.url}/events/${seeded.eventId}`);
+    const section = page.getByTestId('record-section').locator('.uplot');
+    // The first traces are computed by the analysis workers on a busy machine: allow for a cold start.
+    await section.waitFor({ timeout: 90_000 });
+    expect(((await section.getAttribute('data-rows')) ?? '').split(' ')).toHaveLength(5);
+    await expect(page.getByTestId('event-caution').textContent()).resolves.toMatch(/procedures and local authorities/);
+    const eventNow = async () => eventDetailSchema.parse(await apiGet(`/api/events/${seeded.eventId}`));
+    const versionAbove = (v: number) => page.waitForFunction((min) => Number(document.querySelector('[data-testid="event-screen"]')?.getAttribute('data-event-version')) > min, v, { timeout: 45_000 });
+    const beforeReview = await eventNow();
+    await page.keyboard.press('Shift+A');
+    await versionAbove(beforeReview.event.version);
+    const accepted = await eventNow();
+    expect(accepted.picks.analyst.length).toBe(accepted.picks.automatic.length);
+    await page.getByRole('button', { name: /Relocate/ }).click();
+    await versionAbove(accepted.event.version);
+    const relocated = await eventNow();
+    expect(relocated.origin?.id).not.toBe(accepted.origin?.id);
+    // The ring's true epicentre (the seeded truth above; test input): the analysts' picks find it within a few km.
+    const km = 111.2 * Math.hypot((relocated.origin?.latitude ?? 0) - 46.262, ((relocated.origin?.longitude ?? 0) - 11.07) * Math.cos((46.262 * Math.PI) / 180));
+    expect(km).toBeLessThan(3);
+    await page.getByTestId('event-screen').evaluate((el) => el.scrollIntoView({ block: 'start' }));
+    await screenshot(page, 'story-3-analyst-event');
+
+    // 4. The supervisor confirms the escalation, reviews the labelled event, and exports.
     await signInAs('supervisor@kestrel.example');
     await page.goto(`${server.url}/inbox`);
     const entry = page.locator('tr', { hasText: reason });
@@ -174,19 +214,7 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     const confirmed = queueItemDetailSchema.parse(await apiGet(`/api/queue/items/${kv02Item}`));
     expect(confirmed.state).toBe('confirmed');
     expect(confirmed.label).toMatchObject({ kind: 'event', eventType: 'earthquake' });
-    await screenshot(page, 'story-3-supervisor-inbox');
-
-    // Meanwhile five stations of a ring recorded a local event, built into a located event (synthetic
-    // windows from tests/setup/event-fixtures.ts: test input, not check values).
-    const db = server.ctx.database.db;
-    const [sup] = await db.select({ id: users.id, email: users.email }).from(users).where(eq(users.email, 'supervisor@kestrel.example'));
-    if (!sup) throw new Error('the demo supervisor is missing');
-    const seeded = await seedSyntheticEvent(db, {
-      codes: ['KS01', 'KS02', 'KS03', 'KS04', 'KS05'],
-      placements: [[20, 10], [95, 18], [170, 14], [240, 22], [310, 16]],
-      truth: { latitudeDeg: 46.262, longitudeDeg: 11.07, depthKm: 6, timeS: Math.floor(startKv01.getTime() / 1000) - 3600 },
-      supervisor: sup,
-    });
+    await screenshot(page, 'story-4-supervisor-inbox');
 
     await page.goto(`${server.url}/review`);
     // The supervisor publishes the event: earthquake, known, final.
@@ -211,7 +239,7 @@ describe('the whole story: operator uploads, analyst labels and escalates, super
     await reviewRow.getByText('by ', { exact: false }).waitFor({ timeout: 20_000 });
     expect(await reviewRow.textContent()).toContain('confirmed');
     expect(await checkA11y(page)).toEqual([]);
-    await screenshot(page, 'story-4-supervisor-review');
+    await screenshot(page, 'story-5-supervisor-review');
 
     const [xmlDownload] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download QuakeML' }).click()]);
     const xml = await readFile(await xmlDownload.path(), 'utf8');

@@ -4,6 +4,7 @@ import { eventEvaluationStatuses } from '@shared/schemas/events';
 import { quakemlEventTypes, typeCertainties } from '@shared/schemas/label';
 import { Button } from '@client/components/ui/button';
 import { Select } from '@client/components/ui/select';
+import { groupChannelNotes } from '@client/features/events/lib/group-notes';
 
 /** A titled block of the side column. */
 export function Panel({ title, children, testId }: { title: string; children: React.ReactNode; testId?: string }) {
@@ -68,7 +69,7 @@ export function OriginPanel({ detail, mayEdit, onRelocate, busy }: { detail: Eve
       ) : null}
       {o && o.notes.length > 0 ? (
         <ul className="mt-1 list-disc pl-5 text-xs text-ink-muted">
-          {o.notes.map((n) => (
+          {groupChannelNotes(o.notes).map((n) => (
             <li key={n}>{n}</li>
           ))}
         </ul>
