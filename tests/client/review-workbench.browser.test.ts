@@ -72,11 +72,10 @@ describe('review workbench (chromium, real server)', () => {
     await page.mouse.move(700, 20);
     await page.evaluate(() => window.scrollTo(0, 0));
     for (const cha of ['HHZ', 'HHN', 'HHE']) {
-      const box = await page.locator(`section[aria-label="Channel XX.KV02.00.${cha}"] .u-over`).boundingBox();
-      expect(box, cha).not.toBeNull();
+      const box = await steadyBox(page, page.locator(`section[aria-label="Channel XX.KV02.00.${cha}"] .u-over`).first(), cha);
       // Whole plot inside the 900 px viewport without scrolling, and taller than the old ~70 px band panels.
-      expect((box?.y ?? 1e9) + (box?.height ?? 0), cha).toBeLessThanOrEqual(900);
-      expect(box?.height ?? 0, cha).toBeGreaterThanOrEqual(85);
+      expect(box.y + box.height, cha).toBeLessThanOrEqual(900);
+      expect(box.height, cha).toBeGreaterThanOrEqual(85);
     }
     // One legend for the stack (not one per panel).
     expect(await page.getByRole('note', { name: 'Legend of the traces' }).count()).toBe(1);
