@@ -369,42 +369,18 @@ function prepareForDeconvolution(counts: Float64Array, sampleRateHz: number, pre
  * @throws RangeError for an empty trace, a rate that is not > 0, a non-finite sample or a bad pre-filter.
  */
 export function woodAndersonFromCounts(counts: Float64Array, sampleRateHz: number, response: InstrumentResponse, preFilter: PreFilter = defaultPreFilter(sampleRateHz)): Float64Array {
-  const { n, size, x } = prepareForDeconvolution(counts, sampleRateHz, preFilter, 'Wood-Anderson from counts');
   const w0 = (2 * Math.PI) / WOOD_ANDERSON.naturalPeriodS;
   const twoHw0 = 2 * WOOD_ANDERSON.damping * w0;
   const g = WOOD_ANDERSON.staticMagnification;
   const power = response.quantity === 'displacement' ? 0 : response.quantity === 'velocity' ? 1 : 2;
-  const half = size / 2;
-  const hr = new Float64Array(half + 1);
-  const hi = new Float64Array(half + 1);
-  for (let k = 0; k <= half; k++) {
-    const f = (k * sampleRateHz) / size;
-    const taper = taperAt(f, preFilter);
-    if (!(taper > 0)) continue;
-    const w = 2 * Math.PI * f;
-    // Wood-Anderson displacement response: −Gω² / ((ω₀² − ω²) + i·2hω₀ω).
+  // Wood-Anderson displacement response: −Gω² / ((ω₀² − ω²) + i·2hω₀ω), in mm (× 1000 mm/m).
+  const woodAnderson = (w: number): [number, number] => {
     const dr = w0 * w0 - w * w;
     const di = twoHw0 * w;
     const den = dr * dr + di * di;
-    const war = (-g * w * w * dr) / den;
-    const wai = (g * w * w * di) / den;
-    // Instrument in counts per SI unit, times (iω)^k.
-    const h = responseAt(response, f);
-    let ir = h.re / response.siPerInputUnit;
-    let ii = h.im / response.siPerInputUnit;
-    for (let p = 0; p < power; p++) {
-      const t = -ii * w;
-      ii = ir * w;
-      ir = t;
-    }
-    const id = ir * ir + ii * ii;
-    if (id > 0 && Number.isFinite(id)) {
-      // (WA / I) · taper · 1000 mm/m
-      hr[k] = (((war * ir + wai * ii) / id) * taper * 1000);
-      hi[k] = (((wai * ir - war * ii) / id) * taper * 1000);
-    }
-  }
-  return filterBySpectrum(x, n, hr, hi);
+    return [(-g * w * w * dr) / den, (g * w * w * di) / den];
+  };
+  return deconvolve(counts, sampleRateHz, response, preFilter, 'Wood-Anderson from counts', power, woodAnderson, 1000);
 }
 
 /** The ground motion a response removal gives. */
@@ -423,46 +399,60 @@ export type RemovalOutput = 'velocity' | 'displacement';
  * @throws RangeError for an empty trace, a rate that is not > 0, a non-finite sample or a bad pre-filter.
  */
 export function groundMotionFromCounts(counts: Float64Array, sampleRateHz: number, response: InstrumentResponse, output: RemovalOutput, preFilter: PreFilter = defaultPreFilter(sampleRateHz)): Float64Array {
-  const { n, size, x } = prepareForDeconvolution(counts, sampleRateHz, preFilter, 'response removal');
   const kIn = response.quantity === 'displacement' ? 0 : response.quantity === 'velocity' ? 1 : 2;
-  const power = kIn - (output === 'displacement' ? 0 : 1);
+  return deconvolve(counts, sampleRateHz, response, preFilter, 'response removal', kIn - (output === 'displacement' ? 0 : 1), () => [1, 0], 1);
+}
+
+/**
+ * The deconvolution both of the above share: the counts prepared (`prepareForDeconvolution`), then
+ * bin by bin T(f) = target(ω) / (H(f)/u · (iω)^power) · pre(f) · scale, ω = 2πf, H the response
+ * (counts per stated unit), u the SI size of its unit; power may be negative (÷ iω, and 0 at ω = 0).
+ * Bins where H is 0 or the pre-filter is 0 are set to 0. Pure.
+ */
+function deconvolve(
+  counts: Float64Array,
+  sampleRateHz: number,
+  response: InstrumentResponse,
+  preFilter: PreFilter,
+  what: string,
+  power: number,
+  target: (w: number) => [number, number],
+  scale: number,
+): Float64Array {
+  const { n, size, x } = prepareForDeconvolution(counts, sampleRateHz, preFilter, what);
   const half = size / 2;
   const hr = new Float64Array(half + 1);
   const hi = new Float64Array(half + 1);
   for (let k = 0; k <= half; k++) {
     const f = (k * sampleRateHz) / size;
     const taper = taperAt(f, preFilter);
-    let fr = 0;
-    let fi = 0;
-    if (taper > 0) {
-      const w = 2 * Math.PI * f;
-      const h = responseAt(response, f);
-      let ir = h.re / response.siPerInputUnit;
-      let ii = h.im / response.siPerInputUnit;
-      // × (iω)^power, power may be negative (a displacement sensor shown as velocity): ÷ iω then.
-      for (let p = 0; p < Math.abs(power); p++) {
-        if (power > 0) {
-          const t = -ii * w;
-          ii = ir * w;
-          ir = t;
-        } else if (w > 0) {
-          const t = ii / w;
-          ii = -ir / w;
-          ir = t;
-        } else {
-          ir = 0;
-          ii = 0;
-        }
-      }
-      const id = ir * ir + ii * ii;
-      if (id > 0 && Number.isFinite(id)) {
-        // taper / I
-        fr = (ir / id) * taper;
-        fi = (-ii / id) * taper;
+    if (!(taper > 0)) continue;
+    const w = 2 * Math.PI * f;
+    const h = responseAt(response, f);
+    let ir = h.re / response.siPerInputUnit;
+    let ii = h.im / response.siPerInputUnit;
+    // × (iω)^power; a negative power (a displacement sensor shown as velocity) divides by iω.
+    for (let p = 0; p < Math.abs(power); p++) {
+      if (power > 0) {
+        const t = -ii * w;
+        ii = ir * w;
+        ir = t;
+      } else if (w > 0) {
+        const t = ii / w;
+        ii = -ir / w;
+        ir = t;
+      } else {
+        ir = 0;
+        ii = 0;
       }
     }
-    hr[k] = fr;
-    hi[k] = fi;
+    const id = ir * ir + ii * ii;
+    if (id > 0 && Number.isFinite(id)) {
+      const [er, ei] = target(w);
+      // (target / I) · taper · scale
+      hr[k] = ((er * ir + ei * ii) / id) * taper * scale;
+      hi[k] = ((ei * ir - er * ii) / id) * taper * scale;
+    }
   }
   return filterBySpectrum(x, n, hr, hi);
 }
