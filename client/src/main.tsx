@@ -10,17 +10,21 @@ import './index.css';
 import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
 import { RouterProvider } from 'react-router';
-import { AppProvider } from './app/provider';
+import { AppProvider, createQueryClient } from './app/provider';
+import { preloadRouteData } from './app/preload-route';
 import { createAppRouter } from './app/router';
 
 const container = document.getElementById('root');
 if (!container) throw new Error('client/index.html has no #root element');
 
+// The first screen's requests start now, beside its code (app/preload-route.ts).
+const queryClient = createQueryClient();
+preloadRouteData(queryClient, window.location);
 const router = createAppRouter();
 
 createRoot(container).render(
   <StrictMode>
-    <AppProvider>
+    <AppProvider queryClient={queryClient}>
       <RouterProvider router={router} />
     </AppProvider>
   </StrictMode>,

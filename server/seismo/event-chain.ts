@@ -10,7 +10,7 @@
  */
 import { greatCircleDistanceKm } from './geodesy';
 import { automaticPicks, type PickerChannel, type PickOnset, type PickPolarity } from './auto-picks';
-import { woodAndersonFromCounts, type ResponseResult } from './instrument-response';
+import { woodAndersonFromCounts, type InstrumentResponse, type ResponseResult } from './instrument-response';
 import { locateEvent, MIN_PHASES, MIN_STATIONS, type LocatedArrival, type LocatedOrigin, type LocateOptions, type LocatePick } from './locate';
 import { distanceNote, networkMagnitude, stationMagnitude, type MinusLogA0, type NetworkMagnitude } from './magnitude';
 import { firstArrivalTimeS, prepareVelocityModel } from './travel-time';
@@ -93,6 +93,12 @@ export interface ChainOptions {
    * first, and the event located again (default 5; analysts' picks are never dropped).
    */
   outlierSigma?: number;
+  /**
+   * The Wood-Anderson trace of one channel (`woodAndersonFromCounts(s.samples, fs, response)` when
+   * absent). A caller that locates the same windows again and again (the event screen: every pick
+   * relocates) passes a memo of it: the trace does not depend on the origin, only its reading window does.
+   */
+  woodAnderson?: (stream: ChainStream, response: InstrumentResponse) => Float64Array;
 }
 
 /** The chain's result. */
@@ -223,7 +229,7 @@ export function magnitudeFor(
   origin: LocatedOrigin,
   streams: readonly ChainStream[],
   stations: readonly ChainStation[],
-  options: Pick<ChainOptions, 'velocityModel' | 'responses' | 'minusLogA0' | 'stationCorrections' | 'amplitudeOverrides'>,
+  options: Pick<ChainOptions, 'velocityModel' | 'responses' | 'minusLogA0' | 'stationCorrections' | 'amplitudeOverrides' | 'woodAnderson'>,
 ): { amplitudes: ChainAmplitude[]; stationMagnitudes: ChainStationMagnitude[]; magnitude: NetworkMagnitude | null; notes: string[] } {
   const notes: string[] = [];
   const model = prepareVelocityModel(options.velocityModel);
@@ -259,7 +265,7 @@ export function magnitudeFor(
         notes.push(`no ML from ${s.id}: the window holds no samples between the predicted P and the end of the S coda`);
         continue;
       }
-      const wa = woodAndersonFromCounts(s.samples, fs, resp.response);
+      const wa = options.woodAnderson ? options.woodAnderson(s, resp.response) : woodAndersonFromCounts(s.samples, fs, resp.response);
       const peak = peakAmplitude(wa, fs, i0, i1);
       if (!(peak.amplitude > 0)) {
         notes.push(`no ML from ${s.id}: zero Wood-Anderson amplitude`);

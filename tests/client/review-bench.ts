@@ -76,7 +76,8 @@ if (!existsSync(join(clientDistDir, 'index.html'))) {
 const base = resolve('.data');
 mkdirSync(base, { recursive: true });
 const dataDir = mkdtempSync(join(base, 'bench-review-db-'));
-const maria = await startPrivateMariaDb({ dataDir, port: await freePort(), log: () => {} });
+// SEISIFT_DB_PORT / PORT when set (a shared machine hands out ports), else any free one.
+const maria = await startPrivateMariaDb({ dataDir, port: Number(process.env.SEISIFT_DB_PORT) || (await freePort()), log: () => {} });
 try {
   process.env.SEISIFT_TEST_DB_ADMIN_URL = await provisionDatabase(maria, { database: 'seisift_test', user: 'seisift_test', password: 'seisift-bench-pass', grantPattern: 'seisift\\_test%' });
   const ctx = await createTestContext();
@@ -102,7 +103,7 @@ try {
   });
   console.log(`bench event ${seeded.eventId}: 10 stations × 3 channels × 120 s at 100 sps, built in ${((performance.now() - t) / 1000).toFixed(1)} s`);
   const ana = await createPerson(db, { roles: ['analyst'], displayName: 'Bench Analyst' });
-  const running = await startServer(ctx, { host: '127.0.0.1', port: 0 });
+  const running = await startServer(ctx, { host: '127.0.0.1', port: Number(process.env.PORT) || 0 });
   const url = running.url;
   const browser = await launchBrowser({ width: 1440, height: 900, colorScheme: 'dark' });
   try {

@@ -22,11 +22,13 @@ export type AppProviderProps = {
    * through the sign-in feature.
    */
   session?: SessionValue;
+  /** The query client (main.tsx makes it first, to start the first screen's requests early); a new one when left out. */
+  queryClient?: QueryClient;
 };
 
 /** Every app-wide provider, outermost first: theme, data, session, toasts. */
-export function AppProvider({ children, session }: AppProviderProps) {
-  const [queryClient] = useState(createQueryClient);
+export function AppProvider({ children, session, queryClient: given }: AppProviderProps) {
+  const [queryClient] = useState(() => given ?? createQueryClient());
   return (
     <ThemeProvider>
       <QueryClientProvider client={queryClient}>

@@ -3,7 +3,6 @@ import { z } from 'zod';
 import type { EventDetail, EventSummary } from '@shared/schemas/events';
 import { EVENT_CAUTION } from '@shared/schemas/events';
 import type { Database, DbOrTx } from '@server/db/client';
-import { decodeStoredSamples } from '@server/db/samples-codec';
 import { eventAmplitudes, eventArrivals, eventMagnitudes, eventMembers, eventOrigins, eventPicks, eventStationMagnitudes, seismicEvents } from '@server/db/schema/events';
 import { queueItems } from '@server/db/schema/queue-items';
 import { channels, stations } from '@server/db/schema/stations';
@@ -16,6 +15,7 @@ import { automaticPicksForStreams, solveEvent, type ChainAmplitude, type ChainPi
 import { responseFromRegistry, type ResponseResult } from '@server/seismo/instrument-response';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import { networkSettings } from './event-settings';
+import { decodedWindows, memoWoodAnderson } from './window-cache';
 
 /**
  * Events (issue 17): built from candidate-event groups, holding their members' windows, the analysts'
@@ -52,14 +52,14 @@ async function activeMembers(db: DbOrTx, eventId: number) {
 
 type Member = Awaited<ReturnType<typeof activeMembers>>[number];
 
-/** The decoded channels of the members' windows. */
+/** The decoded channels of the members' windows (kept in memory between relocations: window-cache.ts). */
 async function memberStreams(db: DbOrTx, members: readonly Member[]): Promise<Array<ChainStream & { itemId: number }>> {
   if (members.length === 0) return [];
-  const rows = await db.select().from(windowChannels).where(inArray(windowChannels.windowId, members.map((m) => m.windowId)));
+  const rows = await decodedWindows(db, members.map((m) => m.windowId));
   return rows.map((r) => {
     const m = members.find((x) => x.windowId === r.windowId) as Member;
     const [network = '', station = '', , channel = ''] = r.streamId.split('.');
-    return { itemId: m.itemId, id: r.streamId, network, station, channel, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, samples: decodeStoredSamples(r.samples, r.sampleCount) };
+    return { itemId: m.itemId, id: r.streamId, network, station, channel, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, samples: r.samples };
   });
 }
 
@@ -155,6 +155,7 @@ async function relocateLocked(db: DbOrTx, eventId: number, actor: EventActor, no
       minusLogA0: settings.minusLogA0,
       stationCorrections: settings.stationCorrections,
       amplitudeOverrides: overrides,
+      woodAnderson: memoWoodAnderson,
     });
   } catch (err) {
     throw unprocessable(`Event ${eventId} cannot be located: ${err instanceof Error ? err.message : String(err)}`);

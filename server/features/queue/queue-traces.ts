@@ -146,9 +146,25 @@ export async function itemWindowInScope(db: Database, itemId: number, scope: 'al
  * @throws AppError 404 when the item is missing or out of scope; 400 when `from` is outside the window
  */
 export async function loadTracesInput(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<TracesInput> {
+  return (await planTraces(db, itemId, q, scope)).load();
+}
+
+/**
+ * What the traces of item `itemId` depend on, read without the samples: `key` names them all (the
+ * window and its channels, the station's profile, the sensitivities and responses, the query), so a
+ * cache of computed traces under it can never serve an answer the inputs no longer give; `load`
+ * then reads the sample blobs (the costly read) and hands back the whole input.
+ * @param scope station ids the viewer may see ('all' or assigned ids)
+ * @throws AppError 404 when the item is missing or out of scope; 400 when `from` is outside the window
+ */
+export async function planTraces(db: Database, itemId: number, q: TracesQuery, scope: 'all' | readonly number[]): Promise<{ key: string; load: () => Promise<TracesInput> }> {
   const item = await itemWindowInScope(db, itemId, scope);
-  const rows = await db.select().from(windowChannels).where(eq(windowChannels.windowId, item.windowId)).orderBy(asc(windowChannels.streamId));
-  if (rows.length === 0) throw notFound(`Samples of queue item ${itemId}`);
+  const meta = await db
+    .select({ streamId: windowChannels.streamId, sampleRateHz: windowChannels.sampleRateHz, startTimeUs: windowChannels.startTimeUs, sampleCount: windowChannels.sampleCount })
+    .from(windowChannels)
+    .where(eq(windowChannels.windowId, item.windowId))
+    .orderBy(asc(windowChannels.streamId));
+  if (meta.length === 0) throw notFound(`Samples of queue item ${itemId}`);
   const registered = await db
     .select({
       location: channels.location,
@@ -160,13 +176,13 @@ export async function loadTracesInput(db: Database, itemId: number, q: TracesQue
     })
     .from(channels)
     .where(and(eq(channels.stationId, item.stationId)));
-  const durationS = windowDurationS(rows);
+  const durationS = windowDurationS(meta);
   const from = q.from ?? 0;
   if (from < 0 || from >= durationS) throw badRequest(`from: ${from} s is outside the window (0 to ${durationS.toFixed(3)} s)`, { issues: [{ path: 'from', message: 'outside the window' }] });
   const profile = stationProfile(item.profile);
   const sensitivities: Record<string, number> = {};
   const responses: Record<string, ResponseResult> = {};
-  for (const r of rows) {
+  for (const r of meta) {
     checkBands(r.streamId, r.sampleRateHz, profile);
     const [, , loc = '', cha = ''] = r.streamId.split('.');
     const ch = registered.find((c) => c.location === loc && c.code === cha);
@@ -174,13 +190,27 @@ export async function loadTracesInput(db: Database, itemId: number, q: TracesQue
     if (s !== null) sensitivities[r.streamId] = typeof s === 'number' ? s : s.sensitivity;
     responses[r.streamId] = registryResponse(r.streamId, ch);
   }
-  return {
-    channels: rows.map((r) => ({ streamId: r.streamId, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, sampleCount: r.sampleCount, samples: r.samples })),
-    profile: item.profile,
-    sensitivities,
-    responses,
-    query: q,
+  const key = JSON.stringify([item.windowId, meta, item.profile ?? null, sensitivities, responses, q]);
+  const load = async (): Promise<TracesInput> => {
+    const rows = await db
+      .select({ streamId: windowChannels.streamId, samples: windowChannels.samples })
+      .from(windowChannels)
+      .where(eq(windowChannels.windowId, item.windowId))
+      .orderBy(asc(windowChannels.streamId));
+    const blobs = new Map(rows.map((r) => [r.streamId, r.samples]));
+    return {
+      channels: meta.map((m) => {
+        const samples = blobs.get(m.streamId);
+        if (!samples) throw notFound(`Samples of ${m.streamId} in queue item ${itemId}`);
+        return { ...m, samples };
+      }),
+      profile: item.profile,
+      sensitivities,
+      responses,
+      query: q,
+    };
   };
+  return { key, load };
 }
 
 /**

@@ -10,7 +10,8 @@ import { authorize, authorizedStations, requirePermission } from '@server/polici
 import { getItemDetail } from './queue-detail';
 import { listQueue } from './queue-query';
 import { itemStationId } from './queue-rows';
-import { loadTracesInput } from './queue-traces';
+import { planTraces } from './queue-traces';
+import { createTracesCache } from './traces-cache';
 import {
   claimItem,
   dismissItem,
@@ -37,6 +38,8 @@ export function queueRouter(ctx: AppContext): Router {
   const db = ctx.database.db;
   const deps = (req: Request): QueueServiceDeps => ({ db, notify: () => ctx.hub.notify(), ipAddress: clientAddress(req) });
   const person = (u: AuthUser) => ({ id: u.id, displayName: u.displayName, email: u.email });
+  /** Computed display traces, at most 48 MB (a 120 s 3-channel window's answer is a few hundred kB). */
+  const tracesCache = createTracesCache(48 * 1024 * 1024);
 
   /** Loads the item's station and checks the action on it (404 when the item does not exist). */
   const authorizeOnItem = async (user: AuthUser, action: Parameters<typeof authorize>[1], id: number) => {
@@ -65,8 +68,10 @@ export function queueRouter(ctx: AppContext): Router {
     const q = parseInput(tracesQuerySchema, req.query, 'query');
     // Read here, computed and serialised in a worker: a window of an hour at 200 sps is tens of
     // megabytes of filtering, which must not hold the event loop (docs/RELIABILITY.md, bench:traces).
-    const input = await loadTracesInput(db, id, q, authorizedStations(user, 'queue.view'));
-    const json = await ctx.analysisPool.traces(input);
+    // The answer is kept (traces-cache.ts) under a key naming every input: the next item's prefetch,
+    // the screen and a return to the item compute it once.
+    const plan = await planTraces(db, id, q, authorizedStations(user, 'queue.view'));
+    const json = await tracesCache.get(plan.key, async () => ctx.analysisPool.traces(await plan.load()));
     res.type('application/json').send(Buffer.from(json.buffer, json.byteOffset, json.byteLength));
   });
 

@@ -1,5 +1,5 @@
 import { useMutation, useQueryClient, type QueryClient } from '@tanstack/react-query';
-import { queueRowSchema, type QueueRow } from '@shared/schemas/queue';
+import { queueRowSchema, type QueueItemDetail, type QueueRow } from '@shared/schemas/queue';
 import type { EventLabelInput, NoiseReason } from '@shared/schemas/label';
 import { apiRequest, noContent } from '@client/lib/api-client';
 import { patchRow } from './live-patch';
@@ -35,15 +35,25 @@ export function useItemAction() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: postItemAction,
-    onSuccess: (row) => applyRow(qc, row),
+    onSuccess: (row, input) => applyRow(qc, row, input.action === 'claim' || input.action === 'release'),
     onError: (_err, input) => {
       void qc.invalidateQueries({ queryKey: queryKeys.queue.item(input.id) });
     },
   });
 }
 
-/** Applies a row the server returned to the cache (lists and the item detail). */
-export function applyRow(qc: QueryClient, row: QueueRow): void {
+/**
+ * Applies a row the server returned to the cache (lists and the item detail). A claim or release
+ * changes nothing but what the row carries (state, holder, version), so an open item is patched
+ * from it in place; other actions (a label, a dismissal) change more, so the item is refetched.
+ * @param rowSaysAll whether the row holds the whole change (claim, release)
+ */
+export function applyRow(qc: QueryClient, row: QueueRow, rowSaysAll = false): void {
   patchRow(qc, row, 'updated');
+  const open = qc.getQueryData<QueueItemDetail>(queryKeys.queue.item(row.id));
+  if (rowSaysAll && open) {
+    if (open.version < row.version) qc.setQueryData<QueueItemDetail>(queryKeys.queue.item(row.id), { ...open, ...row });
+    return;
+  }
   void qc.invalidateQueries({ queryKey: queryKeys.queue.item(row.id) });
 }

@@ -2,6 +2,7 @@ import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient }
 import { eventDetailSchema, type EventDetail } from '@shared/schemas/events';
 import { eventGeometrySchema } from '@shared/schemas/event-geometry';
 import { eventTracesSchema } from '@shared/schemas/event-traces';
+import { useEffect, useRef } from 'react';
 import { apiRequest } from '@client/lib/api-client';
 
 /** Query keys of the event screen (one factory; every event key starts with `['events']`). */
@@ -9,22 +10,50 @@ export const eventKeys = {
   all: ['events'] as const,
   detail: (id: number) => ['events', 'detail', id] as const,
   geometry: (id: number) => ['events', 'geometry', id] as const,
-  traces: (id: number, members: string, points: number) => ['events', 'traces', id, members, points] as const,
+  traces: (id: number, points: number) => ['events', 'traces', id, points] as const,
 };
 
-/**
- * Every member window's pre-processed traces in one request (GET /api/events/:id/traces), kept
- * while the members stay the same (`members`: their item ids, the key): picks and relocations
- * never fetch the waveforms again.
- */
-export function useEventTraces(id: number, members: readonly number[], points: number) {
-  const key = members.join(',');
-  return useQuery({
-    queryKey: eventKeys.traces(id, key, points),
+/** Points per trace asked of the server (min/max buckets): about two per screen pixel of a wide plot. */
+export const EVENT_TRACE_POINTS = 2400;
+
+/** Query options of every member window's pre-processed traces in one request (GET /api/events/:id/traces). */
+export function eventTracesOptions(id: number, points: number) {
+  return queryOptions({
+    queryKey: eventKeys.traces(id, points),
     queryFn: ({ signal }) => apiRequest(eventTracesSchema, `/api/events/${id}/traces`, { query: { points }, signal }),
     staleTime: Infinity,
     placeholderData: keepPreviousData,
   });
+}
+
+/**
+ * The event's traces, kept while the members stay the same: picks and relocations never fetch the
+ * waveforms again. The request does not wait for the event itself (the screen starts it beside the
+ * event's request, `usePrefetchEventTraces`); once `members` (the active members' item ids, from
+ * the event) differ from the members the traces came with, they are fetched again.
+ * @param members the active members' item ids, or null while the event is loading
+ */
+export function useEventTraces(id: number, members: readonly number[] | null, points: number) {
+  const qc = useQueryClient();
+  const q = useQuery(eventTracesOptions(id, points));
+  const have = q.data ? q.data.members.map((m) => m.itemId).sort((a, b) => a - b).join(',') : null;
+  const want = members ? [...members].sort((a, b) => a - b).join(',') : null;
+  // Once per change of the members (never a loop, should the two lists never agree).
+  const asked = useRef<string | null>(null);
+  useEffect(() => {
+    if (have === null || want === null || have === want || q.isFetching || asked.current === want) return;
+    asked.current = want;
+    void qc.invalidateQueries({ queryKey: eventKeys.traces(id, points) });
+  }, [qc, id, points, have, want, q.isFetching]);
+  return q;
+}
+
+/** Starts the event's traces request at once (before the event's own answer names its members). */
+export function usePrefetchEventTraces(id: number, points: number): void {
+  const qc = useQueryClient();
+  useEffect(() => {
+    void qc.prefetchQuery(eventTracesOptions(id, points));
+  }, [qc, id, points]);
 }
 
 /** Query options of one event (origin, arrivals, picks, amplitudes, magnitudes). */

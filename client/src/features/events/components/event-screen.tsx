@@ -12,7 +12,7 @@ import { Kbd } from '@client/components/ui/kbd';
 import { KeyHelp, isTypingTarget, type KeyBinding } from '@client/components/ui/key-help';
 import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
-import { useEvent, useEventChange, useEventGeometry, useEventTraces, type EventChange, type PickInput } from '@client/features/events/api/event-api';
+import { useEvent, useEventChange, useEventGeometry, useEventTraces, usePrefetchEventTraces, EVENT_TRACE_POINTS, type EventChange, type PickInput } from '@client/features/events/api/event-api';
 import {
   componentOf,
   defaultUncertaintyS,
@@ -31,9 +31,6 @@ import {
 import { RecordSection, type DrawnPick, type RecordCursor, type RecordRow, type StationPrediction } from './record-section';
 import { EventMap } from './event-map';
 import { ArrivalsPanel, EventLabelPanel, MagnitudePanel, OriginPanel, Panel, SuggestionsPanel } from './event-panels';
-
-/** Points per trace asked of the server (min/max buckets): about two per screen pixel of a wide plot. */
-const TRACE_POINTS = 2400;
 
 /** The keys of the event screen (shown by "?"). */
 export const eventKeyBindings: readonly KeyBinding[] = [
@@ -77,6 +74,8 @@ export type EventScreenProps = { eventId: number };
  */
 export function EventScreen({ eventId }: EventScreenProps) {
   const event = useEvent(eventId);
+  // The traces are the heavy answer: asked for beside the event, not after it.
+  usePrefetchEventTraces(eventId, EVENT_TRACE_POINTS);
   const detail = event.data;
   if (event.isPending) return <Loading label="Loading the event…" className="m-6" />;
   if (event.isError || !detail) {
@@ -101,7 +100,7 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
   const change = useEventChange(eventId);
   const members = useMemo(() => detail.members.filter((m) => !m.removed), [detail.members]);
   const memberIds = useMemo(() => members.map((m) => m.itemId).sort((a, b) => a - b), [members]);
-  const traces = useEventTraces(eventId, memberIds, TRACE_POINTS);
+  const traces = useEventTraces(eventId, memberIds, EVENT_TRACE_POINTS);
   const loaded = useMemo(() => (traces.data ? toTraces(traces.data) : []), [traces.data]);
 
   const [components, setComponents] = useState<ComponentMode>('Z');

@@ -1,25 +1,18 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useEffect } from 'react';
-import { tracesResponseSchema } from '@shared/schemas/queue';
-import { itemOptions } from '@client/features/review/api/get-item';
+import { itemOptions, tracesOptions } from '@client/features/review/api/get-item';
 import { itemMatchesOptions } from '@client/features/review/api/get-matches';
-import { apiRequest } from '@client/lib/api-client';
-import { queryKeys } from '@client/lib/query-keys';
 
 /** Points per curve of the review screen's whole-window traces (review-screen.tsx asks for these). */
 export const REVIEW_TRACE_POINTS = 1600;
 
 /**
  * Query options of an item's whole-window display traces, as the review screen first asks for them
- * (`useTraces(id, null, null, REVIEW_TRACE_POINTS)`: same key, same request), so a prefetch fills the
- * very cache entry the screen reads.
+ * (`useTraces(id, null, null, REVIEW_TRACE_POINTS)`, engine view): built by the same `tracesOptions`,
+ * so a prefetch fills the very cache entry the screen reads.
  */
 export function wholeWindowTracesOptions(id: number) {
-  return {
-    queryKey: queryKeys.queue.traces(id, null, null, REVIEW_TRACE_POINTS),
-    queryFn: ({ signal }: { signal: AbortSignal }) => apiRequest(tracesResponseSchema, `/api/queue/items/${id}/traces?points=${REVIEW_TRACE_POINTS}`, { signal }),
-    staleTime: Infinity,
-  } as const;
+  return tracesOptions(id, null, null, REVIEW_TRACE_POINTS);
 }
 
 /**

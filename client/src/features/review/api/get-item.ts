@@ -19,11 +19,12 @@ export function useItem(id: number) {
 export type DisplayRequest = { units: DisplayUnits; band: readonly [number, number] | null; phase: 'causal' | 'zero-phase' };
 
 /**
- * Display traces over [from, to) s (the whole window when null), about `points` points per curve;
- * keeps the previous range on screen while a zoom loads. With `display`, each channel also carries
- * the analyst's display trace (units and band) or why it was refused.
+ * Query options of an item's display traces over [from, to) s (the whole window when null), about
+ * `points` points per curve; with `display`, each channel also carries the analyst's display trace
+ * (units and band) or why it was refused. One function for the screen (`useTraces`) and the
+ * prefetch of the next item (use-prefetch-item.ts), so both use the very same key and request.
  */
-export function useTraces(id: number, from: number | null, to: number | null, points: number, display: DisplayRequest | null = null) {
+export function tracesOptions(id: number, from: number | null, to: number | null, points: number, display: DisplayRequest | null = null) {
   const qs = new URLSearchParams({ points: String(points) });
   if (from !== null) qs.set('from', from.toFixed(3));
   if (to !== null) qs.set('to', to.toFixed(3));
@@ -35,12 +36,18 @@ export function useTraces(id: number, from: number | null, to: number | null, po
       qs.set('fmax', String(display.band[1]));
     }
   }
-  return useQuery({
-    queryKey: [...queryKeys.queue.traces(id, from, to, points), display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'],
+  return queryOptions({
+    queryKey: [...queryKeys.queue.traces(id, from, to, points), display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'] as const,
     queryFn: ({ signal }) => apiRequest(tracesResponseSchema, `/api/queue/items/${id}/traces?${qs.toString()}`, { signal }),
     staleTime: Infinity,
-    placeholderData: keepPreviousData,
   });
+}
+
+/**
+ * Display traces (`tracesOptions`); keeps the previous range on screen while a zoom loads.
+ */
+export function useTraces(id: number, from: number | null, to: number | null, points: number, display: DisplayRequest | null = null) {
+  return useQuery({ ...tracesOptions(id, from, to, points, display), placeholderData: keepPreviousData });
 }
 
 /**

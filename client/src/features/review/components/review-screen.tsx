@@ -15,7 +15,7 @@ import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
 import { analysisViewSchema, useItem, useTraces } from '@client/features/review/api/get-item';
 import { useItemMatches } from '@client/features/review/api/get-matches';
-import { usePrefetchQueueItem } from '@client/features/queue/hooks/use-prefetch-item';
+import { REVIEW_TRACE_POINTS, usePrefetchQueueItem } from '@client/features/queue/hooks/use-prefetch-item';
 import { useQueueNeighbours } from '@client/features/review/hooks/use-queue-neighbours';
 import { useReviewActions } from '@client/features/review/hooks/use-review-actions';
 import { useReviewDraft } from '@client/features/review/hooks/use-review-draft';
@@ -84,7 +84,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const [gain, setGain] = useState(1);
   const [normalise, setNormalise] = useState(true);
   const [sgIndex, setSgIndex] = useState(0);
-  const traces = useTraces(itemId, tv.view?.from ?? null, tv.view?.to ?? null, 1600, traceView === 'filter' ? filter : null);
+  const traces = useTraces(itemId, tv.view?.from ?? null, tv.view?.to ?? null, REVIEW_TRACE_POINTS, traceView === 'filter' ? filter : null);
   usePrefetchQueueItem(neighbour(1)?.id);
   const leadTraces = traces.data?.channels.find((c) => c.streamId.endsWith('Z')) ?? traces.data?.channels[0];
   const orderedTraces = useMemo(() => sortChannels(traces.data?.channels ?? [], (c) => c.streamId), [traces.data?.channels]);
