@@ -40,7 +40,8 @@ import {
   type EventDeps,
 } from './event-service';
 import { eventGeometry } from './event-geometry';
-import { eventTraces } from './event-traces';
+import { createTracesCache } from '@server/http/traces-cache';
+import { planEventTraces } from './event-traces';
 import { networkSettings, saveVelocityModel, velocityModelView } from './event-settings';
 
 const id = (what: string) => z.string().regex(/^\d{1,15}$/, `must be ${what} (a whole number)`).transform(Number);
@@ -74,6 +75,8 @@ export const versionQuery = z.object({ eventVersion: z.coerce.number().int().pos
 export function eventsRouter(ctx: AppContext): Router {
   const router = Router();
   const db = ctx.database.db;
+  /** The record sections' traces, at most 32 MB (a 10-station event's answer is about 1 MB). */
+  const tracesCache = createTracesCache(32 * 1024 * 1024);
   const deps: EventDeps = { db, notify: () => ctx.hub.notify() };
   const actor = (req: Request) => {
     const u = currentUser(req);
@@ -126,9 +129,12 @@ export function eventsRouter(ctx: AppContext): Router {
   router.get('/:id/traces', requirePermission('event.view'), async (req, res) => {
     const { id } = parseInput(eventParams, req.params, 'params');
     const q = parseInput(eventTracesQuerySchema, req.query, 'query');
-    const t = await eventTraces(db, id, q.points, authorizedStations(currentUser(req), 'event.view'));
-    if (!t) throw notFound(`Event ${id}`);
-    res.json(t);
+    // Kept (traces-cache.ts) under a key naming every input: opening the event again, or a second
+    // analyst on it, is served without decoding and filtering its windows again.
+    const plan = await planEventTraces(db, id, q.points, authorizedStations(currentUser(req), 'event.view'));
+    if (!plan) throw notFound(`Event ${id}`);
+    const json = await tracesCache.get(plan.key, async () => Buffer.from(JSON.stringify(await plan.compute())));
+    res.type('application/json').send(Buffer.from(json.buffer, json.byteOffset, json.byteLength));
   });
   router.get('/:id/geometry', requirePermission('event.view'), async (req, res) => {
     const { id } = parseInput(eventParams, req.params, 'params');

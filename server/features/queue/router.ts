@@ -11,7 +11,7 @@ import { getItemDetail } from './queue-detail';
 import { listQueue } from './queue-query';
 import { itemStationId } from './queue-rows';
 import { planTraces } from './queue-traces';
-import { createTracesCache } from './traces-cache';
+import { createTracesCache } from '@server/http/traces-cache';
 import {
   claimItem,
   dismissItem,

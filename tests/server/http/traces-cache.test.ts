@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { createTracesCache } from '@server/features/queue/traces-cache';
+import { createTracesCache } from '@server/http/traces-cache';
 
 const bytes = (n: number, fill = 1): Uint8Array => new Uint8Array(n).fill(fill);
 
