@@ -36,9 +36,11 @@ export class ListenError extends Error {
 
 /**
  * Starts the HTTP server for `ctx` on host:port (port 0 picks a free one), with the live-update
- * hub on its upgrades and the one scheduler of periodic jobs (server/jobs/app-jobs.ts).
+ * hub on its upgrades and the one scheduler of periodic jobs (server/jobs/app-jobs.ts). With
+ * `warmAnalysis` the analysis workers start at once (`npm start` and the instances ask for it; tests
+ * that never draw traces leave it off).
  */
-export async function startServer(ctx: AppContext, opts: { host: string; port: number; serveClient?: boolean }): Promise<RunningServer> {
+export async function startServer(ctx: AppContext, opts: { host: string; port: number; serveClient?: boolean; warmAnalysis?: boolean }): Promise<RunningServer> {
   const app = createApp(ctx, { serveClient: opts.serveClient });
   const server = createServer(app);
   ctx.hub.attach(server);
@@ -53,6 +55,8 @@ export async function startServer(ctx: AppContext, opts: { host: string; port: n
     });
     server.listen(opts.port, opts.host, () => resolve());
   });
+  // A serving instance draws traces: its analysis workers start now, not with the first request.
+  if (opts.warmAnalysis) ctx.analysisPool.warm?.();
   const { port } = server.address() as AddressInfo;
   const url = `http://${opts.host}:${port}`;
   return {

@@ -97,7 +97,7 @@ try {
   let url: string;
   let clusterLines: string[] = [];
   if (mode.mode === 'single') {
-    const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
+    const running = await startServer(ctx, { host: env.HOST, port: env.PORT, warmAnalysis: true });
     cleanups.push(() => running.close());
     url = running.url;
   } else {

@@ -23,7 +23,7 @@ try {
   // The periodic jobs' first turn is taken at start: give Redis a moment to be there for it.
   if (!(await cluster.ready(5000))) logger.warn('Redis is not reachable yet; uploads answer 503 until it is');
   const ctx = createAppContext({ env, database, mailer: mail.mailer, logger, cluster });
-  const running = await startServer(ctx, { host: env.HOST, port: env.PORT });
+  const running = await startServer(ctx, { host: env.HOST, port: env.PORT, warmAnalysis: true });
   console.log(`seisift-instance: ${cluster.instanceId} ready on ${running.url}`);
   let stopping = false;
   const stop = async () => {

@@ -44,6 +44,11 @@ export interface AnalysisPool {
   overlays(input: OverlayInput): Promise<Array<ItemMatch['overlay']>>;
   /** Number of worker threads. */
   readonly threads: number;
+  /**
+   * Starts the workers now instead of with the first task (a lazy pool, `createLazyAnalysisPool`):
+   * a worker under tsx takes seconds to load, which the first trace request must not wait for.
+   */
+  warm?(): void;
   /** Stop the workers (pending tasks are rejected). */
   close(): Promise<void>;
 }
@@ -141,6 +146,7 @@ export function createLazyAnalysisPool(threads: number): AnalysisPool {
     decode: (bytes, opts, limits) => open().decode(bytes, opts, limits),
     traces: (input) => open().traces(input),
     overlays: (input) => open().overlays(input),
+    warm: () => void open(),
     async close() {
       const started = pool;
       pool = null;

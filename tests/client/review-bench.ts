@@ -103,7 +103,8 @@ try {
   });
   console.log(`bench event ${seeded.eventId}: 10 stations × 3 channels × 120 s at 100 sps, built in ${((performance.now() - t) / 1000).toFixed(1)} s`);
   const ana = await createPerson(db, { roles: ['analyst'], displayName: 'Bench Analyst' });
-  const running = await startServer(ctx, { host: '127.0.0.1', port: Number(process.env.PORT) || 0 });
+  // As `npm start` does: the analysis workers start with the server, not with the first trace request.
+  const running = await startServer(ctx, { host: '127.0.0.1', port: Number(process.env.PORT) || 0, warmAnalysis: true });
   const url = running.url;
   const browser = await launchBrowser({ width: 1440, height: 900, colorScheme: 'dark' });
   try {
