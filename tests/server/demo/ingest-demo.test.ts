@@ -199,6 +199,8 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
       // Every source is an event (from its candidate group, or assembled by the demo analyst).
       const ev = events.find((e) => Math.abs(Date.parse(e.originTime ?? e.firstArrival) - t) < 60_000);
       expect(ev, `${src.id} is an event`).toBeDefined();
+      // And one event only, however its candidate group grew while the windows came in.
+      expect(events.filter((e) => Math.abs(Date.parse(e.originTime ?? e.firstArrival) - t) < 60_000).map((e) => e.id), `${src.id} is one event`).toHaveLength(1);
       if (!ev) continue;
       if (src.type !== 'earthquake') {
         // The quarry blasts are recorded by three stations on one side with traffic at KV03: they are
