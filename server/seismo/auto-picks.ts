@@ -222,8 +222,9 @@ function onsetSnr(y: Float64Array, i: number, fs: number): number {
  * the AIC (Maeda 1985) over [from − 1 s, to + 0.5 s]; an onset outside [from, to] is not taken. On the
  * profile's band the onset is then refined on the unfiltered trace as {@link automaticPicks} does; on
  * the others it stays on the band (their causal group delay is a few hundredths of a second, under the
- * 0.05 s floor of σ). Of the bands, the onset with the highest {@link onsetSnr}; none below `minSnr`
- * (default 2, our own). σ from the Akaike weights, floored and capped as for automaticPicks; then the
+ * 0.05 s floor of σ). Of the bands whose onset stands out at least `minSnr` times above the noise
+ * before it ({@link onsetSnr}; default 2, our own), the sharpest onset (smallest σ of the Akaike
+ * weights: the best-defined change, and the smallest uncertainty to report). σ from the Akaike weights, floored and capped as for automaticPicks; then the
  * S after it as automaticPicks reads it. `incumbentUs` (an earlier P of the station) gets its SNR on
  * the chosen band too, for the caller to compare.
  * Null when nothing in the span clears `minSnr`, or there is no vertical or usable band.
@@ -254,7 +255,8 @@ export function automaticPicksInWindow(
   if (top >= 1.5 * band.fmax) bands.push([band.fmin, top], [band.fmax, top]);
   const from = Math.max(chain.startIndex, lo - Math.round(fs));
   const to = Math.min(n, hi + Math.round(0.5 * fs) + 1);
-  let best: { index: number; sigmaSamples: number; snr: number; y: Float64Array; edges: [number, number] } | null = null;
+  const minSnr = options.minSnr ?? 2;
+  let best: { index: number; sigmaSamples: number; sharpness: number; snr: number; y: Float64Array; edges: [number, number] } | null = null;
   for (const edges of bands) {
     const y = edges === bands[0] ? chain.highY : sosfiltInto(design(profile.bands.order, edges, 'bandpass', fs), chain.base, new Float64Array(n));
     const coarse = aicOnsetSpread(y, from, to);
@@ -265,9 +267,11 @@ export function automaticPicksInWindow(
       if (fine && fine.index <= coarse.index && fine.index >= lo) onset = fine;
     }
     const snr = onsetSnr(y, onset.index, fs);
-    if (!best || snr > best.snr) best = { index: onset.index, sigmaSamples: onset.sigmaSamples, snr, y, edges };
+    if (snr < minSnr) continue;
+    // Bands compared by the spread of their own AIC over the same span (the refinement's short span is not comparable).
+    if (!best || coarse.sigmaSamples < best.sharpness) best = { index: onset.index, sigmaSamples: onset.sigmaSamples, sharpness: coarse.sigmaSamples, snr, y, edges };
   }
-  if (!best || best.snr < (options.minSnr ?? 2)) return null;
+  if (!best) return null;
   const sigma = Math.max(best.sigmaSamples / fs, options.minPUncertaintyS ?? Math.max(2 / fs, 0.05));
   if (sigma > (options.maxUncertaintyS ?? 1)) return null;
   const edgeText = (x: number): string => (Number.isInteger(x) ? String(x) : x.toFixed(1));
