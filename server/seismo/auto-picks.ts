@@ -184,6 +184,18 @@ export function automaticPicks(channels: readonly PickerChannel[], profile: Pick
   return picks;
 }
 
+/**
+ * The S of a station whose P is known, sought only inside a predicted span [fromUs, toUs] (µs since
+ * the epoch; e.g. from the origin time the other stations' S − P times give, event-chain.ts): on each
+ * horizontal, as {@link automaticPicks} reads an S, with the largest horizontal motion and the AIC
+ * onset taken inside the span only, so a later traffic burst or surface wave cannot take the pick.
+ * Null when nothing there clears the onset test. Pure.
+ */
+export function automaticSPickInWindow(channels: readonly PickerChannel[], pTimeUs: number, profile: Pick<ProcessingProfile, 'staLta' | 'bandReject' | 'bands'>, window: { fromUs: number; toUs: number }, options: PickerOptions = {}): AutomaticPick | null {
+  if (!(window.toUs >= window.fromUs) || window.toUs <= pTimeUs) return null;
+  return sPickAfter(channels, pTimeUs, profile, options, window);
+}
+
 /** Highest band edge the window picker reads, Hz (our own choice: above it local P energy is mostly attenuated away). */
 export const WIDE_BAND_MAX_HZ = 40;
 
@@ -299,9 +311,11 @@ export function automaticPicksInWindow(
  * high band of its own trigger chain; the largest 0.2 s RMS after P + minSMinusPS and before
  * P + maxSMinusPS marks the S wave; AIC over [P + minSMinusPS/2, that peak + 0.2 s], refined on the
  * unfiltered trace; kept when the RMS over 1 s after the onset is `minSRatio` × the RMS of the
- * second before; of the horizontals, the sharper onset. Null without one.
+ * second before; of the horizontals, the sharper onset. With `span` (µs since the epoch), the S is
+ * sought only there: the largest 0.2 s RMS in [span start, span end + 0.5 s], the AIC from 0.5 s
+ * before the span (never before the P), and an onset outside the span is not taken. Null without one.
  */
-function sPickAfter(channels: readonly PickerChannel[], pTimeUs: number, profile: Pick<ProcessingProfile, 'staLta' | 'bandReject' | 'bands'>, options: PickerOptions): AutomaticPick | null {
+function sPickAfter(channels: readonly PickerChannel[], pTimeUs: number, profile: Pick<ProcessingProfile, 'staLta' | 'bandReject' | 'bands'>, options: PickerOptions, span?: { fromUs: number; toUs: number }): AutomaticPick | null {
   const maxSp = options.maxSMinusPS ?? 30;
   const minSp = options.minSMinusPS ?? 0.4;
   const maxSigma = options.maxUncertaintyS ?? 1;
@@ -319,9 +333,12 @@ function sPickAfter(channels: readonly PickerChannel[], pTimeUs: number, profile
     const hChain = triggerChain(h.samples, hfs, profile, design(profile.bands.order, [hBand.fmin, hBand.fmax], 'bandpass', hfs), design);
     const y = hChain.highY;
     const pIdx = Math.round(((pTimeUs - h.startTimeUs) * hfs) / 1e6);
-    const searchFrom = pIdx + Math.round(minSp * hfs);
-    const searchTo = Math.min(y.length, pIdx + Math.round(maxSp * hfs));
-    if (searchFrom < 0 || searchTo - searchFrom < Math.round(0.5 * hfs)) continue;
+    const spanFrom = span ? Math.max(pIdx + 1, Math.floor(((span.fromUs - h.startTimeUs) * hfs) / 1e6)) : 0;
+    const spanTo = span ? Math.min(y.length - 1, Math.ceil(((span.toUs - h.startTimeUs) * hfs) / 1e6)) : 0;
+    if (span && (spanTo < spanFrom || spanFrom < 0)) continue;
+    const searchFrom = span ? spanFrom : pIdx + Math.round(minSp * hfs);
+    const searchTo = span ? Math.min(y.length, spanTo + Math.round(0.5 * hfs)) : Math.min(y.length, pIdx + Math.round(maxSp * hfs));
+    if (searchFrom < 0 || (!span && searchTo - searchFrom < Math.round(0.5 * hfs))) continue;
     // Largest 0.2 s RMS: the S wave's arrival lies before it.
     const win = Math.max(1, Math.round(0.2 * hfs));
     let acc = 0;
@@ -335,14 +352,14 @@ function sPickAfter(channels: readonly PickerChannel[], pTimeUs: number, profile
         peakAt = i;
       }
     }
-    const aFrom = Math.max(0, pIdx + Math.round((minSp / 2) * hfs));
+    const aFrom = span ? Math.max(pIdx + 1, spanFrom - Math.round(0.5 * hfs)) : Math.max(0, pIdx + Math.round((minSp / 2) * hfs));
     const aTo = Math.min(y.length, peakAt + win);
     const coarse = aicOnsetSpread(y, aFrom, aTo);
     if (!coarse) continue;
     // As for P: the causal band's onset, moved back by a short AIC on the unfiltered trace.
     const fine = aicOnsetSpread(hChain.base, Math.max(0, coarse.index - Math.round(0.3 * hfs)), Math.min(y.length, coarse.index + Math.round(0.1 * hfs) + 1), Math.max(3, Math.round(0.05 * hfs)));
     const s = fine && fine.index <= coarse.index ? fine : coarse;
-    if (s.index < searchFrom) continue;
+    if (s.index < searchFrom || (span && s.index > spanTo)) continue;
     const ratio = rms(y, s.index, s.index + Math.round(hfs)) / Math.max(rms(y, s.index - Math.round(hfs), s.index), Number.MIN_VALUE);
     if (!(ratio >= (options.minSRatio ?? 1.5))) continue;
     const sigma = Math.max(s.sigmaSamples / hfs, options.minSUncertaintyS ?? 0.1);
@@ -355,7 +372,7 @@ function sPickAfter(channels: readonly PickerChannel[], pTimeUs: number, profile
       onset: onsetClass(sigma),
       polarity: 'undecidable',
       evaluationMode: 'automatic',
-      method: `AIC onset (Maeda 1985) on the ${hBand.fmin}–${hBand.fmax} Hz band between the P and the largest horizontal motion; σ from Akaike weights; onset ${ratio.toFixed(1)}× the RMS before`,
+      method: `AIC onset (Maeda 1985) on the ${hBand.fmin}–${hBand.fmax} Hz band ${span ? "inside the span the other stations' picks predict for the S" : 'between the P and the largest horizontal motion'}; σ from Akaike weights; onset ${ratio.toFixed(1)}× the RMS before`,
     };
     if (!bestS || cand.uncertaintyS < bestS.uncertaintyS) bestS = cand;
   }

@@ -9,7 +9,7 @@
  * follows the network's own procedures and local authorities.
  */
 import { greatCircleDistanceKm } from './geodesy';
-import { automaticPicks, automaticPicksInWindow, type PickerChannel, type PickOnset, type PickPolarity } from './auto-picks';
+import { automaticPicks, automaticPicksInWindow, automaticSPickInWindow, type AutomaticPick, type PickerChannel, type PickOnset, type PickPolarity } from './auto-picks';
 import { woodAndersonFromCounts, type ResponseResult } from './instrument-response';
 import { locateEvent, MIN_PHASES, MIN_STATIONS, type LocatedArrival, type LocatedOrigin, type LocateOptions, type LocatePick } from './locate';
 import { distanceNote, networkMagnitude, stationMagnitude, type MinusLogA0, type NetworkMagnitude } from './magnitude';
@@ -205,6 +205,91 @@ export function predictedPWindow(station: { latitudeDeg: number; longitudeDeg: n
 }
 
 /**
+ * The ratio Vp/Vs of a layered model for the Wadati relation: the median over its layers (exact for a
+ * model of one ratio, as most crustal models nearly are).
+ */
+export function vpVsRatio(model: VelocityModel): number {
+  return median(model.layers.map((l) => l.vpKmS / l.vsKmS));
+}
+
+/**
+ * Origin time from one station's P and S times by the Wadati relation t_S − t_P = (Vp/Vs − 1)(t_P − t_0)
+ * (Wadati 1933; common practice, exact for a constant Vp/Vs), µs since the epoch.
+ */
+export function wadatiOriginTimeUs(pTimeUs: number, sTimeUs: number, vpVs: number): number {
+  return pTimeUs - (sTimeUs - pTimeUs) / (vpVs - 1);
+}
+
+/** Shortest S − P the picker reads, s (auto-picks.ts `minSMinusPS` default). */
+const PICKER_MIN_S_MINUS_P_S = 0.4;
+
+/**
+ * S picks made consistent with each other through the origin time (Wadati relation): each station's
+ * S − P proposes an origin time t_0; under it every station's S is predicted at
+ * t_P + (Vp/Vs − 1)(t_P − t_0), with an allowance of 0.25 s + 10 % of the predicted S − P (our own:
+ * pick and Vp/Vs errors). A station's S within the allowance supports t_0; a station whose predicted
+ * S − P is below what the picker reads (0.4 s) can have no S pick; any other station's S is sought
+ * again inside the allowance (auto-picks.ts `automaticSPickInWindow`). The t_0 supported by the most
+ * stations' S picks as they stand wins (ties: by the S picks it finds inside the spans); when at least
+ * two stations support it, each station keeps the S that fits it, or none (a surface wave or a later
+ * traffic burst taken for the S, or an S closer to the P than the picker reads). Changes `chosen` in place.
+ */
+function consistentSPicks(
+  chosen: Map<string, { picks: ReturnType<typeof automaticPicks>; note: string | null }>,
+  byStation: ReadonlyMap<string, ChainStream[]>,
+  profileOf: (key: string) => ChainOptions['profile'],
+  vpVs: number,
+): void {
+  if (!(vpVs > 1)) return;
+  const rows = [...chosen.entries()].map(([key, c]) => ({ key, p: c.picks.find((x) => x.phase === 'P'), s: c.picks.find((x) => x.phase === 'S') }));
+  const withP = rows.filter((r) => r.p !== undefined);
+  const origins = withP.filter((r) => r.s !== undefined).map((r) => wadatiOriginTimeUs((r.p as AutomaticPick).timeUs, (r.s as AutomaticPick).timeUs, vpVs));
+  if (origins.length === 0) return;
+  const spanOf = (pUs: number, t0: number): { predUs: number; tolUs: number } | null => {
+    const sp = ((vpVs - 1) * (pUs - t0)) / 1e6;
+    return sp < PICKER_MIN_S_MINUS_P_S ? null : { predUs: pUs + sp * 1e6, tolUs: (0.25 + 0.1 * sp) * 1e6 };
+  };
+  const standing = (t0: number): number =>
+    withP.filter((r) => {
+      const span = spanOf((r.p as AutomaticPick).timeUs, t0);
+      return span !== null && r.s !== undefined && Math.abs(r.s.timeUs - span.predUs) <= span.tolUs;
+    }).length;
+  const scores = origins.map(standing);
+  const top = Math.max(...scores);
+  let best: { support: number; plan: Map<string, AutomaticPick | null> } | null = null;
+  for (const [i, t0] of origins.entries()) {
+    if (scores[i] !== top) continue;
+    const plan = new Map<string, AutomaticPick | null>();
+    let support = 0;
+    for (const r of withP) {
+      const p = r.p as AutomaticPick;
+      const span = spanOf(p.timeUs, t0);
+      if (!span) {
+        plan.set(r.key, null);
+        continue;
+      }
+      if (r.s && Math.abs(r.s.timeUs - span.predUs) <= span.tolUs) {
+        plan.set(r.key, r.s);
+        support += 1;
+        continue;
+      }
+      const again = automaticSPickInWindow(byStation.get(r.key) ?? [], p.timeUs, profileOf(r.key), { fromUs: span.predUs - span.tolUs, toUs: span.predUs + span.tolUs });
+      plan.set(r.key, again);
+      if (again) support += 1;
+    }
+    if (!best || support > best.support) best = { support, plan };
+  }
+  if (!best || best.support < 2) return;
+  for (const r of withP) {
+    const c = chosen.get(r.key);
+    if (!c || !best.plan.has(r.key)) continue;
+    const s = best.plan.get(r.key) ?? null;
+    if (s === r.s) continue;
+    c.picks = [...c.picks.filter((x) => x.phase !== 'S'), ...(s ? [s] : [])];
+  }
+}
+
+/**
  * Automatic picks for every station of the streams (auto-picks.ts), made consistent across the
  * network. Each station is picked on its own first. Then:
  * - with station coordinates and a model (`consistency.geometry`): the P times that fit one source
@@ -214,7 +299,8 @@ export function predictedPWindow(station: { latitudeDeg: number; longitudeDeg: n
  *   when its onset stands out `replaceSnrFactor` times more than the first one's did (a noise onset
  *   just ahead of the true one), and every other station (a traffic or wind trigger louder than the
  *   event there, or no trigger at all) is picked only inside the span the reference allows, or left
- *   without picks when nothing stands out there;
+ *   without picks when nothing stands out there; then the S picks are made consistent with each
+ *   other through the origin time their S − P times give ({@link consistentSPicks});
  * - otherwise, when at least three stations have a P, a station whose P lies more than `maxLagS`
  *   from the median of all the P times, or that has none, is picked again among its triggers within
  *   `maxLagS` of that median, or left without picks when it has none there. `referenceTimeUs` (e.g.
@@ -281,6 +367,7 @@ export function automaticPicksForStreams(
         const again = window ? automaticPicksInWindow(byStation.get(key) ?? [], profileOf(key), window) : null;
         chosen.set(key, { picks: again?.picks ?? [], note: "picked inside the span the other stations' P times allow" });
       }
+      consistentSPicks(chosen, byStation, profileOf, vpVsRatio(geo.model));
     }
   }
   if (!checked) {
