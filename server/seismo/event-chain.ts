@@ -230,9 +230,11 @@ const PICKER_MIN_S_MINUS_P_S = 0.4;
  * pick and Vp/Vs errors). A station's S within the allowance supports t_0; a station whose predicted
  * S − P is below what the picker reads (0.4 s) can have no S pick; any other station's S is sought
  * again inside the allowance (auto-picks.ts `automaticSPickInWindow`). The t_0 supported by the most
- * stations' S picks as they stand wins (ties: by the S picks it finds inside the spans); when at least
- * two stations support it, each station keeps the S that fits it, or none (a surface wave or a later
- * traffic burst taken for the S, or an S closer to the P than the picker reads). Changes `chosen` in place.
+ * stations' S picks as they stand wins; ties go to the one with the most S picks after the search
+ * inside the spans, then to the later t_0 (the picker errs late far more often than early: it takes a
+ * surface wave, the coda or a later noise burst for an S it cannot see; our own rule). Each station
+ * then keeps the S that fits the winner, or none (a surface wave or a later traffic burst taken for
+ * the S, or an S closer to the P than the picker reads). Changes `chosen` in place.
  */
 function consistentSPicks(
   chosen: Map<string, { picks: ReturnType<typeof automaticPicks>; note: string | null }>,
@@ -256,7 +258,7 @@ function consistentSPicks(
     }).length;
   const scores = origins.map(standing);
   const top = Math.max(...scores);
-  let best: { support: number; plan: Map<string, AutomaticPick | null> } | null = null;
+  let best: { support: number; t0: number; plan: Map<string, AutomaticPick | null> } | null = null;
   for (const [i, t0] of origins.entries()) {
     if (scores[i] !== top) continue;
     const plan = new Map<string, AutomaticPick | null>();
@@ -277,9 +279,10 @@ function consistentSPicks(
       plan.set(r.key, again);
       if (again) support += 1;
     }
-    if (!best || support > best.support) best = { support, plan };
+    // Ties: the later origin time (an automatic S errs late far more often than early).
+    if (!best || support > best.support || (support === best.support && t0 > best.t0)) best = { support, t0, plan };
   }
-  if (!best || best.support < 2) return;
+  if (!best) return;
   for (const r of withP) {
     const c = chosen.get(r.key);
     if (!c || !best.plan.has(r.key)) continue;
