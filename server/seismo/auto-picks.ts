@@ -196,6 +196,11 @@ export function automaticSPickInWindow(channels: readonly PickerChannel[], pTime
   return sPickAfter(channels, pTimeUs, profile, options, window);
 }
 
+/** The S after a known P (µs since the epoch) as {@link automaticPicks} reads it; null without one. Pure. */
+export function automaticSPick(channels: readonly PickerChannel[], pTimeUs: number, profile: Pick<ProcessingProfile, 'staLta' | 'bandReject' | 'bands'>, options: PickerOptions = {}): AutomaticPick | null {
+  return sPickAfter(channels, pTimeUs, profile, options);
+}
+
 /** Highest band edge the window picker reads, Hz (our own choice: above it local P energy is mostly attenuated away). */
 export const WIDE_BAND_MAX_HZ = 40;
 
@@ -237,7 +242,7 @@ function onsetSnr(y: Float64Array, i: number, fs: number): number {
  * 0.05 s floor of σ). Of the bands whose onset stands out at least `minSnr` times above the noise
  * before it ({@link onsetSnr}; default 2, our own), the sharpest onset (smallest σ of the Akaike
  * weights: the best-defined change, and the smallest uncertainty to report). σ from the Akaike weights, floored and capped as for automaticPicks; then the
- * S after it as automaticPicks reads it. `incumbentUs` (an earlier P of the station) gets its SNR on
+ * S after it as automaticPicks reads it (unless `withS` is false). `incumbentUs` (an earlier P of the station) gets its SNR on
  * the chosen band too, for the caller to compare.
  * Null when nothing in the span clears `minSnr`, or there is no vertical or usable band.
  * Pure: the samples are not modified.
@@ -246,7 +251,7 @@ export function automaticPicksInWindow(
   channels: readonly PickerChannel[],
   profile: Pick<ProcessingProfile, 'staLta' | 'bandReject' | 'bands'>,
   window: { fromUs: number; toUs: number },
-  options: PickerOptions & { minSnr?: number; incumbentUs?: number } = {},
+  options: PickerOptions & { minSnr?: number; incumbentUs?: number; withS?: boolean } = {},
 ): WindowPicks | null {
   const z = channels.find((c) => isVertical(c.channel));
   if (!z || z.samples.length < 10 || !(window.toUs >= window.fromUs)) return null;
@@ -298,7 +303,7 @@ export function automaticPicksInWindow(
     method: `AIC onset (Maeda 1985) on the ${edgeText(best.edges[0])}–${edgeText(best.edges[1])} Hz band inside the span the other stations' P times allow; onset ${best.snr.toFixed(1)}× the RMS before; σ from Akaike weights`,
   };
   const picks = [p];
-  const s = sPickAfter(channels, p.timeUs, profile, options);
+  const s = options.withS === false ? null : sPickAfter(channels, p.timeUs, profile, options);
   if (s) picks.push(s);
   const inc = options.incumbentUs;
   const incIndex = inc === undefined ? null : Math.round(((inc - z.startTimeUs) * fs) / 1e6);

@@ -9,7 +9,7 @@
  * follows the network's own procedures and local authorities.
  */
 import { greatCircleDistanceKm } from './geodesy';
-import { automaticPicks, automaticPicksInWindow, automaticSPickInWindow, type AutomaticPick, type PickerChannel, type PickOnset, type PickPolarity } from './auto-picks';
+import { automaticPicks, automaticPicksInWindow, automaticSPick, automaticSPickInWindow, type AutomaticPick, type PickerChannel, type PickOnset, type PickPolarity } from './auto-picks';
 import { woodAndersonFromCounts, type ResponseResult } from './instrument-response';
 import { locateEvent, MIN_PHASES, MIN_STATIONS, type LocatedArrival, type LocatedOrigin, type LocateOptions, type LocatePick } from './locate';
 import { distanceNote, networkMagnitude, stationMagnitude, type MinusLogA0, type NetworkMagnitude } from './magnitude';
@@ -351,11 +351,14 @@ export function automaticPicksForStreams(
         const st = where.get(r.key);
         const window = st ? predictedPWindow(st, reference.filter((o) => o !== r), pMax, tol) : null;
         if (!window) continue;
-        const again = automaticPicksInWindow(byStation.get(r.key) ?? [], profileOf(r.key), window, { incumbentUs: r.timeUs });
+        const chans = byStation.get(r.key) ?? [];
+        // The S only for a P that is taken (most are not: reading it for every station would double the work).
+        const again = automaticPicksInWindow(chans, profileOf(r.key), window, { incumbentUs: r.timeUs, withS: false });
         const p = again?.picks.find((x) => x.phase === 'P');
         if (!again || !p || again.incumbentSnr === null) continue;
         if (Math.abs(p.timeUs - r.timeUs) > Math.max(2 * r.uncertaintyS, 0.1) * 1e6 && again.snr >= factor * again.incumbentSnr) {
-          chosen.set(r.key, { picks: again.picks, note: `picked again inside the span the other stations' P times allow (its first onset stood out ${again.incumbentSnr.toFixed(1)}×, this one ${again.snr.toFixed(1)}×)` });
+          const s = automaticSPick(chans, p.timeUs, profileOf(r.key));
+          chosen.set(r.key, { picks: s ? [p, s] : [p], note: `picked again inside the span the other stations' P times allow (its first onset stood out ${again.incumbentSnr.toFixed(1)}×, this one ${again.snr.toFixed(1)}×)` });
           r.timeUs = p.timeUs;
           r.uncertaintyS = p.uncertaintyS;
         }
