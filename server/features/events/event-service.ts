@@ -84,17 +84,24 @@ async function memberResponses(db: DbOrTx, members: readonly Member[]): Promise<
 
 /**
  * The automatic picks of some members' windows, stored as suggestions (author none, mode automatic),
- * consistent across the network (event-chain.ts `automaticPicksForStreams`): near the event's
- * existing automatic P picks when it has some, else near the median P of these members.
+ * consistent across the network (event-chain.ts `automaticPicksForStreams`): with the member
+ * stations' positions and the network's velocity model, against each other and the event's existing
+ * automatic P picks by the travel-time bound (the median-time rule when that cannot apply).
  */
 async function storeAutomaticPicks(db: DbOrTx, eventId: number, members: readonly Member[], now: Date): Promise<void> {
   if (members.length === 0) return;
   const streams = await memberStreams(db, members);
-  const existing = await db.select({ timeUs: eventPicks.timeUs }).from(eventPicks).where(and(eq(eventPicks.eventId, eventId), eq(eventPicks.evaluationMode, 'automatic'), eq(eventPicks.phase, 'P')));
+  const existing = await db.select({ streamId: eventPicks.streamId, timeUs: eventPicks.timeUs, uncertaintyS: eventPicks.uncertaintyS }).from(eventPicks).where(and(eq(eventPicks.eventId, eventId), eq(eventPicks.evaluationMode, 'automatic'), eq(eventPicks.phase, 'P')));
   const reference = existing.length > 0 ? existing.map((p) => p.timeUs).sort((a, b) => a - b)[existing.length >> 1] : undefined;
   // Each station's own trigger settings (its profile: band-reject filters, STA/LTA).
   const profiles = new Map<string, ProcessingProfile>(members.map((m) => [`${m.network}.${m.code}`, processingProfileSchema.parse(m.profile ?? {})]));
-  const picks = automaticPicksForStreams(streams, (key) => profiles.get(key) ?? processingProfileSchema.parse({}), reference);
+  // Every member station's position and the network's model: the P times are checked against each
+  // other, and against the event's existing P picks, by the travel-time bound.
+  const all = await activeMembers(db, eventId);
+  const stationList: ChainStation[] = [...new Map(all.map((m) => [`${m.network}.${m.code}`, { network: m.network, code: m.code, latitudeDeg: m.latitude, longitudeDeg: m.longitude }])).values()];
+  const network = members[0]?.network ?? '';
+  const settings = await networkSettings(db, network);
+  const picks = automaticPicksForStreams(streams, (key) => profiles.get(key) ?? processingProfileSchema.parse({}), reference, { geometry: { stations: stationList, model: settings.model }, anchors: existing });
   if (picks.length === 0) return;
   await db.insert(eventPicks).values(
     picks.map((p) => ({
