@@ -10,15 +10,17 @@
  * shot. Builds the client first unless `--no-build` is given. Prints each file with its size and
  * stops with exit code 1 naming the step when a screen does not show what it should.
  */
-import { copyFileSync, mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { copyFileSync, cpSync, mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
-import { and, desc, eq } from 'drizzle-orm';
+import { and, count, desc, eq, isNull } from 'drizzle-orm';
 import type { Page } from 'playwright-core';
 import { buildClient } from '@server/bootstrap/common';
+import { eventMembers } from '@server/db/schema/events';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { seedDemo } from '@server/db/seed-demo';
+import { prepareDemoEvents } from '@server/demo/demo-events';
 import { DEMO_WAVEFORMS_DIR } from '@server/demo/generate-waveforms';
 import { ingestDemo, readDemoManifest } from '@server/demo/ingest-demo';
 import { publicBaseUrl } from '@server/email/links';
@@ -50,7 +52,11 @@ function demoFolderWithout(files: readonly string[]): string {
     mkdirSync(dirname(join(dir, f.file)), { recursive: true });
     copyFileSync(join(DEMO_WAVEFORMS_DIR, f.file), join(dir, f.file));
   }
-  writeFileSync(join(dir, 'manifest.json'), JSON.stringify({ ...manifest, files: kept }));
+  // The demo StationXML too: the demo network's responses come from it before the windows go in.
+  cpSync(join(DEMO_WAVEFORMS_DIR, 'stationxml'), join(dir, 'stationxml'), { recursive: true });
+  // Everything else the manifest says (its sources, for the events) kept as it is.
+  const raw: unknown = JSON.parse(readFileSync(join(DEMO_WAVEFORMS_DIR, 'manifest.json'), 'utf8'));
+  writeFileSync(join(dir, 'manifest.json'), JSON.stringify({ ...(typeof raw === 'object' && raw !== null ? raw : {}), files: kept }));
   return dir;
 }
 
@@ -103,6 +109,8 @@ async function takeScreenshots(): Promise<void> {
     );
     if (report.rejected.length) throw new Error(`demo files refused: ${report.rejected.map((r) => `${r.filename}: ${r.message}`).join('; ')}`);
     console.log(`docs:screenshots: demo ingested (${report.created} files, ${report.items} items; labelled ${report.labelled}, dismissed ${report.dismissed}, escalated ${report.escalated})`);
+    // The events as npm start leaves them (the ones no candidate group joined assembled by the demo analyst).
+    await prepareDemoEvents(db, notify, demoDir);
     running = await startServer(ctx, { host: '127.0.0.1', port: 0 });
     const url = running.url;
 
@@ -194,6 +202,22 @@ async function takeScreenshots(): Promise<void> {
       // Let the "claimed" notice go away: it would cover the label form.
       await page.getByText(`Item ${event.id} claimed`).waitFor({ state: 'detached', timeout: 15_000 }).catch(() => undefined);
       await shoot('05-analyst-review');
+    });
+
+    await step(page, 'analyst event', async () => {
+      // The demo event recorded by the most stations, on the event screen: record section, map, origin and ML.
+      const [biggest] = await db
+        .select({ id: eventMembers.eventId, members: count() })
+        .from(eventMembers)
+        .where(isNull(eventMembers.removedAt))
+        .groupBy(eventMembers.eventId)
+        .orderBy(desc(count()), eventMembers.eventId)
+        .limit(1);
+      if (!biggest) throw new Error('no event after the demo ingest');
+      await page.goto(`${url}/events/${biggest.id}`);
+      await page.getByTestId('record-section').locator('.uplot').waitFor({ timeout: 60_000 });
+      await page.locator('[data-testid="event-map"][data-outlines="drawn"]').waitFor({ timeout: 15_000 });
+      await shoot('11-analyst-event');
     });
 
     await step(page, 'supervisor inbox', async () => {

@@ -135,6 +135,8 @@ export interface ItemOptions {
   durationS?: number;
   /** The "why flagged" reasons of a placeholder analysis (default ['test fixture']). */
   reasons?: string[];
+  /** The placeholder analysis's baseline (default none stated). */
+  baseline?: 'station' | 'network default';
 }
 
 /**
@@ -168,7 +170,7 @@ export async function createItem(db: Database, opts: ItemOptions = {}): Promise<
       stationId,
       startTime: windowStart,
       endTime: new Date(windowStart.getTime() + durationS * 1000),
-      analysis: analysis ?? { channels: [], score: opts.score ?? 0, flag: opts.flag ?? 'needs eyes', reasons: [] },
+      analysis: analysis ?? { channels: [], score: opts.score ?? 0, flag: opts.flag ?? 'needs eyes', reasons: [], ...(opts.baseline ? { baseline: opts.baseline } : {}) },
       engineVersion: 'test',
       createdAt,
     });

@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, gte, inArray, isNull, lt, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, gte, inArray, isNotNull, isNull, lt, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import type { EventDetail, EventSummary } from '@shared/schemas/events';
 import { EVENT_CAUTION } from '@shared/schemas/events';
@@ -84,17 +84,24 @@ async function memberResponses(db: DbOrTx, members: readonly Member[]): Promise<
 
 /**
  * The automatic picks of some members' windows, stored as suggestions (author none, mode automatic),
- * consistent across the network (event-chain.ts `automaticPicksForStreams`): near the event's
- * existing automatic P picks when it has some, else near the median P of these members.
+ * consistent across the network (event-chain.ts `automaticPicksForStreams`): with the member
+ * stations' positions and the network's velocity model, against each other and the event's existing
+ * automatic P picks by the travel-time bound (the median-time rule when that cannot apply).
  */
 async function storeAutomaticPicks(db: DbOrTx, eventId: number, members: readonly Member[], now: Date): Promise<void> {
   if (members.length === 0) return;
   const streams = await memberStreams(db, members);
-  const existing = await db.select({ timeUs: eventPicks.timeUs }).from(eventPicks).where(and(eq(eventPicks.eventId, eventId), eq(eventPicks.evaluationMode, 'automatic'), eq(eventPicks.phase, 'P')));
+  const existing = await db.select({ streamId: eventPicks.streamId, timeUs: eventPicks.timeUs, uncertaintyS: eventPicks.uncertaintyS }).from(eventPicks).where(and(eq(eventPicks.eventId, eventId), eq(eventPicks.evaluationMode, 'automatic'), eq(eventPicks.phase, 'P')));
   const reference = existing.length > 0 ? existing.map((p) => p.timeUs).sort((a, b) => a - b)[existing.length >> 1] : undefined;
   // Each station's own trigger settings (its profile: band-reject filters, STA/LTA).
   const profiles = new Map<string, ProcessingProfile>(members.map((m) => [`${m.network}.${m.code}`, processingProfileSchema.parse(m.profile ?? {})]));
-  const picks = automaticPicksForStreams(streams, (key) => profiles.get(key) ?? processingProfileSchema.parse({}), reference);
+  // Every member station's position and the network's model: the P times are checked against each
+  // other, and against the event's existing P picks, by the travel-time bound.
+  const all = await activeMembers(db, eventId);
+  const stationList: ChainStation[] = [...new Map(all.map((m) => [`${m.network}.${m.code}`, { network: m.network, code: m.code, latitudeDeg: m.latitude, longitudeDeg: m.longitude }])).values()];
+  const network = members[0]?.network ?? '';
+  const settings = await networkSettings(db, network);
+  const picks = automaticPicksForStreams(streams, (key) => profiles.get(key) ?? processingProfileSchema.parse({}), reference, { geometry: { stations: stationList, model: settings.model }, anchors: existing });
   if (picks.length === 0) return;
   await db.insert(eventPicks).values(
     picks.map((p) => ({
@@ -258,6 +265,69 @@ async function relocateLocked(db: DbOrTx, eventId: number, actor: EventActor, no
 }
 
 /**
+ * Events whose candidate group was folded into another (a later window made another window the
+ * group's anchor, so its candidate row was replaced and the event lost its link): an event without a
+ * candidate group whose windows now sit in candidate group c
+ * - becomes c's event when c has none (the windows c gained are added by `syncEventsFromGroups`);
+ * - is merged into c's event E when there is one: its windows E lacks and its analysts' picks move to
+ *   E, its type and certainty fill E's when E has none, it is deleted (said on the live channel with
+ *   the event it went into) and E is located again.
+ * So one earthquake stays one event, and no analyst's work is lost. Events no group holds (assembled
+ * by an analyst from windows no group joined) are left alone. At most `limit` per call.
+ * @returns the ids of the events adopted or merged into
+ */
+async function reconcileOrphanEvents(db: Database, limit: number): Promise<number[]> {
+  const orphans = await db
+    .selectDistinct({ eventId: seismicEvents.id, candidateEventId: itemArrivals.candidateEventId })
+    .from(seismicEvents)
+    .innerJoin(eventMembers, and(eq(eventMembers.eventId, seismicEvents.id), isNull(eventMembers.removedAt)))
+    .innerJoin(itemArrivals, eq(itemArrivals.itemId, eventMembers.itemId))
+    .where(and(isNull(seismicEvents.candidateEventId), isNotNull(itemArrivals.candidateEventId)))
+    .orderBy(asc(seismicEvents.id))
+    .limit(limit);
+  const touched: number[] = [];
+  for (const { eventId: orphanId, candidateEventId } of orphans) {
+    if (candidateEventId === null) continue;
+    const into = await db.transaction(async (tx) => {
+      const [group] = await tx.select({ id: candidateEvents.id }).from(candidateEvents).where(eq(candidateEvents.id, candidateEventId)).for('update');
+      const [orphan] = await tx.select().from(seismicEvents).where(eq(seismicEvents.id, orphanId)).for('update');
+      if (!group || !orphan || orphan.candidateEventId !== null) return null;
+      const [owner] = await tx.select({ id: seismicEvents.id }).from(seismicEvents).where(eq(seismicEvents.candidateEventId, group.id)).for('update');
+      const now = new Date();
+      if (!owner) {
+        await tx.update(seismicEvents).set({ candidateEventId: group.id, version: orphan.version + 1, updatedAt: now }).where(eq(seismicEvents.id, orphanId));
+        return orphanId;
+      }
+      const target = await lockEvent(tx, owner.id);
+      const moving = await activeMembers(tx, orphanId);
+      const there = new Set((await activeMembers(tx, target.id)).map((m) => m.itemId));
+      const [orphanSources, targetRows] = await Promise.all([
+        tx.select({ itemId: eventMembers.itemId, source: eventMembers.source }).from(eventMembers).where(eq(eventMembers.eventId, orphanId)),
+        tx.select({ itemId: eventMembers.itemId }).from(eventMembers).where(eq(eventMembers.eventId, target.id)),
+      ]);
+      const targetHas = new Set(targetRows.map((r) => r.itemId));
+      const add = moving.filter((m) => !there.has(m.itemId));
+      // A window E once had and an analyst took out comes back only as the orphan held it (active).
+      for (const m of add) {
+        const source = orphanSources.find((r) => r.itemId === m.itemId)?.source ?? 'group';
+        if (targetHas.has(m.itemId)) await tx.update(eventMembers).set({ removedAt: null, source }).where(and(eq(eventMembers.eventId, target.id), eq(eventMembers.itemId, m.itemId)));
+        else await tx.insert(eventMembers).values({ eventId: target.id, itemId: m.itemId, source });
+      }
+      await tx.update(eventPicks).set({ eventId: target.id, updatedAt: now }).where(and(eq(eventPicks.eventId, orphanId), eq(eventPicks.evaluationMode, 'manual')));
+      if (target.eventType === null && orphan.eventType !== null) await tx.update(seismicEvents).set({ eventType: orphan.eventType, typeCertainty: orphan.typeCertainty }).where(eq(seismicEvents.id, target.id));
+      await tx.update(seismicEvents).set({ preferredOriginId: null, preferredMagnitudeId: null }).where(eq(seismicEvents.id, orphanId));
+      await tx.delete(seismicEvents).where(eq(seismicEvents.id, orphanId));
+      await recordChange(tx, { resource: 'event', resourceId: orphanId, kind: 'deleted', version: 0, summary: { mergedInto: target.id }, audience: { action: 'event.view', stationIds: [...new Set(moving.map((m) => m.stationId))] } });
+      if (add.length > 0) await storeAutomaticPicks(tx, target.id, (await activeMembers(tx, target.id)).filter((m) => add.some((a) => a.itemId === m.itemId)), now);
+      await relocateLocked(tx, target.id, null, now, { reason: `event ${orphanId} of the same candidate group merged into it` });
+      return target.id;
+    });
+    if (into !== null) touched.push(into);
+  }
+  return [...new Set(touched)];
+}
+
+/**
  * Makes an event of every candidate event that has none yet (members: the group's windows; picks:
  * automatic suggestions; then located), and adds to existing events the group members they lack
  * (not those an analyst took out), locating again. At most `limit` groups per call.
@@ -265,7 +335,7 @@ async function relocateLocked(db: DbOrTx, eventId: number, actor: EventActor, no
  */
 export async function syncEventsFromGroups(deps: EventDeps, limit = 100): Promise<number[]> {
   const { db } = deps;
-  const touched: number[] = [];
+  const touched: number[] = await reconcileOrphanEvents(db, limit);
   const fresh = await db
     .select({ id: candidateEvents.id, firstArrivalAt: candidateEvents.firstArrivalAt })
     .from(candidateEvents)
@@ -285,14 +355,17 @@ export async function syncEventsFromGroups(deps: EventDeps, limit = 100): Promis
         .innerJoin(stations, eq(stations.id, itemArrivals.stationId))
         .where(eq(itemArrivals.candidateEventId, c.id))
         .orderBy(asc(itemArrivals.arrivalAt));
-      if (memberRows.length === 0) return null;
+      // A window belongs to one event at a time: those another event holds stay there.
+      const held = await eventMembershipOf(tx, memberRows.map((m) => m.itemId));
+      const free = memberRows.filter((m) => !held.has(m.itemId));
+      if (free.length === 0) return null;
       const now = new Date();
       const [ins] = await tx
         .insert(seismicEvents)
         .values({ network: memberRows[0]?.network ?? '', candidateEventId: c.id, firstArrivalAt: group.firstArrivalAt, version: 1, createdAt: now, updatedAt: now })
         .$returningId();
       if (!ins) throw new Error('event insert returned no id');
-      await tx.insert(eventMembers).values(memberRows.map((m) => ({ eventId: ins.id, itemId: m.itemId, source: 'group' })));
+      await tx.insert(eventMembers).values(free.map((m) => ({ eventId: ins.id, itemId: m.itemId, source: 'group' })));
       await storeAutomaticPicks(tx, ins.id, await activeMembers(tx, ins.id), now);
       await relocateLocked(tx, ins.id, null, now, { kind: 'created', reason: 'built from a candidate event' });
       return ins.id;

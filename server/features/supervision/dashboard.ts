@@ -4,6 +4,7 @@ import { auditLog } from '@server/db/schema/audit-log';
 import { queueItems } from '@server/db/schema/queue-items';
 import { stations } from '@server/db/schema/stations';
 import { itemReviews } from '@server/db/schema/supervisor';
+import { windows } from '@server/db/schema/uploads';
 import { users } from '@server/db/schema/users';
 import { truthOf } from './thresholds';
 import { median } from '@shared/math/median';
@@ -17,6 +18,10 @@ import { median } from '@shared/math/median';
  * - analyst workload: triage actions per analyst over the period;
  * - false-alarm rate per day: of the items flagged `likely event` that arrived that day and now have
  *   a ground truth (server/features/supervision/thresholds.ts `truthOf`), the share that turned out noise.
+ *   Only flags scored against the station's own noise count: a window analysed before its station had
+ *   a baseline (the analysis says `baseline: 'network default'`, e.g. the first windows of a new
+ *   station, which then become its baseline) is counted apart, in `flaggedBeforeBaseline`, so a
+ *   station's start-up does not read as the detector's false-alarm rate.
  */
 
 /** The dashboard's numbers. */
@@ -32,6 +37,8 @@ export interface DashboardData {
   /** 0…1; null on days without a flagged item with a ground truth. */
   falseAlarmRate: Array<number | null>;
   flaggedWithTruth: number[];
+  /** Items flagged `likely event` per day that were scored before their station had a baseline (not in the rate). */
+  flaggedBeforeBaseline: number[];
 }
 
 const DAY_MS = 86_400_000;
@@ -53,9 +60,20 @@ export async function dashboard(db: Database, period: { from: Date; to: Date }):
   const zeros = () => days.map(() => 0);
 
   const items = await db
-    .select({ id: queueItems.id, createdAt: queueItems.createdAt, flag: queueItems.flag, state: queueItems.state, label: queueItems.label, network: stations.network, code: stations.code, status: itemReviews.evaluationStatus })
+    .select({
+      id: queueItems.id,
+      createdAt: queueItems.createdAt,
+      flag: queueItems.flag,
+      state: queueItems.state,
+      label: queueItems.label,
+      network: stations.network,
+      code: stations.code,
+      status: itemReviews.evaluationStatus,
+      baseline: sql<string | null>`JSON_VALUE(${windows.analysis}, '$.baseline')`,
+    })
     .from(queueItems)
     .innerJoin(stations, eq(stations.id, queueItems.stationId))
+    .innerJoin(windows, eq(windows.id, queueItems.windowId))
     .leftJoin(itemReviews, eq(itemReviews.itemId, queueItems.id))
     .where(and(gte(queueItems.createdAt, period.from), lt(queueItems.createdAt, period.to)))
     .limit(200_000);
@@ -63,6 +81,7 @@ export async function dashboard(db: Database, period: { from: Date; to: Date }):
   const perFlag = new Map<string, number[]>([['likely event', zeros()], ['needs eyes', zeros()], ['likely noise', zeros()]]);
   const faNoise = zeros();
   const faKnown = zeros();
+  const beforeBaseline = zeros();
   for (const it of items) {
     const i = index.get(dayKey(it.createdAt));
     if (i === undefined) continue;
@@ -73,7 +92,8 @@ export async function dashboard(db: Database, period: { from: Date; to: Date }):
     const f = perFlag.get(it.flag) ?? zeros();
     f[i] = (f[i] ?? 0) + 1;
     perFlag.set(it.flag, f);
-    if (it.flag === 'likely event') {
+    if (it.flag === 'likely event' && it.baseline === 'network default') beforeBaseline[i] = (beforeBaseline[i] ?? 0) + 1;
+    else if (it.flag === 'likely event') {
       const truth = truthOf(it.state, it.label, it.status);
       if (truth !== null) {
         faKnown[i] = (faKnown[i] ?? 0) + 1;
@@ -115,5 +135,6 @@ export async function dashboard(db: Database, period: { from: Date; to: Date }):
     workload: [...workload.entries()].sort((a, b) => b[1] - a[1] || a[0].localeCompare(b[0])).map(([analyst, actions]) => ({ analyst, actions })),
     falseAlarmRate: faKnown.map((k, i) => (k === 0 ? null : (faNoise[i] ?? 0) / k)),
     flaggedWithTruth: faKnown,
+    flaggedBeforeBaseline: beforeBaseline,
   };
 }

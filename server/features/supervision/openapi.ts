@@ -49,6 +49,7 @@ const dashboardSchema = z.object({
   workload: z.array(z.object({ analyst: z.string(), actions: z.number() })),
   falseAlarmRate: z.array(z.number().nullable()),
   flaggedWithTruth: countsPerDay,
+  flaggedBeforeBaseline: countsPerDay,
 });
 
 /** /api/supervisor as router.ts serves it. */

@@ -185,7 +185,7 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
     expect(events.length).toBeGreaterThanOrEqual(4);
   });
 
-  it('after the ingest, the demo quakes become located events with ML and the blasts events located or refused with the reason (npm start demo step)', async () => {
+  it('after the ingest, every demo quake and quarry blast becomes a located event with ML, near where the scenario put it (npm start demo step)', async () => {
     const db = ctx.database.db;
     await catchUpArrivals({ db });
     const report = await prepareDemoEvents(db, () => {});
@@ -193,24 +193,28 @@ describe('ingestDemo (the npm start demo step, through the real ingest service)'
     const events = await listEvents(db, { limit: 100 }, 'all');
     // The scenario's sources (server/demo/scenario.ts, invented): each recorded by at least three
     // stations, so each makes a candidate group and an event. The check is that the demo shows them
-    // located near where the scenario put them, with a magnitude: a demo check, not an engine check.
+    // located near where the scenario put them, with a magnitude: the scenario's coordinates are the
+    // demo's own truth (invented data, fine for a demo check, not an engine check value). The blasts
+    // are the hard case: three stations on one side of the quarry (KV02, KV03, KV06), traffic at
+    // KV03 louder than the blast's P in the 2–10 Hz band, and an S at KV02 too close to the P to read.
+    const summary: string[] = [];
     for (const src of DEMO_EVENTS) {
       const t = src.originTimeUs / 1000;
       // Every source is an event (from its candidate group, or assembled by the demo analyst).
       const ev = events.find((e) => Math.abs(Date.parse(e.originTime ?? e.firstArrival) - t) < 60_000);
       expect(ev, `${src.id} is an event`).toBeDefined();
+      // And one event only, however its candidate group grew while the windows came in.
+      expect(events.filter((e) => Math.abs(Date.parse(e.originTime ?? e.firstArrival) - t) < 60_000).map((e) => e.id), `${src.id} is one event`).toHaveLength(1);
       if (!ev) continue;
-      if (src.type !== 'earthquake') {
-        // The quarry blasts are recorded by three stations on one side with traffic at KV03: they are
-        // located or refused with the reason, never silently dropped.
-        expect(ev.originTime !== null || (ev.locationRefusal ?? '').length > 0, `${src.id} located or refused with a reason`).toBe(true);
-        continue;
-      }
-      expect(ev.originTime, `${src.id} located`).not.toBeNull();
+      expect(ev.originTime, `${src.id} located (${ev.locationRefusal ?? ''})`).not.toBeNull();
+      const errKm = greatCircleDistanceKm({ latitudeDeg: ev.latitude ?? NaN, longitudeDeg: ev.longitude ?? NaN }, { latitudeDeg: src.latitude, longitudeDeg: src.longitude });
+      summary.push(`${src.id} (${src.type}): epicentre ${errKm.toFixed(2)} km from the scenario's, origin ${(Date.parse(ev.originTime ?? '') - t).toFixed(0)} ms, ML ${ev.magnitude?.toFixed(2) ?? '—'}`);
       expect(Math.abs(Date.parse(ev.originTime ?? '') - t), `${src.id} origin time`).toBeLessThan(1000);
-      expect(greatCircleDistanceKm({ latitudeDeg: ev.latitude ?? NaN, longitudeDeg: ev.longitude ?? NaN }, { latitudeDeg: src.latitude, longitudeDeg: src.longitude }), `${src.id} epicentre`).toBeLessThan(3);
+      // Quakes within 3 km; blasts within 3 km of the quarry face too (DEMO_EVENTS holds each blast's own shot point).
+      expect(errKm, `${src.id} epicentre`).toBeLessThan(3);
       expect(ev.magnitude, `${src.id} ML`).not.toBeNull();
     }
+    console.log(`demo events against the scenario:\n${summary.join('\n')}`);
     expect(await prepareDemoEvents(db, () => {})).toMatchObject({ modelSet: false, events: 0 });
   }, 120_000);
 

@@ -62,4 +62,25 @@ describe('dashboard over a real database', () => {
     if (d.flaggedWithTruth[last] === 3) expect(d.falseAlarmRate[last]).toBeCloseTo(2 / 3, 9);
     expect(d.workload).toEqual([{ analyst: 'Ana Kestrel', actions: 3 }]);
   });
+
+  /*
+   * Hand-worked: two more `likely event` items, both dismissed as noise, one scored against its
+   * station's own noise and one before the station had a baseline (`network default`). The one with
+   * a baseline enters the rate, the other is counted apart: the rate of the day is 1 noise / 1.
+   */
+  it('counts flags made before the station had a baseline apart from the false-alarm rate', async () => {
+    const db = ctx.database.db;
+    const ana = await createPerson(db, { roles: ['analyst'], displayName: 'Ben Kestrel' });
+    const actor = { id: ana.id, displayName: ana.displayName, email: ana.email };
+    const day = new Date(Date.UTC(2026, 2, 9, 12));
+    const ids = [await createItem(db, { station: 'KV02', flag: 'likely event', createdAt: day, baseline: 'station' }), await createItem(db, { station: 'KV02', flag: 'likely event', createdAt: day, baseline: 'network default' })];
+    for (const id of ids) {
+      const c = await claimItem({ db }, actor, id, 1);
+      await dismissItem({ db }, actor, id, c.version, { noiseReason: 'traffic', note: '' });
+    }
+    const d = await dashboard(db, { from: new Date(Date.UTC(2026, 2, 9)), to: new Date(Date.UTC(2026, 2, 10)) });
+    expect(d.flaggedWithTruth).toEqual([1]);
+    expect(d.falseAlarmRate).toEqual([1]);
+    expect(d.flaggedBeforeBaseline).toEqual([1]);
+  });
 });

@@ -34,6 +34,12 @@ export type DrawnPick = {
 export type StationPrediction = { P: number | null; S: number | null };
 
 /** Where the mouse is: the channel under it and the time there. */
+/** A UTC clock time "hh:mm:ss" (with tenths when `tenths`) for `s` seconds since the epoch. */
+function utcClock(s: number, tenths: boolean): string {
+  const iso = new Date(Math.round(s * 1000)).toISOString();
+  return tenths ? iso.slice(11, 21) : iso.slice(11, 19);
+}
+
 export type RecordCursor = { streamId: string; time: number };
 
 /** Props of <RecordSection>. */
@@ -276,7 +282,18 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
         y: { auto: false, range: [-0.5, n - 0.5] },
       },
       axes: [
-        { stroke: theme.axis, grid: { stroke: theme.grid, width: 1 }, ticks: { stroke: theme.grid }, font: axisFont, label: 'UTC', labelFont: axisFont },
+        {
+          stroke: theme.axis,
+          grid: { stroke: theme.grid, width: 1 },
+          ticks: { stroke: theme.grid },
+          font: axisFont,
+          label: 'UTC (hh:mm:ss)',
+          labelFont: axisFont,
+          // At least one label's width apart, so "hh:mm:ss" labels never overlap.
+          space: 64,
+          // 24-hour UTC clock times, tenths when the ticks are under a second apart (the date is in the title).
+          values: (_u: uPlot, splits: number[], _axis: number, _space: number, incr: number) => splits.map((v) => utcClock(v, incr < 1)),
+        },
         {
           stroke: theme.ink,
           grid: { stroke: theme.grid, width: 1 },

@@ -1,12 +1,16 @@
+import { Link } from 'react-router';
 import type { CandidateEvent } from '@client/api/queue/candidate-events';
 import { EventGroupMembers } from '@client/components/event-group-members';
 import { Button } from '@client/components/ui/button';
 import { Dialog } from '@client/components/ui/dialog';
 import { Loading } from '@client/components/ui/skeleton';
+import { paths } from '@client/config/paths';
 
 /** Props of <GroupPanel>. */
 type GroupPanelProps = {
   eventId: number;
+  /** The located event built from this group, when there is one (and the viewer may see events). */
+  builtEventId: number | null;
   stationCount: number;
   ev: CandidateEvent | undefined;
   loading: boolean;
@@ -24,13 +28,26 @@ type GroupPanelProps = {
  * flag and state, each a link to its own review; "Label the whole group" for those the policy
  * lets label (queue.label), which asks first (GroupLabelDialog).
  */
-export function GroupPanel({ eventId, stationCount, ev, loading, error, currentId, search, mayLabel, eventType, busy, onLabel }: GroupPanelProps) {
+export function GroupPanel({ eventId, builtEventId, stationCount, ev, loading, error, currentId, search, mayLabel, eventType, busy, onLabel }: GroupPanelProps) {
   return (
     <section aria-labelledby={`group-${eventId}`} className="rounded-sm border border-line bg-surface p-3" data-testid="group-panel">
       <h2 id={`group-${eventId}`} className="pb-1 text-md font-semibold">
         Event group #{eventId} · {stationCount} stations
       </h2>
-      <p className="pb-2 text-sm text-ink-muted">First triggers at {stationCount} stations close enough in time for one source. Not located; no magnitude.</p>
+      <p className="pb-2 text-sm text-ink-muted">
+        First triggers at {stationCount} stations close enough in time for one source.{' '}
+        {builtEventId !== null ? (
+          <>
+            Its location and ML are on{' '}
+            <Link className="underline" to={`${paths.event.href}/${builtEventId}`}>
+              event {builtEventId}
+            </Link>
+            , with every station&apos;s traces.
+          </>
+        ) : (
+          'No event built from it yet: not located, no magnitude.'
+        )}
+      </p>
       {loading ? (
         <Loading label="Loading the group…" />
       ) : error || !ev ? (

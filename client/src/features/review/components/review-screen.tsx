@@ -26,6 +26,7 @@ import { unsavedWork } from '@client/features/review/lib/review-draft';
 import { FilterBar, filterLowFieldId } from './filter-bar';
 import { SessionCaution } from './session-caution';
 import { DraftBanner, FlagReasons, ReturnNote, SpectrumSection } from './assessment-notes';
+import { useEventIdsByGroup } from '@client/api/events/event-index';
 import { GroupLabelDialog, GroupPanel } from './event-group-panel';
 import { LabelForm, reviewFormDefaults, useReviewForm } from './label-form';
 import { MatchesPanel } from './matches-panel';
@@ -61,6 +62,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const actor = me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null;
   const mayWork = can(actor, 'queue.claim') && can(actor, 'queue.label');
   const mayLabelGroup = can(actor, 'queue.label');
+  const builtEvents = useEventIdsByGroup(can(actor, 'event.view') && (item.data?.candidateEvent ?? null) !== null);
 
   const detail = item.data;
   const analysis = useMemo(() => {
@@ -280,6 +282,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           {detail.candidateEvent ? (
             <GroupPanel
               eventId={detail.candidateEvent.id}
+              builtEventId={builtEvents.data?.get(detail.candidateEvent.id) ?? null}
               stationCount={detail.candidateEvent.stationCount}
               ev={group.data}
               loading={group.isPending}

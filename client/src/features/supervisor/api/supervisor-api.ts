@@ -153,6 +153,7 @@ const dashboardSchema = z.object({
   workload: z.array(z.object({ analyst: z.string(), actions: z.number() })),
   falseAlarmRate: z.array(z.number().nullable()),
   flaggedWithTruth: z.array(z.number()),
+  flaggedBeforeBaseline: z.array(z.number()),
 });
 /** The dashboard's numbers. */
 export type Dashboard = z.infer<typeof dashboardSchema>;

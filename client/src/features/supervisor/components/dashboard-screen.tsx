@@ -60,14 +60,19 @@ export function DashboardScreen() {
             y={{ label: 'median', unit: 'min' }}
             series={[{ label: 'median time to triage', values: d.medianTriageMinutes }]}
           />
-          <PlotFrame
-            title="False-alarm rate of “likely event”"
-            description="Of the items flagged likely event that arrived each day and have been labelled or dismissed, the share that turned out to be noise."
-            configure={withDayAxisShare}
-            x={{ label: 'day (UTC)', values: x, format: dayFormat }}
-            y={{ label: 'false alarms', format: (v) => `${Math.round(v * 100)} %` }}
-            series={[{ label: 'false-alarm rate', values: d.falseAlarmRate }]}
-          />
+          <div className="flex flex-col gap-1">
+            <PlotFrame
+              title="False-alarm rate of “likely event”"
+              description="Of the items flagged likely event against their station's own noise that arrived each day and have been labelled or dismissed, the share that turned out to be noise."
+              configure={withDayAxisShare}
+              x={{ label: 'day (UTC)', values: x, format: dayFormat }}
+              y={{ label: 'false alarms', format: (v) => `${Math.round(v * 100)} %` }}
+              series={[{ label: 'false-alarm rate', values: d.falseAlarmRate }]}
+            />
+            <p className="text-xs text-ink-muted" data-testid="before-baseline">
+              {beforeBaselineNote(d.flaggedWithTruth.reduce((a, b) => a + b, 0), d.flaggedBeforeBaseline.reduce((a, b) => a + b, 0))}
+            </p>
+          </div>
           <Section title="Analyst workload">
             <Table caption="Labels, dismissals and escalations per analyst in the period">
               <THead>
@@ -97,4 +102,11 @@ export function DashboardScreen() {
       <FamiliesPanel />
     </SupervisorPage>
   );
+}
+
+/** What the false-alarm chart counts, in words: flags with a known outcome, and those left out because their station had no baseline yet. */
+function beforeBaselineNote(withTruth: number, beforeBaseline: number): string {
+  const counted = `${withTruth} “likely event” flag${withTruth === 1 ? '' : 's'} scored against the station's own noise and since labelled or dismissed.`;
+  if (beforeBaseline === 0) return counted;
+  return `${counted} Not counted: ${beforeBaseline} flagged before the station had a noise baseline (scored with the network default, e.g. a new station's first windows).`;
 }
