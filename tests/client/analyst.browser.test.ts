@@ -280,7 +280,9 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
         await page.waitForTimeout(300);
         await screenshot(page, `analyst-review-${width}-${colorScheme}`);
         if (width === 1440 && colorScheme === 'dark') {
-          expect(await page.locator('[data-testid="group-panel"] a').count()).toBe(2);
+          // The two other members, and the event built from the group (its location and ML).
+          expect(await page.locator('[data-testid="group-panel"] a[href^="/queue/items/"]').count()).toBe(2);
+          expect(await page.locator('[data-testid="group-panel"] a[href^="/events/"]').count()).toBe(1);
           await expect(page.getByRole('button', { name: /Label the whole group/ }).isVisible()).resolves.toBe(true);
           await expect(page.locator('[data-testid="signal-spectrum"]').isVisible()).resolves.toBe(true);
           const a11y = await checkA11y(page);
