@@ -30,6 +30,20 @@ export const queryKeys = {
     stations: ['supervisor', 'stations'] as const,
     dashboard: (from: string | undefined, to: string | undefined) => ['supervisor', 'dashboard', from, to] as const,
     latestWindows: (stationId: number | undefined) => ['supervisor', 'latest-windows', stationId ?? 'all'] as const,
+    /** The catalogue's events whose first arrival lies in [from, to) (under the review part: a live change refetches them). */
+    catalogueEvents: (from: string, to: string) => ['supervisor', 'review', 'events', from, to] as const,
+    /** One catalogue event opened on demand, with its member windows. */
+    catalogueEvent: (id: number) => ['supervisor', 'review', 'event', id] as const,
+    velocityModel: (network: string) => ['supervisor', 'velocity-model', network] as const,
+  },
+  /** Located events (the event screen and the queue's links to it). */
+  events: {
+    all: ['events'] as const,
+    /** Candidate group id → event id, for the queue's and the review screen's links. */
+    byGroup: ['events', 'by-group'] as const,
+    detail: (id: number) => ['events', 'detail', id] as const,
+    geometry: (id: number) => ['events', 'geometry', id] as const,
+    traces: (id: number, points: number) => ['events', 'traces', id, points] as const,
   },
   stations: {
     all: ['stations'] as const,

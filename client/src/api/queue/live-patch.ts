@@ -13,7 +13,8 @@ import { queryKeys } from '@client/lib/query-keys';
  *   part already loaded (rows further down arrive with later pages);
  * - the counts per state of each list are refreshed with one small request per burst of changes;
  * - an open item whose version moved on is refetched;
- * - a change without a usable summary invalidates the lists.
+ * - a change without a usable summary invalidates the lists;
+ * - an event change refreshes which group opens which event, and an open event that is behind.
  */
 
 type Listener = () => void;
@@ -151,6 +152,14 @@ export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[])
       void qc.invalidateQueries({ queryKey: queryKeys.queue.candidateEvent(c.id) });
       continue;
     }
+    if (c.resource === 'event') {
+      // A new or merged event changes which group opens which event; an open event screen
+      // that is behind (another analyst moved a pick or relocated) is refetched.
+      if (c.kind !== 'updated') void qc.invalidateQueries({ queryKey: queryKeys.events.byGroup });
+      const shown = qc.getQueryData<{ event: { version: number } }>(queryKeys.events.detail(c.id));
+      if (shown && (c.kind === 'deleted' || shown.event.version < c.version)) void qc.invalidateQueries({ queryKey: queryKeys.events.detail(c.id) });
+      continue;
+    }
     if (c.resource !== 'item') continue;
     const row = queueRowSchema.safeParse(c.summary);
     if (row.success) patchRow(qc, row.data, c.kind);
@@ -179,4 +188,5 @@ function scheduleListRefetch(qc: QueryClient): void {
 /** The server could not replay what was missed: every queue query is refetched. */
 export function refetchAll(qc: QueryClient): void {
   void qc.invalidateQueries({ queryKey: queryKeys.queue.all });
+  void qc.invalidateQueries({ queryKey: queryKeys.events.all });
 }

@@ -4,14 +4,10 @@ import { eventGeometrySchema } from '@shared/schemas/event-geometry';
 import { eventTracesSchema } from '@shared/schemas/event-traces';
 import { useEffect, useRef } from 'react';
 import { apiRequest } from '@client/lib/api-client';
+import { queryKeys } from '@client/lib/query-keys';
 
 /** Query keys of the event screen (one factory; every event key starts with `['events']`). */
-export const eventKeys = {
-  all: ['events'] as const,
-  detail: (id: number) => ['events', 'detail', id] as const,
-  geometry: (id: number) => ['events', 'geometry', id] as const,
-  traces: (id: number, points: number) => ['events', 'traces', id, points] as const,
-};
+export const eventKeys = queryKeys.events;
 
 /** Points per trace asked of the server (min/max buckets): about two per screen pixel of a wide plot. */
 export const EVENT_TRACE_POINTS = 2400;

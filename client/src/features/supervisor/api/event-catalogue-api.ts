@@ -10,19 +10,17 @@ import { queryKeys } from '@client/lib/query-keys';
  * keys, so a live change of an event or item refetches them with the review list.
  */
 
-const reviewPart = queryKeys.supervisor.part('review');
-
 /** The events whose first arrival lies in [from, to), newest first (at most 1000). */
 export const eventCatalogueQuery = (from: string, to: string) =>
   queryOptions({
-    queryKey: [...reviewPart, 'events', from, to] as const,
+    queryKey: queryKeys.supervisor.catalogueEvents(from, to),
     queryFn: ({ signal }) => apiRequest(eventListSchema, '/api/events', { query: { from, to, limit: '1000' }, signal }),
   });
 
 /** One event with its member windows (for a catalogue row opened on demand). */
 export const eventMembersQuery = (id: number) =>
   queryOptions({
-    queryKey: [...reviewPart, 'event', id] as const,
+    queryKey: queryKeys.supervisor.catalogueEvent(id),
     queryFn: ({ signal }) => apiRequest(eventDetailSchema, `/api/events/${id}`, { signal }),
   });
 
@@ -45,7 +43,7 @@ export function returnEventToAnalysts(id: number, eventVersion: number, comment:
 /** A network's velocity model and ML settings. */
 export const velocityModelQuery = (network: string) =>
   queryOptions({
-    queryKey: [...queryKeys.supervisor.all, 'velocity-model', network] as const,
+    queryKey: queryKeys.supervisor.velocityModel(network),
     queryFn: ({ signal }) => apiRequest(velocityModelViewSchema, `/api/events/velocity-models/${encodeURIComponent(network)}`, { signal }),
   });
 
