@@ -331,7 +331,7 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
   const full = buffer('base', 2 * q).subarray(0, 2 * q);
   const out = buffer('out', 2 * q).subarray(0, 2 * q);
   // fft.js's inverse divides by q; the block's correlation needs 1/B, and the analytic signal 2×.
-  const gain = (2 * q) / block;
+  const gain = 2 / block;
   const pairsX: number[] = [];
   const pairsW: number[] = [];
   for (const g of group) {
@@ -375,9 +375,9 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
           const vi = w[w1 + k + 1] as number;
           const tr = w[w2 + k] as number;
           const ti = w[w2 + k + 1] as number;
-          // (a + ib)(c − id) = (ac + bd) + i(bc − ad), summed over the three.
+          // (a + ib)(c − id) = (ac + bd) + i(bc − ad), summed over the three; stored conjugated.
           full[k] = ar * ur + ai * ui + br * vr + bi * vi + cr * tr + ci * ti;
-          full[k + 1] = ai * ur - ar * ui + bi * vr - br * vi + ci * tr - cr * ti;
+          full[k + 1] = ar * ui - ai * ur + br * vi - bi * vr + cr * ti - ci * tr;
         }
       } else {
         full.fill(0, 0, stride);
@@ -390,12 +390,12 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
             const wr = w[wo + k] as number;
             const wi = w[wo + k + 1] as number;
             full[k] = (full[k] as number) + xr * wr + xi * wi;
-            full[k + 1] = (full[k + 1] as number) + xi * wr - xr * wi;
+            full[k + 1] = (full[k + 1] as number) + xr * wi - xi * wr;
           }
         }
       }
       full.fill(0, stride);
-      basePlan.inverseTransform(out, full);
+      basePlan.transform(out, full);
       const from = b * hop;
       const jEnd = Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, inv.length) - from) / dec), q);
       for (let j = 0; j < jEnd; j++) {
