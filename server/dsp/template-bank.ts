@@ -127,7 +127,7 @@ function bandBins(block: number, band: { lo: number; hi: number }): { kLo: numbe
 }
 
 /** Work buffers of the matcher, kept for the thread's life and grown on demand (no allocation per template). */
-const work = { input: new Float64Array(0), spectrum: new Float64Array(0), base: new Float64Array(0), out: new Float64Array(0) };
+const work = { input: new Float64Array(0), spectrum: new Float64Array(0), base: new Float64Array(0), out: new Float64Array(0), dots: new Float64Array(0) };
 function buffer(name: keyof typeof work, n: number): Float64Array {
   if (work[name].length < n) work[name] = new Float64Array(n);
   return work[name];
@@ -443,6 +443,16 @@ function refineAround(t: BankTemplate, map: readonly number[], traces: readonly 
   if (!(ww > 0)) return null;
   const floor = total * 1e-12;
   let best: { value: number; lag: number } | null = null;
+  // Σ_c Σ_i w_c[i]·x_c[lag + i] for every lag lo … hi, component after component (the same sums, in
+  // the same order, as one innerProduct per lag and component; two lags per pass over w).
+  const count = hi - lo + 1;
+  if (count <= 0) return null;
+  const dots = buffer('dots', count).subarray(0, count).fill(0);
+  for (let c = 0; c < t.samples.length; c++) {
+    const ci = map[c] as number;
+    if (ci < 0) continue;
+    innerProducts(t.samples[c] as ArrayLike<number>, traces[ci] as Float64Array, lo, count, m, dots);
+  }
   for (let lag = lo; lag <= hi; lag++) {
     let xx = 0;
     for (let c = 0; c < t.samples.length; c++) {
@@ -452,13 +462,7 @@ function refineAround(t: BankTemplate, map: readonly number[], traces: readonly 
       xx += (cs[lag + m] as number) - (cs[lag] as number);
     }
     if (!(xx > floor)) continue;
-    let dot = 0;
-    for (let c = 0; c < t.samples.length; c++) {
-      const ci = map[c] as number;
-      if (ci < 0) continue;
-      dot += innerProduct(t.samples[c] as ArrayLike<number>, traces[ci] as Float64Array, lag, m);
-    }
-    const v = dot / Math.sqrt(ww * xx);
+    const v = (dots[lag - lo] as number) / Math.sqrt(ww * xx);
     if (!best || v > best.value) best = { value: Math.max(-1, Math.min(1, v)), lag };
   }
   if (!best) return null;
@@ -479,6 +483,53 @@ function refineAround(t: BankTemplate, map: readonly number[], traces: readonly 
     return xx > 0 && wc > 0 ? dot / Math.sqrt(xx * wc) : null;
   });
   return { ...best, perChannel };
+}
+
+/**
+ * out[j] += Σ_{i<m} w[i]·x[from + j + i] for j = 0 … count − 1: each sum exactly as `innerProduct`
+ * (four partial sums by i mod 4, added as s0 + s1 + (s2 + s3)), two lags per pass over w (eight
+ * independent chains; each w[i] read once for both).
+ */
+function innerProducts(w: ArrayLike<number>, x: Float64Array, from: number, count: number, m: number, out: Float64Array): void {
+  let j = 0;
+  for (; j + 1 < count; j += 2) {
+    const f = from + j;
+    let a0 = 0;
+    let a1 = 0;
+    let a2 = 0;
+    let a3 = 0;
+    let b0 = 0;
+    let b1 = 0;
+    let b2 = 0;
+    let b3 = 0;
+    let i = 0;
+    for (; i + 3 < m; i += 4) {
+      const w0 = w[i] as number;
+      const w1 = w[i + 1] as number;
+      const w2 = w[i + 2] as number;
+      const w3 = w[i + 3] as number;
+      const x0 = x[f + i] as number;
+      const x1 = x[f + i + 1] as number;
+      const x2 = x[f + i + 2] as number;
+      const x3 = x[f + i + 3] as number;
+      const x4 = x[f + i + 4] as number;
+      a0 += w0 * x0;
+      a1 += w1 * x1;
+      a2 += w2 * x2;
+      a3 += w3 * x3;
+      b0 += w0 * x1;
+      b1 += w1 * x2;
+      b2 += w2 * x3;
+      b3 += w3 * x4;
+    }
+    for (; i < m; i++) {
+      a0 += (w[i] as number) * (x[f + i] as number);
+      b0 += (w[i] as number) * (x[f + 1 + i] as number);
+    }
+    out[j] = (out[j] as number) + (a0 + a1 + (a2 + a3));
+    out[j + 1] = (out[j + 1] as number) + (b0 + b1 + (b2 + b3));
+  }
+  if (j < count) out[j] = (out[j] as number) + innerProduct(w, x, from + j, m);
 }
 
 /** Σ_{i<m} w[i]·x[from + i], four partial sums (independent chains run in parallel on the CPU). */
