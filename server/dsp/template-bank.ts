@@ -1,4 +1,13 @@
+import { DifPlan } from './dif-fft';
 import { fftPlan, nextPowerOfTwo } from './xcorr';
+
+const difPlans = new Map<number, DifPlan>();
+/** The in-place DIF plan for size n, kept across calls. */
+function difPlan(n: number): DifPlan {
+  let p = difPlans.get(n);
+  if (!p) difPlans.set(n, (p = new DifPlan(n)));
+  return p;
+}
 
 /**
  * Matching one window against a station's bank of templates (hundreds to thousands) with the
@@ -155,6 +164,18 @@ export function prepareTemplate(t: BankTemplate, step: number, block: number, kL
   return { step, block, kLo, kHi, m, band, energy, bytes: band.byteLength };
 }
 
+/** The coarse pass's envelope reading order for one (component subset, coarse length): see coarsePass. */
+interface Scan {
+  /** Entries of block b: start[b] … start[b + 1] − 1. */
+  start: Int32Array;
+  /** Position of the transform's output holding the entry's lag. */
+  pos: Int32Array;
+  /** The coarse lag. */
+  lag: Int32Array;
+  /** 1 / data energy over the template's length there (0: empty segment). */
+  scale2: Float64Array;
+}
+
 /** A usable template of one call: its component → window trace mapping and length. */
 interface Usable {
   t: BankTemplate;
@@ -278,7 +299,7 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
   const nb = kHi - kLo + 1;
   const q = nextPowerOfTwo(nb);
   const dec = block / q;
-  const basePlan = fftPlan(q);
+  const basePlan = difPlan(q);
   let mMax = 0;
   let mMin = Infinity;
   for (const g of group) {
@@ -306,15 +327,21 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
       dataBand.set(tmp.subarray(2 * kLo, 2 * (kHi + 1)), (b * nx + c) * stride);
     }
   }
-  // 1/√(segment energy) per (component subset, coarse length), shared by templates alike; 0 for an
-  // empty segment (dead channel, zero padding), as in normalizedXcorr.
-  const energies = new Map<number, Float64Array>();
-  const invEnergyOf = (mask: number, m: number): Float64Array => {
+  // Where to read each block's envelope: per (component subset, coarse length), shared by templates
+  // alike, the lags of each block in increasing order with the position of the transform's output
+  // that holds them (dif-fft.ts leaves outputs in digit-reversed order) and 1/(segment energy), 0 for
+  // an empty segment (dead channel, zero padding), as in normalizedXcorr.
+  const where = new Int32Array(q);
+  basePlan.order.forEach((j, p) => {
+    where[j] = p;
+  });
+  const scans = new Map<number, Scan>();
+  const scanOf = (mask: number, m: number): Scan => {
     const key = mask * 1_000_000 + m;
-    let e = energies.get(key);
-    if (!e) {
+    let sc = scans.get(key);
+    if (!sc) {
       const lags = Math.max(0, nc - m + 1);
-      e = new Float64Array(lags);
+      const e = new Float64Array(lags);
       let eMax = 0;
       for (let ci = 0; ci < nx; ci++) {
         if (!(mask & (1 << ci))) continue;
@@ -323,20 +350,39 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
       }
       for (let l = 0; l < lags; l++) if ((e[l] as number) > eMax) eMax = e[l] as number;
       const floor = eMax * 1e-12;
-      for (let l = 0; l < lags; l++) e[l] = (e[l] as number) > floor ? 1 / Math.sqrt(e[l] as number) : 0;
-      energies.set(key, e);
+      const start = new Int32Array(blocks + 1);
+      const counts: number[] = [];
+      for (let b = 0; b < blocks; b++) {
+        const from = b * hop;
+        counts.push(Math.max(0, Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, lags) - from) / dec), q)));
+        start[b + 1] = (start[b] as number) + (counts[b] as number);
+      }
+      const total = start[blocks] as number;
+      const pos = new Int32Array(total);
+      const lag = new Int32Array(total);
+      const scale2 = new Float64Array(total);
+      for (let b = 0; b < blocks; b++) {
+        for (let j = 0; j < (counts[b] as number); j++) {
+          const i = (start[b] as number) + j;
+          const l = b * hop + j * dec;
+          pos[i] = where[j] as number;
+          lag[i] = l;
+          scale2[i] = (e[l] as number) > floor ? 1 / (e[l] as number) : 0;
+        }
+      }
+      sc = { start, pos, lag, scale2 };
+      scans.set(key, sc);
     }
-    return e;
+    return sc;
   };
   const full = buffer('base', 2 * q).subarray(0, 2 * q);
-  const out = buffer('out', 2 * q).subarray(0, 2 * q);
-  // fft.js's inverse divides by q; the block's correlation needs 1/B, and the analytic signal 2×.
+  // The block's correlation needs 1/B, and the analytic signal 2×.
   const gain = 2 / block;
   const pairsX: number[] = [];
   const pairsW: number[] = [];
   for (const g of group) {
     const p = g.p as Prepared;
-    const inv = invEnergyOf(g.mask, p.m);
+    const sc = scanOf(g.mask, p.m);
     const wInv = p.energy > 0 ? 1 / Math.sqrt(p.energy) : 0;
     // (window component, template component) offsets of the pairs present in the window.
     pairsX.length = 0;
@@ -394,19 +440,18 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
           }
         }
       }
-      full.fill(0, stride);
-      basePlan.transform(out, full);
-      const from = b * hop;
-      const jEnd = Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, inv.length) - from) / dec), q);
-      for (let j = 0; j < jEnd; j++) {
-        const re = out[2 * j] as number;
-        const im = out[2 * j + 1] as number;
-        // Envelope² scaled by the data energy; compared squared (no square root per lag).
-        const scale = inv[from + j * dec] as number;
-        const env2 = (re * re + im * im) * scale * scale;
+      // In place, bins ≥ nb read as 0; position p then holds output order[p] (dif-fft.ts).
+      basePlan.transform(full, nb);
+      // Envelope² scaled by the data energy, lag after lag; compared squared (no square root per lag).
+      const end = sc.start[b + 1] as number;
+      for (let i = sc.start[b] as number; i < end; i++) {
+        const p2 = 2 * (sc.pos[i] as number);
+        const re = full[p2] as number;
+        const im = full[p2 + 1] as number;
+        const env2 = (re * re + im * im) * (sc.scale2[i] as number);
         if (env2 > bestEnv) {
           bestEnv = env2;
-          bestLag = from + j * dec;
+          bestLag = sc.lag[i] as number;
         }
       }
     }
