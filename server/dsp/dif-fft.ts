@@ -68,7 +68,12 @@ export class DifPlan {
       this.firstStage(data, nz);
       len = n / 4;
     } else data.fill(0, 2 * nz, 2 * n);
-    for (; len >= 8; len /= 4) this.stage(data, len);
+    for (; len > 8; len /= 4) this.stage(data, len);
+    if (len === 8) {
+      // Span 8 then the radix-2 stage, in one pass over the data.
+      this.lastEight(data);
+      return;
+    }
     if (len === 4) {
       // The last radix-4 stage: every twiddle is 1.
       for (let ia = 0; ia < 2 * n; ia += 8) {
@@ -109,6 +114,97 @@ export class DifPlan {
         data[ia + 2] = ar - br;
         data[ia + 3] = ai - bi;
       }
+    }
+  }
+
+  /**
+   * The radix-4 stage of span 8 (twiddles 1 for k = 0; W, W², W³ for k = 1, W = e^{−2πi/8}, the
+   * table's entries) followed by the radix-2 stage, on each group of 8 in registers: the same
+   * operations as the two passes.
+   */
+  private lastEight(data: Float64Array): void {
+    const n = this.size;
+    const t1 = 2 * (n / 8);
+    const w1r = this.table[t1] as number;
+    const w1i = this.table[t1 + 1] as number;
+    const w2r = this.table[2 * t1] as number;
+    const w2i = this.table[2 * t1 + 1] as number;
+    const w3r = this.table[3 * t1] as number;
+    const w3i = this.table[3 * t1 + 1] as number;
+    for (let o = 0; o < 2 * n; o += 16) {
+      // k = 0: a, b, c, d at 0, 2, 4, 6 (complex), twiddle 1.
+      let ar = data[o] as number;
+      let ai = data[o + 1] as number;
+      let br = data[o + 4] as number;
+      let bi = data[o + 5] as number;
+      let cr = data[o + 8] as number;
+      let ci = data[o + 9] as number;
+      let dr = data[o + 12] as number;
+      let di = data[o + 13] as number;
+      let s0r = ar + cr;
+      let s0i = ai + ci;
+      let s1r = ar - cr;
+      let s1i = ai - ci;
+      let s2r = br + dr;
+      let s2i = bi + di;
+      let s3r = br - dr;
+      let s3i = bi - di;
+      const p0r = s0r + s2r;
+      const p0i = s0i + s2i;
+      const p2r = s1r + s3i;
+      const p2i = s1i - s3r;
+      const p4r = s0r - s2r;
+      const p4i = s0i - s2i;
+      const p6r = s1r - s3i;
+      const p6i = s1i + s3r;
+      // k = 1: a, b, c, d at 1, 3, 5, 7, twiddles W, W², W³.
+      ar = data[o + 2] as number;
+      ai = data[o + 3] as number;
+      br = data[o + 6] as number;
+      bi = data[o + 7] as number;
+      cr = data[o + 10] as number;
+      ci = data[o + 11] as number;
+      dr = data[o + 14] as number;
+      di = data[o + 15] as number;
+      s0r = ar + cr;
+      s0i = ai + ci;
+      s1r = ar - cr;
+      s1i = ai - ci;
+      s2r = br + dr;
+      s2i = bi + di;
+      s3r = br - dr;
+      s3i = bi - di;
+      const p1r = s0r + s2r;
+      const p1i = s0i + s2i;
+      const y1r = s1r + s3i;
+      const y1i = s1i - s3r;
+      const y2r = s0r - s2r;
+      const y2i = s0i - s2i;
+      const y3r = s1r - s3i;
+      const y3i = s1i + s3r;
+      const p3r = y1r * w1r - y1i * w1i;
+      const p3i = y1r * w1i + y1i * w1r;
+      const p5r = y2r * w2r - y2i * w2i;
+      const p5i = y2r * w2i + y2i * w2r;
+      const p7r = y3r * w3r - y3i * w3i;
+      const p7i = y3r * w3i + y3i * w3r;
+      // Radix 2 on the pairs (0, 1), (2, 3), (4, 5), (6, 7).
+      data[o] = p0r + p1r;
+      data[o + 1] = p0i + p1i;
+      data[o + 2] = p0r - p1r;
+      data[o + 3] = p0i - p1i;
+      data[o + 4] = p2r + p3r;
+      data[o + 5] = p2i + p3i;
+      data[o + 6] = p2r - p3r;
+      data[o + 7] = p2i - p3i;
+      data[o + 8] = p4r + p5r;
+      data[o + 9] = p4i + p5i;
+      data[o + 10] = p4r - p5r;
+      data[o + 11] = p4i - p5i;
+      data[o + 12] = p6r + p7r;
+      data[o + 13] = p6i + p7i;
+      data[o + 14] = p6r - p7r;
+      data[o + 15] = p6i - p7i;
     }
   }
 
