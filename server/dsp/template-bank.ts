@@ -21,9 +21,12 @@ function difPlan(n: number): DifPlan {
  *    coarse samples (B the power of two ≥ 4·M', M' the coarse template length) is transformed once per
  *    component; each template's spectra are prepared once and may be kept between windows
  *    (`PreparedCache`). Per template and block, the components' products X·conj(W) are summed over
- *    the band's bins only, and one inverse FFT of the next power of two Q above their count gives the
+ *    the band's bins only, and one inverse DFT of the next power of two Q above their count gives the
  *    ANALYTIC correlation moved to 0 Hz (negative frequencies dropped), sampled every B/Q coarse lags;
- *    its magnitude is the correlation's envelope. Templates are ranked by their largest normalised
+ *    its magnitude is the correlation's envelope. (It is computed as the forward transform of the
+ *    conjugated products, whose outputs are the conjugates of the inverse's times Q: same magnitudes,
+ *    no division per output; in place, by dif-fft.ts, which does not read the zero bins above the
+ *    band and leaves the outputs in digit-reversed order, read through per-block lists of lags.) Templates are ranked by their largest normalised
  *    envelope: unlike the correlation itself, sampled every k samples, the envelope's peak does not
  *    drop when the true peak falls between coarse lags (for a narrow-band 8 Hz burst at k = 4 the
  *    sampled correlation can lose half its peak; the envelope, as smooth as the band is narrow,
@@ -286,7 +289,8 @@ function runningSquares(x: Float64Array): Float64Array {
  * correlation r summed over the template's components present in the window) are written to bins
  * 0 … kHi − kLo, the rest 0. The data's band bins are transformed once per block and component and
  * kept in one array; the templates' band bins come prepared (`PreparedCache`). The inverse
- * transform of size Q of these bins is, at every (B/Q)-th lag, the analytic signal z = r + i·H(r) of r
+ * transform of size Q of these bins (computed as the forward transform of their conjugates: same
+ * magnitudes, scale Q instead of 1) is, at every (B/Q)-th lag, the analytic signal z = r + i·H(r) of r
  * (negative frequencies dropped, positive doubled: Bracewell, The Fourier Transform and Its
  * Applications, ch. 12) times a phase ramp — so its magnitude is r's envelope, sampled every B/Q coarse
  * lags (the envelope is as smooth as the band is narrow, so this loses little), and its peak does not
@@ -376,7 +380,7 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
     return sc;
   };
   const full = buffer('base', 2 * q).subarray(0, 2 * q);
-  // The block's correlation needs 1/B, and the analytic signal 2×.
+  // The transform sums without scaling; the block's correlation needs 1/B, and the analytic signal 2×.
   const gain = 2 / block;
   const pairsX: number[] = [];
   const pairsW: number[] = [];
