@@ -167,16 +167,15 @@ export function prepareTemplate(t: BankTemplate, step: number, block: number, kL
   return { step, block, kLo, kHi, m, band, energy, bytes: band.byteLength };
 }
 
-/** The coarse pass's envelope reading order for one (component subset, coarse length): see coarsePass. */
+/**
+ * The coarse pass's envelope weights for one (component subset, coarse length), per block b at
+ * offset b·q: by position of the transform's output (dif-fft.ts leaves them in digit-reversed
+ * order), 1 / data energy over the template's length at that position's lag (0: empty segment; NaN:
+ * a lag the block does not cover), and the lag.
+ */
 interface Scan {
-  /** Entries of block b: start[b] … start[b + 1] − 1. */
-  start: Int32Array;
-  /** Position of the transform's output holding the entry's lag. */
-  pos: Int32Array;
-  /** The coarse lag. */
+  weight: Float64Array;
   lag: Int32Array;
-  /** 1 / data energy over the template's length there (0: empty segment). */
-  scale2: Float64Array;
 }
 
 /** A usable template of one call: its component → window trace mapping and length. */
@@ -332,13 +331,9 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
     }
   }
   // Where to read each block's envelope: per (component subset, coarse length), shared by templates
-  // alike, the lags of each block in increasing order with the position of the transform's output
-  // that holds them (dif-fft.ts leaves outputs in digit-reversed order) and 1/(segment energy), 0 for
-  // an empty segment (dead channel, zero padding), as in normalizedXcorr.
-  const where = new Int32Array(q);
-  basePlan.order.forEach((j, p) => {
-    where[j] = p;
-  });
+  // alike, each output position's lag and its weight 1/(segment energy), 0 for an empty segment (dead
+  // channel, zero padding), as in normalizedXcorr, NaN where the block does not cover the lag.
+  const order = basePlan.order;
   const scans = new Map<number, Scan>();
   const scanOf = (mask: number, m: number): Scan => {
     const key = mask * 1_000_000 + m;
@@ -354,27 +349,19 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
       }
       for (let l = 0; l < lags; l++) if ((e[l] as number) > eMax) eMax = e[l] as number;
       const floor = eMax * 1e-12;
-      const start = new Int32Array(blocks + 1);
-      const counts: number[] = [];
+      const weight = new Float64Array(blocks * q).fill(NaN);
+      const lag = new Int32Array(blocks * q);
       for (let b = 0; b < blocks; b++) {
         const from = b * hop;
-        counts.push(Math.max(0, Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, lags) - from) / dec), q)));
-        start[b + 1] = (start[b] as number) + (counts[b] as number);
-      }
-      const total = start[blocks] as number;
-      const pos = new Int32Array(total);
-      const lag = new Int32Array(total);
-      const scale2 = new Float64Array(total);
-      for (let b = 0; b < blocks; b++) {
-        for (let j = 0; j < (counts[b] as number); j++) {
-          const i = (start[b] as number) + j;
-          const l = b * hop + j * dec;
-          pos[i] = where[j] as number;
-          lag[i] = l;
-          scale2[i] = (e[l] as number) > floor ? 1 / (e[l] as number) : 0;
+        const jEnd = Math.max(0, Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, lags) - from) / dec), q));
+        for (let p = 0; p < q; p++) {
+          const j = order[p] as number;
+          const l = from + j * dec;
+          lag[b * q + p] = l;
+          if (j < jEnd) weight[b * q + p] = (e[l] as number) > floor ? 1 / (e[l] as number) : 0;
         }
       }
-      sc = { start, pos, lag, scale2 };
+      sc = { weight, lag };
       scans.set(key, sc);
     }
     return sc;
@@ -444,19 +431,12 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
           }
         }
       }
-      // In place, bins ≥ nb read as 0; position p then holds output order[p] (dif-fft.ts).
-      basePlan.transform(full, nb);
-      // Envelope² scaled by the data energy, lag after lag; compared squared (no square root per lag).
-      const end = sc.start[b + 1] as number;
-      for (let i = sc.start[b] as number; i < end; i++) {
-        const p2 = 2 * (sc.pos[i] as number);
-        const re = full[p2] as number;
-        const im = full[p2 + 1] as number;
-        const env2 = (re * re + im * im) * (sc.scale2[i] as number);
-        if (env2 > bestEnv) {
-          bestEnv = env2;
-          bestLag = sc.lag[i] as number;
-        }
+      // In place, bins ≥ nb read as 0; the largest envelope² scaled by the data energy (compared
+      // squared: no square root per lag), the earliest lag on a tie (dif-fft.ts).
+      const pk = basePlan.peak(full, nb, sc.weight, sc.lag, b * q);
+      if (pk.pos >= 0 && (pk.value > bestEnv || (pk.value === bestEnv && (sc.lag[b * q + pk.pos] as number) < bestLag))) {
+        bestEnv = pk.value;
+        bestLag = sc.lag[b * q + pk.pos] as number;
       }
     }
     if (bestEnv > -Infinity) {
