@@ -27,10 +27,10 @@ function difPlan(n: number): DifPlan {
  *    conjugated products, whose outputs are the conjugates of the inverse's times Q: same magnitudes,
  *    no division per output; in place, by dif-fft.ts, which does not read the zero bins above the
  *    band and weighs each output by 1/(data energy) at its lag as its last stages make it.)
- *    Templates are ranked by their largest normalised envelope: unlike the correlation itself, sampled every k samples, the envelope's peak does not
- *    drop when the true peak falls between coarse lags (for a narrow-band 8 Hz burst at k = 4 the
- *    sampled correlation can lose half its peak; the envelope, as smooth as the band is narrow,
- *    loses little).
+ *    Templates are ranked by their largest normalised envelope: unlike the correlation itself,
+ *    sampled every k samples, the envelope's peak does not drop when the true peak falls between
+ *    coarse lags (for a narrow-band 8 Hz burst at k = 4 the sampled correlation can lose half its
+ *    peak; the envelope, as smooth as the band is narrow, loses little).
  * 2. Exact, in the time domain: for the best-ranked templates (`refine`), C is computed by its
  *    definition at full rate over every lag within k·(2 + ⌈B/2Q⌉) + ⌈fs / (2·f_min)⌉ samples of the
  *    envelope peak (the correlation's largest cycle lies within half a period of the band's lowest frequency
