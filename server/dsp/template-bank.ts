@@ -1,4 +1,13 @@
+import { DifPlan } from './dif-fft';
 import { fftPlan, nextPowerOfTwo } from './xcorr';
+
+const difPlans = new Map<number, DifPlan>();
+/** The in-place DIF plan for size n, kept across calls. */
+function difPlan(n: number): DifPlan {
+  let p = difPlans.get(n);
+  if (!p) difPlans.set(n, (p = new DifPlan(n)));
+  return p;
+}
 
 /**
  * Matching one window against a station's bank of templates (hundreds to thousands) with the
@@ -12,13 +21,16 @@ import { fftPlan, nextPowerOfTwo } from './xcorr';
  *    coarse samples (B the power of two ≥ 4·M', M' the coarse template length) is transformed once per
  *    component; each template's spectra are prepared once and may be kept between windows
  *    (`PreparedCache`). Per template and block, the components' products X·conj(W) are summed over
- *    the band's bins only, and one inverse FFT of the next power of two Q above their count gives the
+ *    the band's bins only, and one inverse DFT of the next power of two Q above their count gives the
  *    ANALYTIC correlation moved to 0 Hz (negative frequencies dropped), sampled every B/Q coarse lags;
- *    its magnitude is the correlation's envelope. Templates are ranked by their largest normalised
- *    envelope: unlike the correlation itself, sampled every k samples, the envelope's peak does not
- *    drop when the true peak falls between coarse lags (for a narrow-band 8 Hz burst at k = 4 the
- *    sampled correlation can lose half its peak; the envelope, as smooth as the band is narrow,
- *    loses little).
+ *    its magnitude is the correlation's envelope. (It is computed as the forward transform of the
+ *    conjugated products, whose outputs are the conjugates of the inverse's times Q: same magnitudes,
+ *    no division per output; in place, by dif-fft.ts, which does not read the zero bins above the
+ *    band and weighs each output by 1/(data energy) at its lag as its last stages make it.)
+ *    Templates are ranked by their largest normalised envelope: unlike the correlation itself,
+ *    sampled every k samples, the envelope's peak does not drop when the true peak falls between
+ *    coarse lags (for a narrow-band 8 Hz burst at k = 4 the sampled correlation can lose half its
+ *    peak; the envelope, as smooth as the band is narrow, loses little).
  * 2. Exact, in the time domain: for the best-ranked templates (`refine`), C is computed by its
  *    definition at full rate over every lag within k·(2 + ⌈B/2Q⌉) + ⌈fs / (2·f_min)⌉ samples of the
  *    envelope peak (the correlation's largest cycle lies within half a period of the band's lowest frequency
@@ -127,7 +139,7 @@ function bandBins(block: number, band: { lo: number; hi: number }): { kLo: numbe
 }
 
 /** Work buffers of the matcher, kept for the thread's life and grown on demand (no allocation per template). */
-const work = { input: new Float64Array(0), spectrum: new Float64Array(0), base: new Float64Array(0), out: new Float64Array(0) };
+const work = { input: new Float64Array(0), spectrum: new Float64Array(0), base: new Float64Array(0), out: new Float64Array(0), dots: new Float64Array(0) };
 function buffer(name: keyof typeof work, n: number): Float64Array {
   if (work[name].length < n) work[name] = new Float64Array(n);
   return work[name];
@@ -153,6 +165,17 @@ export function prepareTemplate(t: BankTemplate, step: number, block: number, kL
     band.set(out.subarray(2 * kLo, 2 * (kHi + 1)), c * nb * 2);
   });
   return { step, block, kLo, kHi, m, band, energy, bytes: band.byteLength };
+}
+
+/**
+ * The coarse pass's envelope weights for one (component subset, coarse length), per block b at
+ * offset b·q: by position of the transform's output (dif-fft.ts leaves them in digit-reversed
+ * order), 1 / data energy over the template's length at that position's lag (0: empty segment; NaN:
+ * a lag the block does not cover), and the lag.
+ */
+interface Scan {
+  weight: Float64Array;
+  lag: Int32Array;
 }
 
 /** A usable template of one call: its component → window trace mapping and length. */
@@ -265,7 +288,8 @@ function runningSquares(x: Float64Array): Float64Array {
  * correlation r summed over the template's components present in the window) are written to bins
  * 0 … kHi − kLo, the rest 0. The data's band bins are transformed once per block and component and
  * kept in one array; the templates' band bins come prepared (`PreparedCache`). The inverse
- * transform of size Q of these bins is, at every (B/Q)-th lag, the analytic signal z = r + i·H(r) of r
+ * transform of size Q of these bins (computed as the forward transform of their conjugates: same
+ * magnitudes, scale Q instead of 1) is, at every (B/Q)-th lag, the analytic signal z = r + i·H(r) of r
  * (negative frequencies dropped, positive doubled: Bracewell, The Fourier Transform and Its
  * Applications, ch. 12) times a phase ramp — so its magnitude is r's envelope, sampled every B/Q coarse
  * lags (the envelope is as smooth as the band is narrow, so this loses little), and its peak does not
@@ -278,7 +302,7 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
   const nb = kHi - kLo + 1;
   const q = nextPowerOfTwo(nb);
   const dec = block / q;
-  const basePlan = fftPlan(q);
+  const basePlan = difPlan(q);
   let mMax = 0;
   let mMin = Infinity;
   for (const g of group) {
@@ -306,15 +330,17 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
       dataBand.set(tmp.subarray(2 * kLo, 2 * (kHi + 1)), (b * nx + c) * stride);
     }
   }
-  // 1/√(segment energy) per (component subset, coarse length), shared by templates alike; 0 for an
-  // empty segment (dead channel, zero padding), as in normalizedXcorr.
-  const energies = new Map<number, Float64Array>();
-  const invEnergyOf = (mask: number, m: number): Float64Array => {
+  // Where to read each block's envelope: per (component subset, coarse length), shared by templates
+  // alike, each output position's lag and its weight 1/(segment energy), 0 for an empty segment (dead
+  // channel, zero padding), as in normalizedXcorr, NaN where the block does not cover the lag.
+  const order = basePlan.order;
+  const scans = new Map<number, Scan>();
+  const scanOf = (mask: number, m: number): Scan => {
     const key = mask * 1_000_000 + m;
-    let e = energies.get(key);
-    if (!e) {
+    let sc = scans.get(key);
+    if (!sc) {
       const lags = Math.max(0, nc - m + 1);
-      e = new Float64Array(lags);
+      const e = new Float64Array(lags);
       let eMax = 0;
       for (let ci = 0; ci < nx; ci++) {
         if (!(mask & (1 << ci))) continue;
@@ -323,20 +349,31 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
       }
       for (let l = 0; l < lags; l++) if ((e[l] as number) > eMax) eMax = e[l] as number;
       const floor = eMax * 1e-12;
-      for (let l = 0; l < lags; l++) e[l] = (e[l] as number) > floor ? 1 / Math.sqrt(e[l] as number) : 0;
-      energies.set(key, e);
+      const weight = new Float64Array(blocks * q).fill(NaN);
+      const lag = new Int32Array(blocks * q);
+      for (let b = 0; b < blocks; b++) {
+        const from = b * hop;
+        const jEnd = Math.max(0, Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, lags) - from) / dec), q));
+        for (let p = 0; p < q; p++) {
+          const j = order[p] as number;
+          const l = from + j * dec;
+          lag[b * q + p] = l;
+          if (j < jEnd) weight[b * q + p] = (e[l] as number) > floor ? 1 / (e[l] as number) : 0;
+        }
+      }
+      sc = { weight, lag };
+      scans.set(key, sc);
     }
-    return e;
+    return sc;
   };
   const full = buffer('base', 2 * q).subarray(0, 2 * q);
-  const out = buffer('out', 2 * q).subarray(0, 2 * q);
-  // fft.js's inverse divides by q; the block's correlation needs 1/B, and the analytic signal 2×.
-  const gain = (2 * q) / block;
+  // The transform sums without scaling; the block's correlation needs 1/B, and the analytic signal 2×.
+  const gain = 2 / block;
   const pairsX: number[] = [];
   const pairsW: number[] = [];
   for (const g of group) {
     const p = g.p as Prepared;
-    const inv = invEnergyOf(g.mask, p.m);
+    const sc = scanOf(g.mask, p.m);
     const wInv = p.energy > 0 ? 1 / Math.sqrt(p.energy) : 0;
     // (window component, template component) offsets of the pairs present in the window.
     pairsX.length = 0;
@@ -375,9 +412,9 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
           const vi = w[w1 + k + 1] as number;
           const tr = w[w2 + k] as number;
           const ti = w[w2 + k + 1] as number;
-          // (a + ib)(c − id) = (ac + bd) + i(bc − ad), summed over the three.
+          // (a + ib)(c − id) = (ac + bd) + i(bc − ad), summed over the three; stored conjugated.
           full[k] = ar * ur + ai * ui + br * vr + bi * vi + cr * tr + ci * ti;
-          full[k + 1] = ai * ur - ar * ui + bi * vr - br * vi + ci * tr - cr * ti;
+          full[k + 1] = ar * ui - ai * ur + br * vi - bi * vr + cr * ti - ci * tr;
         }
       } else {
         full.fill(0, 0, stride);
@@ -390,24 +427,16 @@ function coarsePass(block: number, group: readonly Usable[], coarse: readonly Fl
             const wr = w[wo + k] as number;
             const wi = w[wo + k + 1] as number;
             full[k] = (full[k] as number) + xr * wr + xi * wi;
-            full[k + 1] = (full[k + 1] as number) + xi * wr - xr * wi;
+            full[k + 1] = (full[k + 1] as number) + xr * wi - xi * wr;
           }
         }
       }
-      full.fill(0, stride);
-      basePlan.inverseTransform(out, full);
-      const from = b * hop;
-      const jEnd = Math.min(Math.ceil(hop / dec), Math.ceil((Math.min(lagsTotal, inv.length) - from) / dec), q);
-      for (let j = 0; j < jEnd; j++) {
-        const re = out[2 * j] as number;
-        const im = out[2 * j + 1] as number;
-        // Envelope² scaled by the data energy; compared squared (no square root per lag).
-        const scale = inv[from + j * dec] as number;
-        const env2 = (re * re + im * im) * scale * scale;
-        if (env2 > bestEnv) {
-          bestEnv = env2;
-          bestLag = from + j * dec;
-        }
+      // In place, bins ≥ nb read as 0; the largest envelope² scaled by the data energy (compared
+      // squared: no square root per lag), the earliest lag on a tie (dif-fft.ts).
+      const pk = basePlan.peak(full, nb, sc.weight, sc.lag, b * q);
+      if (pk.pos >= 0 && (pk.value > bestEnv || (pk.value === bestEnv && (sc.lag[b * q + pk.pos] as number) < bestLag))) {
+        bestEnv = pk.value;
+        bestLag = sc.lag[b * q + pk.pos] as number;
       }
     }
     if (bestEnv > -Infinity) {
@@ -443,6 +472,16 @@ function refineAround(t: BankTemplate, map: readonly number[], traces: readonly 
   if (!(ww > 0)) return null;
   const floor = total * 1e-12;
   let best: { value: number; lag: number } | null = null;
+  // Σ_c Σ_i w_c[i]·x_c[lag + i] for every lag lo … hi, component after component (the same sums, in
+  // the same order, as one innerProduct per lag and component; two lags per pass over w).
+  const count = hi - lo + 1;
+  if (count <= 0) return null;
+  const dots = buffer('dots', count).subarray(0, count).fill(0);
+  for (let c = 0; c < t.samples.length; c++) {
+    const ci = map[c] as number;
+    if (ci < 0) continue;
+    innerProducts(t.samples[c] as ArrayLike<number>, traces[ci] as Float64Array, lo, count, m, dots);
+  }
   for (let lag = lo; lag <= hi; lag++) {
     let xx = 0;
     for (let c = 0; c < t.samples.length; c++) {
@@ -452,13 +491,7 @@ function refineAround(t: BankTemplate, map: readonly number[], traces: readonly 
       xx += (cs[lag + m] as number) - (cs[lag] as number);
     }
     if (!(xx > floor)) continue;
-    let dot = 0;
-    for (let c = 0; c < t.samples.length; c++) {
-      const ci = map[c] as number;
-      if (ci < 0) continue;
-      dot += innerProduct(t.samples[c] as ArrayLike<number>, traces[ci] as Float64Array, lag, m);
-    }
-    const v = dot / Math.sqrt(ww * xx);
+    const v = (dots[lag - lo] as number) / Math.sqrt(ww * xx);
     if (!best || v > best.value) best = { value: Math.max(-1, Math.min(1, v)), lag };
   }
   if (!best) return null;
@@ -479,6 +512,53 @@ function refineAround(t: BankTemplate, map: readonly number[], traces: readonly 
     return xx > 0 && wc > 0 ? dot / Math.sqrt(xx * wc) : null;
   });
   return { ...best, perChannel };
+}
+
+/**
+ * out[j] += Σ_{i<m} w[i]·x[from + j + i] for j = 0 … count − 1: each sum exactly as `innerProduct`
+ * (four partial sums by i mod 4, added as s0 + s1 + (s2 + s3)), two lags per pass over w (eight
+ * independent chains; each w[i] read once for both).
+ */
+function innerProducts(w: ArrayLike<number>, x: Float64Array, from: number, count: number, m: number, out: Float64Array): void {
+  let j = 0;
+  for (; j + 1 < count; j += 2) {
+    const f = from + j;
+    let a0 = 0;
+    let a1 = 0;
+    let a2 = 0;
+    let a3 = 0;
+    let b0 = 0;
+    let b1 = 0;
+    let b2 = 0;
+    let b3 = 0;
+    let i = 0;
+    for (; i + 3 < m; i += 4) {
+      const w0 = w[i] as number;
+      const w1 = w[i + 1] as number;
+      const w2 = w[i + 2] as number;
+      const w3 = w[i + 3] as number;
+      const x0 = x[f + i] as number;
+      const x1 = x[f + i + 1] as number;
+      const x2 = x[f + i + 2] as number;
+      const x3 = x[f + i + 3] as number;
+      const x4 = x[f + i + 4] as number;
+      a0 += w0 * x0;
+      a1 += w1 * x1;
+      a2 += w2 * x2;
+      a3 += w3 * x3;
+      b0 += w0 * x1;
+      b1 += w1 * x2;
+      b2 += w2 * x3;
+      b3 += w3 * x4;
+    }
+    for (; i < m; i++) {
+      a0 += (w[i] as number) * (x[f + i] as number);
+      b0 += (w[i] as number) * (x[f + 1 + i] as number);
+    }
+    out[j] = (out[j] as number) + (a0 + a1 + (a2 + a3));
+    out[j + 1] = (out[j + 1] as number) + (b0 + b1 + (b2 + b3));
+  }
+  if (j < count) out[j] = (out[j] as number) + innerProduct(w, x, from + j, m);
 }
 
 /** Σ_{i<m} w[i]·x[from + i], four partial sums (independent chains run in parallel on the CPU). */

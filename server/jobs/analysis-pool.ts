@@ -9,7 +9,7 @@ import type { TracesInput } from '@server/features/queue/queue-traces';
 import type { BankTemplate } from '@server/dsp/template-bank';
 import type { OverlayInput } from '@server/features/similarity/item-matches';
 import type { ItemMatch } from '@shared/schemas/similarity';
-import type { AnalysisTask, DecodeOutcome, DecodeTask, MatchedOutcome, MatchedTask } from './analysis-worker';
+import type { AnalysisTask, BankMissing, DecodeOutcome, DecodeTask, MatchedOutcome, MatchedTask } from './analysis-worker';
 
 /**
  * A pool of worker threads for the heavy work of the server — decoding uploads, `analyzeWindow`,
@@ -23,10 +23,13 @@ export interface AnalysisPool {
    */
   run(streams: DecodedStream[], profile: ProcessingProfile, opts?: AnalyzeOptions): Promise<AnalysisResult>;
   /**
-   * `run`, then the window's template and its matches against `bank` (issue 19), in the same worker
-   * task (the streams' buffers are transferred as in `run`; the bank's samples are copied).
+   * `run`, then the window's template and its matches against the station's bank (issue 19), in the
+   * same worker task (the streams' buffers are transferred as in `run`). The workers keep each
+   * station's bank between windows (worker-bank.ts): a task names the bank by station and version
+   * (its template ids), and templates are copied only to a worker that says it lacks them — once per
+   * worker for each new template, not with every window.
    */
-  runMatched(streams: DecodedStream[], profile: ProcessingProfile, opts: AnalyzeOptions, bank: BankTemplate[], match: { topK: number; minValue: number }): Promise<MatchedOutcome>;
+  runMatched(streams: DecodedStream[], profile: ProcessingProfile, opts: AnalyzeOptions, bank: { stationId: number; templates: readonly BankTemplate[] }, match: { topK: number; minValue: number }): Promise<MatchedOutcome>;
   /**
    * Decodes an uploaded file in a worker (the bytes are copied there; the caller keeps its own)
    * and checks the window limits: the streams, or the refusal (422 undecodable, 413 over a limit).
@@ -55,12 +58,18 @@ export interface AnalysisPool {
 
 const isObject = (v: unknown): v is object => typeof v === 'object' && v !== null;
 
+/** The fields a worker needs of a template (a station's template carries more: window, label). */
+const bankTemplate = (t: BankTemplate): BankTemplate => ({ id: t.id, sampleRateHz: t.sampleRateHz, ids: t.ids, samples: t.samples });
+
 /** The worker's answers are built by the same code on the other side; these checks catch a mix-up, not bad data. */
 function isAnalysisResult(v: unknown): v is AnalysisResult {
   return isObject(v) && 'channels' in v && 'score' in v;
 }
 function isMatchedOutcome(v: unknown): v is MatchedOutcome {
   return isObject(v) && 'analysis' in v && 'matching' in v && isAnalysisResult(v.analysis);
+}
+function isBankMissing(v: unknown): v is BankMissing {
+  return isObject(v) && 'missing' in v && Array.isArray(v.missing) && 'streams' in v && Array.isArray(v.streams);
 }
 function isDecodeOutcome(v: unknown): v is DecodeOutcome {
   return isObject(v) && 'ok' in v && typeof v.ok === 'boolean';
@@ -69,8 +78,9 @@ function isDecodeOutcome(v: unknown): v is DecodeOutcome {
 /**
  * Create the analysis pool (piscina). `threads` defaults to the machine's parallelism minus one
  * (at least 1). Under tsx (the worker is a .ts file) the workers start with `--import tsx`.
+ * `templatesSent` counts the bank templates copied to workers so far (`runMatched`).
  */
-export function createAnalysisPool(options: { threads?: number } = {}): AnalysisPool {
+export function createAnalysisPool(options: { threads?: number } = {}): AnalysisPool & { readonly templatesSent: number } {
   const threads = options.threads ?? Math.max(1, availableParallelism() - 1);
   if (!Number.isInteger(threads) || threads < 1) throw new RangeError(`the analysis pool needs a whole number of threads ≥ 1, got ${threads}`);
   const here = import.meta.url;
@@ -83,8 +93,13 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
     idleTimeout: 60_000,
     ...(isTs ? { execArgv: ['--import', 'tsx'] } : {}),
   });
+  // Templates copied to workers so far (for the tests and benches: steady-state ingest sends none).
+  let templatesSent = 0;
   return {
     threads,
+    get templatesSent() {
+      return templatesSent;
+    },
     async run(streams, profile, opts = {}) {
       const buffers = new Set<ArrayBuffer>();
       for (const s of streams) {
@@ -96,15 +111,31 @@ export function createAnalysisPool(options: { threads?: number } = {}): Analysis
       return out;
     },
     async runMatched(streams, profile, opts, bank, match) {
-      const buffers = new Set<ArrayBuffer>();
-      for (const s of streams) {
-        const b = s.samples.buffer;
-        if (b instanceof ArrayBuffer && b.byteLength > 0) buffers.add(b);
+      const ids = Int32Array.from(bank.templates, (t) => t.id);
+      const byId = new Map(bank.templates.map((t) => [t.id, t]));
+      // Templates to send along: none at first; then those a worker said it lacked (a retry may land
+      // on another worker, which may lack others: the set only grows, and after as many retries as
+      // workers the whole bank goes).
+      const sent = new Map<number, BankTemplate>();
+      let current = streams;
+      for (let attempt = 0; ; attempt++) {
+        const buffers = new Set<ArrayBuffer>();
+        for (const s of current) {
+          const b = s.samples.buffer;
+          if (b instanceof ArrayBuffer && b.byteLength > 0) buffers.add(b);
+        }
+        const templates = attempt > threads ? bank.templates.map(bankTemplate) : [...sent.values()];
+        const task: MatchedTask = { streams: current, profile, opts, bank: { stationId: bank.stationId, ids, templates }, match };
+        templatesSent += templates.length;
+        const out = await pool.run(task, { name: 'matched', transferList: [...buffers] });
+        if (isMatchedOutcome(out)) return out;
+        if (!isBankMissing(out) || attempt > threads) throw new Error('analysis worker: unexpected answer to a matched analysis');
+        for (const id of out.missing) {
+          const t = byId.get(id);
+          if (t) sent.set(id, bankTemplate(t));
+        }
+        current = out.streams;
       }
-      const task: MatchedTask = { streams, profile, opts, bank, match };
-      const out = await pool.run(task, { name: 'matched', transferList: [...buffers] });
-      if (!isMatchedOutcome(out)) throw new Error('analysis worker: unexpected answer to a matched analysis');
-      return out;
     },
     async decode(bytes, opts, limits) {
       const out = await pool.run({ bytes, opts, limits }, { name: 'decode' });

@@ -8,9 +8,10 @@ import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import { analyzeWindow, type AnalysisResult, type AnalyzeOptions } from '@server/dsp/pipeline';
 import { computeTraces, type TracesInput } from '@server/features/queue/queue-traces';
 import { windowLimitProblem, type WindowLimits } from '@server/formats/window-limits';
-import { PreparedCache, type BankTemplate } from '@server/dsp/template-bank';
+import { PreparedCache } from '@server/dsp/template-bank';
 import { matchWindow, type MatchingOutcome } from '@server/features/similarity/window-matching';
 import { matchOverlays, type OverlayInput } from '@server/features/similarity/item-matches';
+import { WorkerBankCache, type BankRef } from './worker-bank';
 
 /**
  * Runs this worker thread below the event loop's priority: Linux nice +`WORKER_NICE` for this thread
@@ -70,10 +71,23 @@ export default function runAnalysisTask(task: AnalysisTask): AnalysisResult {
   return analyzeWindow(task.streams, task.profile, task.opts);
 }
 
-/** An analysis followed by template matching against the station's bank (issue 19). */
+/**
+ * An analysis followed by template matching against the station's bank (issue 19). The bank is named
+ * by station and version; its templates travel only when this worker said it lacked them
+ * (worker-bank.ts).
+ */
 export interface MatchedTask extends AnalysisTask {
-  bank: BankTemplate[];
+  bank: BankRef;
   match: { topK: number; minValue: number };
+}
+
+/**
+ * The answer to a matched task when this worker lacks some of the bank's templates: their ids, and
+ * the task's streams handed back (transferred) for the retry that brings them.
+ */
+export interface BankMissing {
+  missing: number[];
+  streams: DecodedStream[];
 }
 
 /** What a matched task answers. */
@@ -89,15 +103,26 @@ export interface MatchedOutcome {
  */
 const prepared = new PreparedCache(96 * 1024 * 1024);
 
+/** The station banks kept in this worker between windows (worker-bank.ts), bounded at 128 MB. */
+const banks = new WorkerBankCache(128 * 1024 * 1024);
+
 /**
  * `analyzeWindow`, then the window's template and its best matches against the bank (`matchWindow`).
- * Matching never refuses a window: when it cannot run, `matching` is null.
+ * Matching never refuses a window: when it cannot run, `matching` is null. When this worker lacks
+ * some of the bank's templates, nothing is analysed: the answer is a `BankMissing` (the pool retries
+ * with them).
  */
-export function matched(task: MatchedTask): MatchedOutcome {
+export function matched(task: MatchedTask): unknown {
+  const resolved = banks.resolve(task.bank);
+  if ('missing' in resolved) {
+    const buffers = new Set<ArrayBuffer>();
+    for (const s of task.streams) if (s.samples.buffer instanceof ArrayBuffer && s.samples.byteLength > 0) buffers.add(s.samples.buffer);
+    return moved({ missing: resolved.missing, streams: task.streams } satisfies BankMissing, [...buffers]);
+  }
   const analysis = analyzeWindow(task.streams, task.profile, task.opts);
   let matching: MatchingOutcome | null = null;
   try {
-    matching = matchWindow(task.streams, task.profile, analysis, task.bank, { ...task.match, cache: prepared });
+    matching = matchWindow(task.streams, task.profile, analysis, resolved.bank, { ...task.match, cache: prepared });
   } catch {
     matching = null;
   }

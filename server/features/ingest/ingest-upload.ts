@@ -379,12 +379,13 @@ async function ingestOrThrow(deps: IngestDeps, file: IngestFile, caller: IngestC
     const stored: StoredChannel[] = list.map((s) => ({ id: s.id, sampleRateHz: s.sampleRateHz, startTimeUs: s.startTimeUs, endUs: endUs(s), sampleCount: s.samples.length, samples: encodeSamples(s.samples) }));
     const options = { ...analysisOptionsFor(station, list), baseline };
     const toWorker = list.map((s) => ({ ...s, samples: ownBuffer(s.samples), discontinuities: [...s.discontinuities] }));
-    // The station's templates go to the worker with the window: matching runs right after the analysis.
+    // Matching runs in the worker right after the analysis, against the station's bank (kept there
+    // between windows: only templates the worker lacks are sent).
     const bank = await loadStationBank(deps.db, station.id);
     let analysis: AnalysisResult;
     let matching: MatchingOutcome | null;
     try {
-      ({ analysis, matching } = await deps.pool.runMatched(toWorker, station.profile, options, bank, { topK: sim.topK, minValue: sim.storeMin }));
+      ({ analysis, matching } = await deps.pool.runMatched(toWorker, station.profile, options, { stationId: station.id, templates: bank }, { topK: sim.topK, minValue: sim.storeMin }));
     } catch (err) {
       const msg = err instanceof Error ? err.message : String(err);
       throw new FileRefused(422, 'unprocessable', `${shownName(filename)}: station ${key}: analysis refused: ${capMessage(msg)}`);

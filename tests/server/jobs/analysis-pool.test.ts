@@ -8,6 +8,9 @@ import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
 import { defaultWindowLimits } from '@server/formats/window-limits';
 import { computeTraces, type TracesInput } from '@server/features/queue/queue-traces';
 import { encodeSamples } from '@server/db/samples-codec';
+import { matchingTraces } from '@server/dsp/templates';
+import type { BankTemplate } from '@server/dsp/template-bank';
+import { matchWindow } from '@server/features/similarity/window-matching';
 
 const pool = createAnalysisPool({ threads: 2 });
 afterAll(async () => {
@@ -75,5 +78,43 @@ describe('analysis pool (piscina worker threads)', () => {
     expect(JSON.parse(new TextDecoder().decode(json))).toEqual(JSON.parse(JSON.stringify(here)));
     // The caller's blob is untouched (the pool sends its own copy).
     expect(input.channels[0]!.samples.byteLength).toBeGreaterThan(0);
+  });
+
+  it('matched windows: the same analysis and matches as matchWindow in this thread; the station bank is kept in the worker (sent once, then only new templates)', async () => {
+    // A bank cut from other windows' band-passed traces, with one copy of the window's own burst.
+    const slices = (seed: number, from: number) => matchingTraces(window(seed), defaultProcessingProfile).traces.map((x) => Float32Array.from(x.subarray(from, from + 1000)));
+    const ids = window(0).map((s) => s.id);
+    const bank: BankTemplate[] = [5800, 2000, 7000, 9000].map((from, k) => ({ id: 10 + k, sampleRateHz: 100, ids, samples: slices(k === 0 ? 11 : 20 + k, from) }));
+    const match = { topK: 5, minValue: 0.2 };
+    const one = createAnalysisPool({ threads: 1 });
+    try {
+      const check = async (templates: BankTemplate[]) => {
+        const direct = analyzeWindow(window(11), defaultProcessingProfile);
+        const expected = { analysis: direct, matching: matchWindow(window(11), defaultProcessingProfile, direct, templates, match) };
+        expect(await one.runMatched(window(11), defaultProcessingProfile, {}, { stationId: 1, templates }, match)).toEqual(expected);
+        return expected;
+      };
+      const first = await check(bank);
+      expect(first.matching?.matches[0]).toMatchObject({ templateId: 10, lag: 5800 });
+      expect(one.templatesSent).toBe(4);
+      await check(bank);
+      expect(one.templatesSent).toBe(4);
+      // A template added: only it travels. One pruned: nothing travels.
+      const grown = [{ id: 20, sampleRateHz: 100, ids, samples: slices(30, 4000) }, ...bank];
+      await check(grown);
+      expect(one.templatesSent).toBe(5);
+      await check(grown.slice(0, 4));
+      expect(one.templatesSent).toBe(5);
+      // Another station's bank is its own.
+      expect(await one.runMatched(window(11), defaultProcessingProfile, {}, { stationId: 2, templates: [] }, match)).toMatchObject({ matching: { matches: [] } });
+    } finally {
+      await one.close();
+    }
+    // Two workers, windows at once: each answer as here, whichever worker had the bank.
+    const results = await Promise.all([11, 11, 11, 11].map(() => pool.runMatched(window(11), defaultProcessingProfile, {}, { stationId: 1, templates: bank }, match)));
+    const direct = analyzeWindow(window(11), defaultProcessingProfile);
+    const expected = matchWindow(window(11), defaultProcessingProfile, direct, bank, match);
+    for (const r of results) expect(r.matching).toEqual(expected);
+    expect(pool.templatesSent).toBeLessThanOrEqual(4 * 4);
   });
 });
