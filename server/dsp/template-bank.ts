@@ -25,8 +25,8 @@ function difPlan(n: number): DifPlan {
  *    ANALYTIC correlation moved to 0 Hz (negative frequencies dropped), sampled every B/Q coarse lags;
  *    its magnitude is the correlation's envelope. (It is computed as the forward transform of the
  *    conjugated products, whose outputs are the conjugates of the inverse's times Q: same magnitudes,
- *    no division per output; in place, by dif-fft.ts, which does not read the zero bins above the
- *    band and weighs each output by 1/(data energy) at its lag as its last stages make it.)
+ *    no division per output; in place, by dif-fft.ts, whose peak scan weighs each output by
+ *    1/(data energy) at its lag.)
  *    Templates are ranked by their largest normalised envelope: unlike the correlation itself,
  *    sampled every k samples, the envelope's peak does not drop when the true peak falls between
  *    coarse lags (for a narrow-band 8 Hz burst at k = 4 the sampled correlation can lose half its
