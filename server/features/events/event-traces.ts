@@ -8,7 +8,7 @@ import { preprocessTrace } from '@server/dsp/preprocess';
 import { bucketFor, minMaxDecimate, stationProfile } from '@server/features/queue/queue-traces';
 import { channelSensitivity } from '@server/features/stations/station-registry';
 import { formatIsoTimeUs } from '@server/formats/iso-time';
-import { roundForDisplay } from '@server/features/queue/display-precision';
+import { roundForDisplay } from '@server/dsp/display-precision';
 import { decodedWindows } from './window-cache';
 
 /** Lets the event loop run between channels: a long member window never holds it for long. */

@@ -11,7 +11,7 @@ import { createTestContext, type TestContext } from '@tests/setup/test-app';
 import { onItemsCreated } from '@server/features/events/candidate-events';
 import { syncEventsFromGroups } from '@server/features/events/event-service';
 import { eventListSchema } from '@shared/schemas/events';
-import { DISPLAY_TOLERANCE } from '@server/features/queue/display-precision';
+import { DISPLAY_TOLERANCE } from '@server/dsp/display-precision';
 import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 
 /** Haversine great-circle distance (Sinnott 1984, Sky & Telescope 68:159) on a 6371 km sphere, km. */
@@ -99,7 +99,7 @@ describe('GET /api/events/:id/geometry (real MariaDB)', () => {
         expect(c.units).toBe('m/s');
         expect(c.bucket).toBe(r.bucket);
         expect(c.values).toHaveLength(r.raw.length);
-        // The record section's values are rounded for display (server/features/queue/display-precision.ts:
+        // The record section's values are rounded for display (server/dsp/display-precision.ts:
         // 4 significant digits at the trace's peak, so each value within 0.05 % of the peak, below a
         // pixel), so they match the engine's chain to that tolerance, not to the last digit; the peak
         // itself keeps its 4 digits.
