@@ -29,6 +29,7 @@ export const eventTracesSchema = z.object({
           bucket: z.number(),
           /** Each point's time after `startTime`, s. */
           times: z.array(z.number()),
+          /** Rounded for display: 4 significant digits at the trace's peak (each within 0.05 % of the peak). */
           values: z.array(z.number()),
         }),
       ),

@@ -133,6 +133,14 @@ try {
       const m = /\/api\/queue\/items\/(\d+)\/traces\?points=1600$/.exec(r.url());
       if (m && r.ok()) tracesArrived.add(Number(m[1]));
     });
+    // The size of the traces answers (bytes of JSON, uncompressed), by route: printed with the event block.
+    const tracesBytes = new Map<string, number[]>();
+    page.on('requestfinished', (r) => {
+      const u = new URL(r.url());
+      if (!/^\/api\/(events|queue\/items)\/\d+\/traces$/.test(u.pathname)) return;
+      const key = u.pathname.replace(/\/\d+/g, '/:id');
+      void r.response().then((res) => res?.body()).then((b) => { if (b) tracesBytes.set(key, [...(tracesBytes.get(key) ?? []), b.length]); }).catch(() => undefined);
+    });
     /** Resolves once item `id`'s review screen shows and its traces have arrived and are painted. */
     const reviewDrawn = async (id: number): Promise<void> => {
       await page.waitForSelector(`[data-item-id="${id}"] [data-testid="trace-panel"] .uplot`, { timeout: 60_000 });
@@ -238,6 +246,7 @@ try {
     report('event screen drawn (10 stations, Z)', eventMs, 1000, before);
     report('event screen: A to all 30 channels drawn', allMs, null, before);
     printRequests();
+    console.log(`   traces answers (JSON bytes, median): ${[...tracesBytes].map(([k, b]) => `${k} ${(quantile(b, 0.5) / 1024).toFixed(0)} kB (${b.length})`).join('; ')}`);
     if ((await rowCount()) !== 30) throw new Error('the record section lost its rows');
 
     // Relocation round trips: take the suggestions once (not timed), then move picks with the keyboard.

@@ -8,6 +8,7 @@ import { preprocessTrace } from '@server/dsp/preprocess';
 import { bucketFor, minMaxDecimate, stationProfile } from '@server/features/queue/queue-traces';
 import { channelSensitivity } from '@server/features/stations/station-registry';
 import { formatIsoTimeUs } from '@server/formats/iso-time';
+import { roundForDisplay } from '@server/dsp/display-precision';
 import { decodedWindows } from './window-cache';
 
 /** Lets the event loop run between channels: a long member window never holds it for long. */
@@ -18,7 +19,8 @@ const yieldToLoop = (): Promise<void> => new Promise((resolve) => setImmediate(r
  * pre-processed exactly as the engine's chain makes its `pre` trace (server/dsp/channel-chain.ts:
  * linear detrend, Tukey taper with the station's α, then ÷ the flat sensitivity the ingest uses,
  * m/s; counts when the registry has none) and min/max-decimated to about `points` points
- * (`minMaxDecimate`, common practice for drawing long waveforms). Only that trace: no band-passes,
+ * (`minMaxDecimate`, common practice for drawing long waveforms), the values rounded for display
+ * (`roundForDisplay`: within 0.05 % of each trace's peak, 4 significant digits). Only that trace: no band-passes,
  * STA/LTA or spectrogram, so ten stations cost a few milliseconds here instead of ten full
  * window computations in the analysis pool.
  * Null when the event is missing or none of its member stations is in `scope`.
@@ -75,7 +77,7 @@ export async function planEventTraces(db: DbOrTx, eventId: number, points: numbe
           units: flat === null ? 'counts' : 'm/s',
           bucket,
           times: d.index.map((i) => i / r.sampleRateHz),
-          values: d.values,
+          values: roundForDisplay(d.values),
         });
         await yieldToLoop();
       }

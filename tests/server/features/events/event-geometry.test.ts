@@ -11,6 +11,7 @@ import { createTestContext, type TestContext } from '@tests/setup/test-app';
 import { onItemsCreated } from '@server/features/events/candidate-events';
 import { syncEventsFromGroups } from '@server/features/events/event-service';
 import { eventListSchema } from '@shared/schemas/events';
+import { DISPLAY_TOLERANCE } from '@server/dsp/display-precision';
 import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 
 /** Haversine great-circle distance (Sinnott 1984, Sky & Telescope 68:159) on a 6371 km sphere, km. */
@@ -98,8 +99,15 @@ describe('GET /api/events/:id/geometry (real MariaDB)', () => {
         expect(c.units).toBe('m/s');
         expect(c.bucket).toBe(r.bucket);
         expect(c.values).toHaveLength(r.raw.length);
+        // The record section's values are rounded for display (server/dsp/display-precision.ts:
+        // 4 significant digits at the trace's peak, so each value within 0.05 % of the peak, below a
+        // pixel), so they match the engine's chain to that tolerance, not to the last digit; the peak
+        // itself keeps its 4 digits.
         const peak = Math.max(...r.raw.map(Math.abs));
-        c.values.forEach((v, i) => expect(Math.abs(v - (r.raw[i] as number))).toBeLessThanOrEqual(peak * 1e-12));
+        c.values.forEach((v, i) => expect(Math.abs(v - (r.raw[i] as number))).toBeLessThanOrEqual(peak * DISPLAY_TOLERANCE * (1 + 1e-9)));
+        expect(Math.abs(Math.max(...c.values.map(Math.abs)) - peak)).toBeLessThanOrEqual(peak * 5e-4);
+        expect(DISPLAY_TOLERANCE).toBe(5e-4);
+        expect(c.values.every((v) => Number(v.toPrecision(4)) === v)).toBe(true);
         // Times: the first sample's instant plus the offset of each point (both screens on one clock).
         const start = Date.parse(c.startTime);
         expect(Math.abs(start + (c.times.at(-1) ?? 0) * 1000 - (Date.parse(r.startTime) + (r.times.at(-1) ?? 0) * 1000))).toBeLessThanOrEqual(1);
