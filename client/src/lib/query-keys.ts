@@ -15,7 +15,8 @@ export const queryKeys = {
     lists: ['queue', 'list'] as const,
     list: (filters: object) => ['queue', 'list', filters] as const,
     item: (id: number) => ['queue', 'item', id] as const,
-    traces: (id: number, from: number | null, to: number | null, points: number) => ['queue', 'traces', id, from, to, points] as const,
+    /** An item's traces for a span and plot width; `display` names the analyst's filter and units ('engine': the engine's own traces). */
+    traces: (id: number, from: number | null, to: number | null, points: number, display: string) => ['queue', 'traces', id, from, to, points, display] as const,
     candidateEvent: (id: number) => ['queue', 'candidate-event', id] as const,
     reviewNote: (itemId: number) => ['queue', 'review-note', itemId] as const,
   },
@@ -42,7 +43,8 @@ export const queryKeys = {
     /** Candidate group id → event id, for the queue's and the review screen's links. */
     byGroup: ['events', 'by-group'] as const,
     detail: (id: number) => ['events', 'detail', id] as const,
-    geometry: (id: number) => ['events', 'geometry', id] as const,
+    /** The geometry from one origin: a relocation (a new origin id) gives new predictions. */
+    geometry: (id: number, originId: number | null) => ['events', 'geometry', id, originId] as const,
     traces: (id: number, points: number) => ['events', 'traces', id, points] as const,
   },
   stations: {

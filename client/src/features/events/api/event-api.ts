@@ -65,8 +65,7 @@ export function useEvent(id: number) {
 /** The stations of the event's network with distances and predicted arrivals from its preferred origin. */
 export function useEventGeometry(id: number, originId: number | null) {
   return useQuery({
-    // The origin id is part of the key: a relocation gives new predictions.
-    queryKey: [...eventKeys.geometry(id), originId] as const,
+    queryKey: eventKeys.geometry(id, originId),
     queryFn: ({ signal }) => apiRequest(eventGeometrySchema, `/api/events/${id}/geometry`, { signal }),
     placeholderData: (prev) => prev,
   });

@@ -37,7 +37,7 @@ export function tracesOptions(id: number, from: number | null, to: number | null
     }
   }
   return queryOptions({
-    queryKey: [...queryKeys.queue.traces(id, from, to, points), display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'] as const,
+    queryKey: queryKeys.queue.traces(id, from, to, points, display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'),
     queryFn: ({ signal }) => apiRequest(tracesResponseSchema, `/api/queue/items/${id}/traces?${qs.toString()}`, { signal }),
     staleTime: Infinity,
   });
