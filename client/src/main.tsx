@@ -1,5 +1,3 @@
-// First: configures zod before any schema is used (see the module).
-import './lib/zod-config';
 import '@fontsource/ibm-plex-sans/latin-400.css';
 import '@fontsource/ibm-plex-sans/latin-500.css';
 import '@fontsource/ibm-plex-sans/latin-600.css';
