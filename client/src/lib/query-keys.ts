@@ -40,8 +40,8 @@ export const queryKeys = {
   /** Located events (the event screen and the queue's links to it). */
   events: {
     all: ['events'] as const,
-    /** Candidate group id → event id, for the queue's and the review screen's links. */
-    byGroup: ['events', 'by-group'] as const,
+    /** Candidate group id → event id and member window → event id, for the queue's and the review screen's links. */
+    index: ['events', 'index'] as const,
     detail: (id: number) => ['events', 'detail', id] as const,
     /** The geometry from one origin: a relocation (a new origin id) gives new predictions. */
     geometry: (id: number, originId: number | null) => ['events', 'geometry', id, originId] as const,

@@ -155,7 +155,7 @@ export function applyChanges(qc: QueryClient, changes: readonly ChangeMessage[])
     if (c.resource === 'event') {
       // A new or merged event changes which group opens which event; an open event screen
       // that is behind (another analyst moved a pick or relocated) is refetched.
-      if (c.kind !== 'updated') void qc.invalidateQueries({ queryKey: queryKeys.events.byGroup });
+      if (c.kind !== 'updated') void qc.invalidateQueries({ queryKey: queryKeys.events.index });
       const shown = qc.getQueryData<{ event: { version: number } }>(queryKeys.events.detail(c.id));
       if (shown && (c.kind === 'deleted' || shown.event.version < c.version)) void qc.invalidateQueries({ queryKey: queryKeys.events.detail(c.id) });
       continue;

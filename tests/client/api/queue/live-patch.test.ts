@@ -87,7 +87,7 @@ describe('live changes into the query cache', () => {
 
   it('an event change refreshes the group → event map when events come or go, and an open event that is behind', () => {
     const qc = new QueryClient();
-    qc.setQueryData(queryKeys.events.byGroup, new Map([[12, 4]]));
+    qc.setQueryData(queryKeys.events.index, new Map([[12, 4]]));
     qc.setQueryData(queryKeys.events.detail(4), { event: { version: 3 } });
     qc.setQueryData(queryKeys.events.detail(5), { event: { version: 7 } });
     // Another analyst relocated event 4 (version 3 → 4); event 5 is up to date.
@@ -97,9 +97,9 @@ describe('live changes into the query cache', () => {
     ]);
     expect(qc.getQueryState(queryKeys.events.detail(4))?.isInvalidated).toBe(true);
     expect(qc.getQueryState(queryKeys.events.detail(5))?.isInvalidated).toBe(false);
-    expect(qc.getQueryState(queryKeys.events.byGroup)?.isInvalidated).toBe(false);
+    expect(qc.getQueryState(queryKeys.events.index)?.isInvalidated).toBe(false);
     // A new event (built from a group, or one merged away) changes the map.
     applyChanges(qc, [{ seq: 22, resource: 'event', id: 6, kind: 'created', version: 1, summary: {}, at: '2026-03-14T09:02:00.000Z' }]);
-    expect(qc.getQueryState(queryKeys.events.byGroup)?.isInvalidated).toBe(true);
+    expect(qc.getQueryState(queryKeys.events.index)?.isInvalidated).toBe(true);
   });
 });

@@ -4,7 +4,7 @@ import { useNavigate } from 'react-router';
 import { can } from '@shared/auth/policies';
 import { roleSchema, type Role } from '@shared/auth/roles';
 import type { QueueRow } from '@shared/schemas/queue';
-import { useEventIdsByGroup } from '@client/api/events/event-index';
+import { useEventIndex } from '@client/api/events/event-index';
 import { useMe, useQueueList } from '@client/api/queue/get-queue';
 import { useItemAction } from '@client/api/queue/item-actions';
 import { liveArrivals } from '@client/api/queue/live-patch';
@@ -53,8 +53,8 @@ export function QueueScreen() {
   const placeOf = useMemo(() => new Map<number, GroupedRow<QueueRow>>(grouped.map((g) => [g.row.id, g])), [grouped]);
   const shownReason = useMemo(() => distinguishingReasons(loadedRows), [loadedRows]);
   const mayViewEvents = can(me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null, 'event.view');
-  const eventIds = useEventIdsByGroup(mayViewEvents && loadedRows.some((r) => r.candidateEvent !== null));
-  const eventMap = eventIds.data;
+  const eventIds = useEventIndex(mayViewEvents && loadedRows.some((r) => r.candidateEvent !== null));
+  const eventMap = eventIds.data?.byGroup;
   const toggleGroup = useCallback(
     (g: number) =>
       setExpanded((s) => {

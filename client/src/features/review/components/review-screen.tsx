@@ -1,5 +1,5 @@
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
-import { useBlocker } from 'react-router';
+import { Link, useBlocker } from 'react-router';
 import { sortChannels } from '@shared/channel-order';
 import { displayUnits } from '@shared/schemas/queue';
 import { can } from '@shared/auth/policies';
@@ -10,6 +10,7 @@ import { useMe } from '@client/api/queue/get-queue';
 import { postKeepAlive } from '@client/api/queue/item-actions';
 import { liveArrivals } from '@client/api/queue/live-patch';
 import { EmptyState } from '@client/components/ui/empty-state';
+import { paths } from '@client/config/paths';
 import { KeyHelp } from '@client/components/ui/key-help';
 import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
@@ -26,7 +27,7 @@ import { unsavedWork } from '@client/features/review/lib/review-draft';
 import { FilterBar, filterLowFieldId } from './filter-bar';
 import { SessionCaution } from './session-caution';
 import { DraftBanner, FlagReasons, ReturnNote, SpectrumSection } from './assessment-notes';
-import { useEventIdsByGroup } from '@client/api/events/event-index';
+import { useEventIndex } from '@client/api/events/event-index';
 import { GroupLabelDialog, GroupPanel } from './event-group-panel';
 import { LabelForm, reviewFormDefaults, useReviewForm } from './label-form';
 import { MatchesPanel } from './matches-panel';
@@ -62,7 +63,9 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const actor = me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null;
   const mayWork = can(actor, 'queue.claim') && can(actor, 'queue.label');
   const mayLabelGroup = can(actor, 'queue.label');
-  const builtEvents = useEventIdsByGroup(can(actor, 'event.view') && (item.data?.candidateEvent ?? null) !== null);
+  const eventIndex = useEventIndex(can(actor, 'event.view'));
+  // A window an analyst put into an event (no candidate group joined it) links its event too.
+  const heldBy = item.data && !item.data.candidateEvent ? (eventIndex.data?.byItem.get(item.data.id) ?? null) : null;
 
   const detail = item.data;
   const analysis = useMemo(() => {
@@ -282,7 +285,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
           {detail.candidateEvent ? (
             <GroupPanel
               eventId={detail.candidateEvent.id}
-              builtEventId={builtEvents.data?.get(detail.candidateEvent.id) ?? null}
+              builtEventId={eventIndex.data?.byGroup.get(detail.candidateEvent.id) ?? null}
               stationCount={detail.candidateEvent.stationCount}
               ev={group.data}
               loading={group.isPending}
@@ -294,6 +297,18 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
               busy={act.groupBusy}
               onLabel={() => setGroupConfirm(true)}
             />
+          ) : null}
+          {heldBy !== null ? (
+            <section className="rounded-sm border border-line bg-surface p-3 text-sm" data-testid="held-by-event">
+              <h2 className="pb-1 text-md font-semibold">Event {heldBy}</h2>
+              <p className="text-ink-muted">
+                This window is a member of{' '}
+                <Link className="underline" to={`${paths.event.href}/${heldBy}`}>
+                  event {heldBy}
+                </Link>{' '}
+                (put together by an analyst: no candidate group joined it), with its location, ML and every station&apos;s traces.
+              </p>
+            </section>
           ) : null}
           <FlagReasons flag={detail.flag} reasons={detail.reasons} />
           <MatchesPanel data={matches.data} loading={matches.isPending} error={matches.error?.message ?? null} canTake={mayWork} onTake={takeMatchedLabel} />
