@@ -1,6 +1,8 @@
+import { LRUCache } from 'lru-cache';
+
 /**
  * A small in-memory cache of computed display traces (the traces endpoint's JSON answers), least
- * recently used first out, bounded by bytes. The key names every input of the answer
+ * recently used first out, bounded by bytes (lru-cache). The key names every input of the answer
  * (`planTraces`), so nothing is ever invalidated by hand: a changed profile or response is a new
  * key, and the old answer ages out. Requests for one key while it is being computed share that
  * computation (the review screen's prefetch and the screen itself often ask at once).
@@ -16,46 +18,19 @@ export interface TracesCache {
  * @param maxBytes bytes held at most (an answer larger than this is served but not kept)
  */
 export function createTracesCache(maxBytes: number): TracesCache {
-  const kept = new Map<string, Uint8Array>();
-  const pending = new Map<string, Promise<Uint8Array>>();
-  let bytes = 0;
-  const keep = (key: string, value: Uint8Array): void => {
-    if (value.byteLength > maxBytes) return;
-    kept.set(key, value);
-    bytes += value.byteLength;
-    for (const [k, v] of kept) {
-      if (bytes <= maxBytes) break;
-      kept.delete(k);
-      bytes -= v.byteLength;
-    }
-  };
+  const cache = new LRUCache<string, Uint8Array, () => Promise<Uint8Array>>({
+    maxSize: maxBytes,
+    sizeCalculation: (value) => Math.max(1, value.byteLength),
+    fetchMethod: (_key, _stale, { context }) => context(),
+  });
   return {
     get bytes() {
-      return bytes;
+      return cache.calculatedSize;
     },
     async get(key, compute) {
-      const hit = kept.get(key);
-      if (hit) {
-        // Most recently used: to the end of the map's order.
-        kept.delete(key);
-        kept.set(key, hit);
-        return hit;
-      }
-      const running = pending.get(key);
-      if (running) return running;
-      const p = compute().then(
-        (value) => {
-          pending.delete(key);
-          keep(key, value);
-          return value;
-        },
-        (err: unknown) => {
-          pending.delete(key);
-          throw err;
-        },
-      );
-      pending.set(key, p);
-      return p;
+      const value = await cache.fetch(key, { context: compute });
+      if (value === undefined) throw new Error(`traces cache: no answer for ${key}`);
+      return value;
     },
   };
 }

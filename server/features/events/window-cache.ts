@@ -1,4 +1,5 @@
 import { inArray } from 'drizzle-orm';
+import { LRUCache } from 'lru-cache';
 import type { DbOrTx } from '@server/db/client';
 import { decodeStoredSamples } from '@server/db/samples-codec';
 import { windowChannels } from '@server/db/schema/uploads';
@@ -23,43 +24,31 @@ export interface DecodedChannel {
   samples: Float64Array;
 }
 
-/** Bytes of decoded samples kept at most (about twenty 10-station events of 3 × 120 s at 100 sps). */
-const MAX_BYTES = 64 * 1024 * 1024;
-const windows = new Map<number, DecodedChannel[]>();
-let heldBytes = 0;
-const sizeOf = (chans: readonly DecodedChannel[]): number => chans.reduce((n, c) => n + c.samples.byteLength, 0);
+/** Decoded windows by id, at most 64 MB of samples (about twenty 10-station events of 3 × 120 s at 100 sps), least recently used out. */
+const windows = new LRUCache<number, DecodedChannel[]>({
+  maxSize: 64 * 1024 * 1024,
+  sizeCalculation: (chans) => Math.max(1, chans.reduce((n, c) => n + c.samples.byteLength, 0)),
+});
 
 /**
  * The decoded channels of the windows `windowIds` (any order), from memory when kept, else read
  * and decoded once (least recently used windows leave first).
  */
 export async function decodedWindows(db: DbOrTx, windowIds: readonly number[]): Promise<DecodedChannel[]> {
-  const missing = [...new Set(windowIds)].filter((id) => !windows.has(id));
+  const ids = [...new Set(windowIds)];
+  const found = new Map<number, DecodedChannel[]>();
+  for (const id of ids) {
+    const chans = windows.get(id);
+    if (chans) found.set(id, chans);
+  }
+  const missing = ids.filter((id) => !found.has(id));
   if (missing.length > 0) {
+    for (const id of missing) found.set(id, []);
     const rows = await db.select().from(windowChannels).where(inArray(windowChannels.windowId, missing));
-    const byWindow = new Map<number, DecodedChannel[]>(missing.map((id) => [id, []]));
-    for (const r of rows) byWindow.get(r.windowId)?.push({ windowId: r.windowId, streamId: r.streamId, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, samples: decodeStoredSamples(r.samples, r.sampleCount) });
-    for (const [id, chans] of byWindow) {
-      windows.set(id, chans);
-      heldBytes += sizeOf(chans);
-    }
+    for (const r of rows) found.get(r.windowId)?.push({ windowId: r.windowId, streamId: r.streamId, sampleRateHz: r.sampleRateHz, startTimeUs: r.startTimeUs, samples: decodeStoredSamples(r.samples, r.sampleCount) });
+    for (const id of missing) windows.set(id, found.get(id) ?? []);
   }
-  const out: DecodedChannel[] = [];
-  for (const id of new Set(windowIds)) {
-    const chans = windows.get(id) ?? [];
-    // Most recently used: to the end of the map's order.
-    windows.delete(id);
-    windows.set(id, chans);
-    out.push(...chans);
-  }
-  const wanted = new Set(windowIds);
-  for (const [id, chans] of windows) {
-    if (heldBytes <= MAX_BYTES) break;
-    if (wanted.has(id)) continue;
-    windows.delete(id);
-    heldBytes -= sizeOf(chans);
-  }
-  return out;
+  return ids.flatMap((id) => found.get(id) ?? []);
 }
 
 const woodAnderson = new WeakMap<Float64Array, Map<string, Float64Array>>();
