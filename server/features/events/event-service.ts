@@ -300,12 +300,12 @@ async function reconcileOrphanEvents(db: Database, limit: number): Promise<numbe
       }
       const target = await lockEvent(tx, owner.id);
       const moving = await activeMembers(tx, orphanId);
-      const there = new Set((await activeMembers(tx, target.id)).map((m) => m.itemId));
       const [orphanSources, targetRows] = await Promise.all([
         tx.select({ itemId: eventMembers.itemId, source: eventMembers.source }).from(eventMembers).where(eq(eventMembers.eventId, orphanId)),
-        tx.select({ itemId: eventMembers.itemId }).from(eventMembers).where(eq(eventMembers.eventId, target.id)),
+        tx.select({ itemId: eventMembers.itemId, removedAt: eventMembers.removedAt }).from(eventMembers).where(eq(eventMembers.eventId, target.id)),
       ]);
       const targetHas = new Set(targetRows.map((r) => r.itemId));
+      const there = new Set(targetRows.filter((r) => r.removedAt === null).map((r) => r.itemId));
       const add = moving.filter((m) => !there.has(m.itemId));
       // A window E once had and an analyst took out comes back only as the orphan held it (active).
       for (const m of add) {
@@ -315,7 +315,6 @@ async function reconcileOrphanEvents(db: Database, limit: number): Promise<numbe
       }
       await tx.update(eventPicks).set({ eventId: target.id, updatedAt: now }).where(and(eq(eventPicks.eventId, orphanId), eq(eventPicks.evaluationMode, 'manual')));
       if (target.eventType === null && orphan.eventType !== null) await tx.update(seismicEvents).set({ eventType: orphan.eventType, typeCertainty: orphan.typeCertainty }).where(eq(seismicEvents.id, target.id));
-      await tx.update(seismicEvents).set({ preferredOriginId: null, preferredMagnitudeId: null }).where(eq(seismicEvents.id, orphanId));
       await tx.delete(seismicEvents).where(eq(seismicEvents.id, orphanId));
       await recordChange(tx, { resource: 'event', resourceId: orphanId, kind: 'deleted', version: 0, summary: { mergedInto: target.id }, audience: { action: 'event.view', stationIds: [...new Set(moving.map((m) => m.stationId))] } });
       if (add.length > 0) await storeAutomaticPicks(tx, target.id, (await activeMembers(tx, target.id)).filter((m) => add.some((a) => a.itemId === m.itemId)), now);
