@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { apiErrorBodySchema } from '@shared/api-error';
+import { apiGetHeaders, takeEarlyResponse } from './early-requests';
 
 /** Field-level problems the server lists in `details.issues` (dotted paths). */
 export type FieldIssue = { path: string; message: string };
@@ -62,17 +63,15 @@ function withQuery(path: string, query: ApiRequest['query']): string {
  */
 export async function apiRequest<S extends z.ZodType>(schema: S, path: string, req: ApiRequest = {}): Promise<z.infer<S>> {
   const body: BodyInit | undefined = req.body === undefined ? undefined : req.body instanceof FormData ? req.body : JSON.stringify(req.body);
-  const headers: Record<string, string> = { Accept: 'application/json' };
+  const headers: Record<string, string> = { ...apiGetHeaders };
   if (typeof body === 'string') headers['Content-Type'] = 'application/json';
+  const url = withQuery(path, req.query);
+  const method = req.method ?? 'GET';
   let res: Response;
   try {
-    res = await fetch(withQuery(path, req.query), {
-      method: req.method ?? 'GET',
-      credentials: 'same-origin',
-      headers,
-      body,
-      signal: req.signal,
-    });
+    // A GET the page started before the app's code had loaded (early-requests.ts) is answered by that request.
+    const early = method === 'GET' && body === undefined ? takeEarlyResponse(url) : undefined;
+    res = await (early ?? fetch(url, { method, credentials: 'same-origin', headers, body, signal: req.signal }));
   } catch (err) {
     if (err instanceof DOMException && err.name === 'AbortError') throw err;
     throw new ApiError(0, 'network_error', 'Seisift’s server cannot be reached; check the connection and try again');

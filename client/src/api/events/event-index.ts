@@ -1,5 +1,6 @@
-import { useQuery } from '@tanstack/react-query';
+import { queryOptions, useQuery } from '@tanstack/react-query';
 import { eventListSchema } from '@shared/schemas/events';
+import { apiUrls } from '@client/api/urls';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
@@ -7,15 +8,15 @@ import { queryKeys } from '@client/lib/query-keys';
 export type EventIndex = { byGroup: Map<number, number>; byItem: Map<number, number> };
 
 /**
- * The event index (GET /api/events), so a queue group row, the review screen's group panel and a
- * window an analyst put into an event can open their event. Refetched when the live channel marks
- * events stale (every key under `queryKeys.events.all`).
+ * Query options of the event index (GET /api/events), so a queue group row, the review screen's
+ * group panel and a window an analyst put into an event can open their event. Refetched when the
+ * live channel marks events stale (every key under `queryKeys.events.all`).
  */
-export function useEventIndex(enabled: boolean) {
-  return useQuery({
+export function eventIndexOptions() {
+  return queryOptions({
     queryKey: queryKeys.events.index,
-    queryFn: async ({ signal }) => {
-      const list = await apiRequest(eventListSchema, '/api/events', { query: { limit: 1000 }, signal });
+    queryFn: async ({ signal }): Promise<EventIndex> => {
+      const list = await apiRequest(eventListSchema, apiUrls.eventIndex, { signal });
       const index: EventIndex = { byGroup: new Map(), byItem: new Map() };
       for (const e of list.events) {
         if (e.candidateEventId !== null) index.byGroup.set(e.candidateEventId, e.id);
@@ -23,7 +24,11 @@ export function useEventIndex(enabled: boolean) {
       }
       return index;
     },
-    enabled,
     staleTime: 30_000,
   });
+}
+
+/** The event index (`eventIndexOptions`), asked for only when `enabled`. */
+export function useEventIndex(enabled: boolean) {
+  return useQuery({ ...eventIndexOptions(), enabled });
 }

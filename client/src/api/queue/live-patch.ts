@@ -2,7 +2,8 @@ import type { QueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import type { ChangeMessage } from '@shared/realtime';
 import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '@shared/schemas/queue';
-import { getQueuePage, type QueueFilters, type QueueListData } from './get-queue';
+import type { QueueFilters } from '@client/api/urls';
+import { getQueuePage, type QueueListData } from './get-queue';
 import { queryKeys } from '@client/lib/query-keys';
 
 /**

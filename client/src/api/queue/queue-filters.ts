@@ -1,5 +1,5 @@
 import { queueQuerySchema } from '@shared/schemas/queue';
-import type { QueueFilters } from './get-queue';
+import type { QueueFilters } from '@client/api/urls';
 
 /** The states the queue shows when the URL names none: what still waits for an analyst. */
 export const workingStates = ['new', 'returned', 'in review'] as const;

@@ -1,7 +1,8 @@
 import { QueryClient } from '@tanstack/react-query';
 import { describe, expect, it } from 'vitest';
 import type { QueuePage, QueueRow } from '@shared/schemas/queue';
-import type { QueueFilters, QueueListData } from '@client/api/queue/get-queue';
+import type { QueueFilters } from '@client/api/urls';
+import type { QueueListData } from '@client/api/queue/get-queue';
 import { queryKeys } from '@client/lib/query-keys';
 import { applyChanges, liveArrivals, patchRow } from '@client/api/queue/live-patch';
 

@@ -2,7 +2,9 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { z } from 'zod';
 import { roleSchema } from '@shared/auth/roles';
 import { meSchema, type Me } from '@shared/auth/schemas';
+import { apiUrls } from '@client/api/urls';
 import { ApiError, apiRequest, noContent } from '@client/lib/api-client';
+import { dropEarlyResponses } from '@client/lib/early-requests';
 import { queryKeys } from '@client/lib/query-keys';
 
 /**
@@ -11,7 +13,7 @@ import { queryKeys } from '@client/lib/query-keys';
  */
 export async function fetchMe(): Promise<Me | null> {
   try {
-    return (await apiRequest(z.object({ session: meSchema.nullable() }), '/api/auth/session', { allowUnauthenticated: true })).session;
+    return (await apiRequest(z.object({ session: meSchema.nullable() }), apiUrls.session, { allowUnauthenticated: true })).session;
   } catch (err) {
     if (err instanceof ApiError) return null;
     throw err;
@@ -32,6 +34,7 @@ export function useMe() {
  */
 async function switchPerson(qc: ReturnType<typeof useQueryClient>, me: Me | null | 'refetch'): Promise<void> {
   qc.removeQueries({ predicate: (q) => q.queryKey[0] !== queryKeys.session[0] || q.queryKey[1] !== queryKeys.session[1] });
+  dropEarlyResponses();
   qc.setQueryData(queryKeys.session, me === 'refetch' ? await fetchMe() : me);
 }
 

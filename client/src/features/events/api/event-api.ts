@@ -3,20 +3,18 @@ import { eventDetailSchema, type EventDetail } from '@shared/schemas/events';
 import { eventGeometrySchema } from '@shared/schemas/event-geometry';
 import { eventTracesSchema } from '@shared/schemas/event-traces';
 import { useEffect, useRef } from 'react';
+import { apiUrls } from '@client/api/urls';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
 /** Query keys of the event screen (one factory; every event key starts with `['events']`). */
 export const eventKeys = queryKeys.events;
 
-/** Points per trace asked of the server (min/max buckets): about two per screen pixel of a wide plot. */
-export const EVENT_TRACE_POINTS = 2400;
-
 /** Query options of every member window's pre-processed traces in one request (GET /api/events/:id/traces). */
 export function eventTracesOptions(id: number, points: number) {
   return queryOptions({
     queryKey: eventKeys.traces(id, points),
-    queryFn: ({ signal }) => apiRequest(eventTracesSchema, `/api/events/${id}/traces`, { query: { points }, signal }),
+    queryFn: ({ signal }) => apiRequest(eventTracesSchema, apiUrls.eventTraces(id, points), { signal }),
     staleTime: Infinity,
     placeholderData: keepPreviousData,
   });
@@ -54,7 +52,7 @@ export function usePrefetchEventTraces(id: number, points: number): void {
 
 /** Query options of one event (origin, arrivals, picks, amplitudes, magnitudes). */
 export function eventOptions(id: number) {
-  return queryOptions({ queryKey: eventKeys.detail(id), queryFn: ({ signal }) => apiRequest(eventDetailSchema, `/api/events/${id}`, { signal }) });
+  return queryOptions({ queryKey: eventKeys.detail(id), queryFn: ({ signal }) => apiRequest(eventDetailSchema, apiUrls.event(id), { signal }) });
 }
 
 /** One event. */
@@ -66,7 +64,7 @@ export function useEvent(id: number) {
 export function useEventGeometry(id: number, originId: number | null) {
   return useQuery({
     queryKey: eventKeys.geometry(id, originId),
-    queryFn: ({ signal }) => apiRequest(eventGeometrySchema, `/api/events/${id}/geometry`, { signal }),
+    queryFn: ({ signal }) => apiRequest(eventGeometrySchema, apiUrls.eventGeometry(id), { signal }),
     placeholderData: (prev) => prev,
   });
 }

@@ -12,7 +12,8 @@ import { Kbd } from '@client/components/ui/kbd';
 import { KeyHelp, isTypingTarget, type KeyBinding } from '@client/components/ui/key-help';
 import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
-import { useEvent, useEventChange, useEventGeometry, useEventTraces, usePrefetchEventTraces, EVENT_TRACE_POINTS, type EventChange, type PickInput } from '@client/features/events/api/event-api';
+import { EVENT_TRACE_POINTS } from '@client/api/urls';
+import { useEvent, useEventChange, useEventGeometry, useEventTraces, usePrefetchEventTraces, type EventChange, type PickInput } from '@client/features/events/api/event-api';
 import {
   componentOf,
   defaultUncertaintyS,

@@ -2,7 +2,7 @@ import { useEffect, useState } from 'react';
 import { flags } from '@shared/schemas/flags';
 import { itemStates, type ItemState } from '@shared/schemas/item-states';
 import { labelFilterValues } from '@shared/schemas/queue';
-import type { QueueFilters } from '@client/api/queue/get-queue';
+import type { QueueFilters } from '@client/api/urls';
 import { workingStates } from '@client/api/queue/queue-filters';
 import { Input } from '@client/components/ui/input';
 import { Select } from '@client/components/ui/select';

@@ -2,9 +2,7 @@ import { useQueryClient } from '@tanstack/react-query';
 import { useEffect } from 'react';
 import { itemOptions, tracesOptions } from '@client/features/review/api/get-item';
 import { itemMatchesOptions } from '@client/features/review/api/get-matches';
-
-/** Points per curve of the review screen's whole-window traces (review-screen.tsx asks for these). */
-export const REVIEW_TRACE_POINTS = 1600;
+import { REVIEW_TRACE_POINTS } from '@client/api/urls';
 
 /**
  * Query options of an item's whole-window display traces, as the review screen first asks for them

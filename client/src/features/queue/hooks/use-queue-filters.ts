@@ -1,6 +1,6 @@
 import { useCallback, useMemo } from 'react';
 import { useSearchParams } from 'react-router';
-import type { QueueFilters } from '@client/api/queue/get-queue';
+import type { QueueFilters } from '@client/api/urls';
 import { parseFilters } from '@client/api/queue/queue-filters';
 
 /**

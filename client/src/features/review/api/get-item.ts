@@ -1,22 +1,20 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
 import { channelResultSchema, storedAnalysisSchema } from '@shared/schemas/analysis';
-import { queueItemDetailSchema, tracesResponseSchema, type DisplayUnits } from '@shared/schemas/queue';
+import { queueItemDetailSchema, tracesResponseSchema } from '@shared/schemas/queue';
+import { apiUrls, type DisplayRequest } from '@client/api/urls';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
 /** Query options of one item's detail (refetched by the live channel when its version moves on). */
 export function itemOptions(id: number) {
-  return queryOptions({ queryKey: queryKeys.queue.item(id), queryFn: ({ signal }) => apiRequest(queueItemDetailSchema, `/api/queue/items/${id}`, { signal }), staleTime: Infinity });
+  return queryOptions({ queryKey: queryKeys.queue.item(id), queryFn: ({ signal }) => apiRequest(queueItemDetailSchema, apiUrls.item(id), { signal }), staleTime: Infinity });
 }
 
 /** One item's detail. */
 export function useItem(id: number) {
   return useQuery(itemOptions(id));
 }
-
-/** The analyst's display filter as the traces endpoint takes it (units, band or none, phase). */
-export type DisplayRequest = { units: DisplayUnits; band: readonly [number, number] | null; phase: 'causal' | 'zero-phase' };
 
 /**
  * Query options of an item's display traces over [from, to) s (the whole window when null), about
@@ -25,20 +23,9 @@ export type DisplayRequest = { units: DisplayUnits; band: readonly [number, numb
  * prefetch of the next item (use-prefetch-item.ts), so both use the very same key and request.
  */
 export function tracesOptions(id: number, from: number | null, to: number | null, points: number, display: DisplayRequest | null = null) {
-  const qs = new URLSearchParams({ points: String(points) });
-  if (from !== null) qs.set('from', from.toFixed(3));
-  if (to !== null) qs.set('to', to.toFixed(3));
-  if (display) {
-    qs.set('units', display.units);
-    qs.set('phase', display.phase);
-    if (display.band) {
-      qs.set('fmin', String(display.band[0]));
-      qs.set('fmax', String(display.band[1]));
-    }
-  }
   return queryOptions({
     queryKey: queryKeys.queue.traces(id, from, to, points, display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'),
-    queryFn: ({ signal }) => apiRequest(tracesResponseSchema, `/api/queue/items/${id}/traces?${qs.toString()}`, { signal }),
+    queryFn: ({ signal }) => apiRequest(tracesResponseSchema, apiUrls.itemTraces(id, from, to, points, display), { signal }),
     staleTime: Infinity,
   });
 }

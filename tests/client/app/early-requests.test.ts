@@ -1,0 +1,58 @@
+import { QueryClient } from '@tanstack/react-query';
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { earlyRequestsFor } from '@client/app/early-requests';
+import { preloadRouteData } from '@client/app/preload-route';
+import { dropEarlyResponses } from '@client/lib/early-requests';
+
+const analyst = { session: { user: { id: 'u1', email: 'a@kestrel.example', displayName: 'A', roles: ['analyst'], stationIds: [] }, mailbox: false } };
+
+/**
+ * The addresses the app itself asks for first on `pathname + search` (preload-route.ts, the same
+ * query options the screens use), with the network answering the session and refusing the rest.
+ */
+async function appRequests(pathname: string, search: string): Promise<string[]> {
+  const asked: string[] = [];
+  vi.stubGlobal(
+    'fetch',
+    vi.fn((url: string) => {
+      asked.push(url);
+      const body = url === '/api/auth/session' ? analyst : { error: { code: 'unavailable', message: 'not in this test' } };
+      return Promise.resolve(new Response(JSON.stringify(body), { status: url === '/api/auth/session' ? 200 : 503 }));
+    }),
+  );
+  const qc = new QueryClient({ defaultOptions: { queries: { retry: false } } });
+  await preloadRouteData(qc, { pathname, search });
+  return asked;
+}
+
+afterEach(() => {
+  dropEarlyResponses();
+  vi.unstubAllGlobals();
+});
+
+describe('the requests started before the app loads', () => {
+  it.each([
+    ['/queue', ''],
+    ['/queue', '?state=all&station=KV02&sort=newest'],
+    ['/queue/items/42', ''],
+    ['/queue/items/42', '?state=new&flag=likely+event'],
+    ['/events/7', ''],
+  ])('are exactly the addresses the app asks first on %s%s', async (pathname, search) => {
+    const early = earlyRequestsFor({ pathname, search });
+    const app = await appRequests(pathname, search);
+    expect(app.length).toBeGreaterThan(1);
+    // Every first request of the app finds its early answer (same address, character for character)…
+    for (const url of app) expect(early.urls).toContain(url);
+    // …and the early ones are the app's first requests, not guesses (the event screen's geometry is asked by the screen itself).
+    for (const url of early.urls) if (!url.endsWith('/geometry')) expect(app).toContain(url);
+  });
+
+  it('names the screen whose code to load, and asks nothing on the sign-in pages', () => {
+    expect(earlyRequestsFor({ pathname: '/queue', search: '' }).screen).toBe('queue');
+    expect(earlyRequestsFor({ pathname: '/queue/items/3', search: '' }).screen).toBe('item');
+    expect(earlyRequestsFor({ pathname: '/events/3', search: '' }).screen).toBe('event');
+    expect(earlyRequestsFor({ pathname: '/stations', search: '' })).toEqual({ screen: null, urls: ['/api/auth/session'] });
+    expect(earlyRequestsFor({ pathname: '/sign-in', search: '?next=%2Fqueue' })).toEqual({ screen: null, urls: [] });
+    expect(earlyRequestsFor({ pathname: '/reset-password', search: '' }).urls).toEqual([]);
+  });
+});
