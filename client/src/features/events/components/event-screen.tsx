@@ -32,6 +32,7 @@ import {
 import { RecordSection, type DrawnPick, type RecordCursor, type RecordRow, type StationPrediction } from './record-section';
 import { EventMap } from './event-map';
 import { ArrivalsPanel, EventLabelPanel, MagnitudePanel, OriginPanel, Panel, SuggestionsPanel } from './event-panels';
+import { compareCodes } from '@client/lib/text-order';
 
 /** The keys of the event screen (shown by "?"). */
 export const eventKeyBindings: readonly KeyBinding[] = [
@@ -173,7 +174,7 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
     }));
     const ordered = orderStations(keys, order).flatMap((k) => {
       const rank = { Z: 0, N: 1, E: 2, '?': 3 } as const;
-      return [...(byStation.get(k.station) ?? [])].sort((a, b) => rank[componentOf(a.streamId)] - rank[componentOf(b.streamId)] || a.streamId.localeCompare(b.streamId)).map((c) => ({ c, k }));
+      return [...(byStation.get(k.station) ?? [])].sort((a, b) => rank[componentOf(a.streamId)] - rank[componentOf(b.streamId)] || compareCodes(a.streamId, b.streamId)).map((c) => ({ c, k }));
     });
     const scales = rowScales(ordered.map(({ c }) => ({ peak: peakAbs(c.values), units: c.units })), scale);
     return ordered.map(({ c, k }, i) => {

@@ -1,3 +1,5 @@
+import { compareCodes } from '@client/lib/text-order';
+
 /**
  * The record section's model, kept pure so it can be tested without a browser: absolute times,
  * which channels a component mode shows, the station order and the amplitude scaling. Times are
@@ -64,7 +66,7 @@ export type StationKey = { station: string; distanceKm: number | null; firstArri
 export function orderStations<T extends StationKey>(stations: readonly T[], mode: OrderMode): T[] {
   const useDistance = mode === 'distance' && stations.every((s) => s.distanceKm !== null);
   const key = (s: T): number => (useDistance ? (s.distanceKm as number) : (s.firstArrival ?? Infinity));
-  return [...stations].sort((a, b) => key(a) - key(b) || a.station.localeCompare(b.station));
+  return [...stations].sort((a, b) => key(a) - key(b) || compareCodes(a.station, b.station));
 }
 
 /** Largest |value| of a trace (0 for an empty one). */

@@ -7,6 +7,7 @@ import { workingStates } from '@client/api/queue/queue-filters';
 import { Input } from '@client/components/ui/input';
 import { Select } from '@client/components/ui/select';
 import { UtcTimeInput } from '@client/components/ui/utc-time-input';
+import { formatCount } from '@client/lib/text-order';
 
 /** Props of <QueueFilterBar>. */
 type FilterBarProps = {
@@ -26,7 +27,7 @@ const stateChoice = (f: QueueFilters): string => {
 export function QueueFilterBar({ filters, setFilters, setStateParam, counts }: FilterBarProps) {
   const [station, setStation] = useState((filters.station ?? []).join(','));
   useEffect(() => setStation((filters.station ?? []).join(',')), [filters.station]);
-  const countOf = (s: ItemState) => (counts ? ` (${counts[s].toLocaleString('en')})` : '');
+  const countOf = (s: ItemState) => (counts ? ` (${formatCount(counts[s])})` : '');
   const waiting = counts ? workingStates.reduce((n, s) => n + counts[s], 0) : undefined;
   return (
     <form className="flex flex-wrap items-end gap-3" aria-label="Queue filters" onSubmit={(e) => e.preventDefault()}>

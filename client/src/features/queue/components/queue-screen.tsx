@@ -28,6 +28,7 @@ import { QueueFilterBar } from './queue-filter-bar';
 import { GroupDialog } from './queue-group-dialog';
 import { queueKeysHelp } from './queue-keys';
 import { QueueTable } from './queue-table';
+import { formatCount } from '@client/lib/text-order';
 
 /**
  * The live review queue: filters in the URL, counts per state, a virtualised table that stays
@@ -154,7 +155,7 @@ export function QueueScreen() {
       <header className="flex flex-wrap items-baseline gap-x-4 gap-y-1">
         <h1 className="text-xl font-semibold">Review queue</h1>
         <p className="text-sm text-ink-muted">
-          {total === undefined ? 'Loading…' : `${total.toLocaleString('en')} item${total === 1 ? '' : 's'} in view`} · press <Kbd>?</Kbd> for keys
+          {total === undefined ? 'Loading…' : `${formatCount(total)} item${total === 1 ? '' : 's'} in view`} · press <Kbd>?</Kbd> for keys
         </p>
         {/* Live arrivals above the analyst's place: in the header line, so the table keeps the height. */}
         <p className="text-sm" aria-live="polite">
