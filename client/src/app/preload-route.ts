@@ -4,7 +4,7 @@ import { eventIndexOptions } from '@client/api/events/event-index';
 import { meOptions, queueListOptions } from '@client/api/queue/get-queue';
 import { parseFilters } from '@client/api/queue/queue-filters';
 import { EVENT_TRACE_POINTS } from '@client/api/urls';
-import { eventOptions, eventTracesOptions } from '@client/features/events/api/event-api';
+import { eventGeometryOptions, eventOptions, eventTracesOptions } from '@client/features/events/api/event-api';
 import { meQueryOptions } from '@client/features/auth/api/session';
 import { wholeWindowTracesOptions } from '@client/features/queue/hooks/use-prefetch-item';
 import { itemOptions } from '@client/features/review/api/get-item';
@@ -46,7 +46,9 @@ export async function preloadRouteData(qc: QueryClient, location: { pathname: st
     ];
   } else if (event) {
     const id = Number(event[1]);
-    asked = [qc.prefetchQuery(eventOptions(id)), qc.prefetchQuery(eventTracesOptions(id, EVENT_TRACE_POINTS))];
+    // The geometry (distances, predictions) orders the record section's rows: asked as seen from the event's origin.
+    const geometry = qc.fetchQuery(eventOptions(id)).then((e) => qc.prefetchQuery(eventGeometryOptions(id, e.origin?.id ?? null)));
+    asked = [geometry, qc.prefetchQuery(eventTracesOptions(id, EVENT_TRACE_POINTS))];
   }
   await Promise.allSettled(asked);
 }

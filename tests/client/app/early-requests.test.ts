@@ -43,7 +43,7 @@ describe('the requests started before the app loads', () => {
     expect(app.length).toBeGreaterThan(1);
     // Every first request of the app finds its early answer (same address, character for character)…
     for (const url of app) expect(early.urls).toContain(url);
-    // …and the early ones are the app's first requests, not guesses (the event screen's geometry is asked by the screen itself).
+    // …and the early ones are the app's first requests, not guesses (the event's geometry is asked once the event has answered, which this network refuses).
     for (const url of early.urls) if (!url.endsWith('/geometry')) expect(app).toContain(url);
   });
 

@@ -60,13 +60,14 @@ export function useEvent(id: number) {
   return useQuery(eventOptions(id));
 }
 
+/** Query options of the event's geometry as seen from origin `originId` (the preferred one when asked). */
+export function eventGeometryOptions(id: number, originId: number | null) {
+  return queryOptions({ queryKey: eventKeys.geometry(id, originId), queryFn: ({ signal }) => apiRequest(eventGeometrySchema, apiUrls.eventGeometry(id), { signal }) });
+}
+
 /** The stations of the event's network with distances and predicted arrivals from its preferred origin. */
 export function useEventGeometry(id: number, originId: number | null) {
-  return useQuery({
-    queryKey: eventKeys.geometry(id, originId),
-    queryFn: ({ signal }) => apiRequest(eventGeometrySchema, apiUrls.eventGeometry(id), { signal }),
-    placeholderData: (prev) => prev,
-  });
+  return useQuery({ ...eventGeometryOptions(id, originId), placeholderData: (prev) => prev });
 }
 
 /** An analyst's pick as the screen sends it. */

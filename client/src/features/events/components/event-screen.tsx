@@ -1,4 +1,4 @@
-import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from 'react';
 import { Link } from 'react-router';
 import { can } from '@shared/auth/policies';
 import type { EventTraces } from '@shared/schemas/event-traces';
@@ -92,6 +92,9 @@ export function EventScreen({ eventId }: EventScreenProps) {
 }
 
 function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }) {
+  // The side column (map, origin, magnitudes, suggestions, arrivals, label, members) is drawn in a
+  // second pass just after the first: the record section, the analyst's work, appears first.
+  const sideShown = useDeferredValue(true, false);
   const { user } = useSession();
   const actor = user ? { roles: user.roles, stationIds: [] } : null;
   const mayPick = can(actor, 'event.pick');
@@ -358,24 +361,30 @@ function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }
           </div>
         </section>
         <div className="flex min-w-0 flex-col gap-3">
-          {geometry.data ? <EventMap geometry={geometry.data} origin={detail.origin} /> : <Loading label="Loading the map…" rows={2} />}
-          <OriginPanel detail={detail} mayEdit={mayEdit} busy={change.isPending} onRelocate={(fixedDepthKm) => run({ kind: 'relocate', ...(fixedDepthKm === undefined ? {} : { fixedDepthKm }) })} />
-          <MagnitudePanel detail={detail} />
-          <SuggestionsPanel detail={detail} mayPick={mayPick} busy={change.isPending} onAccept={(ids) => run({ kind: 'accept', ...(ids ? { pickIds: ids } : {}) })} />
-          <ArrivalsPanel detail={detail} />
-          <EventLabelPanel key={e.version} detail={detail} mayEdit={mayEdit} mayEvaluate={mayEvaluate} busy={change.isPending} onSave={(v) => run({ kind: 'label', ...v })} />
-          <Panel title="Member windows">
-            <ul className="text-sm">
-              {members.map((m) => (
-                <li key={m.itemId}>
-                  <Link className="font-mono underline" to={`${paths.queueItem.href}/${m.itemId}`}>
-                    {m.station}
-                  </Link>{' '}
-                  <span className="text-ink-muted">window from {m.windowStart.slice(11, 19)} · {m.source}</span>
-                </li>
-              ))}
-            </ul>
-          </Panel>
+          {sideShown ? (
+            <>
+              {geometry.data ? <EventMap geometry={geometry.data} origin={detail.origin} /> : <Loading label="Loading the map…" rows={2} />}
+              <OriginPanel detail={detail} mayEdit={mayEdit} busy={change.isPending} onRelocate={(fixedDepthKm) => run({ kind: 'relocate', ...(fixedDepthKm === undefined ? {} : { fixedDepthKm }) })} />
+              <MagnitudePanel detail={detail} />
+              <SuggestionsPanel detail={detail} mayPick={mayPick} busy={change.isPending} onAccept={(ids) => run({ kind: 'accept', ...(ids ? { pickIds: ids } : {}) })} />
+              <ArrivalsPanel detail={detail} />
+              <EventLabelPanel key={e.version} detail={detail} mayEdit={mayEdit} mayEvaluate={mayEvaluate} busy={change.isPending} onSave={(v) => run({ kind: 'label', ...v })} />
+              <Panel title="Member windows">
+                <ul className="text-sm">
+                  {members.map((m) => (
+                    <li key={m.itemId}>
+                      <Link className="font-mono underline" to={`${paths.queueItem.href}/${m.itemId}`}>
+                        {m.station}
+                      </Link>{' '}
+                      <span className="text-ink-muted">window from {m.windowStart.slice(11, 19)} · {m.source}</span>
+                    </li>
+                  ))}
+                </ul>
+              </Panel>
+            </>
+          ) : (
+            <Loading label="Loading the map and the panels…" rows={4} />
+          )}
         </div>
       </div>
       <KeyHelp open={help} onClose={() => setHelp(false)} title="Event screen keys" bindings={eventKeyBindings} />

@@ -1,4 +1,4 @@
-import { useEffect, useRef, useState } from 'react';
+import { useEffect, useLayoutEffect, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import { plotFontFamily, readPlotTheme } from '@client/components/ui/plot-frame';
@@ -243,7 +243,8 @@ function fullRange(rows: readonly RecordRow[]): [number, number] {
 export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, onZoom, onCursor, onClickTrace, onSelectPick }: RecordSectionProps) {
   const host = useRef<HTMLDivElement>(null);
   const chart = useRef<uPlot | null>(null);
-  const [width, setWidth] = useState(900);
+  /** The rows and zoom the plot was last built with (already drawn). */
+  const builtFor = useRef<{ rows: readonly RecordRow[]; zoom: readonly [number, number] | null } | null>(null);
   const state = useRef<DrawState>({ rows, picks, predicted, selectedPickId, hoverRow: null });
   state.current = { ...state.current, rows, picks, predicted, selectedPickId };
   const zoomRef = useRef(zoom);
@@ -251,24 +252,28 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
   const handlers = useRef({ onZoom, onCursor, onClickTrace, onSelectPick });
   handlers.current = { onZoom, onCursor, onClickTrace, onSelectPick };
 
+  const n = rows.length;
+  const shape = rows.map((r) => r.streamId).sort().join(' ');
+  const heightPx = Math.max(240, n * rowHeightPx(n));
+
+  // A new width resizes the plot in place (a rebuild would draw every trace twice on the first screen).
   useEffect(() => {
     const el = host.current;
     if (!el) return;
     const ro = new ResizeObserver((entries) => {
-      const w = Math.floor(entries[0]?.contentRect.width ?? 900);
-      if (w > 0) setWidth(w);
+      const w = Math.floor(entries[0]?.contentRect.width ?? 0);
+      const u = chart.current;
+      if (u && w > 0 && w !== u.width) u.setSize({ width: w, height: u.height });
     });
     ro.observe(el);
     return () => ro.disconnect();
   }, []);
 
-  const n = rows.length;
-  const shape = rows.map((r) => r.streamId).sort().join(' ');
-  const heightPx = Math.max(240, n * rowHeightPx(n));
-
-  useEffect(() => {
+  // Built before the browser paints (a layout effect), so the traces are in the screen's first picture.
+  useLayoutEffect(() => {
     const el = host.current;
     if (!el || n === 0) return;
+    const width = el.clientWidth || 900;
     const theme = readPlotTheme(el);
     const [a, b] = fullRange(state.current.rows);
     const axisFont = `12px ${plotFontFamily}`;
@@ -367,24 +372,26 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
     };
     const u = new uPlot(opts, [[a, b], [null, null]], el);
     chart.current = u;
+    builtFor.current = { rows: state.current.rows, zoom: zoomRef.current };
     return () => {
       u.destroy();
       chart.current = null;
     };
     // Rebuilt only when the set of rows (or the size) changes: new values, labels or order of the
     // same streams after a relocation are a redraw (below), not a new plot.
-  }, [shape, width, heightPx, n]);
+  }, [shape, heightPx, n]);
 
-  // Rows' data and labels, picks, predictions and selection change without rebuilding the plot.
+  // Rows' data and labels, picks, predictions and selection change without rebuilding the plot
+  // (nothing to do for what the plot was just built with).
   useEffect(() => {
-    chart.current?.redraw(false, true);
+    if (builtFor.current?.rows !== rows) chart.current?.redraw(false, true);
   }, [rows]);
   useEffect(() => {
     chart.current?.redraw(false, false);
   }, [picks, predicted, selectedPickId]);
   useEffect(() => {
     const u = chart.current;
-    if (!u) return;
+    if (!u || (builtFor.current?.rows === rows && builtFor.current.zoom === zoom)) return;
     const [a, b] = zoom ?? fullRange(rows);
     u.setScale('x', { min: a, max: b });
   }, [zoom, rows]);
