@@ -93,12 +93,13 @@ export function Dialog({ open, onClose, title, description, children, actions, c
           <span className="sr-only">Close</span>
         </Button>
       </div>
-      {children ? (
+      {/* The body and actions exist only while open: every screen carries its closed dialogs (key lists, forms). */}
+      {open && children ? (
         <div data-dialog-part="body" className="px-4 py-3">
           {children}
         </div>
       ) : null}
-      {actions ? (
+      {open && actions ? (
         <div data-dialog-part="actions" className="flex justify-end gap-2 border-t border-line px-4 py-3">
           {actions}
         </div>
