@@ -1,5 +1,5 @@
 /// <reference types="vitest/config" />
-import { defineConfig } from 'vite';
+import { defineConfig, type Plugin } from 'vite';
 import react from '@vitejs/plugin-react';
 import tailwindcss from '@tailwindcss/vite';
 import { fileURLToPath } from 'node:url';
@@ -15,10 +15,33 @@ export const pathAliases = {
   '@tests': here('./tests'),
 };
 
+/** The faces every screen draws with (client/src/main.tsx imports them): loaded with the page, not when a text first needs one. */
+const firstScreenFonts = /^assets\/ibm-plex-(sans-latin-(400|500|600)|mono-latin-(400|500))-normal-[\w-]+\.woff2$/;
+
+/**
+ * Adds to the built index.html a `<link rel="preload">` for each of `firstScreenFonts`: otherwise
+ * the browser finds a face only while laying out the first text that uses it, and draws the screen
+ * again when it arrives.
+ */
+function preloadFonts(): Plugin {
+  return {
+    name: 'seisift-preload-fonts',
+    apply: 'build',
+    transformIndexHtml: {
+      order: 'post',
+      handler: (_html, ctx) =>
+        Object.keys(ctx.bundle ?? {})
+          .filter((file) => firstScreenFonts.test(file))
+          .sort()
+          .map((file) => ({ tag: 'link', attrs: { rel: 'preload', as: 'font', type: 'font/woff2', crossorigin: '', href: `/${file}` }, injectTo: 'head' as const })),
+    },
+  };
+}
+
 /** Vite builds the React client rooted in client/; vitest runs every test under tests/. */
 export default defineConfig({
   root: 'client',
-  plugins: [react(), tailwindcss()],
+  plugins: [react(), tailwindcss(), preloadFonts()],
   resolve: { alias: pathAliases },
   build: { outDir: '../dist/client', emptyOutDir: true },
   server: {
