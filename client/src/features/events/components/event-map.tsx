@@ -50,14 +50,20 @@ function loadOutlines(): Promise<Outlines> {
   return outlinesOnce;
 }
 
-/** Runs `f` when the page is idle (at the latest after `timeoutMs`): the outlines wait for the traces' first draw. */
-function whenIdle(f: () => void, timeoutMs: number): () => void {
-  if (typeof window.requestIdleCallback === 'function') {
-    const h = window.requestIdleCallback(f, { timeout: timeoutMs });
-    return () => window.cancelIdleCallback(h);
-  }
-  const h = window.setTimeout(f, 200);
-  return () => window.clearTimeout(h);
+/**
+ * Runs `f` once `afterMs` have passed and the page is idle (at the latest `timeoutMs` later): the
+ * outlines (a large chunk to evaluate) wait for the traces' first paint.
+ */
+function whenIdle(f: () => void, timeoutMs: number, afterMs: number): () => void {
+  let idle: number | undefined;
+  const t = window.setTimeout(() => {
+    if (typeof window.requestIdleCallback === 'function') idle = window.requestIdleCallback(f, { timeout: timeoutMs });
+    else f();
+  }, afterMs);
+  return () => {
+    window.clearTimeout(t);
+    if (idle !== undefined) window.cancelIdleCallback(idle);
+  };
 }
 
 /** Whether a piece's bounds meet the box [[w, s], [e, n]] (pieces across the antimeridian always do). */
@@ -107,7 +113,7 @@ export const EventMap = memo(function EventMap({ geometry, origin }: EventMapPro
         (o) => live && setOutlines(o),
         (e: unknown) => live && setFailed(e instanceof Error ? e.message : String(e)),
       );
-    }, 3000);
+    }, 3000, 400);
     return () => {
       live = false;
       cancel();
