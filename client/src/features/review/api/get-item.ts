@@ -2,7 +2,9 @@ import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query'
 import { z } from 'zod';
 import { channelResultSchema, storedAnalysisSchema } from '@shared/schemas/analysis';
 import { queueItemDetailSchema, tracesResponseSchema } from '@shared/schemas/queue';
+import { sortChannels } from '@shared/channel-order';
 import { apiUrls, type DisplayRequest } from '@client/api/urls';
+import { preparePictureWhenIdle } from '@client/features/review/lib/spectrogram-picture';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
@@ -25,7 +27,12 @@ export function useItem(id: number) {
 export function tracesOptions(id: number, from: number | null, to: number | null, points: number, display: DisplayRequest | null = null) {
   return queryOptions({
     queryKey: queryKeys.queue.traces(id, from, to, points, display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'),
-    queryFn: ({ signal }) => apiRequest(tracesResponseSchema, apiUrls.itemTraces(id, from, to, points, display), { signal }),
+    queryFn: async ({ signal }) => {
+      const traces = await apiRequest(tracesResponseSchema, apiUrls.itemTraces(id, from, to, points, display), { signal });
+      // The spectrogram's picture is made while the page is idle (a prefetched item then opens without that work).
+      preparePictureWhenIdle(sortChannels(traces.channels, (c) => c.streamId)[0]);
+      return traces;
+    },
     staleTime: Infinity,
   });
 }
