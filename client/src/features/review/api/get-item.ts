@@ -5,12 +5,25 @@ import { queueItemDetailSchema, tracesResponseSchema } from '@shared/schemas/que
 import { sortChannels } from '@shared/channel-order';
 import { apiUrls, type DisplayRequest } from '@client/api/urls';
 import { preparePictureWhenIdle } from '@client/features/review/lib/spectrogram-picture';
+import { whenIdle } from '@client/lib/when-idle';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
-/** Query options of one item's detail (refetched by the live channel when its version moves on). */
+/**
+ * Query options of one item's detail (refetched by the live channel when its version moves on).
+ * Its analysis is read for the screen (`analysisView`) while the page is idle after the answer, so
+ * a prefetched item opens without that work.
+ */
 export function itemOptions(id: number) {
-  return queryOptions({ queryKey: queryKeys.queue.item(id), queryFn: ({ signal }) => apiRequest(queueItemDetailSchema, apiUrls.item(id), { signal }), staleTime: Infinity });
+  return queryOptions({
+    queryKey: queryKeys.queue.item(id),
+    queryFn: async ({ signal }) => {
+      const detail = await apiRequest(queueItemDetailSchema, apiUrls.item(id), { signal });
+      whenIdle(() => void analysisView(detail.analysis));
+      return detail;
+    },
+    staleTime: Infinity,
+  });
 }
 
 /** One item's detail. */
@@ -76,3 +89,21 @@ export const analysisViewSchema = storedAnalysisSchema
 
 /** What the review screen reads from the analysis. */
 export type AnalysisView = z.infer<typeof analysisViewSchema>;
+
+/** Analyses already read, by the stored analysis object of the cached detail (dropped with it). */
+const analysisViews = new WeakMap<object, AnalysisView | null>();
+
+/**
+ * What the review screen reads of an item's stored analysis (`analysisViewSchema`), or null when it
+ * does not fit. Read once per analysis object: the detail's analysis keeps its identity in the query
+ * cache (a claim patches the detail around it), so opening the item again costs nothing.
+ */
+export function analysisView(analysis: unknown): AnalysisView | null {
+  if (typeof analysis !== 'object' || analysis === null) return null;
+  const known = analysisViews.get(analysis);
+  if (known !== undefined) return known;
+  const r = analysisViewSchema.safeParse(analysis);
+  const view = r.success ? r.data : null;
+  analysisViews.set(analysis, view);
+  return view;
+}

@@ -1,5 +1,6 @@
 import type { TracesResponse } from '@shared/schemas/queue';
 import { colormapTable } from '@client/features/review/lib/colormap';
+import { whenIdle } from '@client/lib/when-idle';
 
 type Sg = NonNullable<TracesResponse['channels'][number]['spectrogram']>;
 
@@ -62,14 +63,11 @@ export function spectrogramPicture(sg: Sg): SpectrogramPicture {
 /**
  * Makes, when the page is idle, the spectrogram picture the review screen shows first for these
  * traces (its first channel in display order, the one SpectrogramPanel opens on), so that opening a
- * prefetched item does not spend its first frame on it. Browsers without requestIdleCallback get a
- * short timeout.
+ * prefetched item does not spend its first frame on it.
  * @param first the channel shown first (the caller's channel order)
  */
 export function preparePictureWhenIdle(first: TracesResponse['channels'][number] | undefined): void {
   const sg = first?.spectrogram;
-  if (!sg || pictures.has(sg) || typeof window === 'undefined') return;
-  const run = () => void spectrogramPicture(sg);
-  if (typeof window.requestIdleCallback === 'function') window.requestIdleCallback(run, { timeout: 1000 });
-  else window.setTimeout(run, 50);
+  if (!sg || pictures.has(sg)) return;
+  whenIdle(() => void spectrogramPicture(sg));
 }
