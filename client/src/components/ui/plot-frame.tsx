@@ -290,13 +290,18 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
 
   return (
     <figure className={cx('seisift-plot m-0 rounded-sm border border-line bg-plot-bg', className)} aria-labelledby={titleId}>
-      <figcaption className="flex items-baseline justify-between gap-3 px-3 pt-2">
+      {/* The cursor read-out sits over the caption's right end instead of beside the title: in the
+          flow it took width from the title as the mouse came and went, so a long title wrapped and
+          unwrapped and the plots below moved under the mouse. */}
+      <figcaption className="relative px-3 pt-2">
         <span id={titleId} className="text-sm font-semibold text-ink">
           {title}
         </span>
-        <span className="font-mono text-xs text-ink-muted tabular" aria-live="off">
-          {xAtCursor !== undefined ? `${x.label} ${xFormat(xAtCursor)}${x.unit ? ` ${x.unit}` : ''}` : '\u00a0'}
-        </span>
+        {xAtCursor !== undefined ? (
+          <span className="absolute top-2 right-3 bg-plot-bg pl-3 font-mono text-xs text-ink-muted tabular" aria-live="off">
+            {`${x.label} ${xFormat(xAtCursor)}${x.unit ? ` ${x.unit}` : ''}`}
+          </span>
+        ) : null}
       </figcaption>
       <p id={descId} className="sr-only">
         {description}
