@@ -1,5 +1,6 @@
 import { useCallback, useEffect, useId, useLayoutEffect, useMemo, useRef, useState, type RefObject } from 'react';
 import uPlot from 'uplot';
+import UplotReact from 'uplot-react';
 import 'uplot/dist/uPlot.min.css';
 import { cx } from '@client/lib/cx';
 
@@ -150,80 +151,6 @@ function useFontReady(): boolean {
   return ready;
 }
 
-/** Whether two option sets differ only in width and height (every other key the same object). */
-function sameButSize(a: uPlot.Options, b: uPlot.Options): boolean {
-  const keys = (o: uPlot.Options) => Object.keys(o).filter((k) => k !== 'width' && k !== 'height');
-  const ka = keys(a);
-  const kb = keys(b);
-  return ka.length === kb.length && ka.every((k) => Object.is(a[k as keyof uPlot.Options], b[k as keyof uPlot.Options]));
-}
-
-/** Whether two data sets hold the same numbers (same arrays, or equal element by element). */
-function sameData(a: uPlot.AlignedData, b: uPlot.AlignedData): boolean {
-  return a.length === b.length && a.every((xs, i) => {
-    const ys = b[i];
-    if (xs === ys) return true;
-    if (!ys || xs.length !== ys.length) return false;
-    for (let j = 0; j < xs.length; j++) if (xs[j] !== ys[j]) return false;
-    return true;
-  });
-}
-
-/**
- * One uPlot chart in a div, kept in step with its options and data in layout effects: built when
- * it mounts or its options change (other than the size), resized for a new width or height,
- * given new data with setData. Layout effects (not the passive effects of a generic wrapper) so
- * that a plot mounting with its data is built and drawn before the browser paints that frame:
- * a screen's first paint then shows its plots instead of empty frames for one more frame.
- */
-function UplotChart({ options, data, onCreate, onDelete }: { options: uPlot.Options; data: uPlot.AlignedData; onCreate: (chart: uPlot) => void; onDelete: (chart: uPlot) => void }) {
-  const target = useRef<HTMLDivElement>(null);
-  const chart = useRef<uPlot | null>(null);
-  const built = useRef<{ options: uPlot.Options; data: uPlot.AlignedData } | null>(null);
-  const callbacks = useRef({ onCreate, onDelete });
-  callbacks.current = { onCreate, onDelete };
-  useLayoutEffect(() => {
-    const el = target.current;
-    if (!el) return;
-    const was = built.current;
-    const u = chart.current;
-    if (u && was && sameButSize(was.options, options)) {
-      if (was.options.width !== options.width || was.options.height !== options.height) u.setSize({ width: options.width, height: options.height });
-      built.current = { ...was, options };
-      return;
-    }
-    if (u) {
-      callbacks.current.onDelete(u);
-      u.destroy();
-    }
-    chart.current = new uPlot(options, data, el);
-    built.current = { options, data };
-    callbacks.current.onCreate(chart.current);
-    // The data enter here only when the chart is built; the effect below follows them after that.
-    // eslint-disable-next-line react-hooks/exhaustive-deps -- data changes alone go through setData below
-  }, [options]);
-  useLayoutEffect(() => {
-    const u = chart.current;
-    const was = built.current;
-    if (!u || !was || was.data === data) return;
-    if (!sameData(was.data, data)) u.setData(data, true);
-    built.current = { ...was, data };
-  }, [data]);
-  useLayoutEffect(
-    () => () => {
-      const u = chart.current;
-      chart.current = null;
-      built.current = null;
-      if (u) {
-        callbacks.current.onDelete(u);
-        u.destroy();
-      }
-    },
-    [],
-  );
-  return <div ref={target} />;
-}
-
 /** Default tick / read-out format: 6 significant digits, exponent form outside 1e-3..1e5, true minus sign. */
 export function formatPlotNumber(v: number): string {
   const text = Math.abs(v) >= 1e5 || (Math.abs(v) < 1e-3 && v !== 0) ? v.toExponential(2) : String(Number(v.toPrecision(6)));
@@ -282,7 +209,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
 
   const hasWidth = width > 0;
   // Built without the width: a width change alone (a scroll bar appearing, a resize) then reaches
-  // the chart as a new width beside the same option objects, which it applies with setSize
+  // uplot-react as a new width beside the same option objects, which it applies with setSize
   // instead of building the chart again.
   const unsized = useMemo<uPlot.Options | null>(() => {
     if (!plotTheme || !hasWidth) return null;
@@ -381,7 +308,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
       </p>
       <div ref={boxRef} role="img" aria-labelledby={titleId} aria-describedby={descId} className="px-1" style={{ minHeight: height }}>
         {options && fontReady ? (
-          <UplotChart
+          <UplotReact
             options={options}
             data={data}
             onCreate={(chart) => {
