@@ -1,5 +1,6 @@
 /**
- * Display precision of the traces the API sends for drawing (the event screen's record section).
+ * Display precision of the traces the API sends for drawing (the event screen's record section, the
+ * review screen's window traces: server/features/queue/queue-traces.ts `tracesForDisplay`).
  *
  * A trace is drawn a few hundred pixels high at most, so one part in a thousand of its peak is
  * below one pixel; the engine's 17 significant digits per value only make the JSON large (about
@@ -32,5 +33,44 @@ export function roundForDisplay(values: readonly number[]): number[] {
   return values.map((v) => {
     const q = Math.round(v / 10 ** exp);
     return q === 0 ? 0 : Number(`${q}e${exp}`);
+  });
+}
+
+/**
+ * `roundForDisplay`, except that the peak sample (the first of largest |value|) keeps its exact
+ * value: a curve whose peak is also read as a number (the review screen's "peak 1.23 µm/s", three
+ * significant digits) then reads the engine's peak, not a rounding of a rounding.
+ * @param values any unit; not mutated
+ * @returns a new array: the peak exact, every other value within peak × DISPLAY_TOLERANCE of the input
+ */
+export function roundCurveForDisplay(values: readonly number[]): number[] {
+  const out = roundForDisplay(values);
+  let at = -1;
+  let peak = 0;
+  for (let i = 0; i < values.length; i++) {
+    const a = Math.abs(values[i] as number);
+    if (a > peak) {
+      peak = a;
+      at = i;
+    }
+  }
+  if (at >= 0) out[at] = values[at] as number;
+  return out;
+}
+
+/**
+ * Values rounded to `decimals` decimal places (times to the microsecond: 6; levels in dB: 2), each
+ * the nearest double to its rounded decimal, so JSON prints it short. Non-finite values unchanged.
+ * @param values not mutated
+ * @param decimals places after the point, 0–15
+ * @returns a new array, each value within 0.5 × 10^−decimals of the input
+ */
+export function roundToDecimals(values: readonly number[], decimals: number): number[] {
+  if (!Number.isInteger(decimals) || decimals < 0 || decimals > 15) throw new RangeError(`decimals must be a whole number 0–15, got ${decimals}`);
+  const scale = 10 ** decimals;
+  return values.map((v) => {
+    if (!Number.isFinite(v)) return v;
+    const q = Math.round(v * scale);
+    return q === 0 ? 0 : Number(`${q}e-${decimals}`);
   });
 }

@@ -6,7 +6,7 @@ import { decodeWaveform, type DecodeOptions } from '@server/formats/decode';
 import { WaveformParseError, type DecodedStream } from '@server/formats/types';
 import type { ProcessingProfile } from '@shared/schemas/processing-profile';
 import { analyzeWindow, type AnalysisResult, type AnalyzeOptions } from '@server/dsp/pipeline';
-import { computeTraces, type TracesInput } from '@server/features/queue/queue-traces';
+import { computeTraces, tracesForDisplay, type TracesInput } from '@server/features/queue/queue-traces';
 import { windowLimitProblem, type WindowLimits } from '@server/formats/window-limits';
 import { PreparedCache } from '@server/dsp/template-bank';
 import { matchWindow, type MatchingOutcome } from '@server/features/similarity/window-matching';
@@ -151,12 +151,12 @@ export function decode(task: DecodeTask): unknown {
 }
 
 /**
- * Computes a queue item's display traces (`computeTraces`) and answers them as JSON text in
- * UTF-8, transferred: the main thread only writes the bytes out, so neither the filtering nor the
+ * Computes a queue item's display traces (`computeTraces`, rounded for drawing by
+ * `tracesForDisplay`) and answers them as JSON text in UTF-8, transferred: the main thread only writes the bytes out, so neither the filtering nor the
  * serialising of a long window holds its event loop.
  */
 export function traces(task: TracesInput): unknown {
-  const bytes = new TextEncoder().encode(JSON.stringify(computeTraces(task)));
+  const bytes = new TextEncoder().encode(JSON.stringify(tracesForDisplay(computeTraces(task))));
   return moved(bytes, [bytes.buffer]);
 }
 

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { finiteNumberArraySchema } from './number-array';
 
 /** `GET /api/events/:id/traces?points=`: how many points per trace (min/max buckets). */
 export const eventTracesQuerySchema = z.object({
@@ -28,9 +29,9 @@ export const eventTracesSchema = z.object({
           /** Samples per bucket (1: every sample). */
           bucket: z.number(),
           /** Each point's time after `startTime`, s. */
-          times: z.array(z.number()),
+          times: finiteNumberArraySchema,
           /** Rounded for display: 4 significant digits at the trace's peak (each within 0.05 % of the peak). */
-          values: z.array(z.number()),
+          values: finiteNumberArraySchema,
         }),
       ),
     }),

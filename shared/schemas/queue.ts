@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { flagSchema } from './flags';
+import { finiteNumberArraySchema } from './number-array';
 import { itemStateSchema, type ItemState } from './item-states';
 import { dismissalSchema, escalationSchema, eventLabelSchema, quakemlEventTypes, storedLabelSchema } from './label';
 
@@ -168,7 +169,7 @@ export type TracesQuery = z.infer<typeof tracesQuerySchema>;
  */
 export const displayTraceSchema = z.object({
   /** On the raw trace's points (`times`). */
-  values: z.array(z.number()),
+  values: finiteNumberArraySchema,
   /** Physical unit of `values` (counts, m/s, m, mm for Wood-Anderson). */
   unit: z.string(),
   units: z.enum(displayUnits),
@@ -186,16 +187,16 @@ export const channelTracesSchema = z.object({
   /** Samples per display bucket (1 = full resolution). */
   bucket: z.number().int(),
   /** Times, s from the window's first sample (each bucket gives its min and max in time order). */
-  times: z.array(z.number()),
-  raw: z.array(z.number()),
-  low: z.array(z.number()),
-  high: z.array(z.number()),
-  staLta: z.array(z.number()),
+  times: finiteNumberArraySchema,
+  raw: finiteNumberArraySchema,
+  low: finiteNumberArraySchema,
+  high: finiteNumberArraySchema,
+  staLta: finiteNumberArraySchema,
   units: z.string(),
   bands: z.object({ low: z.tuple([z.number(), z.number()]), high: z.tuple([z.number(), z.number()]) }),
   staLtaLevels: z.object({ on: z.number(), off: z.number(), method: z.string() }),
   triggers: z.array(z.object({ on: z.number(), off: z.number().nullable() })),
-  spectrogram: z.object({ times: z.array(z.number()), freqs: z.array(z.number()), db: z.array(z.number()) }).nullable(),
+  spectrogram: z.object({ times: finiteNumberArraySchema, freqs: finiteNumberArraySchema, db: finiteNumberArraySchema }).nullable(),
   /** The asked-for display trace (only when units or a band were asked for). */
   display: displayTraceSchema.nullable().optional(),
   /** Why the asked-for display trace was refused on this channel (e.g. no poles and zeros for displacement). */

@@ -9,6 +9,7 @@ import { decodeStoredSamples } from '@server/db/samples-codec';
 import { BandError, highBandForRate, validateBand } from '@server/dsp/bands';
 import { butterworthSos } from '@server/dsp/butterworth';
 import { channelChain } from '@server/dsp/channel-chain';
+import { roundCurveForDisplay, roundToDecimals } from '@server/dsp/display-precision';
 import { preprocessTrace } from '@server/dsp/preprocess';
 import { sosfilt, sosfiltZeroPhase } from '@server/dsp/sosfilt';
 import { spectrogram } from '@server/dsp/spectrum';
@@ -322,6 +323,32 @@ export function computeTraces(input: TracesInput): TracesResponse {
     });
   }
   return { from, to: Math.min(to, durationS), filtering: 'causal, zero initial state', channels: out };
+}
+
+/**
+ * The display traces as the API sends them: only drawn (the review screen's plots), so rounded for
+ * display (server/dsp/display-precision.ts) — each curve (pre-processed, both bands, STA/LTA, the
+ * analyst's display trace) to 4 significant digits at its own peak, every value within 0.05 % of
+ * that peak (below a pixel on any plot), the peak sample itself exact (the screen reads it out);
+ * times to the microsecond (the precision of the stored sample times); spectrogram levels to
+ * 0.01 dB (a 256-level colour scale over even 3 dB has steps of 0.012 dB). Trigger times, band
+ * edges and everything else unchanged. About a third of the JSON of `computeTraces`' full doubles,
+ * which the exact checks of the chain (tests/server/features/queue/traces-chain.test.ts) still use.
+ */
+export function tracesForDisplay(t: TracesResponse): TracesResponse {
+  return {
+    ...t,
+    channels: t.channels.map((c) => ({
+      ...c,
+      times: roundToDecimals(c.times, 6),
+      raw: roundCurveForDisplay(c.raw),
+      low: roundCurveForDisplay(c.low),
+      high: roundCurveForDisplay(c.high),
+      staLta: roundCurveForDisplay(c.staLta),
+      spectrogram: c.spectrogram ? { times: roundToDecimals(c.spectrogram.times, 6), freqs: c.spectrogram.freqs, db: roundToDecimals(c.spectrogram.db, 2) } : null,
+      ...(c.display ? { display: { ...c.display, values: roundCurveForDisplay(c.display.values) } } : {}),
+    })),
+  };
 }
 
 /**

@@ -6,7 +6,7 @@ import { makeSignal, stream } from '@tests/server/dsp/fixture-signal';
 import { decodeWaveform } from '@server/formats/decode';
 import { encodeMiniSeed3 } from '@server/formats/mseed3-writer';
 import { defaultWindowLimits } from '@server/formats/window-limits';
-import { computeTraces, type TracesInput } from '@server/features/queue/queue-traces';
+import { computeTraces, tracesForDisplay, type TracesInput } from '@server/features/queue/queue-traces';
 import { encodeSamples } from '@server/db/samples-codec';
 import { matchingTraces } from '@server/dsp/templates';
 import type { BankTemplate } from '@server/dsp/template-bank';
@@ -65,7 +65,7 @@ describe('analysis pool (piscina worker threads)', () => {
     expect(bad).toMatchObject({ ok: false, status: 422, code: 'unprocessable' });
   });
 
-  it('computes display traces in a worker exactly as computeTraces does here', async () => {
+  it('computes display traces in a worker exactly as computeTraces does here, rounded for drawing by tracesForDisplay', async () => {
     const x = window(7)[0]!;
     const input: TracesInput = {
       channels: [{ streamId: x.id, sampleRateHz: 100, startTimeUs: x.startTimeUs, sampleCount: x.samples.length, samples: encodeSamples(x.samples) }],
@@ -75,7 +75,7 @@ describe('analysis pool (piscina worker threads)', () => {
     };
     const here = computeTraces(input);
     const json = await pool.traces(input);
-    expect(JSON.parse(new TextDecoder().decode(json))).toEqual(JSON.parse(JSON.stringify(here)));
+    expect(JSON.parse(new TextDecoder().decode(json))).toEqual(JSON.parse(JSON.stringify(tracesForDisplay(here))));
     // The caller's blob is untouched (the pool sends its own copy).
     expect(input.channels[0]!.samples.byteLength).toBeGreaterThan(0);
   });

@@ -1,4 +1,4 @@
-import { useCallback, useEffect, useId, useMemo, useRef, useState, type RefObject } from 'react';
+import { useCallback, useEffect, useId, useLayoutEffect, useMemo, useRef, useState, type RefObject } from 'react';
 import uPlot from 'uplot';
 import UplotReact from 'uplot-react';
 import 'uplot/dist/uPlot.min.css';
@@ -85,10 +85,14 @@ export function readPlotTheme(el: Element): PlotTheme {
   };
 }
 
-/** Watches the `data-theme` of the nearest themed ancestor and returns it (re-renders on change). */
+/**
+ * Watches the `data-theme` of the nearest themed ancestor and returns it (re-renders on change).
+ * Read in a layout effect, so a plot mounting with its data gets its chart before the first paint
+ * (a passive effect would leave one painted frame without it, and one more render pass).
+ */
 function useScopedTheme(ref: RefObject<HTMLElement | null>): string | null {
   const [theme, setTheme] = useState<string | null>(null);
-  useEffect(() => {
+  useLayoutEffect(() => {
     const el = ref.current;
     if (!el) return;
     const scope = el.closest('[data-theme]') ?? document.documentElement;
@@ -101,12 +105,20 @@ function useScopedTheme(ref: RefObject<HTMLElement | null>): string | null {
   return theme;
 }
 
-/** Tracks an element's content width. */
+/**
+ * Tracks an element's content width: measured once in a layout effect (so the chart is built in
+ * the mounting pass, before the first paint, not a frame later when the ResizeObserver reports),
+ * then followed by a ResizeObserver.
+ */
 function useWidth(ref: RefObject<HTMLElement | null>): number {
   const [width, setWidth] = useState(0);
-  useEffect(() => {
+  useLayoutEffect(() => {
     const el = ref.current;
     if (!el) return;
+    // The content box, as the ResizeObserver's contentRect gives it (so its first report changes nothing).
+    const style = getComputedStyle(el);
+    const edges = ['paddingLeft', 'paddingRight', 'borderLeftWidth', 'borderRightWidth'] as const;
+    setWidth(Math.floor(edges.reduce((w, k) => w - (parseFloat(style[k]) || 0), el.getBoundingClientRect().width)));
     const observer = new ResizeObserver((entries) => {
       const w = entries[0]?.contentRect.width ?? 0;
       setWidth(Math.floor(w));
@@ -117,15 +129,19 @@ function useWidth(ref: RefObject<HTMLElement | null>): number {
   return width;
 }
 
+/** Whether the plot fonts have been seen loaded (then a new plot need not wait a render pass for them). */
+let plotFontsLoaded = false;
+
 /** Resolves once the plot font can be drawn on a canvas (canvas text does not wait for fonts). */
 function useFontReady(): boolean {
-  const [ready, setReady] = useState(() => typeof document === 'undefined' || !('fonts' in document));
+  const [ready, setReady] = useState(() => plotFontsLoaded || typeof document === 'undefined' || !('fonts' in document));
   useEffect(() => {
     if (ready) return;
     let alive = true;
     void Promise.all([document.fonts.load(`11px ${plotFontFamily}`), document.fonts.load(`500 12px ${plotFontFamily}`)])
       .catch(() => undefined)
       .then(() => {
+        plotFontsLoaded = true;
         if (alive) setReady(true);
       });
     return () => {
@@ -191,8 +207,12 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
   const yFormat = y.format ?? formatPlotNumber;
   const seriesKey = series.map((s) => `${s.label}:${s.styleIndex ?? ''}:${s.dash?.join(',') ?? ''}`).join('|');
 
-  const options = useMemo<uPlot.Options | null>(() => {
-    if (!plotTheme || width <= 0) return null;
+  const hasWidth = width > 0;
+  // Built without the width: a width change alone (a scroll bar appearing, a resize) then reaches
+  // uplot-react as a new width beside the same option objects, which it applies with setSize
+  // instead of building the chart again.
+  const unsized = useMemo<uPlot.Options | null>(() => {
+    if (!plotTheme || !hasWidth) return null;
     const ratio = typeof window !== 'undefined' ? window.devicePixelRatio || 1 : 1;
     const axis = (a: PlotAxis, format: (v: number) => string): uPlot.Axis => ({
       stroke: plotTheme.axis,
@@ -207,7 +227,7 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
       values: (_u, splits) => splits.map((v) => (v === null || v === undefined ? '' : format(v))),
     });
     const base: uPlot.Options = {
-      width,
+      width: 0,
       height,
       legend: { show: false },
       cursor: {
@@ -245,7 +265,8 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
     return configure ? configure(base) : base;
     // seriesKey stands for the series' labels and styles; their values go in `data`, not here.
     // eslint-disable-next-line react-hooks/exhaustive-deps -- series, x and y enter through seriesKey and the fields listed
-  }, [plotTheme, width, height, seriesKey, hidden, x.label, x.unit, x.log, y.label, y.unit, y.log, configure, styleOf, xFormat, yFormat]);
+  }, [plotTheme, hasWidth, height, seriesKey, hidden, x.label, x.unit, x.log, y.label, y.unit, y.log, configure, styleOf, xFormat, yFormat]);
+  const options = useMemo<uPlot.Options | null>(() => (unsized ? { ...unsized, width } : null), [unsized, width]);
 
   const data = useMemo<uPlot.AlignedData>(() => [x.values, ...series.map((s) => s.values)], [x.values, series]);
 
@@ -269,13 +290,18 @@ export function PlotFrame({ title, description, x, y, series, height = 220, clas
 
   return (
     <figure className={cx('seisift-plot m-0 rounded-sm border border-line bg-plot-bg', className)} aria-labelledby={titleId}>
-      <figcaption className="flex items-baseline justify-between gap-3 px-3 pt-2">
+      {/* The cursor read-out sits over the caption's right end instead of beside the title: in the
+          flow it took width from the title as the mouse came and went, so a long title wrapped and
+          unwrapped and the plots below moved under the mouse. */}
+      <figcaption className="relative px-3 pt-2">
         <span id={titleId} className="text-sm font-semibold text-ink">
           {title}
         </span>
-        <span className="font-mono text-xs text-ink-muted tabular" aria-live="off">
-          {xAtCursor !== undefined ? `${x.label} ${xFormat(xAtCursor)}${x.unit ? ` ${x.unit}` : ''}` : '\u00a0'}
-        </span>
+        {xAtCursor !== undefined ? (
+          <span className="absolute top-2 right-3 bg-plot-bg pl-3 font-mono text-xs text-ink-muted tabular" aria-live="off">
+            {`${x.label} ${xFormat(xAtCursor)}${x.unit ? ` ${x.unit}` : ''}`}
+          </span>
+        ) : null}
       </figcaption>
       <p id={descId} className="sr-only">
         {description}

@@ -4,7 +4,6 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '@server/app';
 import { eventGeometrySchema } from '@shared/schemas/event-geometry';
 import { eventTracesSchema } from '@shared/schemas/event-traces';
-import { tracesResponseSchema } from '@shared/schemas/queue';
 import { eventDetailSchema } from '@shared/schemas/events';
 import { seedSyntheticEvent, fixtureModel, type SeededEvent } from '@tests/setup/event-fixtures';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
@@ -12,6 +11,7 @@ import { onItemsCreated } from '@server/features/events/candidate-events';
 import { syncEventsFromGroups } from '@server/features/events/event-service';
 import { eventListSchema } from '@shared/schemas/events';
 import { DISPLAY_TOLERANCE } from '@server/dsp/display-precision';
+import { itemTraces } from '@server/features/queue/queue-traces';
 import { createItem, createPerson, type TestPerson } from '@tests/setup/queue-fixtures';
 
 /** Haversine great-circle distance (Sinnott 1984, Sky & Telescope 68:159) on a 6371 km sphere, km. */
@@ -92,7 +92,9 @@ describe('GET /api/events/:id/geometry (real MariaDB)', () => {
       expect(m.channels.map((c) => c.streamId.split('.')[3])).toEqual(['HHE', 'HHN', 'HHZ']);
       // The review screen's traces of the same window (the engine's own chain, server/dsp/channel-chain.ts):
       // the same pre-processed samples at the same decimation, in m/s from the registry's sensitivity.
-      const q = tracesResponseSchema.parse((await request(app).get(`/api/queue/items/${m.itemId}/traces?points=2000`).set('Cookie', ana.cookie).expect(200)).body);
+      // Read unrounded (`itemTraces`, what the traces route computes before `tracesForDisplay` rounds
+      // it for drawing), so this compares the record section with the engine's exact numbers.
+      const q = await itemTraces(ctx.database.db, m.itemId, { points: 2000 }, 'all');
       for (const c of m.channels) {
         const r = q.channels.find((x) => x.streamId === c.streamId);
         if (!r) throw new Error(`no review trace of ${c.streamId}`);

@@ -9,6 +9,7 @@ import { changeLog } from '@server/db/schema/change-log';
 import { queueItems } from '@server/db/schema/queue-items';
 import { defaultProcessingProfile } from '@shared/schemas/processing-profile';
 import { preprocessTrace } from '@server/dsp/preprocess';
+import { DISPLAY_TOLERANCE, roundCurveForDisplay } from '@server/dsp/display-precision';
 import { createTestContext, type TestContext } from '@tests/setup/test-app';
 import { createItem, createPerson, ensureStation, syntheticStreams, type TestPerson } from '@tests/setup/queue-fixtures';
 
@@ -309,9 +310,16 @@ describe('queue API (real MariaDB, supertest)', () => {
       // The pre-processed trace from the engine's own steps, for the decimation checks.
       const streams = syntheticStreams('KV03', Date.parse(detail.windowStart) * 1000, { burstAtS: 50, durationS: 90 });
       const pre = preprocessTrace(streams[0]?.samples ?? new Float64Array(), defaultProcessingProfile.preprocess.taperAlpha);
-      // Min/max decimation keeps every bucket's extremes (hand-checkable): the global max survives.
-      expect(Math.max(...z.raw)).toBe(Math.max(...pre));
-      expect(Math.min(...z.raw)).toBe(Math.min(...pre));
+      // Min/max decimation keeps every bucket's extremes (hand-checkable): the global max and min
+      // survive. The answer is rounded for drawing (tracesForDisplay, server/dsp/display-precision.ts:
+      // 4 significant digits at the curve's peak, each value within DISPLAY_TOLERANCE = 0.05 % of the
+      // peak) except the peak sample itself, which is exact: the larger extreme of the engine's
+      // pre-processed trace (the reference) comes back to the last digit, the other within that tolerance.
+      const prePeak = Math.max(Math.max(...pre), -Math.min(...pre));
+      const exactExtreme = Math.max(...pre) >= -Math.min(...pre) ? [Math.max(...z.raw), Math.max(...pre)] : [Math.min(...z.raw), Math.min(...pre)];
+      expect(exactExtreme[0]).toBe(exactExtreme[1]);
+      expect(Math.abs(Math.max(...z.raw) - Math.max(...pre))).toBeLessThanOrEqual(prePeak * DISPLAY_TOLERANCE);
+      expect(Math.abs(Math.min(...z.raw) - Math.min(...pre))).toBeLessThanOrEqual(prePeak * DISPLAY_TOLERANCE);
       // Triggers equal the ones the engine stored in the analysis (same samples, same profile).
       const analysis = detail.analysis as { channels: Array<{ id: string; staLta: { triggers: Array<{ on: number; off: number | null }> } }> };
       expect(z.triggers).toEqual(analysis.channels.find((c) => c.id.endsWith('HHZ'))?.staLta.triggers.map((t) => ({ on: t.on, off: t.off })));
@@ -321,8 +329,14 @@ describe('queue API (real MariaDB, supertest)', () => {
       const zz = zoom.channels.find((c) => c.streamId.endsWith('HHZ'));
       expect(zz?.bucket).toBe(1);
       expect(zz?.raw).toHaveLength(400);
-      expect(zz?.raw).toEqual(Array.from(pre.subarray(5000, 5400)));
-      expect(zz?.times[0]).toBeCloseTo(50, 9);
+      // Every sample of the engine's pre-processing (the reference), as the display rounding writes it:
+      // exactly `roundCurveForDisplay` of those samples, so each within 0.05 % of their peak.
+      const span = Array.from(pre.subarray(5000, 5400));
+      expect(zz?.raw).toEqual(roundCurveForDisplay(span));
+      const spanPeak = Math.max(...span.map(Math.abs));
+      zz?.raw.forEach((v, i) => expect(Math.abs(v - (span[i] as number))).toBeLessThanOrEqual(spanPeak * DISPLAY_TOLERANCE));
+      // Times to the microsecond: the 5000th sample at 100 Hz is 50 s exactly.
+      expect(zz?.times[0]).toBe(50);
       const outside = await get(ana, `/api/queue/items/${id}/traces?from=500&to=600`);
       expect(outside.status).toBe(400);
       expect(outside.body.error.message).toMatch(/^from: 500 s is outside the window/);

@@ -3,7 +3,8 @@ import { describe, expect, it } from 'vitest';
 import { processingProfileSchema, type ProcessingProfile } from '@shared/schemas/processing-profile';
 import { encodeSamples } from '@server/db/samples-codec';
 import { analyzeWindow } from '@server/dsp/pipeline';
-import { computeTraces, type TracesInput } from '@server/features/queue/queue-traces';
+import { DISPLAY_TOLERANCE } from '@server/dsp/display-precision';
+import { computeTraces, tracesForDisplay, type TracesInput } from '@server/features/queue/queue-traces';
 import { channelSensitivity } from '@server/features/stations/station-registry';
 import { decodeWaveform } from '@server/formats/decode';
 import type { DecodedStream } from '@server/formats/types';
@@ -97,6 +98,38 @@ describe('the trace view runs the engine’s per-channel chain', () => {
       }
     });
   }
+
+  it('as the API sends them (tracesForDisplay): every curve within 0.05 % of its peak of the engine’s, the peak exact, times to the µs, levels to 0.01 dB', () => {
+    // Reference: the engine's own display curves (as above); the tolerance is the display rounding's
+    // stated bound (server/dsp/display-precision.ts, DISPLAY_TOLERANCE of each curve's peak).
+    const { engine, shown } = bothSides(atRate(100), processingProfileSchema.parse({}), velocity);
+    const sent = tracesForDisplay(shown);
+    expect(DISPLAY_TOLERANCE).toBe(5e-4);
+    const close = (got: readonly number[], want: readonly number[]) => {
+      expect(got).toHaveLength(want.length);
+      const peak = Math.max(...want.map(Math.abs));
+      const at = want.findIndex((v) => Math.abs(v) === peak);
+      expect(got[at]).toBe(want[at]);
+      got.forEach((v, i) => expect(Math.abs(v - (want[i] as number))).toBeLessThanOrEqual(peak * DISPLAY_TOLERANCE));
+    };
+    for (const ch of engine.channels) {
+      const view = sent.channels.find((s) => s.streamId === ch.id);
+      const exact = shown.channels.find((s) => s.streamId === ch.id);
+      const display = ch.display;
+      if (!view || !exact || !display) throw new Error(`${ch.id}: missing on one side`);
+      close(view.raw, display.trace);
+      close(view.low, display.low);
+      close(view.high, display.high);
+      close(view.staLta, display.staLta);
+      view.times.forEach((t, i) => expect(Math.abs(t - (exact.times[i] as number))).toBeLessThanOrEqual(0.5e-6 + 1e-12));
+      const db = exact.spectrogram?.db ?? [];
+      expect(view.spectrogram?.db).toHaveLength(db.length);
+      view.spectrogram?.db.forEach((v, i) => expect(Math.abs(v - (db[i] as number))).toBeLessThanOrEqual(0.005 + 1e-9));
+      expect(view.triggers).toEqual(exact.triggers);
+      // And the point of it: the answer's JSON is well under half the size of the full doubles.
+      expect(JSON.stringify(view).length).toBeLessThan(0.5 * JSON.stringify(exact).length);
+    }
+  });
 
   it("a station's own band that reaches 0.45·fs under policy refuse is refused by both, in the same words", () => {
     const profile = processingProfileSchema.parse({ bands: { high: { fmin: 2, fmax: 15 }, nyquistPolicy: 'refuse' } });

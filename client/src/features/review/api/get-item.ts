@@ -2,13 +2,28 @@ import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query'
 import { z } from 'zod';
 import { channelResultSchema, storedAnalysisSchema } from '@shared/schemas/analysis';
 import { queueItemDetailSchema, tracesResponseSchema } from '@shared/schemas/queue';
+import { sortChannels } from '@shared/channel-order';
 import { apiUrls, type DisplayRequest } from '@client/api/urls';
+import { preparePictureWhenIdle } from '@client/features/review/lib/spectrogram-picture';
+import { whenIdle } from '@client/lib/when-idle';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
-/** Query options of one item's detail (refetched by the live channel when its version moves on). */
+/**
+ * Query options of one item's detail (refetched by the live channel when its version moves on).
+ * Its analysis is read for the screen (`analysisView`) while the page is idle after the answer, so
+ * a prefetched item opens without that work.
+ */
 export function itemOptions(id: number) {
-  return queryOptions({ queryKey: queryKeys.queue.item(id), queryFn: ({ signal }) => apiRequest(queueItemDetailSchema, apiUrls.item(id), { signal }), staleTime: Infinity });
+  return queryOptions({
+    queryKey: queryKeys.queue.item(id),
+    queryFn: async ({ signal }) => {
+      const detail = await apiRequest(queueItemDetailSchema, apiUrls.item(id), { signal });
+      whenIdle(() => void analysisView(detail.analysis));
+      return detail;
+    },
+    staleTime: Infinity,
+  });
 }
 
 /** One item's detail. */
@@ -25,7 +40,12 @@ export function useItem(id: number) {
 export function tracesOptions(id: number, from: number | null, to: number | null, points: number, display: DisplayRequest | null = null) {
   return queryOptions({
     queryKey: queryKeys.queue.traces(id, from, to, points, display ? `${display.units}|${display.phase}|${display.band?.join('-') ?? 'none'}` : 'engine'),
-    queryFn: ({ signal }) => apiRequest(tracesResponseSchema, apiUrls.itemTraces(id, from, to, points, display), { signal }),
+    queryFn: async ({ signal }) => {
+      const traces = await apiRequest(tracesResponseSchema, apiUrls.itemTraces(id, from, to, points, display), { signal });
+      // The spectrogram's picture is made while the page is idle (a prefetched item then opens without that work).
+      preparePictureWhenIdle(sortChannels(traces.channels, (c) => c.streamId)[0]);
+      return traces;
+    },
     staleTime: Infinity,
   });
 }
@@ -69,3 +89,21 @@ export const analysisViewSchema = storedAnalysisSchema
 
 /** What the review screen reads from the analysis. */
 export type AnalysisView = z.infer<typeof analysisViewSchema>;
+
+/** Analyses already read, by the stored analysis object of the cached detail (dropped with it). */
+const analysisViews = new WeakMap<object, AnalysisView | null>();
+
+/**
+ * What the review screen reads of an item's stored analysis (`analysisViewSchema`), or null when it
+ * does not fit. Read once per analysis object: the detail's analysis keeps its identity in the query
+ * cache (a claim patches the detail around it), so opening the item again costs nothing.
+ */
+export function analysisView(analysis: unknown): AnalysisView | null {
+  if (typeof analysis !== 'object' || analysis === null) return null;
+  const known = analysisViews.get(analysis);
+  if (known !== undefined) return known;
+  const r = analysisViewSchema.safeParse(analysis);
+  const view = r.success ? r.data : null;
+  analysisViews.set(analysis, view);
+  return view;
+}

@@ -14,7 +14,7 @@ import { paths } from '@client/config/paths';
 import { KeyHelp } from '@client/components/ui/key-help';
 import { Loading } from '@client/components/ui/skeleton';
 import { useToast } from '@client/components/ui/toast';
-import { analysisViewSchema, useItem, useTraces } from '@client/features/review/api/get-item';
+import { analysisView, useItem, useTraces } from '@client/features/review/api/get-item';
 import { useItemMatches } from '@client/features/review/api/get-matches';
 import { usePrefetchQueueItem } from '@client/features/queue/hooks/use-prefetch-item';
 import { REVIEW_TRACE_POINTS } from '@client/api/urls';
@@ -23,6 +23,7 @@ import { useReviewActions } from '@client/features/review/hooks/use-review-actio
 import { useReviewDraft } from '@client/features/review/hooks/use-review-draft';
 import { useReviewKeys } from '@client/features/review/hooks/use-review-keys';
 import { useTraceView } from '@client/features/review/hooks/use-trace-view';
+import { useAfterFirstPaint } from '@client/features/review/hooks/use-after-first-paint';
 import { cycle, distanceFromSMinusP, sMinusP, stepGain, traceViews, type DisplayFilter, type TraceView } from '@client/features/review/lib/display-settings';
 import { unsavedWork } from '@client/features/review/lib/review-draft';
 import { FilterBar, filterLowFieldId } from './filter-bar';
@@ -69,10 +70,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const heldBy = item.data && !item.data.candidateEvent ? (eventIndex.data?.byItem.get(item.data.id) ?? null) : null;
 
   const detail = item.data;
-  const analysis = useMemo(() => {
-    const r = analysisViewSchema.safeParse(detail?.analysis);
-    return r.success ? r.data : null;
-  }, [detail?.analysis]);
+  const analysis = useMemo(() => analysisView(detail?.analysis), [detail?.analysis]);
   const windowStartMs = detail ? Date.parse(detail.windowStart) : 0;
   const durationS = detail ? (Date.parse(detail.windowEnd) - windowStartMs) / 1000 : 0;
   const mine = detail?.state === 'in review' && detail.claimedBy?.id === me?.id;
@@ -91,7 +89,10 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   const [normalise, setNormalise] = useState(true);
   const [sgIndex, setSgIndex] = useState(0);
   const traces = useTraces(itemId, tv.view?.from ?? null, tv.view?.to ?? null, REVIEW_TRACE_POINTS, traceView === 'filter' ? filter : null);
-  usePrefetchQueueItem(neighbour(1)?.id);
+  // The next item, fetched once this one has had its first frames (not during them).
+  usePrefetchQueueItem(neighbour(1)?.id, 400);
+  // The spectrum (a plot beside the traces, below the label form) waits for the traces' first paint.
+  const afterFirstPaint = useAfterFirstPaint();
   const leadTraces = traces.data?.channels.find((c) => c.streamId.endsWith('Z')) ?? traces.data?.channels[0];
   const orderedTraces = useMemo(() => sortChannels(traces.data?.channels ?? [], (c) => c.streamId), [traces.data?.channels]);
   const sgTraces = orderedTraces.length > 0 ? orderedTraces[sgIndex % orderedTraces.length] : undefined;
@@ -318,7 +319,7 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
             <LabelForm labelButtonRef={labelButton} form={form} canWrite={writable} viewOnly={me !== undefined && !mayWork} busy={act.busy} onLabel={(v) => void act.label(v)} onDismiss={(v) => void act.dismiss(v)} />
           </section>
           {analysis ? <Metrics analysis={analysis} /> : null}
-          {analysis && analysis.channels.length > 0 ? <SpectrumSection analysis={analysis} /> : null}
+          {afterFirstPaint && analysis && analysis.channels.length > 0 ? <SpectrumSection analysis={analysis} /> : null}
         </aside>
       </div>
       {group.data ? (

@@ -2,7 +2,8 @@ import { useCallback, useMemo } from 'react';
 import type uPlot from 'uplot';
 import type { TracesResponse } from '@shared/schemas/queue';
 import { PlotFrame } from '@client/components/ui/plot-frame';
-import { colormapGradient, colormapTable } from '@client/features/review/lib/colormap';
+import { colormapGradient } from '@client/features/review/lib/colormap';
+import { spectrogramPicture } from '@client/features/review/lib/spectrogram-picture';
 import { spectrogramExtent } from '@client/features/review/lib/spectrogram-geometry';
 import { selectToZoom } from '@client/features/review/lib/select-zoom';
 import { traceYAxisSizePx } from '@client/features/review/components/trace-panel';
@@ -22,33 +23,6 @@ export type SpectrogramPanelProps = {
   onZoom: (from: number, to: number) => void;
 };
 
-/** The image of the spectrogram, one pixel per column and bin (low frequencies at the bottom). */
-function renderImage(sg: Sg, lo: number, hi: number, lut: Uint8ClampedArray): HTMLCanvasElement | null {
-  const nf = sg.freqs.length;
-  const nt = sg.times.length;
-  if (nt === 0 || nf === 0 || typeof document === 'undefined') return null;
-  const canvas = document.createElement('canvas');
-  canvas.width = nt;
-  canvas.height = nf;
-  const ctx = canvas.getContext('2d');
-  if (!ctx) return null;
-  const img = ctx.createImageData(nt, nf);
-  const span = hi - lo || 1;
-  for (let j = 0; j < nt; j++) {
-    for (let k = 0; k < nf; k++) {
-      const d = sg.db[j * nf + k] ?? lo;
-      const idx = Math.max(0, Math.min(255, Math.round(((d - lo) / span) * 255)));
-      const o = ((nf - 1 - k) * nt + j) * 4;
-      img.data[o] = lut[idx * 4] ?? 0;
-      img.data[o + 1] = lut[idx * 4 + 1] ?? 0;
-      img.data[o + 2] = lut[idx * 4 + 2] ?? 0;
-      img.data[o + 3] = 255;
-    }
-  }
-  ctx.putImageData(img, 0, 0);
-  return canvas;
-}
-
 /**
  * The spectrogram as a heat map under the lead trace: time across on the traces' own time axis
  * (same points, same amplitude-axis width, same cursor link and zoom, so a time sits at the same
@@ -58,13 +32,9 @@ function renderImage(sg: Sg, lo: number, hi: number, lut: Uint8ClampedArray): HT
  * the rest out. Each column is drawn over its own segment's span (lib/spectrogram-geometry.ts).
  */
 export function SpectrogramPanel({ sg, streamId, units, times, syncKey, onZoom }: SpectrogramPanelProps) {
-  const lut = useMemo(() => colormapTable(), []);
   const nf = sg.freqs.length;
-  const [lo, hi] = useMemo(() => {
-    const v = sg.db.filter((d) => d > -400).sort((a, b) => a - b);
-    return [v[Math.floor(v.length * 0.02)] ?? -1, v[Math.floor(v.length * 0.995)] ?? 0];
-  }, [sg.db]);
-  const image = useMemo(() => renderImage(sg, lo, hi, lut), [sg, lo, hi, lut]);
+  // Made once per spectrogram (lib/spectrogram-picture.ts), usually while the page was idle after the prefetch.
+  const { lo, hi, image } = useMemo(() => spectrogramPicture(sg), [sg]);
   const extent = useMemo(() => (sg.times.length > 0 && nf > 1 ? spectrogramExtent(sg.times, sg.freqs) : null), [sg.times, sg.freqs, nf]);
   const fmax = sg.freqs[nf - 1] ?? 0;
   const x = useMemo(() => ({ label: 'Time from window start', unit: 's', values: Array.from(times) }), [times]);

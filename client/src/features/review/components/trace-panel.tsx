@@ -339,6 +339,10 @@ function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, p
     }),
     [syncKey, c.streamId, c.triggers, windowStartMs, half, last],
   );
+  // Stable props for the plot: a new axis formatter or series list on each render (the screen
+  // re-renders as its side panels load) would make PlotFrame build the chart again.
+  const y = useMemo(() => ({ label: drawn.unit || 'ratio', format: (v: number) => `${formatSi(v)}${drawn.unit ? ` ${drawn.unit}` : ''}` }), [drawn.unit]);
+  const series = useMemo(() => [{ label: curve.from, values: drawn.values, styleIndex, dash: [] }], [curve.from, drawn.values, styleIndex]);
   const peak = drawn.unit === '' ? formatSi(drawn.peak) : `${formatSi(drawn.peak)} ${drawn.unit}`;
   const title = curve.refused ? `${c.streamId} · ${c.sampleRateHz} Hz · not shown` : `${c.streamId} · ${c.sampleRateHz} Hz · peak ${peak} from ${curve.from}`;
   return (
@@ -347,8 +351,8 @@ function ChannelPlot({ c, curve, drawn, half, styleIndex, last, windowStartMs, p
         title={title}
         description={`${curve.from} of ${c.streamId}${drawn.unit ? ` in ${drawn.unit}` : ''}`}
         x={x}
-        y={{ label: drawn.unit || 'ratio', format: (v) => `${formatSi(v)}${drawn.unit ? ` ${drawn.unit}` : ''}` }}
-        series={[{ label: curve.from, values: drawn.values, styleIndex, dash: [] }]}
+        y={y}
+        series={series}
         height={last ? stackedTraceHeightPx + 26 : stackedTraceHeightPx}
         legend={false}
         configure={configure}
