@@ -6,7 +6,7 @@ import { roleSchema, type Role } from '@shared/auth/roles';
 import type { QueueRow } from '@shared/schemas/queue';
 import { useEventIndex } from '@client/api/events/event-index';
 import { useMe, useQueueList } from '@client/api/queue/get-queue';
-import { useItemAction } from '@client/api/queue/item-actions';
+import { applyRow, postItemAction } from '@client/api/queue/item-actions';
 import { liveArrivals } from '@client/api/queue/live-patch';
 import { Button } from '@client/components/ui/button';
 import { EmptyState } from '@client/components/ui/empty-state';
@@ -44,7 +44,6 @@ export function QueueScreen() {
   const mayClaim = can(me ? { roles: me.roles.filter((r): r is Role => roleSchema.safeParse(r).success), stationIds: [] } : null, 'queue.claim');
   const navigate = useNavigate();
   const toast = useToast();
-  const action = useItemAction();
   const qc = useQueryClient();
   const now = useNow();
   const loadedRows = useMemo(() => list.data?.pages.flatMap((p) => p.items) ?? [], [list.data]);
@@ -111,18 +110,24 @@ export function QueueScreen() {
     },
     [placeOf, eventMap, openEvent, openItem],
   );
+  // A claim is for the window itself: its review, even from an event group's row. Not a mutation
+  // hook: its pending state would draw the whole table once more before the review opens. On
+  // success the review opens first and the returned row then patches the cache, so the two land in
+  // one render (the queue is leaving) instead of a table redrawn for a row about to be left.
   const claim = useCallback(
     (r: QueueRow) => {
-      action.mutate(
-        { action: 'claim', id: r.id, version: r.version },
-        {
-          // A claim is for the window itself: its review, even from an event group's row.
-          onSuccess: () => openItem(r),
-          onError: (err) => toast.notify({ tone: 'danger', title: `Could not claim item ${r.id}`, body: err.message }),
+      postItemAction({ action: 'claim', id: r.id, version: r.version }).then(
+        (row) => {
+          openItem(r);
+          applyRow(qc, row, true);
+        },
+        (err: unknown) => {
+          void qc.invalidateQueries({ queryKey: queryKeys.queue.item(r.id) });
+          toast.notify({ tone: 'danger', title: `Could not claim item ${r.id}`, body: err instanceof Error ? err.message : String(err) });
         },
       );
     },
-    [action, openItem, toast],
+    [qc, openItem, toast],
   );
 
   useEffect(() => {
