@@ -37,8 +37,8 @@ export interface AnalysisPool {
   decode(bytes: Uint8Array, opts: DecodeOptions, limits: WindowLimits): Promise<DecodeOutcome>;
   /**
    * A queue item's display traces as UTF-8 JSON text (`computeTraces` in a worker, rounded for
-   * drawing by `tracesForDisplay`). The input's
-   * sample blobs are copied once and their copies transferred.
+   * drawing by `tracesForDisplay`). The input's sample blobs are copied once and their copies
+   * transferred.
    */
   traces(input: TracesInput): Promise<Uint8Array>;
   /**

@@ -152,8 +152,9 @@ export function decode(task: DecodeTask): unknown {
 
 /**
  * Computes a queue item's display traces (`computeTraces`, rounded for drawing by
- * `tracesForDisplay`) and answers them as JSON text in UTF-8, transferred: the main thread only writes the bytes out, so neither the filtering nor the
- * serialising of a long window holds its event loop.
+ * `tracesForDisplay`) and answers them as JSON text in UTF-8, transferred: the main thread only
+ * writes the bytes out, so neither the filtering nor the serialising of a long window holds its
+ * event loop.
  */
 export function traces(task: TracesInput): unknown {
   const bytes = new TextEncoder().encode(JSON.stringify(tracesForDisplay(computeTraces(task))));
