@@ -3,6 +3,7 @@ import { can } from '@shared/auth/policies';
 import { eventIndexOptions } from '@client/api/events/event-index';
 import { meOptions, queueListOptions } from '@client/api/queue/get-queue';
 import { parseFilters } from '@client/api/queue/queue-filters';
+import { screenAt } from './early-requests';
 import { EVENT_TRACE_POINTS } from '@client/api/urls';
 import { eventGeometryOptions, eventOptions, eventTracesOptions } from '@client/features/events/api/event-api';
 import { meQueryOptions } from '@client/features/auth/api/session';
@@ -22,20 +23,18 @@ import { itemMatchesOptions } from '@client/features/review/api/get-matches';
  *   screen with them in one go instead of once per answer
  */
 export async function preloadRouteData(qc: QueryClient, location: { pathname: string; search: string }): Promise<void> {
-  const { pathname, search } = location;
-  const item = /^\/queue\/items\/(\d{1,15})$/.exec(pathname);
-  const event = /^\/events\/(\d{1,15})$/.exec(pathname);
-  if (pathname !== '/queue' && !item && !event) return;
+  const at = screenAt(location.pathname);
+  if (!at) return;
   const me = await qc.fetchQuery(meQueryOptions()).catch(() => null);
   if (!me) return;
   // The queue's and the review's event index, only for those who may see events (an operator's queue has no event rows).
   const eventIndex = () => (can(me.user, 'event.view') ? [qc.prefetchQuery(eventIndexOptions())] : []);
-  const filters = () => parseFilters(new URLSearchParams(search));
-  let asked: Promise<unknown>[] = [];
-  if (pathname === '/queue') {
+  const filters = () => parseFilters(new URLSearchParams(location.search));
+  let asked: Promise<unknown>[];
+  if (at.screen === 'queue') {
     asked = [qc.prefetchQuery(meOptions()), qc.prefetchInfiniteQuery(queueListOptions(filters())), ...eventIndex()];
-  } else if (item) {
-    const id = Number(item[1]);
+  } else if (at.screen === 'item') {
+    const { id } = at;
     asked = [
       qc.prefetchQuery(meOptions()),
       qc.prefetchQuery(itemOptions(id)),
@@ -44,8 +43,8 @@ export async function preloadRouteData(qc: QueryClient, location: { pathname: st
       qc.prefetchInfiniteQuery(queueListOptions(filters())),
       ...eventIndex(),
     ];
-  } else if (event) {
-    const id = Number(event[1]);
+  } else {
+    const { id } = at;
     // The geometry (distances, predictions) orders the record section's rows: asked as seen from the event's origin.
     const geometry = qc.fetchQuery(eventOptions(id)).then((e) => qc.prefetchQuery(eventGeometryOptions(id, e.origin?.id ?? null)));
     asked = [geometry, qc.prefetchQuery(eventTracesOptions(id, EVENT_TRACE_POINTS))];
