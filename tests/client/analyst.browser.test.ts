@@ -105,6 +105,11 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     // Ben sees it claimed by Ana, live.
     await pageB.waitForSelector(`tr[data-item-id="${id}"][data-state="in review"]:has-text("Ana Kestrel")`, { timeout: 2000 });
     await screenshot(pageB, 'analyst-queue-claimed-by-other');
+    // Ben's C on that row is refused by the server (Ana holds it): he stays on the queue and is told why.
+    await pageB.click(`tr[data-item-id="${id}"] td:nth-child(2)`);
+    await pageB.keyboard.press('c');
+    await pageB.getByText(`Could not claim item ${id}`).waitFor({ timeout: 5000 });
+    expect(new URL(pageB.url()).pathname).toBe('/queue');
 
     // The review screen with its plots.
     await pageA.waitForSelector('[data-testid="trace-panel"] canvas');
