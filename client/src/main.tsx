@@ -9,7 +9,7 @@ import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
 import { RouterProvider } from 'react-router';
 import { AppProvider, createQueryClient } from './app/provider';
-import { earlyRequestsFor, loadEarlyScreen } from './app/early-requests';
+import { loadEarlyScreen, screenAt } from './app/early-requests';
 import { preloadRouteData } from './app/preload-route';
 import { createAppRouter } from './app/router';
 
@@ -22,7 +22,7 @@ if (!container) throw new Error('client/index.html has no #root element');
 const FIRST_DRAW_WAIT_MS = 600;
 const queryClient = createQueryClient();
 const router = createAppRouter();
-const firstScreen = Promise.all([preloadRouteData(queryClient, window.location), loadEarlyScreen(earlyRequestsFor(window.location).screen)]);
+const firstScreen = Promise.all([preloadRouteData(queryClient, window.location), loadEarlyScreen(screenAt(window.location.pathname)?.screen ?? null)]);
 const drawn = Promise.race([firstScreen, new Promise((r) => setTimeout(r, FIRST_DRAW_WAIT_MS))]);
 // Drawn whatever happened to those requests (each screen shows its own errors).
 void drawn.catch(() => undefined).then(() =>

@@ -7,6 +7,7 @@ import type { EventGeometry } from '@shared/schemas/event-geometry';
 import type { EventDetail } from '@shared/schemas/events';
 import { Button } from '@client/components/ui/button';
 import { ellipseFeature, niceScaleKm } from '@client/features/events/lib/map-geometry';
+import { whenIdle } from '@client/lib/when-idle';
 
 /** A piece of outline with its box, [[west, south], [east, north]] in degrees (`boxOf`). */
 type Piece<T> = { coords: T; bounds: [[number, number], [number, number]] };
@@ -48,22 +49,6 @@ function loadOutlines(): Promise<Outlines> {
     return { land, borders };
   });
   return outlinesOnce;
-}
-
-/**
- * Runs `f` once `afterMs` have passed and the page is idle (at the latest `timeoutMs` later): the
- * outlines (a large chunk to evaluate) wait for the traces' first paint.
- */
-function whenIdle(f: () => void, timeoutMs: number, afterMs: number): () => void {
-  let idle: number | undefined;
-  const t = window.setTimeout(() => {
-    if (typeof window.requestIdleCallback === 'function') idle = window.requestIdleCallback(f, { timeout: timeoutMs });
-    else f();
-  }, afterMs);
-  return () => {
-    window.clearTimeout(t);
-    if (idle !== undefined) window.cancelIdleCallback(idle);
-  };
 }
 
 /** Whether a piece's bounds meet the box [[w, s], [e, n]] (pieces across the antimeridian always do). */
@@ -108,12 +93,16 @@ export const EventMap = memo(function EventMap({ geometry, origin }: EventMapPro
   const [view, setView] = useState<'network' | 'region'>('network');
   useEffect(() => {
     let live = true;
-    const cancel = whenIdle(() => {
-      loadOutlines().then(
-        (o) => live && setOutlines(o),
-        (e: unknown) => live && setFailed(e instanceof Error ? e.message : String(e)),
-      );
-    }, 3000, 400);
+    // The outlines (a large chunk to evaluate) wait for the traces' first paint, then for idleness.
+    const cancel = whenIdle(
+      () => {
+        loadOutlines().then(
+          (o) => live && setOutlines(o),
+          (e: unknown) => live && setFailed(e instanceof Error ? e.message : String(e)),
+        );
+      },
+      { timeoutMs: 3000, afterMs: 400 },
+    );
     return () => {
       live = false;
       cancel();

@@ -1,4 +1,4 @@
-import { useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { Link } from 'react-router';
 import { can } from '@shared/auth/policies';
 import type { EventTraces } from '@shared/schemas/event-traces';
@@ -33,6 +33,7 @@ import { RecordSection, type DrawnPick, type RecordCursor, type RecordRow, type 
 import { EventMap } from './event-map';
 import { ArrivalsPanel, EventLabelPanel, MagnitudePanel, OriginPanel, Panel, SuggestionsPanel } from './event-panels';
 import { compareCodes } from '@client/lib/text-order';
+import { useAfterFirstPaint } from '@client/lib/use-after-first-paint';
 
 /** The keys of the event screen (shown by "?"). */
 export const eventKeyBindings: readonly KeyBinding[] = [
@@ -92,9 +93,9 @@ export function EventScreen({ eventId }: EventScreenProps) {
 }
 
 function Workbench({ eventId, detail }: { eventId: number; detail: EventDetail }) {
-  // The side column (map, origin, magnitudes, suggestions, arrivals, label, members) is drawn in a
-  // second pass just after the first: the record section, the analyst's work, appears first.
-  const sideShown = useDeferredValue(true, false);
+  // The side column (map, origin, magnitudes, suggestions, arrivals, label, members) is drawn once
+  // the first frame is painted: the record section, the analyst's work, appears first.
+  const sideShown = useAfterFirstPaint();
   const { user } = useSession();
   const actor = user ? { roles: user.roles, stationIds: [] } : null;
   const mayPick = can(actor, 'event.pick');

@@ -23,7 +23,7 @@ import { useReviewActions } from '@client/features/review/hooks/use-review-actio
 import { useReviewDraft } from '@client/features/review/hooks/use-review-draft';
 import { useReviewKeys } from '@client/features/review/hooks/use-review-keys';
 import { useTraceView } from '@client/features/review/hooks/use-trace-view';
-import { useAfterFirstPaint } from '@client/features/review/hooks/use-after-first-paint';
+import { useAfterFirstPaint } from '@client/lib/use-after-first-paint';
 import { cycle, distanceFromSMinusP, sMinusP, stepGain, traceViews, type DisplayFilter, type TraceView } from '@client/features/review/lib/display-settings';
 import { unsavedWork } from '@client/features/review/lib/review-draft';
 import { FilterBar, filterLowFieldId } from './filter-bar';
