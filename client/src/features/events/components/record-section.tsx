@@ -66,6 +66,12 @@ function rowHeightPx(n: number): number {
   return n <= 8 ? 64 : n <= 16 ? 40 : 28;
 }
 
+/** Rows at least this tall (CSS px) have room for a two-line label (12 px font); lower rows put it on one line. */
+const TWO_LINE_LABEL_MIN_PX = 40;
+
+/** The time axis below the rows, CSS px: uPlot's default axis size (50) and axis-label size (30). */
+const TIME_AXIS_PX = 80;
+
 /** First index with t[i] ≥ x (binary search; `t` ascending). */
 function lowerBound(t: Float64Array, x: number): number {
   let lo = 0;
@@ -254,7 +260,8 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
 
   const n = rows.length;
   const shape = rows.map((r) => r.streamId).sort().join(' ');
-  const heightPx = Math.max(240, n * rowHeightPx(n));
+  const heightPx = Math.max(240, n * rowHeightPx(n) + TIME_AXIS_PX);
+  const labelBreak = rowHeightPx(n) >= TWO_LINE_LABEL_MIN_PX ? '\n' : ' ';
 
   // A new width resizes the plot in place (a rebuild would draw every trace twice on the first screen).
   useEffect(() => {
@@ -309,7 +316,7 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
           // From the latest rows: a relocation changes the distances without rebuilding the plot.
           values: (_u: uPlot, splits: number[]) => splits.map((v) => {
             const row = state.current.rows[n - 1 - v];
-            return row ? `${row.label}\n${row.detail}` : '';
+            return row ? `${row.label}${labelBreak}${row.detail}` : '';
           }),
         },
       ],
@@ -379,7 +386,7 @@ export function RecordSection({ rows, picks, predicted, selectedPickId, zoom, on
     };
     // Rebuilt only when the set of rows (or the size) changes: new values, labels or order of the
     // same streams after a relocation are a redraw (below), not a new plot.
-  }, [shape, heightPx, n]);
+  }, [shape, heightPx, n, labelBreak]);
 
   // Rows' data and labels, picks, predictions and selection change without rebuilding the plot
   // (nothing to do for what the plot was just built with).
