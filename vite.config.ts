@@ -15,7 +15,7 @@ export const pathAliases = {
   '@tests': here('./tests'),
 };
 
-/** The faces every screen draws with (client/src/main.tsx imports them): loaded with the page, not when a text first needs one. */
+/** The faces every screen draws with (client/src/early.ts imports them): loaded with the page, not when a text first needs one. */
 const firstScreenFonts = /^assets\/ibm-plex-(sans-latin-(400|500|600)|mono-latin-(400|500))-normal-[\w-]+\.woff2$/;
 
 /**
@@ -38,10 +38,41 @@ function preloadFonts(): Plugin {
   };
 }
 
+/**
+ * Adds to the built index.html a `<link rel="modulepreload">` for the app's own chunk (main.tsx)
+ * and every chunk it imports. The page's entry (early.ts) loads the app with a dynamic import, so
+ * that the entry runs (and starts the first screen's requests) without waiting for the app's
+ * libraries; these links have the browser fetch those libraries at once, alongside the entry, not
+ * only once the entry has run.
+ */
+function preloadApp(): Plugin {
+  return {
+    name: 'seisift-preload-app',
+    apply: 'build',
+    transformIndexHtml: {
+      order: 'post',
+      handler: (_html, ctx) => {
+        const bundle = ctx.bundle ?? {};
+        const main = Object.values(bundle).find((c) => c.type === 'chunk' && c.facadeModuleId?.endsWith('/client/src/main.tsx'));
+        if (!main || main.type !== 'chunk') throw new Error('seisift-preload-app: the build has no chunk for client/src/main.tsx');
+        const files = new Set<string>();
+        const visit = (file: string): void => {
+          const chunk = bundle[file];
+          if (files.has(file) || !chunk || chunk.type !== 'chunk' || chunk.isEntry) return;
+          files.add(file);
+          chunk.imports.forEach(visit);
+        };
+        visit(main.fileName);
+        return [...files].map((file) => ({ tag: 'link', attrs: { rel: 'modulepreload', crossorigin: '', href: `/${file}` }, injectTo: 'head' as const }));
+      },
+    },
+  };
+}
+
 /** Vite builds the React client rooted in client/; vitest runs every test under tests/. */
 export default defineConfig({
   root: 'client',
-  plugins: [react(), tailwindcss(), preloadFonts()],
+  plugins: [react(), tailwindcss(), preloadFonts(), preloadApp()],
   resolve: { alias: pathAliases },
   build: { outDir: '../dist/client', emptyOutDir: true },
   server: {

@@ -10,6 +10,14 @@ import type { DisplayUnits, QueueQuery } from '@shared/schemas/queue';
 /** The list filters a screen holds (everything of GET /api/queue but the cursor and page size). */
 export type QueueFilters = Omit<Partial<QueueQuery>, 'cursor' | 'limit'> & { sort: QueueQuery['sort'] };
 
+/** The states the queue shows when the URL names none: what still waits for an analyst. */
+export const workingStates = ['new', 'returned', 'in review'] as const;
+
+/** The filters of a queue address without search params (what `parseFilters` gives for an empty query; tested). */
+export function defaultQueueFilters(): QueueFilters {
+  return { sort: 'score', state: [...workingStates] };
+}
+
 /** Page size of the queue screen's list. */
 export const QUEUE_PAGE_SIZE = 500;
 

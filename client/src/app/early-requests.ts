@@ -1,6 +1,5 @@
 import { authPagePaths } from '@shared/auth/links';
-import { parseFilters } from '@client/api/queue/queue-filters';
-import { apiUrls, EVENT_TRACE_POINTS, REVIEW_TRACE_POINTS } from '@client/api/urls';
+import { apiUrls, defaultQueueFilters, EVENT_TRACE_POINTS, REVIEW_TRACE_POINTS } from '@client/api/urls';
 
 /** The screens whose code and data the page starts fetching before the app has loaded. */
 export type EarlyScreen = 'queue' | 'item' | 'event';
@@ -15,28 +14,39 @@ export function screenAt(pathname: string): { screen: 'queue' } | { screen: 'ite
   return null;
 }
 
+/** The first requests of a screen: `urls` at once; `later`, those known only once more code has loaded. */
+export type EarlyRequests = { screen: EarlyScreen | null; urls: string[]; later: Promise<string[]> | null };
+
 /**
  * What the screen at `location` asks for first: its screen (whose code to load) and the GET
  * addresses of its first requests, exactly as its query options spell them (api/urls.ts). The auth
  * pages ask for nothing; any other page only for the session. A visitor who is not signed in gets
  * 401s for these, which nobody takes (the app asks the session first and goes to sign in).
+ *
+ * This runs in the page's first module, which loads nothing heavy: the queue page of an address
+ * with filters in its search params needs the filter parser (built on zod), so that one address
+ * comes in `later`, once the parser has loaded; without filters it is known at once.
  * @param location the address the page opened at (window.location)
  */
-export function earlyRequestsFor(location: { pathname: string; search: string }): { screen: EarlyScreen | null; urls: string[] } {
+export function earlyRequestsFor(location: { pathname: string; search: string }): EarlyRequests {
   const { pathname, search } = location;
-  if (Object.values(authPagePaths).some((p) => pathname === p || pathname.startsWith(`${p}/`))) return { screen: null, urls: [] };
+  if (Object.values(authPagePaths).some((p) => pathname === p || pathname.startsWith(`${p}/`))) return { screen: null, urls: [], later: null };
   const at = screenAt(pathname);
-  const filters = () => parseFilters(new URLSearchParams(search));
-  if (!at) return { screen: null, urls: [apiUrls.session] };
-  if (at.screen === 'queue') return { screen: 'queue', urls: [apiUrls.session, apiUrls.me, apiUrls.queuePage(filters()), apiUrls.eventIndex] };
-  const { id } = at;
-  if (at.screen === 'item') {
-    return {
-      screen: 'item',
-      urls: [apiUrls.session, apiUrls.me, apiUrls.item(id), apiUrls.itemTraces(id, null, null, REVIEW_TRACE_POINTS), apiUrls.itemMatches(id), apiUrls.queuePage(filters()), apiUrls.eventIndex],
-    };
+  if (!at) return { screen: null, urls: [apiUrls.session], later: null };
+  if (at.screen === 'event') {
+    const { id } = at;
+    return { screen: 'event', urls: [apiUrls.session, apiUrls.event(id), apiUrls.eventTraces(id, EVENT_TRACE_POINTS), apiUrls.eventGeometry(id)], later: null };
   }
-  return { screen: 'event', urls: [apiUrls.session, apiUrls.event(id), apiUrls.eventTraces(id, EVENT_TRACE_POINTS), apiUrls.eventGeometry(id)] };
+  const filtered = search !== '' && search !== '?';
+  const queuePage = filtered ? [] : [apiUrls.queuePage(defaultQueueFilters())];
+  const later = filtered ? import('@client/api/queue/queue-filters').then((m) => [apiUrls.queuePage(m.parseFilters(new URLSearchParams(search)))]) : null;
+  if (at.screen === 'queue') return { screen: 'queue', urls: [apiUrls.session, apiUrls.me, ...queuePage, apiUrls.eventIndex], later };
+  const { id } = at;
+  return {
+    screen: 'item',
+    urls: [apiUrls.session, apiUrls.me, apiUrls.item(id), apiUrls.itemTraces(id, null, null, REVIEW_TRACE_POINTS), apiUrls.itemMatches(id), ...queuePage, apiUrls.eventIndex],
+    later,
+  };
 }
 
 /**

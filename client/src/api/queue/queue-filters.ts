@@ -1,8 +1,5 @@
 import { queueQuerySchema } from '@shared/schemas/queue';
-import type { QueueFilters } from '@client/api/urls';
-
-/** The states the queue shows when the URL names none: what still waits for an analyst. */
-export const workingStates = ['new', 'returned', 'in review'] as const;
+import { workingStates, type QueueFilters } from '@client/api/urls';
 
 /**
  * Filters from search params (the URL of the queue screen, also read by the review screen for its

@@ -4,7 +4,7 @@ import UplotReact from 'uplot-react';
 import 'uplot/dist/uPlot.min.css';
 import { cx } from '@client/lib/cx';
 
-/** The axes font of every plot (shipped with the app, see main.tsx). */
+/** The axes font of every plot (shipped with the app, see early.ts). */
 export const plotFontFamily = "'IBM Plex Mono', ui-monospace, monospace";
 
 /**

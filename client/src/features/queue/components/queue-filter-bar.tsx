@@ -3,7 +3,7 @@ import { flags } from '@shared/schemas/flags';
 import { itemStates, type ItemState } from '@shared/schemas/item-states';
 import { labelFilterValues } from '@shared/schemas/queue';
 import type { QueueFilters } from '@client/api/urls';
-import { workingStates } from '@client/api/queue/queue-filters';
+import { workingStates } from '@client/api/urls';
 import { Input } from '@client/components/ui/input';
 import { Select } from '@client/components/ui/select';
 import { UtcTimeInput } from '@client/components/ui/utc-time-input';
