@@ -110,6 +110,24 @@ describe('analysts in two browsers (real server, real sessions, chromium)', () =
     await pageB.keyboard.press('c');
     await pageB.getByText(`Could not claim item ${id}`).waitFor({ timeout: 5000 });
     expect(new URL(pageB.url()).pathname).toBe('/queue');
+    // A waiting row opens at once, its claim on the way (the answer is held here until the review
+    // is open). Should the server refuse that claim (its answer is replaced by the 409 the API gives
+    // when somebody claimed the item a moment before), Ben is taken back to the queue in place of
+    // the review, and told why.
+    const waiting = Number(await pageB.locator('tr[data-role="item"][data-state="new"]').first().getAttribute('data-item-id'));
+    const claimUrl = `**/api/queue/items/${waiting}/claim`;
+    let openedFirst = false;
+    await pageB.route(claimUrl, async (route) => {
+      openedFirst = await pageB.waitForURL(`**/queue/items/${waiting}**`, { timeout: 5000 }).then(() => true, () => false);
+      await route.fulfill({ status: 409, contentType: 'application/json', body: JSON.stringify({ error: { code: 'conflict', message: `Ana Kestrel claimed item ${waiting} a moment ago` } }) });
+    });
+    await pageB.click(`tr[data-item-id="${waiting}"] td:nth-child(2)`);
+    await pageB.keyboard.press('c');
+    await pageB.getByText(`Could not claim item ${waiting}`).waitFor({ timeout: 5000 });
+    await pageB.waitForURL((u) => u.pathname === '/queue', { timeout: 5000 });
+    await pageB.waitForSelector(`tr[data-item-id="${waiting}"][data-state="new"]`, { timeout: 5000 });
+    expect(openedFirst).toBe(true);
+    await pageB.unroute(claimUrl);
 
     // The review screen with its plots.
     await pageA.waitForSelector('[data-testid="trace-panel"] canvas');

@@ -111,23 +111,29 @@ export function QueueScreen() {
     [placeOf, eventMap, openEvent, openItem],
   );
   // A claim is for the window itself: its review, even from an event group's row. Not a mutation
-  // hook: its pending state would draw the whole table once more before the review opens. On
-  // success the review opens first and the returned row then patches the cache, so the two land in
-  // one render (the queue is leaving) instead of a table redrawn for a row about to be left.
+  // hook: its pending state would draw the whole table once more before the review opens. A row
+  // that waits (new, returned) opens at once, while the claim is on its way (the review draws from
+  // the prefetched item and shows the claim when its row comes back); should the server refuse it
+  // (somebody claimed it a moment before), the analyst is taken back to the queue, told why. Any
+  // other row opens only once the server has granted the claim.
   const claim = useCallback(
     (r: QueueRow) => {
+      const opensAtOnce = r.state === 'new' || r.state === 'returned';
+      if (opensAtOnce) openItem(r);
       postItemAction({ action: 'claim', id: r.id, version: r.version }).then(
         (row) => {
-          openItem(r);
+          if (!opensAtOnce) openItem(r);
           applyRow(qc, row, true);
         },
         (err: unknown) => {
+          // Back to the queue, in place of the review, unless the analyst has already moved on.
+          if (opensAtOnce && window.location.pathname === `${paths.queueItem.href}/${r.id}`) void navigate(`${paths.queue.href}${search ? `?${search}` : ''}`, { replace: true });
           void qc.invalidateQueries({ queryKey: queryKeys.queue.item(r.id) });
           toast.notify({ tone: 'danger', title: `Could not claim item ${r.id}`, body: err instanceof Error ? err.message : String(err) });
         },
       );
     },
-    [qc, openItem, toast],
+    [qc, openItem, toast, navigate, search],
   );
 
   useEffect(() => {
