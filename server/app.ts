@@ -1,12 +1,15 @@
 import express, { type Express } from 'express';
 import { existsSync } from 'node:fs';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createAuthKit } from './auth/kit';
 import { sessionCookieName } from './auth/sessions';
 import type { AppContext } from './context';
 import { authenticate } from './auth/authenticate';
 import { csrfProtection } from './auth/csrf';
+import { notFound } from './errors';
 import { apiNotFound, errorHandler } from './http/error-handler';
+import { clipInput } from '@shared/quote-input';
 import { requestLog } from './http/request-log';
 import { securityHeaders } from './http/security-headers';
 import { accountRouter } from './features/accounts/account-router';
@@ -63,6 +66,11 @@ export function createApp(ctx: AppContext, opts: { serveClient?: boolean; upload
   app.use('/api', apiNotFound);
 
   if (opts.serveClient !== false && existsSync(clientDistDir)) {
+    // The build names every file under assets/ by a hash of its content (a changed file is a new
+    // name), so a browser keeps them for a year without asking again (common practice for hashed
+    // build files); a name the build does not have is a 404, not the page.
+    app.use('/assets', express.static(join(clientDistDir, 'assets'), { index: false, immutable: true, maxAge: '1y' }));
+    app.use('/assets', (req, _res, next) => next(notFound(`Built file ${clipInput(req.originalUrl.split('?')[0] ?? '')}`)));
     app.use(express.static(clientDistDir, { index: false, maxAge: '1h' }));
     app.get('/{*splat}', (_req, res) => {
       res.setHeader('Cache-Control', 'no-cache');

@@ -52,6 +52,20 @@ describe('security headers and the client under its CSP (real server, chromium)'
     }
   });
 
+  it('lets browsers keep the hashed build files for a year, asks again for the page every time, and answers 404 for a build file that does not exist', async () => {
+    const page = await request(server.url).get('/queue');
+    expect(page.headers['cache-control']).toBe('no-cache');
+    const script = /<script type="module" crossorigin src="(\/assets\/[\w-]+\.js)">/.exec(page.text)?.[1];
+    expect(script).toBeDefined();
+    const asset = await request(server.url).get(script ?? '');
+    expect(asset.status).toBe(200);
+    // Express's `immutable` with a year's max-age (common practice for content-hashed names).
+    expect(asset.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    const missing = await request(server.url).get('/assets/no-such-chunk-0000.js');
+    expect(missing.status).toBe(404);
+    expect(missing.body).toEqual({ error: { code: 'not_found', message: 'Built file /assets/no-such-chunk-0000.js not found' } });
+  });
+
   it('every screen runs with no CSP violation (chromium reports none) and the inline theme script still sets the theme', async () => {
     const visits: Array<{ who: TestPerson; paths: string[] }> = [
       { who: analyst, paths: ['/queue', `/queue/items/${itemId}`, '/stations', '/account'] },
