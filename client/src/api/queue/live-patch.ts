@@ -83,12 +83,14 @@ export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['ki
     const f = filtersOf(key);
     if (!f || !data) continue;
     let found = false;
+    let changed = false;
     const pages = data.pages.map((p) => {
       const i = p.items.findIndex((r) => r.id === row.id);
       if (i < 0) return p;
       found = true;
       const current = p.items[i];
       if (current && current.version >= row.version) return p;
+      changed = true;
       const items = p.items.slice();
       items[i] = row;
       return { ...p, items };
@@ -110,11 +112,14 @@ export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['ki
             items.splice(at >= 0 ? at : items.length, 0, row);
             pages[k] = { ...p, items };
             placed = true;
+            changed = true;
           }
         }
       }
     }
-    qc.setQueryData<QueueListData>(key, { ...data, pages });
+    // A row the list already holds at this version (the live echo of one's own change, after its
+    // answer was applied) leaves the list as it is: no new data, so no screen draws again for it.
+    if (changed) qc.setQueryData<QueueListData>(key, { ...data, pages });
   }
   if (kind === 'created') liveArrivals.add(row.id);
 }

@@ -66,6 +66,22 @@ describe('live changes into the query cache', () => {
     expect(ids(qc, f)).toEqual([1, 2, 3, 4]);
   });
 
+  it('leaves the list as it is (no new data, no redraw) for a row it already holds at that version: the echo of a change of its own', () => {
+    const qc = seed(null);
+    const claimed = row(2, 7, { state: 'in review', version: 2, claimedBy: { id: 'u1', displayName: 'Ana' } });
+    patchRow(qc, claimed, 'updated');
+    const before = qc.getQueryData<QueueListData>(queryKeys.queue.list(f));
+    let notified = 0;
+    const unsubscribe = qc.getQueryCache().subscribe((e) => {
+      if (e.type === 'updated') notified += 1;
+    });
+    patchRow(qc, claimed, 'updated');
+    patchRow(qc, row(2, 7, { version: 1 }), 'updated');
+    unsubscribe();
+    expect(qc.getQueryData<QueueListData>(queryKeys.queue.list(f))).toBe(before);
+    expect(notified).toBe(0);
+  });
+
   it('applyChanges patches from summaries and marks an open item stale when its version moves on', async () => {
     const qc = seed(null);
     qc.setQueryData(queryKeys.queue.item(3), { version: 1 });
