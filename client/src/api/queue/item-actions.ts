@@ -46,6 +46,9 @@ export function useItemAction() {
  * Applies a row the server returned to the cache (lists and the item detail). A claim or release
  * changes nothing but what the row carries (state, holder, version), so an open item is patched
  * from it in place; other actions (a label, a dismissal) change more, so the item is refetched.
+ * A fetch of the item still on its way may have left before the change (a claim opens the review
+ * while its request is on the way, and the queue may be prefetching the item): it is cancelled
+ * first, so it cannot bring the older state back for good, and a screen showing the item asks again.
  * @param rowSaysAll whether the row holds the whole change (claim, release)
  */
 export function applyRow(qc: QueryClient, row: QueueRow, rowSaysAll = false): void {
@@ -55,5 +58,6 @@ export function applyRow(qc: QueryClient, row: QueueRow, rowSaysAll = false): vo
     if (open.version < row.version) qc.setQueryData<QueueItemDetail>(queryKeys.queue.item(row.id), { ...open, ...row });
     return;
   }
-  void qc.invalidateQueries({ queryKey: queryKeys.queue.item(row.id) });
+  const key = queryKeys.queue.item(row.id);
+  void qc.cancelQueries({ queryKey: key }).then(() => qc.invalidateQueries({ queryKey: key }));
 }
