@@ -53,11 +53,11 @@ export function useItemAction() {
  */
 export function applyRow(qc: QueryClient, row: QueueRow, rowSaysAll = false): void {
   patchRow(qc, row, 'updated');
-  const open = qc.getQueryData<QueueItemDetail>(queryKeys.queue.item(row.id));
+  const key = queryKeys.queue.item(row.id);
+  const open = qc.getQueryData<QueueItemDetail>(key);
   if (rowSaysAll && open) {
-    if (open.version < row.version) qc.setQueryData<QueueItemDetail>(queryKeys.queue.item(row.id), { ...open, ...row });
+    if (open.version < row.version) qc.setQueryData<QueueItemDetail>(key, { ...open, ...row });
     return;
   }
-  const key = queryKeys.queue.item(row.id);
   void qc.cancelQueries({ queryKey: key }).then(() => qc.invalidateQueries({ queryKey: key }));
 }

@@ -3,26 +3,10 @@ import { describe, expect, it, vi } from 'vitest';
 import type { QueueRow } from '@shared/schemas/queue';
 import { applyRow } from '@client/api/queue/item-actions';
 import { queryKeys } from '@client/lib/query-keys';
+import { queueRow } from './queue-row';
 
-const row = (over: Partial<QueueRow>): QueueRow => ({
-  id: 3,
-  state: 'new',
-  score: 5,
-  flag: 'needs eyes',
-  reasons: [],
-  station: 'XX.KV01',
-  stationId: 1,
-  windowStart: '2026-03-14T09:00:00.000Z',
-  createdAt: '2026-03-14T09:00:03.000Z',
-  updatedAt: '2026-03-14T09:00:00.000Z',
-  version: 1,
-  claimedBy: null,
-  claimedAt: null,
-  updatedBy: null,
-  labelType: null,
-  candidateEvent: null,
-  ...over,
-});
+/** Item 3 as the queue lists it, with `over` applied. */
+const row = (over: Partial<QueueRow>): QueueRow => queueRow(3, 5, over);
 
 describe('a row the server returned, into the cache', () => {
   it('patches an item already in the cache in place when the row says all (a claim)', () => {

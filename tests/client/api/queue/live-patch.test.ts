@@ -5,26 +5,8 @@ import type { QueueFilters } from '@client/api/urls';
 import type { QueueListData } from '@client/api/queue/get-queue';
 import { queryKeys } from '@client/lib/query-keys';
 import { applyChanges, liveArrivals, patchRow } from '@client/api/queue/live-patch';
+import { queueRow as row } from './queue-row';
 
-const row = (id: number, score: number, over: Partial<QueueRow> = {}): QueueRow => ({
-  id,
-  state: 'new',
-  score,
-  flag: 'needs eyes',
-  reasons: [],
-  station: 'XX.KV01',
-  stationId: 1,
-  windowStart: '2026-03-14T09:00:00.000Z',
-  createdAt: `2026-03-14T09:00:${String(id % 60).padStart(2, '0')}.000Z`,
-  updatedAt: '2026-03-14T09:00:00.000Z',
-  version: 1,
-  claimedBy: null,
-  claimedAt: null,
-  updatedBy: null,
-  labelType: null,
-  candidateEvent: null,
-  ...over,
-});
 const page = (items: QueueRow[], nextCursor: string | null): QueuePage => ({
   items,
   nextCursor,
