@@ -3,6 +3,7 @@ import { createContext, useContext, useEffect, useState, type ReactNode } from '
 import type { ConnectionState } from '@client/components/ui/connection-indicator';
 import { applyChanges, refetchAll } from '@client/api/queue/live-patch';
 import { createLiveClient, liveUrl } from '@client/lib/ws-client';
+import { whenOpened } from '@client/lib/screen-opening';
 import { queryKeys } from '@client/lib/query-keys';
 
 const LiveContext = createContext<ConnectionState | undefined>(undefined);
@@ -18,7 +19,8 @@ export function LiveUpdatesProvider({ children }: { children: ReactNode }) {
   useEffect(() => {
     const client = createLiveClient({
       url: liveUrl(window.location),
-      onChanges: (changes) => applyChanges(qc, changes),
+      // While a screen opens, changes wait until it has drawn (lib/screen-opening.ts).
+      onChanges: (changes) => whenOpened(() => applyChanges(qc, changes)),
       onRefetch: () => refetchAll(qc),
       // The session ended (signed out elsewhere, deactivated, roles changed): ask who is signed in.
       onSessionEnded: () => void qc.invalidateQueries({ queryKey: queryKeys.session }),

@@ -22,6 +22,7 @@ import { useQueueScroll } from '@client/features/queue/hooks/use-queue-scroll';
 import { distinguishingReasons } from '@client/features/queue/lib/distinguishing-reason';
 import { collapseEventGroups, type GroupedRow } from '@client/features/queue/lib/event-groups';
 import { queryKeys } from '@client/lib/query-keys';
+import { holdWhileOpening, whenOpened } from '@client/lib/screen-opening';
 import { useNow } from './age';
 import { queueColumns } from './queue-columns';
 import { QueueFilterBar } from './queue-filter-bar';
@@ -119,11 +120,15 @@ export function QueueScreen() {
   const claim = useCallback(
     (r: QueueRow) => {
       const opensAtOnce = r.state === 'new' || r.state === 'returned';
-      if (opensAtOnce) openItem(r);
+      if (opensAtOnce) {
+        // The answer (and its live echo) wait until the review has drawn (lib/screen-opening.ts).
+        holdWhileOpening();
+        openItem(r);
+      }
       postItemAction({ action: 'claim', id: r.id, version: r.version }).then(
         (row) => {
           if (!opensAtOnce) openItem(r);
-          applyRow(qc, row, true);
+          whenOpened(() => applyRow(qc, row, true), true);
         },
         (err: unknown) => {
           // Back to the queue, in place of the review, unless the analyst has already moved on.

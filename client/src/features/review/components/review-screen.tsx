@@ -24,6 +24,7 @@ import { useReviewDraft } from '@client/features/review/hooks/use-review-draft';
 import { useReviewKeys } from '@client/features/review/hooks/use-review-keys';
 import { useTraceView } from '@client/features/review/hooks/use-trace-view';
 import { useAfterFirstPaint } from '@client/lib/use-after-first-paint';
+import { screenOpened } from '@client/lib/screen-opening';
 import { cycle, distanceFromSMinusP, sMinusP, stepGain, traceViews, type DisplayFilter, type TraceView } from '@client/features/review/lib/display-settings';
 import { unsavedWork } from '@client/features/review/lib/review-draft';
 import { FilterBar, filterLowFieldId } from './filter-bar';
@@ -93,6 +94,11 @@ export function ReviewScreen({ itemId }: { itemId: number }) {
   usePrefetchQueueItem(neighbour(1)?.id, 400);
   // The spectrum (a plot beside the traces, below the label form) waits for the traces' first paint.
   const afterFirstPaint = useAfterFirstPaint();
+  // Drawn (the item and its traces, or why not): changes held while this screen opened may land.
+  const drawn = item.isError || (detail !== undefined && (traces.data !== undefined || traces.isError));
+  useEffect(() => {
+    if (drawn) screenOpened();
+  }, [drawn]);
   const leadTraces = traces.data?.channels.find((c) => c.streamId.endsWith('Z')) ?? traces.data?.channels[0];
   const orderedTraces = useMemo(() => sortChannels(traces.data?.channels ?? [], (c) => c.streamId), [traces.data?.channels]);
   const sgTraces = orderedTraces.length > 0 ? orderedTraces[sgIndex % orderedTraces.length] : undefined;
