@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { lazySchema } from './lazy-schema';
 
 /**
  * The three triage flags a scored window can carry, exactly as the engine writes them and the
@@ -10,4 +11,4 @@ export const flags = ['likely event', 'needs eyes', 'likely noise'] as const;
 export type Flag = (typeof flags)[number];
 
 /** zod schema for a triage flag. */
-export const flagSchema = z.enum(flags);
+export const flagSchema = lazySchema(() => z.enum(flags));

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { lazySchema } from './lazy-schema';
 
 /**
  * The life of a queue item, in names of our own (issue 6 / issue 7), shared by server and client:
@@ -12,7 +13,7 @@ export const itemStates = ['new', 'in review', 'labelled', 'dismissed', 'escalat
 export type ItemState = (typeof itemStates)[number];
 
 /** zod schema of an item state. */
-export const itemStateSchema = z.enum(itemStates);
+export const itemStateSchema = lazySchema(() => z.enum(itemStates));
 
 /** States in which an item waits for an analyst (they may claim it). */
 export const claimableStates: readonly ItemState[] = ['new', 'returned'];

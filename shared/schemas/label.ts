@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { lazySchema } from './lazy-schema';
 
 /**
  * The analyst's label of a queue item. Event types are the QuakeML 1.2 EventType enumeration
@@ -81,24 +82,30 @@ export const pickOnsets = ['impulsive', 'emergent', 'questionable'] as const;
 export const pickPolarities = ['positive', 'negative', 'undecidable'] as const;
 
 /** ISO 8601 UTC with up to microseconds: `2026-03-14T09:26:53.589123Z`. */
-export const isoMicrosSchema = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}(\.\d{1,6})?Z$/, 'must be ISO 8601 UTC, e.g. 2026-03-14T09:26:53.589123Z')
-  .refine((s) => !Number.isNaN(Date.parse(s)), 'is not a real date and time');
+export const isoMicrosSchema = lazySchema(() =>
+  z
+    .string()
+    .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}(\.\d{1,6})?Z$/, 'must be ISO 8601 UTC, e.g. 2026-03-14T09:26:53.589123Z')
+    .refine((s) => !Number.isNaN(Date.parse(s)), 'is not a real date and time'),
+);
 
 /** An FDSN stream id NET.STA.LOC.CHA (location may be empty). */
-export const streamIdSchema = z
-  .string()
-  .regex(/^[A-Z0-9]{1,2}\.[A-Z0-9]{1,5}\.[A-Z0-9-]{0,2}\.[A-Z0-9]{3}$/, 'must be an FDSN stream id NET.STA.LOC.CHA, e.g. XX.KV03.00.HHZ');
+export const streamIdSchema = lazySchema(() =>
+  z
+    .string()
+    .regex(/^[A-Z0-9]{1,2}\.[A-Z0-9]{1,5}\.[A-Z0-9-]{0,2}\.[A-Z0-9]{3}$/, 'must be an FDSN stream id NET.STA.LOC.CHA, e.g. XX.KV03.00.HHZ'),
+);
 
 /** One phase pick. */
-export const pickSchema = z.object({
-  phase: z.enum(pickPhases),
-  time: isoMicrosSchema,
-  onset: z.enum(pickOnsets).default('questionable'),
-  polarity: z.enum(pickPolarities).default('undecidable'),
-  streamId: streamIdSchema,
-});
+export const pickSchema = lazySchema(() =>
+  z.object({
+    phase: z.enum(pickPhases),
+    time: isoMicrosSchema,
+    onset: z.enum(pickOnsets).default('questionable'),
+    polarity: z.enum(pickPolarities).default('undecidable'),
+    streamId: streamIdSchema,
+  }),
+);
 
 /** A phase pick. */
 export type Pick = z.infer<typeof pickSchema>;
@@ -110,17 +117,19 @@ export const MAX_PICKS = 12;
 export const MAX_NOTE_CHARS = 2000;
 
 /** The label of an item found to be a real source. */
-export const eventLabelSchema = z.object({
-  eventType: z.enum(quakemlEventTypes),
-  certainty: z.enum(typeCertainties).default('suspected'),
-  distanceClass: z.enum(distanceClasses).nullable().default(null),
-  picks: z
-    .array(pickSchema)
-    .max(MAX_PICKS, `at most ${MAX_PICKS} picks`)
-    .default([])
-    .refine((ps) => new Set(ps.map((p) => `${p.phase}|${p.streamId}`)).size === ps.length, 'one P and one S pick per stream at most'),
-  note: z.string().trim().max(MAX_NOTE_CHARS, `a note may be at most ${MAX_NOTE_CHARS} characters`).default(''),
-});
+export const eventLabelSchema = lazySchema(() =>
+  z.object({
+    eventType: z.enum(quakemlEventTypes),
+    certainty: z.enum(typeCertainties).default('suspected'),
+    distanceClass: z.enum(distanceClasses).nullable().default(null),
+    picks: z
+      .array(pickSchema)
+      .max(MAX_PICKS, `at most ${MAX_PICKS} picks`)
+      .default([])
+      .refine((ps) => new Set(ps.map((p) => `${p.phase}|${p.streamId}`)).size === ps.length, 'one P and one S pick per stream at most'),
+    note: z.string().trim().max(MAX_NOTE_CHARS, `a note may be at most ${MAX_NOTE_CHARS} characters`).default(''),
+  }),
+);
 
 /** A parsed event label. */
 export type EventLabel = z.infer<typeof eventLabelSchema>;
@@ -128,18 +137,22 @@ export type EventLabel = z.infer<typeof eventLabelSchema>;
 export type EventLabelInput = z.input<typeof eventLabelSchema>;
 
 /** What an analyst sends when dismissing an item as noise. */
-export const dismissalSchema = z.object({
-  noiseReason: z.enum(noiseReasons).default('unknown noise'),
-  note: z.string().trim().max(MAX_NOTE_CHARS, `a note may be at most ${MAX_NOTE_CHARS} characters`).default(''),
-});
+export const dismissalSchema = lazySchema(() =>
+  z.object({
+    noiseReason: z.enum(noiseReasons).default('unknown noise'),
+    note: z.string().trim().max(MAX_NOTE_CHARS, `a note may be at most ${MAX_NOTE_CHARS} characters`).default(''),
+  }),
+);
 
 /** A parsed dismissal. */
 export type Dismissal = z.infer<typeof dismissalSchema>;
 
 /** What an analyst sends when escalating an item: the reason is required. */
-export const escalationSchema = z.object({
-  reason: z.string().trim().min(3, 'say why you escalate (at least 3 characters)').max(MAX_NOTE_CHARS),
-});
+export const escalationSchema = lazySchema(() =>
+  z.object({
+    reason: z.string().trim().min(3, 'say why you escalate (at least 3 characters)').max(MAX_NOTE_CHARS),
+  }),
+);
 
 /** A parsed escalation. */
 export type Escalation = z.infer<typeof escalationSchema>;
@@ -147,11 +160,13 @@ export type Escalation = z.infer<typeof escalationSchema>;
 /**
  * The label JSON stored on an item: an event label, a dismissal, or an escalation, tagged by `kind`.
  */
-export const storedLabelSchema = z.discriminatedUnion('kind', [
-  eventLabelSchema.extend({ kind: z.literal('event') }),
-  dismissalSchema.extend({ kind: z.literal('noise') }),
-  escalationSchema.extend({ kind: z.literal('escalation') }),
-]);
+export const storedLabelSchema = lazySchema(() =>
+  z.discriminatedUnion('kind', [
+    eventLabelSchema.extend({ kind: z.literal('event') }),
+    dismissalSchema.extend({ kind: z.literal('noise') }),
+    escalationSchema.extend({ kind: z.literal('escalation') }),
+  ]),
+);
 
 /** A stored label. */
 export type StoredLabel = z.infer<typeof storedLabelSchema>;

@@ -13,6 +13,8 @@
  *   traces (all 30 channels loaded), and A until the 30 rows are drawn;
  * - relocation round trip: a pick moved with the keyboard (P at the mouse) until the screen shows the
  *   new origin, its predictions redrawn; and the relocate key (L) the same way.
+ * Claim and J are also timed on the page's own clock (the key event's time stamp to two frames after
+ * the traces appear), which leaves out the harness's round trips to the browser.
  * Beside them: the machine's load average (os.loadavg) before each block, and a reference measured
  * in the same run (a trivial page set and painted; a static file of the server opened from
  * about:blank, the browser's own share of every page-load figure; a fixed piece of JavaScript in the
@@ -58,6 +60,30 @@ function report(what: string, ms: number[], target: number | null, loadBefore: s
 
 /** Two animation frames: what was committed to the page has been painted. */
 const painted = (page: Page): Promise<unknown> => page.evaluate('new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)))');
+
+/**
+ * Arms the page's own clock for the next press of `key`: from the key event's time stamp until two
+ * animation frames after `selector` first matches (as `painted`), without the harness's round trips
+ * to the browser (pressing the key, waiting for the selector, asking for the frames). Read it with
+ * `inPageMs` once the harness has seen the same thing.
+ */
+const armInPage = (page: Page, key: string, selector: string): Promise<unknown> =>
+  page.evaluate(`(() => {
+    window.__benchInPage = new Promise((resolve) => {
+      let t0 = null;
+      const onKey = (e) => { if (e.key === ${JSON.stringify(key)} && t0 === null) { t0 = e.timeStamp; removeEventListener('keydown', onKey, true); check(); } };
+      const check = () => {
+        if (t0 === null || !document.querySelector(${JSON.stringify(selector)})) return;
+        observer.disconnect();
+        requestAnimationFrame(() => requestAnimationFrame(() => resolve(performance.now() - t0)));
+      };
+      const observer = new MutationObserver(check);
+      observer.observe(document, { subtree: true, childList: true, attributes: true });
+      addEventListener('keydown', onKey, true);
+    });
+  })()`);
+/** What the page's own clock measured since `armInPage`, ms. */
+const inPageMs = (page: Page): Promise<number> => page.evaluate<number>('window.__benchInPage');
 
 /** The trivial-page reference: a tiny document set and painted, ms. */
 async function referencePage(page: Page): Promise<number> {
@@ -211,6 +237,8 @@ try {
     before = load();
     const claimMs: number[] = [];
     const nextMs: number[] = [];
+    const claimInPage: number[] = [];
+    const nextInPage: number[] = [];
     for (let i = 0; i < REPS; i++) {
       await page.goto(`${url}/queue?state=new`);
       await page.waitForSelector('tr[data-role="item"][data-state="new"]', { timeout: 60_000 });
@@ -218,22 +246,30 @@ try {
       await page.click(`tr[data-item-id="${id}"] td:nth-child(2)`);
       // The analyst reads the selected row for a second before claiming (the queue prefetches it).
       await page.waitForTimeout(1000);
+      await armInPage(page, 'c', `[data-item-id="${id}"] [data-testid="trace-panel"] .uplot`);
       t = performance.now();
       await page.keyboard.press('c');
       await page.waitForURL(new RegExp(`/queue/items/${id}(\\?|$)`), { timeout: 60_000 });
       await reviewDrawn(id);
       claimMs.push(performance.now() - t);
+      claimInPage.push(await inPageMs(page));
       // Give the prefetch of the next item its moment, as an analyst reading the screen would.
       await page.waitForTimeout(1500);
+      await armInPage(page, 'j', `[data-item-id]:not([data-item-id="${id}"]) [data-testid="trace-panel"] .uplot`);
       t = performance.now();
       await page.keyboard.press('j');
       await page.waitForURL((u) => /\/queue\/items\/(\d+)/.test(u.pathname) && !u.pathname.endsWith(`/${id}`), { timeout: 60_000 });
       const next = Number(/\/queue\/items\/(\d+)/.exec(page.url())?.[1]);
       await reviewDrawn(next);
       nextMs.push(performance.now() - t);
+      nextInPage.push(await inPageMs(page));
     }
     report('claim to review drawn (C, row read 1 s)', claimMs, 400, before);
     report('key to the next item drawn (J, prefetched)', nextMs, 250, before);
+    // The same two, on the page's own clock (the harness's round trips left out): what the analyst
+    // waits for. The targets above are judged on the harness's figures, which include them.
+    report('   claim, on the page’s own clock', claimInPage, null, before);
+    report('   J, on the page’s own clock', nextInPage, null, before);
     printRequests();
 
     // Event screen.
