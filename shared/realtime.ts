@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { lazySchema } from './schemas/lazy-schema';
 import { actionSchema } from './auth/policies';
 
 /**
@@ -18,49 +19,57 @@ export const wsRightsChanged = 4403;
  * several stations (a candidate event) — each listed item's station, so a viewer limited to some
  * stations receives only their items. See `canSee` in shared/auth/policies.ts.
  */
-export const changeAudienceSchema = z.object({
-  action: actionSchema,
-  stationIds: z.array(z.number().int()).optional(),
-  userId: z.string().optional(),
-  /** `[itemId, stationId]` pairs of the items the summary lists in `itemIds`. */
-  itemStations: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
-});
+export const changeAudienceSchema = lazySchema(() =>
+  z.object({
+    action: actionSchema,
+    stationIds: z.array(z.number().int()).optional(),
+    userId: z.string().optional(),
+    /** `[itemId, stationId]` pairs of the items the summary lists in `itemIds`. */
+    itemStations: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
+  }),
+);
 
 /** Who may see a change. */
 export type ChangeAudience = z.infer<typeof changeAudienceSchema>;
 
 /** One change as the live channel sends it: a hint (id, version) plus a small summary, never full state. */
-export const changeMessageSchema = z.object({
-  seq: z.number().int().nonnegative(),
-  resource: z.string(),
-  id: z.number().int(),
-  kind: z.enum(['created', 'updated', 'deleted']),
-  version: z.number().int(),
-  summary: z.record(z.string(), z.unknown()).nullable(),
-  at: z.string(),
-});
+export const changeMessageSchema = lazySchema(() =>
+  z.object({
+    seq: z.number().int().nonnegative(),
+    resource: z.string(),
+    id: z.number().int(),
+    kind: z.enum(['created', 'updated', 'deleted']),
+    version: z.number().int(),
+    summary: z.record(z.string(), z.unknown()).nullable(),
+    at: z.string(),
+  }),
+);
 
 /** A change hint. */
 export type ChangeMessage = z.infer<typeof changeMessageSchema>;
 
 /** Messages from the server. */
-export const serverMessageSchema = z.discriminatedUnion('type', [
-  /** First message: the latest sequence number now. */
-  z.object({ type: z.literal('hello'), seq: z.number().int().nonnegative() }),
-  /** Changes in sequence order, each sent once. */
-  z.object({ type: z.literal('changes'), changes: z.array(changeMessageSchema) }),
-  /** The client's resume point is older than what the change log keeps: refetch everything. */
-  z.object({ type: z.literal('refetch'), seq: z.number().int().nonnegative(), reason: z.string() }),
-]);
+export const serverMessageSchema = lazySchema(() =>
+  z.discriminatedUnion('type', [
+    /** First message: the latest sequence number now. */
+    z.object({ type: z.literal('hello'), seq: z.number().int().nonnegative() }),
+    /** Changes in sequence order, each sent once. */
+    z.object({ type: z.literal('changes'), changes: z.array(changeMessageSchema) }),
+    /** The client's resume point is older than what the change log keeps: refetch everything. */
+    z.object({ type: z.literal('refetch'), seq: z.number().int().nonnegative(), reason: z.string() }),
+  ]),
+);
 
 /** A message from the server. */
 export type ServerMessage = z.infer<typeof serverMessageSchema>;
 
 /** Messages from the client. */
-export const clientMessageSchema = z.discriminatedUnion('type', [
-  /** Send everything after `since` (the last seq this client saw), then live changes. */
-  z.object({ type: z.literal('resume'), since: z.number().int().nonnegative() }),
-]);
+export const clientMessageSchema = lazySchema(() =>
+  z.discriminatedUnion('type', [
+    /** Send everything after `since` (the last seq this client saw), then live changes. */
+    z.object({ type: z.literal('resume'), since: z.number().int().nonnegative() }),
+  ]),
+);
 
 /** A message from the client. */
 export type ClientMessage = z.infer<typeof clientMessageSchema>;

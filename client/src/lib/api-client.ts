@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { apiErrorBodySchema } from '@shared/api-error';
 import { apiGetHeaders, takeEarlyResponse } from './early-requests';
 
@@ -19,7 +20,7 @@ export class ApiError extends Error {
   }
 }
 
-const issuesSchema = z.object({ issues: z.array(z.object({ path: z.string(), message: z.string() })) });
+const issuesSchema = lazySchema(() => z.object({ issues: z.array(z.object({ path: z.string(), message: z.string() })) }));
 
 type UnauthenticatedHandler = (path: string) => void;
 
@@ -94,4 +95,4 @@ export async function apiRequest<S extends z.ZodType>(schema: S, path: string, r
 }
 
 /** Schema for answers without a body (204) or whose body is not used. */
-export const noContent = z.unknown();
+export const noContent = lazySchema(() => z.unknown());

@@ -1,5 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { candidateEventSchema as sharedCandidateEventSchema, candidateMemberSchema as sharedCandidateMemberSchema, groupLabelResultSchema as sharedGroupLabelResultSchema, type groupLabelBodySchema } from '@shared/schemas/supervisor';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
@@ -49,17 +50,19 @@ export function useLabelGroup() {
 }
 
 /** The supervisor's review note of an item (GET /api/supervisor/items/:id/review-note, policy queue.view). */
-export const reviewNoteSchema = z.object({
-  note: z
-    .object({
-      evaluationStatus: z.string().nullable(),
-      comment: z.string().nullable(),
-      returnComment: z.string().nullable(),
-      returnedBy: z.string().nullable(),
-      returnedAt: z.string().nullable(),
-    })
-    .nullable(),
-});
+export const reviewNoteSchema = lazySchema(() =>
+  z.object({
+    note: z
+      .object({
+        evaluationStatus: z.string().nullable(),
+        comment: z.string().nullable(),
+        returnComment: z.string().nullable(),
+        returnedBy: z.string().nullable(),
+        returnedAt: z.string().nullable(),
+      })
+      .nullable(),
+  }),
+);
 
 /** An item's review note (null when no supervisor has reviewed or returned it). */
 export function useReviewNote(itemId: number, enabled: boolean) {

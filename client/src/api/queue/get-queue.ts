@@ -1,5 +1,6 @@
 import { infiniteQueryOptions, queryOptions, useInfiniteQuery, useQuery, type InfiniteData } from '@tanstack/react-query';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { queuePageSchema, type QueuePage } from '@shared/schemas/queue';
 import { apiUrls, QUEUE_PAGE_SIZE, type QueueFilters } from '@client/api/urls';
 import { apiRequest } from '@client/lib/api-client';
@@ -31,7 +32,7 @@ export function useQueueList(f: QueueFilters) {
 /** Cached data of the queue list. */
 export type QueueListData = InfiniteData<QueuePage, string | undefined>;
 
-const meSchema = z.object({ user: z.object({ id: z.string(), displayName: z.string(), roles: z.array(z.string()) }) });
+const meSchema = lazySchema(() => z.object({ user: z.object({ id: z.string(), displayName: z.string(), roles: z.array(z.string()) }) }));
 
 /** Who is signed in (GET /api/auth/me): the queue needs the id to know whose claim an item is. */
 export function meOptions() {

@@ -1,5 +1,6 @@
 import type { QueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import type { ChangeMessage } from '@shared/realtime';
 import { compareQueueRows, queueRowMatches, queueRowSchema, type QueueRow } from '@shared/schemas/queue';
 import type { QueueFilters } from '@client/api/urls';
@@ -125,7 +126,7 @@ export function patchRow(qc: QueryClient, row: QueueRow, kind: ChangeMessage['ki
 }
 
 /** Summary of a candidate_event change (server/features/events/candidate-events.ts regroupAround). */
-const groupSummarySchema = z.object({ itemIds: z.array(z.number().int()), stationCount: z.number().int() });
+const groupSummarySchema = lazySchema(() => z.object({ itemIds: z.array(z.number().int()), stationCount: z.number().int() }));
 
 /**
  * Marks the members of candidate event `eventId` in every cached list (their rows' versions do not

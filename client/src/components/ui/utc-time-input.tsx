@@ -1,5 +1,6 @@
 import { useEffect, useId, useState } from 'react';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { cx } from '@client/lib/cx';
 import { Input } from './input';
 
@@ -19,34 +20,36 @@ const utcTimePattern = /^(\d{4})-(\d{2})-(\d{2})(?:(?:T| +)(\d{2}):(\d{2})(?::(\
  * time. Leading/trailing spaces are ignored, and a lower-case `t`/`z` is taken as upper case.
  * Offsets (`+01:00`) are refused rather than converted, and the day must exist (2026-02-30 is refused).
  */
-export const utcTimeTextSchema = z
-  .string()
-  .transform((s) => s.trim().toUpperCase())
-  .superRefine((s, ctx) => {
-    if (s === '') {
-      ctx.addIssue({ code: 'custom', message: `Enter a UTC time, e.g. ${utcTimePlaceholder}` });
-      return;
-    }
-    const m = utcTimePattern.exec(s);
-    if (!m) {
-      ctx.addIssue({ code: 'custom', message: `Not a UTC time: use ${utcTimePlaceholder} (or a day, ${utcTimePlaceholder.slice(0, 10)})` });
-      return;
-    }
-    const [y, mo, d, h = '0', mi = '0', sec = '0'] = m.slice(1);
-    if (Number(h) > 23 || Number(mi) > 59 || Number(sec) > 59) {
-      ctx.addIssue({ code: 'custom', message: `${s.slice(10).replace(/^[T ]+/, '').replace(/Z$/, '')} is not a time of day (00:00 to 23:59:59)` });
-      return;
-    }
-    const back = new Date(Date.UTC(Number(y), Number(mo) - 1, Number(d)));
-    if (back.getUTCFullYear() !== Number(y) || back.getUTCMonth() !== Number(mo) - 1 || back.getUTCDate() !== Number(d)) {
-      ctx.addIssue({ code: 'custom', message: `${y}-${mo}-${d} is not a day of the calendar` });
-    }
-  })
-  .transform((s) => {
-    const [y, mo, d, h = '0', mi = '0', sec = '0', frac = ''] = (utcTimePattern.exec(s) ?? []).slice(1);
-    // Built from the fields with Date.UTC, so no string is ever handed to the local-time parser.
-    return new Date(Date.UTC(Number(y), Number(mo) - 1, Number(d), Number(h), Number(mi), Number(sec), Number(frac.padEnd(3, '0')))).toISOString();
-  });
+export const utcTimeTextSchema = lazySchema(() =>
+  z
+    .string()
+    .transform((s) => s.trim().toUpperCase())
+    .superRefine((s, ctx) => {
+      if (s === '') {
+        ctx.addIssue({ code: 'custom', message: `Enter a UTC time, e.g. ${utcTimePlaceholder}` });
+        return;
+      }
+      const m = utcTimePattern.exec(s);
+      if (!m) {
+        ctx.addIssue({ code: 'custom', message: `Not a UTC time: use ${utcTimePlaceholder} (or a day, ${utcTimePlaceholder.slice(0, 10)})` });
+        return;
+      }
+      const [y, mo, d, h = '0', mi = '0', sec = '0'] = m.slice(1);
+      if (Number(h) > 23 || Number(mi) > 59 || Number(sec) > 59) {
+        ctx.addIssue({ code: 'custom', message: `${s.slice(10).replace(/^[T ]+/, '').replace(/Z$/, '')} is not a time of day (00:00 to 23:59:59)` });
+        return;
+      }
+      const back = new Date(Date.UTC(Number(y), Number(mo) - 1, Number(d)));
+      if (back.getUTCFullYear() !== Number(y) || back.getUTCMonth() !== Number(mo) - 1 || back.getUTCDate() !== Number(d)) {
+        ctx.addIssue({ code: 'custom', message: `${y}-${mo}-${d} is not a day of the calendar` });
+      }
+    })
+    .transform((s) => {
+      const [y, mo, d, h = '0', mi = '0', sec = '0', frac = ''] = (utcTimePattern.exec(s) ?? []).slice(1);
+      // Built from the fields with Date.UTC, so no string is ever handed to the local-time parser.
+      return new Date(Date.UTC(Number(y), Number(mo) - 1, Number(d), Number(h), Number(mi), Number(sec), Number(frac.padEnd(3, '0')))).toISOString();
+    }),
+);
 
 /**
  * Parses typed text as a UTC time.

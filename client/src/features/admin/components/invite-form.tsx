@@ -1,6 +1,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { roleLabels, roles, roleSchema } from '@shared/auth/roles';
 import { displayNameSchema, emailSchema, type StationOption } from '@shared/auth/schemas';
 import { Button } from '@client/components/ui/button';
@@ -12,12 +13,14 @@ import { ApiError } from '@client/lib/api-client';
 import { useInvite } from '@client/features/admin/api/admin';
 
 /** The invite form's fields (checkbox groups give strings; station ids become numbers on submit). */
-export const inviteFormSchema = z.object({
-  email: emailSchema,
-  displayName: displayNameSchema,
-  roles: z.array(roleSchema, { error: 'choose at least one role' }).min(1, 'choose at least one role'),
-  stationIds: z.array(z.string()),
-});
+export const inviteFormSchema = lazySchema(() =>
+  z.object({
+    email: emailSchema,
+    displayName: displayNameSchema,
+    roles: z.array(roleSchema, { error: 'choose at least one role' }).min(1, 'choose at least one role'),
+    stationIds: z.array(z.string()),
+  }),
+);
 type InviteValues = z.input<typeof inviteFormSchema>;
 
 /** Invite a person by e-mail with roles (and stations when operator); the link works 72 h, once. */

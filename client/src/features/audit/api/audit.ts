@@ -1,5 +1,6 @@
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { auditRowSchema } from '@shared/auth/schemas';
 import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
@@ -11,7 +12,7 @@ export type AuditFilters = { action: string; actor: string; targetType: string; 
 /** Rows per audit page. */
 export const auditPageSize = 50;
 
-const pageSchema = z.object({ rows: z.array(auditRowSchema), total: z.number(), limit: z.number(), offset: z.number() });
+const pageSchema = lazySchema(() => z.object({ rows: z.array(auditRowSchema), total: z.number(), limit: z.number(), offset: z.number() }));
 
 /** GET /api/audit with filters and an offset; the previous page stays shown while the next loads. */
 export function useAuditPage(filters: AuditFilters, offset: number) {

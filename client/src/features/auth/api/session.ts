@@ -1,5 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { roleSchema } from '@shared/auth/roles';
 import { meSchema, type Me } from '@shared/auth/schemas';
 import { apiUrls } from '@client/api/urls';
@@ -56,7 +57,7 @@ export function useSignOut() {
   });
 }
 
-const messageSchema = z.object({ message: z.string() });
+const messageSchema = lazySchema(() => z.object({ message: z.string() }));
 
 /** POST /api/auth/forgot-password: always the same answer whether the account exists or not. */
 export function useForgotPassword() {
@@ -64,9 +65,9 @@ export function useForgotPassword() {
 }
 
 /** What a reset link is for. */
-export const resetCheckSchema = z.object({ email: z.string(), expiresAt: z.string() });
+export const resetCheckSchema = lazySchema(() => z.object({ email: z.string(), expiresAt: z.string() }));
 /** What an invitation link offers. */
-export const invitationCheckSchema = z.object({ email: z.string(), displayName: z.string(), roles: z.array(roleSchema), expiresAt: z.string() });
+export const invitationCheckSchema = lazySchema(() => z.object({ email: z.string(), displayName: z.string(), roles: z.array(roleSchema), expiresAt: z.string() }));
 
 /** POST /api/auth/reset-password/check or /api/auth/invitations/check for a fragment token. */
 export function useTokenCheck<S extends z.ZodType>(kind: 'reset' | 'invitation', schema: S, token: string | null) {

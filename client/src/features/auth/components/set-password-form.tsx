@@ -1,6 +1,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { passwordMinLength, newPasswordSchema } from '@shared/auth/schemas';
 import { Button } from '@client/components/ui/button';
 import { FormField } from '@client/components/ui/form-field';
@@ -10,9 +11,11 @@ import { useSetPassword } from '@client/features/auth/api/session';
 import { FormMessage } from './auth-layout';
 
 /** The new-password pair, checked the way the server checks it (12+ characters) plus a repeat. */
-export const setPasswordFormSchema = z
-  .object({ password: newPasswordSchema, repeat: z.string() })
-  .refine((v) => v.password === v.repeat, { path: ['repeat'], message: 'the two passwords differ' });
+export const setPasswordFormSchema = lazySchema(() =>
+  z
+    .object({ password: newPasswordSchema, repeat: z.string() })
+    .refine((v) => v.password === v.repeat, { path: ['repeat'], message: 'the two passwords differ' }),
+);
 type SetPasswordValues = z.input<typeof setPasswordFormSchema>;
 
 /** Props of <SetPasswordForm>. */

@@ -2,6 +2,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { Link } from 'react-router';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { authPagePaths } from '@shared/auth/links';
 import { emailSchema } from '@shared/auth/schemas';
 import { Button } from '@client/components/ui/button';
@@ -11,7 +12,7 @@ import { ApiError } from '@client/lib/api-client';
 import { useSignIn } from '@client/features/auth/api/session';
 import { FormMessage } from './auth-layout';
 
-const signInFormSchema = z.object({ email: emailSchema, password: z.string().min(1, 'enter your password') });
+const signInFormSchema = lazySchema(() => z.object({ email: emailSchema, password: z.string().min(1, 'enter your password') }));
 type SignInValues = z.input<typeof signInFormSchema>;
 
 /** Where to go after signing in: a local path from `?next=`, else home. Never another site. */

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { distanceClasses, MAX_NOTE_CHARS, MAX_PICKS, noiseReasons, pickSchema, quakemlEventTypes, typeCertainties } from '@shared/schemas/label';
 
 /**
@@ -8,18 +9,20 @@ import { distanceClasses, MAX_NOTE_CHARS, MAX_PICKS, noiseReasons, pickSchema, q
  * opens the item again on this browser and is removed once the item is labelled, dismissed or
  * escalated, or the draft is discarded.
  */
-export const reviewDraftSchema = z.object({
-  savedAt: z.string(),
-  values: z.object({
-    /** '' = no type chosen yet (the form's safe default). */
-    eventType: z.union([z.enum(quakemlEventTypes), z.literal('')]),
-    certainty: z.enum(typeCertainties),
-    distanceClass: z.enum(distanceClasses).nullable(),
-    picks: z.array(pickSchema).max(MAX_PICKS),
-    note: z.string().max(MAX_NOTE_CHARS),
-    noiseReason: z.enum(noiseReasons),
+export const reviewDraftSchema = lazySchema(() =>
+  z.object({
+    savedAt: z.string(),
+    values: z.object({
+      /** '' = no type chosen yet (the form's safe default). */
+      eventType: z.union([z.enum(quakemlEventTypes), z.literal('')]),
+      certainty: z.enum(typeCertainties),
+      distanceClass: z.enum(distanceClasses).nullable(),
+      picks: z.array(pickSchema).max(MAX_PICKS),
+      note: z.string().max(MAX_NOTE_CHARS),
+      noiseReason: z.enum(noiseReasons),
+    }),
   }),
-});
+);
 
 /** A stored draft. */
 export type ReviewDraft = z.infer<typeof reviewDraftSchema>;

@@ -1,5 +1,6 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { roleSchema } from '@shared/auth/roles';
 import { flagSchema } from '@shared/schemas/flags';
 import { itemStateSchema } from '@shared/schemas/item-states';
@@ -16,7 +17,7 @@ import { apiRequest } from '@client/lib/api-client';
 import { queryKeys } from '@client/lib/query-keys';
 
 /** A station with its profile parsed. */
-export const stationDetailClientSchema = stationDetailSchema.extend({ profile: processingProfileSchema });
+export const stationDetailClientSchema = lazySchema(() => stationDetailSchema.extend({ profile: processingProfileSchema }));
 
 /** GET /api/stations. */
 export const stationsQuery = () =>
@@ -30,27 +31,29 @@ export const stationQuery = (id: number) =>
   });
 
 /** The health answer (server/features/stations/station-health.ts StationHealth). */
-export const stationHealthSchema = z.object({
-  psd: z.array(
-    z.object({
-      streamId: z.string(),
-      windowId: z.number(),
-      windowStart: z.string(),
-      freqs: z.array(z.number()),
-      db: z.array(z.number().nullable()),
-      physical: z.boolean(),
-      units: z.string(),
-      nlnm: z.array(z.number().nullable()),
-      nhnm: z.array(z.number().nullable()),
-    }),
-  ),
-  noiseModels: z.object({ freqs: z.array(z.number()), nlnm: z.array(z.number().nullable()), nhnm: z.array(z.number().nullable()) }),
-  trend: z.array(z.object({ windowStart: z.string(), db: z.number().nullable(), units: z.string().nullable(), flag: z.string(), channel: z.string() })),
-  qc: z.array(z.object({ windowId: z.number(), windowStart: z.string(), streamId: z.string(), code: z.string(), severity: z.string(), message: z.string() })),
-  baseline: baselineViewSchema,
-  items: z.array(z.object({ id: z.number(), state: itemStateSchema, flag: flagSchema, score: z.number(), windowStart: z.string() })),
-  days: z.number(),
-});
+export const stationHealthSchema = lazySchema(() =>
+  z.object({
+    psd: z.array(
+      z.object({
+        streamId: z.string(),
+        windowId: z.number(),
+        windowStart: z.string(),
+        freqs: z.array(z.number()),
+        db: z.array(z.number().nullable()),
+        physical: z.boolean(),
+        units: z.string(),
+        nlnm: z.array(z.number().nullable()),
+        nhnm: z.array(z.number().nullable()),
+      }),
+    ),
+    noiseModels: z.object({ freqs: z.array(z.number()), nlnm: z.array(z.number().nullable()), nhnm: z.array(z.number().nullable()) }),
+    trend: z.array(z.object({ windowStart: z.string(), db: z.number().nullable(), units: z.string().nullable(), flag: z.string(), channel: z.string() })),
+    qc: z.array(z.object({ windowId: z.number(), windowStart: z.string(), streamId: z.string(), code: z.string(), severity: z.string(), message: z.string() })),
+    baseline: baselineViewSchema,
+    items: z.array(z.object({ id: z.number(), state: itemStateSchema, flag: flagSchema, score: z.number(), windowStart: z.string() })),
+    days: z.number(),
+  }),
+);
 
 /** The health of a station. */
 export type StationHealthView = z.infer<typeof stationHealthSchema>;
@@ -109,7 +112,7 @@ export function useRevokeToken(id: number) {
 }
 
 /** The signed-in user's roles and stations (GET /api/auth/me), for hiding controls with the shared policy. */
-export const meSchema = z.object({ user: z.object({ roles: z.array(roleSchema), stationIds: z.array(z.number()) }) });
+export const meSchema = lazySchema(() => z.object({ user: z.object({ roles: z.array(roleSchema), stationIds: z.array(z.number()) }) }));
 
 /** Hook: who is signed in (roles and assigned stations); only used to hide controls, the server decides. */
 export const useMe = () => useQuery({ queryKey: queryKeys.stations.me, queryFn: () => apiRequest(meSchema, '/api/auth/me'), staleTime: 60_000, retry: false });

@@ -1,5 +1,6 @@
 import { queryOptions } from '@tanstack/react-query';
 import { z } from 'zod';
+import { lazySchema } from '@shared/schemas/lazy-schema';
 import { latestWindowsSchema } from '@shared/schemas/data-period';
 import { evaluationSchema, inboxEntryViewSchema, inboxViewSchema, reviewRowSchema, type confirmLabelSchema, type ThresholdValues } from '@shared/schemas/supervisor';
 import { apiRequest } from '@client/lib/api-client';
@@ -71,14 +72,16 @@ export function returnItem(itemId: number, version: number, comment: string) {
 
 // Candidate events.
 
-const candidateSchema = z.object({
-  id: z.number(),
-  anchorItemId: z.number(),
-  firstArrival: z.string(),
-  lastArrival: z.string(),
-  stationCount: z.number(),
-  members: z.array(z.object({ itemId: z.number(), station: z.string(), stationId: z.number(), arrival: z.string(), state: z.string(), flag: z.string(), score: z.number(), labelType: z.string().nullable(), version: z.number() })),
-});
+const candidateSchema = lazySchema(() =>
+  z.object({
+    id: z.number(),
+    anchorItemId: z.number(),
+    firstArrival: z.string(),
+    lastArrival: z.string(),
+    stationCount: z.number(),
+    members: z.array(z.object({ itemId: z.number(), station: z.string(), stationId: z.number(), arrival: z.string(), state: z.string(), flag: z.string(), score: z.number(), labelType: z.string().nullable(), version: z.number() })),
+  }),
+);
 /** A candidate event. */
 export type CandidateEvent = z.infer<typeof candidateSchema>;
 
@@ -96,19 +99,21 @@ export function labelCandidate(id: number, label: { eventType: string; certainty
 
 // Thresholds.
 
-const thresholdValues = z.object({ eventZ: z.number(), noiseZ: z.number(), centroidMaxFactor: z.number() });
-const reportSchema = z.object({
-  stationId: z.number(),
-  station: z.string(),
-  current: thresholdValues,
-  proposed: thresholdValues.nullable(),
-  labelled: z.object({ events: z.number(), noise: z.number() }),
-  asShown: evaluationSchema,
-  currentEvaluation: evaluationSchema,
-  proposedEvaluation: evaluationSchema.nullable(),
-  curve: z.array(evaluationSchema.extend({ eventZ: z.number() })),
-  unreadable: z.number(),
-});
+const thresholdValues = lazySchema(() => z.object({ eventZ: z.number(), noiseZ: z.number(), centroidMaxFactor: z.number() }));
+const reportSchema = lazySchema(() =>
+  z.object({
+    stationId: z.number(),
+    station: z.string(),
+    current: thresholdValues,
+    proposed: thresholdValues.nullable(),
+    labelled: z.object({ events: z.number(), noise: z.number() }),
+    asShown: evaluationSchema,
+    currentEvaluation: evaluationSchema,
+    proposedEvaluation: evaluationSchema.nullable(),
+    curve: z.array(evaluationSchema.extend({ eventZ: z.number() })),
+    unreadable: z.number(),
+  }),
+);
 /** A thresholds report. */
 export type ThresholdReport = z.infer<typeof reportSchema>;
 
@@ -144,17 +149,19 @@ export const stationsQuery = () =>
 
 // Dashboard.
 
-const dashboardSchema = z.object({
-  days: z.array(z.string()),
-  itemsPerStation: z.array(z.object({ station: z.string(), counts: z.array(z.number()) })),
-  flagMix: z.array(z.object({ flag: z.string(), counts: z.array(z.number()) })),
-  medianTriageMinutes: z.array(z.number().nullable()),
-  triageCount: z.array(z.number()),
-  workload: z.array(z.object({ analyst: z.string(), actions: z.number() })),
-  falseAlarmRate: z.array(z.number().nullable()),
-  flaggedWithTruth: z.array(z.number()),
-  flaggedBeforeBaseline: z.array(z.number()),
-});
+const dashboardSchema = lazySchema(() =>
+  z.object({
+    days: z.array(z.string()),
+    itemsPerStation: z.array(z.object({ station: z.string(), counts: z.array(z.number()) })),
+    flagMix: z.array(z.object({ flag: z.string(), counts: z.array(z.number()) })),
+    medianTriageMinutes: z.array(z.number().nullable()),
+    triageCount: z.array(z.number()),
+    workload: z.array(z.object({ analyst: z.string(), actions: z.number() })),
+    falseAlarmRate: z.array(z.number().nullable()),
+    flaggedWithTruth: z.array(z.number()),
+    flaggedBeforeBaseline: z.array(z.number()),
+  }),
+);
 /** The dashboard's numbers. */
 export type Dashboard = z.infer<typeof dashboardSchema>;
 
