@@ -101,7 +101,14 @@ export function QueueScreen() {
     scrollRef.current?.scrollTo({ top: 0 });
     select(0);
   }, [scrollRef, select]);
-  const openItem = useCallback((r: QueueRow) => void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`), [navigate, search]);
+  // Live changes wait until the review has drawn (lib/screen-opening.ts).
+  const openItem = useCallback(
+    (r: QueueRow) => {
+      holdWhileOpening();
+      void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`);
+    },
+    [navigate, search],
+  );
   // An event group's row opens its event (once it has one); every other row its window's review.
   const open = useCallback(
     (r: QueueRow) => {
@@ -120,11 +127,8 @@ export function QueueScreen() {
   const claim = useCallback(
     (r: QueueRow) => {
       const opensAtOnce = r.state === 'new' || r.state === 'returned';
-      if (opensAtOnce) {
-        // The answer (and its live echo) wait until the review has drawn (lib/screen-opening.ts).
-        holdWhileOpening();
-        openItem(r);
-      }
+      // The answer (and its live echo) wait until the review has drawn (openItem holds them).
+      if (opensAtOnce) openItem(r);
       postItemAction({ action: 'claim', id: r.id, version: r.version }).then(
         (row) => {
           if (!opensAtOnce) openItem(r);
