@@ -6,6 +6,8 @@ import { paths } from '@client/config/paths';
 import { useSession } from '@client/lib/session-context';
 import { devPagesIncluded } from '@client/config/build-flags';
 import { useSignOut } from '@client/features/auth/api/session';
+import { holdWhileOpening } from '@client/lib/screen-opening';
+import { screenAt } from './early-requests';
 import { LiveUpdatesProvider, useLiveConnection } from './live-updates';
 import { HomeRoute } from './routes/home';
 import { NotFoundRoute } from './routes/not-found';
@@ -203,7 +205,20 @@ export const routes: RouteObject[] = [
   },
 ];
 
-/** Builds the browser router (called once, in main.tsx). */
+/**
+ * Builds the browser router (called once, in main.tsx). Whenever it moves to a review (from the
+ * queue, J or K, a link, the back button), the live changes and the claim's answer wait until that
+ * review has drawn (lib/screen-opening.ts).
+ */
 export function createAppRouter() {
-  return createBrowserRouter(routes);
+  const router = createBrowserRouter(routes);
+  // From the moment the navigation starts (a screen's code may still be loading), not when it lands.
+  let heading = router.state.location.pathname;
+  router.subscribe((state) => {
+    const path = (state.navigation.location ?? state.location).pathname;
+    if (path === heading) return;
+    heading = path;
+    if (screenAt(path)?.screen === 'item') holdWhileOpening();
+  });
+  return router;
 }

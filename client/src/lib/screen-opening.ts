@@ -4,10 +4,10 @@
  * A route change renders the new screen in a transition, in slices. Should a query that the screen
  * being left reads change meanwhile (the answer to the claim that opened the review, its live echo),
  * React draws the old screen once more at once and starts the new one over: on a slow machine
- * that cost the claim 100–150 ms. So the code that opens a screen calls `holdWhileOpening` (the queue
- * opening a review, with or without a claim; J and K from one review to the next); the new
- * screen calls `screenOpened` once it has drawn what matters; writes passed to `whenOpened` in
- * between wait until the frame after that (at most `maxMs`), in the order they came.
+ * that cost the claim 100–150 ms. So the router calls `holdWhileOpening` when it moves to a review
+ * (app/router.tsx), however the analyst went there; the review calls `screenOpened` once it has
+ * drawn what matters; writes passed to `whenOpened` in between wait until the frame after that (at
+ * most `maxMs`), in the order they came.
  */
 
 let held: Array<() => void> | null = null;

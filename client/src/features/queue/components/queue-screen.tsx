@@ -22,7 +22,7 @@ import { useQueueScroll } from '@client/features/queue/hooks/use-queue-scroll';
 import { distinguishingReasons } from '@client/features/queue/lib/distinguishing-reason';
 import { collapseEventGroups, type GroupedRow } from '@client/features/queue/lib/event-groups';
 import { queryKeys } from '@client/lib/query-keys';
-import { holdWhileOpening, whenOpened } from '@client/lib/screen-opening';
+import { whenOpened } from '@client/lib/screen-opening';
 import { useNow } from './age';
 import { queueColumns } from './queue-columns';
 import { QueueFilterBar } from './queue-filter-bar';
@@ -101,14 +101,7 @@ export function QueueScreen() {
     scrollRef.current?.scrollTo({ top: 0 });
     select(0);
   }, [scrollRef, select]);
-  // Live changes wait until the review has drawn (lib/screen-opening.ts).
-  const openItem = useCallback(
-    (r: QueueRow) => {
-      holdWhileOpening();
-      void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`);
-    },
-    [navigate, search],
-  );
+  const openItem = useCallback((r: QueueRow) => void navigate(`${paths.queueItem.href}/${r.id}${search ? `?${search}` : ''}`), [navigate, search]);
   // An event group's row opens its event (once it has one); every other row its window's review.
   const open = useCallback(
     (r: QueueRow) => {
@@ -127,7 +120,7 @@ export function QueueScreen() {
   const claim = useCallback(
     (r: QueueRow) => {
       const opensAtOnce = r.state === 'new' || r.state === 'returned';
-      // The answer (and its live echo) wait until the review has drawn (openItem holds them).
+      // The answer (and its live echo) wait until the review has drawn (the router holds them: app/router.tsx).
       if (opensAtOnce) openItem(r);
       postItemAction({ action: 'claim', id: r.id, version: r.version }).then(
         (row) => {

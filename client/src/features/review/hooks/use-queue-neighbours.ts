@@ -4,7 +4,6 @@ import type { QueueRow } from '@shared/schemas/queue';
 import { useQueueList } from '@client/api/queue/get-queue';
 import { parseFilters } from '@client/api/queue/queue-filters';
 import { paths } from '@client/config/paths';
-import { holdWhileOpening } from '@client/lib/screen-opening';
 
 /** Moving from one item to the next in the queue the analyst came from. */
 export interface QueueNeighbours {
@@ -42,11 +41,7 @@ export function useQueueNeighbours(itemId: number, meId: string | undefined): Qu
   const go = useCallback(
     (id: number | undefined) => {
       if (id === undefined) void navigate(`${paths.queue.href}${location.search}`);
-      else {
-        // Live changes wait until the next review has drawn (lib/screen-opening.ts).
-        holdWhileOpening();
-        void navigate(`${paths.queueItem.href}/${id}${location.search}`);
-      }
+      else void navigate(`${paths.queueItem.href}/${id}${location.search}`);
     },
     [navigate, location.search],
   );
